@@ -1,0 +1,57 @@
+/**
+ * The one call the shells make: raw logger bytes + vessel + settings → what was read and the fit.
+ * Pure: the same inputs give the same output bit for bit (a stored fit can be recomputed).
+ * Implemented by server/core/analyze.ts as `analyzeDrainTest(request): AnalysisOutcome`;
+ * throws InputError (server/core/errors.ts) for any refused input.
+ */
+
+/** Settings a person can state; JSON-serialisable so they can be stored beside the fit. */
+export interface AnalysisSettings {
+  // reading
+  timeColumn?: string;
+  levelColumn?: string;
+  unit?: string;
+  quantity?: 'level' | 'gauge-pressure' | 'absolute-pressure' | 'distance-from-top';
+  dateOrder?: 'dmy' | 'mdy' | 'ymd';
+  tz?: string;
+  delimiter?: string;
+  decimal?: '.' | ',';
+  // window: "START..END" in seconds from the log's start or ISO timestamps
+  window?: string;
+  // model
+  fitInflow?: boolean;
+  fitDatum?: boolean;
+  fitExponent?: boolean;
+}
+
+export interface RawFile {
+  bytes: Uint8Array;
+  fileName: string;
+}
+
+export interface AnalysisRequest {
+  log: RawFile;
+  baro?: RawFile;
+  /** A vessel in the vessel-file format (validated again inside). */
+  vessel: unknown;
+  settings: AnalysisSettings;
+}
+
+export interface AnalysisOutcome {
+  /** What the reader understood: columns, units, time span, interval, gaps, spikes, candidates. */
+  detected: Record<string, unknown>;
+  /** Exactly the object `efflux fit --json` prints. */
+  fit: FitJson;
+}
+
+/** The JSON fit result (SI units, camelCase). More fields exist; these are guaranteed. */
+export interface FitJson {
+  engineVersion: string;
+  converged: boolean;
+  dischargeCoefficient: { value: number; standardUncertainty: number; ci95: [number, number] } | null;
+  effectiveAreaM2: { value: number; standardUncertainty: number; ci95: [number, number] };
+  window: { startS: number; endS: number; samples: number };
+  warnings: { code: string; message: string }[];
+  timing: { parseMs: number; fitMs: number };
+  [key: string]: unknown;
+}
