@@ -1,0 +1,7 @@
+export type { LeastSquaresProblem, SolveOptions, SolveResult, StopReason } from './types.js';
+export { solveLeastSquares, DEFAULT_SOLVE_OPTIONS } from './levenberg-marquardt.js';
+export { finiteDifferenceJacobian } from './finite-difference.js';
+export { covarianceFromR } from './covariance.js';
+export { householderQr, applyQt, extractR } from './qr.js';
+export { lmParameter } from './lmpar.js';
+export { euclideanNorm } from './norm.js';

@@ -1,0 +1,336 @@
+/**
+ * The model functions of the 27 NIST StRD nonlinear-regression datasets, as printed in each
+ * file's "Model:" block, with hand-derived partial derivatives ∂f/∂b (checked against finite
+ * differences in test/reference/nist-models.test.ts).
+ *
+ * `f(b, x, x2, g)` returns the model value at one observation and, when g is given, fills
+ * g[k] = ∂f/∂b_k. Nelson's response is log(y) (its model is written for log[y]).
+ */
+export interface StrdModel {
+  readonly n: number;
+  /** Transform applied to the recorded response before fitting (Nelson fits log y). */
+  readonly response?: (y: number) => number;
+  f(b: Float64Array, x: number, x2: number, g: Float64Array | null): number;
+}
+
+const TWO_PI = 2 * Math.PI;
+
+// y = b1*(1-exp[-b2*x])
+const exponentialRise: StrdModel = {
+  n: 2,
+  f(b, x, _x2, g) {
+    const e = Math.exp(-b[1] * x);
+    if (g) {
+      g[0] = 1 - e;
+      g[1] = b[0] * x * e;
+    }
+    return b[0] * (1 - e);
+  },
+};
+
+// y = exp[-b1*x]/(b2+b3*x)
+const chwirut: StrdModel = {
+  n: 3,
+  f(b, x, _x2, g) {
+    const e = Math.exp(-b[0] * x);
+    const d = b[1] + b[2] * x;
+    if (g) {
+      g[0] = (-x * e) / d;
+      g[1] = -e / (d * d);
+      g[2] = (-x * e) / (d * d);
+    }
+    return e / d;
+  },
+};
+
+/** (c0 + c1 x + … + c_k x^k) / (1 + d1 x + … + d_k x^k) with b = [c0..ck, d1..dk]. */
+function rational(k: number): StrdModel {
+  return {
+    n: 2 * k + 1,
+    f(b, x, _x2, g) {
+      let num = 0;
+      let den = 1;
+      let xp = 1;
+      for (let i = 0; i <= k; i++) {
+        num += b[i] * xp;
+        if (i > 0) den += b[k + i] * xp;
+        xp *= x;
+      }
+      if (g) {
+        xp = 1;
+        for (let i = 0; i <= k; i++) {
+          g[i] = xp / den;
+          if (i > 0) g[k + i] = (-num * xp) / (den * den);
+          xp *= x;
+        }
+      }
+      return num / den;
+    },
+  };
+}
+
+// y = Σ b_{2k-1}*exp(-b_{2k}*x), three terms
+const lanczos: StrdModel = {
+  n: 6,
+  f(b, x, _x2, g) {
+    let s = 0;
+    for (let t = 0; t < 3; t++) {
+      const e = Math.exp(-b[2 * t + 1] * x);
+      s += b[2 * t] * e;
+      if (g) {
+        g[2 * t] = e;
+        g[2 * t + 1] = -b[2 * t] * x * e;
+      }
+    }
+    return s;
+  },
+};
+
+// y = b1*exp(-b2*x) + b3*exp(-(x-b4)^2/b5^2) + b6*exp(-(x-b7)^2/b8^2)
+const gauss: StrdModel = {
+  n: 8,
+  f(b, x, _x2, g) {
+    const e = Math.exp(-b[1] * x);
+    let s = b[0] * e;
+    if (g) {
+      g[0] = e;
+      g[1] = -b[0] * x * e;
+    }
+    for (const o of [2, 5]) {
+      const u = x - b[o + 1];
+      const w = b[o + 2];
+      const q = Math.exp(-(u * u) / (w * w));
+      s += b[o] * q;
+      if (g) {
+        g[o] = q;
+        g[o + 1] = (b[o] * q * 2 * u) / (w * w);
+        g[o + 2] = (b[o] * q * 2 * u * u) / (w * w * w);
+      }
+    }
+    return s;
+  },
+};
+
+export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
+  Misra1a: exponentialRise,
+  BoxBOD: exponentialRise,
+  Chwirut1: chwirut,
+  Chwirut2: chwirut,
+  Kirby2: rational(2),
+  Hahn1: rational(3),
+  Thurber: rational(3),
+  Lanczos1: lanczos,
+  Lanczos2: lanczos,
+  Lanczos3: lanczos,
+  Gauss1: gauss,
+  Gauss2: gauss,
+  Gauss3: gauss,
+  // y = b1*x**b2
+  DanWood: {
+    n: 2,
+    f(b, x, _x2, g) {
+      const p = Math.pow(x, b[1]);
+      if (g) {
+        g[0] = p;
+        g[1] = b[0] * p * Math.log(x);
+      }
+      return b[0] * p;
+    },
+  },
+  // y = b1 * (1-(1+b2*x/2)**(-2))
+  Misra1b: {
+    n: 2,
+    f(b, x, _x2, g) {
+      const u = 1 + (b[1] * x) / 2;
+      if (g) {
+        g[0] = 1 - 1 / (u * u);
+        g[1] = (b[0] * x) / (u * u * u);
+      }
+      return b[0] * (1 - 1 / (u * u));
+    },
+  },
+  // y = b1 * (1-(1+2*b2*x)**(-.5))
+  Misra1c: {
+    n: 2,
+    f(b, x, _x2, g) {
+      const u = 1 + 2 * b[1] * x;
+      const s = 1 / Math.sqrt(u);
+      if (g) {
+        g[0] = 1 - s;
+        g[1] = (b[0] * x * s) / u;
+      }
+      return b[0] * (1 - s);
+    },
+  },
+  // y = b1*b2*x*((1+b2*x)**(-1))
+  Misra1d: {
+    n: 2,
+    f(b, x, _x2, g) {
+      const u = 1 + b[1] * x;
+      if (g) {
+        g[0] = (b[1] * x) / u;
+        g[1] = (b[0] * x) / (u * u);
+      }
+      return (b[0] * b[1] * x) / u;
+    },
+  },
+  // y = b1*(x**2+x*b2) / (x**2+x*b3+b4)
+  MGH09: {
+    n: 4,
+    f(b, x, _x2, g) {
+      const num = x * x + x * b[1];
+      const den = x * x + x * b[2] + b[3];
+      if (g) {
+        g[0] = num / den;
+        g[1] = (b[0] * x) / den;
+        g[2] = (-b[0] * num * x) / (den * den);
+        g[3] = (-b[0] * num) / (den * den);
+      }
+      return (b[0] * num) / den;
+    },
+  },
+  // y = b1 * exp[b2/(x+b3)]
+  MGH10: {
+    n: 3,
+    f(b, x, _x2, g) {
+      const v = x + b[2];
+      const e = Math.exp(b[1] / v);
+      if (g) {
+        g[0] = e;
+        g[1] = (b[0] * e) / v;
+        g[2] = (-b[0] * e * b[1]) / (v * v);
+      }
+      return b[0] * e;
+    },
+  },
+  // y = b1 + b2*exp[-x*b4] + b3*exp[-x*b5]
+  MGH17: {
+    n: 5,
+    f(b, x, _x2, g) {
+      const e4 = Math.exp(-x * b[3]);
+      const e5 = Math.exp(-x * b[4]);
+      if (g) {
+        g[0] = 1;
+        g[1] = e4;
+        g[2] = e5;
+        g[3] = -b[1] * x * e4;
+        g[4] = -b[2] * x * e5;
+      }
+      return b[0] + b[1] * e4 + b[2] * e5;
+    },
+  },
+  // y = (b1/b2) * exp[-0.5*((x-b3)/b2)**2]
+  Eckerle4: {
+    n: 3,
+    f(b, x, _x2, g) {
+      const z = (x - b[2]) / b[1];
+      const e = Math.exp(-0.5 * z * z);
+      if (g) {
+        g[0] = e / b[1];
+        g[1] = ((b[0] * e) / (b[1] * b[1])) * (z * z - 1);
+        g[2] = ((b[0] * e) / (b[1] * b[1])) * z;
+      }
+      return (b[0] / b[1]) * e;
+    },
+  },
+  // y = b1 / (1+exp[b2-b3*x])
+  Rat42: {
+    n: 3,
+    f(b, x, _x2, g) {
+      const e = Math.exp(b[1] - b[2] * x);
+      const u = 1 + e;
+      if (g) {
+        g[0] = 1 / u;
+        g[1] = (-b[0] * e) / (u * u);
+        g[2] = (b[0] * x * e) / (u * u);
+      }
+      return b[0] / u;
+    },
+  },
+  // y = b1 / ((1+exp[b2-b3*x])**(1/b4))
+  Rat43: {
+    n: 4,
+    f(b, x, _x2, g) {
+      const e = Math.exp(b[1] - b[2] * x);
+      const u = 1 + e;
+      const p = Math.pow(u, -1 / b[3]);
+      if (g) {
+        g[0] = p;
+        g[1] = (-b[0] * p * e) / (b[3] * u);
+        g[2] = (b[0] * p * e * x) / (b[3] * u);
+        g[3] = (b[0] * p * Math.log(u)) / (b[3] * b[3]);
+      }
+      return b[0] * p;
+    },
+  },
+  // y = b1 * (b2+x)**(-1/b3)
+  Bennett5: {
+    n: 3,
+    f(b, x, _x2, g) {
+      const v = b[1] + x;
+      const p = Math.pow(v, -1 / b[2]);
+      if (g) {
+        g[0] = p;
+        g[1] = (-b[0] * p) / (b[2] * v);
+        g[2] = (b[0] * p * Math.log(v)) / (b[2] * b[2]);
+      }
+      return b[0] * p;
+    },
+  },
+  // log[y] = b1 - b2*x1 * exp[-b3*x2]
+  Nelson: {
+    n: 3,
+    response: Math.log,
+    f(b, x1, x2, g) {
+      const e = Math.exp(-b[2] * x2);
+      if (g) {
+        g[0] = 1;
+        g[1] = -x1 * e;
+        g[2] = b[1] * x1 * x2 * e;
+      }
+      return b[0] - b[1] * x1 * e;
+    },
+  },
+  // y = b1 + b2*cos(2πx/12) + b3*sin(2πx/12) + b5*cos(2πx/b4) + b6*sin(2πx/b4) + b8*cos(2πx/b7) + b9*sin(2πx/b7)
+  ENSO: {
+    n: 9,
+    f(b, x, _x2, g) {
+      const a = (TWO_PI * x) / 12;
+      let s = b[0] + b[1] * Math.cos(a) + b[2] * Math.sin(a);
+      if (g) {
+        g[0] = 1;
+        g[1] = Math.cos(a);
+        g[2] = Math.sin(a);
+      }
+      for (const o of [3, 6]) {
+        const th = (TWO_PI * x) / b[o];
+        const c = Math.cos(th);
+        const sn = Math.sin(th);
+        s += b[o + 1] * c + b[o + 2] * sn;
+        if (g) {
+          // dθ/db = −θ/b
+          g[o] = ((b[o + 1] * sn - b[o + 2] * c) * th) / b[o];
+          g[o + 1] = c;
+          g[o + 2] = sn;
+        }
+      }
+      return s;
+    },
+  },
+  // y = b1 - b2*x - arctan[b3/(x-b4)]/pi
+  Roszman1: {
+    n: 4,
+    f(b, x, _x2, g) {
+      const d = x - b[3];
+      const w = b[2] / d;
+      if (g) {
+        const k = 1 / (Math.PI * (1 + w * w));
+        g[0] = 1;
+        g[1] = -x;
+        g[2] = -k / d;
+        g[3] = (-k * b[2]) / (d * d);
+      }
+      return b[0] - b[1] * x - Math.atan(w) / Math.PI;
+    },
+  },
+};
