@@ -1,0 +1,197 @@
+import { createHash } from 'node:crypto';
+import { canonicalJson } from './canonical-json.js';
+import type { Db } from './db.js';
+
+/** Who acted: a user, or the system itself (migrations, demo loading, the CLI). */
+export interface Actor {
+  id: number | null;
+  name: string;
+}
+export const SYSTEM_ACTOR: Actor = { id: null, name: 'system' };
+
+export interface AuditInput {
+  action: string;
+  entityType: string;
+  entityId: string | number | null;
+  before?: unknown;
+  after?: unknown;
+}
+
+export interface AuditEntry {
+  seq: number;
+  at: string;
+  actorId: number | null;
+  actorName: string;
+  action: string;
+  entityType: string;
+  entityId: string | null;
+  before: unknown;
+  after: unknown;
+  prevHash: string;
+  hash: string;
+}
+
+export const GENESIS_HASH = '0'.repeat(64);
+
+interface AuditRow {
+  seq: number;
+  at: string;
+  actor_id: number | null;
+  actor_name: string;
+  action: string;
+  entity_type: string;
+  entity_id: string | null;
+  before: string | null;
+  after: string | null;
+  prev_hash: string;
+  hash: string;
+}
+
+/** The hash of one entry: it covers the previous hash and every field of the entry. */
+export function entryHash(prevHash: string, e: Omit<AuditEntry, 'hash' | 'prevHash'>): string {
+  const body = canonicalJson({
+    seq: e.seq,
+    at: e.at,
+    actorId: e.actorId,
+    actorName: e.actorName,
+    action: e.action,
+    entityType: e.entityType,
+    entityId: e.entityId,
+    before: e.before ?? null,
+    after: e.after ?? null,
+  });
+  return createHash('sha256').update(prevHash).update('\n').update(body).digest('hex');
+}
+
+function toEntry(r: AuditRow): AuditEntry {
+  return {
+    seq: r.seq,
+    at: r.at,
+    actorId: r.actor_id,
+    actorName: r.actor_name,
+    action: r.action,
+    entityType: r.entity_type,
+    entityId: r.entity_id,
+    before: r.before === null ? null : JSON.parse(r.before),
+    after: r.after === null ? null : JSON.parse(r.after),
+    prevHash: r.prev_hash,
+    hash: r.hash,
+  };
+}
+
+export interface AuditFilter {
+  entityType?: string;
+  entityId?: string;
+  actorId?: number;
+  action?: string;
+  since?: string;
+  until?: string;
+  afterSeq?: number;
+  limit?: number;
+}
+
+export class AuditLog {
+  private readonly last;
+  private readonly insert;
+  private readonly all;
+
+  constructor(private readonly db: Db) {
+    this.last = db.prepare('SELECT seq, hash FROM audit_log ORDER BY seq DESC LIMIT 1');
+    this.insert = db.prepare(`INSERT INTO audit_log
+      (seq, at, actor_id, actor_name, action, entity_type, entity_id, before, after, prev_hash, hash)
+      VALUES (@seq, @at, @actorId, @actorName, @action, @entityType, @entityId, @before, @after, @prevHash, @hash)`);
+    this.all = db.prepare('SELECT * FROM audit_log ORDER BY seq');
+  }
+
+  /**
+   * Appends one entry. Must run inside the caller's write transaction, so the change and its
+   * record commit together or not at all (the store's repositories always do).
+   */
+  append(actor: Actor, at: string, input: AuditInput): AuditEntry {
+    if (!this.db.inTransaction) throw new Error('audit append outside a transaction');
+    const prev = this.last.get() as { seq: number; hash: string } | undefined;
+    const partial = {
+      seq: (prev?.seq ?? 0) + 1,
+      at,
+      actorId: actor.id,
+      actorName: actor.name,
+      action: input.action,
+      entityType: input.entityType,
+      entityId: input.entityId === null ? null : String(input.entityId),
+      before: input.before ?? null,
+      after: input.after ?? null,
+    };
+    const prevHash = prev?.hash ?? GENESIS_HASH;
+    const hash = entryHash(prevHash, partial);
+    this.insert.run({
+      ...partial,
+      before: partial.before === null ? null : canonicalJson(partial.before),
+      after: partial.after === null ? null : canonicalJson(partial.after),
+      prevHash,
+      hash,
+    });
+    return { ...partial, prevHash, hash };
+  }
+
+  list(f: AuditFilter = {}): AuditEntry[] {
+    // Fixed SQL with optional parameters (a NULL parameter disables its condition): no SQL text is
+    // ever assembled from input.
+    const rows = this.db
+      .prepare(
+        `SELECT * FROM audit_log WHERE
+          (@entityType IS NULL OR entity_type = @entityType) AND
+          (@entityId IS NULL OR entity_id = @entityId) AND
+          (@actorId IS NULL OR actor_id = @actorId) AND
+          (@action IS NULL OR action = @action) AND
+          (@since IS NULL OR at >= @since) AND
+          (@until IS NULL OR at < @until) AND
+          seq > @afterSeq
+        ORDER BY seq LIMIT @limit`,
+      )
+      .all({
+        entityType: f.entityType ?? null,
+        entityId: f.entityId ?? null,
+        actorId: f.actorId ?? null,
+        action: f.action ?? null,
+        since: f.since ?? null,
+        until: f.until ?? null,
+        afterSeq: f.afterSeq ?? 0,
+        limit: f.limit ?? 100,
+      }) as AuditRow[];
+    return rows.map(toEntry);
+  }
+
+  /** Walks the whole chain; reports the first entry that does not fit. */
+  verify(): ChainReport {
+    let prevHash = GENESIS_HASH;
+    let expectedSeq = 1;
+    let count = 0;
+    for (const row of this.all.iterate() as Iterable<AuditRow>) {
+      count++;
+      const e = toEntry(row);
+      if (e.seq !== expectedSeq) {
+        return { ok: false, count, head: prevHash, brokenAt: e.seq, reason: `entry ${expectedSeq} is missing (next is ${e.seq})` };
+      }
+      if (e.prevHash !== prevHash) {
+        return { ok: false, count, head: prevHash, brokenAt: e.seq, reason: `entry ${e.seq} does not point at the hash of entry ${e.seq - 1}` };
+      }
+      const { hash, prevHash: _p, ...rest } = e;
+      if (entryHash(prevHash, rest) !== hash) {
+        return { ok: false, count, head: prevHash, brokenAt: e.seq, reason: `entry ${e.seq} was changed after it was written (its hash does not match its content)` };
+      }
+      prevHash = hash;
+      expectedSeq++;
+    }
+    return { ok: true, count, head: prevHash };
+  }
+}
+
+export interface ChainReport {
+  ok: boolean;
+  /** Entries read (up to and including the broken one). */
+  count: number;
+  /** Hash of the last good entry: write it down elsewhere to detect a cut-off tail later. */
+  head: string;
+  brokenAt?: number;
+  reason?: string;
+}

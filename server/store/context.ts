@@ -1,0 +1,17 @@
+import type { AuditLog } from './audit.js';
+import type { Db } from './db.js';
+
+/** What every repository shares: one connection, the audit log, and the clock (injected for tests). */
+export interface StoreContext {
+  db: Db;
+  audit: AuditLog;
+  now: () => string;
+}
+
+export function json(value: unknown): string | null {
+  return value === undefined || value === null ? null : JSON.stringify(value);
+}
+
+export function parse<T = unknown>(text: string | null): T | null {
+  return text === null ? null : (JSON.parse(text) as T);
+}

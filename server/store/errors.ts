@@ -1,0 +1,14 @@
+/** What the store refuses; the HTTP layer maps these to 404 and 409 problem+json. */
+export class NotFoundError extends Error {
+  constructor(readonly entity: string, readonly id: string | number) {
+    super(`${entity} ${id} not found`);
+    this.name = 'NotFoundError';
+  }
+}
+
+export class ConflictError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'ConflictError';
+  }
+}

@@ -1,0 +1,207 @@
+import { createHash } from 'node:crypto';
+import type { Actor } from './audit.js';
+import { parse, type StoreContext } from './context.js';
+import { NotFoundError } from './errors.js';
+
+export interface RawInput {
+  bytes: Uint8Array;
+  fileName: string;
+}
+
+export interface NewDrainTest {
+  vesselId: number;
+  outletId: number | null;
+  log: RawInput;
+  baro?: RawInput;
+  settings: Record<string, unknown>;
+  operator?: string | null;
+  loggerId?: string | null;
+  testedAt?: string | null;
+  notes?: string | null;
+}
+
+export interface DrainTest {
+  id: number;
+  vesselId: number;
+  outletId: number | null;
+  status: 'pending' | 'analysed';
+  sha256: string;
+  fileName: string;
+  size: number;
+  baro: { sha256: string; fileName: string; size: number } | null;
+  settings: Record<string, unknown>;
+  detected: Record<string, unknown> | null;
+  operator: string | null;
+  loggerId: string | null;
+  testedAt: string | null;
+  notes: string | null;
+  createdBy: number | null;
+  createdAt: string;
+}
+
+interface TestRow {
+  id: number;
+  vessel_id: number;
+  outlet_id: number | null;
+  status: 'pending' | 'analysed';
+  log_sha256: string;
+  log_name: string;
+  log_size: number;
+  baro_sha256: string | null;
+  baro_name: string | null;
+  baro_size: number | null;
+  settings: string;
+  detected: string | null;
+  operator: string | null;
+  logger_id: string | null;
+  tested_at: string | null;
+  notes: string | null;
+  created_by: number | null;
+  created_at: string;
+}
+
+export function sha256Hex(bytes: Uint8Array): string {
+  return createHash('sha256').update(bytes).digest('hex');
+}
+
+function toTest(r: TestRow): DrainTest {
+  return {
+    id: r.id,
+    vesselId: r.vessel_id,
+    outletId: r.outlet_id,
+    status: r.status,
+    sha256: r.log_sha256,
+    fileName: r.log_name,
+    size: r.log_size,
+    baro: r.baro_sha256 ? { sha256: r.baro_sha256, fileName: r.baro_name!, size: r.baro_size! } : null,
+    settings: parse(r.settings)!,
+    detected: parse(r.detected),
+    operator: r.operator,
+    loggerId: r.logger_id,
+    testedAt: r.tested_at,
+    notes: r.notes,
+    createdBy: r.created_by,
+    createdAt: r.created_at,
+  };
+}
+
+const SELECT = `SELECT t.*, l.size AS log_size, b.size AS baro_size FROM drain_tests t
+  JOIN raw_files l ON l.sha256 = t.log_sha256 LEFT JOIN raw_files b ON b.sha256 = t.baro_sha256`;
+
+/** Drain tests and the raw bytes they were read from. */
+export class TestRepo {
+  private readonly q;
+
+  constructor(private readonly c: StoreContext) {
+    const db = c.db;
+    this.q = {
+      putRaw: db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
+        ON CONFLICT (sha256) DO NOTHING`),
+      raw: db.prepare('SELECT bytes FROM raw_files WHERE sha256 = ?').pluck(),
+      dropRaw: db.prepare(`DELETE FROM raw_files WHERE sha256 = ?1 AND NOT EXISTS
+        (SELECT 1 FROM drain_tests WHERE log_sha256 = ?1 OR baro_sha256 = ?1)`),
+      insert: db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
+        settings, status, operator, logger_id, tested_at, notes, created_by, created_at)
+        VALUES (@vesselId, @outletId, @logSha, @logName, @baroSha, @baroName, @settings, 'pending', @operator,
+        @loggerId, @testedAt, @notes, @createdBy, @now)`),
+      get: db.prepare(`${SELECT} WHERE t.id = ?`),
+      list: db.prepare(`${SELECT} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?`),
+      count: db.prepare('SELECT count(*) FROM drain_tests WHERE vessel_id = ?').pluck(),
+      countAll: db.prepare('SELECT count(*) FROM drain_tests').pluck(),
+      pending: db.prepare(`${SELECT} WHERE t.status = 'pending' ORDER BY t.id`),
+      analysed: db.prepare(`UPDATE drain_tests SET status = 'analysed', detected = ? WHERE id = ? AND status = 'pending'`),
+      remove: db.prepare(`DELETE FROM drain_tests WHERE id = ? AND status = 'pending'`),
+    };
+  }
+
+  /**
+   * Stores the raw bytes and the test's metadata, committed before any analysis runs, so an
+   * upload is never lost to a crash in the analysis. Bytes are kept exactly as received.
+   */
+  createPending(actor: Actor, t: NewDrainTest): DrainTest {
+    const logSha = sha256Hex(t.log.bytes);
+    const baroSha = t.baro ? sha256Hex(t.baro.bytes) : null;
+    return this.c.db
+      .transaction(() => {
+        const now = this.c.now();
+        this.q.putRaw.run(logSha, t.log.bytes.byteLength, Buffer.from(t.log.bytes.buffer, t.log.bytes.byteOffset, t.log.bytes.byteLength), now);
+        if (t.baro) this.q.putRaw.run(baroSha, t.baro.bytes.byteLength, Buffer.from(t.baro.bytes.buffer, t.baro.bytes.byteOffset, t.baro.bytes.byteLength), now);
+        const id = Number(
+          this.q.insert.run({
+            vesselId: t.vesselId,
+            outletId: t.outletId,
+            logSha,
+            logName: t.log.fileName,
+            baroSha,
+            baroName: t.baro?.fileName ?? null,
+            settings: JSON.stringify(t.settings),
+            operator: t.operator ?? null,
+            loggerId: t.loggerId ?? null,
+            testedAt: t.testedAt ?? null,
+            notes: t.notes ?? null,
+            createdBy: actor.id,
+            now,
+          }).lastInsertRowid,
+        );
+        const test = this.get(id);
+        this.c.audit.append(actor, now, { action: 'test.upload', entityType: 'test', entityId: id, after: test });
+        return test;
+      })
+      .immediate();
+  }
+
+  /**
+   * Takes back a test whose analysis refused the file: the row and any raw bytes no other test
+   * shares are deleted, and the audit log says so (the upload entry stays: the log is append-only).
+   */
+  withdraw(actor: Actor, id: number, reason: string): void {
+    this.c.db
+      .transaction(() => {
+        const before = this.get(id);
+        if (this.q.remove.run(id).changes !== 1) throw new Error(`test ${id} is not pending`);
+        this.q.dropRaw.run(before.sha256);
+        if (before.baro) this.q.dropRaw.run(before.baro.sha256);
+        this.c.audit.append(actor, this.c.now(), {
+          action: 'test.withdraw',
+          entityType: 'test',
+          entityId: id,
+          before,
+          after: { reason },
+        });
+      })
+      .immediate();
+  }
+
+  /** Marks a pending test analysed; call inside the transaction that stores its first fit. */
+  markAnalysed(id: number, detected: Record<string, unknown>): void {
+    if (this.q.analysed.run(JSON.stringify(detected), id).changes !== 1) throw new Error(`test ${id} is not pending`);
+  }
+
+  get(id: number): DrainTest {
+    const row = this.q.get.get(id) as TestRow | undefined;
+    if (!row) throw new NotFoundError('test', id);
+    return toTest(row);
+  }
+
+  listByVessel(vesselId: number, limit: number, offset: number): { items: DrainTest[]; total: number } {
+    return {
+      items: (this.q.list.all(vesselId, limit, offset) as TestRow[]).map(toTest),
+      total: this.q.count.get(vesselId) as number,
+    };
+  }
+
+  count(): number {
+    return this.q.countAll.get() as number;
+  }
+
+  /** Tests stored but never analysed (e.g. the process stopped mid-analysis). */
+  pending(): DrainTest[] {
+    return (this.q.pending.all() as TestRow[]).map(toTest);
+  }
+
+  rawBytes(sha256: string): Buffer {
+    const b = this.q.raw.get(sha256) as Buffer | undefined;
+    if (!b) throw new NotFoundError('raw file', sha256);
+    return b;
+  }
+}
