@@ -98,8 +98,8 @@ export class TestRepo {
       putRaw: db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
         ON CONFLICT (sha256) DO NOTHING`),
       raw: db.prepare('SELECT bytes FROM raw_files WHERE sha256 = ?').pluck(),
-      dropRaw: db.prepare(`DELETE FROM raw_files WHERE sha256 = ?1 AND NOT EXISTS
-        (SELECT 1 FROM drain_tests WHERE log_sha256 = ?1 OR baro_sha256 = ?1)`),
+      dropRaw: db.prepare(`DELETE FROM raw_files WHERE sha256 = @sha AND NOT EXISTS
+        (SELECT 1 FROM drain_tests WHERE log_sha256 = @sha OR baro_sha256 = @sha)`),
       insert: db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
         settings, status, operator, logger_id, tested_at, notes, created_by, created_at)
         VALUES (@vesselId, @outletId, @logSha, @logName, @baroSha, @baroName, @settings, 'pending', @operator,
@@ -159,8 +159,8 @@ export class TestRepo {
       .transaction(() => {
         const before = this.get(id);
         if (this.q.remove.run(id).changes !== 1) throw new Error(`test ${id} is not pending`);
-        this.q.dropRaw.run(before.sha256);
-        if (before.baro) this.q.dropRaw.run(before.baro.sha256);
+        this.q.dropRaw.run({ sha: before.sha256 });
+        if (before.baro) this.q.dropRaw.run({ sha: before.baro.sha256 });
         this.c.audit.append(actor, this.c.now(), {
           action: 'test.withdraw',
           entityType: 'test',
