@@ -238,7 +238,8 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
       }
       const pnorm = scaledNorm(diag, step, n);
       if (pnorm === 0) {
-        stopReason = 'no-progress';
+        // The step is below the rounding of p: converged in p, unless the gradient says otherwise.
+        stopReason = gnorm <= 1e-8 ? 'relative-step' : 'no-progress';
         break outer;
       }
       if (iterations === 1) delta = Math.min(delta, pnorm);
