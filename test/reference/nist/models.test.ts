@@ -1,0 +1,37 @@
+import { describe, expect, it } from 'vitest';
+import { dirname, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { finiteDifferenceJacobian } from '../../../server/core/lsq/index.js';
+import { STRD_MODELS } from '../../../server/reference/nist/models.js';
+import { loadStrdDirectory, strdProblem } from '../../../server/reference/nist/run.js';
+
+// Source of the model forms and the points checked: NIST StRD nonlinear regression files.
+const dir = resolve(dirname(fileURLToPath(import.meta.url)), '../../../../shared/reference/nist-strd');
+const datasets = loadStrdDirectory(dir);
+
+describe('StRD model Jacobians against central differences', () => {
+  it('covers all 27 datasets', () => {
+    expect(datasets.length).toBe(27);
+    for (const ds of datasets) expect(STRD_MODELS[ds.name]?.n).toBe(ds.parameters.length);
+  });
+  for (const ds of datasets) {
+    it(ds.name, () => {
+      const problem = strdProblem(ds, STRD_MODELS[ds.name]);
+      // At start 2 and at the certified values: two different points of each model.
+      for (const pick of ['start2', 'certified'] as const) {
+        const p = Float64Array.from(ds.parameters, (q) => q[pick]);
+        const J = new Float64Array(problem.m * problem.n);
+        problem.evaluate(p, new Float64Array(problem.m), J);
+        const fd = finiteDifferenceJacobian(problem, p);
+        for (let k = 0; k < problem.n; k++) {
+          let scale = 0;
+          for (let i = 0; i < problem.m; i++) scale = Math.max(scale, Math.abs(J[i * problem.n + k]));
+          for (let i = 0; i < problem.m; i++) {
+            // Central differences with a relative step of 6e-6 carry errors of order 1e-9 of the column scale.
+            expect(Math.abs(fd[i * problem.n + k] - J[i * problem.n + k])).toBeLessThanOrEqual(1e-6 * scale + 1e-300);
+          }
+        }
+      }
+    });
+  }
+});
