@@ -1,0 +1,184 @@
+/**
+ * From a cleaned level log to the stretch a fit should use: set aside spikes, stuck and clipped
+ * readings; list every falling stretch; take the largest; trim the valve-opening transient and the
+ * nearly empty end; or honour a window a person chose. Every choice is explained in plain words.
+ */
+import { InputError } from '../errors.js';
+import type { LevelSeries } from '../ingest/series.js';
+import { candidateScales, findDrainCandidates } from './candidates.js';
+import { decimate, defaultBlockSamples } from './decimate.js';
+import { cutEnd } from './ending.js';
+import { findOnset, openingTrim } from './opening.js';
+import { estimateNoise, estimateResolution } from './robust.js';
+import { findClipping, findFlatLines } from './runs.js';
+import { findSpikes } from './spikes.js';
+import type { DrainCandidate, WindowChoice, WindowNote, WindowOptions, WindowTrim } from './types.js';
+
+const s1 = (t: number) => `${t.toFixed(1)} s`;
+const m3 = (m: number) => `${m.toFixed(3)} m`;
+
+function checkInput(series: Pick<LevelSeries, 'timeS' | 'levelM' | 'sourceLine'>, minSamples: number): void {
+  const { timeS, levelM, sourceLine } = series;
+  const n = levelM.length;
+  if (timeS.length !== n || sourceLine.length !== n) {
+    throw new InputError(`time, level and line arrays differ in length (${timeS.length}, ${n}, ${sourceLine.length})`, { field: 'levelM' });
+  }
+  if (n < Math.max(minSamples, 20)) {
+    throw new InputError(`the log has only ${n} readings; a drain window needs at least ${Math.max(minSamples, 20)}`, { field: 'levelM' });
+  }
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(levelM[i]) || !Number.isFinite(timeS[i])) {
+      throw new InputError('reading is not a finite number', { line: sourceLine[i], field: Number.isFinite(timeS[i]) ? 'level' : 'time' });
+    }
+    if (i > 0 && !(timeS[i] > timeS[i - 1])) {
+      throw new InputError('times must increase from one reading to the next', { line: sourceLine[i], field: 'time' });
+    }
+  }
+}
+
+function candidateLine(c: DrainCandidate): string {
+  return `${s1(c.startS)} to ${s1(c.endS)}, falling ${m3(c.dropM)} (${m3(c.startLevelM)} to ${m3(c.endLevelM)})`;
+}
+
+export function chooseDrainWindow(
+  series: Pick<LevelSeries, 'timeS' | 'levelM' | 'sourceLine'>,
+  options: WindowOptions = {},
+): WindowChoice {
+  const minSamples = options.minSamples ?? 10;
+  checkInput(series, minSamples);
+  const { timeS, levelM, sourceLine } = series;
+  const n = levelM.length;
+  const notes: WindowNote[] = [];
+  const warnings: WindowNote[] = [];
+  const trims: WindowTrim[] = [];
+  const headFraction = options.headFraction ?? 0.05;
+  if (!(headFraction > 0 && headFraction < 1)) throw new InputError('headFraction must lie between 0 and 1', { field: 'headFraction' });
+
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < n; i++) (lo = Math.min(lo, levelM[i])), (hi = Math.max(hi, levelM[i]));
+  if (hi === lo) {
+    throw new InputError(`the level reads ${lo} m throughout: the sensor did not respond, or the file's level column is wrong`, { field: 'level' });
+  }
+
+  // 1. Readings to set aside.
+  const q = estimateResolution(levelM);
+  const spikeIdx = findSpikes(timeS, levelM, options.spikes);
+  const excluded = new Uint8Array(n);
+  for (const i of spikeIdx) excluded[i] = 1;
+  const clipping = findClipping(timeS, levelM, { resolutionM: q });
+  for (const r of clipping) excluded.fill(1, r.startIndex, r.endIndex + 1);
+  const flatLines = findFlatLines(timeS, levelM, { resolutionM: q, excluded });
+  for (const r of flatLines) excluded.fill(1, r.startIndex, r.endIndex + 1);
+  const spikes = Array.from(spikeIdx, (i) => ({ index: i, line: sourceLine[i], timeS: timeS[i], levelM: levelM[i] }));
+  if (q > 0) notes.push({ code: 'resolution', message: `readings come in steps of ${(q * 1000).toPrecision(3)} mm` });
+  if (spikes.length) notes.push({ code: 'spikes', message: `${spikes.length} reading(s) stand out from their neighbours (moving median test) and are left out` });
+  for (const r of clipping) warnings.push({ code: 'clipping', message: r.reason });
+  for (const r of flatLines) warnings.push({ code: 'flat-line', message: r.reason });
+
+  // 2. Falling stretches.
+  const candidates = findDrainCandidates(timeS, levelM, excluded, options.candidates);
+
+  let startIndex: number;
+  let endIndex: number;
+  if (options.window) {
+    const { startS, endS } = options.window;
+    if (!Number.isFinite(startS) || !Number.isFinite(endS) || !(endS > startS)) {
+      throw new InputError(`the window must have a start before its end (got ${startS} s to ${endS} s)`, { field: 'window' });
+    }
+    if (startS < timeS[0] || endS > timeS[n - 1]) {
+      throw new InputError(
+        `the window ${s1(startS)} to ${s1(endS)} reaches outside the log, which runs from ${s1(timeS[0])} to ${s1(timeS[n - 1])}`,
+        { field: 'window' },
+      );
+    }
+    startIndex = 0;
+    while (timeS[startIndex] < startS) startIndex++;
+    endIndex = n - 1;
+    while (timeS[endIndex] > endS) endIndex--;
+    notes.push({ code: 'window-chosen-by-user', message: `the window ${s1(startS)} to ${s1(endS)} was given; no automatic trims applied` });
+    if (candidates.length === 0) warnings.push({ code: 'no-fall', message: 'no clear falling stretch was found anywhere in the log' });
+  } else {
+    if (candidates.length === 0) {
+      const d = decimate(timeS, levelM, excluded, options.candidates?.blockSamples ?? defaultBlockSamples(n));
+      const { minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options.candidates);
+      throw new InputError(
+        `the level never falls by more than ${m3(minDropM)} (the smallest fall that stands clear of the noise) ` +
+          'without a hold or a rise: is this a drain test? Check the level column, or choose the window by hand',
+        { field: 'level' },
+      );
+    }
+    const best = candidates[0];
+    notes.push({ code: 'drain-chosen', message: `the largest fall is used: ${candidateLine(best)}` });
+    for (const c of candidates.slice(1)) notes.push({ code: 'other-drain', message: `another fall, not used: ${candidateLine(c)}` });
+    if (candidates.length > 1 && candidates[1].dropM >= 0.8 * best.dropM) {
+      warnings.push({ code: 'similar-drains', message: 'another fall is nearly as large as the one used: check that the right drain was picked' });
+    }
+
+    // 3. Onset and the valve-opening transient.
+    const sigma = estimateNoise(levelM, excluded);
+    const earliest = candidates.filter((c) => c.endIndex <= best.startIndex).reduce((e, c) => Math.max(e, c.endIndex), 0);
+    const onset = findOnset(timeS, levelM, excluded, best.startIndex, best.endIndex, earliest, Math.max(3 * sigma, 1.5 * q));
+    notes.push({
+      code: 'valve-opened',
+      message:
+        onset.holdSamples > 0
+          ? `the level left its hold at ${m3(onset.holdLevelM)} at about ${s1(onset.timeS)}`
+          : `the log starts already falling; the drain is taken from ${s1(onset.timeS)}`,
+    });
+    const open = openingTrim(
+      timeS,
+      levelM,
+      excluded,
+      onset,
+      best.endIndex,
+      options.minOpeningTrimS ?? 5,
+      options.maxOpeningTrimFraction ?? 0.1,
+      q,
+    );
+    if (open.capped) warnings.push({ code: 'opening-unsettled', message: open.reason });
+    startIndex = onset.index;
+    while (startIndex < best.endIndex && timeS[startIndex] < onset.timeS + open.trimS) startIndex++;
+    trims.push({ what: 'valve-opening', fromS: onset.timeS, toS: timeS[startIndex], reason: open.reason });
+
+    // 4. The end.
+    const cut = cutEnd(timeS, levelM, excluded, startIndex, best.endIndex, headFraction, options.outletReadingM);
+    endIndex = cut.endIndex;
+    trims.push(...cut.trims);
+    if (options.outletReadingM === undefined) {
+      notes.push({
+        code: 'outlet-unknown',
+        message: "the outlet's level is not known, so the end is cut where the level flattens; give the outlet reading to cut by head",
+      });
+    }
+  }
+
+  const keep = new Uint8Array(n);
+  let kept = 0;
+  for (let i = startIndex; i <= endIndex; i++) if (!excluded[i]) (keep[i] = 1), kept++;
+  if (kept < minSamples) {
+    throw new InputError(
+      `the window ${s1(timeS[startIndex] ?? 0)} to ${s1(timeS[endIndex] ?? 0)} holds only ${kept} usable readings; at least ${minSamples} are needed`,
+      { field: 'window' },
+    );
+  }
+  const inside = spikes.filter((s) => s.index >= startIndex && s.index <= endIndex).length;
+  if (inside) notes.push({ code: 'spikes-in-window', message: `${inside} spike(s) inside the window are left out of the fit` });
+  const setAside = [...clipping, ...flatLines].filter((r) => r.endIndex >= startIndex && r.startIndex <= endIndex);
+  if (setAside.length) {
+    warnings.push({ code: 'set-aside-in-window', message: `${setAside.length} stuck or clipped run(s) inside the window are left out of the fit` });
+  }
+  notes.push({ code: 'window', message: `the fit window runs from ${s1(timeS[startIndex])} to ${s1(timeS[endIndex])} with ${kept} readings` });
+
+  return {
+    window: { startIndex, endIndex, startS: timeS[startIndex], endS: timeS[endIndex], samples: endIndex - startIndex + 1 },
+    keep,
+    candidates,
+    spikes,
+    flatLines,
+    clipping,
+    trims,
+    notes,
+    warnings,
+  };
+}

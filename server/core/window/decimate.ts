@@ -1,0 +1,67 @@
+/**
+ * A shorter, steadier copy of the series for finding shapes: the median of each block of
+ * consecutive samples (set-aside samples left out), at the mean time of the samples used.
+ */
+import { medianInPlace } from './robust.js';
+
+export interface Decimated {
+  timeS: Float64Array;
+  levelM: Float64Array;
+  /** First and last raw index used in each block. */
+  firstIndex: Int32Array;
+  lastIndex: Int32Array;
+  blockSamples: number;
+}
+
+/**
+ * Default block: at most about 10 000 blocks over the log, and at least 5 samples a block once the
+ * log has 1000 samples or more (a median of 5 already tames the noise); short logs keep more detail.
+ */
+export function defaultBlockSamples(n: number): number {
+  return Math.max(Math.ceil(n / 10000), Math.min(5, Math.floor(n / 200)), 1);
+}
+
+export function decimate(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  excluded: Uint8Array | null | undefined,
+  blockSamples: number,
+  from = 0,
+  to = levelM.length - 1,
+): Decimated {
+  const B = Math.max(1, Math.floor(blockSamples));
+  const blocks = Math.ceil((to - from + 1) / B);
+  const t = new Float64Array(blocks);
+  const v = new Float64Array(blocks);
+  const first = new Int32Array(blocks);
+  const last = new Int32Array(blocks);
+  const scratch = new Float64Array(B);
+  let m = 0;
+  for (let a = from; a <= to; a += B) {
+    const b = Math.min(a + B - 1, to);
+    let k = 0;
+    let st = 0;
+    let f = -1;
+    let l = -1;
+    for (let i = a; i <= b; i++) {
+      if (excluded && excluded[i]) continue;
+      scratch[k++] = levelM[i];
+      st += timeS[i];
+      if (f < 0) f = i;
+      l = i;
+    }
+    if (k === 0) continue;
+    t[m] = st / k;
+    v[m] = k === 1 ? scratch[0] : medianInPlace(scratch, k);
+    first[m] = f;
+    last[m] = l;
+    m++;
+  }
+  return {
+    timeS: t.subarray(0, m),
+    levelM: v.subarray(0, m),
+    firstIndex: first.subarray(0, m),
+    lastIndex: last.subarray(0, m),
+    blockSamples: B,
+  };
+}

@@ -1,0 +1,123 @@
+/**
+ * Robust scale helpers shared by the window detectors: a selection-based median (no full sort),
+ * the reading resolution of a quantised logger, and the white-noise level of a series.
+ */
+
+/** 1.4826 turns a median absolute deviation into a standard deviation for Gaussian noise. */
+export const MAD_TO_SIGMA = 1.4826;
+
+/** k-th smallest of a[lo..hi] (inclusive), rearranging a in place (Hoare's selection). */
+function select(a: Float64Array, lo: number, hi: number, k: number): number {
+  while (hi > lo) {
+    const pivot = a[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i] = a[j];
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k];
+  }
+  return a[k];
+}
+
+/** Median of the first `length` values of `scratch`; the scratch is reordered. */
+export function medianInPlace(scratch: Float64Array, length = scratch.length): number {
+  if (length === 0) return NaN;
+  const mid = length >> 1;
+  const upper = select(scratch, 0, length - 1, mid);
+  if (length % 2 === 1) return upper;
+  let lower = -Infinity;
+  for (let i = 0; i < mid; i++) if (scratch[i] > lower) lower = scratch[i];
+  return (lower + upper) / 2;
+}
+
+/**
+ * The logger's reading step (e.g. 0.001 for 1 mm) when the readings sit on a grid, else 0.
+ * Taken as the smallest clear step between consecutive readings, accepted only when nearly all
+ * steps are whole multiples of it: continuous data has tiny steps that are not.
+ */
+export function estimateResolution(levelM: Float64Array): number {
+  const n = levelM.length;
+  let range = 0;
+  for (let i = 1; i < n; i++) {
+    const d = Math.abs(levelM[i] - levelM[0]);
+    if (d > range) range = d;
+  }
+  const tiny = Math.max(range * 1e-9, 1e-12);
+  let q = Infinity;
+  for (let i = 1; i < n; i++) {
+    const d = Math.abs(levelM[i] - levelM[i - 1]);
+    if (d > tiny && d < q) q = d;
+  }
+  if (!Number.isFinite(q)) return 0;
+  let steps = 0;
+  let onGrid = 0;
+  const stride = Math.max(1, Math.floor(n / 20000)); // a sample of steps is enough to judge
+  for (let i = stride; i < n; i += stride) {
+    const d = Math.abs(levelM[i] - levelM[i - 1]);
+    if (d <= tiny) continue;
+    steps++;
+    const r = d / q;
+    if (Math.abs(r - Math.round(r)) < 0.02) onGrid++;
+  }
+  return steps > 0 && onGrid >= 0.95 * steps ? q : 0;
+}
+
+/**
+ * Standard deviation of the white part of the noise, from the MAD of second differences:
+ * a steady fall or a slowly curving drain cancels out, spikes do not move a median.
+ * For white noise of σ, a second difference has variance 6σ².
+ */
+export function estimateNoise(levelM: Float64Array, excluded?: Uint8Array | null): number {
+  const n = levelM.length;
+  if (n < 3) return 0;
+  const d = new Float64Array(n - 2);
+  let m = 0;
+  for (let i = 1; i < n - 1; i++) {
+    if (excluded && (excluded[i - 1] || excluded[i] || excluded[i + 1])) continue;
+    d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
+  }
+  if (m === 0) return 0;
+  return (MAD_TO_SIGMA * medianInPlace(d, m)) / Math.sqrt(6);
+}
+
+/** Least-squares slope of level against time over included samples in [from, to]; NaN if < 2. */
+export function slopeOver(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  from: number,
+  to: number,
+  excluded?: Uint8Array | null,
+): number {
+  let n = 0;
+  let st = 0;
+  let sy = 0;
+  for (let i = Math.max(0, from); i <= Math.min(to, timeS.length - 1); i++) {
+    if (excluded && excluded[i]) continue;
+    n++;
+    st += timeS[i];
+    sy += levelM[i];
+  }
+  if (n < 2) return NaN;
+  const tm = st / n;
+  const ym = sy / n;
+  let stt = 0;
+  let sty = 0;
+  for (let i = Math.max(0, from); i <= Math.min(to, timeS.length - 1); i++) {
+    if (excluded && excluded[i]) continue;
+    const dt = timeS[i] - tm;
+    stt += dt * dt;
+    sty += dt * (levelM[i] - ym);
+  }
+  return stt > 0 ? sty / stt : NaN;
+}

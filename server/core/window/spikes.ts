@@ -1,0 +1,80 @@
+/**
+ * Spikes by a Hampel filter: a reading is a spike when it sits further from the moving median than
+ * `threshold` scaled MADs. The MAD is taken of the residuals about the moving median (itself a
+ * moving median of |reading − moving median|), not of the raw readings in the window: on a steady
+ * fall the raw window spreads with the slope, which would hide spikes exactly where the drain is,
+ * while the residuals hold only noise and spikes.
+ *
+ * Both moving medians keep their window sorted as it slides (one removal and one insertion per
+ * step), so nothing is sorted afresh per sample.
+ */
+import { InputError } from '../errors.js';
+import { estimateNoise, estimateResolution, MAD_TO_SIGMA } from './robust.js';
+import type { SpikeOptions } from './types.js';
+
+/**
+ * Moving median over windows of L = min(2k+1, n) samples; samples nearer an end than half a
+ * window take the median of the first or last full window.
+ */
+export function movingMedian(x: Float64Array, k: number): Float64Array {
+  const n = x.length;
+  const out = new Float64Array(n);
+  if (n === 0) return out;
+  const L = Math.min(2 * k + 1, n);
+  const half = L >> 1;
+  const s = new Float64Array(L);
+  for (let i = 0; i < L; i++) s[i] = x[i];
+  s.sort();
+  const median = () => (L % 2 === 1 ? s[half] : (s[half - 1] + s[half]) / 2);
+  const lastCentre = n - L + half;
+  for (let c = half; c <= lastCentre; c++) {
+    if (c > half) {
+      const gone = x[c - half - 1];
+      const come = x[c + L - 1 - half];
+      let lo = 0;
+      let hi = L - 1;
+      while (lo <= hi) {
+        const mid = (lo + hi) >> 1;
+        if (s[mid] < gone) lo = mid + 1;
+        else hi = mid - 1;
+      }
+      let p = lo; // first slot holding `gone`: overwrite it, shifting towards where `come` belongs
+      if (come >= gone) {
+        while (p + 1 < L && s[p + 1] < come) (s[p] = s[p + 1]), p++;
+      } else {
+        while (p > 0 && s[p - 1] > come) (s[p] = s[p - 1]), p--;
+      }
+      s[p] = come;
+    }
+    const m = median();
+    if (c === half) for (let i = 0; i < half; i++) out[i] = m;
+    out[c] = m;
+    if (c === lastCentre) for (let i = c + 1; i < n; i++) out[i] = m;
+  }
+  return out;
+}
+
+/** Indices (ascending) of the readings the Hampel filter calls spikes. */
+export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: SpikeOptions = {}): Int32Array {
+  const n = levelM.length;
+  if (timeS.length !== n) {
+    throw new InputError(`time and level have different lengths (${timeS.length} and ${n})`, { field: 'levelM' });
+  }
+  const k = options.halfWindow ?? 5;
+  const threshold = options.threshold ?? 3.5;
+  if (!Number.isInteger(k) || k < 1) throw new InputError('the spike half-window must be a whole number of samples ≥ 1', { field: 'halfWindow' });
+  if (!(threshold > 0)) throw new InputError('the spike threshold must be a positive number of scaled MADs', { field: 'threshold' });
+  if (n < 3) return new Int32Array(0);
+  // Floor on the scale: with 1 mm steps the MAD is often exactly 0, and a scale of 0 would flag
+  // every step; the white-noise level keeps quiet windows from flagging ordinary noise.
+  const floor = options.scaleFloorM ?? Math.max(estimateResolution(levelM), estimateNoise(levelM));
+  const med = movingMedian(levelM, k);
+  const dev = new Float64Array(n);
+  for (let i = 0; i < n; i++) dev[i] = Math.abs(levelM[i] - med[i]);
+  const mad = movingMedian(dev, k);
+  const out: number[] = [];
+  for (let i = 0; i < n; i++) {
+    if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
+  }
+  return Int32Array.from(out);
+}
