@@ -5,9 +5,11 @@ import { YEAR_MS } from './trendline.js';
 /**
  * Sudden change (a partial blockage, a lodged object, a broken insert) shows as a jump off the
  * epoch's line. Each test is compared with the line fitted to the tests before it (one-step-ahead
- * prediction), standardised by sqrt(u_i² + var(prediction)) and by the epoch line's Birge factor
- * when the epoch scatters more than its stated u's. With honest u's these z are independent
- * N(0, 1) under no change, so the false-alarm rate does not depend on the drift.
+ * prediction), standardised by sqrt(u_i² + var(prediction)) and by the Birge factor
+ * max(1, sqrt(χ²/dof)) of those earlier tests when they scatter more than their stated u's. The
+ * factor comes from the earlier tests only, so a step does not hide itself by inflating it; with
+ * fewer than MIN_BIRGE_DOF earlier degrees of freedom the whole epoch line's factor stands in.
+ * With honest u's these z are independent N(0, 1) under no change, whatever the drift.
  *
  * Two detectors on those z:
  * - two-sided tabular CUSUM, S⁺ = max(0, S⁺ + z − k), S⁻ = max(0, S⁻ − z − k), alarm when one
@@ -22,6 +24,8 @@ export const CUSUM_H = 5;
 export const LATEST_Z_LIMIT = 3;
 /** Tests needed before the first prediction (a line needs 3 for a degree of freedom). */
 export const MIN_PRIOR = 3;
+/** Below this many earlier degrees of freedom their own Birge factor is too noisy to use. */
+export const MIN_BIRGE_DOF = 5;
 
 export interface StepCheck {
   flagged: boolean;
@@ -41,11 +45,11 @@ export interface StepCheck {
   reason: string;
 }
 
-/** `epochFits` in time order (an Epoch's fits); `line` the epoch's Cd·a line, for its Birge factor. */
+/** `epochFits` in time order (an Epoch's fits); `line` the epoch's Cd·a line (its Birge factor stands in early on). */
 export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine | null): StepCheck {
   const n = epochFits.length;
   const z = new Float64Array(n).fill(NaN);
-  const scale = line ? line.scale : 1;
+  const lineScale = line ? line.scale : 1;
   const base = { k: CUSUM_K, h: CUSUM_H, zLimit: LATEST_Z_LIMIT, z };
   if (n <= MIN_PRIOR) {
     return { ...base, flagged: false, by: null, fitId: null, alarmFitId: null, direction: null, latestZ: null,
@@ -53,7 +57,7 @@ export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine
   }
   // Running weighted sums about the first test, so nothing large is subtracted.
   const t0 = epochFits[0].testedAtMs, y0 = epochFits[0].effectiveAreaM2;
-  let S = 0, St = 0, Stt = 0, Sy = 0, Sty = 0;
+  let S = 0, St = 0, Stt = 0, Sy = 0, Sty = 0, Syy = 0;
   let up = 0, down = 0, upStart = 0, downStart = 0;
   let alarmAt = -1, changeAt = -1, dir: 'drop' | 'rise' | null = null;
   for (let i = 0; i < n; i++) {
@@ -67,6 +71,9 @@ export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine
       const b = ctt > 0 ? (Sty - St * ym) / ctt : 0;
       const dt = t - tm;
       const varPred = 1 / S + (ctt > 0 ? (dt * dt) / ctt : 0);
+      const dofPrior = i - 2;
+      const chi2Prior = Math.max(0, Syy - Sy * ym - b * (Sty - St * ym));
+      const scale = dofPrior >= MIN_BIRGE_DOF ? Math.max(1, Math.sqrt(chi2Prior / dofPrior)) : lineScale;
       const zi = (y - ym - b * dt) / (scale * Math.sqrt(f.effectiveAreaU ** 2 + varPred));
       z[i] = zi;
       if (alarmAt < 0) {
@@ -81,7 +88,7 @@ export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine
         }
       }
     }
-    S += w; St += w * t; Stt += w * t * t; Sy += w * y; Sty += w * t * y;
+    S += w; St += w * t; Stt += w * t * t; Sy += w * y; Sty += w * t * y; Syy += w * y * y;
   }
   const latestZ = z[n - 1];
   const latestFlag = Math.abs(latestZ) > LATEST_Z_LIMIT;
