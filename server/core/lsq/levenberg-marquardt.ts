@@ -25,7 +25,7 @@ const EPS = 2.220446049250313e-16;
 export const DEFAULT_SOLVE_OPTIONS: Required<SolveOptions> = {
   maxIterations: 1000,
   maxEvaluations: 4000,
-  ftol: 1e-14,
+  ftol: 1e-15,
   xtol: 1e-12,
   gtol: 0,
   stepBound: 100,
