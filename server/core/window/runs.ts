@@ -63,7 +63,8 @@ export function findFlatLines(timeS: Float64Array, levelM: Float64Array, options
 
 /**
  * Runs of identical readings at the series' highest or lowest value. Judged only when the rest of
- * the log shows noise of at least half a reading step: real readings then jitter, so a perfectly
+ * the log shows noise of at least one reading step (rounding alone looks like
+ * about half a step of noise): real readings then jitter, so a perfectly
  * still run at the very extreme is the sensor at the end of its range. With noise-free readings
  * a still run at the extreme is an ordinary hold (or an empty vessel) and is not flagged.
  */
@@ -85,7 +86,7 @@ export function findClipping(timeS: Float64Array, levelM: Float64Array, options:
   const pinned = new Uint8Array(n);
   for (const [a, b] of runs) pinned.fill(1, a, b + 1);
   const sigma = estimateNoise(levelM, pinned);
-  if (!(sigma >= 0.5 * q) || sigma === 0) return [];
+  if (!(sigma >= q) || sigma === 0) return [];
   return runs.map(([a, b]) => {
     const side = levelM[a] === hi ? 'max' : 'min';
     const r = run(

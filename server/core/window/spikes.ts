@@ -1,6 +1,6 @@
 /**
  * Spikes by a Hampel filter: a reading is a spike when it sits further from the moving median than
- * `threshold` scaled MADs. The MAD is taken of the residuals about the moving median (itself a
+ * `threshold` scaled MADs. It runs on the readings with the local trend taken out (see below). The MAD is taken of the residuals about the moving median (itself a
  * moving median of |reading − moving median|), not of the raw readings in the window: on a steady
  * fall the raw window spreads with the slope, which would hide spikes exactly where the drain is,
  * while the residuals hold only noise and spikes.
@@ -68,13 +68,26 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
   // Floor on the scale: with 1 mm steps the MAD is often exactly 0, and a scale of 0 would flag
   // every step; the white-noise level keeps quiet windows from flagging ordinary noise.
   const floor = options.scaleFloorM ?? Math.max(estimateResolution(levelM), estimateNoise(levelM));
-  const med = movingMedian(levelM, k);
+  // Take out the local fall first: integrate a moving median of the reading-to-reading rate (a
+  // spike spoils only two of its 4k+1 rates) and subtract it. Without this, a steep fall spreads
+  // the window by the slope, and a pair of spikes shifts the median by a whole slope step.
+  const z = new Float64Array(n);
+  if (n > 1) {
+    const rate = new Float64Array(n - 1);
+    for (let i = 0; i + 1 < n; i++) rate[i] = (levelM[i + 1] - levelM[i]) / (timeS[i + 1] - timeS[i]);
+    const smooth = movingMedian(rate, 2 * k);
+    let trend = 0;
+    z[0] = levelM[0];
+    for (let i = 1; i < n; i++) {
+      trend += smooth[i - 1] * (timeS[i] - timeS[i - 1]);
+      z[i] = levelM[i] - trend;
+    }
+  }
+  const med = movingMedian(z, k);
   const dev = new Float64Array(n);
-  for (let i = 0; i < n; i++) dev[i] = Math.abs(levelM[i] - med[i]);
+  for (let i = 0; i < n; i++) dev[i] = Math.abs(z[i] - med[i]);
   const mad = movingMedian(dev, k);
   const out: number[] = [];
-  for (let i = 0; i < n; i++) {
-    if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
-  }
+  for (let i = 0; i < n; i++) if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
   return Int32Array.from(out);
 }
