@@ -104,7 +104,7 @@ export function simulateFoulingHistory(o: FoulingHistoryOptions): FoulingHistory
       effectiveAreaM2: y,
       effectiveAreaU: u,
       dischargeCoefficient: y / aNom,
-      dischargeCoefficientU: (cdRelU * y) / aNom,
+      dischargeCoefficientU: (cdRelU * truth) / aNom,
     });
   }
   return { fits, events, trueAreaM2: trueArea, epochs };

@@ -88,7 +88,7 @@ export function assessEpoch(epoch: Epoch, settings: TrendSettings, nowMs: number
     const ci = area.slopePctPerYearInterval95;
     const sig = ci.lower > 0 || ci.upper < 0;
     status = sig
-      ? make('drifting', `${forecast.reason} (${area.slopePctPerYear.toFixed(2)} %/year, 95 % interval ${ci.lower.toFixed(2)} to ${ci.upper.toFixed(2)})`, common)
+      ? make('drifting', `${forecast.reason}; 95 % interval ${ci.lower.toFixed(2)} to ${ci.upper.toFixed(2)} %/year`, common)
       : make('steady', `no trend distinguishable from zero: ${area.slopePctPerYear.toFixed(2)} %/year, 95 % interval ${ci.lower.toFixed(2)} to ${ci.upper.toFixed(2)}`, common);
   }
   return { area, forecast, step, status };
