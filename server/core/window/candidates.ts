@@ -2,7 +2,8 @@
  * Every falling stretch of the log that could be a drain. Found on the decimated series:
  *  1. turning points with a hysteresis of the smallest drop worth listing, so wobbles and noise
  *     smaller than that never split a fall and never count as a rise;
- *  2. each fall is split again where the level holds (steady within the noise band for holdS);
+ *  2. each fall is split again where the level holds (steady within the noise band for holdS and
+ *     for 5 % of the fall's duration);
  *  3. each piece is trimmed to where it leaves the top (last block within the band of the top)
  *     and where it reaches the bottom (first block within the band of the bottom).
  */
@@ -124,7 +125,10 @@ export function findDrainCandidates(
     // Pieces of the fall between holds.
     const pieces: [number, number][] = [];
     let from = a;
-    for (const [ha, hb] of holdsWithin(t, v, a, b, bandM, holdS)) {
+    // A hold must also last 5 % of the fall it interrupts, so a slow drain (a pond over a day) is
+    // not chopped into 30 s pieces where the level moves less than the band.
+    const minHold = Math.max(holdS, 0.05 * (t[b] - t[a]));
+    for (const [ha, hb] of holdsWithin(t, v, a, b, bandM, minHold)) {
       if (ha > from) pieces.push([from, ha]);
       from = hb;
     }
