@@ -1,0 +1,170 @@
+/**
+ * buildApp(options) → a Fastify instance, not listening (the CLI calls listen; tests call inject).
+ * Order, after Fastify's own demo application: external plugins (security headers, rate limit,
+ * cookies, multipart, OpenAPI and its docs page, static files), then the app's decorators (store,
+ * analysis runner), then auth and error handling, then one route module per resource.
+ */
+import cookie from '@fastify/cookie';
+import helmet from '@fastify/helmet';
+import multipart from '@fastify/multipart';
+import rateLimit from '@fastify/rate-limit';
+import fastifyStatic from '@fastify/static';
+import swagger from '@fastify/swagger';
+import swaggerUi from '@fastify/swagger-ui';
+import Fastify, { type FastifyInstance, type FastifyServerOptions } from 'fastify';
+import {
+  jsonSchemaTransform,
+  jsonSchemaTransformObject,
+  serializerCompiler,
+  validatorCompiler,
+  type ZodTypeProvider,
+} from 'fastify-type-provider-zod';
+import { existsSync } from 'node:fs';
+import { z } from 'zod';
+import type { AnalyzeRunner } from '../jobs/pool.js';
+import type { Store } from '../store/index.js';
+import { PUBLIC, type Access } from './access.js';
+import { installAuth } from './auth.js';
+import './context.js';
+import { installProblemHandlers } from './problems.js';
+import { auditRoutes } from './routes/audit.js';
+import { eventRoutes } from './routes/events.js';
+import { fitRoutes } from './routes/fits.js';
+import { healthRoutes } from './routes/health.js';
+import { sessionRoutes } from './routes/session.js';
+import { testRoutes } from './routes/tests.js';
+import { vesselRoutes } from './routes/vessels.js';
+
+export interface AppOptions {
+  store: Store;
+  analyze: AnalyzeRunner;
+  /** Largest accepted log file; default 40 MiB ≈ a million rows of "timestamp,level". */
+  uploadLimitBytes?: number;
+  /** Whole-request deadline (receiving the body included); default 120 s. */
+  requestTimeoutMs?: number;
+  sessionTtlMs?: number;
+  /** Mark the session cookie Secure (set when served over HTTPS). */
+  secureCookie?: boolean;
+  /** Sign-in attempts per client address per minute. */
+  signInPerMinute?: number;
+  /** Folder of the built web front end, served at /; skipped when absent. */
+  webRoot?: string | null;
+  logger?: FastifyServerOptions['logger'];
+}
+
+export interface RouteInfo {
+  method: string;
+  url: string;
+  roles: Access;
+}
+
+declare module 'fastify' {
+  interface FastifyInstance {
+    /** Every route registered, with its declared roles (the permission test walks this). */
+    routeList: RouteInfo[];
+  }
+}
+
+export const DEFAULT_UPLOAD_LIMIT = 40 * 1024 * 1024;
+const DOCS_PREFIX = '/api/docs';
+
+/** Content-Security-Policy: only this origin, no inline script, no framing, no plugins. */
+const STRICT_CSP = {
+  defaultSrc: ["'self'"],
+  baseUri: ["'self'"],
+  scriptSrc: ["'self'"],
+  styleSrc: ["'self'"],
+  imgSrc: ["'self'", 'data:'],
+  fontSrc: ["'self'"],
+  connectSrc: ["'self'"],
+  objectSrc: ["'none'"],
+  frameAncestors: ["'none'"],
+  formAction: ["'self'"],
+  upgradeInsecureRequests: null,
+};
+/** The docs page's bundled UI sets inline styles; it alone gets 'unsafe-inline' for styles. */
+const DOCS_CSP =
+  "default-src 'self';base-uri 'self';script-src 'self';style-src 'self' 'unsafe-inline';img-src 'self' data:;" +
+  "font-src 'self';connect-src 'self';object-src 'none';frame-ancestors 'none';form-action 'self'";
+
+export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
+  const app = Fastify({
+    logger: opts.logger ?? false,
+    requestTimeout: opts.requestTimeoutMs ?? 120_000,
+    connectionTimeout: 30_000,
+    keepAliveTimeout: 10_000,
+    bodyLimit: 1024 * 1024, // JSON bodies (vessel files, reviews); uploads have their own limit
+    return503OnClosing: true,
+    trustProxy: false,
+  }).withTypeProvider<ZodTypeProvider>();
+  app.setValidatorCompiler(validatorCompiler);
+  app.setSerializerCompiler(serializerCompiler);
+
+  // Every route declares who may call it; one under /api that does not is a programming error.
+  app.decorate('routeList', [] as RouteInfo[]);
+  app.addHook('onRoute', (route) => {
+    let roles = route.config?.roles;
+    if (roles === undefined) {
+      if (route.url.startsWith(DOCS_PREFIX) || !route.url.startsWith('/api')) {
+        roles = PUBLIC;
+        route.config = { ...(route.config ?? {}), roles };
+      } else {
+        throw new Error(`route ${String(route.method)} ${route.url} declares no roles (config.roles)`);
+      }
+    }
+    for (const method of [route.method].flat()) app.routeList.push({ method, url: route.url, roles });
+  });
+
+  // external plugins
+  await app.register(helmet, { contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
+  await app.register(rateLimit, {
+    global: false,
+    errorResponseBuilder: (_req, ctx) => ({ statusCode: 429, message: `too many sign-in attempts; retry in ${ctx.after}` }),
+  });
+  await app.register(cookie);
+  await app.register(multipart, {
+    limits: { fileSize: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT, files: 2, fields: 40, parts: 50, fieldSize: 64 * 1024 },
+  });
+  await app.register(swagger, {
+    openapi: {
+      openapi: '3.1.0',
+      info: { title: 'efflux API', version: '0.1.0', description: 'Drain tests, fits, history and audit for gravity-draining vessels.' },
+      components: { securitySchemes: { bearer: { type: 'http', scheme: 'bearer' }, session: { type: 'apiKey', in: 'cookie', name: 'efflux_session' } } },
+      security: [{ bearer: [] }, { session: [] }],
+    },
+    transform: jsonSchemaTransform,
+    transformObject: jsonSchemaTransformObject,
+  });
+  await app.register(swaggerUi, { routePrefix: DOCS_PREFIX });
+  app.addHook('onSend', async (request, reply) => {
+    if (request.url.startsWith(DOCS_PREFIX)) reply.header('content-security-policy', DOCS_CSP);
+  });
+  if (opts.webRoot && existsSync(opts.webRoot)) await app.register(fastifyStatic, { root: opts.webRoot, prefix: '/' });
+
+  // decorators
+  app.decorate('store', opts.store);
+  app.decorate('analyze', opts.analyze);
+
+  // auth and errors (on the root: both are inherited by every route module below)
+  installAuth(app, opts.store);
+  installProblemHandlers(app);
+
+  // routes
+  await app.register(healthRoutes);
+  await app.register(sessionRoutes, {
+    ttlMs: opts.sessionTtlMs ?? 12 * 3600_000,
+    secureCookie: opts.secureCookie ?? false,
+    signInPerMinute: opts.signInPerMinute ?? 10,
+  });
+  await app.register(vesselRoutes);
+  await app.register(testRoutes);
+  await app.register(fitRoutes);
+  await app.register(eventRoutes);
+  await app.register(auditRoutes);
+  app.get(
+    '/api/openapi.json',
+    { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },
+    async () => app.swagger() as unknown as Record<string, unknown>,
+  );
+  return app;
+}

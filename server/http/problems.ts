@@ -1,0 +1,111 @@
+/**
+ * Every error leaves as application/problem+json (RFC 9457): type, title, status, detail, instance;
+ * `errors: [{path, message}]` for validation; file/line/field when an input was refused.
+ * Never a stack trace: unexpected errors are logged and answered with a generic 500.
+ */
+import type { FastifyError, FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
+import { hasZodFastifySchemaValidationErrors, isResponseSerializationError } from 'fastify-type-provider-zod';
+import { isInputError } from '../core/errors.js';
+import { AnalysisTimeoutError } from '../jobs/pool.js';
+import { EngineUnavailableError } from '../jobs/worker-reply.js';
+import { ConflictError, NotFoundError } from '../store/errors.js';
+
+export interface Problem {
+  type: string;
+  title: string;
+  status: number;
+  detail?: string;
+  instance?: string;
+  file?: string;
+  line?: number;
+  field?: string;
+  errors?: { path: string; message: string }[];
+}
+
+const TITLES: Record<number, string> = {
+  400: 'Bad request',
+  401: 'Not signed in',
+  403: 'Not allowed',
+  404: 'Not found',
+  405: 'Method not allowed',
+  406: 'Not acceptable',
+  409: 'Conflict',
+  413: 'Too large',
+  415: 'Unsupported media type',
+  422: 'Input refused',
+  429: 'Too many requests',
+  500: 'Internal error',
+  503: 'Unavailable',
+};
+
+/** Problem types are URNs in the project's namespace: stable names, nothing to dereference. */
+const typeOf = (slug: string) => `urn:efflux:problem:${slug}`;
+
+/** An error a handler throws to answer with a given problem. */
+export class HttpProblem extends Error {
+  constructor(
+    readonly status: number,
+    readonly slug: string,
+    detail: string,
+    readonly extra: Partial<Problem> = {},
+  ) {
+    super(detail);
+    this.name = 'HttpProblem';
+  }
+}
+
+export function sendProblem(reply: FastifyReply, request: FastifyRequest, p: Omit<Problem, 'instance' | 'title'> & { title?: string }) {
+  const body: Problem = { ...p, title: p.title ?? TITLES[p.status] ?? 'Error', instance: request.url };
+  return reply.code(p.status).type('application/problem+json').send(body);
+}
+
+function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?: string } {
+  if (err instanceof HttpProblem) return { type: typeOf(err.slug), status: err.status, detail: err.message, ...err.extra };
+  if (hasZodFastifySchemaValidationErrors(err)) {
+    const where = (err as { validationContext?: string }).validationContext ?? 'request';
+    const errors = err.validation.map((v) => ({
+      path: [where, ...v.instancePath.split('/').filter(Boolean)].join('.'),
+      message: v.message ?? 'invalid',
+    }));
+    return {
+      type: typeOf('validation'),
+      status: 400,
+      title: 'Invalid request',
+      detail: errors.map((e) => `${e.path}: ${e.message}`).join('; '),
+      errors,
+    };
+  }
+  if (isInputError(err)) {
+    return {
+      type: typeOf('input-refused'),
+      status: 422,
+      detail: err.toLine(),
+      file: err.file,
+      line: err.line,
+      field: err.field,
+      errors: [{ path: err.field ?? err.file ?? 'input', message: err.message }],
+    };
+  }
+  if (err instanceof NotFoundError) return { type: typeOf('not-found'), status: 404, detail: err.message };
+  if (err instanceof ConflictError) return { type: typeOf('conflict'), status: 409, detail: err.message };
+  if (err instanceof EngineUnavailableError || err instanceof AnalysisTimeoutError) {
+    return { type: typeOf('analysis-unavailable'), status: 503, detail: err.message };
+  }
+  const fe = err as FastifyError;
+  if (!isResponseSerializationError(err) && typeof fe.statusCode === 'number' && fe.statusCode >= 400 && fe.statusCode < 500) {
+    return { type: 'about:blank', status: fe.statusCode, detail: fe.message };
+  }
+  return { type: 'about:blank', status: 500, detail: 'The service could not complete the request; the error was logged.' };
+}
+
+export function installProblemHandlers(app: FastifyInstance): void {
+  app.setErrorHandler((err, request, reply) => {
+    const p = toProblem(err);
+    if (p.status >= 500) request.log.error({ err }, 'request failed');
+    if (p.status === 401) reply.header('www-authenticate', 'Bearer');
+    return sendProblem(reply, request, p);
+  });
+  app.setNotFoundHandler((request, reply) =>
+    sendProblem(reply, request, { type: typeOf('not-found'), status: 404, detail: `no route ${request.method} ${request.url.split('?')[0]}` }),
+  );
+}

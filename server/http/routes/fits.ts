@@ -1,0 +1,66 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import { refit } from '../../jobs/ingest.js';
+import { actorOf } from '../../store/users.js';
+import { ENGINEERS_UP, READERS, TECHNICIANS_UP } from '../access.js';
+import { analysisSettings, fit, idParams, pageOf, paging, problem, protectedErrors } from '../schemas.js';
+
+export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
+  app.get(
+    '/api/vessels/:id/fits',
+    {
+      config: { roles: READERS },
+      schema: { tags: ['fits'], summary: "A vessel's fits, newest first", params: idParams, querystring: paging, response: { 200: pageOf(fit), ...protectedErrors } },
+    },
+    async (request) => {
+      app.store.vessels.get(request.params.id);
+      return { ...app.store.fits.listByVessel(request.params.id, request.query.limit, request.query.offset), ...request.query };
+    },
+  );
+
+  app.get(
+    '/api/fits/:id',
+    { config: { roles: READERS }, schema: { tags: ['fits'], summary: 'One fit', params: idParams, response: { 200: fit, ...protectedErrors } } },
+    async (request) => app.store.fits.get(request.params.id),
+  );
+
+  app.post(
+    '/api/fits/:id/refit',
+    {
+      config: { roles: TECHNICIANS_UP },
+      schema: {
+        tags: ['fits'],
+        summary: 'Fit the same raw file again with changed settings (merged over the old); the old fit is superseded, kept',
+        params: idParams,
+        body: z.object({ settings: analysisSettings }),
+        response: { 201: fit, 409: problem, 422: problem, 503: problem, ...protectedErrors },
+      },
+    },
+    async (request, reply) => {
+      const created = await refit(app.store, app.analyze, actorOf(request.user!), request.params.id, request.body.settings);
+      reply.code(201);
+      return created;
+    },
+  );
+
+  app.post(
+    '/api/fits/:id/review',
+    {
+      config: { roles: ENGINEERS_UP },
+      schema: {
+        tags: ['fits'],
+        summary: 'Approve or reject a draft fit, with a comment',
+        params: idParams,
+        body: z.object({ decision: z.enum(['approve', 'reject']), comment: z.string().max(10_000).optional() }),
+        response: { 200: fit, 409: problem, ...protectedErrors },
+      },
+    },
+    async (request) =>
+      app.store.fits.review(
+        actorOf(request.user!),
+        request.params.id,
+        request.body.decision === 'approve' ? 'approved' : 'rejected',
+        request.body.comment ?? null,
+      ),
+  );
+};

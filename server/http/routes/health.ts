@@ -1,0 +1,17 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import { PUBLIC } from '../access.js';
+
+export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
+  app.get(
+    '/api/health',
+    {
+      config: { roles: PUBLIC },
+      schema: { tags: ['service'], summary: 'Liveness: the service answers and its database reads', response: { 200: z.object({ status: z.literal('ok') }) } },
+    },
+    async () => {
+      app.store.db.prepare('SELECT 1').get();
+      return { status: 'ok' as const };
+    },
+  );
+};

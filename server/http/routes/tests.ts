@@ -1,0 +1,94 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import { uploadDrainTest } from '../../jobs/ingest.js';
+import { actorOf } from '../../store/users.js';
+import { READERS, TECHNICIANS_UP } from '../access.js';
+import { HttpProblem } from '../problems.js';
+import { drainTest, fit, idParams, pageOf, paging, problem, protectedErrors } from '../schemas.js';
+import { readUpload } from '../uploads.js';
+
+/** RFC 6266 / RFC 8187: an ASCII fallback plus the exact UTF-8 name. */
+function contentDisposition(name: string): string {
+  const ascii = name.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, '_');
+  return `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(name)}`;
+}
+
+export const testRoutes: FastifyPluginAsyncZod = async (app) => {
+  app.post(
+    '/api/vessels/:id/tests',
+    {
+      config: { roles: TECHNICIANS_UP },
+      schema: {
+        tags: ['tests'],
+        summary: 'Upload a drain test (multipart: file "log", optional file "baro", settings and metadata fields); fitted at once',
+        description:
+          'Text fields: outletId, operator, loggerId, testedAt, notes, and the AnalysisSettings (timeColumn, levelColumn, unit, quantity, ' +
+          'dateOrder, tz, delimiter, decimal, window, fitInflow, fitDatum, fitExponent; booleans as "true"/"false"). ' +
+          'The raw bytes are stored before the analysis runs. A refused file is answered 422 and not kept.',
+        consumes: ['multipart/form-data'],
+        params: idParams,
+        response: { 201: z.object({ test: drainTest, fit }), 413: problem, 415: problem, 422: problem, 503: problem, ...protectedErrors },
+      },
+    },
+    async (request, reply) => {
+      const vessel = app.store.vessels.get(request.params.id); // 404 before reading the body
+      const up = await readUpload(request);
+      const out = await uploadDrainTest(app.store, app.analyze, actorOf(request.user!), { vesselId: vessel.id, ...up });
+      reply.code(201);
+      return out;
+    },
+  );
+
+  app.get(
+    '/api/vessels/:id/tests',
+    {
+      config: { roles: READERS },
+      schema: { tags: ['tests'], summary: "A vessel's drain tests, newest first", params: idParams, querystring: paging, response: { 200: pageOf(drainTest), ...protectedErrors } },
+    },
+    async (request) => {
+      app.store.vessels.get(request.params.id);
+      return { ...app.store.tests.listByVessel(request.params.id, request.query.limit, request.query.offset), ...request.query };
+    },
+  );
+
+  app.get(
+    '/api/tests/:id',
+    { config: { roles: READERS }, schema: { tags: ['tests'], summary: 'One drain test', params: idParams, response: { 200: drainTest, ...protectedErrors } } },
+    async (request) => app.store.tests.get(request.params.id),
+  );
+
+  app.get(
+    '/api/tests/:id/fits',
+    { config: { roles: READERS }, schema: { tags: ['tests'], summary: "A test's fits, oldest first (refits supersede)", params: idParams, response: { 200: z.object({ items: z.array(fit) }), ...protectedErrors } } },
+    async (request) => {
+      app.store.tests.get(request.params.id);
+      return { items: app.store.fits.listByTest(request.params.id) };
+    },
+  );
+
+  app.get(
+    '/api/tests/:id/raw',
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['tests'],
+        summary: 'The raw file byte for byte, under its original name',
+        params: idParams,
+        querystring: z.object({ file: z.enum(['log', 'baro']).default('log') }),
+        response: { ...protectedErrors },
+      },
+    },
+    async (request, reply) => {
+      const t = app.store.tests.get(request.params.id);
+      const ref = request.query.file === 'baro' ? t.baro : { sha256: t.sha256, fileName: t.fileName };
+      if (!ref) throw new HttpProblem(404, 'not-found', `test ${t.id} has no barometric file`);
+      const bytes = app.store.tests.rawBytes(ref.sha256);
+      reply
+        .type('application/octet-stream')
+        .header('content-disposition', contentDisposition(ref.fileName))
+        .header('x-content-sha256', ref.sha256)
+        .header('cache-control', 'private, max-age=31536000, immutable');
+      return reply.send(bytes as never); // a Buffer is sent as is, never serialised
+    },
+  );
+};

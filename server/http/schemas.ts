@@ -1,0 +1,122 @@
+/**
+ * Response and request shapes shared by the route modules. Handlers return the store's objects;
+ * the zod serializer checks them against these before they leave.
+ */
+import { z } from 'zod';
+
+export const idParams = z.object({ id: z.coerce.number().int().positive() });
+
+export const paging = z.object({
+  limit: z.coerce.number().int().min(1).max(500).default(50),
+  offset: z.coerce.number().int().min(0).default(0),
+});
+
+export const pageOf = <T extends z.ZodType>(item: T) =>
+  z.object({ items: z.array(item), total: z.number().int(), limit: z.number().int(), offset: z.number().int() });
+
+const json = z.record(z.string(), z.unknown());
+
+export const problem = z
+  .object({
+    type: z.string(),
+    title: z.string(),
+    status: z.number().int(),
+    detail: z.string().optional(),
+    instance: z.string().optional(),
+    file: z.string().optional(),
+    line: z.number().int().optional(),
+    field: z.string().optional(),
+    errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+  })
+  .meta({ id: 'Problem', description: 'RFC 9457 problem details' });
+
+export const outlet = z
+  .object({
+    id: z.number().int(),
+    key: z.string(),
+    type: z.string().nullable(),
+    boreM: z.number().nullable(),
+    boreToleranceM: z.number().nullable(),
+    elevationM: z.number().nullable(),
+    actionThreshold: z.number().nullable(),
+    spec: json,
+    retiredAt: z.string().nullable(),
+  })
+  .meta({ id: 'Outlet' });
+
+export const vessel = z
+  .object({
+    id: z.number().int(),
+    site: z.string(),
+    name: z.string(),
+    revision: z.number().int(),
+    spec: json,
+    outlets: z.array(outlet),
+    createdAt: z.string(),
+    updatedAt: z.string(),
+  })
+  .meta({ id: 'Vessel' });
+
+const rawRef = z.object({ sha256: z.string(), fileName: z.string(), size: z.number().int() });
+
+export const drainTest = z
+  .object({
+    id: z.number().int(),
+    vesselId: z.number().int(),
+    outletId: z.number().int().nullable(),
+    status: z.enum(['pending', 'analysed']),
+    sha256: z.string(),
+    fileName: z.string(),
+    size: z.number().int(),
+    baro: rawRef.nullable(),
+    settings: json,
+    detected: json.nullable(),
+    operator: z.string().nullable(),
+    loggerId: z.string().nullable(),
+    testedAt: z.string().nullable(),
+    notes: z.string().nullable(),
+    createdBy: z.number().int().nullable(),
+    createdAt: z.string(),
+  })
+  .meta({ id: 'DrainTest' });
+
+export const fit = z
+  .object({
+    id: z.number().int(),
+    testId: z.number().int(),
+    vesselId: z.number().int(),
+    outletId: z.number().int().nullable(),
+    settings: json,
+    vessel: json,
+    result: json,
+    engineVersion: z.string(),
+    status: z.enum(['draft', 'approved', 'rejected']),
+    supersededBy: z.number().int().nullable(),
+    review: z.object({ comment: z.string().nullable(), by: z.number().int().nullable(), at: z.string().nullable() }).nullable(),
+    createdBy: z.number().int().nullable(),
+    createdAt: z.string(),
+  })
+  .meta({ id: 'Fit' });
+
+/** The settings a person can state (AnalysisSettings), as JSON. */
+export const analysisSettings = z
+  .object({
+    timeColumn: z.string().min(1),
+    levelColumn: z.string().min(1),
+    unit: z.string().min(1),
+    quantity: z.enum(['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top']),
+    dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
+    tz: z.string().min(1),
+    delimiter: z.string().min(1).max(3),
+    decimal: z.enum(['.', ',']),
+    window: z.string().min(1),
+    fitInflow: z.boolean(),
+    fitDatum: z.boolean(),
+    fitExponent: z.boolean(),
+  })
+  .partial()
+  .strict()
+  .meta({ id: 'AnalysisSettings' });
+
+/** Error answers every protected route can give, for the OpenAPI document. */
+export const protectedErrors = { 400: problem, 401: problem, 403: problem, 404: problem } as const;

@@ -1,0 +1,39 @@
+/**
+ * Piscina worker: runs one analysis off the main thread. Loads the engine lazily, once per thread,
+ * from server/core/analyze.js (or the module named in workerData.analyzeModule: tests, benchmarks).
+ */
+import { workerData } from 'node:worker_threads';
+import type { AnalysisOutcome, AnalysisRequest } from '../core/analysis-contract.js';
+import { EngineUnavailableError, serialiseError, type WorkerReply } from './worker-reply.js';
+
+type Analyze = (req: AnalysisRequest) => AnalysisOutcome;
+let engine: Promise<Analyze> | undefined;
+
+function loadEngine(): Promise<Analyze> {
+  const configured = (workerData as { analyzeModule?: string } | undefined)?.analyzeModule;
+  const ext = import.meta.url.endsWith('.ts') ? '.ts' : '.js';
+  const url = configured ?? new URL(`../core/analyze${ext}`, import.meta.url).href;
+  return import(url).then(
+    (m: { analyzeDrainTest?: Analyze }) => {
+      if (typeof m.analyzeDrainTest !== 'function') throw new EngineUnavailableError('the analysis engine exports no analyzeDrainTest');
+      return m.analyzeDrainTest;
+    },
+    (e: { code?: string }) => {
+      if (e?.code === 'ERR_MODULE_NOT_FOUND') throw new EngineUnavailableError('the analysis engine is not built yet');
+      throw e;
+    },
+  );
+}
+
+export default async function run(req: AnalysisRequest): Promise<WorkerReply> {
+  try {
+    engine ??= loadEngine();
+    const analyze = await engine.catch((e) => {
+      engine = undefined; // try again next time (the engine may be installed while we run)
+      throw e;
+    });
+    return { ok: true, outcome: analyze(req) };
+  } catch (e) {
+    return { ok: false, error: serialiseError(e) };
+  }
+}

@@ -1,0 +1,149 @@
+import type { AnalysisSettings } from '../core/analysis-contract.js';
+import { InputError, isInputError } from '../core/errors.js';
+import type { Actor, Store } from '../store/index.js';
+import type { StoredFit } from '../store/fits.js';
+import type { DrainTest, RawInput } from '../store/tests.js';
+import type { Outlet, Vessel } from '../store/vessels.js';
+import type { AnalyzeRunner } from './pool.js';
+
+export interface UploadInput {
+  vesselId: number;
+  outletId?: number | null;
+  log: RawInput;
+  baro?: RawInput;
+  settings: AnalysisSettings;
+  operator?: string | null;
+  loggerId?: string | null;
+  testedAt?: string | null;
+  notes?: string | null;
+}
+
+/** The outlet a test is for: the one named, else the vessel's only active outlet. */
+export function chooseOutlet(vessel: Vessel, outletId: number | null | undefined): Outlet | null {
+  const active = vessel.outlets.filter((o) => o.retiredAt === null);
+  if (outletId !== undefined && outletId !== null) {
+    const o = active.find((x) => x.id === outletId);
+    if (!o) throw new InputError(`vessel ${vessel.id} has no active outlet ${outletId}`, { field: 'outletId' });
+    return o;
+  }
+  if (active.length > 1) {
+    throw new InputError(`vessel ${vessel.id} has ${active.length} outlets; say which one was tested`, { field: 'outletId' });
+  }
+  return active[0] ?? null;
+}
+
+/**
+ * The vessel file handed to the analysis: as stored, but with a list of outlets narrowed to the
+ * one tested, so the engine sees the single-outlet vessel file it reads.
+ */
+export function vesselForAnalysis(vessel: Vessel, outlet: Outlet | null): Record<string, unknown> {
+  const spec = { ...vessel.spec };
+  if (Array.isArray(spec.outlets) && outlet) {
+    delete spec.outlets;
+    spec.outlet = outlet.spec;
+  }
+  return spec;
+}
+
+/**
+ * An upload: the raw bytes are committed first (so a crash during the analysis loses nothing),
+ * then the analysis runs in the pool, then its fit is stored as a draft. When the analysis refuses
+ * the input, the test is withdrawn (row and unshared bytes deleted; the audit log records both)
+ * and the InputError goes back to the caller. Any other failure leaves the test pending; it is
+ * analysed again on the next start (resumePending).
+ */
+export async function uploadDrainTest(
+  store: Store,
+  analyze: AnalyzeRunner,
+  actor: Actor,
+  input: UploadInput,
+): Promise<{ test: DrainTest; fit: StoredFit }> {
+  const vessel = store.vessels.get(input.vesselId);
+  const outlet = chooseOutlet(vessel, input.outletId);
+  const test = store.tests.createPending(actor, {
+    vesselId: vessel.id,
+    outletId: outlet?.id ?? null,
+    log: input.log,
+    baro: input.baro,
+    settings: input.settings as Record<string, unknown>,
+    operator: input.operator,
+    loggerId: input.loggerId,
+    testedAt: input.testedAt,
+    notes: input.notes,
+  });
+  const fit = await analyseStored(store, analyze, actor, test, vessel, outlet);
+  return { test: store.tests.get(test.id), fit };
+}
+
+async function analyseStored(
+  store: Store,
+  analyze: AnalyzeRunner,
+  actor: Actor,
+  test: DrainTest,
+  vessel: Vessel,
+  outlet: Outlet | null,
+): Promise<StoredFit> {
+  const vesselSpec = vesselForAnalysis(vessel, outlet);
+  const settings = test.settings as AnalysisSettings;
+  try {
+    const outcome = await analyze({
+      log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
+      baro: test.baro ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName } : undefined,
+      vessel: vesselSpec,
+      settings,
+    });
+    return store.fits.storeFirst(actor, test.id, outcome.detected, {
+      settings: settings as Record<string, unknown>,
+      vessel: vesselSpec,
+      result: outcome.fit as Record<string, unknown>,
+    });
+  } catch (e) {
+    if (isInputError(e)) store.tests.withdraw(actor, test.id, e.toLine());
+    throw e;
+  }
+}
+
+/** A new fit of a stored test with changed settings (merged over the old fit's); the old is superseded. */
+export async function refit(
+  store: Store,
+  analyze: AnalyzeRunner,
+  actor: Actor,
+  fitId: number,
+  changes: AnalysisSettings,
+): Promise<StoredFit> {
+  const old = store.fits.get(fitId);
+  const test = store.tests.get(old.testId);
+  const vessel = store.vessels.get(test.vesselId);
+  const outlet = test.outletId === null ? null : (vessel.outlets.find((o) => o.id === test.outletId) ?? null);
+  const settings = { ...(old.settings as AnalysisSettings), ...changes };
+  const vesselSpec = vesselForAnalysis(vessel, outlet);
+  const outcome = await analyze({
+    log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
+    baro: test.baro ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName } : undefined,
+    vessel: vesselSpec,
+    settings,
+  });
+  return store.fits.refit(actor, fitId, {
+    settings: settings as Record<string, unknown>,
+    vessel: vesselSpec,
+    result: outcome.fit as Record<string, unknown>,
+  });
+}
+
+/** Analyses tests left pending by an earlier run (stopped between storing and fitting). */
+export async function resumePending(store: Store, analyze: AnalyzeRunner, actor: Actor): Promise<{ done: number; refused: number }> {
+  let done = 0;
+  let refused = 0;
+  for (const t of store.tests.pending()) {
+    const vessel = store.vessels.get(t.vesselId);
+    const outlet = t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
+    try {
+      await analyseStored(store, analyze, actor, t, vessel, outlet);
+      done++;
+    } catch (e) {
+      if (!isInputError(e)) throw e;
+      refused++;
+    }
+  }
+  return { done, refused };
+}
