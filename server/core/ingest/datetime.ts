@@ -1,0 +1,229 @@
+/**
+ * Calendar dates and clock times as loggers write them: ISO 8601 with or without an offset,
+ * "YYYY-MM-DD hh:mm:ss.fff", day-first or month-first dates with / . or - separators, 12-hour
+ * clocks with AM/PM, a date alone or a clock alone. The scanner only splits the text into
+ * numbers; which number is the day is decided later (wallMs) so one scan serves every order.
+ */
+import type { DateOrder } from './options.js';
+
+export interface DateTimeParts {
+  hasDate: boolean;
+  hasTime: boolean;
+  /** The date starts with a four-digit year. */
+  yearFirst: boolean;
+  /** The three date numbers in written order, and the digit count of the third. */
+  n1: number;
+  n2: number;
+  n3: number;
+  n3Digits: number;
+  hour: number;
+  minute: number;
+  second: number;
+  ms: number;
+  /** 0 none, 1 AM, 2 PM. */
+  meridiem: number;
+  /** Offset east of UTC in minutes, NaN when the text gives none. */
+  offsetMin: number;
+}
+
+export function newParts(): DateTimeParts {
+  return { hasDate: false, hasTime: false, yearFirst: false, n1: 0, n2: 0, n3: 0, n3Digits: 0,
+    hour: 0, minute: 0, second: 0, ms: 0, meridiem: 0, offsetMin: NaN };
+}
+
+const D0 = 48, D9 = 57, COLON = 58, SPACE = 32;
+
+function isDigit(c: number): boolean {
+  return c >= D0 && c <= D9;
+}
+
+// Cursor of the scanner below; module-local to avoid an object per cell. Each scan sets it
+// before use, so no result depends on a previous call.
+let pos = 0;
+
+function digitsAt(s: string, b: number, max: number): number {
+  let v = 0, n = 0;
+  while (pos < b && n < max && isDigit(s.charCodeAt(pos))) {
+    v = v * 10 + (s.charCodeAt(pos) - D0);
+    pos++;
+    n++;
+  }
+  lastDigits = n;
+  return v;
+}
+let lastDigits = 0;
+
+function skipSpaces(s: string, b: number): void {
+  while (pos < b && (s.charCodeAt(pos) === SPACE || s.charCodeAt(pos) === 9)) pos++;
+}
+
+/** Split s[a, b) into date and time numbers; false when it is not a date/time at all. */
+export function scanDateTime(s: string, a: number, b: number, p: DateTimeParts): boolean {
+  pos = a;
+  skipSpaces(s, b);
+  while (b > pos && (s.charCodeAt(b - 1) === SPACE || s.charCodeAt(b - 1) === 9)) b--;
+  p.hasDate = p.hasTime = p.yearFirst = false;
+  p.hour = p.minute = p.second = p.ms = p.meridiem = 0;
+  p.offsetMin = NaN;
+  const start = pos;
+  const first = digitsAt(s, b, 4);
+  const d1 = lastDigits;
+  if (d1 === 0 || pos >= b) return false;
+  const sep = s.charCodeAt(pos);
+  if (sep === 45 || sep === 47 || sep === 46) {
+    // - / .
+    pos++;
+    const second = digitsAt(s, b, 2);
+    if (lastDigits === 0 || pos >= b || s.charCodeAt(pos) !== sep) return false;
+    pos++;
+    const third = digitsAt(s, b, 4);
+    if (lastDigits === 0) return false;
+    p.hasDate = true;
+    p.yearFirst = d1 === 4;
+    p.n1 = first;
+    p.n2 = second;
+    p.n3 = third;
+    p.n3Digits = lastDigits;
+    if (p.yearFirst ? lastDigits > 2 : lastDigits === 3) return false;
+    if (pos >= b) return true;
+    const c = s.charCodeAt(pos);
+    if (c === 84 || c === 116) pos++; // T
+    else if (c === SPACE || c === 9 || c === 44) {
+      pos++;
+      skipSpaces(s, b);
+    } else return false;
+    if (pos >= b) return false;
+    return scanClock(s, b, p);
+  }
+  if (sep === COLON && d1 <= 2) {
+    pos = start;
+    return scanClock(s, b, p);
+  }
+  return false;
+}
+
+function scanClock(s: string, b: number, p: DateTimeParts): boolean {
+  p.hour = digitsAt(s, b, 2);
+  if (lastDigits === 0 || pos >= b || s.charCodeAt(pos) !== COLON) return false;
+  pos++;
+  p.minute = digitsAt(s, b, 2);
+  if (lastDigits !== 2) return false;
+  if (pos < b && s.charCodeAt(pos) === COLON) {
+    pos++;
+    p.second = digitsAt(s, b, 2);
+    if (lastDigits !== 2) return false;
+    const c = s.charCodeAt(pos);
+    if (pos < b && (c === 46 || c === 44)) {
+      pos++;
+      let scale = 100, ms = 0, n = 0;
+      while (pos < b && isDigit(s.charCodeAt(pos))) {
+        ms += (s.charCodeAt(pos) - D0) * scale;
+        scale /= 10;
+        pos++;
+        n++;
+      }
+      if (n === 0) return false;
+      p.ms = ms;
+    }
+  }
+  p.hasTime = true;
+  skipSpaces(s, b);
+  if (pos >= b) return true;
+  const c = s.charCodeAt(pos) | 32; // lower case
+  if ((c === 97 || c === 112) && pos + 1 < b) {
+    // a / p, then m or .m.
+    const pm = c === 112;
+    let q = pos + 1;
+    if (s.charCodeAt(q) === 46) q++;
+    if (q < b && (s.charCodeAt(q) | 32) === 109) {
+      q++;
+      if (q < b && s.charCodeAt(q) === 46) q++;
+      p.meridiem = pm ? 2 : 1;
+      pos = q;
+      skipSpaces(s, b);
+      if (pos >= b) return true;
+    }
+  }
+  return scanOffset(s, b, p);
+}
+
+function scanOffset(s: string, b: number, p: DateTimeParts): boolean {
+  let c = s.charCodeAt(pos);
+  if (c === 90 || c === 122) {
+    // Z
+    p.offsetMin = 0;
+    pos++;
+    return pos === b;
+  }
+  if ((c | 32) === 117 || (c | 32) === 103) {
+    // "UTC" or "GMT", optionally followed by an offset
+    const word = s.slice(pos, pos + 3).toUpperCase();
+    if (word !== 'UTC' && word !== 'GMT') return false;
+    pos += 3;
+    p.offsetMin = 0;
+    skipSpaces(s, b);
+    if (pos >= b) return true;
+    c = s.charCodeAt(pos);
+  }
+  if (c !== 43 && c !== 45 && c !== 0x2212) return false;
+  const sign = c === 43 ? 1 : -1;
+  pos++;
+  const hh = digitsAt(s, b, 2);
+  if (lastDigits !== 2) return false;
+  let mm = 0;
+  if (pos < b && s.charCodeAt(pos) === COLON) pos++;
+  if (pos < b) {
+    mm = digitsAt(s, b, 2);
+    if (lastDigits !== 2) return false;
+  }
+  if (pos !== b || hh > 18 || mm > 59) return false;
+  p.offsetMin = sign * (hh * 60 + mm);
+  return true;
+}
+
+/** Days from 1970-01-01 to a proleptic Gregorian date (Hinnant's days_from_civil). */
+export function daysFromCivil(y: number, m: number, d: number): number {
+  y -= m <= 2 ? 1 : 0;
+  const era = Math.floor(y / 400);
+  const yoe = y - era * 400;
+  const doy = Math.floor((153 * (m + (m > 2 ? -3 : 9)) + 2) / 5) + d - 1;
+  const doe = yoe * 365 + Math.floor(yoe / 4) - Math.floor(yoe / 100) + doy;
+  return era * 146097 + doe - 719468;
+}
+
+const MONTH_DAYS = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+
+function daysIn(y: number, m: number): number {
+  return m === 2 && ((y % 4 === 0 && y % 100 !== 0) || y % 400 === 0) ? 29 : MONTH_DAYS[m - 1];
+}
+
+/** Milliseconds of the clock part, or NaN when it is not a valid time of day. */
+export function clockMs(p: DateTimeParts): number {
+  let h = p.hour;
+  if (p.meridiem) {
+    if (h < 1 || h > 12) return NaN;
+    h = (h % 12) + (p.meridiem === 2 ? 12 : 0);
+  } else if (h > 23) return NaN;
+  if (p.minute > 59 || p.second > 59) return NaN;
+  return ((h * 60 + p.minute) * 60 + p.second) * 1000 + p.ms;
+}
+
+/**
+ * The written date and time as milliseconds since 1970-01-01 00:00 on the same wall clock
+ * (no offset applied), or NaN when the date is invalid in this order.
+ */
+export function wallMs(p: DateTimeParts, order: DateOrder): number {
+  let y: number, m: number, d: number;
+  if (p.yearFirst || order === 'ymd') {
+    y = p.n1; m = p.n2; d = p.n3;
+    if (!p.yearFirst) y += y < 70 ? 2000 : 1900;
+  } else {
+    y = p.n3;
+    if (order === 'dmy') { d = p.n1; m = p.n2; } else { m = p.n1; d = p.n2; }
+    // Two-digit years: 70–99 are 19xx, 00–69 are 20xx (common practice, as in POSIX strptime %y).
+    if (p.n3Digits === 2) y += y < 70 ? 2000 : 1900;
+  }
+  if (y < 1900 || y > 2200 || m < 1 || m > 12 || d < 1 || d > daysIn(y, m)) return NaN;
+  const day = daysFromCivil(y, m, d) * 86400000;
+  return p.hasTime ? day + clockMs(p) : day;
+}

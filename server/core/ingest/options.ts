@@ -1,0 +1,39 @@
+/** What a person may tell the reader about a log when the file does not say it well enough. */
+export type DateOrder = 'dmy' | 'mdy' | 'ymd';
+
+/** What the measured column is; overrides what the header suggests. */
+export type Quantity = 'level' | 'gauge-pressure' | 'absolute-pressure' | 'distance-from-top';
+
+export interface ReadOptions {
+  /** Column holding time: header text (case-insensitive) or 1-based index. */
+  timeColumn?: string | number;
+  /** Column holding the measured quantity: header text or 1-based index. */
+  levelColumn?: string | number;
+  /** Unit of the measured column when its header gives none, e.g. "cm", "kPa". */
+  unit?: string;
+  quantity?: Quantity;
+  dateOrder?: DateOrder;
+  /** IANA zone (e.g. "Europe/Madrid") for local timestamps written without an offset. */
+  tz?: string;
+  /** Field delimiter: one character, or "tab". */
+  delimiter?: string;
+  decimal?: '.' | ',';
+  /** A barometric log (absolute pressure) to subtract from an absolute-pressure log. */
+  baro?: { bytes: Uint8Array; fileName: string };
+  fluidDensityKgM3?: number;
+  /** Elevation of a top-mounted distance sensor, in metres on the vessel's datum. */
+  mountElevationM?: number;
+  /** Elevation of the level zero on the same datum (default 0). */
+  zeroElevationM?: number;
+  gravityMS2?: number;
+  /** Largest file accepted, bytes (default 64 MiB). */
+  maxBytes?: number;
+}
+
+export const DEFAULT_MAX_BYTES = 64 * 1024 * 1024;
+
+/** Rows with an unreadable cell that are skipped (with a warning) before the file is refused. */
+export const MAX_BAD_ROW_FRACTION = 0.01;
+
+/** An interval longer than this many median intervals is reported as a gap. */
+export const GAP_FACTOR = 5;

@@ -1,0 +1,163 @@
+/**
+ * readLevelLog: the bytes of a logger file to a level series in SI units, with an account of
+ * every inference. Pure: no file system, no clock; the same bytes and options give the same
+ * series.
+ */
+import { InputError } from '../errors.js';
+import { dropRepeats, findGaps, sortByTime } from './clean.js';
+import { collect, countLines, type Collected } from './collect.js';
+import { newParts, scanDateTime } from './datetime.js';
+import { decodeHead, detectEncoding, NotUtf8, type EncodingGuess } from './decode.js';
+import { findLayout, type Layout } from './layout.js';
+import { DEFAULT_MAX_BYTES, type DateOrder, type ReadOptions } from './options.js';
+import { makePlan, type Plan } from './plan.js';
+import { temperaturesC, toLevelM, type BaroSeries } from './quantity.js';
+import { forEachRow, type RowSource } from './rows.js';
+import type { LevelSeries, ReadNote } from './series.js';
+import { ZoneResolver } from './zone.js';
+
+const HEAD_BYTES = 256 * 1024;
+
+interface Raw {
+  layout: Layout;
+  plan: Plan;
+  col: Collected;
+  tempC: Float64Array | null;
+  absolute: boolean;
+  notes: ReadNote[];
+  warnings: ReadNote[];
+}
+
+function decideOrder(rs: RowSource, plan: Plan, notes: ReadNote[]): DateOrder {
+  const tp = plan.time;
+  const c = tp.kind === 'text' ? tp.col : tp.kind === 'date+clock' ? tp.dateCol : -1;
+  const p = newParts();
+  let dmy = 0, mdy = 0, differ = false;
+  forEachRow(rs, (r) => {
+    if (c >= r.count || !scanDateTime(r.src[c], r.start[c], r.end[c], p) || !p.hasDate || p.yearFirst) return;
+    if (p.n1 > 12 && !dmy) dmy = r.line;
+    if (p.n2 > 12 && !mdy) mdy = r.line;
+    if (p.n1 !== p.n2) differ = true;
+  });
+  const where = { file: rs.fileName, field: plan.columns[c]?.header };
+  if (dmy && mdy) throw new InputError(`dates are day-first on line ${dmy} and month-first on line ${mdy}; give --date-order`, where);
+  if (dmy || mdy) {
+    notes.push({ code: 'date-order', message: `dates are ${dmy ? `day-first: line ${dmy}` : `month-first: line ${mdy}`} has a ${dmy ? 'first' : 'second'} number above 12` });
+    return dmy ? 'dmy' : 'mdy';
+  }
+  if (!differ) {
+    notes.push({ code: 'date-order', message: 'day and month are the same number on every row: the date order does not matter' });
+    return 'dmy';
+  }
+  throw new InputError('cannot tell day-first from month-first dates: no day above 12 in the file; give --date-order (dmy or mdy)', where);
+}
+
+function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: EncodingGuess, forBaro: boolean): Raw {
+  const notes: ReadNote[] = [{ code: 'encoding', message: `text encoding ${guess.encoding}: ${guess.reason}` }];
+  const warnings: ReadNote[] = [];
+  let head = decodeHead(bytes, guess, HEAD_BYTES, fileName);
+  if (head.trim() === '') throw new InputError('the file holds no text (only blanks)', { file: fileName });
+  const newline = head.indexOf('\n') < 0 && head.indexOf('\r') >= 0 ? '\r' : '\n';
+  head = head.replace(/\r\n?/g, '\n');
+  if (guess.bomBytes + HEAD_BYTES < bytes.length) head = head.slice(0, head.lastIndexOf('\n') + 1);
+  const layout = findLayout(head, fileName, opts);
+  notes.push(...layout.notes);
+  const plan = makePlan(layout, opts, fileName, forBaro);
+  notes.push(...plan.notes);
+  warnings.push(...plan.warnings);
+  const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
+  const tp = plan.time;
+  if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideOrder(rs, plan, notes);
+  const dated = tp.kind === 'text' || tp.kind === 'date+clock';
+  const zone = opts.tz !== undefined && dated ? new ZoneResolver(opts.tz, fileName) : null;
+  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes));
+
+  if (col.badRows) warnings.push({ code: 'rows-skipped', message: `${col.badRows} row(s) with unreadable cells skipped (line ${col.badLines.join(', ')}${col.badRows > col.badLines.length ? ', …' : ''})` });
+  if (col.n === 0) throw new InputError('no readable data rows', { file: fileName });
+  if (col.local) {
+    if (zone) notes.push({ code: 'time-zone', message: `${col.local} local time(s) without offset read in ${zone.zone}` });
+    else notes.push({ code: 'time-zone', message: `${col.local} time(s) without offset treated as UTC (give --tz for local times)` });
+  }
+  if (col.withOffset) notes.push({ code: 'time-zone', message: `${col.withOffset} time(s) carry their UTC offset` });
+  if (col.local && col.withOffset) warnings.push({ code: 'mixed-offsets', message: 'some times carry an offset and some do not' });
+  if (col.repeated) warnings.push({ code: 'dst-repeated', message: `${col.repeated} time(s) in the hour repeated when clocks went back in ${zone!.zone}: resolved by row order` });
+  if (col.outOfOrder) {
+    sortByTime(col);
+    warnings.push({ code: 'rows-sorted', message: 'rows were out of time order: sorted by time' });
+  }
+  const rep = dropRepeats(col);
+  if (rep.copies) warnings.push({ code: 'duplicates-dropped', message: `${rep.copies} repeated row(s) dropped (first on line ${rep.firstLine})` });
+  if (rep.conflicts) warnings.push({ code: 'conflicting-duplicates', message: `${rep.conflicts} row(s) repeat an earlier time with a different value: the first kept (first on line ${rep.firstLine})` });
+  if (col.n < 2) throw new InputError('only one data row: a drain test needs a series of readings', { file: fileName, line: col.line[0] });
+  const tempC = plan.temperature && col.temp
+    ? temperaturesC(col.temp, col.n, plan.temperature.unit, col.line, fileName, plan.temperature.name) : null;
+  const absolute = dated || (tp.kind === 'number' && tp.absolute);
+  return { layout, plan, col, tempC, absolute, notes, warnings };
+}
+
+function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro: boolean): Raw {
+  if (!(bytes instanceof Uint8Array)) throw new InputError('expected the file as bytes', { file: fileName });
+  const max = opts.maxBytes ?? DEFAULT_MAX_BYTES;
+  if (bytes.length > max) throw new InputError(`file is ${bytes.length} bytes, more than the ${max} allowed`, { file: fileName });
+  if (bytes.length === 0) throw new InputError('empty file', { file: fileName });
+  const guess = detectEncoding(bytes);
+  try {
+    return pass(bytes, fileName, opts, guess, forBaro);
+  } catch (e) {
+    if (!(e instanceof NotUtf8)) throw e;
+  }
+  const raw = pass(bytes, fileName, opts, { encoding: 'windows-1252', bomBytes: 0, reason: 'not valid UTF-8, so read as Latin-1 (Windows-1252)' }, forBaro);
+  raw.warnings.push({ code: 'encoding', message: 'not valid UTF-8: read as Latin-1 (Windows-1252); check accented text' });
+  return raw;
+}
+
+function readBaro(opts: ReadOptions, fileName: string): { series: BaroSeries; raw: Raw } | null {
+  if (!opts.baro) return null;
+  const { bytes, fileName: baroName } = opts.baro;
+  const raw = readRaw(bytes, baroName, { tz: opts.tz, dateOrder: opts.dateOrder }, true);
+  if (!raw.absolute) throw new InputError('the barometric log needs dates and times (not elapsed time)', { file: baroName });
+  void fileName;
+  const n = raw.col.n;
+  const pa = new Float64Array(n);
+  for (let i = 0; i < n; i++) pa[i] = raw.col.value[i] * raw.plan.value.factor;
+  return { series: { fileName: baroName, timeMs: raw.col.timeMs.slice(0, n), pa }, raw };
+}
+
+export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadOptions = {}): LevelSeries {
+  const raw = readRaw(bytes, fileName, options, false);
+  const { col, plan, layout } = raw;
+  const notes = raw.notes, warnings = raw.warnings;
+  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options, fileName) : null;
+  if (baro) warnings.push(...baro.raw.warnings.map((w) => ({ code: `baro-${w.code}`, message: `barometric log: ${w.message}` })));
+  const { levelM, notes: qNotes } = toLevelM({ n: col.n, timeMs: col.timeMs, value: col.value, line: col.line, tempC: raw.tempC, absoluteTime: raw.absolute },
+    plan, options, fileName, baro?.series ?? null);
+  notes.push(...qNotes);
+  for (let i = 0; i < col.n; i++) {
+    if (!Number.isFinite(levelM[i])) throw new InputError('level out of range after conversion', { file: fileName, line: col.line[i], field: plan.value.name });
+  }
+  const n = col.n;
+  const t0 = col.timeMs[0];
+  const timeS = new Float64Array(n);
+  for (let i = 0; i < n; i++) timeS[i] = (col.timeMs[i] - t0) / 1000;
+  for (let i = 1; i < n; i++) {
+    // Times far from zero can round to equal seconds: keep the series strictly ascending.
+    if (!(timeS[i] > timeS[i - 1])) throw new InputError('times too close together to tell apart', { file: fileName, line: col.line[i] });
+  }
+  const gaps = findGaps(timeS);
+  if (gaps.length) {
+    const list = gaps.slice(0, 3).map((g) => `${g.startS}–${g.endS} s (line ${col.line[g.after + 1]})`).join(', ');
+    warnings.push({ code: 'gaps', message: `${gaps.length} gap(s) longer than 5 median intervals: ${list}${gaps.length > 3 ? ', …' : ''}` });
+  }
+  const series: LevelSeries = {
+    timeS,
+    levelM,
+    t0EpochMs: raw.absolute ? t0 : null,
+    sourceLine: col.line.slice(0, n),
+    metadata: layout.metadata,
+    columns: plan.columns,
+    notes,
+    warnings,
+  };
+  if (raw.tempC) series.temperatureC = raw.tempC;
+  return series;
+}
