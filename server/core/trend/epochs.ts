@@ -4,17 +4,23 @@ import type { ApprovedFit, Epoch, MaintenanceEvent } from './types.js';
 const KINDS = new Set(['cleaned', 'replaced', 'modified']);
 
 function checkFit(f: ApprovedFit, i: number): void {
-  const at = (field: string) => ({ field: `fits[${i}].${field}` });
-  if (typeof f.fitId !== 'string' || f.fitId === '') throw new InputError('fit has no id', at('fitId'));
-  if (!Number.isFinite(f.testedAtMs)) throw new InputError('test time is not a number', at('testedAtMs'));
-  if (!(f.effectiveAreaM2 > 0) || !Number.isFinite(f.effectiveAreaM2))
-    throw new InputError('effective area must be a positive number', at('effectiveAreaM2'));
-  if (!(f.effectiveAreaU > 0) || !Number.isFinite(f.effectiveAreaU))
-    throw new InputError('uncertainty of the effective area must be positive', at('effectiveAreaU'));
-  if (!(f.dischargeCoefficient > 0) || !Number.isFinite(f.dischargeCoefficient))
-    throw new InputError('discharge coefficient must be a positive number', at('dischargeCoefficient'));
-  if (!(f.dischargeCoefficientU > 0) || !Number.isFinite(f.dischargeCoefficientU))
-    throw new InputError('uncertainty of the discharge coefficient must be positive', at('dischargeCoefficientU'));
+  // One bad field names itself; the common path is a handful of comparisons, no allocation.
+  let bad: string | null = null;
+  if (typeof f.fitId !== 'string' || f.fitId === '') bad = 'fitId';
+  else if (!Number.isFinite(f.testedAtMs)) bad = 'testedAtMs';
+  else if (!(f.effectiveAreaM2 > 0 && f.effectiveAreaM2 < Infinity)) bad = 'effectiveAreaM2';
+  else if (!(f.effectiveAreaU > 0 && f.effectiveAreaU < Infinity)) bad = 'effectiveAreaU';
+  else if (!(f.dischargeCoefficient > 0 && f.dischargeCoefficient < Infinity)) bad = 'dischargeCoefficient';
+  else if (!(f.dischargeCoefficientU > 0 && f.dischargeCoefficientU < Infinity)) bad = 'dischargeCoefficientU';
+  if (bad !== null) {
+    const what = bad === 'fitId' ? 'fit has no id' : bad === 'testedAtMs' ? 'test time is not a number' : `${bad} must be a positive finite number`;
+    throw new InputError(what, { field: `fits[${i}].${bad}` });
+  }
+}
+
+function sortedBy<T>(xs: readonly T[], key: (x: T) => number): T[] {
+  for (let i = 1; i < xs.length; i++) if (key(xs[i]) < key(xs[i - 1])) return [...xs].sort((a, b) => key(a) - key(b));
+  return xs as T[]; // already in order (the usual case from the store): no copy; never mutated below
 }
 
 /**
@@ -24,13 +30,13 @@ function checkFit(f: ApprovedFit, i: number): void {
  * yet tested" shows.
  */
 export function splitEpochs(fits: readonly ApprovedFit[], events: readonly MaintenanceEvent[]): Epoch[] {
-  fits.forEach(checkFit);
+  for (let i = 0; i < fits.length; i++) checkFit(fits[i], i);
   events.forEach((e, i) => {
     if (!Number.isFinite(e.atMs)) throw new InputError('event time is not a number', { field: `events[${i}].atMs` });
     if (!KINDS.has(e.kind)) throw new InputError(`unknown maintenance kind "${String(e.kind)}"`, { field: `events[${i}].kind` });
   });
-  const sortedFits = [...fits].sort((a, b) => a.testedAtMs - b.testedAtMs);
-  const sortedEvents = [...events].sort((a, b) => a.atMs - b.atMs);
+  const sortedFits = sortedBy(fits, (f) => f.testedAtMs);
+  const sortedEvents = sortedBy(events, (e) => e.atMs);
 
   const epochs: Epoch[] = [{ index: 0, startedBy: null, startMs: NaN, fits: [], baseline: null }];
   let e = 0;

@@ -65,10 +65,10 @@ export function assessEpoch(epoch: Epoch, settings: TrendSettings, nowMs: number
     return { area: null, forecast: null, step: null, status: make('not enough tests', `no test since ${what}: the next test sets the baseline`) };
   }
   const pastByTest = latestChangePct !== null && dir * (latestChangePct - pct) >= 0;
-  const pastReason = `the latest test (${iso(last.testedAtMs)}) is ${latestChangePct!.toFixed(1)} % from the baseline, beyond the ${pct} % threshold`;
+  const pastReason = () => `the latest test (${iso(last.testedAtMs)}) is ${latestChangePct!.toFixed(1)} % from the baseline, beyond the ${pct} % threshold`;
   const area = epochLine(epoch, 'effectiveArea');
   if (!area) {
-    if (pastByTest) return { area, forecast: null, step: null, status: make('past threshold', pastReason, { daysToThreshold: 0 }) };
+    if (pastByTest) return { area, forecast: null, step: null, status: make('past threshold', pastReason(), { daysToThreshold: 0 }) };
     return { area, forecast: null, step: null, status: make('not enough tests', `${n} test${n === 1 ? '' : 's'} since the baseline of ${iso(base.testedAtMs)}: a trend needs 3`) };
   }
   const forecast = forecastThresholdCrossing(area, base.effectiveAreaM2, pct, nowMs);
@@ -77,7 +77,7 @@ export function assessEpoch(epoch: Epoch, settings: TrendSettings, nowMs: number
   let status: OutletStatus;
   if (forecast.status === 'crossed' || pastByTest) {
     const days = forecast.status === 'crossed' ? Math.min(0, forecast.daysFromNow!) : 0;
-    status = make('past threshold', pastByTest ? pastReason : forecast.reason, { ...common, daysToThreshold: days });
+    status = make('past threshold', pastByTest ? pastReason() : forecast.reason, { ...common, daysToThreshold: days });
   } else if (step.flagged) {
     status = make('sudden change', step.reason, common);
   } else if (forecast.status === 'forecast' && forecast.daysFromNow! <= soon) {
