@@ -32,13 +32,12 @@ const DAY = 86_400_000;
 
 /** Upper bound on the data rows: the count of line ends. */
 export function countLines(bytes: Uint8Array): number {
-  let lf = 0, cr = 0;
-  for (let i = 0; i < bytes.length; i++) {
-    const b = bytes[i];
-    if (b === 10) lf++;
-    else if (b === 13) cr++;
-  }
-  return Math.max(lf, cr) + 1;
+  let lf = 0;
+  for (let i = bytes.indexOf(10); i >= 0; i = bytes.indexOf(10, i + 1)) lf++;
+  if (lf > 0) return lf + 1;
+  let cr = 0;
+  for (let i = bytes.indexOf(13); i >= 0; i = bytes.indexOf(13, i + 1)) cr++;
+  return cr + 1;
 }
 
 export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.' | ',', zone: ZoneResolver | null,

@@ -34,15 +34,17 @@ function positive(v: number | undefined, name: string, fileName: string, lo: num
   return v;
 }
 
-/** Temperatures of the log in °C, refusing impossible ones with their line. */
+/**
+ * Temperatures of the log in °C, refusing impossible ones with their line. Every temperature
+ * scale is affine in °C, so the units module is asked once for the offset and the slope.
+ */
 export function temperaturesC(raw: Float64Array, n: number, unit: string, line: Int32Array, fileName: string, field: string): Float64Array {
   const out = new Float64Array(n);
+  const at0 = temperatureToC(0, unit), slope = temperatureToC(1, unit) - at0;
   for (let i = 0; i < n; i++) {
-    try {
-      out[i] = temperatureToC(raw[i], unit);
-    } catch (e) {
-      throw new InputError(e instanceof Error ? e.message : String(e), { file: fileName, line: line[i], field });
-    }
+    const c = at0 + slope * raw[i];
+    if (!(c >= -273.15)) throw new InputError(`temperature ${raw[i]} ${unit} is below absolute zero`, { file: fileName, line: line[i], field });
+    out[i] = c;
   }
   return out;
 }

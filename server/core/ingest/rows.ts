@@ -37,9 +37,10 @@ export function forEachRow(rs: RowSource, onRow: (row: Row) => void): void {
   const delim = rs.delimiter;
   let line = 1; // line number of the first line of `carry`
   let carry = '';
-  let linesSeen = 0;
+  // Only for naming the line of a binary byte: lines in the carried text, then in the chunk.
   const lineAt = (offset: number, chunk: string): number => {
-    let n = linesSeen + 1;
+    let n = line;
+    for (let i = carry.indexOf(nl); i >= 0; i = carry.indexOf(nl, i + 1)) n++;
     for (let i = chunk.indexOf(nl); i >= 0 && i < offset; i = chunk.indexOf(nl, i + 1)) n++;
     return n;
   };
@@ -47,7 +48,6 @@ export function forEachRow(rs: RowSource, onRow: (row: Row) => void): void {
   let r = chunks.next();
   while (!r.done) {
     const chunk = r.value;
-    for (let i = chunk.indexOf(nl); i >= 0; i = chunk.indexOf(nl, i + 1)) linesSeen++;
     r = chunks.next();
     const text = carry + chunk;
     const last = r.done === true;
