@@ -1,23 +1,50 @@
 import { InputError } from '../core/errors.js';
+import { validateVessel } from '../core/vessel/schema.js';
 
 /**
- * Checks a vessel file before it is stored.
- * PROVISIONAL: the vessel-file schema (server/core/vessel/schema.ts, validateVessel) is being
- * written elsewhere; until it lands this only checks the outline (a name, a shape with a kind,
- * outlets as objects) and the analysis validates the rest.
+ * Checks a vessel body before it is stored: the vessel-file format (server/core/vessel/schema.ts),
+ * with two additions the service keeps beside it:
+ * - `outlets: [...]` instead of `outlet`, for a vessel with several outlets (each with an `id`);
+ *   every outlet is validated as the single-outlet vessel file the analysis will receive;
+ * - `actionThreshold` on an outlet: the fraction of the baseline effective area below which the
+ *   trend calls for action (0 < x ≤ 1). It is stripped before the analysis sees the file.
  */
 export function checkVesselFile(value: unknown, fileName?: string): Record<string, unknown> {
-  const where = (field: string) => ({ file: fileName, field });
-  if (typeof value !== 'object' || value === null || Array.isArray(value)) throw new InputError('a vessel file is a JSON object', where(''));
-  const v = value as Record<string, unknown>;
-  if (typeof v.name !== 'string' || v.name.trim() === '') throw new InputError('a vessel needs a name', where('name'));
-  const shape = v.shape as Record<string, unknown> | undefined;
-  if (typeof shape !== 'object' || shape === null || typeof shape.kind !== 'string') {
-    throw new InputError('a vessel needs a shape with a kind', where('shape.kind'));
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) {
+    throw new InputError('a vessel file is a JSON object', { file: fileName });
   }
-  if (v.outlets !== undefined && (!Array.isArray(v.outlets) || v.outlets.some((o) => typeof o !== 'object' || o === null))) {
-    throw new InputError('outlets is a list of objects', where('outlets'));
+  const { outlets, ...rest } = value as Record<string, unknown>;
+  let list: unknown[];
+  let prefix: (i: number) => string;
+  if (outlets === undefined) {
+    list = [rest.outlet];
+    prefix = () => 'outlet';
+  } else {
+    if (rest.outlet !== undefined) throw new InputError('give either outlet or outlets, not both', { file: fileName, field: 'outlets' });
+    if (!Array.isArray(outlets) || outlets.length === 0) throw new InputError('outlets is a non-empty list', { file: fileName, field: 'outlets' });
+    list = outlets;
+    prefix = (i) => `outlets[${i}]`;
   }
-  if (v.outlet !== undefined && (typeof v.outlet !== 'object' || v.outlet === null)) throw new InputError('outlet is an object', where('outlet'));
-  return v;
+  const ids = new Set<string>();
+  list.forEach((o, i) => {
+    const { actionThreshold, ...plain } = (o ?? {}) as Record<string, unknown>;
+    if (actionThreshold !== undefined && !(typeof actionThreshold === 'number' && actionThreshold > 0 && actionThreshold <= 1)) {
+      throw new InputError('actionThreshold is a fraction of the baseline effective area, 0 < x ≤ 1', { file: fileName, field: `${prefix(i)}.actionThreshold` });
+    }
+    try {
+      validateVessel({ ...rest, outlet: o === undefined ? undefined : plain }, fileName);
+    } catch (e) {
+      if (e instanceof InputError && e.field?.startsWith('outlet')) {
+        throw new InputError(e.message, { file: e.file, line: e.line, field: e.field.replace(/^outlet/, prefix(i)) });
+      }
+      throw e;
+    }
+    if (list.length > 1) {
+      const id = plain.id;
+      if (typeof id !== 'string') throw new InputError('each of several outlets needs an id', { file: fileName, field: `${prefix(i)}.id` });
+      if (ids.has(id)) throw new InputError(`outlet id "${id}" is used twice`, { file: fileName, field: `${prefix(i)}.id` });
+      ids.add(id);
+    }
+  });
+  return value as Record<string, unknown>;
 }

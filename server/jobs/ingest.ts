@@ -33,14 +33,16 @@ export function chooseOutlet(vessel: Vessel, outletId: number | null | undefined
 }
 
 /**
- * The vessel file handed to the analysis: as stored, but with a list of outlets narrowed to the
- * one tested, so the engine sees the single-outlet vessel file it reads.
+ * The vessel file handed to the analysis: as stored, but narrowed to the one outlet tested and
+ * without the service's own outlet fields, so the engine sees the single-outlet file it reads.
  */
 export function vesselForAnalysis(vessel: Vessel, outlet: Outlet | null): Record<string, unknown> {
   const spec = { ...vessel.spec };
-  if (Array.isArray(spec.outlets) && outlet) {
-    delete spec.outlets;
-    spec.outlet = outlet.spec;
+  const chosen = outlet ? outlet.spec : (spec.outlet as Record<string, unknown> | undefined);
+  delete spec.outlets;
+  if (chosen) {
+    const { actionThreshold: _kept, ...plain } = chosen; // the service's own field, not the engine's
+    spec.outlet = plain;
   }
   return spec;
 }

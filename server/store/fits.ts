@@ -13,6 +13,7 @@ export interface StoredFit {
   vesselId: number;
   outletId: number | null;
   settings: Record<string, unknown>;
+  vessel: Record<string, unknown>;
   result: Record<string, unknown>;
   engineVersion: string;
   status: FitStatus;
@@ -28,6 +29,7 @@ interface FitRow {
   vessel_id: number;
   outlet_id: number | null;
   settings: string;
+  vessel_spec: string;
   result: string;
   engine_version: string;
   status: FitStatus;
@@ -46,6 +48,7 @@ function toFit(r: FitRow): StoredFit {
     vesselId: r.vessel_id,
     outletId: r.outlet_id,
     settings: parse(r.settings)!,
+    vessel: parse(r.vessel_spec)!,
     result: parse(r.result)!,
     engineVersion: r.engine_version,
     status: r.status,
@@ -77,6 +80,8 @@ function numberAt(obj: Record<string, unknown>, key: string): number | null {
 
 export interface NewFit {
   settings: Record<string, unknown>;
+  /** The vessel file the analysis was given. */
+  vessel: Record<string, unknown>;
   result: Record<string, unknown>;
 }
 
@@ -90,8 +95,8 @@ export class FitRepo {
   ) {
     const db = c.db;
     this.q = {
-      insert: db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, result, engine_version, cda_m2, cd,
-        status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @result, @engineVersion,
+      insert: db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
+        status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
         @cda, @cd, 'draft', @createdBy, @now)`),
       get: db.prepare('SELECT * FROM fits WHERE id = ?'),
       byVessel: db.prepare('SELECT * FROM fits WHERE vessel_id = ? ORDER BY id DESC LIMIT ? OFFSET ?'),
@@ -182,6 +187,7 @@ export class FitRepo {
         vesselId: test.vesselId,
         outletId: test.outletId,
         settings: JSON.stringify(fit.settings),
+        vesselSpec: JSON.stringify(fit.vessel),
         result: JSON.stringify(fit.result),
         engineVersion,
         cda: numberAt(fit.result, 'effectiveAreaM2'),

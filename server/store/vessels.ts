@@ -46,14 +46,14 @@ function str(v: unknown): string | null {
 }
 
 /**
- * A vessel file names one `outlet` or a list `outlets`; each may carry a `name` (its key here).
- * A single unnamed outlet gets the key "main".
+ * A vessel file names one `outlet` or (the service's extension) a list `outlets`; each may carry an
+ * `id`, its key here. A single outlet without an id gets the key "main".
  */
 export function outletsOf(spec: Record<string, unknown>): OutletInput[] {
   const list: unknown[] = Array.isArray(spec.outlets) ? spec.outlets : spec.outlet ? [spec.outlet] : [];
   return list.map((raw, i) => {
     const o = (raw ?? {}) as Record<string, unknown>;
-    const key = str(o.name) ?? str(o.id) ?? (list.length === 1 ? 'main' : `outlet-${i + 1}`);
+    const key = str(o.id) ?? str(o.name) ?? (list.length === 1 ? 'main' : `outlet-${i + 1}`);
     return {
       key,
       type: str(o.type) ?? str(o.kind),

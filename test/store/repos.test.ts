@@ -24,7 +24,7 @@ describe('vessels', () => {
     const v = s.vessels.create(SYSTEM_ACTOR, VESSEL);
     expect(v.outlets.map((o) => [o.key, o.boreM, o.actionThreshold])).toEqual([['drain', 0.03, 0.8], ['overflow', 0.05, null]]);
     expect(v.spec).toEqual(VESSEL);
-    const u = s.vessels.update(SYSTEM_ACTOR, v.id, { ...VESSEL, outlets: [{ name: 'drain', boreM: 0.031 }] });
+    const u = s.vessels.update(SYSTEM_ACTOR, v.id, { ...VESSEL, outlets: [{ id: 'drain', boreM: 0.031 }] });
     expect(u.revision).toBe(2);
     expect(u.outlets.find((o) => o.key === 'drain')!.boreM).toBe(0.031);
     expect(u.outlets.find((o) => o.key === 'overflow')!.retiredAt).not.toBeNull();
@@ -57,12 +57,12 @@ describe('drain tests and fits', () => {
 
   it('stores a first fit as draft, refits (old superseded, kept), reviews once', () => {
     const { s, t } = withTest();
-    const f1 = s.fits.storeFirst(SYSTEM_ACTOR, t.id, { columns: [] }, { settings: {}, result: FIT_RESULT });
+    const f1 = s.fits.storeFirst(SYSTEM_ACTOR, t.id, { columns: [] }, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
     expect(f1).toMatchObject({ status: 'draft', engineVersion: 'test-0', supersededBy: null, testId: t.id });
     expect(s.tests.get(t.id).status).toBe('analysed');
-    const f2 = s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: { window: '20..800' }, result: FIT_RESULT });
+    const f2 = s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: { window: '20..800' }, result: FIT_RESULT, vessel: VESSEL });
     expect(s.fits.get(f1.id).supersededBy).toBe(f2.id);
-    expect(() => s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: {}, result: FIT_RESULT })).toThrow(ConflictError);
+    expect(() => s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: {}, result: FIT_RESULT, vessel: VESSEL })).toThrow(ConflictError);
     expect(() => s.fits.review(SYSTEM_ACTOR, f1.id, 'approved', null)).toThrow(ConflictError);
     const ok = s.fits.review(SYSTEM_ACTOR, f2.id, 'approved', 'window checked');
     expect(ok.status).toBe('approved');
@@ -74,7 +74,7 @@ describe('drain tests and fits', () => {
 
   it('triggers refuse rewriting or deleting fits and analysed tests, even through raw SQL', () => {
     const { s, t } = withTest();
-    const f = s.fits.storeFirst(SYSTEM_ACTOR, t.id, {}, { settings: {}, result: FIT_RESULT });
+    const f = s.fits.storeFirst(SYSTEM_ACTOR, t.id, {}, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
     const db = s.db;
     expect(() => db.prepare('DELETE FROM fits WHERE id = ?').run(f.id)).toThrow(/never deleted/);
     expect(() => db.prepare(`UPDATE fits SET result = '{}' WHERE id = ?`).run(f.id)).toThrow(/never overwritten/);
