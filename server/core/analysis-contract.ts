@@ -33,6 +33,7 @@ export interface AnalysisRequest {
   log: RawFile;
   baro?: RawFile;
   /** A vessel in the vessel-file format (validated again inside). */
+  vesselFileName?: string;
   vessel: unknown;
   settings: AnalysisSettings;
 }

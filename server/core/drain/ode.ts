@@ -49,7 +49,8 @@ export function odeReadings(
   const rates = (z: Float64Array, dz: Float64Array): void => {
     const eta = z[0];
     const head = eta - zo;
-    const area = shape.areaM2(eta);
+    // an empty vessel whose plan area vanishes at the bottom (sphere, cone) just stays empty
+    const area = Math.max(shape.areaM2(eta), 1e-12);
     let q = 0;
     let dqdH = 0;
     let logTerm = 0;
@@ -124,7 +125,15 @@ export function odeReadings(
     for (let j = 0; j < dim; j++) tmp[j] = z[j] + h * k3[j];
     rates(tmp, k4);
     for (let j = 0; j < dim; j++) zNext[j] = z[j] + (h / 6) * (dz[j] + 2 * k2[j] + 2 * k3[j] + k4[j]);
-    if (zNext[0] < zo && qIn <= 0) zNext[0] = Math.max(zNext[0], Math.min(zo, z[0])); // cannot drain below the outlet
+    if (qIn <= 0 && zNext[0] <= zo + 1e-9) {
+      // drained to the outlet: the level stays there and no longer depends on the parameters
+      // (integrating the sensitivities into the sqrt singularity would only produce noise)
+      zNext[0] = Math.max(zo, 0);
+      for (let j = 1; j < dim; j++) zNext[j] = 0;
+      dzNext.fill(0);
+      while (i < m) writeSample(i++, zNext);
+      return true;
+    }
     rates(zNext, dzNext);
     if (!Number.isFinite(zNext[0])) return false;
     const tNext = t + h;

@@ -1,0 +1,88 @@
+import { writeFileSync, renameSync } from 'node:fs';
+import { performance } from 'node:perf_hooks';
+import { analyzeDrainTest } from '../core/analyze.js';
+import { textReport } from '../core/analysis/text-report.js';
+import { InputError } from '../core/errors.js';
+import { parseVesselFile } from '../core/vessel/schema.js';
+import { fitSvg } from '../render/fit-svg.js';
+import { EXIT_OK, guarded, readInputFile } from './io.js';
+import { READ_OPTIONS, parseCommandLine, settingsFrom } from './options.js';
+
+const USAGE = `usage: efflux fit <log.csv> [more logs…] --vessel <vessel.json> [options]
+
+Fits the outlet's effective area Cd·a and discharge coefficient Cd to a drain test log.
+
+model:
+  --fit-inflow           also fit a constant unknown inflow (a leaking inlet valve)
+  --fit-datum            also fit the sensor zero's elevation (needed when the vessel file has none)
+  --fit-exponent         also fit the head exponent n (0.5 for an orifice)
+reading (when the file does not say it):
+  --time-column NAME     --level-column NAME    --unit UNIT (e.g. cm, kPa)
+  --quantity level|gauge-pressure|absolute-pressure|distance-from-top
+  --date-order dmy|mdy|ymd   --tz ZONE (e.g. Europe/Lisbon)   --baro FILE (barometric log)
+  --delimiter CHAR       --decimal . or ,
+  --window START..END    seconds from the log's start, or ISO 8601 timestamps
+output:
+  --json                 one JSON object on stdout (one per line for several logs)
+  --plot FILE.svg        a picture of the log, the window, the fitted curve and the residuals
+exit codes: 0 done, 2 input refused (the message names the file, line or field), other: internal fault.
+`;
+
+export async function runFit(argv: string[]): Promise<number> {
+  return guarded(() => {
+    const { values, positionals } = parseCommandLine(argv, {
+      ...READ_OPTIONS,
+      'fit-inflow': { type: 'boolean' },
+      'fit-datum': { type: 'boolean' },
+      'fit-exponent': { type: 'boolean' },
+      plot: { type: 'string' },
+    });
+    if (values.help) {
+      process.stdout.write(USAGE);
+      return EXIT_OK;
+    }
+    if (positionals.length === 0) throw new InputError('no log file given (usage: efflux fit <log.csv> --vessel <vessel.json>)');
+    if (!values.vessel) throw new InputError('no vessel file given: add --vessel <vessel.json> (shape, outlet bore and elevation, sensor zero)');
+    if (values.plot && positionals.length > 1) throw new InputError('--plot takes one log at a time');
+    const settings = settingsFrom(values);
+    const vesselFile = readInputFile(values.vessel, 1024 * 1024);
+    const vessel = parseVesselFile(new TextDecoder().decode(vesselFile.bytes), values.vessel);
+    const baro = values.baro ? readInputFile(values.baro) : undefined;
+    const batch = positionals.length > 1;
+    let refused = 0;
+    positionals.forEach((path, i) => {
+      if (batch) process.stderr.write(`[${i + 1}/${positionals.length}] ${path}\n`);
+      try {
+        const t0 = performance.now();
+        const log = readInputFile(path);
+        const readMs = performance.now() - t0;
+        const outcome = analyzeDrainTest(
+          { log, baro, vessel, vesselFileName: values.vessel, settings },
+          { now: () => performance.now() },
+        );
+        outcome.fit.timing.parseMs += readMs;
+        if (values.json) {
+          const body = batch ? JSON.stringify({ file: path, ...outcome.fit }) : JSON.stringify(outcome.fit, null, 2);
+          process.stdout.write(body + '\n');
+        } else {
+          if (batch) process.stdout.write(`\n== ${path}\n`);
+          process.stdout.write(textReport(outcome.fit));
+        }
+        if (values.plot) writeAtomically(values.plot, fitSvg(outcome.fit));
+      } catch (err) {
+        if (!(err instanceof InputError) || !batch) throw err;
+        refused++;
+        process.stderr.write(`efflux: ${err.toLine()}\n`);
+      }
+    });
+    if (batch) process.stderr.write(`${positionals.length - refused} fitted, ${refused} refused\n`);
+    return refused ? 2 : EXIT_OK;
+  });
+}
+
+/** Write to a temporary name and rename, so a failed run leaves no half-written file. */
+function writeAtomically(path: string, text: string): void {
+  const tmp = `${path}.${process.pid}.tmp`;
+  writeFileSync(tmp, text);
+  renameSync(tmp, path);
+}

@@ -1,0 +1,246 @@
+import type { AnalysisOutcome, AnalysisRequest, FitJson } from '../analysis-contract.js';
+import { InputError } from '../errors.js';
+import { makeShape } from '../geometry/index.js';
+import { readLevelLog } from '../ingest/read-log.js';
+import type { LevelSeries } from '../ingest/series.js';
+import { describeLog } from '../ingest/describe.js';
+import { THETA, type DrainSetting } from '../drain/parameters.js';
+import { predictReadings } from '../drain/predict.js';
+import { fitDrain, type DrainFitResult } from '../fit/fit-drain.js';
+import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
+import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
+import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
+import { ENGINE_VERSION } from '../version.js';
+import { decimateForDrawing } from './plot-data.js';
+import { parseWindowSetting } from './window-setting.js';
+
+/**
+ * raw bytes → series in SI → window → fit → the JSON result. Pure: the clock is injected
+ * (`now`, for the timing block only), so a stored fit can be recomputed bit for bit.
+ */
+export interface AnalyzeHooks {
+  now?: () => number;
+}
+
+export interface PreparedTest {
+  vessel: VesselSpec;
+  setting: DrainSetting;
+  series: LevelSeries;
+  choice: WindowChoice;
+  knownSensorZeroM: number | null;
+  density: { value: number; source: string };
+}
+
+/** Read the log and choose the window: everything `efflux inspect` shows. */
+export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
+  const vesselFile = request.vesselFileName ?? 'vessel';
+  const vessel = validateVessel(request.vessel, vesselFile);
+  const settings = request.settings ?? {};
+  const density = fluidDensityKgM3(vessel);
+  const gravity = vessel.gravityMS2 ?? STANDARD_GRAVITY_MS2;
+  const series = readLevelLog(request.log.bytes, request.log.fileName, {
+    timeColumn: settings.timeColumn,
+    levelColumn: settings.levelColumn,
+    unit: settings.unit,
+    quantity: settings.quantity,
+    dateOrder: settings.dateOrder,
+    tz: settings.tz,
+    delimiter: settings.delimiter,
+    decimal: settings.decimal,
+    baro: request.baro,
+    fluidDensityKgM3: 'densityKgM3' in (vessel.fluid ?? {}) ? density.value : undefined,
+    mountElevationM: vessel.sensor?.mountElevationM,
+    zeroElevationM: vessel.sensor?.zeroElevationM,
+    gravityMS2: gravity,
+  });
+  const fromTop = series.columns.some((c) => c.role === 'distance-from-top');
+  const knownSensorZeroM = vessel.sensor?.zeroElevationM ?? (fromTop ? 0 : null);
+  const setting: DrainSetting = { shape: makeShape(vessel.shape), outletElevationM: vessel.outlet.elevationM, gravity };
+  const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs) : undefined;
+  const choice = chooseDrainWindow(series, {
+    outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
+    window,
+  });
+  return { vessel, setting, series, choice, knownSensorZeroM, density };
+}
+
+export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks = {}): AnalysisOutcome {
+  const now = hooks.now ?? (() => 0);
+  const t0 = now();
+  const prepared = prepareDrainTest(request);
+  const t1 = now();
+  const { vessel, setting, series, choice, knownSensorZeroM } = prepared;
+  const settings = request.settings ?? {};
+  if (knownSensorZeroM === null && !settings.fitDatum) {
+    throw new InputError(
+      'the vessel file has no sensor.zeroElevationM, so the head above the outlet is unknown: add it, or fit the datum (--fit-datum)',
+      { file: request.vesselFileName ?? 'vessel', field: 'sensor.zeroElevationM' },
+    );
+  }
+  const { timeS, levelM } = windowSamples(series, choice);
+  const fit = fitDrain({
+    setting,
+    timeS,
+    levelM,
+    knownSensorZeroM,
+    terms: { inflow: !!settings.fitInflow, datum: !!settings.fitDatum, exponent: !!settings.fitExponent },
+    outlet: vessel.outlet,
+  });
+  const t2 = now();
+  const json = fitJson(prepared, fit, { timeS, levelM });
+  json.timing = { parseMs: t1 - t0, fitMs: t2 - t1 };
+  return { detected: detectedSummary(prepared), fit: json };
+}
+
+/** The samples that take part, on the window's clock (t = 0 at the window's start). */
+export function windowSamples(series: LevelSeries, choice: WindowChoice): { timeS: Float64Array; levelM: Float64Array; lines: Int32Array } {
+  const { startIndex, endIndex, startS } = choice.window;
+  let count = 0;
+  for (let i = startIndex; i <= endIndex; i++) count += choice.keep[i];
+  const timeS = new Float64Array(count);
+  const levelM = new Float64Array(count);
+  const lines = new Int32Array(count);
+  let j = 0;
+  for (let i = startIndex; i <= endIndex; i++) {
+    if (!choice.keep[i]) continue;
+    timeS[j] = series.timeS[i] - startS;
+    levelM[j] = series.levelM[i];
+    lines[j] = series.sourceLine[i];
+    j++;
+  }
+  return { timeS, levelM, lines };
+}
+
+export function detectedSummary(p: PreparedTest): Record<string, unknown> {
+  return {
+    ...describeLog(p.series),
+    window: p.choice.window,
+    candidates: p.choice.candidates,
+    spikes: p.choice.spikes,
+    flatLines: p.choice.flatLines,
+    clipping: p.choice.clipping,
+    trims: p.choice.trims,
+    windowNotes: p.choice.notes,
+    windowWarnings: p.choice.warnings,
+    fluidDensity: p.density,
+  };
+}
+
+const iso = (t0: number | null, s: number) => (t0 === null ? null : new Date(t0 + s * 1000).toISOString());
+
+/** JSON cannot hold NaN or ±Infinity: write null. */
+function finite(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}
+
+function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }): FitJson {
+  const { vessel, series, choice } = p;
+  const w = choice.window;
+  const unc = fit.uncertainty;
+  const cd = fit.dischargeCoefficient;
+  const ea = fit.effectiveArea;
+  const free = fit.parameters.filter((q) => q.free).map((q) => q.name);
+  const k = free.length;
+  const matrix = free.map((_, i) => free.map((__, j) => unc.correlations[i * k + j]));
+  const nominal = fit.nominalAreaM2;
+
+  // drawing data: the whole log, and the window with the fitted curve
+  const logPlot = decimateForDrawing(series.timeS, series.levelM, 1200);
+  const winPlot = decimateForDrawing(data.timeS, data.levelM, 1200);
+  const fitted = new Float64Array(winPlot.timeS.length);
+  predictReadings(p.setting, fit.variant.solution, fit.variant.theta, Float64Array.from(winPlot.timeS), fitted, null, new Int32Array(0));
+
+  const warnings = [
+    ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
+    ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
+    ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
+  ];
+  const excluded = w.samples - data.timeS.length;
+  const json: FitJson = {
+    engineVersion: ENGINE_VERSION,
+    converged: fit.solver.converged,
+    dischargeCoefficient: {
+      value: cd.value,
+      standardUncertainty: cd.standardUncertainty,
+      ci95: cd.ci95,
+      coverageFactor: cd.coverageFactor,
+      expandedUncertainty: cd.expandedUncertainty,
+      relativeStandardUncertainty: cd.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: cd.effectiveDegreesOfFreedom,
+      fitContribution: cd.fitContribution,
+      boreContribution: cd.boreContribution,
+    } as FitJson['dischargeCoefficient'],
+    effectiveAreaM2: {
+      value: ea.value,
+      standardUncertainty: ea.standardUncertainty,
+      ci95: ea.ci95,
+      coverageFactor: ea.coverageFactor,
+      expandedUncertainty: ea.expandedUncertainty,
+      relativeStandardUncertainty: ea.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: ea.effectiveDegreesOfFreedom,
+      profileCi95: ea.profileCi95,
+    } as FitJson['effectiveAreaM2'],
+    window: {
+      startS: w.startS,
+      endS: w.endS,
+      samples: data.timeS.length,
+      samplesInRange: w.samples,
+      excludedSamples: excluded,
+      startTime: iso(series.t0EpochMs, w.startS),
+      endTime: iso(series.t0EpochMs, w.endS),
+      chosenBy: p.choice.notes.some((n) => n.code === 'window-override') ? 'by the person' : 'automatically',
+      trims: choice.trims,
+      notes: choice.notes,
+    } as FitJson['window'],
+    warnings,
+    timing: { parseMs: 0, fitMs: 0 },
+    vessel: { name: vessel.name, site: vessel.site ?? null, shape: vessel.shape, fluidDensityKgM3: p.density.value, fluidDensitySource: p.density.source, gravityMS2: p.setting.gravity },
+    outlet: { ...vessel.outlet, nominalAreaM2: nominal },
+    model: {
+      equation: 'A(h)·dh/dt = Q_in − Cd·a·(2·g·H)^n,  H = h + z_sensor − z_outlet',
+      description: describeFree(fit),
+      terms: fit.variant.terms,
+      solution: fit.variant.solution === 'closed-form' ? 'closed form (constant plan area)' : 'ODE with sensitivity equations (RK4, Hermite output)',
+    },
+    parameters: fit.parameters.map((q) => ({ ...q, standardUncertainty: q.free ? q.standardUncertainty : null })),
+    correlations: { parameters: free, matrix },
+    residuals: fit.residuals,
+    uncertaintyMethod: {
+      covariance: 's²·(JᵀJ)⁻¹ at the optimum',
+      autocorrelationCorrection: unc.method,
+      lag1Autocorrelation: unc.lag1Autocorrelation,
+      varianceInflation: unc.varianceInflation,
+      samples: unc.samples,
+      effectiveSamples: unc.effectiveSamples,
+      degreesOfFreedom: unc.degreesOfFreedom,
+      coverageFactor: unc.coverageFactor,
+      boreUncertainty: 'bore tolerance as a rectangular distribution, u(d) = T/√3 (JCGM 100:2008, 4.3.7)',
+      profile: ea.profile,
+    },
+    modelComparison: fit.comparison,
+    headBands: fit.headBands.map((b) => ({ ...b, dischargeCoefficient: b.effectiveAreaM2 / nominal, standardUncertainty: b.standardUncertainty / nominal })),
+    solver: {
+      method: 'trust-region Levenberg–Marquardt (Moré scaling, QR with column pivoting), exact Jacobian',
+      iterations: fit.solver.iterations,
+      evaluations: fit.solver.evaluations,
+      jacobianEvaluations: fit.solver.jacobianEvaluations,
+      stopReason: fit.solver.stopReason,
+      converged: fit.solver.converged,
+      rank: fit.solver.rank,
+      singularValues: Array.from(fit.solver.singularValues),
+      sumSquares: fit.solver.sumSquares,
+    },
+    read: { columns: series.columns, notes: series.notes, t0: iso(series.t0EpochMs, 0), samples: series.timeS.length },
+    plot: {
+      log: { timeS: logPlot.timeS, levelM: logPlot.values },
+      window: { offsetS: w.startS, timeS: winPlot.timeS, observedM: winPlot.values, fittedM: Array.from(fitted) },
+    },
+  };
+  return JSON.parse(JSON.stringify(json, (_k, v) => (typeof v === 'number' ? finite(v) : v))) as FitJson;
+}
+
+function describeFree(fit: DrainFitResult): string {
+  const t = fit.variant.terms;
+  const extras = [t.datum && 'sensor datum', t.inflow && 'constant inflow', t.exponent && 'head exponent'].filter(Boolean);
+  return `Cd·a and the initial level${extras.length ? ', ' + extras.join(', ') : ''}; n = ${t.exponent ? 'fitted' : fit.variant.theta[THETA.exponent]}`;
+}

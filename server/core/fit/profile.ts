@@ -1,0 +1,65 @@
+import { THETA } from '../drain/parameters.js';
+import type { UncertaintyModel } from './uncertainty.js';
+import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
+
+/**
+ * Profile-likelihood 95 % interval for Cd·a: the set of Cd·a for which the best fit of the
+ * other parameters raises the sum of squares by no more than t²·s²·(inflation), the same
+ * scale as the Wald interval. Solved on the signed root
+ *   r(c) = sign(c − ĉ)·sqrt((SSR(c) − SSR_min)/(s²·inflation)),
+ * which is close to linear in c, by secant steps from the Wald end points.
+ */
+export interface ProfileInterval {
+  lower: number;
+  upper: number;
+  /** Refits used. */
+  refits: number;
+  /** False when a side could not be bracketed (then that side is the Wald value). */
+  found: boolean;
+}
+
+export function profileIntervalEffectiveArea(
+  input: VariantInput,
+  best: FittedVariant,
+  unc: UncertaintyModel,
+): ProfileInterval {
+  const col = Array.from(best.free).indexOf(THETA.effectiveArea);
+  const centre = best.theta[THETA.effectiveArea];
+  const u = unc.standardUncertainties[col];
+  const t = unc.coverageFactor;
+  const scale = unc.residualVariance * unc.varianceInflation;
+  let refits = 0;
+  let found = true;
+
+  const signedRoot = (c: number): number => {
+    refits++;
+    const v = fitVariant(input, best.terms, best.theta, { index: THETA.effectiveArea, value: c });
+    const rise = Math.max(v.solve.sumSquares - best.solve.sumSquares, 0);
+    return Math.sign(c - centre) * Math.sqrt(rise / scale);
+  };
+
+  const side = (direction: 1 | -1): number => {
+    const target = direction * t;
+    let c0 = centre;
+    let r0 = 0;
+    let c1 = Math.max(centre + direction * t * u, centre * 1e-6);
+    let r1 = signedRoot(c1);
+    for (let iter = 0; iter < 8; iter++) {
+      if (!Number.isFinite(r1) || r1 === r0) break;
+      if (Math.abs(r1 - target) < 1e-4 * t) return c1;
+      const c2 = Math.max(c1 + ((target - r1) * (c1 - c0)) / (r1 - r0), centre * 1e-6);
+      c0 = c1;
+      r0 = r1;
+      c1 = c2;
+      r1 = signedRoot(c1);
+    }
+    if (Number.isFinite(r1) && Math.abs(r1 - target) < 1e-2 * t) return c1;
+    found = false;
+    return centre + direction * t * u;
+  };
+
+  if (!(u > 0) || !Number.isFinite(u)) return { lower: centre, upper: centre, refits: 0, found: false };
+  const lower = side(-1);
+  const upper = side(1);
+  return { lower, upper, refits, found };
+}
