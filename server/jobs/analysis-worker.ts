@@ -13,7 +13,12 @@ function loadEngine(): Promise<Analyze> {
   const configured = (workerData as { analyzeModule?: string } | undefined)?.analyzeModule;
   const ext = import.meta.url.endsWith('.ts') ? '.ts' : '.js';
   const url = configured ?? new URL(`../core/analyze${ext}`, import.meta.url).href;
-  return import(url).then(
+  // From TypeScript sources (tests, `node --import tsx`), a worker's plain import() of another .ts
+  // file is not routed through tsx; its API loads it explicitly.
+  const load = url.endsWith('.ts')
+    ? import('tsx/esm/api').then((api) => api.tsImport(url, import.meta.url))
+    : import(url);
+  return load.then(
     (m: { analyzeDrainTest?: Analyze }) => {
       if (typeof m.analyzeDrainTest !== 'function') throw new EngineUnavailableError('the analysis engine exports no analyzeDrainTest');
       return m.analyzeDrainTest;

@@ -19,8 +19,11 @@ export interface SerialisedError {
 }
 
 export function serialiseError(e: unknown): SerialisedError {
-  if (e instanceof InputError) {
-    return { name: 'InputError', message: e.message, file: e.file, line: e.line, field: e.field };
+  // By name, not instanceof: the engine may have been loaded as a separate module graph (tsx's
+  // tsImport in development), with its own copy of the InputError class.
+  if (e instanceof InputError || (e instanceof Error && e.name === 'InputError')) {
+    const x = e as InputError;
+    return { name: 'InputError', message: x.message, file: x.file, line: x.line, field: x.field };
   }
   if (e instanceof Error) return { name: e.name, message: e.message };
   return { name: 'Error', message: String(e) };
