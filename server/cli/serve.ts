@@ -1,0 +1,65 @@
+/**
+ * `efflux serve`: open (create, migrate) the database, load the demo scenario into an empty one,
+ * print a one-time admin token on first start, listen, and stop gracefully on SIGINT/SIGTERM:
+ * in-flight requests finish (every write is one SQLite transaction, so nothing is half-written).
+ */
+import closeWithGrace from 'close-with-grace';
+import { buildApp } from '../http/app.js';
+import { resumePending } from '../jobs/ingest.js';
+import { createAnalysisPool } from '../jobs/pool.js';
+import { loadDemo } from '../jobs/demo.js';
+import { openStore, SYSTEM_ACTOR } from '../store/index.js';
+import { serveConfig } from './serve-config.js';
+
+const say = (line: string) => process.stdout.write(`${line}\n`);
+
+export async function run(argv: string[]): Promise<number> {
+  if (argv.includes('--help')) {
+    say('usage: efflux serve   (settings from the environment: EFFLUX_DATA_DIR, HOST, PORT, EFFLUX_DEMO=0, ...; see server/http/README.md)');
+    return 0;
+  }
+  const cfg = serveConfig();
+  const store = openStore({ dataDir: cfg.dataDir });
+  const pool = createAnalysisPool({ threads: cfg.workers, timeoutMs: cfg.analysisTimeoutMs, analyzeModule: cfg.analyzeModule });
+
+  let firstToken: string | null = null;
+  if (store.users.count() === 0) firstToken = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start').token;
+
+  const resumed = await resumePending(store, pool.run, SYSTEM_ACTOR).catch((e: Error) => ({ error: e.message }));
+  if ('error' in resumed) say(`note: tests left pending by an earlier run could not be analysed yet (${resumed.error})`);
+  else if (resumed.done + resumed.refused > 0) say(`analysed ${resumed.done} test(s) left pending by an earlier run; ${resumed.refused} refused and withdrawn`);
+
+  if (cfg.demo && store.vessels.count() === 0 && store.tests.count() === 0) {
+    const r = await loadDemo(store, pool.run, cfg.demoManifest);
+    say(r.note);
+    for (const s of r.skipped) say(`  skipped ${s}`);
+  }
+
+  const app = await buildApp({
+    store,
+    analyze: pool.run,
+    uploadLimitBytes: cfg.uploadLimitBytes,
+    requestTimeoutMs: cfg.requestTimeoutMs,
+    secureCookie: cfg.secureCookie,
+    webRoot: cfg.webRoot,
+    logger: cfg.log === 'silent' ? false : { level: cfg.log },
+  });
+  const address = await app.listen({ host: cfg.host, port: cfg.port });
+  say(`efflux listening on ${address} (data in ${cfg.dataDir})`);
+  say(`API docs: ${address}/api/docs`);
+  if (firstToken) {
+    say('first start: an admin token was created. It is shown this once; keep it safe:');
+    say(`  ${firstToken}`);
+  }
+
+  return new Promise<number>((resolve) => {
+    closeWithGrace({ delay: 20_000 }, async ({ signal, err }) => {
+      if (err) app.log.error({ err }, 'stopping after an error');
+      else app.log.info({ signal }, 'stopping');
+      await app.close(); // stop accepting; let in-flight requests finish
+      await pool.close();
+      store.close(); // WAL checkpointed on close
+      resolve(err ? 70 : 0);
+    });
+  });
+}
