@@ -51,8 +51,8 @@ export interface FitJson {
   converged: boolean;
   dischargeCoefficient: { value: number; standardUncertainty: number; ci95: [number, number] } | null;
   effectiveAreaM2: { value: number; standardUncertainty: number; ci95: [number, number] };
-  window: { startS: number; endS: number; samples: number };
+  window: { startS: number; endS: number; samples: number; [key: string]: unknown };
   warnings: { code: string; message: string }[];
-  timing: { parseMs: number; fitMs: number };
+  timing: { parseMs: number; fitMs: number; diagnosticsMs?: number };
   [key: string]: unknown;
 }

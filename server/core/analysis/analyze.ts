@@ -85,10 +85,12 @@ export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks =
     knownSensorZeroM,
     terms: { inflow: !!settings.fitInflow, datum: !!settings.fitDatum, exponent: !!settings.fitExponent },
     outlet: vessel.outlet,
+    now,
   });
-  const t2 = now();
   const json = fitJson(prepared, fit, { timeS, levelM });
-  json.timing = { parseMs: t1 - t0, fitMs: t2 - t1 };
+  // fitMs: solver and uncertainty (covariance, correction, profile interval); diagnosticsMs: the
+  // model comparison, head bands and warnings
+  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs };
   return { detected: detectedSummary(prepared), fit: json };
 }
 

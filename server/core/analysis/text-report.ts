@@ -13,6 +13,18 @@ const sig = (x: number | null | undefined, digits = 4): string => {
   return a >= 1e-3 && a < 1e5 ? x.toPrecision(digits) : x.toExponential(digits - 1);
 };
 
+/** A value shown to the resolution of its uncertainty (two significant digits of u). */
+const toU = (x: number | null | undefined, u: number | null | undefined): string => {
+  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
+  if (!u || !Number.isFinite(u) || u <= 0) return sig(x, 6);
+  const a = Math.abs(x);
+  if (a !== 0 && (a < 1e-3 || a >= 1e5)) {
+    const digits = Math.max(2, Math.min(12, Math.floor(Math.log10(a)) - Math.floor(Math.log10(u)) + 2));
+    return x.toExponential(digits - 1);
+  }
+  return x.toFixed(Math.max(0, Math.min(12, 1 - Math.floor(Math.log10(u)))));
+};
+
 const pad = (s: string, w: number) => (s.length >= w ? s : s + ' '.repeat(w - s.length));
 
 export function textReport(fit: FitJson): string {
@@ -24,13 +36,15 @@ export function textReport(fit: FitJson): string {
   const cd = f.dischargeCoefficient as Quantity & Record<string, number>;
   const ea = f.effectiveAreaM2 as Quantity & { profileCi95?: [number, number] | null };
   if (cd) {
-    lines.push(`Discharge coefficient  Cd    = ${sig(cd.value)}   u = ${sig(cd.standardUncertainty, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
-    lines.push(`                       95 % interval ${sig(cd.ci95[0])} … ${sig(cd.ci95[1])}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${sig(cd.effectiveDegreesOfFreedom, 3)})`);
+    const u = cd.standardUncertainty;
+    lines.push(`Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
+    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${sig(cd.effectiveDegreesOfFreedom, 3)})`);
   }
-  lines.push(`Effective area         Cd·a  = ${sig(ea.value)} m²   u = ${sig(ea.standardUncertainty, 2)} m²`);
-  lines.push(`                       95 % interval ${sig(ea.ci95[0])} … ${sig(ea.ci95[1])} m²` + (ea.profileCi95 ? `   profile: ${sig(ea.profileCi95[0])} … ${sig(ea.profileCi95[1])} m²` : ''));
+  const ue = ea.standardUncertainty;
+  lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
+  lines.push(`                       95 % interval ${toU(ea.ci95[0], ue)} … ${toU(ea.ci95[1], ue)} m²` + (ea.profileCi95 ? `   profile: ${toU(ea.profileCi95[0], ue)} … ${toU(ea.profileCi95[1], ue)} m²` : ''));
   lines.push('');
-  const w = f.window;
+  const w = f.window as Record<string, any>;
   lines.push(`Window   ${sig(w.startS, 6)} s … ${sig(w.endS, 6)} s from the log's start, ${w.samples} samples` + (w.startTime ? ` (${w.startTime} … ${w.endTime})` : '') + (w.chosenBy ? `, chosen ${w.chosenBy}` : ''));
   for (const t of (w.trims ?? []) as { reason: string }[]) lines.push(`         trimmed: ${t.reason}`);
   if (w.excludedSamples) lines.push(`         ${w.excludedSamples} samples inside the window left out (spikes or flat lines)`);
@@ -38,10 +52,10 @@ export function textReport(fit: FitJson): string {
   lines.push(`         free: ${f.model?.description ?? ''}; solution: ${f.model?.solution ?? ''}`);
   lines.push('');
   lines.push('Parameters');
-  lines.push(`  ${pad('name', 22)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 28)}unit`);
+  lines.push(`  ${pad('name', 22)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 30)}unit`);
   for (const p of (f.parameters ?? []) as any[]) {
-    const ci = p.ci95 ? `${sig(p.ci95[0])} … ${sig(p.ci95[1])}` : 'fixed';
-    lines.push(`  ${pad(p.name, 22)}${pad(sig(p.value, 6), 14)}${pad(p.free ? sig(p.standardUncertainty, 2) : '—', 12)}${pad(ci, 28)}${p.unit}${p.atBound ? '  (at bound)' : ''}`);
+    const ci = p.ci95 ? `${toU(p.ci95[0], p.standardUncertainty)} … ${toU(p.ci95[1], p.standardUncertainty)}` : 'fixed';
+    lines.push(`  ${pad(p.name, 22)}${pad(p.free ? toU(p.value, p.standardUncertainty) : sig(p.value, 6), 14)}${pad(p.free ? sig(p.standardUncertainty, 2) : '—', 12)}${pad(ci, 30)}${p.unit}${p.atBound ? '  (at bound)' : ''}`);
   }
   const corr = f.correlations as { parameters: string[]; matrix: number[][] } | undefined;
   if (corr && corr.parameters.length > 1) {

@@ -1,0 +1,62 @@
+#!/usr/bin/env node
+/**
+ * The `efflux` command: a thin dispatcher. Each command lives in its own module exporting
+ * `run(argv: string[]): Promise<number>` (the exit code); modules load only when used, so
+ * `efflux fit` never loads the server.
+ */
+import { EXIT_INTERNAL, EXIT_REFUSED } from './io.js';
+
+/** Service-side commands load by name so the offline commands never pull in the server. */
+const loadModule = (name: string) => import(`./${name}.js`) as Promise<{ run: (argv: string[]) => Promise<number> | number }>;
+
+type Command = { summary: string; load: () => Promise<{ run: (argv: string[]) => Promise<number> | number }> };
+
+const COMMANDS: Record<string, Command> = {
+  fit: { summary: 'fit a drain test log: Cd·a and Cd with uncertainty', load: async () => ({ run: (await import('./fit.js')).runFit }) },
+  inspect: { summary: 'show what was read from a log and the drain windows found, without fitting', load: async () => ({ run: (await import('./inspect.js')).runInspect }) },
+  serve: { summary: 'start the service (API and web workbench)', load: () => loadModule('serve') },
+  token: { summary: 'create an API token: token create --role ROLE --name NAME', load: () => loadModule('token') },
+  audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
+};
+
+function usage(): string {
+  const lines = ['usage: efflux <command> [options]   (efflux <command> --help for more)', '', 'commands:'];
+  for (const [name, c] of Object.entries(COMMANDS)) lines.push(`  ${name.padEnd(10)}${c.summary}`);
+  lines.push('', 'Drain tests involve work at height, confined spaces and discharges: follow site procedures.');
+  return lines.join('\n') + '\n';
+}
+
+async function main(argv: string[]): Promise<number> {
+  const [name, ...rest] = argv;
+  if (!name || name === '--help' || name === '-h' || name === 'help') {
+    process.stdout.write(usage());
+    return name ? 0 : EXIT_REFUSED;
+  }
+  if (name === '--version') {
+    process.stdout.write(`${(await import('../core/version.js')).ENGINE_VERSION}\n`);
+    return 0;
+  }
+  const command = COMMANDS[name];
+  if (!command) {
+    process.stderr.write(`efflux: unknown command "${name}"\n${usage()}`);
+    return EXIT_REFUSED;
+  }
+  let mod: Awaited<ReturnType<Command['load']>>;
+  try {
+    mod = await command.load();
+  } catch (err) {
+    process.stderr.write(`efflux: the "${name}" command is not available in this build (${(err as Error).message})\n`);
+    return EXIT_INTERNAL;
+  }
+  return mod.run(rest);
+}
+
+main(process.argv.slice(2)).then(
+  (code) => {
+    process.exitCode = code;
+  },
+  (err) => {
+    process.stderr.write(`efflux: internal fault: ${err instanceof Error ? err.message : String(err)}\n`);
+    process.exitCode = EXIT_INTERNAL;
+  },
+);
