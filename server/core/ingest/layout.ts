@@ -57,7 +57,18 @@ function dataLike(fields: string[]): boolean {
     filled++;
     if (isDataCell(f)) data++;
   }
-  return filled > 0 && data * 2 > filled;
+  return filled > 0 && data * 2 >= filled;
+}
+
+function headerLike(fields: string[], n: number): boolean {
+  if (fields.length !== n) return false;
+  let filled = 0, data = 0;
+  for (const f of fields) {
+    if (f.trim() === '') continue;
+    filled++;
+    if (isDataCell(f)) data++;
+  }
+  return filled > 0 && data * 2 < filled;
 }
 
 function mode(values: number[]): number {
@@ -115,22 +126,26 @@ export function findLayout(head: string, fileName: string, opts: { delimiter?: s
   const rows = chosen.rows;
   const n = chosen.count;
   const isData = (i: number) => i < rows.length && rows[i].fields.length >= n && dataLike(rows[i].fields);
+  // Data start where three rows in a row read as data; prefer the first such run that
+  // follows a header-like row, so "key;number" metadata lines are not taken for data.
   let first = -1;
   for (let i = 0; i < rows.length; i++) {
     const need = Math.min(3, rows.length - i);
     let ok = true;
     for (let k = 0; k < need && ok; k++) ok = isData(i + k);
-    if (ok) { first = i; break; }
+    if (!ok) continue;
+    if (first < 0) first = i;
+    if (i > 0 && headerLike(rows[i - 1].fields, n)) { first = i; break; }
   }
   const lastLine = rows.length ? rows[rows.length - 1].line : 0;
   if (first < 0) {
-    const h = rows.findIndex((r) => r.fields.length === n && !dataLike(r.fields));
+    const h = rows.findIndex((r) => headerLike(r.fields, n));
     if (h >= 0 && h === rows.length - 1)
       throw new InputError('the file has a header but no data rows', { file: fileName, line: rows[h].line });
     throw new InputError('found no rows of numbers or times to read', { file: fileName, ...(lastLine ? { line: lastLine } : {}) });
   }
   const prev = first > 0 ? rows[first - 1] : null;
-  const hasHeader = prev !== null && prev.fields.length === n && !dataLike(prev.fields);
+  const hasHeader = prev !== null && headerLike(prev.fields, n);
   const headerIdx = hasHeader ? first - 1 : first;
   const lines = head.split('\n');
   const metadata: Layout['metadata'] = [];

@@ -53,3 +53,12 @@ describe('delimiters, decimal mark, preamble and header', () => {
     expect(Array.from(s.levelM)).toEqual([0.5, 0.49, 0.48]);
   });
 });
+
+describe('metadata that looks like data', () => {
+  it('is not taken for data rows when a header follows it', () => {
+    const text = ['Interval;1', 'Channels;2', 'Serial;4471', 'Stamp;Level (m)', ...rows.map((t) => `${t};1,5`)].join('\n');
+    const s = read(text);
+    expect(s.metadata.map((m) => m.key)).toEqual(['Interval', 'Channels', 'Serial']);
+    expect(s.timeS.length).toBe(3);
+  });
+});
