@@ -61,6 +61,7 @@ export async function runFit(argv: string[]): Promise<number> {
           { now: () => performance.now() },
         );
         outcome.fit.timing.parseMs += readMs;
+        (outcome.fit.timing as Record<string, number>).peakRssMB = process.resourceUsage().maxRSS / 1024;
         if (values.json) {
           const body = batch ? JSON.stringify({ file: path, ...outcome.fit }) : JSON.stringify(outcome.fit, null, 2);
           process.stdout.write(body + '\n');

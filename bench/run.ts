@@ -1,0 +1,64 @@
+/**
+ * `npm run bench`: fits the shared benchmark logs with `efflux fit --json`, one fresh process per
+ * run as a person would start it, and reports the in-process timing the command prints (parse,
+ * fit, diagnostics) and the peak memory; then runs the reader, window and trend benchmarks.
+ * Speed is measured here, never asserted in tests.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const root = resolve(here, existsSync(join(here, '..', 'package.json')) ? '..' : '../..');
+const shared = resolve(root, '..', 'shared', 'bench');
+const cli = join(root, 'bin', 'efflux.js');
+const runs = Number(process.env.BENCH_RUNS ?? 5);
+
+const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+
+interface Row {
+  file: string;
+  cd: number;
+  parseMs: number;
+  fitMs: number;
+  diagnosticsMs: number;
+  peakRssMB: number;
+}
+
+function fitOnce(name: string): Row {
+  const csv = join(shared, `${name}.csv`);
+  const vessel = join(shared, `${name}.vessel.json`);
+  const out = spawnSync(process.execPath, [cli, 'fit', csv, '--vessel', vessel, '--json'], { encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 });
+  if (out.status !== 0) throw new Error(`efflux fit ${name} failed: ${out.stderr}`);
+  const fit = JSON.parse(out.stdout);
+  return { file: name, cd: fit.dischargeCoefficient.value, parseMs: fit.timing.parseMs, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs, peakRssMB: fit.timing.peakRssMB };
+}
+
+if (!existsSync(shared)) {
+  console.error(`bench: ${shared} not found (the shared benchmark workloads sit beside the project)`);
+  process.exit(2);
+}
+console.log(`efflux fit --json on the shared benchmark logs, ${runs} fresh processes each (median):`);
+console.log('file             Cd          parse ms   fit ms   diagnostics ms   peak RSS MB');
+for (const name of ['vcyl-86400', 'hcyl-86400']) {
+  const rows: Row[] = [];
+  for (let i = 0; i < runs; i++) {
+    process.stderr.write(`  ${name}: run ${i + 1}/${runs}\r`);
+    rows.push(fitOnce(name));
+  }
+  const m = (k: keyof Row) => median(rows.map((r) => r[k] as number));
+  console.log(`${name.padEnd(17)}${m('cd').toFixed(6).padEnd(12)}${m('parseMs').toFixed(1).padStart(8)} ${m('fitMs').toFixed(1).padStart(8)} ${m('diagnosticsMs').toFixed(1).padStart(16)} ${m('peakRssMB').toFixed(0).padStart(13)}`);
+}
+
+for (const [script, label] of [
+  ['ingest.js', 'reader: 1 000 000-row log'],
+  ['window.js', 'drain window'],
+  ['trend.js', 'trend: 5 000 outlets × 10 years'],
+] as const) {
+  const path = join(here, script);
+  if (!existsSync(path)) continue;
+  console.log(`\n${label}:`);
+  const r = spawnSync(process.execPath, ['--expose-gc', path], { stdio: 'inherit' });
+  if (r.status !== 0) console.log(`  (${script} exited ${r.status})`);
+}
