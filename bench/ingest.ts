@@ -1,6 +1,8 @@
 /**
  * Reading speed and memory of the logger reader on a generated 1 000 000-row log (invented
- * data, ISO timestamps with offset, level in cm). Run: npx tsx bench/ingest.ts [rows]
+ * data). Run: npx tsx bench/ingest.ts [rows] [iso|dmy|quoted]; RUNS=n repeats the read.
+ * iso: ISO timestamps with Z, level in cm, temperature; dmy: day-first local times with a
+ * decimal comma; quoted: every field in quotes (the papaparse path).
  */
 import { readLevelLog } from '../server/core/ingest/read-log.js';
 
@@ -11,12 +13,14 @@ const layout = process.argv[3] ?? 'iso';
 function generate(n: number): Uint8Array {
   const enc = new TextEncoder();
   const buf = new Uint8Array(n * 48 + 64);
-  let at = enc.encodeInto(layout === 'iso' ? 'timestamp,level [cm],temp [°C]\n' : 'Time;Level (mm)\n', buf).written;
+  const header = layout === 'iso' ? 'timestamp,level [cm],temp [°C]\n' : layout === 'quoted' ? '"timestamp","level [cm]"\n' : 'Time;Level (mm)\n';
+  let at = enc.encodeInto(header, buf).written;
   const t0 = Date.UTC(2026, 3, 20, 6, 0, 0);
   for (let i = 0; i < n; i++) {
     const h = 350 * (1 - i / (1.2 * n)) ** 2 + 0.05 * Math.sin(i / 7);
     const t = new Date(t0 + i * 100).toISOString();
     const line = layout === 'iso' ? `${t},${h.toFixed(3)},${(14 + i / n).toFixed(2)}\n`
+      : layout === 'quoted' ? `"${t}","${h.toFixed(3)}"\n`
       : `${t.slice(8, 10)}.${t.slice(5, 7)}.${t.slice(0, 4)} ${t.slice(11, 23)};${(h * 10).toFixed(1).replace('.', ',')}\n`;
     at += enc.encodeInto(line, buf.subarray(at)).written;
   }

@@ -118,7 +118,7 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
       return;
     }
     const t = timeOf(r);
-    if (!Number.isFinite(t) || Math.abs(t) > 1e16) {
+    if (!Number.isFinite(t) || Math.abs(t) > 8.64e15) { // the range of a JavaScript Date
       markBad(r, timeCols[0], 'not a time');
       return;
     }

@@ -137,8 +137,9 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
   }
   const n = col.n;
   const t0 = col.timeMs[0];
-  const timeS = new Float64Array(n);
-  for (let i = 0; i < n; i++) timeS[i] = (col.timeMs[i] - t0) / 1000;
+  // In place: the collected buffers become the series (no second copy of a million rows).
+  const timeS = col.timeMs.subarray(0, n);
+  for (let i = 0; i < n; i++) timeS[i] = (timeS[i] - t0) / 1000;
   for (let i = 1; i < n; i++) {
     // Times far from zero can round to equal seconds: keep the series strictly ascending.
     if (!(timeS[i] > timeS[i - 1])) throw new InputError('times too close together to tell apart', { file: fileName, line: col.line[i] });
@@ -152,7 +153,7 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
     timeS,
     levelM,
     t0EpochMs: raw.absolute ? t0 : null,
-    sourceLine: col.line.slice(0, n),
+    sourceLine: col.line.subarray(0, n),
     metadata: layout.metadata,
     columns: plan.columns,
     notes,

@@ -1,8 +1,8 @@
 /**
  * The data rows of a whole file, one at a time, without an object per row: fields are given
- * as [start, end) offsets into a shared string. Lines without quotes (nearly every logger
- * line) are split by indexOf on the delimiter; a piece of text that holds quotes goes through
- * papaparse with the delimiter we found, so quoted fields keep their commas and newlines.
+ * as [start, end) offsets into a shared string. Lines are split by indexOf on the delimiter,
+ * simple quoted fields included; from the first line with doubled quotes or a line break inside
+ * quotes, the rest of the piece goes through papaparse with the delimiter we found.
  */
 import Papa from 'papaparse';
 import { textChunks, type EncodingGuess } from './decode.js';
@@ -55,64 +55,117 @@ export function forEachRow(rs: RowSource, onRow: (row: Row) => void): void {
     const quoted = text.indexOf('"') >= 0 && text.indexOf('"') < cut;
     if (quoted && !last) cut = evenQuoteCut(text, cut, nl);
     if (cut <= 0) { carry = text; continue; }
-    line = quoted ? quotedPiece(text, cut, line, rs, row, onRow) : plainPiece(text, cut, line, rs, delim, row, onRow);
+    line = splitPiece(text, cut, line, rs, delim, row, onRow);
     carry = cut < text.length ? text.slice(cut) : '';
   }
-  if (carry.length) {
-    const text = carry;
-    if (text.indexOf('"') >= 0) quotedPiece(text, text.length, line, rs, row, onRow);
-    else plainPiece(text, text.length, line, rs, delim, row, onRow);
-  }
+  if (carry.length) splitPiece(carry, carry.length, line, rs, delim, row, onRow);
 }
 
-/** The last line end before `cut` that is outside quotes. */
-function evenQuoteCut(text: string, cut: number, nl: string): number {
-  let inside = false, best = 0;
-  const q = 34, n = nl.charCodeAt(0);
-  for (let i = 0; i < cut; i++) {
-    const c = text.charCodeAt(i);
-    if (c === q) inside = !inside;
-    else if (c === n && !inside) best = i + 1;
-  }
-  return best;
-}
-
-function plainPiece(text: string, cut: number, line: number, rs: RowSource, delim: string, row: Row,
+function splitPiece(text: string, cut: number, line: number, rs: RowSource, delim: string, row: Row,
   onRow: (row: Row) => void): number {
+  const done = plainPiece(text, cut, line, rs, delim, row, onRow);
+  if (done.stop >= cut) return done.line;
+  return quotedPiece(text.slice(done.stop, cut), done.line, rs, row, onRow);
+}
+
+/** The last line end before `cut` (itself just after a line end) that is outside quotes. */
+function evenQuoteCut(text: string, cut: number, nl: string): number {
+  const quotesIn = (from: number, to: number): number => {
+    let q = 0;
+    for (let i = text.indexOf('"', from); i >= 0 && i < to; i = text.indexOf('"', i + 1)) q++;
+    return q;
+  };
+  let end = cut - 1; // a line end
+  let q = quotesIn(0, end);
+  while (end >= 0 && q % 2 === 1) {
+    const prev = text.lastIndexOf(nl, end - 1);
+    q -= quotesIn(prev + 1, end);
+    end = prev;
+  }
+  return end + 1;
+}
+
+/**
+ * Splits the lines of text[0, cut). Quoted fields without doubled quotes or line breaks inside
+ * are split here too (offsets inside the quotes); at the first line that needs more, returns
+ * its offset so the rest of the piece goes to papaparse.
+ */
+function plainPiece(text: string, cut: number, line: number, rs: RowSource, delim: string, row: Row,
+  onRow: (row: Row) => void): { line: number; stop: number } {
   const nl = rs.newline;
   let p = 0;
+  let nextQuote = text.indexOf('"');
+  if (nextQuote < 0) nextQuote = Infinity;
   while (p < cut) {
     let e = text.indexOf(nl, p);
     if (e < 0 || e >= cut) e = cut;
     const next = e + 1;
     if (e > p && text.charCodeAt(e - 1) === 13) e--;
+    if (nextQuote < p) {
+      nextQuote = text.indexOf('"', p);
+      if (nextQuote < 0) nextQuote = Infinity;
+    }
     if (line > rs.skipThroughLine && e > p) {
-      let count = 0, s = p;
-      for (;;) {
-        let d = text.indexOf(delim, s);
-        if (d < 0 || d > e) d = e;
-        if (count < MAX_FIELDS) {
-          row.src[count] = text;
-          row.start[count] = s;
-          row.end[count] = d;
+      if (nextQuote < e) {
+        if (!splitQuoted(text, p, e, delim, row)) return { line, stop: p };
+      } else {
+        let count = 0, s = p;
+        for (;;) {
+          let d = text.indexOf(delim, s);
+          if (d < 0 || d > e) d = e;
+          if (count < MAX_FIELDS) {
+            row.src[count] = text;
+            row.start[count] = s;
+            row.end[count] = d;
+          }
+          count++;
+          if (d >= e) break;
+          s = d + 1;
         }
-        count++;
-        if (d >= e) break;
-        s = d + 1;
+        row.count = Math.min(count, MAX_FIELDS);
       }
-      row.count = Math.min(count, MAX_FIELDS);
       row.line = line;
-      if (!(count === 1 && text.slice(p, e).trim() === '')) onRow(row);
+      if (!(row.count === 1 && text.slice(p, e).trim() === '')) onRow(row);
     }
     line++;
     p = next;
   }
-  return line;
+  return { line, stop: cut };
 }
 
-function quotedPiece(text: string, cut: number, line: number, rs: RowSource, row: Row,
+/** Simple quoted fields on one line; false when the line needs a full CSV parser. */
+function splitQuoted(text: string, p: number, e: number, delim: string, row: Row): boolean {
+  const dc = delim.charCodeAt(0);
+  let count = 0, s = p;
+  for (;;) {
+    let a: number, b: number, after: number;
+    if (s < e && text.charCodeAt(s) === 34) {
+      const q = text.indexOf('"', s + 1);
+      if (q < 0 || q >= e || (q + 1 < e && text.charCodeAt(q + 1) === 34)) return false;
+      if (q + 1 < e && text.charCodeAt(q + 1) !== dc) return false;
+      a = s + 1; b = q; after = q + 1;
+    } else {
+      let d = text.indexOf(delim, s);
+      if (d < 0 || d > e) d = e;
+      const q = text.indexOf('"', s);
+      if (q >= 0 && q < d) return false;
+      a = s; b = d; after = d;
+    }
+    if (count < MAX_FIELDS) {
+      row.src[count] = text;
+      row.start[count] = a;
+      row.end[count] = b;
+    }
+    count++;
+    if (after >= e) break;
+    s = after + 1;
+  }
+  row.count = Math.min(count, MAX_FIELDS);
+  return true;
+}
+
+function quotedPiece(piece: string, line: number, rs: RowSource, row: Row,
   onRow: (row: Row) => void): number {
-  const piece = text.slice(0, cut);
   const crlf = rs.newline === '\n' && piece.indexOf('\r\n') >= 0;
   const res = Papa.parse<string[]>(piece, { delimiter: rs.delimiter, newline: crlf ? '\r\n' : rs.newline, quoteChar: '"', skipEmptyLines: false });
   const data = res.data;

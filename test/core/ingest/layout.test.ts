@@ -62,3 +62,12 @@ describe('metadata that looks like data', () => {
     expect(s.timeS.length).toBe(3);
   });
 });
+
+describe('quoted fields that need a full CSV parser', () => {
+  it('reads doubled quotes and line breaks inside quotes, keeping line numbers', () => {
+    const text = ['Stamp,Level (m),Comment', `${rows[0]},1.0,"said ""open"""`, `${rows[1]},0.9,"two`, `lines"`, `${rows[2]},0.8,plain`].join('\n');
+    const s = read(text);
+    expect(Array.from(s.levelM)).toEqual([1, 0.9, 0.8]);
+    expect(Array.from(s.sourceLine)).toEqual([2, 3, 5]);
+  });
+});
