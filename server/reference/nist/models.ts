@@ -1,19 +1,33 @@
 /**
  * The model functions of the 27 NIST StRD nonlinear-regression datasets, as printed in each
  * file's "Model:" block, with hand-derived partial derivatives ∂f/∂b (checked against finite
- * differences in test/reference/nist-models.test.ts).
+ * differences in test/reference/nist/models.test.ts).
  *
- * `f(b, x, x2, g)` returns the model value at one observation and, when g is given, fills
- * g[k] = ∂f/∂b_k. Nelson's response is log(y) (its model is written for log[y]).
+ * `f(b, x, x2, g)` returns the model value at one observation in double and, when g is given,
+ * fills g[k] = ∂f/∂b_k. `fDd(b, x, x2)` is the same model in double-double from double-double
+ * data: the residuals y − f are formed from it, because some certified sums of squares (Lanczos1)
+ * sit below what double evaluation can resolve; the Jacobian needs only relative accuracy and
+ * stays in double. Nelson's response is log(y) (its model is written for log[y]).
  */
+import { ONE, PI, add, addNum, atan, div, exp, fromNumber, log, mul, mulNum, neg, pow, sinCos, sqr, sqrt, sub } from './double-double.js';
+import type { Dd } from './double-double.js';
+
 export interface StrdModel {
   readonly n: number;
   /** Transform applied to the recorded response before fitting (Nelson fits log y). */
   readonly response?: (y: number) => number;
+  readonly responseDd?: (y: Dd) => Dd;
   f(b: Float64Array, x: number, x2: number, g: Float64Array | null): number;
+  fDd(b: Float64Array, x: Dd, x2: Dd): Dd;
 }
 
 const TWO_PI = 2 * Math.PI;
+const TWO_PI_DD = mulNum(PI, 2);
+
+/** b·x for a double parameter and double-double datum. */
+function bx(b: number, x: Dd): Dd {
+  return mulNum(x, b);
+}
 
 // y = b1*(1-exp[-b2*x])
 const exponentialRise: StrdModel = {
@@ -25,6 +39,9 @@ const exponentialRise: StrdModel = {
       g[1] = b[0] * x * e;
     }
     return b[0] * (1 - e);
+  },
+  fDd(b, x) {
+    return mulNum(sub(ONE, exp(neg(bx(b[1], x)))), b[0]);
   },
 };
 
@@ -40,6 +57,9 @@ const chwirut: StrdModel = {
       g[2] = (-x * e) / (d * d);
     }
     return e / d;
+  },
+  fDd(b, x) {
+    return div(exp(neg(bx(b[0], x))), addNum(bx(b[2], x), b[1]));
   },
 };
 
@@ -66,6 +86,16 @@ function rational(k: number): StrdModel {
       }
       return num / den;
     },
+    fDd(b, x) {
+      // Horner from the top coefficient down.
+      let num = fromNumber(b[k]);
+      let den = fromNumber(b[2 * k]);
+      for (let i = k - 1; i >= 0; i--) {
+        num = addNum(mul(num, x), b[i]);
+        den = addNum(mul(den, x), i === 0 ? 1 : b[k + i]);
+      }
+      return div(num, den);
+    },
   };
 }
 
@@ -82,6 +112,11 @@ const lanczos: StrdModel = {
         g[2 * t + 1] = -b[2 * t] * x * e;
       }
     }
+    return s;
+  },
+  fDd(b, x) {
+    let s = mulNum(exp(neg(bx(b[1], x))), b[0]);
+    for (let t = 1; t < 3; t++) s = add(s, mulNum(exp(neg(bx(b[2 * t + 1], x))), b[2 * t]));
     return s;
   },
 };
@@ -106,6 +141,14 @@ const gauss: StrdModel = {
         g[o + 1] = (b[o] * q * 2 * u) / (w * w);
         g[o + 2] = (b[o] * q * 2 * u * u) / (w * w * w);
       }
+    }
+    return s;
+  },
+  fDd(b, x) {
+    let s = mulNum(exp(neg(bx(b[1], x))), b[0]);
+    for (const o of [2, 5]) {
+      const u = addNum(x, -b[o + 1]);
+      s = add(s, mulNum(exp(neg(div(sqr(u), sqr(fromNumber(b[o + 2]))))), b[o]));
     }
     return s;
   },
@@ -136,6 +179,9 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return b[0] * p;
     },
+    fDd(b, x) {
+      return mulNum(pow(x, fromNumber(b[1])), b[0]);
+    },
   },
   // y = b1 * (1-(1+b2*x/2)**(-2))
   Misra1b: {
@@ -147,6 +193,10 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
         g[1] = (b[0] * x) / (u * u * u);
       }
       return b[0] * (1 - 1 / (u * u));
+    },
+    fDd(b, x) {
+      const u = addNum(mulNum(bx(b[1], x), 0.5), 1);
+      return mulNum(sub(ONE, div(ONE, sqr(u))), b[0]);
     },
   },
   // y = b1 * (1-(1+2*b2*x)**(-.5))
@@ -161,6 +211,10 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return b[0] * (1 - s);
     },
+    fDd(b, x) {
+      const u = addNum(mulNum(bx(b[1], x), 2), 1);
+      return mulNum(sub(ONE, div(ONE, sqrt(u))), b[0]);
+    },
   },
   // y = b1*b2*x*((1+b2*x)**(-1))
   Misra1d: {
@@ -172,6 +226,10 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
         g[1] = (b[0] * x) / (u * u);
       }
       return (b[0] * b[1] * x) / u;
+    },
+    fDd(b, x) {
+      const bx1 = bx(b[1], x);
+      return div(mulNum(bx1, b[0]), addNum(bx1, 1));
     },
   },
   // y = b1*(x**2+x*b2) / (x**2+x*b3+b4)
@@ -188,6 +246,12 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return (b[0] * num) / den;
     },
+    fDd(b, x) {
+      const x2 = sqr(x);
+      const num = add(x2, bx(b[1], x));
+      const den = addNum(add(x2, bx(b[2], x)), b[3]);
+      return mulNum(div(num, den), b[0]);
+    },
   },
   // y = b1 * exp[b2/(x+b3)]
   MGH10: {
@@ -201,6 +265,9 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
         g[2] = (-b[0] * e * b[1]) / (v * v);
       }
       return b[0] * e;
+    },
+    fDd(b, x) {
+      return mulNum(exp(div(fromNumber(b[1]), addNum(x, b[2]))), b[0]);
     },
   },
   // y = b1 + b2*exp[-x*b4] + b3*exp[-x*b5]
@@ -218,6 +285,11 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return b[0] + b[1] * e4 + b[2] * e5;
     },
+    fDd(b, x) {
+      const e4 = mulNum(exp(neg(bx(b[3], x))), b[1]);
+      const e5 = mulNum(exp(neg(bx(b[4], x))), b[2]);
+      return addNum(add(e4, e5), b[0]);
+    },
   },
   // y = (b1/b2) * exp[-0.5*((x-b3)/b2)**2]
   Eckerle4: {
@@ -232,6 +304,11 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return (b[0] / b[1]) * e;
     },
+    fDd(b, x) {
+      const b2 = fromNumber(b[1]);
+      const z = div(addNum(x, -b[2]), b2);
+      return div(mulNum(exp(mulNum(sqr(z), -0.5)), b[0]), b2);
+    },
   },
   // y = b1 / (1+exp[b2-b3*x])
   Rat42: {
@@ -245,6 +322,10 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
         g[2] = (b[0] * x * e) / (u * u);
       }
       return b[0] / u;
+    },
+    fDd(b, x) {
+      const u = addNum(exp(addNum(neg(bx(b[2], x)), b[1])), 1);
+      return div(fromNumber(b[0]), u);
     },
   },
   // y = b1 / ((1+exp[b2-b3*x])**(1/b4))
@@ -262,6 +343,10 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return b[0] * p;
     },
+    fDd(b, x) {
+      const u = addNum(exp(addNum(neg(bx(b[2], x)), b[1])), 1);
+      return mulNum(pow(u, div(fromNumber(-1), fromNumber(b[3]))), b[0]);
+    },
   },
   // y = b1 * (b2+x)**(-1/b3)
   Bennett5: {
@@ -276,11 +361,15 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return b[0] * p;
     },
+    fDd(b, x) {
+      return mulNum(pow(addNum(x, b[1]), div(fromNumber(-1), fromNumber(b[2]))), b[0]);
+    },
   },
   // log[y] = b1 - b2*x1 * exp[-b3*x2]
   Nelson: {
     n: 3,
     response: Math.log,
+    responseDd: log,
     f(b, x1, x2, g) {
       const e = Math.exp(-b[2] * x2);
       if (g) {
@@ -289,6 +378,9 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
         g[2] = b[1] * x1 * x2 * e;
       }
       return b[0] - b[1] * x1 * e;
+    },
+    fDd(b, x1, x2) {
+      return addNum(neg(mulNum(mul(x1, exp(neg(bx(b[2], x2)))), b[1])), b[0]);
     },
   },
   // y = b1 + b2*cos(2πx/12) + b3*sin(2πx/12) + b5*cos(2πx/b4) + b6*sin(2πx/b4) + b8*cos(2πx/b7) + b9*sin(2πx/b7)
@@ -316,6 +408,15 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
       }
       return s;
     },
+    fDd(b, x) {
+      const [s1, c1] = sinCos(div(mul(TWO_PI_DD, x), fromNumber(12)));
+      let s = addNum(add(mulNum(c1, b[1]), mulNum(s1, b[2])), b[0]);
+      for (const o of [3, 6]) {
+        const [sn, c] = sinCos(div(mul(TWO_PI_DD, x), fromNumber(b[o])));
+        s = add(s, add(mulNum(c, b[o + 1]), mulNum(sn, b[o + 2])));
+      }
+      return s;
+    },
   },
   // y = b1 - b2*x - arctan[b3/(x-b4)]/pi
   Roszman1: {
@@ -331,6 +432,10 @@ export const STRD_MODELS: Readonly<Record<string, StrdModel>> = {
         g[3] = (-k * b[2]) / (d * d);
       }
       return b[0] - b[1] * x - Math.atan(w) / Math.PI;
+    },
+    fDd(b, x) {
+      const w = div(fromNumber(b[2]), addNum(x, -b[3]));
+      return sub(addNum(neg(bx(b[1], x)), b[0]), div(atan(w), PI));
     },
   },
 };

@@ -5,6 +5,8 @@
  * squares. Malformed files are refused with InputError naming file and line.
  */
 import { InputError } from '../../core/errors.js';
+import { parseDecimal } from './double-double.js';
+import type { Dd } from './double-double.js';
 
 export interface StrdParameter {
   name: string;
@@ -27,6 +29,9 @@ export interface StrdDataset {
   y: Float64Array;
   /** Predictor columns (one for all but Nelson, which has two). */
   x: Float64Array[];
+  /** The same data as double-double, read from the decimal text (not from the rounded doubles). */
+  yExact: Dd[];
+  xExact: Dd[][];
 }
 
 /** Significant digits of a number as written, e.g. "1.9280693458E-01" → 11. */
@@ -39,6 +44,12 @@ export function significantDigits(token: string): number {
 function num(token: string | undefined, file: string, line: number, field: string): number {
   const v = token === undefined ? NaN : Number(token);
   if (!Number.isFinite(v)) throw new InputError(`not a number: ${token ?? '(missing)'}`, { file, line, field });
+  return v;
+}
+
+function exact(token: string, file: string, line: number, field: string): Dd {
+  const v = parseDecimal(token);
+  if (!v || !Number.isFinite(v.hi)) throw new InputError(`not a number: ${token}`, { file, line, field });
   return v;
 }
 
@@ -88,14 +99,23 @@ export function parseStrdFile(text: string, file: string, name = file.replace(/^
 
   const count = de - ds + 1;
   const y = new Float64Array(count);
+  const yExact: Dd[] = [];
   let x: Float64Array[] = [];
+  let xExact: Dd[][] = [];
   for (let k = 0; k < count; k++) {
     const ln = ds + k;
     const cells = (lines[ln - 1] ?? '').trim().split(/\s+/);
-    if (k === 0) x = Array.from({ length: Math.max(1, cells.length - 1) }, () => new Float64Array(count));
+    if (k === 0) {
+      x = Array.from({ length: Math.max(1, cells.length - 1) }, () => new Float64Array(count));
+      xExact = x.map(() => []);
+    }
     if (cells.length !== x.length + 1) throw new InputError(`expected ${x.length + 1} numbers`, { file, line: ln });
     y[k] = num(cells[0], file, ln, 'y');
-    for (let c = 0; c < x.length; c++) x[c][k] = num(cells[c + 1], file, ln, `x${c + 1}`);
+    yExact.push(exact(cells[0], file, ln, 'y'));
+    for (let c = 0; c < x.length; c++) {
+      x[c][k] = num(cells[c + 1], file, ln, `x${c + 1}`);
+      xExact[c].push(exact(cells[c + 1], file, ln, `x${c + 1}`));
+    }
   }
-  return { name, parameters, residualSumOfSquares: rss, residualSumOfSquaresDigits: rssDigits, degreesOfFreedom: dof, y, x };
+  return { name, parameters, residualSumOfSquares: rss, residualSumOfSquaresDigits: rssDigits, degreesOfFreedom: dof, y, x, yExact, xExact };
 }
