@@ -62,7 +62,8 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
 
   const refuse = (): never => {
     const f = first!;
-    throw new InputError(`${f.why} (cell "${f.text.slice(0, 40)}"); ${bad} of ${rows} rows unreadable, more than ${MAX_BAD_ROW_FRACTION * 100} % allowed`,
+    const shown = f.text.slice(0, 40).replace(/[\x00-\x1f]+/g, ' ');
+    throw new InputError(`${f.why} (cell "${shown}"); ${bad} of ${rows} rows unreadable, more than ${MAX_BAD_ROW_FRACTION * 100} % allowed`,
       { file: fileName, line: f.line, field: f.field });
   };
   const cell = (r: Row, c: number) => r.src[c].slice(r.start[c], r.end[c]);

@@ -42,15 +42,21 @@ type DataKind = 'number' | 'datetime' | 'date' | 'clock' | 'text' | 'empty';
 
 const parts = newParts();
 
-function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number; dmy: boolean; mdy: boolean; dayMonth: boolean } {
+function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number; min: number; fractional: boolean; dmy: boolean; mdy: boolean; dayMonth: boolean } {
   const dec = layout.decimal.charCodeAt(0);
   const counts: Record<DataKind, number> = { number: 0, datetime: 0, date: 0, clock: 0, text: 0, empty: 0 };
-  let maxAbs = 0, dmy = false, mdy = false, dayMonth = false;
+  let maxAbs = 0, min = Infinity, fractional = false, dmy = false, mdy = false, dayMonth = false;
   for (const r of layout.sample) {
     const f = r.fields[col] ?? '';
     if (f.trim() === '') { counts.empty++; continue; }
     const v = parseNumber(f, 0, f.length, dec);
-    if (Number.isFinite(v)) { counts.number++; maxAbs = Math.max(maxAbs, Math.abs(v)); continue; }
+    if (Number.isFinite(v)) {
+      counts.number++;
+      maxAbs = Math.max(maxAbs, Math.abs(v));
+      min = Math.min(min, v);
+      if (!Number.isInteger(v)) fractional = true;
+      continue;
+    }
     if (scanDateTime(f, 0, f.length, parts)) {
       if (parts.hasDate && !parts.yearFirst) {
         dayMonth = true;
@@ -64,7 +70,7 @@ function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number
   }
   let kind: DataKind = 'empty', best = 0;
   for (const k of ['number', 'datetime', 'date', 'clock', 'text'] as DataKind[]) if (counts[k] > best) { kind = k; best = counts[k]; }
-  return { kind, maxAbs, dmy, mdy, dayMonth };
+  return { kind, maxAbs, min, fractional, dmy, mdy, dayMonth };
 }
 
 function pickColumn(sel: string | number, names: string[], fileName: string, field: string): number {
@@ -119,7 +125,10 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
       say(ms ? `epoch milliseconds (${unitMs === 1 ? 'unit ms' : 'values of 1e11 and more'})` : `epoch seconds (${unitMs === 1000 ? 'unit s' : 'values below 1e11'})`);
       return { kind: 'number', col: c, scaleMs: ms ? 1 : 1000, offsetMs: 0, absolute: true };
     }
-    if ((h.timeKind === 'absolute' || h.timeKind === 'date') && k.maxAbs >= 2e4 && k.maxAbs < 1.2e5) {
+    // Serial day numbers 20000–120000 are the years 1954–2228. A header naming a date says so;
+    // a bare "time" header needs fractional values that all lie in that range.
+    const serialRange = k.min >= 2e4 && k.maxAbs < 1.2e5;
+    if (unitMs === null && serialRange && (h.timeKind === 'absolute' || h.timeKind === 'date' || (h.timeKind === 'unknown' && k.fractional))) {
       say('spreadsheet serial day numbers (1900 date system: day 25569 is 1970-01-01)');
       return { kind: 'number', col: c, scaleMs: 86_400_000, offsetMs: -25569 * 86_400_000, absolute: true };
     }

@@ -46,6 +46,27 @@ describe('pressure to head', () => {
     expect(s.levelM[1] / s.levelM[0]).toBeCloseTo(999.97 / 995.65, 4);
     expect(s.notes.find((n) => n.code === 'density')!.message).toMatch(/temperature column/);
   });
+  it('keeps a given fluid density over the temperature column, and says so', () => {
+    const s = read(one('Pressure gauge (kPa)', '12', '30'), { fluidDensityKgM3: 1200 });
+    expect(s.levelM[0]).toBeCloseTo(12000 / (1200 * G), 12);
+    expect(s.notes.find((n) => n.code === 'density')!.message).toMatch(/as given.*not used/);
+  });
+  it('refuses a water temperature outside the density formula, naming the line', () => {
+    const text = 'Timestamp,Pressure gauge (kPa),Temp (°C)\n2026-05-04T10:00:00Z,10,20\n2026-05-04T10:00:01Z,10,-5\n';
+    const e = refusal(() => read(text));
+    expect(e.line).toBe(3);
+    expect(e.field).toBe('Temp (°C)');
+  });
+  it('reads a pressure that names no reference as gauge, or as absolute when a barometric log is given', () => {
+    const text = 'Timestamp,Pressure (kPa)\n2026-05-04T10:00:30Z,111\n2026-05-04T10:00:40Z,110\n';
+    const gauge = read(text, { fluidDensityKgM3: 1000 });
+    expect(gauge.columns[1].role).toBe('gauge-pressure');
+    expect(gauge.notes.find((n) => n.code === 'pressure-reference')!.message).toMatch(/--quantity/);
+    const baro = 'Stamp,Baro (kPa)\n2026-05-04T10:00:00Z,101\n2026-05-04T10:01:00Z,101\n';
+    const abs = read(text, { fluidDensityKgM3: 1000, baro: { bytes: enc(baro), fileName: 'b.csv' } });
+    expect(abs.columns[1].role).toBe('absolute-pressure');
+    expect(abs.levelM[0]).toBeCloseTo(10000 / (1000 * G), 9);
+  });
   it('subtracts a barometric log interpolated in time from absolute pressure', () => {
     const abs = 'Timestamp;P_abs (kPa)\n2026-05-04T10:00:30Z;111,0\n2026-05-04T10:01:00Z;110,9\n2026-05-04T10:01:30Z;110,8\n';
     const baro = 'Stamp,Baro (hPa)\n2026-05-04T10:00:00Z,1000\n2026-05-04T10:01:00Z,1010\n2026-05-04T10:02:00Z,1020\n';

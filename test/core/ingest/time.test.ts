@@ -85,6 +85,12 @@ describe('timestamps', () => {
     expect(s.timeS[1]).toBeCloseTo(1, 3);
     expect(s.notes.some((n) => /1900 date system/.test(n.message))).toBe(true);
   });
+  it('takes fractional serial days under a bare "Time" header, but not whole seconds', () => {
+    expect(read(log('Time', ['46146.5', '46146.50001157407'])).t0EpochMs).toBe(Date.UTC(1899, 11, 30) + 46146.5 * 86_400_000);
+    const secs = read(log('Time', ['30000', '30001']));
+    expect(secs.t0EpochMs).toBeNull();
+    expect(secs.warnings.map((w) => w.code)).toContain('time-unit-assumed');
+  });
   it('rolls clock-only times over midnight', () => {
     const s = read(log('Time', ['23:59:58', '23:59:59', '00:00:00']));
     expect(Array.from(s.timeS)).toEqual([0, 1, 2]);
