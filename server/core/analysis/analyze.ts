@@ -57,11 +57,26 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const knownSensorZeroM = vessel.sensor?.zeroElevationM ?? (fromTop ? 0 : null);
   const setting: DrainSetting = { shape: makeShape(vessel.shape), outletElevationM: vessel.outlet.elevationM, gravity };
   const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs) : undefined;
-  const choice = chooseDrainWindow(series, {
-    outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
-    window,
-  });
+  const choice = withFile(request.log.fileName, () =>
+    chooseDrainWindow(series, {
+      outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
+      window,
+    }),
+  );
   return { vessel, setting, series, choice, knownSensorZeroM, density };
+}
+
+/** Refusals about the log's content name the log file (the window module only sees arrays). */
+function withFile<T>(file: string, body: () => T): T {
+  try {
+    return body();
+  } catch (e) {
+    if (e instanceof InputError && !e.file) {
+      const internal = e.field === 'levelM' || e.field === 'timeS';
+      throw new InputError(e.message, { file, line: e.line, field: internal ? undefined : e.field });
+    }
+    throw e;
+  }
 }
 
 export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks = {}): AnalysisOutcome {
