@@ -243,6 +243,8 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
       notes.push({ code: 'temperature-unit', message: `"${layout.names[tc]}" gives no temperature unit: read as °C` });
     }
     roles[tc] = 'temperature';
+    reasons[tc] += `; read as temperature in ${tu}`;
+    notes.push({ code: 'temperature-column', message: `"${layout.names[tc]}" is the temperature column, in ${tu}` });
     temperature = { col: tc, name: layout.names[tc], unit: tu };
   }
 

@@ -111,12 +111,11 @@ function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro
   return raw;
 }
 
-function readBaro(opts: ReadOptions, fileName: string): { series: BaroSeries; raw: Raw } | null {
+function readBaro(opts: ReadOptions): { series: BaroSeries; raw: Raw } | null {
   if (!opts.baro) return null;
   const { bytes, fileName: baroName } = opts.baro;
   const raw = readRaw(bytes, baroName, { tz: opts.tz, dateOrder: opts.dateOrder }, true);
   if (!raw.absolute) throw new InputError('the barometric log needs dates and times (not elapsed time)', { file: baroName });
-  void fileName;
   const n = raw.col.n;
   const pa = new Float64Array(n);
   for (let i = 0; i < n; i++) pa[i] = raw.col.value[i] * raw.plan.value.factor;
@@ -127,7 +126,7 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
   const raw = readRaw(bytes, fileName, options, false);
   const { col, plan, layout } = raw;
   const notes = raw.notes, warnings = raw.warnings;
-  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options, fileName) : null;
+  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options) : null;
   if (baro) warnings.push(...baro.raw.warnings.map((w) => ({ code: `baro-${w.code}`, message: `barometric log: ${w.message}` })));
   const { levelM, notes: qNotes } = toLevelM({ n: col.n, timeMs: col.timeMs, value: col.value, line: col.line, tempC: raw.tempC, absoluteTime: raw.absolute },
     plan, options, fileName, baro?.series ?? null);

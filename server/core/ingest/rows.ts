@@ -125,12 +125,24 @@ function plainPiece(text: string, cut: number, line: number, rs: RowSource, deli
         row.count = Math.min(count, MAX_FIELDS);
       }
       row.line = line;
-      if (!(row.count === 1 && text.slice(p, e).trim() === '')) onRow(row);
+      if (!blankRow(row)) onRow(row); // stops at the first non-blank character
     }
     line++;
     p = next;
   }
   return { line, stop: cut };
+}
+
+/** Only empty or blank fields: a blank line, or the ",,," rows spreadsheets pad with. */
+function blankRow(row: Row): boolean {
+  for (let i = 0; i < row.count; i++) {
+    const src = row.src[i];
+    for (let k = row.start[i]; k < row.end[i]; k++) {
+      const c = src.charCodeAt(k);
+      if (c !== 32 && c !== 9) return false;
+    }
+  }
+  return true;
 }
 
 /** Simple quoted fields on one line; false when the line needs a full CSV parser. */

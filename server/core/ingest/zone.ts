@@ -7,6 +7,7 @@ import { InputError } from '../errors.js';
 import { daysFromCivil } from './datetime.js';
 
 const HOUR = 3_600_000;
+const WINDOW = 26 * HOUR;
 
 export type Resolution = 'ok' | 'repeated' | 'skipped';
 
@@ -56,12 +57,13 @@ export class ZoneResolver {
     const bucket = Math.floor(wall / HOUR);
     let offs = this.cache.get(bucket);
     if (!offs) {
-      // The offsets in force half a day either side cover any single transition; when they
-      // differ, find the transition instant to the second by bisection.
-      const lo = wall - 12 * HOUR, a = this.offsetAt(lo), b = this.offsetAt(wall + 12 * HOUR);
+      // The instant lies within 14 h of the wall time (the largest offsets); the offsets in
+      // force 26 h either side cover that with margin, and zones change offset months apart.
+      // When they differ, find the transition instant to the second by bisection.
+      const lo = wall - WINDOW, hi = wall + WINDOW, a = this.offsetAt(lo), b = this.offsetAt(hi);
       if (a === b) offs = [a];
       else {
-        let l = lo, r = wall + 12 * HOUR;
+        let l = lo, r = hi;
         while (r - l > 1000) {
           const m = Math.floor((l + r) / 2000) * 1000;
           if (this.offsetAt(m) === a) l = m;

@@ -71,3 +71,11 @@ describe('quoted fields that need a full CSV parser', () => {
     expect(Array.from(s.sourceLine)).toEqual([2, 3, 5]);
   });
 });
+
+describe('padding rows', () => {
+  it('skips rows of empty fields as blank lines, without a warning', () => {
+    const s = read(['Stamp,Level (m),Note', ...rows.map((t) => `${t},1,`), ',,', ' , ,', ''].join('\n'));
+    expect(s.timeS.length).toBe(3);
+    expect(s.warnings).toEqual([]);
+  });
+});
