@@ -9,7 +9,8 @@
  * product) and the usual double-double library recipes: exp by ln 2 and 2^-9 argument reduction
  * with a Taylor series and repeated squaring; log, atan and sqrt by one Newton step from the
  * double result; sin/cos by reduction modulo π/2 and a Taylor series. Accuracy ~1e-31 relative
- * for the arguments the StRD models produce (|angles| ≪ 1e6).
+ * for the arguments the StRD models produce (|angles| ≪ 1e6). Below ~1e-292 the low part is a
+ * subnormal double and the precision falls back toward a double's.
  */
 
 export interface Dd {
@@ -19,6 +20,19 @@ export interface Dd {
 
 /** 2^27 + 1: Dekker's splitting constant for 53-bit doubles. */
 const SPLITTER = 134217729;
+/** Above 2^996 the split's SPLITTER·a would overflow: split a scaled copy instead. */
+const SPLIT_LIMIT = 2 ** 996;
+
+/** The upper 26 bits of a (Dekker's split); a − upper(a) is the exact lower part. */
+function upper(a: number): number {
+  if (a > SPLIT_LIMIT || a < -SPLIT_LIMIT) {
+    const b = a * 2 ** -28;
+    const t = SPLITTER * b;
+    return (t - (t - b)) * 2 ** 28;
+  }
+  const t = SPLITTER * a;
+  return t - (t - a);
+}
 
 export function fromNumber(a: number): Dd {
   return { hi: a, lo: 0 };
@@ -70,11 +84,9 @@ export function sub(a: Dd, b: Dd): Dd {
 /** Exact product of two doubles as a double-double (Dekker). */
 export function twoProd(a: number, b: number): Dd {
   const p = a * b;
-  let t = SPLITTER * a;
-  const ah = t - (t - a);
+  const ah = upper(a);
   const al = a - ah;
-  t = SPLITTER * b;
-  const bh = t - (t - b);
+  const bh = upper(b);
   const bl = b - bh;
   const e = ah * bh - p + ah * bl + al * bh + al * bl;
   return { hi: p, lo: e };
@@ -216,11 +228,9 @@ function kAdd(ah: number, al: number, bh: number, bl: number): void {
 
 function kMul(ah: number, al: number, bh: number, bl: number): void {
   const p = ah * bh;
-  let t = SPLITTER * ah;
-  const ahh = t - (t - ah);
+  const ahh = upper(ah);
   const ahl = ah - ahh;
-  t = SPLITTER * bh;
-  const bhh = t - (t - bh);
+  const bhh = upper(bh);
   const bhl = bh - bhh;
   const e = ahh * bhh - p + ahh * bhl + ahl * bhh + ahl * bhl + (ah * bl + al * bh);
   R[0] = p + e;
@@ -306,6 +316,11 @@ export function exp(a: Dd): Dd {
 export function log(a: Dd): Dd {
   if (!(a.hi > 0)) return fromNumber(a.hi === 0 ? -Infinity : NaN);
   if (a.hi === Infinity) return a;
+  if (a.hi > 1e250 || a.hi < 1e-250) {
+    // e^{−x} would be near the subnormal range: take the power of two out first (exact).
+    const k = Math.round(Math.log2(a.hi));
+    return add(log(ldexp(a, -k)), mulNum(LN2, k));
+  }
   // Newton on e^x = a: x ← x + a·e^{−x} − 1, from the double logarithm (error 1e-16 → 1e-32).
   const x = Math.log(a.hi);
   return addNum(addNum(mul(a, exp(fromNumber(-x))), -1), x);
