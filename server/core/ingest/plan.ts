@@ -6,7 +6,7 @@
 import { InputError } from '../errors.js';
 import { lengthFactorToM, pressureFactorToPa, temperatureUnit } from '../units/index.js';
 import { newParts, scanDateTime } from './datetime.js';
-import { readHeader, timeUnitMs, unitKind, type HeaderReading } from './header.js';
+import { readHeader, timeUnitMs, type HeaderReading } from './header.js';
 import type { Layout } from './layout.js';
 import { parseNumber } from './numbers.js';
 import type { DateOrder, Quantity, ReadOptions } from './options.js';
@@ -251,7 +251,7 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
   const columns: DetectedColumn[] = layout.names.map((header, index) => {
     const h = heads[index];
     const role = roles[index] ?? 'other';
-    const u = index === vc ? unit : h.unit && unitKind(h.unit) ? h.unit : h.unit;
+    const u = index === vc ? unit : index === temperature?.col ? temperature.unit : h.unit;
     const reason = roles[index] ? reasons[index] : `${reasons[index]}; not used${h.role !== 'other' ? ` (looked like ${h.role})` : ''}`;
     return { index, header, role, unit: u, reason };
   });
