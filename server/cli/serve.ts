@@ -46,11 +46,11 @@ export async function run(argv: string[]): Promise<number> {
   });
   const address = await app.listen({ host: cfg.host, port: cfg.port });
   say(`efflux listening on ${address} (data in ${cfg.dataDir})`);
-  say(`API docs: ${address}/api/docs`);
   if (firstToken) {
     say('first start: an admin token was created. It is shown this once; keep it safe:');
     say(`  ${firstToken}`);
   }
+  say(`API docs: ${address}/api/docs`); // last line of the start-up banner (tests wait for it)
 
   return new Promise<number>((resolve) => {
     closeWithGrace({ delay: 20_000 }, async ({ signal, err }) => {

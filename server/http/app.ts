@@ -136,8 +136,15 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     transformObject: jsonSchemaTransformObject,
   });
   await app.register(swaggerUi, { routePrefix: DOCS_PREFIX });
+  // While stopping, answers that were in flight close their connection, so the process does not
+  // wait out keep-alive timeouts before it can exit.
+  let closing = false;
+  app.addHook('preClose', async () => {
+    closing = true;
+  });
   app.addHook('onSend', async (request, reply) => {
     if (request.url.startsWith(DOCS_PREFIX)) reply.header('content-security-policy', DOCS_CSP);
+    if (closing) reply.header('connection', 'close');
   });
   if (opts.webRoot && existsSync(opts.webRoot)) await app.register(fastifyStatic, { root: opts.webRoot, prefix: '/' });
 
