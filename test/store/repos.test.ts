@@ -108,3 +108,24 @@ describe('users', () => {
     expect(() => s.db.prepare('DELETE FROM maintenance_events').run()).toThrow(/append-only/);
   });
 });
+
+describe('JSON rendered by SQLite for the hot reads', () => {
+  it('matches the objects the repositories build, reviewed or not, with and without a barometric file', () => {
+    const { s, v, t } = withTest();
+    const t2 = s.tests.createPending(SYSTEM_ACTOR, {
+      vesselId: v.id,
+      outletId: null,
+      log: { bytes: new TextEncoder().encode('x\n1\n'), fileName: 'b.csv' },
+      baro: { bytes: new TextEncoder().encode('p\n101.3\n'), fileName: 'baro.csv' },
+      settings: {},
+    });
+    const f = s.fits.storeFirst(SYSTEM_ACTOR, t.id, { a: [1, 2.5e-7, null], s: 'é' }, { settings: { window: '1..2' }, result: FIT_RESULT, vessel: VESSEL });
+    expect(JSON.parse(s.fits.getJson(f.id))).toEqual(s.fits.get(f.id));
+    s.fits.review(SYSTEM_ACTOR, f.id, 'rejected', 'noisy');
+    expect(JSON.parse(s.fits.getJson(f.id))).toEqual(s.fits.get(f.id));
+    const page = s.tests.listByVesselJson(v.id, 10, 0);
+    expect(JSON.parse(page.itemsJson)).toEqual(s.tests.listByVessel(v.id, 10, 0).items);
+    expect(JSON.parse(page.itemsJson).map((x: { id: number }) => x.id)).toEqual([t2.id, t.id]);
+    expect(() => s.fits.getJson(999)).toThrow(NotFoundError);
+  });
+});

@@ -21,7 +21,8 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/fits/:id',
     { config: { roles: READERS }, schema: { tags: ['fits'], summary: 'One fit', params: idParams, response: { 200: fit, ...protectedErrors } } },
-    async (request) => app.store.fits.get(request.params.id),
+    // Stored JSON text sent as is (same shape as the schema; checked by the store's tests).
+    async (request, reply) => reply.type('application/json; charset=utf-8').serializer((x: string) => x).send(app.store.fits.getJson(request.params.id) as never),
   );
 
   app.post(
