@@ -5,7 +5,7 @@ import { dischargeCoefficientQuantity, effectiveAreaQuantity, nominalAreaM2, typ
 import { compareModels, type ModelComparison } from './compare.js';
 import { headBands, type HeadBand } from './head-bands.js';
 import { profileIntervalEffectiveArea, type ProfileInterval } from './profile.js';
-import { startTheta } from './start-values.js';
+import { refineStartOnSubsample, startTheta } from './start-values.js';
 import type { ModelTerms } from './terms.js';
 import { uncertaintyFor, type UncertaintyModel } from './uncertainty.js';
 import { fitVariant, type FittedVariant } from './variant.js';
@@ -74,8 +74,8 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
   const t0 = now();
   const datumRequired = input.knownSensorZeroM === null;
   const zs0 = input.knownSensorZeroM ?? 0;
-  const start = startTheta(setting, timeS, levelM, zs0);
   const data = { setting, timeS, levelM };
+  const start = refineStartOnSubsample(data, terms, startTheta(setting, timeS, levelM, zs0));
   const best = fitVariant(data, terms, start);
   const unc = uncertaintyFor(best);
   const { solve } = best;

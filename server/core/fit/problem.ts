@@ -25,7 +25,6 @@ export function drainProblem(input: DrainProblemInput): LeastSquaresProblem {
   const theta = Float64Array.from(input.theta);
   const m = timeS.length;
   const n = free.length;
-  const model = new Float64Array(m);
   return {
     m,
     n,
@@ -33,8 +32,9 @@ export function drainProblem(input: DrainProblemInput): LeastSquaresProblem {
     upper: input.upper,
     evaluate(p, r, J) {
       for (let j = 0; j < n; j++) theta[free[j]] = p[j];
-      if (!predictReadings(setting, solution, theta, timeS, model, J, free)) return false;
-      for (let i = 0; i < m; i++) r[i] = model[i] - levelM[i];
+      // the model's readings go straight into r, which then becomes the residual in place
+      if (!predictReadings(setting, solution, theta, timeS, r, J, free)) return false;
+      for (let i = 0; i < m; i++) r[i] -= levelM[i];
       return true;
     },
   };

@@ -1,4 +1,6 @@
 import { THETA, THETA_SIZE, type DrainSetting } from '../drain/parameters.js';
+import type { ModelTerms } from './terms.js';
+import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
 
 /**
  * Start values from the data alone: the mean flow between the first and last tenth of the
@@ -44,4 +46,32 @@ export function startTheta(
   theta[THETA.inflow] = 0;
   theta[THETA.exponent] = 0.5;
   return theta;
+}
+
+/** Samples in the quick fit that refines the start; the final fit always uses every sample. */
+const QUICK_FIT_SAMPLES = 2000;
+
+/**
+ * A fit on every stride-th sample (first and last included, so the span and the ODE's grid are
+ * the same), used only as the start of the full fit: the full fit then needs a step or two on all
+ * m samples instead of the whole approach. A quick fit that fails leaves the start as it was.
+ */
+export function refineStartOnSubsample(input: VariantInput, terms: ModelTerms, start: Float64Array): Float64Array {
+  const m = input.timeS.length;
+  const stride = Math.floor(m / QUICK_FIT_SAMPLES);
+  if (stride < 4) return start;
+  const count = Math.floor((m - 1) / stride) + 1 + ((m - 1) % stride ? 1 : 0);
+  const t = new Float64Array(count);
+  const y = new Float64Array(count);
+  let j = 0;
+  for (let i = 0; i < m; i += stride, j++) (t[j] = input.timeS[i]), (y[j] = input.levelM[i]);
+  if (j < count) (t[j] = input.timeS[m - 1]), (y[j] = input.levelM[m - 1]);
+  let quick: FittedVariant;
+  try {
+    quick = fitVariant({ setting: input.setting, timeS: t, levelM: y }, terms, start);
+  } catch {
+    return start;
+  }
+  if (!quick.solve.converged || !quick.theta.every(Number.isFinite)) return start;
+  return quick.theta;
 }

@@ -1,4 +1,4 @@
-import { solveLeastSquares } from '../lsq/index.js';
+import { solveLeastSquares, type SolveWorkspace } from '../lsq/index.js';
 import type { SolveResult } from '../lsq/types.js';
 import { solutionFor, type DrainSolution } from '../drain/predict.js';
 import type { DrainSetting } from '../drain/parameters.js';
@@ -22,7 +22,17 @@ export interface VariantInput {
   levelM: Float64Array;
 }
 
-export function fitVariant(input: VariantInput, terms: ModelTerms, start: Float64Array, fixed?: { index: number; value: number }): FittedVariant {
+/**
+ * `work` lends the solver's m-sized buffers across refits of the same data (profile, comparison),
+ * so a series of refits allocates them once.
+ */
+export function fitVariant(
+  input: VariantInput,
+  terms: ModelTerms,
+  start: Float64Array,
+  fixed?: { index: number; value: number },
+  work?: SolveWorkspace,
+): FittedVariant {
   let free = freeIndices(terms);
   const base = Float64Array.from(start);
   if (fixed) {
@@ -33,6 +43,6 @@ export function fitVariant(input: VariantInput, terms: ModelTerms, start: Float6
   const { lower, upper } = boundsFor(free);
   const problem = drainProblem({ setting: input.setting, solution, timeS: input.timeS, levelM: input.levelM, theta: base, free, lower, upper });
   const p0 = Float64Array.from(free, (j) => base[j]);
-  const solve = solveLeastSquares(problem, p0, { maxIterations: 200, ftol: 1e-12, xtol: 1e-12 });
+  const solve = solveLeastSquares(problem, p0, { maxIterations: 200, ftol: 1e-12, xtol: 1e-12 }, work);
   return { terms, solution, free, theta: expandTheta(base, free, solve.p), solve, k: free.length };
 }

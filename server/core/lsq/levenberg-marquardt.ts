@@ -60,19 +60,47 @@ function validate(problem: LeastSquaresProblem, p0: Float64Array): { lower: Floa
   return { lower, upper };
 }
 
-export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array, options: SolveOptions = {}): SolveResult {
+/**
+ * Work arrays a caller may lend to a series of solves of the same size (refits): the m and m×n
+ * buffers are then allocated once instead of per solve. Results never alias them.
+ */
+export interface SolveWorkspace {
+  m: Float64Array[];
+  mn: Float64Array[];
+}
+
+export function createSolveWorkspace(): SolveWorkspace {
+  return { m: [], mn: [] };
+}
+
+function borrow(pool: Float64Array[], k: number, size: number): Float64Array {
+  if (!pool[k] || pool[k].length < size) pool[k] = new Float64Array(size);
+  return pool[k].length === size ? pool[k] : pool[k].subarray(0, size);
+}
+
+/** ‖r‖ when every entry is finite, else NaN; the plain sum of squares serves unless it left the safe range. */
+function residualNorm(r: Float64Array): number {
+  let s = 0;
+  for (let i = 0; i < r.length; i++) s += r[i] * r[i];
+  if (s > 1e-280 && s < 1e280) return Math.sqrt(s);
+  if (s === 0) return 0;
+  return finite(r) ? euclideanNorm(r) : NaN;
+}
+
+export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array, options: SolveOptions = {}, work?: SolveWorkspace): SolveResult {
   const opt = { ...DEFAULT_SOLVE_OPTIONS, ...stripUndefined(options) };
   const { lower, upper } = validate(problem, p0);
   const { m, n } = problem;
 
-  // Everything the iteration touches is allocated once here.
+  // Everything the iteration touches is allocated once here (or lent by the caller).
+  const ws = work ?? createSolveWorkspace();
   const x = new Float64Array(n);
   for (let j = 0; j < n; j++) x[j] = Math.min(upper[j], Math.max(lower[j], p0[j]));
-  const fvec = new Float64Array(m);
-  const ftrial = new Float64Array(m);
-  const scratch = new Float64Array(m);
-  const J = new Float64Array(m * n);
-  const a = new Float64Array(m * n);
+  const fvec = borrow(ws.m, 0, m);
+  const ftrial = borrow(ws.m, 1, m);
+  const scratch = borrow(ws.m, 2, m);
+  const J = borrow(ws.mn, 0, m * n);
+  const a = borrow(ws.mn, 1, m * n);
   const diag = new Float64Array(n);
   const colNorm = new Float64Array(n);
   const grad = new Float64Array(n);
@@ -90,24 +118,31 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
 
   let evaluations = 0;
   let jacobianEvaluations = 0;
-  const residualsAt = (p: Float64Array, r: Float64Array): boolean => {
+  /** ‖r(p)‖ into r, or NaN when p is refused or r is not finite. */
+  const residualsAt = (p: Float64Array, r: Float64Array): number => {
     evaluations++;
-    return problem.evaluate(p, r, null) !== false && finite(r);
+    return problem.evaluate(p, r, null) === false ? NaN : residualNorm(r);
   };
+  // Residuals and Jacobian at p into fvec and J; J's finiteness is judged by the column sums of the
+  // next pass (a NaN or ±∞ entry makes its column's sum of squares non-finite).
+  let jacobianNorm = NaN;
   const jacobianAt = (p: Float64Array): boolean => {
     evaluations++;
     jacobianEvaluations++;
-    return problem.evaluate(p, fvec, J) !== false && finite(fvec) && finite(J);
+    if (problem.evaluate(p, fvec, J) === false) return false;
+    jacobianNorm = residualNorm(fvec);
+    return !Number.isNaN(jacobianNorm);
   };
 
   let iterations = 0;
   let stopReason: StopReason | null = null;
   let jacobianCurrent = false;
 
-  if (!residualsAt(x, fvec)) {
-    return failedStart(problem, x, fvec, evaluations);
-  }
-  let fnorm = euclideanNorm(fvec);
+  // The start is evaluated with its Jacobian at once: the first iteration needs both.
+  let startOk = jacobianAt(x);
+  const startJacobianRefused = !startOk;
+  if (startJacobianRefused && Number.isNaN(residualsAt(x, fvec))) return failedStart(problem, x, fvec, evaluations);
+  let fnorm = startOk ? jacobianNorm : residualNorm(fvec);
   let par = 0;
   let delta = 0;
   let xnorm = 0;
@@ -141,7 +176,8 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
       stopReason = 'max-iterations';
       break;
     }
-    if (!jacobianAt(x)) {
+    if (startOk) startOk = false;
+    else if (startJacobianRefused || !jacobianAt(x)) {
       stopReason = 'not-finite';
       break;
     }
@@ -164,7 +200,16 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
         grad[j] += v * ri;
       }
     }
-    for (let j = 0; j < n; j++) colNorm[j] = Math.sqrt(colNorm[j]);
+    let jacobianFinite = true;
+    for (let j = 0; j < n; j++) {
+      if (!Number.isFinite(colNorm[j]) || !Number.isFinite(grad[j])) jacobianFinite = false;
+      colNorm[j] = Math.sqrt(colNorm[j]);
+    }
+    if (!jacobianFinite && !finite(J)) {
+      stopReason = 'not-finite';
+      jacobianCurrent = false;
+      break;
+    }
 
     // Active set: a parameter on a bound whose descent direction (−gradient) leaves the box.
     nf = 0;
@@ -244,9 +289,10 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
       }
       if (iterations === 1) delta = Math.min(delta, pnorm);
 
-      const ok = residualsAt(trial, ftrial);
+      const norm1 = residualsAt(trial, ftrial);
+      const ok = !Number.isNaN(norm1);
       lastTrialFailed = !ok;
-      const fnorm1 = ok ? euclideanNorm(ftrial) : Infinity;
+      const fnorm1 = ok ? norm1 : Infinity;
       const actred = 0.1 * fnorm1 < fnorm ? 1 - (fnorm1 / fnorm) ** 2 : -1;
 
       // w3 = R·Pᵀ·s, so ‖J·s‖ = ‖w3‖ and rᵀJ·s = qtf·w3.
@@ -308,11 +354,11 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
   }
 
   const reason: StopReason = stopReason ?? 'max-iterations';
-  if (!jacobianCurrent && !jacobianAt(x)) {
+  if (!jacobianCurrent && !(jacobianAt(x) && finite(J))) {
     // The accepted point's Jacobian is unusable; report what we have.
-    return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, 'not-finite', lower, upper, false);
+    return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, 'not-finite', lower, upper, false, a);
   }
-  return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, reason, lower, upper, true);
+  return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, reason, lower, upper, true, a);
 }
 
 function scaledNorm(d: Float64Array, v: Float64Array, n: number): number {
@@ -345,6 +391,7 @@ function finish(
   lower: Float64Array,
   upper: Float64Array,
   jacobianUsable: boolean,
+  scratchMn: Float64Array,
 ): SolveResult {
   const { m, n } = problem;
   let sumSquares = 0;
@@ -354,7 +401,7 @@ function finish(
   let rank: number;
   if (jacobianUsable) {
     // Full pivoted QR of J at p, then the SVD of the n×n factor.
-    const a = new Float64Array(m * n);
+    const a = scratchMn;
     for (let j = 0; j < n; j++) for (let i = 0; i < m; i++) a[j * m + i] = J[i * n + j];
     const w = { ipvt: new Int32Array(n), rdiag: new Float64Array(n), acnorm: new Float64Array(n), wa: new Float64Array(n) };
     householderQr(a, m, n, true, w);
