@@ -6,15 +6,19 @@ import { ConflictError, NotFoundError } from './errors.js';
 import type { TestRepo } from './tests.js';
 
 /**
- * The API's fit object rendered by SQLite from the stored JSON text: the hot read path skips
- * JSON.parse and re-serialising a result of tens of KiB. Must match toFit (a store test checks).
+ * The API's fit object as JSON text, spliced from the stored JSON columns without parsing them:
+ * the hot read path skips JSON.parse and re-serialising a result of tens of KiB. The stored texts
+ * were written by JSON.stringify, so they are valid JSON. Must match toFit (a store test checks).
  */
-const FIT_JSON = `json_object('id', id, 'testId', test_id, 'vesselId', vessel_id, 'outletId', outlet_id,
-  'settings', json(settings), 'vessel', json(vessel_spec), 'result', json(result), 'engineVersion', engine_version,
-  'status', status, 'supersededBy', superseded_by,
-  'review', json(CASE WHEN reviewed_at IS NULL THEN NULL
-    ELSE json_object('comment', review_comment, 'by', reviewed_by, 'at', reviewed_at) END),
-  'createdBy', created_by, 'createdAt', created_at)`;
+function fitJson(r: FitRow): string {
+  const review = r.reviewed_at ? JSON.stringify({ comment: r.review_comment, by: r.reviewed_by, at: r.reviewed_at }) : 'null';
+  return (
+    `{"id":${r.id},"testId":${r.test_id},"vesselId":${r.vessel_id},"outletId":${JSON.stringify(r.outlet_id)},` +
+    `"settings":${r.settings},"vessel":${r.vessel_spec},"result":${r.result},"engineVersion":${JSON.stringify(r.engine_version)},` +
+    `"status":${JSON.stringify(r.status)},"supersededBy":${JSON.stringify(r.superseded_by)},"review":${review},` +
+    `"createdBy":${JSON.stringify(r.created_by)},"createdAt":${JSON.stringify(r.created_at)}}`
+  );
+}
 
 export type FitStatus = 'draft' | 'approved' | 'rejected';
 
@@ -110,7 +114,6 @@ export class FitRepo {
         status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
         @cda, @cd, 'draft', @createdBy, @now)`),
       get: db.prepare('SELECT * FROM fits WHERE id = ?'),
-      getJson: db.prepare(`SELECT ${FIT_JSON} FROM fits WHERE id = ?`).pluck(),
       byVessel: db.prepare('SELECT * FROM fits WHERE vessel_id = ? ORDER BY id DESC LIMIT ? OFFSET ?'),
       countVessel: db.prepare('SELECT count(*) FROM fits WHERE vessel_id = ?').pluck(),
       byTest: db.prepare('SELECT * FROM fits WHERE test_id = ? ORDER BY id'),
@@ -128,9 +131,9 @@ export class FitRepo {
 
   /** The same object as get(id), as JSON text. */
   getJson(id: number): string {
-    const text = this.q.getJson.get(id) as string | undefined;
-    if (text === undefined) throw new NotFoundError('fit', id);
-    return text;
+    const row = this.q.get.get(id) as FitRow | undefined;
+    if (!row) throw new NotFoundError('fit', id);
+    return fitJson(row);
   }
 
   listByVessel(vesselId: number, limit: number, offset: number): { items: StoredFit[]; total: number } {

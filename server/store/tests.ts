@@ -88,14 +88,17 @@ function toTest(r: TestRow): DrainTest {
 const SELECT = `SELECT t.*, l.size AS log_size, b.size AS baro_size FROM drain_tests t
   JOIN raw_files l ON l.sha256 = t.log_sha256 LEFT JOIN raw_files b ON b.sha256 = t.baro_sha256`;
 
-/** The API's test object rendered by SQLite (see FIT_JSON in fits.ts); must match toTest. */
-const TEST_JSON = `json_object('id', t.id, 'vesselId', t.vessel_id, 'outletId', t.outlet_id, 'status', t.status,
-  'sha256', t.log_sha256, 'fileName', t.log_name, 'size', l.size,
-  'baro', json(CASE WHEN t.baro_sha256 IS NULL THEN NULL
-    ELSE json_object('sha256', t.baro_sha256, 'fileName', t.baro_name, 'size', b.size) END),
-  'settings', json(t.settings), 'detected', json(t.detected), 'operator', t.operator, 'loggerId', t.logger_id,
-  'testedAt', t.tested_at, 'notes', t.notes, 'createdBy', t.created_by, 'createdAt', t.created_at)`;
-const FROM = `FROM drain_tests t JOIN raw_files l ON l.sha256 = t.log_sha256 LEFT JOIN raw_files b ON b.sha256 = t.baro_sha256`;
+/** The API's test object as JSON text, spliced from the stored JSON (see fitJson in fits.ts). */
+function testJson(r: TestRow): string {
+  const q = JSON.stringify;
+  const baro = r.baro_sha256 ? q({ sha256: r.baro_sha256, fileName: r.baro_name, size: r.baro_size }) : 'null';
+  return (
+    `{"id":${r.id},"vesselId":${r.vessel_id},"outletId":${q(r.outlet_id)},"status":${q(r.status)},"sha256":${q(r.log_sha256)},` +
+    `"fileName":${q(r.log_name)},"size":${r.log_size},"baro":${baro},"settings":${r.settings},"detected":${r.detected ?? 'null'},` +
+    `"operator":${q(r.operator)},"loggerId":${q(r.logger_id)},"testedAt":${q(r.tested_at)},"notes":${q(r.notes)},` +
+    `"createdBy":${q(r.created_by)},"createdAt":${q(r.created_at)}}`
+  );
+}
 
 /** Drain tests and the raw bytes they were read from. */
 export class TestRepo {
@@ -115,8 +118,6 @@ export class TestRepo {
         @loggerId, @testedAt, @notes, @createdBy, @now)`),
       get: db.prepare(`${SELECT} WHERE t.id = ?`),
       list: db.prepare(`${SELECT} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?`),
-      listJson: db.prepare(`SELECT json_group_array(json(j)) FROM
-        (SELECT ${TEST_JSON} AS j ${FROM} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?)`).pluck(),
       count: db.prepare('SELECT count(*) FROM drain_tests WHERE vessel_id = ?').pluck(),
       countAll: db.prepare('SELECT count(*) FROM drain_tests').pluck(),
       pending: db.prepare(`${SELECT} WHERE t.status = 'pending' ORDER BY t.id`),
@@ -203,7 +204,8 @@ export class TestRepo {
 
   /** The items of listByVessel as a JSON array text (the hot read path). */
   listByVesselJson(vesselId: number, limit: number, offset: number): { itemsJson: string; total: number } {
-    return { itemsJson: this.q.listJson.get(vesselId, limit, offset) as string, total: this.q.count.get(vesselId) as number };
+    const rows = this.q.list.all(vesselId, limit, offset) as TestRow[];
+    return { itemsJson: `[${rows.map(testJson).join(',')}]`, total: this.q.count.get(vesselId) as number };
   }
 
   count(): number {
