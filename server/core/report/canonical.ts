@@ -1,0 +1,23 @@
+/**
+ * Canonical JSON: object keys sorted by code unit, no whitespace, undefined members dropped,
+ * non-finite numbers written as null, numbers as JSON.stringify writes them (shortest round-trip
+ * form). The same value gives the same text on every run, so a hash over it can be recomputed.
+ * Same rules as the store's audit chain (server/store/canonical-json.ts); core keeps its own copy
+ * because it imports nothing of the store.
+ */
+export function canonicalJson(value: unknown): string {
+  if (value === null || typeof value !== 'object') {
+    if (typeof value === 'number' && !Number.isFinite(value)) return 'null';
+    const s = JSON.stringify(value);
+    return s === undefined ? 'null' : s;
+  }
+  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
+  const obj = value as Record<string, unknown>;
+  const keys = Object.keys(obj).filter((k) => obj[k] !== undefined && typeof obj[k] !== 'function').sort();
+  return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k])}`).join(',')}}`;
+}
+
+/** The value as it reads back from its canonical text (NaN → null, undefined dropped). */
+export function normalised<T>(value: T): T {
+  return JSON.parse(canonicalJson(value)) as T;
+}

@@ -1,0 +1,147 @@
+/**
+ * Reads what a report is built from out of the store (shell side): the fit, its test and raw-file
+ * hashes, the vessel and outlet, the other fits of the same test, the audit entries, user names.
+ */
+import type { FitJson } from '../core/analysis-contract.js';
+import type { ApprovedFitRecord, AuditRecord, FitReportRecords, OutletRecord, OutletReportRecords, VesselRecord } from '../core/report/index.js';
+import type { Store } from '../store/index.js';
+import type { StoredFit } from '../store/fits.js';
+import type { Outlet, Vessel } from '../store/vessels.js';
+
+/** A user's name for the report; ids are not what an auditor reads. */
+function userName(store: Store, id: number | null): string | null {
+  if (id === null) return null;
+  try {
+    return store.users.get(id).name;
+  } catch {
+    return `user ${id}`;
+  }
+}
+
+const vesselRecord = (v: Vessel): VesselRecord => ({ id: v.id, site: v.site, name: v.name, revision: v.revision, spec: v.spec });
+const outletRecord = (o: Outlet): OutletRecord => ({
+  id: o.id,
+  key: o.key,
+  type: o.type,
+  boreM: o.boreM,
+  boreToleranceM: o.boreToleranceM,
+  elevationM: o.elevationM,
+  actionThreshold: o.actionThreshold,
+  retiredAt: o.retiredAt,
+});
+
+const numberAt = (r: Record<string, unknown>, key: string) => {
+  const v = (r[key] as { value?: unknown } | null)?.value;
+  return typeof v === 'number' ? v : null;
+};
+
+function auditFor(store: Store, entityType: string, entityId: number): AuditRecord[] {
+  const out: AuditRecord[] = [];
+  let afterSeq = 0;
+  for (;;) {
+    const page = store.audit.list({ entityType, entityId: String(entityId), afterSeq, limit: 1000 });
+    for (const e of page) out.push({ seq: e.seq, at: e.at, actor: e.actorName, action: e.action, entityType: e.entityType, entityId: e.entityId, hash: e.hash });
+    if (page.length < 1000) return out;
+    afterSeq = page[page.length - 1].seq;
+  }
+}
+
+export function reviewOf(store: Store, f: StoredFit) {
+  if (!f.review || f.status === 'draft') return null;
+  return { decision: f.status as 'approved' | 'rejected', by: userName(store, f.review.by), at: f.review.at!, comment: f.review.comment };
+}
+
+export function fitReportRecords(store: Store, fitId: number): FitReportRecords {
+  const fit = store.fits.get(fitId);
+  const test = store.tests.get(fit.testId);
+  const vessel = store.vessels.get(fit.vesselId);
+  const outlet = fit.outletId === null ? null : (vessel.outlets.find((o) => o.id === fit.outletId) ?? null);
+  const siblings = store.fits.listByTest(fit.testId);
+  const audit = [...auditFor(store, 'test', test.id), ...siblings.flatMap((s) => auditFor(store, 'fit', s.id))];
+  return {
+    vessel: vesselRecord(vessel),
+    outlet: outlet ? outletRecord(outlet) : null,
+    test: {
+      id: test.id,
+      testedAt: test.testedAt,
+      operator: test.operator,
+      loggerId: test.loggerId,
+      notes: test.notes,
+      uploadedAt: test.createdAt,
+      uploadedBy: userName(store, test.createdBy),
+      log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
+      baro: test.baro,
+      detected: test.detected,
+    },
+    fit: {
+      id: fit.id,
+      status: fit.status,
+      createdAt: fit.createdAt,
+      createdBy: userName(store, fit.createdBy),
+      engineVersion: fit.engineVersion,
+      settings: fit.settings,
+      vesselGiven: fit.vessel,
+      result: fit.result as FitJson,
+      review: reviewOf(store, fit),
+      supersededBy: fit.supersededBy,
+    },
+    history: siblings.map((s) => ({
+      id: s.id,
+      status: s.status,
+      createdAt: s.createdAt,
+      createdBy: userName(store, s.createdBy),
+      supersededBy: s.supersededBy,
+      dischargeCoefficient: numberAt(s.result, 'dischargeCoefficient'),
+      effectiveAreaM2: numberAt(s.result, 'effectiveAreaM2'),
+      settings: s.settings,
+    })),
+    audit,
+  };
+}
+
+/** Every fit of a vessel, oldest first (the store pages newest first). */
+export function allFitsOfVessel(store: Store, vesselId: number): StoredFit[] {
+  const out: StoredFit[] = [];
+  for (let offset = 0; ; offset += 500) {
+    const page = store.fits.listByVessel(vesselId, 500, offset);
+    out.push(...page.items);
+    if (out.length >= page.total || page.items.length === 0) break;
+  }
+  return out.sort((a, b) => a.id - b.id);
+}
+
+/** Approved and not superseded: the fits that count in an outlet's history. */
+export const countsInHistory = (f: StoredFit) => f.status === 'approved' && f.supersededBy === null;
+
+export function outletReportRecords(store: Store, outletId: number): OutletReportRecords {
+  const outlet = store.vessels.outlet(outletId);
+  const vessel = store.vessels.get(outlet.vesselId);
+  const fits: ApprovedFitRecord[] = allFitsOfVessel(store, vessel.id)
+    .filter((f) => f.outletId === outletId && countsInHistory(f))
+    .map((f) => {
+      const test = store.tests.get(f.testId);
+      return {
+        fitId: f.id,
+        testId: test.id,
+        testedAt: test.testedAt ?? test.createdAt,
+        log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
+        result: f.result as FitJson,
+        review: reviewOf(store, f)!,
+      };
+    });
+  const events = [];
+  for (let offset = 0; ; offset += 500) {
+    const page = store.events.listByVessel(vessel.id, 500, offset);
+    events.push(...page.items);
+    if (events.length >= page.total || page.items.length === 0) break;
+  }
+  return {
+    vessel: vesselRecord(vessel),
+    outlet: outletRecord(outlet),
+    fits,
+    // an event with no outlet applies to the whole vessel
+    events: events
+      .filter((e) => e.outletId === null || e.outletId === outletId)
+      .map((e) => ({ id: e.id, kind: e.kind, occurredAt: e.occurredAt, notes: e.notes, outletId: e.outletId })),
+  };
+}
