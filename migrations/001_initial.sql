@@ -96,6 +96,8 @@ CREATE TABLE fits (
   vessel_id       INTEGER NOT NULL REFERENCES vessels(id),
   outlet_id       INTEGER REFERENCES outlets(id),
   settings        TEXT NOT NULL CHECK (json_valid(settings)),
+  -- the vessel file the fit was computed with (the vessel may be edited later)
+  vessel_spec     TEXT NOT NULL CHECK (json_valid(vessel_spec)),
   result          TEXT NOT NULL CHECK (json_valid(result)),
   engine_version  TEXT NOT NULL,
   -- copies of two result numbers so trends can be read without parsing every result
@@ -120,7 +122,7 @@ BEGIN SELECT RAISE(ABORT, 'fits are never deleted'); END;
 CREATE TRIGGER fits_immutable BEFORE UPDATE ON fits
 WHEN NEW.id IS NOT OLD.id OR NEW.test_id IS NOT OLD.test_id OR NEW.vessel_id IS NOT OLD.vessel_id
   OR NEW.outlet_id IS NOT OLD.outlet_id OR NEW.settings IS NOT OLD.settings
-  OR NEW.result IS NOT OLD.result OR NEW.engine_version IS NOT OLD.engine_version
+  OR NEW.vessel_spec IS NOT OLD.vessel_spec OR NEW.result IS NOT OLD.result OR NEW.engine_version IS NOT OLD.engine_version
   OR NEW.cda_m2 IS NOT OLD.cda_m2 OR NEW.cd IS NOT OLD.cd
   OR NEW.created_by IS NOT OLD.created_by OR NEW.created_at IS NOT OLD.created_at
   OR (NEW.status IS NOT OLD.status AND OLD.status <> 'draft')
