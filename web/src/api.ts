@@ -1,0 +1,178 @@
+/**
+ * The service's HTTP API, and nothing else. The session lives in an httpOnly cookie set by
+ * POST /api/session, so no token is ever kept by this script. Errors arrive as
+ * application/problem+json and become ApiError with the service's own plain sentence.
+ */
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    message: string,
+    readonly problem: Record<string, unknown> | null,
+  ) {
+    super(message);
+  }
+}
+
+async function parse(res: Response): Promise<unknown> {
+  const type = res.headers.get('content-type') ?? '';
+  if (res.status === 204) return null;
+  if (type.includes('json')) return res.json();
+  return res.text();
+}
+
+export async function api<T>(method: string, url: string, body?: unknown): Promise<T> {
+  const init: RequestInit = { method, credentials: 'same-origin', headers: { accept: 'application/json, application/problem+json' } };
+  if (body instanceof FormData) init.body = body;
+  else if (body !== undefined) {
+    init.body = JSON.stringify(body);
+    (init.headers as Record<string, string>)['content-type'] = 'application/json';
+  }
+  const res = await fetch(url, init);
+  const data = await parse(res);
+  if (!res.ok) {
+    const p = data && typeof data === 'object' ? (data as Record<string, unknown>) : null;
+    const where = p ? [p.file, p.line !== undefined ? `line ${p.line}` : null, p.field ? `field ${p.field}` : null].filter(Boolean).join(', ') : '';
+    const detail = (p?.detail as string) ?? (p?.title as string) ?? `the service answered ${res.status}`;
+    throw new ApiError(res.status, where && !detail.includes(String(p?.file ?? '\u0000')) ? `${detail} (${where})` : detail, p);
+  }
+  return data as T;
+}
+
+/** Whether a route exists (a route another part of the service may add later, e.g. a report). */
+export async function routeExists(url: string): Promise<boolean> {
+  try {
+    const res = await fetch(url, { method: 'HEAD', credentials: 'same-origin' });
+    return res.ok;
+  } catch {
+    return false;
+  }
+}
+
+// Shapes as the service sends them (server/http/schemas.ts)
+export type Role = 'technician' | 'engineer' | 'auditor' | 'admin';
+export interface User {
+  id: number;
+  name: string;
+  role: Role;
+}
+export interface Outlet {
+  id: number;
+  key: string;
+  type: string | null;
+  boreM: number | null;
+  boreToleranceM: number | null;
+  elevationM: number | null;
+  actionThreshold: number | null;
+  spec: Record<string, unknown>;
+  retiredAt: string | null;
+  [more: string]: unknown;
+}
+export interface Vessel {
+  id: number;
+  site: string;
+  name: string;
+  revision: number;
+  spec: Record<string, unknown>;
+  outlets: Outlet[];
+  createdAt: string;
+  updatedAt: string;
+  [more: string]: unknown;
+}
+export interface DrainTest {
+  id: number;
+  vesselId: number;
+  outletId: number | null;
+  status: 'pending' | 'analysed';
+  fileName: string;
+  size: number;
+  baro: { fileName: string } | null;
+  settings: Settings;
+  detected: Record<string, unknown> | null;
+  operator: string | null;
+  testedAt: string | null;
+  notes: string | null;
+  createdAt: string;
+}
+export interface Fit {
+  id: number;
+  testId: number;
+  vesselId: number;
+  outletId: number | null;
+  settings: Settings;
+  vessel: Record<string, unknown>;
+  result: FitResult;
+  engineVersion: string;
+  status: 'draft' | 'approved' | 'rejected';
+  supersededBy: number | null;
+  review: { comment: string | null; by: number | null; at: string | null } | null;
+  createdAt: string;
+}
+export interface Page<T> {
+  items: T[];
+  total: number;
+}
+export interface Settings {
+  timeColumn?: string;
+  levelColumn?: string;
+  unit?: string;
+  quantity?: string;
+  dateOrder?: string;
+  tz?: string;
+  delimiter?: string;
+  decimal?: string;
+  window?: string;
+  fitInflow?: boolean;
+  fitDatum?: boolean;
+  fitExponent?: boolean;
+}
+export interface Estimate {
+  value: number;
+  standardUncertainty: number;
+  ci95: [number, number];
+  coverageFactor?: number;
+  expandedUncertainty?: number;
+  effectiveDegreesOfFreedom?: number;
+}
+export interface Note {
+  code: string;
+  message: string;
+  stage?: string;
+}
+export interface FitResult {
+  converged: boolean;
+  dischargeCoefficient: Estimate | null;
+  effectiveAreaM2: Estimate;
+  window: { startS: number; endS: number; samples: number; startTime?: string | null; endTime?: string | null; chosenBy?: string; trims?: { what: string; fromS: number; toS: number; reason: string }[]; notes?: Note[] };
+  warnings: Note[];
+  parameters?: { name: string; unit: string; free: boolean; value: number; standardUncertainty: number | null; ci95?: [number, number] | null; atBound?: boolean }[];
+  correlations?: { parameters: string[]; matrix: number[][] };
+  residuals?: { samples: number; rmseM: number; maxAbsM: number; lag1Autocorrelation: number; durbinWatson: number };
+  modelComparison?: { chosen: { model: string; parameters: number; sumSquares: number; aic: number }; rows: { term: string; change: string; model: string; parameters: number; deltaAic: number | null; fTest?: { f: number; pValue: number } | null; converged?: boolean }[]; basis?: string };
+  headBands?: { headFromM: number; headToM: number; samples: number; dischargeCoefficient: number; standardUncertainty: number }[];
+  read?: { t0: string | null; samples: number; columns?: unknown[]; notes?: Note[] };
+  model?: { description?: string; equation?: string };
+  plot?: { log: { timeS: number[]; levelM: number[] }; window: { offsetS: number; timeS: number[]; observedM: number[]; fittedM: number[] } };
+  [more: string]: unknown;
+}
+export interface Series {
+  t0: string | null;
+  timeS: number[];
+  levelM: number[];
+  keep: number[];
+}
+export interface Inspection {
+  head: { encoding: string; lines: string[] };
+  detected: Record<string, unknown>;
+  series: Series;
+}
+export interface MaintenanceEvent {
+  id: number;
+  outletId: number | null;
+  kind: string;
+  occurredAt: string;
+  notes: string | null;
+}
+
+export const canUpload = (u: User) => u.role === 'technician' || u.role === 'engineer' || u.role === 'admin';
+export const canReview = (u: User) => u.role === 'engineer' || u.role === 'admin';
+export const seesMaintenance = (u: User) => u.role !== 'technician';

@@ -1,0 +1,316 @@
+/**
+ * The charts, all uPlot: columnar arrays with ascending x, `null` for gaps. Long logs are
+ * decimated for drawing (decimate.ts); the window is shaded under the data and can be redrawn by
+ * dragging across the chart; uncertainty is drawn as bars (whiskers) or as a band of two series.
+ */
+import uPlot from 'uplot';
+import { decimate } from './decimate.js';
+
+export const COLOURS = {
+  level: '#2f5f8a',
+  fitted: '#c4521c',
+  windowFill: 'rgba(46, 139, 120, 0.16)',
+  windowEdge: '#2e8b78',
+  residual: '#5d4a8c',
+  band: 'rgba(93, 74, 140, 0.14)',
+  approved: '#2e7d4f',
+  draft: '#9a7b16',
+  rejected: '#a33a3a',
+  maintenance: '#7a5c2e',
+  threshold: '#a33a3a',
+  grid: '#dcd8cc',
+  axis: '#3d4650',
+};
+
+const axis = (label: string, extra: Partial<uPlot.Axis> = {}): uPlot.Axis => ({
+  label,
+  stroke: COLOURS.axis,
+  grid: { stroke: COLOURS.grid, width: 1 },
+  ticks: { stroke: COLOURS.grid, width: 1 },
+  font: '12px system-ui, sans-serif',
+  labelFont: '12px system-ui, sans-serif',
+  ...extra,
+});
+
+const minutes = (_u: uPlot, ticks: number[]) => ticks.map((t) => `${+(t / 60).toFixed(1)}`);
+
+/** Follow the container's width (the page may be resized). */
+function fit(u: uPlot, el: HTMLElement, height: number): void {
+  const ro = new ResizeObserver(() => {
+    const w = Math.max(320, Math.floor(el.clientWidth));
+    if (Math.abs(w - u.width) > 2) u.setSize({ width: w, height });
+  });
+  ro.observe(el);
+}
+
+function widthOf(el: HTMLElement): number {
+  return Math.max(320, Math.floor(el.clientWidth || 800));
+}
+
+export interface LogChart {
+  setWindow(startS: number, endS: number): void;
+  destroy(): void;
+}
+
+/**
+ * The whole log, level against time from its start, with the drain window shaded. With
+ * `onDrag`, dragging across the chart proposes a new window (the form fields follow).
+ */
+export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: ArrayLike<number>, win: { startS: number; endS: number } | null, onDrag?: (startS: number, endS: number) => void): LogChart {
+  const drawn = decimate(timeS, levelM, Math.max(1200, widthOf(el) * 2));
+  let current = win;
+  const height = 300;
+  const opts: uPlot.Options = {
+    width: widthOf(el),
+    height,
+    scales: { x: { time: false } },
+    legend: { show: true },
+    cursor: { drag: { x: !!onDrag, y: false, setScale: false } },
+    select: { show: true, left: 0, top: 0, width: 0, height: 0 },
+    axes: [axis('time from the start of the log (min)', { values: minutes }), axis('level above the sensor zero (m)')],
+    series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) }, { label: 'level (m)', stroke: COLOURS.level, width: 1.5, value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) }],
+    hooks: {
+      drawClear: [
+        (u) => {
+          if (!current) return;
+          const x0 = u.valToPos(current.startS, 'x', true);
+          const x1 = u.valToPos(current.endS, 'x', true);
+          const { top, height: h } = u.bbox;
+          const ctx = u.ctx;
+          ctx.save();
+          ctx.fillStyle = COLOURS.windowFill;
+          ctx.fillRect(x0, top, x1 - x0, h);
+          ctx.strokeStyle = COLOURS.windowEdge;
+          ctx.lineWidth = 2;
+          ctx.beginPath();
+          ctx.moveTo(x0, top);
+          ctx.lineTo(x0, top + h);
+          ctx.moveTo(x1, top);
+          ctx.lineTo(x1, top + h);
+          ctx.stroke();
+          ctx.restore();
+        },
+      ],
+      setSelect: [
+        (u) => {
+          if (!onDrag || u.select.width < 4) return;
+          const a = u.posToVal(u.select.left, 'x');
+          const b = u.posToVal(u.select.left + u.select.width, 'x');
+          u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
+          onDrag(Math.max(a, timeS[0]), Math.min(b, timeS[timeS.length - 1]));
+        },
+      ],
+    },
+  };
+  const u = new uPlot(opts, [drawn.x, drawn.y] as uPlot.AlignedData, el);
+  fit(u, el, height);
+  return {
+    setWindow(startS, endS) {
+      current = { startS, endS };
+      u.redraw(false, false);
+    },
+    destroy: () => u.destroy(),
+  };
+}
+
+export interface WindowPlot {
+  offsetS: number;
+  timeS: number[];
+  observedM: number[];
+  fittedM: number[];
+}
+
+/** Readings and the fitted curve over the window, against time from the log's start. */
+export function fitChart(el: HTMLElement, w: WindowPlot): uPlot {
+  const x = w.timeS.map((t) => t + w.offsetS);
+  const u = new uPlot(
+    {
+      width: widthOf(el),
+      height: 320,
+      scales: { x: { time: false } },
+      axes: [axis('time from the start of the log (min)', { values: minutes }), axis('level above the sensor zero (m)')],
+      series: [
+        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        { label: 'readings (m)', stroke: COLOURS.level, width: 0, points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`) },
+        { label: 'fitted drain curve (m)', stroke: COLOURS.fitted, width: 2.5, points: { show: false }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`) },
+      ],
+    },
+    [x, w.observedM, w.fittedM] as uPlot.AlignedData,
+    el,
+  );
+  fit(u, el, 320);
+  return u;
+}
+
+/** Residuals (reading − fitted) in mm, with ±2 RMS as a shaded band: a wander shows at once. */
+export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | null): uPlot {
+  const x = w.timeS.map((t) => t + w.offsetS);
+  const r = w.observedM.map((o, i) => (o - w.fittedM[i]) * 1000);
+  const s = (rmseM ?? 0) * 1000 * 2;
+  const hi = x.map(() => s);
+  const lo = x.map(() => -s);
+  const zero = x.map(() => 0);
+  const u = new uPlot(
+    {
+      width: widthOf(el),
+      height: 220,
+      scales: { x: { time: false } },
+      axes: [axis('time from the start of the log (min)', { values: minutes }), axis('reading − fitted (mm)')],
+      bands: [{ series: [2, 3], fill: COLOURS.band }],
+      series: [
+        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        { label: 'residual (mm)', stroke: COLOURS.residual, width: 0, points: { show: true, size: 3, stroke: COLOURS.residual, fill: COLOURS.residual }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`) },
+        { label: '+2 × RMS (mm)', stroke: 'rgba(93,74,140,0.35)', width: 1, points: { show: false }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`) },
+        { label: '−2 × RMS (mm)', stroke: 'rgba(93,74,140,0.35)', width: 1, points: { show: false }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`) },
+        { label: 'zero', stroke: COLOURS.axis, width: 1, points: { show: false } },
+      ],
+    },
+    [x, r, hi, lo, zero] as uPlot.AlignedData,
+    el,
+  );
+  fit(u, el, 220);
+  return u;
+}
+
+/** Vertical whiskers from lo[i] to hi[i] at each x, drawn over the series of index `si`. */
+function whiskers(lo: (number | null)[], hi: (number | null)[], colourOf: (i: number) => string): uPlot.Plugin {
+  return {
+    hooks: {
+      draw: [
+        (u) => {
+          const ctx = u.ctx;
+          const xs = u.data[0];
+          ctx.save();
+          ctx.lineWidth = 1.5;
+          for (let i = 0; i < xs.length; i++) {
+            const a = lo[i], b = hi[i];
+            if (a === null || b === null) continue;
+            const x = u.valToPos(xs[i], 'x', true);
+            const y0 = u.valToPos(a, 'y', true);
+            const y1 = u.valToPos(b, 'y', true);
+            ctx.strokeStyle = colourOf(i);
+            ctx.beginPath();
+            ctx.moveTo(x, y0);
+            ctx.lineTo(x, y1);
+            ctx.moveTo(x - 4, y0);
+            ctx.lineTo(x + 4, y0);
+            ctx.moveTo(x - 4, y1);
+            ctx.lineTo(x + 4, y1);
+            ctx.stroke();
+          }
+          ctx.restore();
+        },
+      ],
+    },
+  };
+}
+
+/** Cd per head band: does the coefficient change with head? Bars are ±2 standard uncertainties. */
+export function headBandChart(el: HTMLElement, bands: { headFromM: number; headToM: number; dischargeCoefficient: number; standardUncertainty: number }[]): uPlot {
+  const rows = bands.map((b) => ({ h: (b.headFromM + b.headToM) / 2, cd: b.dischargeCoefficient, u: b.standardUncertainty })).sort((a, b) => a.h - b.h);
+  const x = rows.map((r) => r.h);
+  const cd = rows.map((r) => r.cd);
+  const lo = rows.map((r) => r.cd - 2 * r.u);
+  const hi = rows.map((r) => r.cd + 2 * r.u);
+  const all = [...lo, ...hi].filter(Number.isFinite);
+  const pad = (Math.max(...all) - Math.min(...all)) * 0.1 || 0.01;
+  const xpad = rows.length > 1 ? (x[x.length - 1] - x[0]) * 0.1 : 0.1;
+  const u = new uPlot(
+    {
+      width: widthOf(el),
+      height: 240,
+      scales: { x: { time: false, range: [x[0] - xpad, x[x.length - 1] + xpad] }, y: { range: [Math.min(...all) - pad, Math.max(...all) + pad] } },
+      axes: [axis('head over the outlet, middle of the band (m)'), axis('discharge coefficient Cd (–)')],
+      series: [
+        { label: 'head (m)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) },
+        { label: 'Cd in the band', stroke: COLOURS.fitted, width: 0, points: { show: true, size: 8, stroke: COLOURS.fitted, fill: COLOURS.fitted }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+      ],
+      plugins: [whiskers(lo, hi, () => COLOURS.fitted)],
+    },
+    [x, cd] as uPlot.AlignedData,
+    el,
+  );
+  fit(u, el, 240);
+  return u;
+}
+
+export interface HistoryPoint {
+  atS: number; // epoch seconds
+  cd: number;
+  expanded: number;
+  status: 'draft' | 'approved' | 'rejected';
+}
+
+/**
+ * Cd of one outlet over time, each test a point with its expanded uncertainty as a bar; approved
+ * and draft fits in their own series; maintenance as vertical marks; the action threshold and a
+ * baseline as horizontal lines when the service gives them.
+ */
+export function historyChart(el: HTMLElement, points: HistoryPoint[], events: { atS: number; kind: string }[], lines: { threshold: number | null; baseline: number | null }): uPlot {
+  const pts = [...points].sort((a, b) => a.atS - b.atS);
+  const x = pts.map((p) => p.atS);
+  const approved = pts.map((p) => (p.status === 'approved' ? p.cd : null));
+  const draft = pts.map((p) => (p.status === 'draft' ? p.cd : null));
+  const lo = pts.map((p) => (p.status === 'rejected' ? null : p.cd - p.expanded));
+  const hi = pts.map((p) => (p.status === 'rejected' ? null : p.cd + p.expanded));
+  const ys = [...lo, ...hi, lines.threshold, lines.baseline].filter((v): v is number => v !== null && Number.isFinite(v));
+  const ymin = Math.min(...ys), ymax = Math.max(...ys);
+  const pad = (ymax - ymin) * 0.15 || 0.02;
+  const span = x.length > 1 ? x[x.length - 1] - x[0] : 86400 * 30;
+  const xr: [number, number] = [Math.min(x[0], ...events.map((e) => e.atS)) - span * 0.08, Math.max(x[x.length - 1], ...events.map((e) => e.atS)) + span * 0.08];
+  const overlay: uPlot.Plugin = {
+    hooks: {
+      drawClear: [
+        (u) => {
+          const ctx = u.ctx;
+          const { left, top, width, height } = u.bbox;
+          ctx.save();
+          ctx.setLineDash([6, 4]);
+          ctx.lineWidth = 1.5;
+          for (const e of events) {
+            const px = u.valToPos(e.atS, 'x', true);
+            ctx.strokeStyle = COLOURS.maintenance;
+            ctx.beginPath();
+            ctx.moveTo(px, top);
+            ctx.lineTo(px, top + height);
+            ctx.stroke();
+            ctx.fillStyle = COLOURS.maintenance;
+            ctx.font = `${11 * devicePixelRatio}px system-ui, sans-serif`;
+            ctx.fillText(e.kind, px + 4, top + 14 * devicePixelRatio);
+          }
+          for (const [v, colour, label] of [[lines.threshold, COLOURS.threshold, 'action threshold'], [lines.baseline, COLOURS.approved, 'baseline']] as const) {
+            if (v === null) continue;
+            const py = u.valToPos(v, 'y', true);
+            ctx.strokeStyle = colour;
+            ctx.beginPath();
+            ctx.moveTo(left, py);
+            ctx.lineTo(left + width, py);
+            ctx.stroke();
+            ctx.fillStyle = colour;
+            ctx.font = `${11 * devicePixelRatio}px system-ui, sans-serif`;
+            ctx.fillText(`${label} ${v.toFixed(3)}`, left + 6, py - 4);
+          }
+          ctx.restore();
+        },
+      ],
+    },
+  };
+  const u = new uPlot(
+    {
+      width: widthOf(el),
+      height: 260,
+      scales: { x: { time: true, range: xr }, y: { range: [ymin - pad, ymax + pad] } },
+      axes: [axis('date of the test'), axis('discharge coefficient Cd (–)')],
+      series: [
+        {},
+        { label: 'approved', stroke: COLOURS.approved, width: 0, points: { show: true, size: 9, stroke: COLOURS.approved, fill: COLOURS.approved }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+        { label: 'draft (not yet reviewed)', stroke: COLOURS.draft, width: 0, points: { show: true, size: 9, stroke: COLOURS.draft, fill: '#fff' }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+      ],
+      plugins: [overlay, whiskers(lo, hi, (i) => (pts[i].status === 'approved' ? COLOURS.approved : COLOURS.draft))],
+    },
+    [x, approved, draft] as uPlot.AlignedData,
+    el,
+  );
+  fit(u, el, 260);
+  return u;
+}

@@ -1,0 +1,103 @@
+/**
+ * The workbench: a small single-page front end that talks to the service only through its HTTP
+ * API. Pages by hash (#/vessels/3, #/fits/12), so reloading keeps the place and no server route
+ * is needed for the pages themselves.
+ */
+import { api, ApiError, type User } from './api.js';
+import { clear, h, notice } from './dom.js';
+import { fitPage } from './pages/fit.js';
+import { fleetPage } from './pages/fleet.js';
+import { newTestPage } from './pages/new-test.js';
+import { signInPage } from './pages/sign-in.js';
+import { vesselPage } from './pages/vessel.js';
+
+export interface PageContext {
+  user: User;
+  params: string[];
+  main: HTMLElement;
+  go: (hash: string) => void;
+}
+type Page = (ctx: PageContext) => Promise<void>;
+
+const routes: [RegExp, Page][] = [
+  [/^#?\/?$/, fleetPage],
+  [/^#\/vessels\/(\d+)$/, vesselPage],
+  [/^#\/vessels\/(\d+)\/new-test$/, newTestPage],
+  [/^#\/fits\/(\d+)$/, fitPage],
+];
+
+let user: User | null = null;
+const main = document.getElementById('view') as HTMLElement;
+const who = document.getElementById('who') as HTMLElement;
+
+function go(hash: string): void {
+  if (location.hash === hash) void show();
+  else location.hash = hash;
+}
+
+function header(): void {
+  clear(who);
+  if (!user) return;
+  const out = h('button', { type: 'button', class: 'quiet' }, 'Sign out');
+  out.addEventListener('click', async () => {
+    await api('DELETE', '/api/session').catch(() => undefined);
+    user = null;
+    header();
+    void show();
+  });
+  who.append(h('span', { class: 'who-name' }, user.name), h('span', { class: `role role-${user.role}` }, user.role), out);
+}
+
+async function show(): Promise<void> {
+  clear(main);
+  main.setAttribute('aria-busy', 'true');
+  try {
+    if (!user) {
+      try {
+        user = (await api<{ user: User }>('GET', '/api/session')).user;
+      } catch (e) {
+        if (!(e instanceof ApiError) || e.status !== 401) throw e;
+      }
+      header();
+    }
+    if (!user) {
+      await signInPage(main, (u) => {
+        user = u;
+        header();
+        void show();
+      });
+      return;
+    }
+    const hash = location.hash || '#/';
+    for (const [re, page] of routes) {
+      const m = re.exec(hash);
+      if (m) {
+        await page({ user, params: m.slice(1), main, go });
+        focusHeading();
+        return;
+      }
+    }
+    main.append(h('h1', { tabindex: -1 }, 'Page not found'), h('p', {}, h('a', { href: '#/' }, 'Back to the fleet')));
+  } catch (e) {
+    if (e instanceof ApiError && e.status === 401) {
+      user = null;
+      header();
+      return show();
+    }
+    main.append(notice('error', e instanceof Error ? e.message : String(e)));
+  } finally {
+    main.removeAttribute('aria-busy');
+  }
+}
+
+/** After a page change, move focus to its heading so keyboard and screen-reader users start there. */
+function focusHeading(): void {
+  const h1 = main.querySelector('h1');
+  if (h1) {
+    h1.setAttribute('tabindex', '-1');
+    h1.focus({ preventScroll: true });
+  }
+}
+
+window.addEventListener('hashchange', () => void show());
+void show();

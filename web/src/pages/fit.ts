@@ -1,0 +1,193 @@
+/**
+ * One fit: the readings and the fitted curve, the residuals, Cd by head band, every parameter with
+ * its standard uncertainty and 95 % interval, correlations, warnings in plain words, the model
+ * comparison; review (approve or reject with a comment), refit, and the report when there is one.
+ */
+import { api, ApiError, canReview, canUpload, routeExists, type DrainTest, type Fit, type Series, type Vessel } from '../api.js';
+import { fitChart, headBandChart, logChart, residualChart } from '../charts.js';
+import { field, h, notice, table } from '../dom.js';
+import { areaMm2, clockAt, dateTime, decimalsFor, mm, num, paramName, plusMinus, seconds, termName } from '../format.js';
+import type { PageContext } from '../main.js';
+import { modelForm, readingForm, windowForm } from '../reading.js';
+
+/** A parameter's value in the unit a person reads it in. */
+function scaled(unit: string): { factor: number; unit: string } {
+  if (unit === 'm²') return { factor: 1e6, unit: 'mm²' };
+  if (unit === 'm³/s') return { factor: 1000, unit: 'L/s' };
+  if (unit === '1') return { factor: 1, unit: '' };
+  return { factor: 1, unit };
+}
+
+const pct = (p: number | null | undefined) => (p === null || p === undefined ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3));
+
+export async function fitPage({ user, params, main, go }: PageContext): Promise<void> {
+  const id = Number(params[0]);
+  const fit = await api<Fit>('GET', `/api/fits/${id}`);
+  const [vessel, test, siblings, hasReport] = await Promise.all([
+    api<Vessel>('GET', `/api/vessels/${fit.vesselId}`),
+    api<DrainTest>('GET', `/api/tests/${fit.testId}`),
+    api<{ items: Fit[] }>('GET', `/api/tests/${fit.testId}/fits`),
+    routeExists(`/api/fits/${id}/report.pdf`),
+  ]);
+  const r = fit.result;
+  const cd = r.dischargeCoefficient;
+  const ea = r.effectiveAreaM2;
+  const outlet = vessel.outlets.find((o) => o.id === fit.outletId);
+
+  main.append(
+    h('nav', { class: 'crumbs', 'aria-label': 'Where you are' }, h('a', { href: '#/' }, 'Fleet'), ' › ', h('a', { href: `#/vessels/${vessel.id}` }, vessel.name), ` › fit ${fit.id}`),
+    h('div', { class: 'title-row' }, h('h1', {}, `Fit ${fit.id} · ${vessel.name}${outlet ? `, outlet ${outlet.key}` : ''}`), h('span', { class: `badge badge-${fit.status}` }, fit.status)),
+    h('p', { class: 'lede' }, `Logger file ${test.fileName}${test.baro ? ` with barometric log ${test.baro.fileName}` : ''} · fitted ${dateTime(fit.createdAt)} · engine ${fit.engineVersion}`),
+  );
+  if (fit.supersededBy !== null) main.append(notice('info', 'This fit was replaced by a refit: ', h('a', { href: `#/fits/${fit.supersededBy}` }, `open fit ${fit.supersededBy}`), '.'));
+
+  // headline numbers
+  const k = cd?.coverageFactor;
+  main.append(
+    h(
+      'section',
+      { class: 'headline', 'aria-label': 'Result' },
+      h('div', { class: 'card big' }, h('h2', {}, 'Discharge coefficient Cd'), h('p', { class: 'value' }, cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty) : 'not available'), h('p', { class: 'hint' }, cd ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95[0], 4)} to ${num(cd.ci95[1], 4)}` : 'the outlet bore is not known, so only Cd·a is given')),
+      h('div', { class: 'card big' }, h('h2', {}, 'Effective area Cd·a'), h('p', { class: 'value' }, areaMm2(ea.value, ea.expandedUncertainty ?? 2 * ea.standardUncertainty)), h('p', { class: 'hint' }, `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95[0])} to ${areaMm2(ea.ci95[1])}`)),
+      h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${seconds(r.window.startS)} to ${seconds(r.window.endS)} from the first reading`), h('p', { class: 'hint' }, `${r.window.samples} readings, chosen ${r.window.chosenBy ?? ''}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
+      h('div', { class: 'card' }, h('h2', {}, 'Scatter about the curve'), h('p', {}, `RMS ${mm(r.residuals?.rmseM)}`), h('p', { class: 'hint' }, `largest ${mm(r.residuals?.maxAbsM)}; neighbouring residuals correlate ${num(r.residuals?.lag1Autocorrelation, 2)}; ${r.converged ? 'the solver converged' : 'the solver did NOT converge'}`)),
+    ),
+  );
+
+  // warnings, in the service's own plain sentences
+  main.append(
+    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : 'the fit'}: `) : null, w.message))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
+  );
+
+  // charts
+  const plot = r.plot;
+  if (plot) {
+    const curve = h('div', { class: 'chart', id: 'fit-chart' });
+    const resid = h('div', { class: 'chart', id: 'residual-chart' });
+    main.append(
+      h('section', {}, h('h2', {}, 'Readings and the fitted drain curve'), h('p', { class: 'hint' }, 'Dots: readings in the window (thinned for drawing; the fit used every reading). Line: the fitted model.'), curve),
+      h('section', {}, h('h2', {}, 'Residuals against time'), h('p', { class: 'hint' }, 'Reading minus fitted level. A good fit scatters evenly about zero; a slow wander means the model misses something. The band is ±2 × RMS.'), resid),
+    );
+    fitChart(curve, plot.window);
+    residualChart(resid, plot.window, r.residuals?.rmseM ?? null);
+  }
+  if (r.headBands?.length) {
+    const box = h('div', { class: 'chart', id: 'band-chart' });
+    main.append(
+      h('section', {}, h('h2', {}, 'Cd by head band'), h('p', { class: 'hint' }, 'The window cut into bands of head over the outlet, each fitted alone; bars are ±2 standard uncertainties. A trend with head suggests the outflow law differs from the model.'), box,
+        table(null, ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'], r.headBands.map((b) => [`${num(b.headFromM, 4)} m`, `${num(b.headToM, 4)} m`, String(b.samples), b.dischargeCoefficient.toFixed(decimalsFor(b.standardUncertainty)), num(b.standardUncertainty, 2)]))),
+    );
+    headBandChart(box, r.headBands);
+  }
+
+  // parameters, correlations, model comparison
+  if (r.parameters) {
+    main.append(
+      h('section', {}, h('h2', {}, 'Parameters'), table(null, ['Parameter', 'Value', 'Standard uncertainty', '95 % interval', 'Fitted or fixed'], r.parameters.map((p) => {
+        const s = scaled(p.unit);
+        const u = p.standardUncertainty;
+        const d = u ? decimalsFor(u * s.factor) : 4;
+        const unit = s.unit ? ` ${s.unit}` : '';
+        return [
+          paramName(p.name),
+          `${u ? (p.value * s.factor).toFixed(d) : num(p.value * s.factor, 5)}${unit}`,
+          u === null ? '—' : `${num(u * s.factor, 2)}${unit}`,
+          p.ci95 && p.free ? `${(p.ci95[0] * s.factor).toFixed(d)} to ${(p.ci95[1] * s.factor).toFixed(d)}${unit}` : '—',
+          p.free ? (p.atBound ? 'fitted (at its limit)' : 'fitted') : 'fixed',
+        ];
+      }))),
+    );
+  }
+  if (r.correlations && r.correlations.parameters.length > 1) {
+    const names = r.correlations.parameters;
+    main.append(h('section', {}, h('h2', {}, 'Correlations between fitted parameters'), h('p', { class: 'hint' }, 'Near ±1: the data cannot tell the two apart well.'), table(null, ['', ...names.map(paramName)], names.map((n, i) => [paramName(n), ...r.correlations!.matrix[i].map((c) => h('span', { class: Math.abs(c) > 0.95 && i !== r.correlations!.matrix[i].indexOf(c) ? 'strong-corr' : '' }, c.toFixed(3)))]), 'corr')));
+  }
+  if (r.modelComparison) {
+    const mc = r.modelComparison;
+    main.append(
+      h('section', {}, h('h2', {}, 'Model comparison'), h('p', {}, `Chosen model: ${mc.chosen.model} (${mc.chosen.parameters} fitted parameters). ${mc.basis ?? ''}`),
+        table(null, ['Term', 'Compared model', 'Change in AIC', 'F-test p', 'In words'], mc.rows.map((row) => {
+          const earned = row.fTest ? row.fTest.pValue < 0.05 : false;
+          const words = row.change === 'with' ? (earned && (row.deltaAic ?? 0) < -2 ? `adding the ${termName(row.term)} is supported by the data` : `the ${termName(row.term)} is not needed`) : earned ? `the ${termName(row.term)} is earned: keep it` : `the ${termName(row.term)} is not supported by the data`;
+          return [`${row.change} ${termName(row.term)}`, row.model, row.deltaAic === null ? '—' : row.deltaAic.toFixed(1), pct(row.fTest?.pValue), words];
+        }))),
+    );
+  }
+
+  // the window on the whole log, and how it was cut
+  const logBox = h('div', { class: 'chart', id: 'window-chart' });
+  const trims = r.window.trims ?? [];
+  const windowSection = h('section', {}, h('h2', {}, 'The window on the whole log'), logBox, trims.length ? h('ul', {}, trims.map((t) => h('li', {}, `${t.fromS.toFixed(1)} s to ${t.toS.toFixed(1)} s left out: ${t.reason}`))) : null, h('details', {}, h('summary', {}, 'How the window was chosen'), h('ul', {}, (r.window.notes ?? []).map((n) => h('li', {}, n.message)))));
+  main.append(windowSection);
+  let series: Series | null = null;
+  try {
+    series = (await api<{ series: Series }>('GET', `/api/tests/${fit.testId}/series?fit=${fit.id}`)).series;
+  } catch (e) {
+    if (!(e instanceof ApiError) || e.status !== 404) throw e; // no full-resolution route: draw the stored thinned log
+  }
+  const t0 = series?.t0 ?? r.read?.t0 ?? null;
+  const win = windowForm((s) => clockAt(t0, s));
+  const lc = logChart(logBox, series?.timeS ?? plot?.log.timeS ?? [], series?.levelM ?? plot?.log.levelM ?? [], r.window, canUpload(user) ? (a, b) => {
+    win.set(a, b, true);
+    lc.setWindow(a, b);
+  } : undefined);
+  win.onChange((a, b) => lc.setWindow(a, b));
+  win.set(r.window.startS, r.window.endS, false);
+
+  // review
+  if (canReview(user) && fit.status === 'draft' && fit.supersededBy === null) {
+    const comment = h('textarea', { name: 'comment', rows: 3, maxlength: 10000 });
+    const out = h('div', { 'aria-live': 'polite' });
+    const decide = (decision: 'approve' | 'reject') => async () => {
+      try {
+        await api('POST', `/api/fits/${id}/review`, { decision, comment: comment.value.trim() || undefined });
+        go(`#/fits/${id}`);
+      } catch (e) {
+        out.replaceChildren(notice('error', e instanceof Error ? e.message : String(e)));
+      }
+    };
+    const approve = h('button', { type: 'button', class: 'primary' }, 'Approve');
+    const reject = h('button', { type: 'button', class: 'danger' }, 'Reject');
+    approve.addEventListener('click', decide('approve'));
+    reject.addEventListener('click', decide('reject'));
+    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), field('Comment (kept with the fit)', comment), h('div', { class: 'actions' }, approve, reject), out));
+  } else if (fit.review?.at) {
+    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`), fit.review.comment ? h('blockquote', {}, fit.review.comment) : null));
+  }
+
+  // refit
+  if (canUpload(user) && fit.supersededBy === null) {
+    const sensor = (fit.vessel.sensor ?? {}) as Record<string, unknown>;
+    const model = modelForm(fit.settings, typeof sensor.zeroElevationM !== 'number' && typeof sensor.mountElevationM !== 'number');
+    const reading = readingForm(fit.settings);
+    const out = h('div', { 'aria-live': 'polite' });
+    const button = h('button', { type: 'submit' }, 'Fit again');
+    const form = h('form', { class: 'card refit' }, h('h2', {}, 'Fit again with another window or model'), h('p', { class: 'hint' }, 'Drag across the chart above or type the times. The present fit is kept and marked as replaced.'), win.el, model.el, h('details', {}, h('summary', {}, 'Reading settings'), reading.el), h('div', { class: 'actions' }, button, out));
+    form.addEventListener('submit', async (e) => {
+      e.preventDefault();
+      button.disabled = true;
+      out.replaceChildren(h('p', {}, 'Fitting…'));
+      const settings = { ...reading.values(), ...model.values(), ...(win.value() ? { window: win.value() } : {}) };
+      try {
+        const f = await api<Fit>('POST', `/api/fits/${id}/refit`, { settings });
+        go(`#/fits/${f.id}`);
+      } catch (err) {
+        out.replaceChildren(notice('error', `Not fitted: ${err instanceof Error ? err.message : String(err)}`));
+        button.disabled = false;
+      }
+    });
+    windowSection.after(form);
+  }
+
+  // the report, and the other fits of the same test
+  main.append(
+    h('section', {}, h('h2', {}, 'Report'), hasReport ? h('p', {}, h('a', { href: `/api/fits/${id}/report.pdf`, class: 'button' }, 'Download the report (PDF)')) : h('p', { class: 'hint' }, 'A printable report will be linked here when the service offers it.')),
+    h('section', {}, h('h2', {}, 'Fits of this test'), table(null, ['Fit', 'Made', 'Window', 'Cd', 'State'], siblings.items.map((s) => [
+      s.id === id ? `${s.id} (this one)` : h('a', { href: `#/fits/${s.id}` }, String(s.id)),
+      dateTime(s.createdAt),
+      `${num(s.result.window.startS, 5)} s to ${num(s.result.window.endS, 5)} s`,
+      s.result.dischargeCoefficient ? num(s.result.dischargeCoefficient.value, 4) : '—',
+      `${s.status}${s.supersededBy !== null ? ', replaced' : ''}`,
+    ]))),
+  );
+}

@@ -1,0 +1,78 @@
+/** Every vessel and outlet with its latest Cd, the date of its last test, and (when offered) its drift. */
+import { api, type Page, type Vessel } from '../api.js';
+import { field, h, select } from '../dom.js';
+import { date, outletName, plusMinus, shapeName } from '../format.js';
+import { driftOf, latestFor, vesselHistory, type TestedFit } from '../history.js';
+import type { PageContext } from '../main.js';
+
+interface Row {
+  vessel: Vessel;
+  outlet: Vessel['outlets'][number] | null;
+  latest: TestedFit | null;
+  tests: number;
+  drift: string | null;
+}
+
+export async function fleetPage({ main }: PageContext): Promise<void> {
+  main.append(h('h1', {}, 'Fleet'), h('p', { class: 'lede' }, 'Every vessel and outlet with its latest discharge coefficient. Choose a vessel for its drawing, its tests and its history.'));
+  const vessels = await api<Page<Vessel>>('GET', '/api/vessels?limit=500');
+  const histories = await Promise.all(vessels.items.map((v) => vesselHistory(v.id)));
+  const rows: Row[] = [];
+  vessels.items.forEach((v, i) => {
+    const active = v.outlets.filter((o) => o.retiredAt === null);
+    for (const o of active.length ? active : [null]) {
+      const tests = histories[i].tests.filter((t) => o === null || t.outletId === o.id || t.outletId === null).length;
+      rows.push({ vessel: v, outlet: o, latest: latestFor(o, histories[i].fits), tests, drift: o ? driftOf(o) : null });
+    }
+  });
+  const anyDrift = rows.some((r) => r.drift !== null);
+
+  const search = h('input', { type: 'search', name: 'q', placeholder: 'vessel, site or outlet', autocomplete: 'off' });
+  const sites = [...new Set(vessels.items.map((v) => v.site))].sort();
+  const site = select('site', [['', 'all sites'], ...sites.map((s): [string, string] => [s, s])]);
+  const state = select('state', [
+    ['', 'all outlets'],
+    ['approved', 'with an approved fit'],
+    ['draft', 'latest fit waiting for review'],
+    ['none', 'never tested'],
+  ]);
+  const count = h('p', { class: 'count', 'aria-live': 'polite' });
+  const body = h('tbody');
+  const head = ['Vessel', 'Site', 'Shape', 'Outlet', 'Latest Cd ± expanded uncertainty (k)', 'Fit', 'Last test', 'Tests', ...(anyDrift ? ['Drift'] : [])];
+  const tableEl = h('table', { class: 'fleet' }, h('caption', { class: 'visually-hidden' }, 'Vessels and outlets'), h('thead', {}, h('tr', {}, head.map((t) => h('th', { scope: 'col' }, t)))), body);
+
+  const draw = () => {
+    const q = search.value.trim().toLowerCase();
+    const shown = rows.filter((r) => {
+      if (site.value && r.vessel.site !== site.value) return false;
+      if (state.value === 'none' && r.latest) return false;
+      if (state.value === 'approved' && r.latest?.fit.status !== 'approved') return false;
+      if (state.value === 'draft' && r.latest?.fit.status !== 'draft') return false;
+      if (!q) return true;
+      return [r.vessel.name, r.vessel.site, r.outlet?.key ?? ''].some((s) => s.toLowerCase().includes(q));
+    });
+    body.replaceChildren(
+      ...shown.map((r) => {
+        const cd = r.latest?.fit.result.dischargeCoefficient;
+        const k = cd?.coverageFactor;
+        return h(
+          'tr',
+          {},
+          h('th', { scope: 'row' }, h('a', { href: `#/vessels/${r.vessel.id}` }, r.vessel.name)),
+          h('td', {}, r.vessel.site),
+          h('td', {}, shapeName(String((r.vessel.spec.shape as { kind?: string } | undefined)?.kind ?? ''))),
+          h('td', {}, r.outlet ? `${r.outlet.key} (${outletName(r.outlet.type)}${r.outlet.boreM ? `, ${(r.outlet.boreM * 1000).toFixed(1)} mm bore` : ''})` : 'no outlet'),
+          h('td', { class: 'num' }, cd ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty)}${k ? ` (k = ${k.toFixed(2)})` : ''}` : '—'),
+          h('td', {}, r.latest ? h('a', { href: `#/fits/${r.latest.fit.id}`, class: `badge badge-${r.latest.fit.status}` }, r.latest.fit.status) : '—'),
+          h('td', {}, r.latest ? date(r.latest.at) : '—'),
+          h('td', { class: 'num' }, String(r.tests)),
+          ...(anyDrift ? [h('td', {}, r.drift ?? '—')] : []),
+        );
+      }),
+    );
+    count.textContent = `${shown.length} of ${rows.length} outlets shown${anyDrift ? '' : ' · drift status appears here once the service offers it'}`;
+  };
+  for (const c of [search, site, state]) c.addEventListener('input', draw);
+  main.append(h('div', { class: 'filters' }, field('Search', search), field('Site', site), field('Show', state)), count, h('div', { class: 'table-wrap' }, tableEl));
+  draw();
+}

@@ -1,0 +1,118 @@
+/** One vessel: its geometry and outlets, a drawing to scale, its tests, and Cd over time. */
+import { api, canUpload, seesMaintenance, type MaintenanceEvent, type Page, type Vessel } from '../api.js';
+import { historyChart } from '../charts.js';
+import { h, notice, table } from '../dom.js';
+import { vesselDrawing } from '../drawing.js';
+import { date, metres, num, outletName, plusMinus, shapeName } from '../format.js';
+import { current, vesselHistory } from '../history.js';
+import type { PageContext } from '../main.js';
+
+const SHAPE_FIELDS: [string, string][] = [
+  ['diameterM', 'Diameter'],
+  ['lengthM', 'Length'],
+  ['widthM', 'Width'],
+  ['coneHeightM', 'Cone height'],
+  ['heightM', 'Height'],
+];
+
+function geometryRows(shape: Record<string, unknown>): [string, string][] {
+  const rows: [string, string][] = [['Shape', shapeName(String(shape.kind))]];
+  for (const [k, label] of SHAPE_FIELDS) if (typeof shape[k] === 'number') rows.push([label, metres(shape[k] as number)]);
+  if (Array.isArray(shape.points)) {
+    rows.push(['Surveyed points', (shape.points as [number, number][]).map(([y, a]) => `${num(y)} m: ${num(a)} m²`).join('; ')]);
+  }
+  return rows;
+}
+
+export async function vesselPage({ user, params, main }: PageContext): Promise<void> {
+  const id = Number(params[0]);
+  const v = await api<Vessel>('GET', `/api/vessels/${id}`);
+  const [hist, events] = await Promise.all([
+    vesselHistory(id),
+    seesMaintenance(user) ? api<Page<MaintenanceEvent>>('GET', `/api/vessels/${id}/events?limit=500`).then((p) => p.items).catch(() => [] as MaintenanceEvent[]) : Promise.resolve([] as MaintenanceEvent[]),
+  ]);
+  const spec = v.spec;
+  const shape = (spec.shape ?? {}) as Record<string, unknown>;
+  const sensor = (spec.sensor ?? {}) as Record<string, unknown>;
+  const fluid = (spec.fluid ?? {}) as Record<string, unknown>;
+  const outlets = v.outlets.filter((o) => o.retiredAt === null);
+
+  main.append(
+    h('nav', { class: 'crumbs', 'aria-label': 'Where you are' }, h('a', { href: '#/' }, 'Fleet'), ' › ', v.name),
+    h('div', { class: 'title-row' }, h('h1', {}, v.name), canUpload(user) ? h('a', { href: `#/vessels/${id}/new-test`, class: 'button primary' }, 'New drain test') : null),
+    h('p', { class: 'lede' }, `${v.site} · vessel file revision ${v.revision}`, typeof spec.notes === 'string' ? ` · ${spec.notes}` : ''),
+  );
+
+  const facts = h(
+    'div',
+    { class: 'facts' },
+    table('Geometry', ['', ''], [
+      ...geometryRows(shape),
+      ['Sensor', typeof sensor.zeroElevationM === 'number' ? `zero ${metres(sensor.zeroElevationM as number)} above the bottom` : typeof sensor.mountElevationM === 'number' ? `gauge face ${metres(sensor.mountElevationM as number)} above the bottom, measuring down` : 'zero not stated (fit the sensor zero)'],
+      ['Liquid', typeof fluid.densityKgM3 === 'number' ? `${num(fluid.densityKgM3 as number)} kg/m³` : typeof fluid.temperatureC === 'number' ? `water at ${num(fluid.temperatureC as number)} °C` : 'water at 20 °C (assumed)'],
+    ], 'kv'),
+    table('Outlets', ['Outlet', 'Kind', 'Bore', 'Bore tolerance', 'Height above bottom', 'Action threshold (Cd)'], outlets.map((o) => [
+      o.key,
+      outletName(o.type),
+      o.boreM ? `${(o.boreM * 1000).toFixed(1)} mm` : '—',
+      o.boreToleranceM ? `± ${(o.boreToleranceM * 1000).toFixed(2)} mm` : '—',
+      metres(o.elevationM),
+      o.actionThreshold === null ? '—' : num(o.actionThreshold, 3),
+    ])),
+  );
+  const drawing = vesselDrawing(spec, {
+    outlets: outlets.map((o) => ({ name: o.key, elevationM: o.elevationM ?? 0 })),
+    sensorZeroM: typeof sensor.zeroElevationM === 'number' ? (sensor.zeroElevationM as number) : null,
+    mountElevationM: typeof sensor.mountElevationM === 'number' ? (sensor.mountElevationM as number) : null,
+  });
+  main.append(h('section', { class: 'vessel-top' }, facts, h('figure', { class: 'card drawing' }, drawing, h('figcaption', {}, 'Drawn to scale from the vessel file'))));
+
+  // Cd over time, one chart per outlet
+  const section = h('section', {}, h('h2', {}, 'Discharge coefficient over time'));
+  main.append(section);
+  const fits = current(hist.fits).filter((f) => f.fit.result.dischargeCoefficient);
+  for (const o of outlets.length ? outlets : [null]) {
+    const mine = fits.filter((f) => o === null || f.fit.outletId === o.id || f.fit.outletId === null);
+    const box = h('div', { class: 'chart', id: `history-${o?.id ?? 0}` });
+    section.append(h('h3', {}, o ? `Outlet ${o.key}` : 'Outlet'));
+    if (!mine.length) {
+      section.append(h('p', {}, 'No fitted test yet.'));
+      continue;
+    }
+    const evs = events.filter((e) => o === null || e.outletId === null || e.outletId === o.id);
+    section.append(
+      h('p', { class: 'hint' }, 'Each point is one test; its bar is the expanded uncertainty (about 95 %). Filled: approved; open: waiting for review.', evs.length ? ' Dashed brown lines: maintenance.' : '', o?.actionThreshold !== null && o?.actionThreshold !== undefined ? ' Red line: action threshold.' : ''),
+      box,
+    );
+    const baseline = o && typeof (o as Record<string, unknown>).baseline === 'number' ? ((o as Record<string, unknown>).baseline as number) : null;
+    historyChart(
+      box,
+      mine.map((f) => ({ atS: Date.parse(f.at) / 1000, cd: f.fit.result.dischargeCoefficient!.value, expanded: f.fit.result.dischargeCoefficient!.expandedUncertainty ?? 2 * f.fit.result.dischargeCoefficient!.standardUncertainty, status: f.fit.status })),
+      evs.map((e) => ({ atS: Date.parse(e.occurredAt) / 1000, kind: e.kind })),
+      { threshold: o?.actionThreshold ?? null, baseline },
+    );
+  }
+
+  // the tests, newest first
+  const testsSection = h('section', {}, h('h2', {}, 'Drain tests'));
+  main.append(testsSection);
+  if (!hist.tests.length) {
+    testsSection.append(notice('info', 'No drain test yet.'));
+    return;
+  }
+  const latestFitOf = (testId: number) => hist.fits.filter((f) => f.fit.testId === testId && f.fit.supersededBy === null)[0] ?? hist.fits.find((f) => f.fit.testId === testId);
+  testsSection.append(
+    table('Tests of this vessel', ['Tested', 'Logger file', 'Outlet', 'Operator', 'Cd ± expanded uncertainty', 'Fit'], hist.tests.map((t) => {
+      const f = latestFitOf(t.id);
+      const cd = f?.fit.result.dischargeCoefficient;
+      return [
+        date(f?.at ?? t.testedAt ?? t.createdAt),
+        t.fileName,
+        v.outlets.find((o) => o.id === t.outletId)?.key ?? '—',
+        t.operator ?? '—',
+        cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty) : t.status === 'pending' ? 'waiting for analysis' : '—',
+        f ? h('a', { href: `#/fits/${f.fit.id}`, class: `badge badge-${f.fit.status}` }, `${f.fit.status} · open`) : '—',
+      ];
+    })),
+  );
+}
