@@ -44,7 +44,7 @@ console.log('file             Cd          parse ms   fit ms   diagnostics ms   p
 for (const name of ['vcyl-86400', 'hcyl-86400']) {
   const rows: Row[] = [];
   for (let i = 0; i < runs; i++) {
-    process.stderr.write(`  ${name}: run ${i + 1}/${runs}\r`);
+    if (process.stderr.isTTY) process.stderr.write(`  ${name}: run ${i + 1}/${runs}\r`);
     rows.push(fitOnce(name));
   }
   const m = (k: keyof Row) => median(rows.map((r) => r[k] as number));
@@ -61,4 +61,11 @@ for (const [script, label] of [
   console.log(`\n${label}:`);
   const r = spawnSync(process.execPath, ['--expose-gc', path], { stdio: 'inherit' });
   if (r.status !== 0) console.log(`  (${script} exited ${r.status})`);
+}
+
+// HTTP throughput on loopback (a real server in a temp folder); BENCH_HTTP=0 skips it
+if (process.env.BENCH_HTTP !== '0' && existsSync(join(root, 'bench', 'http.ts'))) {
+  console.log('\nHTTP on loopback (autocannon):');
+  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'bench', 'http.ts'), process.env.BENCH_HTTP_SECONDS ?? '6'], { stdio: 'inherit', cwd: root });
+  if (r.status !== 0) console.log(`  (http.ts exited ${r.status})`);
 }

@@ -162,8 +162,8 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const nominal = fit.nominalAreaM2;
 
   // drawing data: the whole log, and the window with the fitted curve
-  const logPlot = decimateForDrawing(series.timeS, series.levelM, 1200);
-  const winPlot = decimateForDrawing(data.timeS, data.levelM, 1200);
+  const logPlot = decimateForDrawing(series.timeS, series.levelM, 600);
+  const winPlot = decimateForDrawing(data.timeS, data.levelM, 600);
   const fitted = new Float64Array(winPlot.timeS.length);
   predictReadings(p.setting, fit.variant.solution, fit.variant.theta, Float64Array.from(winPlot.timeS), fitted, null, new Int32Array(0));
 
