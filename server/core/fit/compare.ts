@@ -84,7 +84,7 @@ export function compareModels(
     if (!terms.exponent) start[THETA.exponent] = 0.5;
     let v: FittedVariant;
     try {
-      v = fitVariant(input, terms, start, undefined, work);
+      v = fitVariant(input, terms, start, undefined, { work, sumSquaresOnly: true });
     } catch {
       return null; // a variant that cannot be evaluated is simply not compared
     }

@@ -1,10 +1,14 @@
 import { THETA } from '../drain/parameters.js';
+import { predictReadings } from '../drain/predict.js';
+import { createSolveWorkspace } from '../lsq/index.js';
 import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
 
 /**
  * Cd·a fitted separately in bands of head, to see whether the coefficient holds over the drain
  * (it drifts at low head with vortices and Reynolds-number effects). Each band refits Cd·a and its
- * own initial level with the other terms held at the whole-window values.
+ * own initial level with the other terms held at the whole-window values. Each band starts from
+ * the whole-window fit (its curve read at the band's first sample, not that one noisy reading),
+ * which is within the band's scatter of its optimum, and the bands share one set of work buffers.
  */
 export interface HeadBand {
   headFromM: number;
@@ -23,6 +27,9 @@ export function headBands(input: VariantInput, best: FittedVariant, bands = 4): 
   const hStart = head(0);
   const hEnd = head(m - 1);
   const out: HeadBand[] = [];
+  const work = createSolveWorkspace();
+  const at = new Float64Array(1);
+  const reading = new Float64Array(1);
   let from = 0;
   for (let b = 0; b < bands; b++) {
     const limit = hStart - ((b + 1) * (hStart - hEnd)) / bands;
@@ -35,8 +42,10 @@ export function headBands(input: VariantInput, best: FittedVariant, bands = 4): 
       for (let i = 0; i < count; i++) t[i] = timeS[from + i] - t0;
       const y = levelM.subarray(from, to);
       const start = Float64Array.from(best.theta);
-      start[THETA.initialReading] = y[0];
-      const v = fitVariant({ setting, timeS: t, levelM: y }, { inflow: false, datum: false, exponent: false }, start);
+      at[0] = t0;
+      const ok = predictReadings(setting, best.solution, best.theta, at, reading, null, best.free);
+      start[THETA.initialReading] = ok && Number.isFinite(reading[0]) ? reading[0] : y[0];
+      const v = fitVariant({ setting, timeS: t, levelM: y }, { inflow: false, datum: false, exponent: false }, start, undefined, { work });
       const s2 = v.solve.sumSquares / Math.max(count - v.k, 1);
       out.push({
         headFromM: head(from),

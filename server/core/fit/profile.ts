@@ -1,5 +1,6 @@
 import { THETA } from '../drain/parameters.js';
 import type { UncertaintyModel } from './uncertainty.js';
+import { createSolveWorkspace } from '../lsq/index.js';
 import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
 
 /**
@@ -8,6 +9,10 @@ import { fitVariant, type FittedVariant, type VariantInput } from './variant.js'
  * scale as the Wald interval. Solved on the signed root
  *   r(c) = sign(c − ĉ)·sqrt((SSR(c) − SSR_min)/(s²·inflation)),
  * which is close to linear in c, by secant steps from the Wald end points.
+ *
+ * Each refit starts where the covariance at the optimum says the other parameters go when Cd·a
+ * is held at c (their conditional mean, θ_j + Σ_jc/Σ_cc·(c − ĉ)), so it needs a step or two; the
+ * refits share one set of work buffers and compute no covariance.
  */
 export interface ProfileInterval {
   lower: number;
@@ -31,9 +36,17 @@ export function profileIntervalEffectiveArea(
   let refits = 0;
   let found = true;
 
+  const k = best.k;
+  const work = createSolveWorkspace();
+  const start = new Float64Array(best.theta.length);
   const signedRoot = (c: number): number => {
     refits++;
-    const v = fitVariant(input, best.terms, best.theta, { index: THETA.effectiveArea, value: c });
+    start.set(best.theta);
+    const cc = unc.covariance[col * k + col];
+    for (let j = 0; j < k; j++) {
+      if (j !== col && cc > 0) start[best.free[j]] += (unc.covariance[j * k + col] / cc) * (c - centre);
+    }
+    const v = fitVariant(input, best.terms, start, { index: THETA.effectiveArea, value: c }, { work, sumSquaresOnly: true });
     const rise = Math.max(v.solve.sumSquares - best.solve.sumSquares, 0);
     return Math.sign(c - centre) * Math.sqrt(rise / scale);
   };

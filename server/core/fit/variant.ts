@@ -22,16 +22,18 @@ export interface VariantInput {
   levelM: Float64Array;
 }
 
-/**
- * `work` lends the solver's m-sized buffers across refits of the same data (profile, comparison),
- * so a series of refits allocates them once.
- */
+/** For refits: `work` lends the solver's m-sized buffers across them; `sumSquaresOnly` skips the covariance. */
+export interface RefitOptions {
+  work?: SolveWorkspace;
+  sumSquaresOnly?: boolean;
+}
+
 export function fitVariant(
   input: VariantInput,
   terms: ModelTerms,
   start: Float64Array,
   fixed?: { index: number; value: number },
-  work?: SolveWorkspace,
+  refit: RefitOptions = {},
 ): FittedVariant {
   let free = freeIndices(terms);
   const base = Float64Array.from(start);
@@ -43,6 +45,6 @@ export function fitVariant(
   const { lower, upper } = boundsFor(free);
   const problem = drainProblem({ setting: input.setting, solution, timeS: input.timeS, levelM: input.levelM, theta: base, free, lower, upper });
   const p0 = Float64Array.from(free, (j) => base[j]);
-  const solve = solveLeastSquares(problem, p0, { maxIterations: 200, ftol: 1e-12, xtol: 1e-12 }, work);
+  const solve = solveLeastSquares(problem, p0, { maxIterations: 200, ftol: 1e-12, xtol: 1e-12, skipCovariance: refit.sumSquaresOnly }, refit.work);
   return { terms, solution, free, theta: expandTheta(base, free, solve.p), solve, k: free.length };
 }

@@ -29,6 +29,7 @@ export const DEFAULT_SOLVE_OPTIONS: Required<SolveOptions> = {
   xtol: 1e-12,
   gtol: 0,
   stepBound: 100,
+  skipCovariance: false,
 };
 
 const CONVERGED: ReadonlySet<StopReason> = new Set<StopReason>([
@@ -354,6 +355,9 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
   }
 
   const reason: StopReason = stopReason ?? 'max-iterations';
+  if (opt.skipCovariance) {
+    return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, reason, lower, upper, false, a);
+  }
   if (!jacobianCurrent && !(jacobianAt(x) && finite(J))) {
     // The accepted point's Jacobian is unusable; report what we have.
     return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, 'not-finite', lower, upper, false, a);
@@ -368,8 +372,8 @@ function scaledNorm(d: Float64Array, v: Float64Array, n: number): number {
 }
 
 function stripUndefined(o: SolveOptions): SolveOptions {
-  const out: Record<string, number> = {};
-  for (const [k, v] of Object.entries(o)) if (v !== undefined) out[k] = v as number;
+  const out: Record<string, number | boolean> = {};
+  for (const [k, v] of Object.entries(o)) if (v !== undefined) out[k] = v as number | boolean;
   return out as SolveOptions;
 }
 

@@ -35,6 +35,12 @@ export interface SolveOptions {
   gtol?: number;
   /** Initial trust-region radius factor (MINPACK's `factor`). */
   stepBound?: number;
+  /**
+   * When only the minimum's sum of squares is wanted (profile refits), skip the Jacobian, QR and
+   * SVD at the solution: unscaledCovariance and singularValues are then NaN, rank 0, and jacobian
+   * is the one of the last iteration.
+   */
+  skipCovariance?: boolean;
 }
 
 export interface SolveResult {
