@@ -14,9 +14,14 @@ type Command = { summary: string; load: () => Promise<{ run: (argv: string[]) =>
 const COMMANDS: Record<string, Command> = {
   fit: { summary: 'fit a drain test log: Cd·a and Cd with uncertainty', load: async () => ({ run: (await import('./fit.js')).runFit }) },
   inspect: { summary: 'show what was read from a log and the drain windows found, without fitting', load: async () => ({ run: (await import('./inspect.js')).runInspect }) },
+  'fit-system': { summary: 'fit connected vessels jointly: every outlet\'s Cd·a and Cd', load: async () => ({ run: (await import('./system.js')).runFitSystem }) },
+  steady: { summary: 'equilibrium levels of connected vessels at a given inflow', load: async () => ({ run: (await import('./system.js')).runSteady }) },
+  linearize: { summary: 'state-space model (A, B) and time constants about an operating point', load: async () => ({ run: (await import('./system.js')).runLinearize }) },
   serve: { summary: 'start the service (API and web workbench)', load: () => loadModule('serve') },
   token: { summary: 'create an API token: token create --role ROLE --name NAME', load: () => loadModule('token') },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
+  report: { summary: 'fit and outlet reports (PDF/JSON) and report verify', load: () => loadModule('report') },
+  export: { summary: 'approved fits of a site, vessel or period as one zip with hashes', load: () => loadModule('export') },
 };
 
 function usage(): string {

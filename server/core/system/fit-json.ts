@@ -1,0 +1,104 @@
+import { z } from 'zod';
+import { InputError } from '../errors.js';
+import { describeIssue } from '../vessel/issues.js';
+import type { Alignment } from './align.js';
+import type { SystemFitResult } from './fit.js';
+import type { SystemModel } from './model.js';
+import { buildNetwork, P, PER_VESSEL } from './network.js';
+import { validateSystem, type SystemSpec } from './schema.js';
+
+/**
+ * The fit-system JSON: the outlets' Cd·a and Cd in GUM terms, the joint correlation, the
+ * diagnostics, and enough to compute with later (the system as read, θ, the free parameters
+ * and their covariance), so `steady` and `linearize` can take it in place of a system file.
+ */
+export const SYSTEM_FIT_FORMAT = 'efflux-system-fit';
+
+export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment) {
+  const k = fit.free.length;
+  const rows = (a: Float64Array) => Array.from({ length: k }, (_, i) => Array.from(a.subarray(i * k, i * k + k)));
+  return {
+    format: SYSTEM_FIT_FORMAT,
+    version: 1,
+    system: spec,
+    converged: fit.converged,
+    stopReason: fit.stopReason,
+    iterations: fit.iterations,
+    outlets: fit.outlets,
+    parameters: fit.names.map((name, c) => ({ name, value: fit.theta[fit.free[c]], standardUncertainty: fit.standardUncertainties[c] })),
+    correlation: { names: fit.names, matrix: rows(fit.correlations) },
+    covariance: rows(fit.covariance),
+    theta: Array.from(fit.theta),
+    free: Array.from(fit.free),
+    degreesOfFreedom: fit.degreesOfFreedom,
+    coverageFactor: fit.coverageFactor,
+    diagnostics: {
+      uncertaintyMethod:
+        'each log weighted by 1/σ from a first unweighted pass; each log’s information divided by its AR(1) effective-sample-size factor (1+ρ)/(1−ρ); Student-t at Σ m_i/f_i − k degrees of freedom',
+      alignment: { t0: alignment.t0EpochMs === null ? null : new Date(alignment.t0EpochMs).toISOString(), spanS: alignment.spanS, samples: 'each log at its own sample times' },
+      vessels: fit.vessels,
+    },
+    warnings: [...alignment.warnings, ...fit.warnings],
+  };
+}
+
+const fitFileSchema = z.object({
+  format: z.literal(SYSTEM_FIT_FORMAT),
+  system: z.unknown(),
+  theta: z.array(z.number()),
+  free: z.array(z.number().int().min(0)),
+  covariance: z.array(z.array(z.number())),
+  degreesOfFreedom: z.number().positive(),
+});
+
+/** A SystemModel from a fit-system JSON document. */
+export function modelFromFitJson(value: unknown, fileName: string): { spec: SystemSpec; model: SystemModel } {
+  const r = fitFileSchema.safeParse(value);
+  if (!r.success) {
+    const { field, message } = describeIssue(r.error.issues[0], value);
+    throw new InputError(message, { file: fileName, field: field || undefined });
+  }
+  const spec = validateSystem(r.data.system, fileName);
+  const network = buildNetwork(spec);
+  const n = network.vessels.length;
+  const k = r.data.free.length;
+  if (r.data.theta.length !== n * PER_VESSEL) throw new InputError(`must hold ${n * PER_VESSEL} numbers for ${n} vessels`, { file: fileName, field: 'theta' });
+  if (r.data.free.some((p) => p >= n * PER_VESSEL)) throw new InputError('names a parameter that does not exist', { file: fileName, field: 'free' });
+  if (r.data.covariance.length !== k || r.data.covariance.some((row) => row.length !== k)) {
+    throw new InputError(`must be a ${k}×${k} matrix`, { file: fileName, field: 'covariance' });
+  }
+  return {
+    spec,
+    model: {
+      network,
+      theta: Float64Array.from(r.data.theta),
+      free: Int32Array.from(r.data.free),
+      covariance: Float64Array.from(r.data.covariance.flat()),
+      degreesOfFreedom: r.data.degreesOfFreedom,
+    },
+  };
+}
+
+/** A SystemModel from a system file whose vessels state their Cd·a (or Cd); no uncertainty. */
+export function modelFromSystem(spec: SystemSpec, fileName: string): SystemModel {
+  const network = buildNetwork(spec);
+  const theta = new Float64Array(network.vessels.length * PER_VESSEL);
+  network.vessels.forEach((v, i) => {
+    if (v.knownEffectiveAreaM2 === null) {
+      throw new InputError('needs the outlet’s effectiveAreaM2 (or dischargeCoefficient) to compute without a fit; or give the output of fit-system --json', {
+        file: fileName,
+        field: `vessels.${i}.effectiveAreaM2`,
+      });
+    }
+    theta[i * PER_VESSEL + P.effectiveArea] = v.knownEffectiveAreaM2;
+    theta[i * PER_VESSEL + P.sensorZero] = v.sensorZeroM ?? 0;
+  });
+  return { network, theta, free: new Int32Array(0), covariance: null, degreesOfFreedom: 1e7 };
+}
+
+/** Either kind of file: a fit-system JSON (has "format") or a system file. */
+export function loadSystemModel(value: unknown, fileName: string): { spec: SystemSpec; model: SystemModel; fromFit: boolean } {
+  if (value !== null && typeof value === 'object' && 'format' in value) return { ...modelFromFitJson(value, fileName), fromFit: true };
+  const spec = validateSystem(value, fileName);
+  return { spec, model: modelFromSystem(spec, fileName), fromFit: false };
+}
