@@ -1,0 +1,126 @@
+/**
+ * A period export: every approved (current) fit chosen by site, vessel and test date, as one zip
+ * of the fit reports in PDF, a CSV summary, the audit-log excerpt for those tests and fits, and a
+ * manifest of SHA-256 hashes (manifest.json and SHA256SUMS for `sha256sum -c`). Deterministic:
+ * the zip's timestamps are the latest approval time among the fits.
+ */
+import { createHash } from 'node:crypto';
+import { InputError } from '../core/errors.js';
+import type { SoftwareRecord } from '../core/report/index.js';
+import type { AuditEntry } from '../store/audit.js';
+import type { Store } from '../store/index.js';
+import type { StoredFit } from '../store/fits.js';
+import type { Vessel } from '../store/vessels.js';
+import { renderFitReportPdf } from './fit-report-pdf.js';
+import { allFitsOfVessel, countsInHistory } from './report-records.js';
+import { fitReport } from './report-service.js';
+import { writeZip, type ZipEntry } from './zip.js';
+
+export interface ExportSelection {
+  site?: string;
+  /** A vessel id or name. */
+  vessel?: string;
+  /** YYYY-MM-DD or an ISO time; test dates from (inclusive). */
+  from?: string;
+  /** YYYY-MM-DD (the whole day counts) or an ISO time; test dates up to. */
+  to?: string;
+}
+
+const DAY = 86_400_000;
+
+function bound(s: string | undefined, field: string, endOfDay: boolean): number | null {
+  if (s === undefined) return null;
+  const dateOnly = /^\d{4}-\d{2}-\d{2}$/.test(s);
+  const ms = Date.parse(dateOnly ? `${s}T00:00:00Z` : s);
+  if (!Number.isFinite(ms)) throw new InputError(`"${s}" is not a date (YYYY-MM-DD or ISO time)`, { field });
+  return dateOnly && endOfDay ? ms + DAY : ms;
+}
+
+function allVessels(store: Store): Vessel[] {
+  const out: Vessel[] = [];
+  for (let offset = 0; ; offset += 500) {
+    const page = store.vessels.list(500, offset);
+    out.push(...page.items);
+    if (out.length >= page.total || page.items.length === 0) return out;
+  }
+}
+
+export function selectFits(store: Store, sel: ExportSelection): { fit: StoredFit; vessel: Vessel; testedAt: string }[] {
+  const from = bound(sel.from, 'from', false);
+  const to = bound(sel.to, 'to', true);
+  if (from !== null && to !== null && to <= from) throw new InputError('--to is before --from', { field: 'to' });
+  const vessels = allVessels(store).filter((v) => (sel.site === undefined || v.site === sel.site) && (sel.vessel === undefined || String(v.id) === sel.vessel || v.name === sel.vessel));
+  if (sel.vessel !== undefined && vessels.length === 0) throw new InputError(`no vessel "${sel.vessel}"${sel.site ? ` at site "${sel.site}"` : ''}`, { field: 'vessel' });
+  const out: { fit: StoredFit; vessel: Vessel; testedAt: string }[] = [];
+  for (const v of vessels) {
+    for (const f of allFitsOfVessel(store, v.id).filter(countsInHistory)) {
+      const test = store.tests.get(f.testId);
+      const testedAt = test.testedAt ?? test.createdAt;
+      const t = Date.parse(testedAt);
+      if ((from !== null && t < from) || (to !== null && t >= to)) continue;
+      out.push({ fit: f, vessel: v, testedAt });
+    }
+  }
+  return out.sort((a, b) => a.fit.id - b.fit.id);
+}
+
+const csvField = (v: unknown) => {
+  const s = v === null || v === undefined ? '' : String(v);
+  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+};
+
+export interface ExportResult {
+  zip: Buffer;
+  fits: number;
+  files: { name: string; size: number; sha256: string }[];
+}
+
+export async function periodExport(store: Store, sel: ExportSelection, software: SoftwareRecord): Promise<ExportResult> {
+  const chosen = selectFits(store, sel);
+  if (chosen.length === 0) throw new InputError('no approved fits match the selection');
+  const entries: ZipEntry[] = [];
+  const rows: string[][] = [[
+    'fit_id', 'report_id', 'site', 'vessel', 'outlet', 'tested_at', 'cd', 'cd_standard_uncertainty', 'cd_coverage_factor', 'cd_expanded_uncertainty',
+    'cda_m2', 'cda_standard_uncertainty_m2', 'warnings', 'approved_by', 'approved_at', 'raw_file', 'raw_sha256', 'report_file',
+  ]];
+  const auditSeqs = new Set<number>();
+  const audit: AuditEntry[] = [];
+  let latest = '1980-01-01T00:00:00.000Z';
+  for (const { fit, vessel, testedAt } of chosen) {
+    const report = fitReport(store, fit.id, software);
+    const pdfName = `reports/fit-${fit.id}-${report.reportId}.pdf`;
+    entries.push({ name: pdfName, bytes: await renderFitReportPdf(report) });
+    const cd = report.results.dischargeCoefficient;
+    const ea = report.results.effectiveArea;
+    rows.push([
+      String(fit.id), report.reportId, vessel.site, vessel.name, report.outlet.key ?? '', testedAt,
+      String(cd?.value ?? ''), String(cd?.standardUncertainty ?? ''), String(cd?.coverageFactor ?? ''), String(cd?.expandedUncertainty ?? ''),
+      String(ea.value), String(ea.standardUncertainty ?? ''), String(report.warnings.length), report.review?.by ?? '', report.review?.at ?? '',
+      report.rawFiles[0].fileName, report.rawFiles[0].sha256, pdfName,
+    ]);
+    if (report.review && Date.parse(report.review.at) > Date.parse(latest)) latest = report.review.at;
+    for (const [type, id] of [['test', fit.testId], ['fit', fit.id]] as const) {
+      for (const e of store.audit.list({ entityType: type, entityId: String(id), limit: 1000 })) {
+        if (!auditSeqs.has(e.seq)) auditSeqs.add(e.seq), audit.push(e);
+      }
+    }
+  }
+  audit.sort((a, b) => a.seq - b.seq);
+  const enc = new TextEncoder();
+  entries.push({ name: 'summary.csv', bytes: enc.encode(rows.map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n') });
+  entries.push({ name: 'audit-excerpt.jsonl', bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n') });
+  const files = entries.map((e) => ({ name: e.name, size: e.bytes.length, sha256: createHash('sha256').update(e.bytes).digest('hex') }));
+  const manifest = {
+    format: 'efflux-period-export',
+    version: 1,
+    selection: sel,
+    software,
+    fits: chosen.length,
+    latestApproval: latest,
+    note: 'The audit excerpt keeps each entry whole with its chain hashes; check the full chain with `efflux audit verify`, and each report with `efflux report verify`.',
+    files,
+  };
+  entries.push({ name: 'manifest.json', bytes: enc.encode(JSON.stringify(manifest, null, 2) + '\n') });
+  entries.push({ name: 'SHA256SUMS', bytes: enc.encode(files.map((f) => `${f.sha256}  ${f.name}`).join('\n') + '\n') });
+  return { zip: writeZip(entries, latest), fits: chosen.length, files };
+}

@@ -1,0 +1,166 @@
+/**
+ * Reports from the store (shell side): build a fit or outlet report and its PDF, and verify a
+ * report file against the records — the same rebuild, the stored fit recomputed from the stored
+ * raw bytes, and the audit chain.
+ */
+import { createHash } from 'node:crypto';
+import type { AnalysisRequest, FitJson } from '../core/analysis-contract.js';
+import { analyzeDrainTest } from '../core/analyze.js';
+import {
+  buildFitReport,
+  buildOutletReport,
+  compareReports,
+  contentHash,
+  reportIdOf,
+  type FitReport,
+  type OutletReport,
+  type ReportDifference,
+  type SoftwareRecord,
+} from '../core/report/index.js';
+import { canonicalJson } from '../store/canonical-json.js';
+import type { Store } from '../store/index.js';
+import { renderFitReportPdf } from './fit-report-pdf.js';
+import { renderOutletReportPdf } from './outlet-report-pdf.js';
+import { readReportFile, type ReportFile } from './report-file.js';
+import { fitReportRecords, outletReportRecords } from './report-records.js';
+
+export function fitReport(store: Store, fitId: number, software: SoftwareRecord): FitReport {
+  return buildFitReport(fitReportRecords(store, fitId), software);
+}
+
+export function outletReport(store: Store, outletId: number, software: SoftwareRecord, asOf?: string): OutletReport {
+  return buildOutletReport(outletReportRecords(store, outletId), software, asOf);
+}
+
+export { renderFitReportPdf, renderOutletReportPdf };
+
+const sha256 = (b: Uint8Array | string) => createHash('sha256').update(b).digest('hex');
+
+export interface Check {
+  name: string;
+  ok: boolean;
+  detail: string;
+  differences?: ReportDifference[];
+}
+
+export interface VerifyOutcome {
+  ok: boolean;
+  kind: 'fit' | 'outlet';
+  reportId: string;
+  checks: Check[];
+}
+
+/** The request that produced a stored fit: its raw bytes, the vessel file it was given, its settings. */
+function storedRequest(store: Store, fitId: number): { request: AnalysisRequest; result: FitJson } {
+  const fit = store.fits.get(fitId);
+  const test = store.tests.get(fit.testId);
+  return {
+    request: {
+      log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
+      baro: test.baro ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName } : undefined,
+      vessel: fit.vessel,
+      settings: fit.settings,
+    },
+    result: fit.result as FitJson,
+  };
+}
+
+const withoutTiming = (r: Record<string, unknown>) => {
+  const { timing: _t, ...rest } = r;
+  return rest;
+};
+
+/** Re-runs a stored fit from the stored bytes and settings; identical numbers, timing aside, or the differences. */
+export function reproduceFit(store: Store, fitId: number): Check {
+  const { request, result } = storedRequest(store, fitId);
+  const raw = sha256(request.log.bytes);
+  const test = store.tests.get(store.fits.get(fitId).testId);
+  if (raw !== test.sha256) return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored raw bytes hash to ${raw}, not the recorded ${test.sha256}` };
+  let again: FitJson;
+  try {
+    again = analyzeDrainTest(request).fit;
+  } catch (e) {
+    return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored input no longer analyses: ${(e as Error).message}` };
+  }
+  const a = canonicalJson(withoutTiming(result));
+  const b = canonicalJson(withoutTiming(again as Record<string, unknown>));
+  if (a === b) return { name: `reproduce fit ${fitId}`, ok: true, detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)' };
+  const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
+  return {
+    name: `reproduce fit ${fitId}`,
+    ok: false,
+    detail: `the stored result differs from a recomputation from the stored raw bytes (engine ${again.engineVersion}, stored by ${result.engineVersion}) at ${differences.map((d) => d.path).join(', ')}`,
+    differences,
+  };
+}
+
+/** The stored result against the hash the audit log recorded for it when the fit was last written. */
+function auditedResult(store: Store, fitId: number): Check {
+  const fit = store.fits.get(fitId);
+  const entries = store.audit.list({ entityType: 'fit', entityId: String(fitId), limit: 1000 });
+  const last = [...entries].reverse().find((e) => (e.after as { resultSha256?: string } | null)?.resultSha256);
+  const recorded = (last?.after as { resultSha256?: string } | undefined)?.resultSha256;
+  const now = sha256(canonicalJson(fit.result));
+  if (!recorded) return { name: `audit record of fit ${fitId}`, ok: false, detail: 'the audit log holds no hash of this fit' };
+  if (recorded !== now) return { name: `audit record of fit ${fitId}`, ok: false, detail: `the stored fit result was changed after audit entry ${last!.seq} recorded it (hash ${now.slice(0, 16)}…, recorded ${recorded.slice(0, 16)}…)` };
+  return { name: `audit record of fit ${fitId}`, ok: true, detail: `stored result matches the hash in audit entry ${last!.seq}` };
+}
+
+function softwareOf(file: ReportFile): SoftwareRecord {
+  if (file.report?.software) return file.report.software as SoftwareRecord;
+  const [name, version, gitCommit] = (file.info.EffluxSoftware ?? 'efflux unknown unknown').split(' ');
+  return { name, version, gitCommit };
+}
+
+export async function verifyReport(store: Store, bytes: Buffer, fileName: string): Promise<VerifyOutcome> {
+  const file = readReportFile(bytes, fileName);
+  const checks: Check[] = [];
+  // 1. the file agrees with itself
+  if (file.report) {
+    const h = contentHash(file.report);
+    const ok = h === file.contentSha256 && reportIdOf(h) === file.reportId && file.report.contentSha256 === file.contentSha256;
+    checks.push({ name: 'file content hash', ok, detail: ok ? `the report's content hashes to ${h}` : `the report's content hashes to ${h}, but the file states ${file.contentSha256} (id ${file.reportId}): edited after it was written` });
+  } else {
+    checks.push({ name: 'file content hash', ok: false, detail: 'the PDF has no attached report.json; only the bytes can be compared' });
+  }
+  // 2. rebuilt from the records
+  const software = softwareOf(file);
+  let rebuilt: FitReport | OutletReport;
+  const fitIds: number[] = [];
+  if (file.kind === 'fit') {
+    const fitId = Number(file.report?.fitId ?? file.info.EffluxFitId);
+    rebuilt = fitReport(store, fitId, software);
+    fitIds.push(fitId);
+  } else {
+    const outletId = Number(file.report?.outlet?.id ?? file.info.EffluxOutletId);
+    const asOf = String(file.report?.asOf ?? file.info.EffluxAsOf);
+    rebuilt = outletReport(store, outletId, software, asOf);
+    fitIds.push(...rebuilt.fits.map((f) => f.fitId));
+  }
+  const same = rebuilt.contentSha256 === file.contentSha256;
+  const differences = same || !file.report ? [] : compareReports(file.report, rebuilt, 20, ['reportId', 'contentSha256']);
+  checks.push({
+    name: 'records',
+    ok: same,
+    detail: same
+      ? `rebuilt from the database: same content (report ${rebuilt.reportId})`
+      : `rebuilt from the database the report is ${rebuilt.reportId}, not ${file.reportId}` + (differences.length ? `; differs at ${differences.map((d) => d.path).join(', ')}` : ''),
+    differences,
+  });
+  // 3. the PDF's bytes
+  if (file.type === 'pdf') {
+    const pdf = file.kind === 'fit' ? await renderFitReportPdf(rebuilt as FitReport) : await renderOutletReportPdf(rebuilt as OutletReport);
+    const a = sha256(bytes);
+    const b = sha256(pdf);
+    checks.push({ name: 'PDF bytes', ok: a === b, detail: a === b ? `re-rendered PDF is byte-identical (SHA-256 ${a})` : `re-rendered PDF has SHA-256 ${b}, the file ${a}` });
+  }
+  // 4. every fit reproduces from the stored raw bytes, and matches what the audit log recorded
+  for (const id of fitIds) {
+    checks.push(reproduceFit(store, id));
+    checks.push(auditedResult(store, id));
+  }
+  // 5. the audit chain
+  const chain = store.audit.verify();
+  checks.push({ name: 'audit chain', ok: chain.ok, detail: chain.ok ? `intact, ${chain.count} entries, head ${chain.head}` : `broken at entry ${chain.brokenAt}: ${chain.reason}` });
+  return { ok: checks.every((c) => c.ok), kind: file.kind, reportId: file.reportId, checks };
+}
