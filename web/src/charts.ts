@@ -65,8 +65,7 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
     height,
     scales: { x: { time: false } },
     legend: { show: true },
-    cursor: { drag: { x: !!onDrag, y: false, setScale: false } },
-    select: { show: true, left: 0, top: 0, width: 0, height: 0 },
+    cursor: { drag: { x: false, y: false, setScale: false } },
     axes: [axis('time from the start of the log (min)', { values: minutes }), axis('level above the sensor zero (m)')],
     series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) }, { label: 'level (m)', stroke: COLOURS.level, width: 1.5, value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) }],
     hooks: {
@@ -91,19 +90,14 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
           ctx.restore();
         },
       ],
-      setSelect: [
-        (u) => {
-          if (!onDrag || u.select.width < 4) return;
-          const a = u.posToVal(u.select.left, 'x');
-          const b = u.posToVal(u.select.left + u.select.width, 'x');
-          u.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
-          onDrag(Math.max(a, timeS[0]), Math.min(b, timeS[timeS.length - 1]));
-        },
-      ],
     },
   };
   const u = new uPlot(opts, [drawn.x, drawn.y] as uPlot.AlignedData, el);
   fit(u, el, height);
+  if (onDrag) dragWindow(u, () => current, (w) => {
+    current = w;
+    u.redraw(false, false);
+  }, (w) => onDrag(Math.max(w.startS, timeS[0]), Math.min(w.endS, timeS[timeS.length - 1])));
   return {
     setWindow(startS, endS) {
       current = { startS, endS };
@@ -111,6 +105,53 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
     },
     destroy: () => u.destroy(),
   };
+}
+
+/**
+ * Dragging on the plot: near an edge of the window moves that edge, elsewhere draws a new window.
+ * Pointer events of our own (not uPlot's select), so edges can be grabbed and touch works too.
+ */
+function dragWindow(u: uPlot, get: () => { startS: number; endS: number } | null, live: (w: { startS: number; endS: number }) => void, done: (w: { startS: number; endS: number }) => void): void {
+  const over = u.over;
+  let mode: 'start' | 'end' | 'new' | null = null;
+  let anchor = 0;
+  const xAt = (e: PointerEvent) => u.posToVal(e.clientX - over.getBoundingClientRect().left, 'x');
+  const edgeAt = (e: PointerEvent): 'start' | 'end' | null => {
+    const w = get();
+    if (!w) return null;
+    const px = e.clientX - over.getBoundingClientRect().left;
+    if (Math.abs(px - u.valToPos(w.startS, 'x')) < 7) return 'start';
+    if (Math.abs(px - u.valToPos(w.endS, 'x')) < 7) return 'end';
+    return null;
+  };
+  over.addEventListener('pointerdown', (e) => {
+    if (e.button !== 0) return;
+    mode = edgeAt(e) ?? 'new';
+    anchor = xAt(e);
+    over.setPointerCapture(e.pointerId);
+    e.preventDefault();
+  });
+  over.addEventListener('pointermove', (e) => {
+    if (!mode) {
+      over.classList.toggle('at-edge', edgeAt(e) !== null);
+      return;
+    }
+    const x = xAt(e);
+    const w = get() ?? { startS: x, endS: x };
+    if (mode === 'start') live({ startS: Math.min(x, w.endS - 1), endS: w.endS });
+    else if (mode === 'end') live({ startS: w.startS, endS: Math.max(x, w.startS + 1) });
+    else live({ startS: Math.min(anchor, x), endS: Math.max(anchor, x) });
+  });
+  const finish = (e: PointerEvent) => {
+    if (!mode) return;
+    const moved = Math.abs(u.valToPos(xAt(e), 'x') - u.valToPos(anchor, 'x')) >= 4;
+    const wasNew = mode === 'new';
+    mode = null;
+    const w = get();
+    if (w && (moved || !wasNew) && w.endS > w.startS) done(w);
+  };
+  over.addEventListener('pointerup', finish);
+  over.addEventListener('pointercancel', finish);
 }
 
 export interface WindowPlot {

@@ -72,9 +72,11 @@ export function vesselDrawing(spec: Spec, marks: Marks, size = { w: 340, h: 320 
   for (let i = 0; i <= steps; i++) ys.push((p.heightM * i) / steps);
   for (const y of ys) maxHalf = Math.max(maxHalf, p.halfWidth(y));
   const top = Math.max(p.heightM, marks.mountElevationM ?? 0);
-  const pad = 44;
-  const scale = Math.min((size.w - 2 * pad - 70) / (2 * maxHalf || 1), (size.h - 2 * pad) / (top || 1));
-  const cx = pad + maxHalf * scale;
+  // left: the scale bar; right: room for the outlet's label
+  const padLeft = 64, padRight = 96, padV = 36;
+  const scale = Math.min((size.w - padLeft - padRight) / (2 * maxHalf || 1), (size.h - 2 * padV) / (top || 1));
+  const cx = padLeft + maxHalf * scale;
+  const pad = padV;
   const bottom = size.h - pad;
   const X = (x: number) => (cx + x * scale).toFixed(1);
   const Y = (y: number) => (bottom - y * scale).toFixed(1);
@@ -97,18 +99,19 @@ export function vesselDrawing(spec: Spec, marks: Marks, size = { w: 340, h: 320 
     if (hw < maxHalf * 0.05 || o.elevationM <= 1e-6) {
       // at the lowest point: the outlet leaves downwards
       parts.push(svg('rect', { x: (cx - 5).toFixed(1), y: y.toFixed(1), width: 10, height: 16, fill: '#c4521c' }));
-      parts.push(label(cx + 10, y + 14, `outlet ${o.name}`, 'start', '#8a3512'));
+      parts.push(label(cx + 10, y + 14, `outlet ${o.name} (${o.elevationM} m)`, 'start', '#8a3512'));
     } else {
       const x = Number(X(hw));
       parts.push(svg('rect', { x: x.toFixed(1), y: (y - 5).toFixed(1), width: 18, height: 10, fill: '#c4521c' }));
-      parts.push(label(x + 22, y + 4, `outlet ${o.name}`, 'start', '#8a3512'));
+      parts.push(label(x + 22, y - 8, `outlet ${o.name}`, 'start', '#8a3512'));
+      parts.push(label(x + 22, y + 16, `${o.elevationM} m up`, 'start', '#8a3512'));
     }
   }
   if (marks.sensorZeroM !== null) {
     const y = Y(marks.sensorZeroM);
     parts.push(svg('line', { x1: X(-maxHalf) , y1: y, x2: X(maxHalf), y2: y, stroke: '#2e8b78', 'stroke-width': 1.5, 'stroke-dasharray': '6 4' }));
     parts.push(svg('circle', { cx: X(-p.halfWidth(marks.sensorZeroM)), cy: y, r: 4, fill: '#2e8b78' }));
-    parts.push(label(Number(X(-maxHalf)) - 4, Number(y) - 6, 'sensor zero', 'end', '#1f6b5b'));
+    parts.push(label(Number(X(-p.halfWidth(marks.sensorZeroM))) + 8, Number(y) - 6, 'sensor zero', 'start', '#1f6b5b'));
   }
   if (marks.mountElevationM !== null) {
     const y = Number(Y(marks.mountElevationM));
@@ -120,9 +123,9 @@ export function vesselDrawing(spec: Spec, marks: Marks, size = { w: 340, h: 320 
   const nice = [0.1, 0.2, 0.25, 0.5, 1, 2, 2.5, 5, 10, 20, 50];
   const want = top / 4;
   const bar = nice.reduce((best, v) => (Math.abs(v - want) < Math.abs(best - want) ? v : best), 1);
-  const bx = size.w - 24;
+  const bx = 16;
   parts.push(svg('line', { x1: bx, y1: bottom, x2: bx, y2: (bottom - bar * scale).toFixed(1), stroke: '#1d2a33', 'stroke-width': 3 }));
-  parts.push(label(bx - 6, bottom - (bar * scale) / 2, `${bar} m`, 'end'));
+  parts.push(label(bx + 6, bottom - (bar * scale) / 2, `${bar} m`, 'start'));
   parts.push(svg('line', { x1: 8, y1: bottom, x2: size.w - 8, y2: bottom, stroke: '#9aa4ab', 'stroke-width': 1 }));
   parts.push(label(8, size.h - 10, p.view, 'start', '#4a5560'));
 

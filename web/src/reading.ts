@@ -95,6 +95,8 @@ export interface WindowForm {
   /** "START..END" when a person chose it, else undefined (the service chooses). */
   value(): string | undefined;
   onChange(cb: (startS: number, endS: number) => void): void;
+  /** Whether there is a detected window to go back to. */
+  detected(yes: boolean): void;
 }
 
 export function windowForm(clock: (s: number) => string | null): WindowForm {
@@ -107,6 +109,10 @@ export function windowForm(clock: (s: number) => string | null): WindowForm {
   const reset = h('button', { type: 'button', class: 'quiet' }, 'Use the detected window');
   const describe = () => {
     const a = Number(start.value), b = Number(end.value);
+    if (start.value === '' || end.value === '' || !(b > a)) {
+      said.textContent = start.value === '' && end.value === '' ? 'No window stated: the service chooses it.' : 'Give a start and a later end.';
+      return;
+    }
     const ca = clock(a), cb = clock(b);
     said.textContent = `${byPerson ? 'Your window' : 'Detected window'}: ${a.toFixed(1)} s to ${b.toFixed(1)} s from the first reading (${(b - a).toFixed(1)} s long)${ca && cb ? `, ${ca} to ${cb}` : ''}.`;
   };
@@ -134,6 +140,9 @@ export function windowForm(clock: (s: number) => string | null): WindowForm {
     },
     value: () => (byPerson && Number(end.value) > Number(start.value) ? `${Number(start.value)}..${Number(end.value)}` : undefined),
     onChange: (cb) => listeners.push(cb),
+    detected(yes) {
+      reset.hidden = !yes;
+    },
   };
   start.id = 'win-start';
   end.id = 'win-end';

@@ -30,6 +30,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     routeExists(`/api/fits/${id}/report.pdf`),
   ]);
   const r = fit.result;
+  // the engine's own flag for a stated window is not always set; the stored settings say it
+  const chosenBy = fit.settings.window ? `by the person (${fit.settings.window} s)` : r.window.chosenBy ?? 'automatically';
   const cd = r.dischargeCoefficient;
   const ea = r.effectiveAreaM2;
   const outlet = vessel.outlets.find((o) => o.id === fit.outletId);
@@ -49,7 +51,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
       { class: 'headline', 'aria-label': 'Result' },
       h('div', { class: 'card big' }, h('h2', {}, 'Discharge coefficient Cd'), h('p', { class: 'value' }, cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty) : 'not available'), h('p', { class: 'hint' }, cd ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95[0], 4)} to ${num(cd.ci95[1], 4)}` : 'the outlet bore is not known, so only Cd·a is given')),
       h('div', { class: 'card big' }, h('h2', {}, 'Effective area Cd·a'), h('p', { class: 'value' }, areaMm2(ea.value, ea.expandedUncertainty ?? 2 * ea.standardUncertainty)), h('p', { class: 'hint' }, `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95[0])} to ${areaMm2(ea.ci95[1])}`)),
-      h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${seconds(r.window.startS)} to ${seconds(r.window.endS)} from the first reading`), h('p', { class: 'hint' }, `${r.window.samples} readings, chosen ${r.window.chosenBy ?? ''}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
+      h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${seconds(r.window.startS)} to ${seconds(r.window.endS)} from the first reading`), h('p', { class: 'hint' }, `${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
       h('div', { class: 'card' }, h('h2', {}, 'Scatter about the curve'), h('p', {}, `RMS ${mm(r.residuals?.rmseM)}`), h('p', { class: 'hint' }, `largest ${mm(r.residuals?.maxAbsM)}; neighbouring residuals correlate ${num(r.residuals?.lag1Autocorrelation, 2)}; ${r.converged ? 'the solver converged' : 'the solver did NOT converge'}`)),
     ),
   );

@@ -92,7 +92,9 @@ export async function newTestPage({ user, params, main, go }: PageContext): Prom
   let t0: string | null = null;
   const win = windowForm((s) => clockAt(t0, s));
   win.onChange((a, b) => chart?.setWindow(a, b));
-  const windowSection = h('section', { class: 'window' }, h('h2', {}, 'Drain window'), h('p', { class: 'hint' }, 'The shaded stretch is the part of the log that is fitted. Drag across the chart to choose another, or type the times.'), chartBox, win.el);
+  const dragHint = h('p', { class: 'hint' }, 'The shaded stretch is the part of the log that is fitted. Drag across the chart to choose another, or type the times.');
+  const typeHint = h('p', { class: 'hint' }, 'Leave both empty to let the service choose the window, or type the stretch to fit.');
+  const windowSection = h('section', { class: 'window' }, h('h2', {}, 'Drain window'), dragHint, typeHint, chartBox, win.el);
   windowSection.hidden = true;
 
   const model = modelForm({}, !datumKnown);
@@ -137,6 +139,9 @@ export async function newTestPage({ user, params, main, go }: PageContext): Prom
         preview.append(h('h2', {}, 'Preview'), notice('info', 'This service does not offer a preview of the reading. The columns and the drain window are detected when the test is fitted; you can change the window on the fit page, or type it below.'), headTable(await localHead(logInput.files[0]), null));
         windowSection.hidden = false;
         chartBox.hidden = true;
+        dragHint.hidden = true;
+        typeHint.hidden = false;
+        win.detected(false);
         return;
       }
       preview.append(notice('error', `The file could not be read: ${e instanceof Error ? e.message : String(e)}`));
@@ -178,6 +183,9 @@ export async function newTestPage({ user, params, main, go }: PageContext): Prom
     );
     windowSection.hidden = false;
     chartBox.hidden = false;
+    dragHint.hidden = false;
+    typeHint.hidden = true;
+    win.detected(true);
     chart?.destroy();
     clear(chartBox);
     const w = d.window as { startS: number; endS: number };

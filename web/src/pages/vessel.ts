@@ -84,6 +84,11 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
       h('p', { class: 'hint' }, 'Each point is one test; its bar is the expanded uncertainty (about 95 %). Filled: approved; open: waiting for review.', evs.length ? ' Dashed brown lines: maintenance.' : '', o?.actionThreshold !== null && o?.actionThreshold !== undefined ? ' Red line: action threshold.' : ''),
       box,
     );
+    // counts for tests and assistive text (the canvas itself has no readable content)
+    box.dataset.points = String(mine.length);
+    box.dataset.approved = String(mine.filter((f) => f.fit.status === 'approved').length);
+    box.setAttribute('role', 'img');
+    box.setAttribute('aria-label', `Cd of outlet ${o?.key ?? ''} over time: ${mine.length} tests, ${box.dataset.approved} approved`);
     const baseline = o && typeof (o as Record<string, unknown>).baseline === 'number' ? ((o as Record<string, unknown>).baseline as number) : null;
     historyChart(
       box,

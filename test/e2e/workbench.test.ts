@@ -1,0 +1,170 @@
+/**
+ * The web workbench in a real browser (Debian's chromium through playwright-core) against a real
+ * server process with the demo data: sign in → fleet → vessel → new test with a sample file →
+ * adjust the window → fit → approve → the new point on the vessel's chart; then an auditor, who
+ * is offered no edit controls. Screenshots of each page go to test-output/screenshots/.
+ * The bundle is built here into a temporary folder (EFFLUX_WEB_ROOT), so no separate step is needed.
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { BrowserContext, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { buildWeb } from '../../web/build.js';
+import { dragAcross, guardBrowser, haveBrowser, launch, root, shots, unexpected } from './browser.js';
+
+const SAMPLE = join(root, 'sample-data/fb1-2026-03-26-leaking-inlet.csv');
+guardBrowser('workbench flow');
+
+describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
+  let server: ChildProcess;
+  let base = '';
+  let adminToken = '';
+  let context: BrowserContext;
+  let page: Page;
+  const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
+  const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
+  let profile = '';
+  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1' };
+  let problems: string[] = [];
+
+  beforeAll(async () => {
+    mkdirSync(shots, { recursive: true });
+    await buildWeb(webRoot);
+    server = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    await new Promise<void>((resolve, reject) => {
+      server.stdout!.on('data', (d) => {
+        out += d;
+        const m = /listening on (http:\/\/127\.0\.0\.1:\d+)/.exec(out);
+        if (m && /\/api\/docs\n/.test(out)) {
+          base = m[1];
+          resolve();
+        }
+      });
+      server.stderr!.on('data', (d) => (out += d));
+      server.once('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
+    });
+    adminToken = /keep it safe:\n\s+(\S+)/.exec(out)![1];
+    ({ context, page, profile, problems } = await launch());
+  }, 180_000);
+
+  afterAll(async () => {
+    await context?.close();
+    if (server && server.exitCode === null) {
+      const exited = new Promise((r) => server.once('exit', r));
+      process.kill(server.pid!, 'SIGTERM');
+      await exited;
+    }
+    for (const d of [dataDir, webRoot, profile]) rmSync(d, { recursive: true, force: true });
+  });
+
+  const shot = (name: string) => page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
+
+  async function signIn(token: string) {
+    await page.goto(`${base}/`);
+    await page.getByLabel('Access token').fill(token);
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.getByRole('heading', { level: 1, name: 'Fleet' }).waitFor();
+  }
+
+  it('sign-in → new test → adjust the window → fit → approve → the new point on the chart', async () => {
+    await page.goto(`${base}/`);
+    await page.getByRole('heading', { name: 'Sign in' }).waitFor();
+    await shot('01-sign-in');
+    // a wrong token is refused in words, not with a blank page
+    await page.getByLabel('Access token').fill('not-a-token');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.getByRole('alert').waitFor();
+    await signIn(adminToken);
+
+    // fleet: every demo vessel, and the search narrows it
+    await page.locator('table.fleet tbody tr').first().waitFor();
+    expect(await page.locator('table.fleet tbody tr').count()).toBeGreaterThanOrEqual(8);
+    await shot('02-fleet');
+    await page.getByLabel('Search').fill('backwash');
+    expect(await page.locator('table.fleet tbody tr').count()).toBe(1);
+
+    // vessel page: drawing and the Cd history
+    await page.getByRole('link', { name: 'Backwash tank FB-1' }).click();
+    await page.locator('svg.vessel-drawing').waitFor();
+    const history = page.locator('.chart[id^="history-"]').first();
+    await history.locator('canvas').waitFor();
+    const approvedBefore = Number(await history.getAttribute('data-approved'));
+    await shot('03-vessel');
+
+    // new test: the caution, the file, the preview
+    await page.getByRole('link', { name: 'New drain test' }).click();
+    await expect(page.locator('.notice-caution').textContent()).resolves.toContain('not a certification');
+    await page.getByLabel('Logger file').setInputFiles(SAMPLE);
+    const detected = page.getByRole('table', { name: 'Columns found' });
+    const fallback = page.getByText('does not offer a preview');
+    await detected.or(fallback).waitFor();
+    const hasPreview = await detected.isVisible();
+
+    // adjust the window: drag across the whole-log chart when there is one, else type the times
+    if (hasPreview) {
+      const before = Number(await page.locator('#win-start').inputValue());
+      await dragAcross(page, '#log-chart .u-over', 0.12, 0.8);
+      const after = Number(await page.locator('#win-start').inputValue());
+      expect(after).not.toBe(before);
+      await expect(page.locator('.window-fields .hint').textContent()).resolves.toContain('Your window');
+    }
+    await page.locator('#win-start').fill('150');
+    await page.locator('#win-start').dispatchEvent('change');
+    await page.locator('#win-end').fill('2000');
+    await page.locator('#win-end').dispatchEvent('change');
+    await page.getByLabel('Fit a steady inflow').check();
+    await page.getByLabel('Operator').fill('e2e <b>tester</b>');
+    await shot('04-new-test');
+
+    // fit
+    await page.getByRole('button', { name: 'Fit this test' }).click();
+    await page.waitForURL(/#\/fits\/\d+$/, { timeout: 120_000 });
+    await page.getByRole('heading', { name: 'Readings and the fitted drain curve' }).waitFor();
+    await page.locator('#fit-chart canvas').waitFor();
+    await page.locator('#residual-chart canvas').waitFor();
+    await expect(page.locator('.headline').textContent()).resolves.toContain('chosen by the person (150..2000 s)');
+    const fitId = Number(/#\/fits\/(\d+)$/.exec(page.url())![1]);
+    const win = await page.evaluate(async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result.window, fitId);
+    expect(win.startS).toBeGreaterThanOrEqual(150);
+    expect(win.endS).toBeLessThanOrEqual(2000);
+    await shot('05-fit');
+
+    // approve with a comment (markup typed in a comment stays text)
+    await page.getByLabel('Comment (kept with the fit)').fill('Window checked by eye <script>x</script>');
+    await page.getByRole('button', { name: 'Approve' }).click();
+    await page.locator('.title-row .badge-approved').waitFor();
+    await expect(page.locator('.review blockquote').textContent()).resolves.toBe('Window checked by eye <script>x</script>');
+    await shot('06-fit-approved');
+
+    // the vessel's chart has the new point
+    await page.getByRole('navigation', { name: 'Where you are' }).getByRole('link', { name: 'Backwash tank FB-1' }).click();
+    const history2 = page.locator('.chart[id^="history-"]').first();
+    await history2.locator('canvas').waitFor();
+    expect(Number(await history2.getAttribute('data-approved'))).toBe(approvedBefore + 1);
+    await expect(page.locator('main table').last().textContent()).resolves.toContain('e2e <b>tester</b>');
+    await shot('07-vessel-after');
+
+    expect(problems.filter((p) => /Content Security Policy|Refused/.test(p))).toEqual([]);
+    expect(unexpected(problems)).toEqual([]);
+  }, 240_000);
+
+  it('an auditor sees the same pages with no edit controls', async () => {
+    const made = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'token', 'create', '--role', 'auditor', '--name', 'e2e-auditor'], { cwd: root, env, encoding: 'utf8' });
+    expect(made.status).toBe(0);
+    await page.goto(`${base}/#/`);
+    const out = page.getByRole('button', { name: 'Sign out' });
+    if (await out.isVisible()) await out.click();
+    await signIn(made.stdout.trim());
+    await page.getByRole('link', { name: 'Backwash tank FB-1' }).click();
+    await page.locator('svg.vessel-drawing').waitFor();
+    expect(await page.getByRole('link', { name: 'New drain test' }).count()).toBe(0);
+    await page.locator('a.badge').first().click();
+    await page.getByRole('heading', { name: 'Parameters', exact: true }).waitFor();
+    expect(await page.getByRole('button', { name: 'Approve' }).count()).toBe(0);
+    expect(await page.getByRole('button', { name: 'Fit again' }).count()).toBe(0);
+    await shot('08-auditor-fit');
+  }, 120_000);
+});
