@@ -34,12 +34,15 @@ const fmt = (v: number) => String(+v.toPrecision(4));
 
 export function drawChart(doc: Doc, f: ChartFrame, spec: ChartSpec): void {
   const sx = linearScale(spec.xDomain[0], spec.xDomain[1], f.x, f.x + f.width);
-  const sy = linearScale(spec.yDomain[0], spec.yDomain[1], f.y + f.height, f.y);
+  // room at the top for the legend, so it never hides a data point
+  const [y0, y1] = spec.yDomain;
+  const yTop = spec.legend?.length ? y1 + ((y1 - y0) * 14) / f.height : y1;
+  const sy = linearScale(y0, yTop, f.y + f.height, f.y);
   doc.save();
   doc.rect(f.x, f.y, f.width, f.height).fill('#fbfaf7');
   const yFmt = spec.yFormat ?? fmt;
   doc.font('regular').fontSize(6.5).fillColor('#46505c');
-  for (const t of niceTicks(spec.yDomain[0], spec.yDomain[1], 5)) {
+  for (const t of niceTicks(y0, yTop, 5)) {
     const py = sy(t);
     if (py < f.y - 0.5 || py > f.y + f.height + 0.5) continue;
     doc.moveTo(f.x, py).lineTo(f.x + f.width, py).lineWidth(0.25).strokeColor('#dde0e5').stroke();
