@@ -20,7 +20,8 @@ export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment:
   return {
     format: SYSTEM_FIT_FORMAT,
     version: 1,
-    system: spec,
+    // the system in its file form, so it reads back through validateSystem
+    system: { ...spec, inflows: spec.inflows.map((f) => ('log' in f ? f : { to: f.to, constant: f.constantM3S })) },
     converged: fit.converged,
     stopReason: fit.stopReason,
     iterations: fit.iterations,
