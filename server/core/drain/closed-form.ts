@@ -37,51 +37,71 @@ export function closedFormReadings(
   const isHalf = n === 0.5;
   const sqrtH0 = Math.sqrt(h0);
   const k = free.length;
+  // Jacobian columns of each parameter (−1 when fixed), resolved once so the loop has no switch.
+  let cArea = -1;
+  let cReading = -1;
+  let cZero = -1;
+  let cExp = -1;
+  for (let col = 0; col < k; col++) {
+    const j = free[col];
+    if (j === THETA.effectiveArea) cArea = col;
+    else if (j === THETA.initialReading) cReading = col;
+    else if (j === THETA.sensorZero) cZero = col;
+    else if (j === THETA.exponent) cExp = col;
+  }
+  // ∂y/∂(Cd·a) = −u^(m−1)·t·c/(Cd·a); at Cd·a = 0 the same limit through c/(Cd·a) = (2g)^n/A
+  const areaFactor = cdA > 0 ? c / cdA : Math.pow(g2, n) / area;
+  const mLen = timeS.length;
 
-  for (let i = 0; i < timeS.length; i++) {
-    const t = timeS[i];
-    const u = isHalf ? sqrtH0 - 0.5 * c * t : h0Pow - oneMinusN * c * t;
-    let head: number;
-    let uPowMm1: number; // u^(m−1)
-    if (u > 0) {
-      if (isHalf) {
-        head = u * u;
-        uPowMm1 = u;
-      } else {
-        head = Math.pow(u, m);
-        uPowMm1 = head / u;
+  // a column of a free parameter the closed form does not have (inflow) is 0
+  const other = jac !== null && k > (cArea >= 0 ? 1 : 0) + (cReading >= 0 ? 1 : 0) + (cZero >= 0 ? 1 : 0) + (cExp >= 0 ? 1 : 0);
+  if (isHalf && !other) {
+    // n = ½ (the orifice): u = sqrt(H0) − c·t/2, H = u², u^(m−1) = u; one pass, no pow
+    const halfC = 0.5 * c;
+    if (!jac) {
+      for (let i = 0; i < mLen; i++) {
+        const u = sqrtH0 - halfC * timeS[i];
+        out[i] = u > 0 ? u * u + offset : offset;
       }
-    } else {
-      head = 0;
-      uPowMm1 = 0;
+      return true;
+    }
+    for (let i = 0; i < mLen; i++) {
+      const t = timeS[i];
+      let u = sqrtH0 - halfC * t;
+      if (!(u > 0)) u = 0;
+      out[i] = u * u + offset;
+      const row = i * k;
+      if (cArea >= 0) jac[row + cArea] = -u * t * areaFactor;
+      if (cReading >= 0) jac[row + cReading] = u * h0NegN;
+      if (cZero >= 0) jac[row + cZero] = u > 0 ? u * h0NegN - 1 : -1;
+      if (cExp >= 0) {
+        const du = -h0Pow * logH0 + c * t - oneMinusN * t * c * logG2;
+        jac[row + cExp] = u > 0 ? u * u * (m * m * Math.log(u) + (m * du) / u) : 0;
+      }
+    }
+    return true;
+  }
+
+  for (let i = 0; i < mLen; i++) {
+    const t = timeS[i];
+    const u = h0Pow - oneMinusN * c * t;
+    let head = 0;
+    let uPowMm1 = 0; // u^(m−1)
+    if (u > 0) {
+      head = Math.pow(u, m);
+      uPowMm1 = head / u;
     }
     out[i] = head + offset;
     if (!jac) continue;
     const row = i * k;
-    for (let col = 0; col < k; col++) {
-      let d: number;
-      switch (free[col]) {
-        case THETA.effectiveArea:
-          d = cdA > 0 ? (-uPowMm1 * t * c) / cdA : -uPowMm1 * t * (Math.pow(g2, n) / area);
-          break;
-        case THETA.initialReading:
-          d = uPowMm1 * h0NegN;
-          break;
-        case THETA.sensorZero:
-          // H0 = y0 − z_o + z_s, and y = H − z_s + z_o
-          d = head > 0 ? uPowMm1 * h0NegN - 1 : -1;
-          break;
-        case THETA.exponent: {
-          if (head > 0) {
-            const du = -h0Pow * logH0 + c * t - oneMinusN * t * c * logG2;
-            d = head * (m * m * Math.log(u) + (m * du) / u);
-          } else d = 0;
-          break;
-        }
-        default:
-          d = 0; // inflow is not part of the closed form; the caller uses the ODE when it is free
-      }
-      jac[row + col] = d;
+    if (other) for (let col = 0; col < k; col++) jac[row + col] = 0;
+    if (cArea >= 0) jac[row + cArea] = -uPowMm1 * t * areaFactor;
+    if (cReading >= 0) jac[row + cReading] = uPowMm1 * h0NegN;
+    // H0 = y0 − z_o + z_s, and y = H − z_s + z_o
+    if (cZero >= 0) jac[row + cZero] = head > 0 ? uPowMm1 * h0NegN - 1 : -1;
+    if (cExp >= 0) {
+      const du = -h0Pow * logH0 + c * t - oneMinusN * t * c * logG2;
+      jac[row + cExp] = head > 0 ? head * (m * m * Math.log(u) + (m * du) / u) : 0;
     }
   }
   return true;

@@ -43,7 +43,11 @@ export function odeReadings(
   const dim = 1 + k;
   // role of each sensitivity column, resolved once
   const role = new Int32Array(k);
-  for (let c = 0; c < k; c++) role[c] = free[c];
+  let zeroCol = -1; // y = η − z_s: the datum's column carries an extra −1
+  for (let c = 0; c < k; c++) {
+    role[c] = free[c];
+    if (free[c] === THETA.sensorZero) zeroCol = c;
+  }
 
   /** dz/dt into dz for state z = [η, s_0..s_{k−1}]. */
   const rates = (z: Float64Array, dz: Float64Array): void => {
@@ -137,17 +141,25 @@ export function odeReadings(
     rates(zNext, dzNext);
     if (!Number.isFinite(zNext[0])) return false;
     const tNext = t + h;
-    // Hermite interpolation for every sample inside (t, tNext]
+    // Hermite interpolation for every sample inside (t, tNext], written straight to the outputs:
+    // this loop runs once per sample (the steps above only a few hundred times), so it is kept flat
     while (i < m && timeS[i] <= tNext) {
       const s = (timeS[i] - t) / h;
       const s2 = s * s;
       const s3 = s2 * s;
       const h00 = 2 * s3 - 3 * s2 + 1;
-      const h10 = s3 - 2 * s2 + s;
+      const h10 = (s3 - 2 * s2 + s) * h;
       const h01 = -2 * s3 + 3 * s2;
-      const h11 = s3 - s2;
-      for (let j = 0; j < dim; j++) tmp[j] = h00 * z[j] + h10 * h * dz[j] + h01 * zNext[j] + h11 * h * dzNext[j];
-      writeSample(i, tmp);
+      const h11 = (s3 - s2) * h;
+      out[i] = h00 * z[0] + h10 * dz[0] + h01 * zNext[0] + h11 * dzNext[0] - zs;
+      if (k > 0) {
+        const row = i * k;
+        for (let c = 0; c < k; c++) {
+          const j = c + 1;
+          jac![row + c] = h00 * z[j] + h10 * dz[j] + h01 * zNext[j] + h11 * dzNext[j];
+        }
+        if (zeroCol >= 0) jac![row + zeroCol] -= 1;
+      }
       i++;
     }
     t = tNext;
