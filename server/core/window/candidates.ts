@@ -25,15 +25,24 @@ export interface CandidateScales {
  * within about that) and at least two reading steps; the smallest fall listed is five bands and
  * at least ten raw σ.
  */
+/** Scales a caller has already measured on the same readings and exclusions (saves passes). */
+export interface KnownScales {
+  /** estimateResolution(levelM). */
+  resolutionM?: number;
+  /** estimateNoise(levelM, excluded). */
+  noiseM?: number;
+}
+
 export function candidateScales(
   levelM: Float64Array,
   excluded: Uint8Array | null | undefined,
   blockLevelM: Float64Array,
   blockSamples: number,
   options: CandidateOptions = {},
+  known: KnownScales = {},
 ): CandidateScales {
-  const q = estimateResolution(levelM);
-  const sigmaRaw = estimateNoise(levelM, excluded);
+  const q = known.resolutionM ?? estimateResolution(levelM);
+  const sigmaRaw = known.noiseM ?? estimateNoise(levelM, excluded);
   const sigmaBlock = estimateNoise(blockLevelM);
   let big = 1;
   for (let i = 0; i < blockLevelM.length; i++) big = Math.max(big, Math.abs(blockLevelM[i]));
@@ -108,12 +117,13 @@ export function findDrainCandidates(
   levelM: Float64Array,
   excluded?: Uint8Array | null,
   options: CandidateOptions = {},
+  known: KnownScales = {},
 ): DrainCandidate[] {
   const n = levelM.length;
   if (n < 3) return [];
   const holdS = options.holdS ?? 30;
   const d = decimate(timeS, levelM, excluded, options.blockSamples ?? defaultBlockSamples(n));
-  const { bandM, minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options);
+  const { bandM, minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options, known);
   const t = d.timeS;
   const v = d.levelM;
   const pts = turningPoints(v, minDropM);

@@ -63,7 +63,8 @@ export function chooseDrainWindow(
 
   // 1. Readings to set aside.
   const q = estimateResolution(levelM);
-  const spikeIdx = findSpikes(timeS, levelM, options.spikes);
+  // the spike filter's default floor, from the resolution already measured here
+  const spikeIdx = findSpikes(timeS, levelM, { ...options.spikes, scaleFloorM: options.spikes?.scaleFloorM ?? Math.max(q, estimateNoise(levelM)) });
   const excluded = new Uint8Array(n);
   for (const i of spikeIdx) excluded[i] = 1;
   const clipping = findClipping(timeS, levelM, { resolutionM: q });
@@ -77,7 +78,9 @@ export function chooseDrainWindow(
   for (const r of flatLines) warnings.push({ code: 'flat-line', message: r.reason });
 
   // 2. Falling stretches.
-  const candidates = findDrainCandidates(timeS, levelM, excluded, options.candidates);
+  // the white noise of the readings left in, measured once for the candidates and the onset
+  const sigma = estimateNoise(levelM, excluded);
+  const candidates = findDrainCandidates(timeS, levelM, excluded, options.candidates, { resolutionM: q, noiseM: sigma });
 
   let startIndex: number;
   let endIndex: number;
@@ -101,7 +104,7 @@ export function chooseDrainWindow(
   } else {
     if (candidates.length === 0) {
       const d = decimate(timeS, levelM, excluded, options.candidates?.blockSamples ?? defaultBlockSamples(n));
-      const { minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options.candidates);
+      const { minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options.candidates, { resolutionM: q, noiseM: sigma });
       throw new InputError(
         `the level never falls by more than ${m3(minDropM)} (the smallest fall that stands clear of the noise) ` +
           'without a hold or a rise: is this a drain test? Check the level column, or choose the window by hand',
@@ -116,7 +119,6 @@ export function chooseDrainWindow(
     }
 
     // 3. Onset and the valve-opening transient.
-    const sigma = estimateNoise(levelM, excluded);
     const earliest = candidates.filter((c) => c.endIndex <= best.startIndex).reduce((e, c) => Math.max(e, c.endIndex), 0);
     const onset = findOnset(timeS, levelM, excluded, best.startIndex, best.endIndex, earliest, Math.max(3 * sigma, 1.5 * q));
     notes.push({

@@ -52,7 +52,7 @@ export function decimate(
     }
     if (k === 0) continue;
     t[m] = st / k;
-    v[m] = k === 1 ? scratch[0] : medianInPlace(scratch, k);
+    v[m] = k === 1 ? scratch[0] : k <= 16 ? smallMedian(scratch, k) : medianInPlace(scratch, k);
     first[m] = f;
     last[m] = l;
     m++;
@@ -64,4 +64,16 @@ export function decimate(
     lastIndex: last.subarray(0, m),
     blockSamples: B,
   };
+}
+
+/** Median of the first k (≤ 16) values by insertion sort: cheaper than selection for a few values. */
+function smallMedian(a: Float64Array, k: number): number {
+  for (let i = 1; i < k; i++) {
+    const v = a[i];
+    let j = i - 1;
+    while (j >= 0 && a[j] > v) (a[j + 1] = a[j]), j--;
+    a[j + 1] = v;
+  }
+  const mid = k >> 1;
+  return k % 2 === 1 ? a[mid] : (a[mid - 1] + a[mid]) / 2;
 }

@@ -83,9 +83,13 @@ export function estimateNoise(levelM: Float64Array, excluded?: Uint8Array | null
   if (n < 3) return 0;
   const d = new Float64Array(n - 2);
   let m = 0;
-  for (let i = 1; i < n - 1; i++) {
-    if (excluded && (excluded[i - 1] || excluded[i] || excluded[i + 1])) continue;
-    d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
+  if (excluded) {
+    for (let i = 1; i < n - 1; i++) {
+      if (excluded[i - 1] | excluded[i] | excluded[i + 1]) continue;
+      d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
+    }
+  } else {
+    for (let i = 1; i < n - 1; i++) d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
   }
   if (m === 0) return 0;
   return (MAD_TO_SIGMA * medianInPlace(d, m)) / Math.sqrt(6);

@@ -86,8 +86,29 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
   const med = movingMedian(z, k);
   const dev = new Float64Array(n);
   for (let i = 0; i < n; i++) dev[i] = Math.abs(z[i] - med[i]);
-  const mad = movingMedian(dev, k);
+  // A reading within threshold·floor of its median is never a spike, whatever the MAD, so the
+  // moving MAD is needed only at the few readings beyond that: each takes the median of its own
+  // window (the same windows movingMedian uses), not a slide over the whole series.
+  // (When the floor is 0 or tiny and most readings pass the bar, the slide is cheaper again.)
   const out: number[] = [];
-  for (let i = 0; i < n; i++) if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
+  const L = Math.min(2 * k + 1, n);
+  const half = L >> 1;
+  const bar = threshold * floor;
+  let beyond = 0;
+  for (let i = 0; i < n; i++) if (dev[i] > bar) beyond++;
+  if (beyond > n / 16) {
+    const mad = movingMedian(dev, k);
+    for (let i = 0; i < n; i++) if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
+    return Int32Array.from(out);
+  }
+  const window = new Float64Array(L);
+  for (let i = 0; i < n; i++) {
+    if (!(dev[i] > bar)) continue;
+    const from = Math.min(Math.max(i - half, 0), n - L);
+    window.set(dev.subarray(from, from + L));
+    window.sort();
+    const mad = L % 2 === 1 ? window[half] : (window[half - 1] + window[half]) / 2;
+    if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad, floor)) out.push(i);
+  }
   return Int32Array.from(out);
 }
