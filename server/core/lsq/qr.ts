@@ -24,6 +24,11 @@ export interface QrWork {
   wa: Float64Array;
 }
 
+/** sqrt(s) when s, a plain sum of squares, is in the range where euclideanNorm takes it as is; else NaN. */
+function plainNorm(s: number): number {
+  return s > 1e-280 && s < 1e280 ? Math.sqrt(s) : s === 0 ? 0 : NaN;
+}
+
 export function householderQr(a: Float64Array, m: number, n: number, pivot: boolean, w: QrWork): void {
   const { ipvt, rdiag, acnorm, wa } = w;
   for (let j = 0; j < n; j++) {
@@ -32,6 +37,11 @@ export function householderQr(a: Float64Array, m: number, n: number, pivot: bool
     wa[j] = rdiag[j];
     ipvt[j] = j;
   }
+  // The loops below fuse passes over m without changing a single rounding: each sum is still
+  // accumulated in the same order as the separate loops (and euclideanNorm's plain path) would.
+  // tail[k]: ‖a_k[j..m−1]‖ of column k as left by the previous step's update (NaN: recompute).
+  const tail = w.wa.length >= 2 * n ? w.wa.subarray(n, 2 * n) : new Float64Array(n);
+  for (let k = 0; k < n; k++) tail[k] = acnorm[k];
   const minmn = Math.min(m, n);
   for (let j = 0; j < minmn; j++) {
     if (pivot) {
@@ -48,35 +58,63 @@ export function householderQr(a: Float64Array, m: number, n: number, pivot: bool
         }
         rdiag[kmax] = rdiag[j];
         wa[kmax] = wa[j];
+        const tt = tail[j];
+        tail[j] = tail[kmax];
+        tail[kmax] = tt;
         const t = ipvt[j];
         ipvt[j] = ipvt[kmax];
         ipvt[kmax] = t;
       }
     }
     const cj = j * m;
-    let ajnorm = euclideanNorm(a, cj + j, m - j);
+    let ajnorm = Number.isNaN(tail[j]) ? euclideanNorm(a, cj + j, m - j) : tail[j];
     if (ajnorm !== 0) {
       if (a[cj + j] < 0) ajnorm = -ajnorm;
-      for (let i = j; i < m; i++) a[cj + i] /= ajnorm;
+      // scale v_j, and take v_j·a_{j+1} in the same pass (diagonal term first, as before)
+      const k1 = j + 1 < n ? (j + 1) * m : -1;
+      a[cj + j] /= ajnorm;
       a[cj + j] += 1;
       const ajj = a[cj + j];
+      let sum1 = k1 >= 0 ? a[cj + j] * a[k1 + j] : 0;
+      if (k1 >= 0) {
+        for (let i = j + 1; i < m; i++) {
+          const v = a[cj + i] / ajnorm;
+          a[cj + i] = v;
+          sum1 += v * a[k1 + i];
+        }
+      } else {
+        for (let i = j + 1; i < m; i++) a[cj + i] /= ajnorm;
+      }
       for (let k = j + 1; k < n; k++) {
         const ck = k * m;
-        let sum = 0;
-        for (let i = j; i < m; i++) sum += a[cj + i] * a[ck + i];
+        let sum = sum1;
+        if (k !== j + 1) {
+          sum = 0;
+          for (let i = j; i < m; i++) sum += a[cj + i] * a[ck + i];
+        }
         const t = sum / ajj;
-        for (let i = j; i < m; i++) a[ck + i] -= t * a[cj + i];
+        // update a_k, and accumulate ‖a_k[j+1..]‖² for the next step in the same pass
+        a[ck + j] -= t * a[cj + j];
+        let ss = 0;
+        for (let i = j + 1; i < m; i++) {
+          const v = a[ck + i] - t * a[cj + i];
+          a[ck + i] = v;
+          ss += v * v;
+        }
+        tail[k] = plainNorm(ss);
         if (pivot && rdiag[k] !== 0) {
           // Downdate the remaining column norm; recompute it when cancellation has eaten it.
           const q = a[ck + j] / rdiag[k];
           rdiag[k] *= Math.sqrt(Math.max(0, 1 - q * q));
           const r = rdiag[k] / wa[k];
           if (0.05 * r * r <= EPS) {
-            rdiag[k] = euclideanNorm(a, ck + j + 1, m - j - 1);
+            rdiag[k] = Number.isNaN(tail[k]) ? euclideanNorm(a, ck + j + 1, m - j - 1) : tail[k];
             wa[k] = rdiag[k];
           }
         }
       }
+    } else {
+      for (let k = j + 1; k < n; k++) tail[k] = NaN;
     }
     rdiag[j] = -ajnorm;
   }
@@ -87,18 +125,42 @@ export function householderQr(a: Float64Array, m: number, n: number, pivot: bool
  * `scratch` (length m) receives the whole of Qᵀ·b; b is not modified.
  */
 export function applyQt(a: Float64Array, m: number, n: number, b: Float64Array, scratch: Float64Array, out: Float64Array): void {
-  scratch.set(b.subarray(0, m));
   const minmn = Math.min(m, n);
-  for (let j = 0; j < minmn; j++) {
+  // The copy and each reflection are fused with the next reflection's dot product; every sum is
+  // accumulated in the same order as separate passes would, so the result is the same to the bit.
+  let j = 0;
+  while (j < minmn && a[j * m + j] === 0) j++;
+  let sum = 0;
+  if (j < minmn) {
     const cj = j * m;
-    const ajj = a[cj + j];
-    if (ajj === 0) continue;
-    let sum = 0;
-    for (let i = j; i < m; i++) sum += a[cj + i] * scratch[i];
-    const t = -sum / ajj;
-    for (let i = j; i < m; i++) scratch[i] += t * a[cj + i];
+    for (let i = 0; i < j; i++) scratch[i] = b[i];
+    for (let i = j; i < m; i++) {
+      const v = b[i];
+      scratch[i] = v;
+      sum += a[cj + i] * v;
+    }
+  } else {
+    scratch.set(b.subarray(0, m));
   }
-  for (let j = 0; j < n; j++) out[j] = j < m ? scratch[j] : 0;
+  while (j < minmn) {
+    const cj = j * m;
+    const t = -sum / a[cj + j];
+    let next = j + 1;
+    while (next < minmn && a[next * m + next] === 0) next++;
+    sum = 0;
+    if (next < minmn) {
+      const cn = next * m;
+      for (let i = j; i < m; i++) {
+        const v = scratch[i] + t * a[cj + i];
+        scratch[i] = v;
+        if (i >= next) sum += a[cn + i] * v;
+      }
+    } else {
+      for (let i = j; i < m; i++) scratch[i] += t * a[cj + i];
+    }
+    j = next;
+  }
+  for (let k = 0; k < n; k++) out[k] = k < m ? scratch[k] : 0;
 }
 
 /** Copy R (n×n, upper triangular, column-major with leading dimension n) out of the factored `a`. */
