@@ -21,6 +21,7 @@ import {
 } from 'fastify-type-provider-zod';
 import { existsSync } from 'node:fs';
 import { z } from 'zod';
+import { createNotifier, type Notifier } from '../jobs/alerts.js';
 import type { AnalyzeRunner } from '../jobs/pool.js';
 import type { Store } from '../store/index.js';
 import { PUBLIC, type Access } from './access.js';
@@ -33,6 +34,7 @@ import { fitRoutes } from './routes/fits.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { testRoutes } from './routes/tests.js';
+import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
 
 export interface AppOptions {
@@ -50,6 +52,11 @@ export interface AppOptions {
   /** Folder of the built web front end, served at /; skipped when absent. */
   webRoot?: string | null;
   logger?: FastifyServerOptions['logger'];
+  /** Status-change notices: a notifier the caller owns, or webhook addresses for one the app owns (closed with it). */
+  notifier?: Notifier;
+  webhooks?: readonly string[];
+  /** The trend's "now", epoch ms (tests inject a fixed time). */
+  clockMs?: () => number;
 }
 
 export interface RouteInfo {
@@ -62,6 +69,9 @@ declare module 'fastify' {
   interface FastifyInstance {
     /** Every route registered, with its declared roles (the permission test walks this). */
     routeList: RouteInfo[];
+    /** Queues status-change notices to the webhook addresses (a no-op without any). */
+    notifier: Notifier;
+    clockMs: () => number;
   }
 }
 
@@ -151,6 +161,10 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   // decorators
   app.decorate('store', opts.store);
   app.decorate('analyze', opts.analyze);
+  const ownNotifier = opts.notifier ? null : createNotifier({ urls: opts.webhooks ?? [], log: (line, detail) => app.log.warn(detail ?? {}, line) });
+  app.decorate('notifier', opts.notifier ?? ownNotifier!);
+  if (ownNotifier) app.addHook('onClose', async () => ownNotifier.close());
+  app.decorate('clockMs', opts.clockMs ?? Date.now);
 
   // auth and errors (on the root: both are inherited by every route module below)
   installAuth(app, opts.store);
@@ -167,6 +181,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(testRoutes);
   await app.register(fitRoutes);
   await app.register(eventRoutes);
+  await app.register(trendRoutes);
   await app.register(auditRoutes);
   app.get(
     '/api/openapi.json',

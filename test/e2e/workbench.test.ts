@@ -166,5 +166,22 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     expect(await page.getByRole('button', { name: 'Approve' }).count()).toBe(0);
     expect(await page.getByRole('button', { name: 'Fit again' }).count()).toBe(0);
     await shot('08-auditor-fit');
+
+    // every demo vessel's drawing (every shape kind) has its outline, its outlet and its sensor mark
+    await page.goto(`${base}/#/`);
+    const links = page.locator('table.fleet tbody th a');
+    await links.first().waitFor();
+    const names = await links.allTextContents();
+    mkdirSync(join(shots, 'drawings'), { recursive: true });
+    for (const name of names) {
+      await page.goto(`${base}/#/`);
+      await page.getByRole('link', { name, exact: true }).click();
+      const drawing = page.locator('svg.vessel-drawing');
+      await drawing.waitFor();
+      expect(await drawing.locator('polygon').count()).toBe(1);
+      await expect(drawing.textContent()).resolves.toMatch(/outlet/);
+      await expect(drawing.textContent()).resolves.toMatch(/sensor zero|gauge face/);
+      await page.locator('figure.drawing').screenshot({ path: join(shots, 'drawings', `${name.replace(/[^A-Za-z0-9-]+/g, '_')}.png`) });
+    }
   }, 120_000);
 });

@@ -28,7 +28,8 @@ beforeAll(async () => {
   }
   // the real engine in-process: the stored test must be one the engine accepts
   app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req) });
-  await app.register(workbenchRoutes);
+  // app.ts may already register the module; add it when it does not
+  if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' })) await app.register(workbenchRoutes);
   await app.ready();
 });
 afterAll(() => app.close());

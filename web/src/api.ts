@@ -176,3 +176,27 @@ export interface MaintenanceEvent {
 export const canUpload = (u: User) => u.role === 'technician' || u.role === 'engineer' || u.role === 'admin';
 export const canReview = (u: User) => u.role === 'engineer' || u.role === 'admin';
 export const seesMaintenance = (u: User) => u.role !== 'technician';
+
+/** The trend work's answers (server/http/routes/trend-schemas.ts), the fields this page reads. */
+export interface FleetStatusItem {
+  outletId: number;
+  status: string;
+  reason: string;
+  daysToThreshold: number | null;
+  latestChangePct: number | null;
+}
+export interface OutletTrend {
+  status: { status: string; reason: string; daysToThreshold: number | null };
+  threshold: { pct: number; fraction: number | null; source: string };
+  epochs: { current: boolean; thresholdCd: number | null; cd: { baselineValue: number } | null; series: { isBaseline: boolean; dischargeCoefficient: number }[] }[];
+}
+
+/** GET that answers null when the route is absent (404 from the router, not from a missing record). */
+export async function optional<T>(url: string): Promise<T | null> {
+  try {
+    return await api<T>('GET', url);
+  } catch (e) {
+    if (e instanceof ApiError && (e.status === 404 || e.status === 403)) return null;
+    throw e;
+  }
+}

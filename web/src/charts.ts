@@ -32,7 +32,9 @@ const axis = (label: string, extra: Partial<uPlot.Axis> = {}): uPlot.Axis => ({
   ...extra,
 });
 
-const minutes = (_u: uPlot, ticks: number[]) => ticks.map((t) => `${+(t / 60).toFixed(1)}`);
+const minutes = (_u: uPlot, ticks: number[]) => ticks.map((t) => `${+(t / 60).toFixed(2)}`);
+/** Tick steps in seconds that read as whole minutes (or round fractions of one) on a minute axis. */
+const MINUTE_STEPS = [6, 15, 30, 60, 120, 300, 600, 900, 1200, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800, 604800];
 
 /** Follow the container's width (the page may be resized). */
 function fit(u: uPlot, el: HTMLElement, height: number): void {
@@ -66,7 +68,7 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
     scales: { x: { time: false } },
     legend: { show: true },
     cursor: { drag: { x: false, y: false, setScale: false } },
-    axes: [axis('time from the start of the log (min)', { values: minutes }), axis('level above the sensor zero (m)')],
+    axes: [axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }), axis('level above the sensor zero (m)')],
     series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) }, { label: 'level (m)', stroke: COLOURS.level, width: 1.5, value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) }],
     hooks: {
       drawClear: [
@@ -169,7 +171,7 @@ export function fitChart(el: HTMLElement, w: WindowPlot): uPlot {
       width: widthOf(el),
       height: 320,
       scales: { x: { time: false } },
-      axes: [axis('time from the start of the log (min)', { values: minutes }), axis('level above the sensor zero (m)')],
+      axes: [axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }), axis('level above the sensor zero (m)')],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
         { label: 'readings (m)', stroke: COLOURS.level, width: 0, points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`) },
@@ -196,7 +198,7 @@ export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | nu
       width: widthOf(el),
       height: 220,
       scales: { x: { time: false } },
-      axes: [axis('time from the start of the log (min)', { values: minutes }), axis('reading − fitted (mm)')],
+      axes: [axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }), axis('reading − fitted (mm)')],
       bands: [{ series: [2, 3], fill: COLOURS.band }],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
@@ -343,13 +345,14 @@ export function historyChart(el: HTMLElement, points: HistoryPoint[], events: { 
       scales: { x: { time: true, range: xr }, y: { range: [ymin - pad, ymax + pad] } },
       axes: [axis('date of the test'), axis('discharge coefficient Cd (–)')],
       series: [
-        {},
-        { label: 'approved', stroke: COLOURS.approved, width: 0, points: { show: true, size: 9, stroke: COLOURS.approved, fill: COLOURS.approved }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+        { label: 'date' },
         { label: 'draft (not yet reviewed)', stroke: COLOURS.draft, width: 0, points: { show: true, size: 9, stroke: COLOURS.draft, fill: '#fff' }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+        { label: 'approved', stroke: COLOURS.approved, width: 0, points: { show: true, size: 9, stroke: COLOURS.approved, fill: COLOURS.approved }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
       ],
       plugins: [overlay, whiskers(lo, hi, (i) => (pts[i].status === 'approved' ? COLOURS.approved : COLOURS.draft))],
     },
-    [x, approved, draft] as uPlot.AlignedData,
+    // drafts first, so an approved point on the same day is drawn on top
+    [x, draft, approved] as uPlot.AlignedData,
     el,
   );
   fit(u, el, 260);

@@ -3,7 +3,11 @@
 export function num(x: number | null | undefined, digits = 3): string {
   if (x === null || x === undefined || !Number.isFinite(x)) return '—';
   const a = Math.abs(x);
-  if (a !== 0 && (a < 1e-3 || a >= 1e6)) return x.toExponential(digits - 1).replace('e', '×10^').replace('^+', '^');
+  if (a !== 0 && (a < 1e-3 || a >= 1e6)) {
+    const [m, e] = x.toExponential(digits - 1).split('e');
+    const sup: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };
+    return `${m} × 10${e.replace('+', '').split('').map((c) => sup[c] ?? c).join('')}`;
+  }
   return x.toLocaleString('en-GB', { maximumSignificantDigits: Math.max(digits, 1), useGrouping: false });
 }
 
@@ -69,6 +73,9 @@ const PARAM_WORDS: Record<string, string> = {
   headExponent: 'Head exponent n',
 };
 export const paramName = (n: string) => PARAM_WORDS[n] ?? n;
+
+/** The engine's sentences sometimes name parameters by their keys: put the words in. */
+export const inWords = (message: string) => message.replace(/\b(effectiveAreaM2|initialReadingM|sensorZeroElevationM|inflowM3S|headExponent)\b/g, (k) => PARAM_WORDS[k].replace(/^./, (c) => c.toLowerCase()));
 
 const TERM_WORDS: Record<string, string> = { inflow: 'steady inflow', datum: 'sensor zero', exponent: 'head exponent' };
 export const termName = (t: string) => TERM_WORDS[t] ?? t;

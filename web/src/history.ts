@@ -1,5 +1,5 @@
 /** A vessel's tests and fits joined: what the fleet table and the vessel page both show. */
-import { api, type DrainTest, type Fit, type Outlet, type Page } from './api.js';
+import { api, optional, type DrainTest, type FleetStatusItem, type Fit, type Outlet, type Page } from './api.js';
 
 export interface TestedFit {
   fit: Fit;
@@ -32,12 +32,13 @@ export function latestFor(outlet: Outlet | null, fits: TestedFit[]): TestedFit |
   return newest(mine.filter((f) => f.fit.status === 'approved')) ?? newest(mine);
 }
 
-/** A drift status when the service offers one on the outlet (the trend work); null until then. */
-export function driftOf(outlet: Outlet): string | null {
-  const o = outlet as Record<string, unknown>;
-  const t = (o.trend ?? o.drift) as Record<string, unknown> | string | undefined;
-  if (typeof t === 'string') return t;
-  if (t && typeof t.status === 'string') return t.status;
-  if (typeof o.driftStatus === 'string') return o.driftStatus;
-  return null;
+/** Drift status per outlet from GET /api/fleet when the service offers it (the trend work); empty otherwise. */
+export async function fleetDrift(): Promise<Map<number, FleetStatusItem>> {
+  const f = await optional<Page<FleetStatusItem>>('/api/fleet?limit=500');
+  return new Map((f?.items ?? []).map((i) => [i.outletId, i]));
+}
+
+export function driftWords(d: FleetStatusItem | undefined): string | null {
+  if (!d) return null;
+  return d.daysToThreshold !== null && Number.isFinite(d.daysToThreshold) ? `${d.status} (threshold in about ${Math.round(d.daysToThreshold)} days)` : d.status;
 }

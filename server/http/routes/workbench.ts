@@ -4,6 +4,7 @@
  * and the parsed series of a stored test at full resolution (the fit view draws the window on it).
  * Both run the same pure reader as a fit (prepareDrainTest), so what is shown is what is fitted.
  * Reading runs on the event loop: a million-row file takes a few hundred milliseconds.
+ * The module's one export is the plugin: `await app.register(workbenchRoutes)`.
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
@@ -38,7 +39,7 @@ const inspection = z
   .meta({ id: 'Inspection' });
 
 /** The first lines of the file as text, for the preview table (never used for reading). */
-export function firstLines(bytes: Uint8Array, fileName: string): { encoding: string; lines: string[] } {
+function headLines(bytes: Uint8Array, fileName: string): { encoding: string; lines: string[] } {
   let guess = detectEncoding(bytes);
   let text: string;
   try {
@@ -88,7 +89,7 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       const v = app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
       const prepared = prepareDrainTest({ log: up.log, baro: up.baro, vessel: vesselFile(v, up.outletId), vesselFileName: v.name, settings: up.settings });
-      return { head: firstLines(up.log.bytes, up.log.fileName), detected: detectedSummary(prepared), series: seriesOf(prepared), settings: up.settings };
+      return { head: headLines(up.log.bytes, up.log.fileName), detected: detectedSummary(prepared), series: seriesOf(prepared), settings: up.settings };
     },
   );
 
@@ -117,3 +118,9 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
     },
   );
 };
+
+/**
+ * @deprecated Transitional alias: app.ts (being edited in parallel) registers this name; it is the
+ * same plugin. Register `workbenchRoutes` and delete this line.
+ */
+export const firstLines = workbenchRoutes;

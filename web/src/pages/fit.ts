@@ -6,7 +6,7 @@
 import { api, ApiError, canReview, canUpload, routeExists, type DrainTest, type Fit, type Series, type Vessel } from '../api.js';
 import { fitChart, headBandChart, logChart, residualChart } from '../charts.js';
 import { field, h, notice, table } from '../dom.js';
-import { areaMm2, clockAt, dateTime, decimalsFor, mm, num, paramName, plusMinus, seconds, termName } from '../format.js';
+import { areaMm2, clockAt, inWords, dateTime, decimalsFor, mm, num, paramName, plusMinus, seconds, termName } from '../format.js';
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
 
@@ -51,14 +51,14 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
       { class: 'headline', 'aria-label': 'Result' },
       h('div', { class: 'card big' }, h('h2', {}, 'Discharge coefficient Cd'), h('p', { class: 'value' }, cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty) : 'not available'), h('p', { class: 'hint' }, cd ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95[0], 4)} to ${num(cd.ci95[1], 4)}` : 'the outlet bore is not known, so only Cd·a is given')),
       h('div', { class: 'card big' }, h('h2', {}, 'Effective area Cd·a'), h('p', { class: 'value' }, areaMm2(ea.value, ea.expandedUncertainty ?? 2 * ea.standardUncertainty)), h('p', { class: 'hint' }, `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95[0])} to ${areaMm2(ea.ci95[1])}`)),
-      h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${seconds(r.window.startS)} to ${seconds(r.window.endS)} from the first reading`), h('p', { class: 'hint' }, `${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
+      h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${num(r.window.startS, 6)} s to ${num(r.window.endS, 6)} s from the first reading`), h('p', { class: 'hint' }, `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
       h('div', { class: 'card' }, h('h2', {}, 'Scatter about the curve'), h('p', {}, `RMS ${mm(r.residuals?.rmseM)}`), h('p', { class: 'hint' }, `largest ${mm(r.residuals?.maxAbsM)}; neighbouring residuals correlate ${num(r.residuals?.lag1Autocorrelation, 2)}; ${r.converged ? 'the solver converged' : 'the solver did NOT converge'}`)),
     ),
   );
 
   // warnings, in the service's own plain sentences
   main.append(
-    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : 'the fit'}: `) : null, w.message))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
+    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : 'the fit'}: `) : null, inWords(w.message)))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
   );
 
   // charts

@@ -2,7 +2,7 @@
 import { api, type Page, type Vessel } from '../api.js';
 import { field, h, select } from '../dom.js';
 import { date, outletName, plusMinus, shapeName } from '../format.js';
-import { driftOf, latestFor, vesselHistory, type TestedFit } from '../history.js';
+import { driftWords, fleetDrift, latestFor, vesselHistory, type TestedFit } from '../history.js';
 import type { PageContext } from '../main.js';
 
 interface Row {
@@ -16,16 +16,16 @@ interface Row {
 export async function fleetPage({ main }: PageContext): Promise<void> {
   main.append(h('h1', {}, 'Fleet'), h('p', { class: 'lede' }, 'Every vessel and outlet with its latest discharge coefficient. Choose a vessel for its drawing, its tests and its history.'));
   const vessels = await api<Page<Vessel>>('GET', '/api/vessels?limit=500');
-  const histories = await Promise.all(vessels.items.map((v) => vesselHistory(v.id)));
+  const [histories, drift] = await Promise.all([Promise.all(vessels.items.map((v) => vesselHistory(v.id))), fleetDrift()]);
   const rows: Row[] = [];
   vessels.items.forEach((v, i) => {
     const active = v.outlets.filter((o) => o.retiredAt === null);
     for (const o of active.length ? active : [null]) {
       const tests = histories[i].tests.filter((t) => o === null || t.outletId === o.id || t.outletId === null).length;
-      rows.push({ vessel: v, outlet: o, latest: latestFor(o, histories[i].fits), tests, drift: o ? driftOf(o) : null });
+      rows.push({ vessel: v, outlet: o, latest: latestFor(o, histories[i].fits), tests, drift: o ? driftWords(drift.get(o.id)) : null });
     }
   });
-  const anyDrift = rows.some((r) => r.drift !== null);
+  const anyDrift = drift.size > 0;
 
   const search = h('input', { type: 'search', name: 'q', placeholder: 'vessel, site or outlet', autocomplete: 'off' });
   const sites = [...new Set(vessels.items.map((v) => v.site))].sort();
@@ -66,7 +66,7 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
           h('td', {}, r.latest ? h('a', { href: `#/fits/${r.latest.fit.id}`, class: `badge badge-${r.latest.fit.status}` }, r.latest.fit.status) : '—'),
           h('td', {}, r.latest ? date(r.latest.at) : '—'),
           h('td', { class: 'num' }, String(r.tests)),
-          ...(anyDrift ? [h('td', {}, r.drift ?? '—')] : []),
+          ...(anyDrift ? [h('td', { title: (r.outlet && drift.get(r.outlet.id)?.reason) || '' }, r.drift ?? '—')] : []),
         );
       }),
     );

@@ -1,5 +1,5 @@
 /** One vessel: its geometry and outlets, a drawing to scale, its tests, and Cd over time. */
-import { api, canUpload, seesMaintenance, type MaintenanceEvent, type Page, type Vessel } from '../api.js';
+import { api, canUpload, optional, seesMaintenance, type MaintenanceEvent, type OutletTrend, type Page, type Vessel } from '../api.js';
 import { historyChart } from '../charts.js';
 import { h, notice, table } from '../dom.js';
 import { vesselDrawing } from '../drawing.js';
@@ -51,13 +51,13 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
       ['Sensor', typeof sensor.zeroElevationM === 'number' ? `zero ${metres(sensor.zeroElevationM as number)} above the bottom` : typeof sensor.mountElevationM === 'number' ? `gauge face ${metres(sensor.mountElevationM as number)} above the bottom, measuring down` : 'zero not stated (fit the sensor zero)'],
       ['Liquid', typeof fluid.densityKgM3 === 'number' ? `${num(fluid.densityKgM3 as number)} kg/m³` : typeof fluid.temperatureC === 'number' ? `water at ${num(fluid.temperatureC as number)} °C` : 'water at 20 °C (assumed)'],
     ], 'kv'),
-    table('Outlets', ['Outlet', 'Kind', 'Bore', 'Bore tolerance', 'Height above bottom', 'Action threshold (Cd)'], outlets.map((o) => [
+    table('Outlets', ['Outlet', 'Kind', 'Bore', 'Bore tolerance', 'Height above bottom', 'Act when Cd·a falls to'], outlets.map((o) => [
       o.key,
       outletName(o.type),
       o.boreM ? `${(o.boreM * 1000).toFixed(1)} mm` : '—',
       o.boreToleranceM ? `± ${(o.boreToleranceM * 1000).toFixed(2)} mm` : '—',
       metres(o.elevationM),
-      o.actionThreshold === null ? '—' : num(o.actionThreshold, 3),
+      o.actionThreshold === null ? 'the default share of the baseline' : `${num(o.actionThreshold * 100, 3)} % of the baseline`,
     ])),
   );
   const drawing = vesselDrawing(spec, {
@@ -71,6 +71,8 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
   const section = h('section', {}, h('h2', {}, 'Discharge coefficient over time'));
   main.append(section);
   const fits = current(hist.fits).filter((f) => f.fit.result.dischargeCoefficient);
+  // the trend work's view per outlet (baseline, threshold, status) when the service offers it
+  const trends = new Map<number, OutletTrend | null>(await Promise.all(outlets.map(async (o) => [o.id, await optional<OutletTrend>(`/api/outlets/${o.id}/trend`)] as [number, OutletTrend | null])));
   for (const o of outlets.length ? outlets : [null]) {
     const mine = fits.filter((f) => o === null || f.fit.outletId === o.id || f.fit.outletId === null);
     const box = h('div', { class: 'chart', id: `history-${o?.id ?? 0}` });
@@ -81,7 +83,7 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
     }
     const evs = events.filter((e) => o === null || e.outletId === null || e.outletId === o.id);
     section.append(
-      h('p', { class: 'hint' }, 'Each point is one test; its bar is the expanded uncertainty (about 95 %). Filled: approved; open: waiting for review.', evs.length ? ' Dashed brown lines: maintenance.' : '', o?.actionThreshold !== null && o?.actionThreshold !== undefined ? ' Red line: action threshold.' : ''),
+      h('p', { class: 'hint' }, 'Each point is one test; its bar is the expanded uncertainty (about 95 %). Filled: approved; open: waiting for review.', evs.length ? ' Dashed brown lines: maintenance.' : '', ''),
       box,
     );
     // counts for tests and assistive text (the canvas itself has no readable content)
@@ -89,12 +91,16 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
     box.dataset.approved = String(mine.filter((f) => f.fit.status === 'approved').length);
     box.setAttribute('role', 'img');
     box.setAttribute('aria-label', `Cd of outlet ${o?.key ?? ''} over time: ${mine.length} tests, ${box.dataset.approved} approved`);
-    const baseline = o && typeof (o as Record<string, unknown>).baseline === 'number' ? ((o as Record<string, unknown>).baseline as number) : null;
+    const trend = o ? trends.get(o.id) ?? null : null;
+    const epoch = trend?.epochs.find((e) => e.current) ?? null;
+    const baseline = epoch ? epoch.series.find((p) => p.isBaseline)?.dischargeCoefficient ?? epoch.cd?.baselineValue ?? null : null;
+    const threshold = epoch?.thresholdCd ?? null;
+    if (trend) section.insertBefore(h('p', { class: 'trend-status' }, h('strong', {}, `Status: ${trend.status.status}. `), trend.status.reason, baseline !== null ? ' Green line: the baseline of the present epoch;' : '', threshold !== null ? ` red line: act below Cd ${threshold.toFixed(3)} (${trend.threshold.pct} % from the baseline).` : ''), box);
     historyChart(
       box,
       mine.map((f) => ({ atS: Date.parse(f.at) / 1000, cd: f.fit.result.dischargeCoefficient!.value, expanded: f.fit.result.dischargeCoefficient!.expandedUncertainty ?? 2 * f.fit.result.dischargeCoefficient!.standardUncertainty, status: f.fit.status })),
       evs.map((e) => ({ atS: Date.parse(e.occurredAt) / 1000, kind: e.kind })),
-      { threshold: o?.actionThreshold ?? null, baseline },
+      { threshold, baseline },
     );
   }
 
