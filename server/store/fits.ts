@@ -88,8 +88,8 @@ function auditView(f: StoredFit) {
   };
 }
 
-function numberAt(obj: Record<string, unknown>, key: string): number | null {
-  const v = (obj[key] as { value?: unknown } | null | undefined)?.value;
+function numberAt(obj: Record<string, unknown>, key: string, field: 'value' | 'standardUncertainty' = 'value'): number | null {
+  const v = (obj[key] as Record<string, unknown> | null | undefined)?.[field];
   return typeof v === 'number' && Number.isFinite(v) ? v : null;
 }
 
@@ -111,8 +111,8 @@ export class FitRepo {
     const db = c.db;
     this.q = {
       insert: db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
-        status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
-        @cda, @cd, 'draft', @createdBy, @now)`),
+        cda_u, cd_u, status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
+        @cda, @cd, @cdaU, @cdU, 'draft', @createdBy, @now)`),
       get: db.prepare('SELECT * FROM fits WHERE id = ?'),
       byVessel: db.prepare('SELECT * FROM fits WHERE vessel_id = ? ORDER BY id DESC LIMIT ? OFFSET ?'),
       countVessel: db.prepare('SELECT count(*) FROM fits WHERE vessel_id = ?').pluck(),
@@ -214,6 +214,8 @@ export class FitRepo {
         engineVersion,
         cda: numberAt(fit.result, 'effectiveAreaM2'),
         cd: numberAt(fit.result, 'dischargeCoefficient'),
+        cdaU: numberAt(fit.result, 'effectiveAreaM2', 'standardUncertainty'),
+        cdU: numberAt(fit.result, 'dischargeCoefficient', 'standardUncertainty'),
         createdBy: actor.id,
         now,
       }).lastInsertRowid,

@@ -5,6 +5,7 @@ import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
 import { migrate } from './migrate.js';
 import { TestRepo } from './tests.js';
+import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
 import { VesselRepo } from './vessels.js';
 
@@ -16,6 +17,7 @@ export interface Store {
   fits: FitRepo;
   events: EventRepo;
   users: UserRepo;
+  trends: TrendRepo;
   close(): void;
 }
 
@@ -42,6 +44,7 @@ export function openStore(opts: StoreOptions = {}): Store {
     fits: new FitRepo(c, tests),
     events: new EventRepo(c),
     users: new UserRepo(c),
+    trends: new TrendRepo(c),
     close: () => db.close(),
   };
 }

@@ -36,6 +36,11 @@ const TABLE: Record<string, Rule> = {
   'GET /api/fits/:id': ALL,
   'POST /api/fits/:id/refit': TECH,
   'POST /api/fits/:id/review': ENG,
+  'GET /api/outlets/:id/trend': ALL,
+  'GET /api/outlets/:id/history.csv': ALL,
+  'GET /api/outlets/:id/status-changes': ALL,
+  'PUT /api/outlets/:id/settings': ENG,
+  'GET /api/fleet': ALL,
   'GET /api/audit': AUD,
   'GET /api/audit/verify': AUD,
 };

@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { refit } from '../../jobs/ingest.js';
+import { reviewFit } from '../../jobs/review.js';
 import { actorOf } from '../../store/users.js';
 import { ENGINEERS_UP, READERS, TECHNICIANS_UP } from '../access.js';
 import { analysisSettings, fit, idParams, pageOf, paging, problem, protectedErrors } from '../schemas.js';
@@ -56,12 +57,16 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: fit, 409: problem, ...protectedErrors },
       },
     },
+    // An approval may change the outlet's trend status: recorded with it, webhooks told after commit.
     async (request) =>
-      app.store.fits.review(
+      reviewFit(
+        app.store,
+        app.notifier,
         actorOf(request.user!),
         request.params.id,
         request.body.decision === 'approve' ? 'approved' : 'rejected',
         request.body.comment ?? null,
-      ),
+        app.clockMs(),
+      ).fit,
   );
 };

@@ -1,0 +1,62 @@
+/**
+ * A review that may change an outlet's trend status. In ONE write transaction: the status before,
+ * the review, the status after (cached), and, when the word changed, a status-change row with its
+ * audit entry. The webhook notice is queued only after that transaction has committed, and the
+ * queue never holds up the caller.
+ */
+import type { Actor, Store } from '../store/index.js';
+import type { StoredFit } from '../store/fits.js';
+import type { StatusChange } from '../store/trends.js';
+import type { Notifier, StatusNotice } from './alerts.js';
+import { computeStatus, refreshStatus } from './trend.js';
+
+export interface ReviewOutcome {
+  fit: StoredFit;
+  change: StatusChange | null;
+}
+
+export function reviewFit(
+  store: Store,
+  notifier: Notifier,
+  actor: Actor,
+  fitId: number,
+  decision: 'approved' | 'rejected',
+  comment: string | null,
+  nowMs: number,
+): ReviewOutcome {
+  let notice: StatusNotice | null = null;
+  const outcome = store.trends.write((): ReviewOutcome => {
+    const outletId = store.fits.get(fitId).outletId;
+    const tracked = decision === 'approved' && outletId !== null;
+    const before = tracked ? computeStatus(store, outletId, nowMs).status : null;
+    const fit = store.fits.review(actor, fitId, decision, comment);
+    if (!tracked) return { fit, change: null };
+    const after = refreshStatus(store, outletId, nowMs).status;
+    if (after.status === before!.status) return { fit, change: null };
+    const change = store.trends.recordStatusChange(actor, {
+      outletId,
+      fitId,
+      fromStatus: before!.status,
+      toStatus: after.status,
+      reason: after.reason,
+      daysToThreshold: after.daysToThreshold,
+    });
+    const o = store.vessels.outlet(outletId);
+    const v = store.vessels.get(o.vesselId);
+    notice = {
+      type: 'efflux.outlet.status-change',
+      id: change.id,
+      at: change.at,
+      outlet: { id: o.id, key: o.key, vesselId: v.id, vesselName: v.name, site: v.site },
+      fitId,
+      from: change.fromStatus,
+      to: change.toStatus,
+      reason: change.reason,
+      daysToThreshold: change.daysToThreshold,
+      crossingAt: after.crossingAt,
+    };
+    return { fit, change };
+  });
+  if (notice) notifier.notify(notice); // committed: now tell the receivers
+  return outcome;
+}
