@@ -5,7 +5,7 @@
  * real server on a loopback port is built in-process with the routes added, so the preview, the
  * drag on the whole-log chart and the full-resolution window chart are tried in the browser too.
  */
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { FastifyInstance } from 'fastify';
@@ -92,4 +92,32 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
     // the 422 is the refused absolute-pressure log without its barometric log, above
     expect(unexpected(problems).filter((p) => !p.includes('status of 422'))).toEqual([]);
   }, 180_000);
+
+  it('draws a 100 000-reading log (decimated for drawing) and still takes a dragged window', async () => {
+    // invented for this test: a hold, then an orifice drain of an upright cylinder, 0.2 s readings, ±1 mm noise
+    let seed = 12345;
+    const noise = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648 - 0.5) * 0.002;
+    const rows = ['elapsed_s,level_m'];
+    for (let i = 0; i < 100_000; i++) {
+      const t = i * 0.2;
+      const after = Math.max(0, t - 600);
+      const root = Math.max(Math.sqrt(0.3), Math.sqrt(3.0) - 1.2e-4 * after);
+      rows.push(`${t.toFixed(1)},${(root * root + noise()).toFixed(4)}`);
+    }
+    const file = join(dataDir, 'long-log.csv');
+    writeFileSync(file, rows.join('\n') + '\n');
+    await page.goto(`${base}/#/vessels/${vesselId}/new-test`);
+    await page.getByLabel('Logger file').setInputFiles(file);
+    await page.getByRole('table', { name: 'The log' }).waitFor();
+    await expect(page.getByRole('table', { name: 'The log' }).textContent()).resolves.toContain('100000');
+    await page.locator('#log-chart canvas').waitFor();
+    await dragAcross(page, '#log-chart .u-over', 0.2, 0.6);
+    const start = Number(await page.locator('#win-start').inputValue());
+    const end = Number(await page.locator('#win-end').inputValue());
+    // the drag maps to the log's own time: 20 % and 60 % of the plot width of a 20 000 s log, roughly
+    expect(start).toBeGreaterThan(2000);
+    expect(end).toBeLessThan(14000);
+    expect(end).toBeGreaterThan(start);
+    await page.screenshot({ path: join(shots, '04c-new-test-100k.png'), fullPage: false });
+  }, 120_000);
 });

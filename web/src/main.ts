@@ -37,6 +37,7 @@ function go(hash: string): void {
 
 function header(): void {
   clear(who);
+  (document.querySelector('.bar nav') as HTMLElement).hidden = !user;
   if (!user) return;
   const out = h('button', { type: 'button', class: 'quiet' }, 'Sign out');
   out.addEventListener('click', async () => {

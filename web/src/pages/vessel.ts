@@ -95,7 +95,7 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
     const epoch = trend?.epochs.find((e) => e.current) ?? null;
     const baseline = epoch ? epoch.series.find((p) => p.isBaseline)?.dischargeCoefficient ?? epoch.cd?.baselineValue ?? null : null;
     const threshold = epoch?.thresholdCd ?? null;
-    if (trend) section.insertBefore(h('p', { class: 'trend-status' }, h('strong', {}, `Status: ${trend.status.status}. `), trend.status.reason, baseline !== null ? ' Green line: the baseline of the present epoch;' : '', threshold !== null ? ` red line: act below Cd ${threshold.toFixed(3)} (${trend.threshold.pct} % from the baseline).` : ''), box);
+    if (trend) section.insertBefore(h('p', { class: 'trend-status' }, h('strong', {}, `Status: ${trend.status.status}. `), trend.status.reason.replace(/\.?$/, '.'), baseline !== null ? ' Green line: the baseline of the present epoch;' : '', threshold !== null ? ` red line: act below Cd ${threshold.toFixed(3)} (${trend.threshold.pct} % from the baseline).` : ''), box);
     historyChart(
       box,
       mine.map((f) => ({ atS: Date.parse(f.at) / 1000, cd: f.fit.result.dischargeCoefficient!.value, expanded: f.fit.result.dischargeCoefficient!.expandedUncertainty ?? 2 * f.fit.result.dischargeCoefficient!.standardUncertainty, status: f.fit.status })),
