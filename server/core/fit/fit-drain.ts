@@ -77,7 +77,8 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
   const data = { setting, timeS, levelM };
   const start = refineStartOnSubsample(data, terms, startTheta(setting, timeS, levelM, zs0));
   const best = fitVariant(data, terms, start);
-  const unc = uncertaintyFor(best);
+  const diag = residualDiagnostics(best.solve.residuals);
+  const unc = uncertaintyFor(best, diag);
   const { solve } = best;
 
   const freeList = Array.from(best.free);
@@ -110,9 +111,8 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
   const dischargeCoefficient = dischargeCoefficientQuantity(cdA, uCdA, unc.degreesOfFreedom, input.outlet.boreM, input.outlet.boreToleranceM ?? 0);
 
   const t1 = now();
-  const diag = residualDiagnostics(solve.residuals);
   let maxAbs = 0;
-  for (const r of solve.residuals) maxAbs = Math.max(maxAbs, Math.abs(r));
+  for (let i = 0; i < solve.residuals.length; i++) maxAbs = Math.max(maxAbs, Math.abs(solve.residuals[i]));
   const residuals = {
     samples: diag.n,
     rmseM: diag.rmse,

@@ -1,4 +1,4 @@
-import { residualDiagnostics, tQuantile } from '../stats/index.js';
+import { residualDiagnostics, tQuantile, type ResidualDiagnostics } from '../stats/index.js';
 import type { FittedVariant } from './variant.js';
 
 /**
@@ -29,10 +29,11 @@ export interface UncertaintyModel {
   correlations: Float64Array;
 }
 
-export function uncertaintyFor(variant: FittedVariant): UncertaintyModel {
+/** `diagnostics`: residualDiagnostics of the variant's residuals when the caller already has them. */
+export function uncertaintyFor(variant: FittedVariant, diagnostics?: ResidualDiagnostics): UncertaintyModel {
   const { solve, k } = variant;
   const m = solve.residuals.length;
-  const diag = residualDiagnostics(solve.residuals);
+  const diag = diagnostics ?? residualDiagnostics(solve.residuals);
   const rho = Number.isFinite(diag.lag1Autocorrelation) ? diag.lag1Autocorrelation : 0;
   const inflation = rho > 0 ? (1 + rho) / (1 - Math.min(rho, 0.999)) : 1;
   const effectiveSamples = m / inflation;

@@ -419,7 +419,7 @@ function finish(
   }
   return {
     p: Float64Array.from(x),
-    residuals: Float64Array.from(fvec),
+    residuals: fvec.slice(), // a copy: fvec may be a lent work buffer
     sumSquares,
     iterations,
     evaluations,
@@ -428,7 +428,7 @@ function finish(
     converged: CONVERGED.has(stopReason),
     rank,
     unscaledCovariance: cov,
-    jacobian: Float64Array.from(J),
+    jacobian: J.slice(),
     singularValues,
     atBound: atBoundIndices(x, lower, upper),
   };
@@ -440,7 +440,7 @@ function failedStart(problem: LeastSquaresProblem, x: Float64Array, fvec: Float6
   for (let i = 0; i < m; i++) sumSquares += fvec[i] * fvec[i];
   return {
     p: Float64Array.from(x),
-    residuals: Float64Array.from(fvec),
+    residuals: fvec.slice(), // a copy: fvec may be a lent work buffer
     sumSquares: Number.isFinite(sumSquares) ? sumSquares : NaN,
     iterations: 0,
     evaluations,
