@@ -43,7 +43,8 @@ export function seconds(s: number | null | undefined): string {
   if (s === null || s === undefined || !Number.isFinite(s)) return '—';
   if (Math.abs(s) < 120) return `${s.toFixed(1)} s`;
   const m = Math.floor(s / 60);
-  return `${s.toFixed(0)} s (${m} min ${Math.round(s - m * 60)} s)`;
+  if (s < 3600) return `${s.toFixed(0)} s (${m} min ${Math.round(s - m * 60)} s)`;
+  return `${s.toFixed(0)} s (${Math.floor(m / 60)} h ${m % 60} min)`;
 }
 
 export function date(iso: string | null | undefined): string {

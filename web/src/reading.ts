@@ -99,14 +99,14 @@ export interface WindowForm {
   detected(yes: boolean): void;
 }
 
-export function windowForm(clock: (s: number) => string | null): WindowForm {
+export function windowForm(clock: (s: number) => string | null, autoLabel = 'Detected window'): WindowForm {
   const start = h('input', { type: 'number', name: 'windowStart', step: 'any', min: 0, inputmode: 'decimal' });
   const end = h('input', { type: 'number', name: 'windowEnd', step: 'any', min: 0, inputmode: 'decimal' });
   const said = h('p', { class: 'hint', 'aria-live': 'polite' });
   let byPerson = false;
   let auto: [number, number] | null = null;
   const listeners: ((a: number, b: number) => void)[] = [];
-  const reset = h('button', { type: 'button', class: 'quiet' }, 'Use the detected window');
+  const reset = h('button', { type: 'button', class: 'quiet' }, autoLabel === 'Detected window' ? 'Use the detected window' : 'Back to this fit’s window');
   const describe = () => {
     const a = Number(start.value), b = Number(end.value);
     if (start.value === '' || end.value === '' || !(b > a)) {
@@ -114,7 +114,7 @@ export function windowForm(clock: (s: number) => string | null): WindowForm {
       return;
     }
     const ca = clock(a), cb = clock(b);
-    said.textContent = `${byPerson ? 'Your window' : 'Detected window'}: ${a.toFixed(1)} s to ${b.toFixed(1)} s from the first reading (${(b - a).toFixed(1)} s long)${ca && cb ? `, ${ca} to ${cb}` : ''}.`;
+    said.textContent = `${byPerson ? 'Your window' : autoLabel}: ${a.toFixed(1)} s to ${b.toFixed(1)} s from the first reading (${(b - a).toFixed(1)} s long)${ca && cb ? `, ${ca} to ${cb}` : ''}.`;
   };
   const changed = () => {
     byPerson = true;

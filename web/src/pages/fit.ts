@@ -128,7 +128,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     if (!(e instanceof ApiError) || e.status !== 404) throw e; // no full-resolution route: draw the stored thinned log
   }
   const t0 = series?.t0 ?? r.read?.t0 ?? null;
-  const win = windowForm((s) => clockAt(t0, s));
+  const win = windowForm((s) => clockAt(t0, s), 'Window of this fit');
   const lc = logChart(logBox, series?.timeS ?? plot?.log.timeS ?? [], series?.levelM ?? plot?.log.levelM ?? [], r.window, canUpload(user) ? (a, b) => {
     win.set(a, b, true);
     lc.setWindow(a, b);
@@ -188,7 +188,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
       s.id === id ? `${s.id} (this one)` : h('a', { href: `#/fits/${s.id}` }, String(s.id)),
       dateTime(s.createdAt),
       `${num(s.result.window.startS, 5)} s to ${num(s.result.window.endS, 5)} s`,
-      s.result.dischargeCoefficient ? num(s.result.dischargeCoefficient.value, 4) : '—',
+      s.result.dischargeCoefficient ? s.result.dischargeCoefficient.value.toFixed(4) : '—',
       `${s.status}${s.supersededBy !== null ? ', replaced' : ''}`,
     ]))),
   );
