@@ -21,6 +21,7 @@ const COMMANDS: Record<string, Command> = {
   token: { summary: 'create an API token: token create --role ROLE --name NAME', load: () => loadModule('token') },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
   report: { summary: 'fit and outlet reports (PDF/JSON) and report verify', load: () => loadModule('report') },
+  trend: { summary: "an outlet's Cd·a trend and forecast, or the fleet: trend <outletId> | trend --fleet", load: () => loadModule('trend') },
   export: { summary: 'approved fits of a site, vessel or period as one zip with hashes', load: () => loadModule('export') },
 };
 

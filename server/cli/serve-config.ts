@@ -2,6 +2,7 @@
 import { existsSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { parseWebhookList } from '../jobs/alerts.js';
 
 /** A folder at the project root, found from this file whether it runs from server/ or dist/server/. */
 export function projectPath(name: string): string {
@@ -39,5 +40,7 @@ export function serveConfig(env = process.env) {
     webRoot: env.EFFLUX_WEB_ROOT ?? projectPath('dist/web'),
     secureCookie: env.EFFLUX_SECURE_COOKIE === '1',
     log: env.EFFLUX_LOG ?? 'info',
+    /** Addresses told of outlet status changes (comma-separated http(s) URLs). */
+    webhooks: parseWebhookList(env.EFFLUX_WEBHOOKS),
   };
 }

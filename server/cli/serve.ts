@@ -42,6 +42,7 @@ export async function run(argv: string[]): Promise<number> {
     requestTimeoutMs: cfg.requestTimeoutMs,
     secureCookie: cfg.secureCookie,
     webRoot: cfg.webRoot,
+    webhooks: cfg.webhooks,
     logger: cfg.log === 'silent' ? false : { level: cfg.log },
   });
   const address = await app.listen({ host: cfg.host, port: cfg.port });
