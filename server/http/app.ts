@@ -36,6 +36,8 @@ import { sessionRoutes } from './routes/session.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
+import { reportRoutes } from './routes/reports.js';
+import { workbenchRoutes } from './routes/workbench.js';
 
 export interface AppOptions {
   store: Store;
@@ -183,6 +185,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(eventRoutes);
   await app.register(trendRoutes);
   await app.register(auditRoutes);
+  await app.register(reportRoutes);
+  await app.register(workbenchRoutes);
   app.get(
     '/api/openapi.json',
     { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },

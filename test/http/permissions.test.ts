@@ -43,6 +43,12 @@ const TABLE: Record<string, Rule> = {
   'GET /api/fleet': ALL,
   'GET /api/audit': AUD,
   'GET /api/audit/verify': AUD,
+  'GET /api/fits/:id/report.pdf': ALL,
+  'GET /api/fits/:id/report.json': ALL,
+  'GET /api/outlets/:id/report.pdf': ALL,
+  'POST /api/exports': ENG_AUD,
+  'POST /api/vessels/:id/inspect': TECH,
+  'GET /api/tests/:id/series': ALL,
 };
 
 function ruleFor(method: string, url: string): Rule | undefined {

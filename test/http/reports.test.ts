@@ -2,7 +2,6 @@ import { createHash } from 'node:crypto';
 import type { FastifyInstance } from 'fastify';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildApp } from '../../server/http/app.js';
-import { reportRoutes } from '../../server/http/routes/reports.js';
 import { readReportFile } from '../../server/render/report-file.js';
 import { readZip } from '../../server/render/zip.js';
 import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
@@ -22,8 +21,6 @@ beforeAll(async () => {
   ({ store, fitId, outletId } = fx);
   for (const role of ['technician', 'engineer', 'auditor', 'admin'] as Role[]) tokens[role] = store.users.createToken(SYSTEM_ACTOR, `${role}-http`, role).token;
   app = await buildApp({ store, analyze: fakeAnalyze });
-  // app.ts does not register this module yet (one line, see the module's header)
-  await app.register(reportRoutes);
   await app.ready();
 }, 60_000);
 afterAll(async () => {

@@ -118,9 +118,3 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
     },
   );
 };
-
-/**
- * @deprecated Transitional alias: app.ts (being edited in parallel) registers this name; it is the
- * same plugin. Register `workbenchRoutes` and delete this line.
- */
-export const firstLines = workbenchRoutes;
