@@ -1,7 +1,7 @@
 import { fCdf } from '../stats/index.js';
 import { THETA } from '../drain/parameters.js';
 import { predictReadings, solutionFor } from '../drain/predict.js';
-import { applyQt, householderQr, type SolveWorkspace } from '../lsq/index.js';
+import { applyQt, gatherColumns, householderQr, type SolveWorkspace } from '../lsq/index.js';
 import type { UncertaintyModel } from './uncertainty.js';
 import { describeTerms, type ModelTerms } from './terms.js';
 import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
@@ -137,7 +137,7 @@ function scoreFalls(input: VariantInput, best: FittedVariant, added: (keyof Mode
   const ok = predictReadings(setting, solutionFor(setting, all.inflow), best.theta, timeS, model, J, free);
   if (!ok) return out;
   const a = new Float64Array(m * k);
-  for (let i = 0; i < m; i++) for (let c = 0; c < k; c++) a[c * m + i] = J[i * w + c];
+  gatherColumns(J, m, w, null, k, a);
   const qr = { ipvt: new Int32Array(k), rdiag: new Float64Array(k), acnorm: new Float64Array(k), wa: new Float64Array(k) };
   householderQr(a, m, k, true, qr);
   const qtr = new Float64Array(m);
@@ -149,15 +149,21 @@ function scoreFalls(input: VariantInput, best: FittedVariant, added: (keyof Mode
   const qtg = new Float64Array(m);
   for (let e = 0; e < added.length; e++) {
     const c = k + e;
-    for (let i = 0; i < m; i++) g[i] = J[i * w + c];
+    gatherColumns(J, m, w, Int32Array.of(c), 1, g);
     applyQt(a, m, k, g, qtg, head);
-    let gg = 0;
-    let gr = 0;
-    for (let i = k; i < m; i++) {
-      gg += qtg[i] * qtg[i];
-      gr += qtg[i] * qtr[i];
-    }
+    const [gg, gr] = tailDots(qtg, qtr, k);
     out.set(added[e], gg > 0 && Number.isFinite(gr) ? inSpan + (gr * gr) / gg : NaN);
   }
   return out;
+}
+
+/** [Σ x_i², Σ x_i·y_i] over i ≥ from (a separate small function so the JIT takes it up early). */
+function tailDots(x: Float64Array, y: Float64Array, from: number): [number, number] {
+  let xx = 0;
+  let xy = 0;
+  for (let i = from; i < x.length; i++) {
+    xx += x[i] * x[i];
+    xy += x[i] * y[i];
+  }
+  return [xx, xy];
 }

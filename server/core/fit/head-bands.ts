@@ -33,13 +33,11 @@ export function headBands(input: VariantInput, best: FittedVariant, bands = 4): 
   let from = 0;
   for (let b = 0; b < bands; b++) {
     const limit = hStart - ((b + 1) * (hStart - hEnd)) / bands;
-    let to = from;
-    while (to < m && (b === bands - 1 || head(to) > limit)) to++;
+    const to = b === bands - 1 ? m : firstHeadAtOrBelow(levelM, from, zs, setting.outletElevationM, limit);
     const count = to - from;
     if (count >= 20) {
       const t0 = timeS[from];
-      const t = new Float64Array(count);
-      for (let i = 0; i < count; i++) t[i] = timeS[from + i] - t0;
+      const t = shifted(timeS, from, count, t0);
       const y = levelM.subarray(from, to);
       const start = Float64Array.from(best.theta);
       at[0] = t0;
@@ -58,4 +56,18 @@ export function headBands(input: VariantInput, best: FittedVariant, bands = 4): 
     from = to;
   }
   return out;
+}
+
+/** First index ≥ from whose head y + z_s − z_o is not above `limit` (levelM.length if none). */
+function firstHeadAtOrBelow(levelM: Float64Array, from: number, zs: number, zo: number, limit: number): number {
+  let i = from;
+  while (i < levelM.length && levelM[i] + zs - zo > limit) i++;
+  return i;
+}
+
+/** timeS[from .. from+count−1] − t0, as a new array. */
+function shifted(timeS: Float64Array, from: number, count: number, t0: number): Float64Array {
+  const t = new Float64Array(count);
+  for (let i = 0; i < count; i++) t[i] = timeS[from + i] - t0;
+  return t;
 }

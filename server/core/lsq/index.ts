@@ -5,3 +5,4 @@ export { covarianceFromR } from './covariance.js';
 export { householderQr, applyQt, extractR } from './qr.js';
 export { lmParameter } from './lmpar.js';
 export { euclideanNorm } from './norm.js';
+export { gatherColumns, sumOfSquares } from './passes.js';

@@ -16,6 +16,7 @@ import { InputError } from '../errors.js';
 import { covarianceFromR } from './covariance.js';
 import { lmParameter } from './lmpar.js';
 import { euclideanNorm } from './norm.js';
+import { columnSumsOfSquaresAndGradient, gatherColumns, sumOfSquares } from './passes.js';
 import { applyQt, extractR, householderQr } from './qr.js';
 import type { LeastSquaresProblem, SolveOptions, SolveResult, StopReason } from './types.js';
 
@@ -81,8 +82,7 @@ function borrow(pool: Float64Array[], k: number, size: number): Float64Array {
 
 /** ‖r‖ when every entry is finite, else NaN; the plain sum of squares serves unless it left the safe range. */
 function residualNorm(r: Float64Array): number {
-  let s = 0;
-  for (let i = 0; i < r.length; i++) s += r[i] * r[i];
+  const s = sumOfSquares(r);
   if (s > 1e-280 && s < 1e280) return Math.sqrt(s);
   if (s === 0) return 0;
   return finite(r) ? euclideanNorm(r) : NaN;
@@ -153,11 +153,7 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
 
   // Factor the Jacobian restricted to the free parameters; returns the scaled gradient norm.
   const factorFree = (): void => {
-    for (let k = 0; k < nf; k++) {
-      const j = free[k];
-      const col = k * m;
-      for (let i = 0; i < m; i++) a[col + i] = J[i * n + j];
-    }
+    gatherColumns(J, m, n, free, nf, a);
     householderQr(a, m, nf, true, qrw);
     applyQt(a, m, nf, fvec, scratch, qtf);
     extractR(a, m, nf, qrw.rdiag, R);
@@ -190,17 +186,7 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
     }
 
     // Column norms and gradient Jᵀr in one pass over the rows.
-    colNorm.fill(0);
-    grad.fill(0);
-    for (let i = 0; i < m; i++) {
-      const row = i * n;
-      const ri = fvec[i];
-      for (let j = 0; j < n; j++) {
-        const v = J[row + j];
-        colNorm[j] += v * v;
-        grad[j] += v * ri;
-      }
-    }
+    columnSumsOfSquaresAndGradient(J, fvec, m, n, colNorm, grad);
     let jacobianFinite = true;
     for (let j = 0; j < n; j++) {
       if (!Number.isFinite(colNorm[j]) || !Number.isFinite(grad[j])) jacobianFinite = false;
@@ -398,15 +384,14 @@ function finish(
   scratchMn: Float64Array,
 ): SolveResult {
   const { m, n } = problem;
-  let sumSquares = 0;
-  for (let i = 0; i < m; i++) sumSquares += fvec[i] * fvec[i];
+  const sumSquares = sumOfSquares(fvec.length === m ? fvec : fvec.subarray(0, m));
   let cov: Float64Array;
   let singularValues: Float64Array;
   let rank: number;
   if (jacobianUsable) {
     // Full pivoted QR of J at p, then the SVD of the n×n factor.
     const a = scratchMn;
-    for (let j = 0; j < n; j++) for (let i = 0; i < m; i++) a[j * m + i] = J[i * n + j];
+    gatherColumns(J, m, n, null, n, a);
     const w = { ipvt: new Int32Array(n), rdiag: new Float64Array(n), acnorm: new Float64Array(n), wa: new Float64Array(n) };
     householderQr(a, m, n, true, w);
     const R = new Float64Array(n * n);
@@ -436,8 +421,7 @@ function finish(
 
 function failedStart(problem: LeastSquaresProblem, x: Float64Array, fvec: Float64Array, evaluations: number): SolveResult {
   const { m, n } = problem;
-  let sumSquares = 0;
-  for (let i = 0; i < m; i++) sumSquares += fvec[i] * fvec[i];
+  const sumSquares = sumOfSquares(fvec.length === m ? fvec : fvec.subarray(0, m));
   return {
     p: Float64Array.from(x),
     residuals: fvec.slice(), // a copy: fvec may be a lent work buffer
