@@ -205,7 +205,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       excludedSamples: excluded,
       startTime: iso(series.t0EpochMs, w.startS),
       endTime: iso(series.t0EpochMs, w.endS),
-      chosenBy: p.choice.notes.some((n) => n.code === 'window-override') ? 'by the person' : 'automatically',
+      chosenBy: p.choice.notes.some((n) => n.code === 'window-chosen-by-user') ? 'by the person' : 'automatically',
       trims: choice.trims,
       notes: choice.notes,
     } as FitJson['window'],
