@@ -2,14 +2,15 @@ import { makeShape } from '../core/geometry/index.js';
 import { simulateDrainTest } from '../core/drain/simulate.js';
 import { STANDARD_GRAVITY_MS2 } from '../core/units/index.js';
 import { writeLog } from './layouts.js';
-import { SITE, TESTS, VESSELS, type DemoTest, type DemoVessel } from './scenario.js';
+import { expandHistories } from './history.js';
+import { HISTORIES, SITE, TESTS, VESSELS, type DemoTest, type DemoVessel } from './scenario.js';
 
 /** Every sample-data file as bytes, by file name (pure apart from the fixed scenario). */
 export function buildSampleData(): Record<string, Uint8Array> {
   const enc = new TextEncoder();
   const files: Record<string, Uint8Array> = {};
   for (const v of VESSELS) files[v.file] = enc.encode(JSON.stringify(vesselFile(v), null, 2) + '\n');
-  const manifestTests = [];
+  const manifestTests: Record<string, unknown>[] = [];
   for (const t of TESTS) {
     const v = VESSELS.find((x) => x.name === t.vessel)!;
     const { timeS, levelM } = simulateTest(t, v);
@@ -32,12 +33,36 @@ export function buildSampleData(): Record<string, Uint8Array> {
       truth: { dischargeCoefficient: t.cd, effectiveAreaM2: t.cd * nominal, inflowM3S: t.inflowM3S ?? 0, invented: true },
     });
   }
+  // Months of approved tests on three outlets, for the trend (server/demo/history.ts).
+  const history = expandHistories();
+  for (const h of HISTORIES) files[h.vessel.file] = enc.encode(JSON.stringify(vesselFile(h.vessel), null, 2) + '\n');
+  for (const { history: h, month, test: t } of history.tests) {
+    const { timeS, levelM } = simulateTest(t, h.vessel);
+    files[t.log] = enc.encode(writeLog(t, h.vessel, timeS, levelM).text);
+    const nominal = (Math.PI * h.vessel.outlet.boreM ** 2) / 4;
+    manifestTests.push({
+      vessel: h.vessel.name,
+      site: SITE,
+      outlet: h.vessel.outlet.id,
+      log: t.log,
+      settings: t.settings,
+      operator: t.operator,
+      loggerId: t.loggerId,
+      testedAt: t.startIso,
+      notes: t.notes,
+      layout: t.layout,
+      review: { decision: 'approve', comment: 'Routine monthly test; fit checked (demo).' },
+      history: { outlet: h.logPrefix, month },
+      truth: { dischargeCoefficient: t.cd, effectiveAreaM2: t.cd * nominal, inflowM3S: 0, invented: true },
+    });
+  }
   const manifest = {
     format: 'efflux-demo',
     version: 1,
     description: `${SITE}: invented vessels and simulated drain tests for the demo and the tests. Not real data.`,
-    vessels: VESSELS.map((v) => ({ file: v.file })),
+    vessels: [...VESSELS, ...HISTORIES.map((h) => h.vessel)].map((v) => ({ file: v.file })),
     tests: manifestTests,
+    events: history.events.map((e) => ({ vessel: e.history.vessel.name, site: SITE, outlet: e.history.vessel.outlet.id, kind: e.kind, occurredAt: e.occurredAt, notes: e.notes })),
   };
   files['manifest.json'] = enc.encode(JSON.stringify(manifest, null, 2) + '\n');
   return files;

@@ -109,6 +109,12 @@ export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array
       [rows[a], rows[a + 1]] = [rows[a + 1], rows[a]];
       break;
     }
+    case 'history-elapsed-m':
+      // small monthly logs: one line saying when, then elapsed seconds and level in m
+      rows.push(`Vessel: ${vessel.name}`, `Started: ${isoSecond(t0)}`, '');
+      rows.push('Elapsed (s),Level (m)');
+      for (let i = 0; i < n; i++) rows.push(`${timeS[i].toFixed(0)},${levelM[i].toFixed(4)}`);
+      break;
     case 'pipe-epoch-ms-inflow':
       rows.push('epoch_ms|level_m');
       for (let i = 0; i < n; i++) rows.push(`${Math.round(ms(i))}|${levelM[i].toFixed(4)}`);

@@ -15,6 +15,7 @@ const out = resolve(process.argv[2] ?? join(root, 'sample-data'));
 mkdirSync(out, { recursive: true });
 const files = buildSampleData();
 for (const [name, bytes] of Object.entries(files)) {
+  mkdirSync(dirname(join(out, name)), { recursive: true });
   writeFileSync(join(out, name), bytes);
   process.stdout.write(`wrote ${name} (${bytes.length} bytes)\n`);
 }

@@ -27,7 +27,8 @@ export type Layout =
   | 'radar-distance-iso-offset'
   | 'tab-local-zone-fill-hold'
   | 'serial-days-duplicates'
-  | 'pipe-epoch-ms-inflow';
+  | 'pipe-epoch-ms-inflow'
+  | 'history-elapsed-m';
 
 export interface DemoTest {
   log: string;
@@ -78,3 +79,43 @@ export const TESTS: DemoTest[] = [
   { ...common, log: 'r3-2026-03-25-serial-days.csv', vessel: 'Rinse tank R-3', layout: 'serial-days-duplicates', cd: 0.598, initialSurfaceM: 1.55, sampleIntervalS: 2, holdBeforeS: 60, drainS: 1300, startIso: '2026-03-25T10:20:00Z', settings: {}, loggerId: 'KF-LG-02', notes: 'Exported through a spreadsheet; some rows pasted twice.', seed: 19 },
   { ...common, log: 'fb1-2026-03-26-leaking-inlet.csv', vessel: 'Backwash tank FB-1', layout: 'pipe-epoch-ms-inflow', cd: 0.609, inflowM3S: 0.0009, initialSurfaceM: 3.5, sampleIntervalS: 1, holdBeforeS: 60, drainS: 2200, startIso: '2026-03-26T08:00:00Z', settings: { fitInflow: true }, loggerId: 'KF-LG-01', notes: 'Inlet valve found passing; fitted with the inflow term.', seed: 20 },
 ];
+
+/**
+ * Months of routine drain tests on three filter-drain tanks (invented), for the trend view. Each
+ * month's true Cd·a comes from simulateFoulingHistory (server/core/trend/simulate.ts) with the
+ * settings below; each log is then simulated from that truth by the drain simulator, small
+ * (5 s sampling) to keep the repository light. Every test is approved in the manifest.
+ */
+export interface DemoHistory {
+  vessel: DemoVessel;
+  /** What the outlet does: for the README and the tests. */
+  story: string;
+  logPrefix: string;
+  seed: number;
+  months: number;
+  startIso: string;
+  driftPctPerYear: number;
+  steps?: { month: number; pct: number }[];
+  maintenance?: { month: number; kind?: 'cleaned' | 'replaced' | 'modified'; restorePct?: number; notes: string }[];
+}
+
+const filterTank = (n: number, extra: Partial<DemoVessel['outlet']> = {}): DemoVessel => ({
+  file: `filter-drain-fd${n}.vessel.json`,
+  name: `Filter drain tank FD-${n}`,
+  shape: { kind: 'vertical-cylinder', diameterM: 1.2, heightM: 2.5 },
+  outlet: { id: 'drain', boreM: 0.04, boreToleranceM: 0.0001, elevationM: 0.0, type: 'sharp-edged', ...extra },
+  sensor: { zeroElevationM: 0.0 },
+  notes: 'Filter backwash drain tank, tested monthly; gauge transducer at the drain centreline.',
+});
+
+export const HISTORIES: DemoHistory[] = [
+  { vessel: filterTank(1), story: 'clean: no drift', logPrefix: 'fd1', seed: 101, months: 18, startIso: '2024-10-07T08:00:00Z', driftPctPerYear: 0 },
+  { vessel: filterTank(2), story: 'fouling slowly: Cd·a falls 4 % a year (the default action threshold, a 10 % loss, is crossed about 2.5 years in)', logPrefix: 'fd2', seed: 102, months: 18, startIso: '2024-10-08T08:00:00Z', driftPctPerYear: -4 },
+  {
+    vessel: filterTank(3), story: 'partial blockage: a 7 % step down at the tenth test, then a cleaning (new baseline)', logPrefix: 'fd3', seed: 103, months: 18,
+    startIso: '2024-10-09T08:00:00Z', driftPctPerYear: -1, steps: [{ month: 9, pct: -7 }],
+    maintenance: [{ month: 13, kind: 'cleaned', restorePct: 0, notes: 'Drain opened and cleared: a lump of filter media was lodged in the bore (invented).' }],
+  },
+];
+
+export const HISTORY_DRAIN = { initialSurfaceM: 2.1, sampleIntervalS: 5, holdBeforeS: 60, drainS: 900, holdAfterS: 120, noiseM: 0.0015 };
