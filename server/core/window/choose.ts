@@ -36,6 +36,24 @@ function checkInput(series: Pick<LevelSeries, 'timeS' | 'levelM' | 'sourceLine'>
   }
 }
 
+// The passes over every reading are small functions of their own, so that in a fresh process
+// the JIT takes them up at once instead of compiling the whole chooser first.
+
+/** [min, max] of the readings. */
+function range(levelM: Float64Array): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < levelM.length; i++) (lo = Math.min(lo, levelM[i])), (hi = Math.max(hi, levelM[i]));
+  return [lo, hi];
+}
+
+/** keep[i] = 1 for the readings in [from, to] not set aside; returns how many. */
+function markKept(excluded: Uint8Array, from: number, to: number, keep: Uint8Array): number {
+  let kept = 0;
+  for (let i = from; i <= to; i++) if (!excluded[i]) (keep[i] = 1), kept++;
+  return kept;
+}
+
 function candidateLine(c: DrainCandidate): string {
   return `${s1(c.startS)} to ${s1(c.endS)}, falling ${m3(c.dropM)} (${m3(c.startLevelM)} to ${m3(c.endLevelM)})`;
 }
@@ -54,9 +72,7 @@ export function chooseDrainWindow(
   const headFraction = options.headFraction ?? 0.05;
   if (!(headFraction > 0 && headFraction < 1)) throw new InputError('headFraction must lie between 0 and 1', { field: 'headFraction' });
 
-  let lo = Infinity;
-  let hi = -Infinity;
-  for (let i = 0; i < n; i++) (lo = Math.min(lo, levelM[i])), (hi = Math.max(hi, levelM[i]));
+  const [lo, hi] = range(levelM);
   if (hi === lo) {
     throw new InputError(`the level reads ${lo} m throughout: the sensor did not respond, or the file's level column is wrong`, { field: 'level' });
   }
@@ -156,8 +172,7 @@ export function chooseDrainWindow(
   }
 
   const keep = new Uint8Array(n);
-  let kept = 0;
-  for (let i = startIndex; i <= endIndex; i++) if (!excluded[i]) (keep[i] = 1), kept++;
+  const kept = markKept(excluded, startIndex, endIndex, keep);
   if (kept < minSamples) {
     throw new InputError(
       `the window ${s1(timeS[startIndex] ?? 0)} to ${s1(timeS[endIndex] ?? 0)} holds only ${kept} usable readings; at least ${minSamples} are needed`,

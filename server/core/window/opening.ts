@@ -74,6 +74,13 @@ export interface OpeningTrim {
   reason: string;
 }
 
+/** The last index in [a, endIndex] from which the next sample is still before tEnd (a at least). */
+function lastBefore(timeS: Float64Array, a: number, endIndex: number, tEnd: number): number {
+  let b = a;
+  while (b + 1 <= endIndex && timeS[b + 1] < tEnd) b++;
+  return b;
+}
+
 function chunkRms(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, a: number, b: number): number {
   const s = slopeOver(timeS, levelM, a, b, excluded);
   if (!Number.isFinite(s)) return NaN;
@@ -111,8 +118,7 @@ export function openingTrim(
   let a = onset.index;
   for (let c = 0; a <= endIndex; c++) {
     const tEnd = t0 + (c + 1) * chunkS;
-    let b = a;
-    while (b + 1 <= endIndex && timeS[b + 1] < tEnd) b++;
+    const b = lastBefore(timeS, a, endIndex, tEnd);
     rms.push(b - a >= 2 ? chunkRms(timeS, levelM, excluded, a, b) : NaN);
     a = b + 1;
   }

@@ -72,20 +72,9 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
   // spike spoils only two of its 4k+1 rates) and subtract it. Without this, a steep fall spreads
   // the window by the slope, and a pair of spikes shifts the median by a whole slope step.
   const z = new Float64Array(n);
-  if (n > 1) {
-    const rate = new Float64Array(n - 1);
-    for (let i = 0; i + 1 < n; i++) rate[i] = (levelM[i + 1] - levelM[i]) / (timeS[i + 1] - timeS[i]);
-    const smooth = movingMedian(rate, 2 * k);
-    let trend = 0;
-    z[0] = levelM[0];
-    for (let i = 1; i < n; i++) {
-      trend += smooth[i - 1] * (timeS[i] - timeS[i - 1]);
-      z[i] = levelM[i] - trend;
-    }
-  }
+  if (n > 1) detrend(timeS, levelM, movingMedian(rates(timeS, levelM), 2 * k), z);
   const med = movingMedian(z, k);
   const dev = new Float64Array(n);
-  for (let i = 0; i < n; i++) dev[i] = Math.abs(z[i] - med[i]);
   // A reading within threshold·floor of its median is never a spike, whatever the MAD, so the
   // moving MAD is needed only at the few readings beyond that: each takes the median of its own
   // window (the same windows movingMedian uses), not a slide over the whole series.
@@ -94,8 +83,7 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
   const L = Math.min(2 * k + 1, n);
   const half = L >> 1;
   const bar = threshold * floor;
-  let beyond = 0;
-  for (let i = 0; i < n; i++) if (dev[i] > bar) beyond++;
+  const beyond = deviations(z, med, bar, dev);
   if (beyond > n / 16) {
     const mad = movingMedian(dev, k);
     for (let i = 0; i < n; i++) if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
@@ -111,4 +99,35 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
     if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad, floor)) out.push(i);
   }
   return Int32Array.from(out);
+}
+
+// The passes over every reading, as small functions the JIT takes up early in a fresh process.
+
+/** Reading-to-reading rates (length n − 1). */
+function rates(timeS: Float64Array, levelM: Float64Array): Float64Array {
+  const n = levelM.length;
+  const rate = new Float64Array(n - 1);
+  for (let i = 0; i + 1 < n; i++) rate[i] = (levelM[i + 1] - levelM[i]) / (timeS[i + 1] - timeS[i]);
+  return rate;
+}
+
+/** z = readings minus the integral of the smoothed rate (z[0] = the first reading). */
+function detrend(timeS: Float64Array, levelM: Float64Array, smooth: Float64Array, z: Float64Array): void {
+  let trend = 0;
+  z[0] = levelM[0];
+  for (let i = 1; i < levelM.length; i++) {
+    trend += smooth[i - 1] * (timeS[i] - timeS[i - 1]);
+    z[i] = levelM[i] - trend;
+  }
+}
+
+/** dev = |z − med|; returns how many exceed bar. */
+function deviations(z: Float64Array, med: Float64Array, bar: number, dev: Float64Array): number {
+  let beyond = 0;
+  for (let i = 0; i < z.length; i++) {
+    const d = Math.abs(z[i] - med[i]);
+    dev[i] = d;
+    if (d > bar) beyond++;
+  }
+  return beyond;
 }
