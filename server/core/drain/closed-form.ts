@@ -106,3 +106,29 @@ export function closedFormReadings(
   }
   return true;
 }
+
+/**
+ * ∂y/∂Q_in at Q_in = 0 for a constant plan area and n = ½, the forward sensitivity the ODE would
+ * integrate, in closed form. With u = sqrt(H) = u0 − c·t/2 the sensitivity s obeys
+ * ds/dt = −(c/(2u))·s + 1/A, s(0) = 0; the integrating factor 1/u gives
+ *   s(t) = (2u/(A·c))·ln(u0/u),
+ * which starts as t/A (the inflow simply fills the vessel) and is 0 once drained (u = 0).
+ * Used by the model comparison's score test for the inflow term, so a constant-area fit needs no
+ * ODE. Returns false outside the closed form's domain, for n ≠ ½, or for Cd·a = 0.
+ */
+export function closedFormInflowSensitivity(setting: DrainSetting, theta: Float64Array, timeS: Float64Array, out: Float64Array, stride = 1, offset = 0): boolean {
+  const area = setting.shape.areaM2(0);
+  const cdA = theta[THETA.effectiveArea];
+  const zs = theta[THETA.sensorZero];
+  const h0 = theta[THETA.initialReading] - (setting.outletElevationM - zs);
+  if (!(h0 > 0) || !(cdA > 0) || theta[THETA.exponent] !== 0.5 || !(area > 0) || theta[THETA.inflow] !== 0) return false;
+  const c = (cdA * Math.sqrt(2 * setting.gravity)) / area;
+  const u0 = Math.sqrt(h0);
+  const factor = 2 / (area * c);
+  const halfC = 0.5 * c;
+  for (let i = 0; i < timeS.length; i++) {
+    const u = u0 - halfC * timeS[i];
+    out[i * stride + offset] = u > 0 ? factor * u * Math.log(u0 / u) : 0;
+  }
+  return true;
+}

@@ -1,5 +1,6 @@
 import { fCdf } from '../stats/index.js';
 import { THETA } from '../drain/parameters.js';
+import { closedFormInflowSensitivity } from '../drain/closed-form.js';
 import { predictReadings, solutionFor } from '../drain/predict.js';
 import { applyQt, gatherColumns, householderQr, type SolveWorkspace } from '../lsq/index.js';
 import type { UncertaintyModel } from './uncertainty.js';
@@ -134,7 +135,16 @@ function scoreFalls(input: VariantInput, best: FittedVariant, added: (keyof Mode
   const model = new Float64Array(m);
   const J = new Float64Array(m * w);
   const out = new Map<keyof ModelTerms, number>();
-  const ok = predictReadings(setting, solutionFor(setting, all.inflow), best.theta, timeS, model, J, free);
+  // A constant-area orifice fit keeps its closed form: the inflow column then comes from the
+  // closed-form sensitivity (the closed form itself leaves it 0), not from integrating the ODE.
+  const inflowCol = extra.indexOf(THETA.inflow);
+  const closed = best.solution === 'closed-form' && best.theta[THETA.exponent] === 0.5 && best.theta[THETA.inflow] === 0;
+  let ok: boolean;
+  if (closed) {
+    ok = predictReadings(setting, 'closed-form', best.theta, timeS, model, J, free);
+    if (ok && inflowCol >= 0) ok = closedFormInflowSensitivity(setting, best.theta, timeS, J, w, k + inflowCol);
+  } else ok = false;
+  if (!ok) ok = predictReadings(setting, solutionFor(setting, all.inflow), best.theta, timeS, model, J, free);
   if (!ok) return out;
   const a = new Float64Array(m * k);
   gatherColumns(J, m, w, null, k, a);
