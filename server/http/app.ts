@@ -33,6 +33,7 @@ import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
+import { systemRoutes } from './routes/systems.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
@@ -187,6 +188,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(auditRoutes);
   await app.register(reportRoutes);
   await app.register(workbenchRoutes);
+  await app.register(systemRoutes);
   app.get(
     '/api/openapi.json',
     { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },

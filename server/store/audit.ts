@@ -84,6 +84,8 @@ export interface AuditFilter {
   entityId?: string;
   actorId?: number;
   action?: string;
+  /** Entries of this vessel and of its outlets, tests, fits and maintenance events. */
+  vesselId?: number;
   since?: string;
   until?: string;
   afterSeq?: number;
@@ -143,6 +145,14 @@ export class AuditLog {
           (@entityId IS NULL OR entity_id = @entityId) AND
           (@actorId IS NULL OR actor_id = @actorId) AND
           (@action IS NULL OR action = @action) AND
+          (@vesselId IS NULL OR
+            (entity_type = 'vessel' AND entity_id = CAST(CAST(@vesselId AS INTEGER) AS TEXT)) OR
+            (entity_type = 'outlet' AND entity_id IN (SELECT CAST(id AS TEXT) FROM outlets WHERE vessel_id = @vesselId)) OR
+            (entity_type = 'test' AND (entity_id IN (SELECT CAST(id AS TEXT) FROM drain_tests WHERE vessel_id = @vesselId)
+              -- a withdrawn test's row is gone; its entries still name the vessel
+              OR json_extract(coalesce(before, after), '$.vesselId') = @vesselId)) OR
+            (entity_type = 'fit' AND entity_id IN (SELECT CAST(id AS TEXT) FROM fits WHERE vessel_id = @vesselId)) OR
+            (entity_type = 'maintenance-event' AND entity_id IN (SELECT CAST(id AS TEXT) FROM maintenance_events WHERE vessel_id = @vesselId))) AND
           (@since IS NULL OR at >= @since) AND
           (@until IS NULL OR at < @until) AND
           seq > @afterSeq
@@ -153,6 +163,7 @@ export class AuditLog {
         entityId: f.entityId ?? null,
         actorId: f.actorId ?? null,
         action: f.action ?? null,
+        vesselId: f.vesselId ?? null,
         since: f.since ?? null,
         until: f.until ?? null,
         afterSeq: f.afterSeq ?? 0,

@@ -49,6 +49,9 @@ const TABLE: Record<string, Rule> = {
   'POST /api/exports': ENG_AUD,
   'POST /api/vessels/:id/inspect': TECH,
   'GET /api/tests/:id/series': ALL,
+  'POST /api/systems/fit': TECH,
+  'POST /api/systems/steady': ALL,
+  'POST /api/systems/linearize': ALL,
 };
 
 function ruleFor(method: string, url: string): Rule | undefined {

@@ -32,6 +32,7 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
           entityId: z.string().optional(),
           actorId: z.coerce.number().int().optional(),
           action: z.string().optional(),
+          vesselId: z.coerce.number().int().positive().optional().meta({ description: 'entries of the vessel and of its outlets, tests, fits and maintenance events' }),
           since: z.string().optional(),
           until: z.string().optional(),
           afterSeq: z.coerce.number().int().min(0).default(0),

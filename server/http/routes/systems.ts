@@ -1,0 +1,276 @@
+/**
+ * Connected vessels over HTTP: the joint fit of every outlet's Cd·a from one test's logs, the
+ * equilibrium levels at given inflows, and the linear (state-space) model about them. The same
+ * pure code as `efflux fit-system`, `steady` and `linearize` (server/core/system); nothing is
+ * stored: the fit answer is the document `steady` and `linearize` take back (the store has no
+ * table for systems yet, so the person keeps the JSON).
+ *
+ * The joint fit runs on the event loop: on the sample systems (2 × 900 and 3 × 1200 readings) it
+ * takes 40–450 ms on this machine, so the answer is capped at MAX_FIT_SAMPLES readings in the
+ * common span (about 1.5 s); longer logs are refused with a pointer to the CLI.
+ * The module's one export is the plugin: `await app.register(systemRoutes)`.
+ */
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
+import type { FastifyRequest } from 'fastify';
+import { z } from 'zod';
+import { InputError } from '../../core/errors.js';
+import { readLevelLog } from '../../core/ingest/read-log.js';
+import { alignLogs, type Alignment, type LogForSystem } from '../../core/system/align.js';
+import { fitSystem, type SystemFitResult } from '../../core/system/fit.js';
+import { loadSystemModel, systemFitJson } from '../../core/system/fit-json.js';
+import { linearize } from '../../core/system/linear.js';
+import { linearModelCsv, linearModelText } from '../../core/system/linear-export.js';
+import { buildNetwork } from '../../core/system/network.js';
+import { parseSystemFile, type SystemSpec } from '../../core/system/schema.js';
+import { steadyState } from '../../core/system/steady.js';
+import { parseFlow } from '../../core/units/index.js';
+import { fluidDensityKgM3 } from '../../core/vessel/schema.js';
+import { READERS, TECHNICIANS_UP } from '../access.js';
+import { HttpProblem } from '../problems.js';
+import { problem, protectedErrors } from '../schemas.js';
+
+/** Readings (all logs, inside the common span) one synchronous fit may take. */
+export const MAX_FIT_SAMPLES = 12_000;
+/** Points per vessel in the drawing part of the fit answer. */
+const DRAW_POINTS = 600;
+const MAX_LOGS = 12;
+
+const bool = z.enum(['true', 'false']).transform((s) => s === 'true');
+const fitFields = z
+  .object({
+    window: z.string().regex(/^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/, 'START..END in seconds from the logs’ common start'),
+    fitDatum: bool,
+    fitInflow: bool,
+    unit: z.string().min(1).max(20),
+    tz: z.string().min(1).max(60),
+    dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
+    delimiter: z.string().min(1).max(3),
+    decimal: z.enum(['.', ',']),
+  })
+  .partial()
+  .strict();
+
+const estimate = z.object({ value: z.number(), standardUncertainty: z.number().nullable(), ci95: z.tuple([z.number(), z.number()]).nullable() });
+
+const fitAnswer = z
+  .looseObject({
+    format: z.string(),
+    converged: z.boolean(),
+    outlets: z.record(z.string(), z.unknown()),
+    warnings: z.array(z.string()),
+    drawing: z.array(z.object({ id: z.string(), fileName: z.string(), timeS: z.array(z.number()), levelM: z.array(z.number()), fittedM: z.array(z.number()) })),
+  })
+  .meta({ id: 'SystemFit', description: 'The output of `efflux fit-system --json`, plus `drawing` (each log thinned for charts, with the fitted curve)' });
+
+const inflowItem = z.object({
+  to: z.string().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
+  flow: z.union([z.string().min(1).max(40), z.number().min(0)]).meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
+});
+const operatingBody = z.object({
+  system: z.record(z.string(), z.unknown()).meta({ description: 'a system file, or the answer of POST /api/systems/fit' }),
+  inflows: z.array(inflowItem).max(50).optional().meta({ description: 'omitted: the constant inflows of the system file' }),
+});
+
+const steadyAnswer = z
+  .object({
+    inflowM3S: z.record(z.string(), z.number()),
+    vessels: z.record(z.string(), z.object({ levelM: estimate, headM: z.number(), outflowM3S: z.number(), heightM: z.number() })),
+    covariance: z.array(z.array(z.number())).nullable(),
+    uncertainty: z.string(),
+    warnings: z.array(z.string()),
+  })
+  .meta({ id: 'SystemSteadyState' });
+
+const linearAnswer = z
+  .looseObject({ ids: z.array(z.string()), a: z.array(estimate), b: z.array(estimate), timeConstantsS: z.array(estimate), modeTimeConstantsS: z.array(z.number()), text: z.string(), csv: z.string() })
+  .meta({ id: 'SystemLinearModel' });
+
+export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
+  app.post(
+    '/api/systems/fit',
+    {
+      config: { roles: TECHNICIANS_UP },
+      schema: {
+        tags: ['systems'],
+        summary: 'Joint fit of connected vessels from one test’s logs (nothing is stored)',
+        description:
+          'multipart/form-data: file "system" (the system file), one file "log:ID" per vessel (ID as in the system file), and optional text fields window (START..END s), fitDatum, fitInflow (true/false), unit, tz, dateOrder, delimiter, decimal (for every log).',
+        consumes: ['multipart/form-data'],
+        response: { 200: fitAnswer, 413: problem, 415: problem, 422: problem, ...protectedErrors },
+      },
+    },
+    async (request) => {
+      const { system, logs, fields } = await readSystemUpload(request);
+      const spec = parseSystemFile(new TextDecoder().decode(system.bytes), system.fileName);
+      const network = buildNetwork(spec);
+      const ids = new Map(spec.vessels.map((v, i) => [v.id, i]));
+      const read: LogForSystem[] = [];
+      for (const [id, file] of logs) {
+        const vessel = ids.get(id);
+        if (vessel === undefined) throw new InputError(`no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`, { field: `log:${id}` });
+        const v = spec.vessels[vessel];
+        const s = readLevelLog(file.bytes, file.fileName, {
+          unit: fields.unit,
+          tz: fields.tz,
+          dateOrder: fields.dateOrder,
+          delimiter: fields.delimiter,
+          decimal: fields.decimal,
+          fluidDensityKgM3: v.fluid && 'densityKgM3' in v.fluid ? fluidDensityKgM3(v).value : undefined,
+          mountElevationM: v.sensor?.mountElevationM,
+          zeroElevationM: v.sensor?.zeroElevationM,
+          gravityMS2: network.gravity,
+        });
+        read.push({ vessel, fileName: file.fileName, timeS: s.timeS, levelM: s.levelM, t0EpochMs: s.t0EpochMs });
+      }
+      const missing = spec.vessels.filter((_, i) => !read.some((l) => l.vessel === i)).map((v) => v.id);
+      if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: send a file field "log:ID" for every vessel`, { field: `log:${missing[0]}` });
+      const alignment = alignLogs(read, fields.window ? parseWindow(fields.window) : undefined);
+      const samples = alignment.logs.reduce((s, l) => s + l.timeS.length, 0);
+      if (samples > MAX_FIT_SAMPLES) {
+        throw new InputError(`${samples} readings in the common span is more than the service fits at once (${MAX_FIT_SAMPLES}): give a shorter window, or run efflux fit-system`, { field: 'window' });
+      }
+      const inflows = spec.inflows.map((f) => {
+        if ('log' in f) throw new InputError(`inflow logs are not read yet: give a constant inflow for "${f.to}"`, { field: 'inflows' });
+        return { vessel: ids.get(f.to)!, constantM3S: f.constantM3S };
+      });
+      const fit = fitSystem({ network, logs: alignment.logs, inflows, terms: { datum: !!fields.fitDatum, leak: !!fields.fitInflow } });
+      return { ...systemFitJson(spec, fit, alignment), drawing: drawing(spec, fit, alignment) };
+    },
+  );
+
+  app.post(
+    '/api/systems/steady',
+    {
+      config: { roles: READERS },
+      schema: { tags: ['systems'], summary: 'Equilibrium levels at constant inflows, with intervals from a fit', body: operatingBody, response: { 200: steadyAnswer, 422: problem, ...protectedErrors } },
+    },
+    async (request) => {
+      const { spec, model } = loadSystemModel(request.body.system, 'system');
+      const q = inflowVector(spec, request.body.inflows);
+      const s = steadyState(model, q);
+      const ids = spec.vessels.map((v) => v.id);
+      const n = ids.length;
+      return {
+        inflowM3S: Object.fromEntries(ids.map((id, i) => [id, q[i]])),
+        vessels: Object.fromEntries(ids.map((id, i) => [id, { levelM: s.levelsM[i], headM: s.headsM[i], outflowM3S: s.flowsM3S[i], heightM: model.network.vessels[i].shape.heightM }])),
+        covariance: s.covariance ? Array.from({ length: n }, (_, i) => Array.from(s.covariance!.subarray(i * n, (i + 1) * n))) : null,
+        uncertainty: s.covariance ? 'delta method with the exact sensitivities of the equilibrium' : 'none: Cd·a taken from the system file as exact',
+        warnings: s.warnings,
+      };
+    },
+  );
+
+  app.post(
+    '/api/systems/linearize',
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['systems'],
+        summary: 'State-space model dx/dt = A x + B u about the equilibrium, time constants, as JSON with a text block and CSV',
+        body: operatingBody,
+        response: { 200: linearAnswer, 422: problem, ...protectedErrors },
+      },
+    },
+    async (request) => {
+      const { spec, model } = loadSystemModel(request.body.system, 'system');
+      const lm = linearize(model, inflowVector(spec, request.body.inflows));
+      return { ...lm, text: linearModelText(lm), csv: linearModelCsv(lm) };
+    },
+  );
+};
+
+interface FileIn {
+  bytes: Uint8Array;
+  fileName: string;
+}
+
+async function readSystemUpload(request: FastifyRequest): Promise<{ system: FileIn; logs: Map<string, FileIn>; fields: z.infer<typeof fitFields> }> {
+  if (!request.isMultipart()) throw new HttpProblem(415, 'multipart-required', 'send multipart/form-data with a file field "system" and one "log:ID" per vessel');
+  let system: FileIn | null = null;
+  const logs = new Map<string, FileIn>();
+  const text: Record<string, string> = {};
+  const refuse = (path: string, message: string) => new HttpProblem(400, 'validation', `${path}: ${message}`, { title: 'Invalid request', errors: [{ path, message }] });
+  for await (const part of request.parts({ limits: { files: MAX_LOGS + 1 } })) {
+    if (part.type !== 'file') {
+      text[part.fieldname] = String(part.value);
+      continue;
+    }
+    const bytes = await part.toBuffer(); // 413 past the upload limit
+    const fileName = (part.filename ?? '').split(/[\\/]/).pop()!.replace(/[\u0000-\u001f\u007f"]/g, '').slice(0, 255) || `${part.fieldname}.csv`;
+    if (bytes.byteLength === 0) throw refuse(part.fieldname, 'the file is empty');
+    if (part.fieldname === 'system') {
+      if (system) throw refuse('system', 'sent twice');
+      system = { bytes, fileName };
+    } else if (part.fieldname.startsWith('log:') && part.fieldname.length > 4) {
+      const id = part.fieldname.slice(4);
+      if (logs.has(id)) throw refuse(part.fieldname, 'sent twice');
+      logs.set(id, { bytes, fileName });
+    } else throw refuse(part.fieldname, 'unexpected file (send "system" and "log:ID")');
+  }
+  if (!system) throw refuse('system', 'required: the system file');
+  const parsed = fitFields.safeParse(text);
+  if (!parsed.success) {
+    const errors = parsed.error.issues.map((i) => ({ path: i.path.length ? i.path.join('.') : ((i as { keys?: string[] }).keys?.join(',') ?? ''), message: i.message }));
+    throw new HttpProblem(400, 'validation', errors.map((e) => `${e.path}: ${e.message}`).join('; '), { title: 'Invalid request', errors });
+  }
+  return { system, logs, fields: parsed.data };
+}
+
+function parseWindow(text: string): { startS: number; endS?: number } {
+  const [a, b] = text.split('..').map((s) => s.trim());
+  return { startS: Number(a), endS: b === '' ? undefined : Number(b) };
+}
+
+/** Inflows as [{to?, flow}]; a flow without `to` goes to the single vessel nothing discharges into. */
+function inflowVector(spec: SystemSpec, items: z.infer<typeof inflowItem>[] | undefined): Float64Array {
+  const q = new Float64Array(spec.vessels.length);
+  const ids = new Map(spec.vessels.map((v, i) => [v.id, i]));
+  if (!items || items.length === 0) {
+    const constant = spec.inflows.filter((f): f is { to: string; constantM3S: number } => 'constantM3S' in f);
+    if (!constant.length) throw new InputError('no inflow given: add inflows, e.g. [{"flow": "2.5L/s"}]', { field: 'inflows' });
+    for (const f of constant) q[ids.get(f.to)!] += f.constantM3S;
+    return q;
+  }
+  items.forEach((item, k) => {
+    let vessel: number;
+    if (item.to !== undefined) {
+      const i = ids.get(item.to);
+      if (i === undefined) throw new InputError(`no vessel has id "${item.to}" (the system has ${[...ids.keys()].join(', ')})`, { field: `inflows.${k}.to` });
+      vessel = i;
+    } else {
+      const tops = spec.vessels.map((_, i) => i).filter((i) => !spec.vessels.some((v) => v.dischargesTo === spec.vessels[i].id));
+      if (tops.length !== 1) throw new InputError(`the system has several top vessels (${tops.map((i) => spec.vessels[i].id).join(', ')}): say which with "to"`, { field: `inflows.${k}.to` });
+      vessel = tops[0];
+    }
+    let flow: number;
+    if (typeof item.flow === 'number') flow = item.flow;
+    else {
+      try {
+        flow = parseFlow(item.flow);
+      } catch (e) {
+        if (e instanceof InputError) throw new InputError(e.message, { field: `inflows.${k}.flow` });
+        throw e;
+      }
+    }
+    if (!(flow >= 0)) throw new InputError('must not be negative', { field: `inflows.${k}.flow` });
+    q[vessel] += flow;
+  });
+  return q;
+}
+
+/** Each aligned log thinned to about DRAW_POINTS readings (every k-th), with the fitted curve = reading − residual. */
+function drawing(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment) {
+  return alignment.logs.map((l) => {
+    const res = fit.residuals[l.vessel];
+    const step = Math.max(1, Math.ceil(l.timeS.length / DRAW_POINTS));
+    const timeS: number[] = [];
+    const levelM: number[] = [];
+    const fittedM: number[] = [];
+    for (let s = 0; s < l.timeS.length; s += step) {
+      timeS.push(l.timeS[s]);
+      levelM.push(l.levelM[s]);
+      fittedM.push(l.levelM[s] - res[s]);
+    }
+    return { id: spec.vessels[l.vessel].id, fileName: l.fileName, timeS, levelM, fittedM };
+  });
+}
