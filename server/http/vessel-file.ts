@@ -28,8 +28,8 @@ export function checkVesselFile(value: unknown, fileName?: string): Record<strin
   const ids = new Set<string>();
   list.forEach((o, i) => {
     const { actionThreshold, ...plain } = (o ?? {}) as Record<string, unknown>;
-    if (actionThreshold !== undefined && !(typeof actionThreshold === 'number' && actionThreshold > 0 && actionThreshold <= 1)) {
-      throw new InputError('actionThreshold is a fraction of the baseline effective area, 0 < x ≤ 1', { file: fileName, field: `${prefix(i)}.actionThreshold` });
+    if (actionThreshold !== undefined && !(typeof actionThreshold === 'number' && actionThreshold > 0 && actionThreshold < 2 && actionThreshold !== 1)) {
+      throw new InputError('actionThreshold is the baseline effective area times a factor: below 1 for fouling (e.g. 0.9), above 1 for erosion (e.g. 1.1); 0 < x < 2, not 1', { file: fileName, field: `${prefix(i)}.actionThreshold` });
     }
     try {
       validateVessel({ ...rest, outlet: o === undefined ? undefined : plain }, fileName);

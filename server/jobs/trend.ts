@@ -42,7 +42,8 @@ export interface ThresholdChoice {
 /** The outlet's threshold as a percentage; the project's default (−10 %) when it has none. */
 export function thresholdOf(o: Pick<Outlet, 'actionThreshold'>): ThresholdChoice {
   const f = o.actionThreshold;
-  if (f !== null && f > 0 && f < 1) {
+  if (f !== null && f > 0 && f < 2 && f !== 1) {
+    // below 1: fouling (a loss of Cd·a); above 1: erosion (a gain)
     // rounded so 0.9 reads as −10 %, not −9.999999999999998 %
     return { pct: Math.round((f - 1) * 100 * 1e9) / 1e9, fraction: f, source: `the outlet's action threshold: ${f} of the baseline Cd·a` };
   }

@@ -76,7 +76,7 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['trend'],
         summary: "Set an outlet's action threshold (fraction of the baseline Cd·a; null: the default 0.9). Stored in the vessel file, so it is a vessel update",
         params: idParams,
-        body: z.object({ actionThreshold: z.number().gt(0).lt(1).nullable() }).strict(),
+        body: z.object({ actionThreshold: z.number().gt(0).lt(2).refine((x) => x !== 1, 'a threshold of exactly the baseline is no threshold').nullable() }).strict(),
         response: { 200: z.object({ outlet, threshold }), 409: problem, 422: problem, ...protectedErrors },
       },
     },
