@@ -33,7 +33,7 @@ CREATE TABLE outlets (
   bore_m            REAL,
   bore_tolerance_m  REAL,
   elevation_m       REAL,
-  -- fraction of the baseline effective area below which the trend calls for action
+  -- the baseline effective area times this factor is the action threshold: < 1 fouling, > 1 erosion
   action_threshold  REAL CHECK (action_threshold IS NULL OR (action_threshold > 0 AND action_threshold < 2 AND action_threshold <> 1)),
   spec              TEXT NOT NULL CHECK (json_valid(spec)),
   -- outlets are never deleted (tests point at them); one dropped from the vessel file is retired
