@@ -24,6 +24,7 @@ interface Row {
   fitMs: number;
   diagnosticsMs: number;
   peakRssMB: number;
+  evaluations: number;
 }
 
 function fitOnce(name: string): Row {
@@ -32,23 +33,33 @@ function fitOnce(name: string): Row {
   const out = spawnSync(process.execPath, [cli, 'fit', csv, '--vessel', vessel, '--json'], { encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 });
   if (out.status !== 0) throw new Error(`efflux fit ${name} failed: ${out.stderr}`);
   const fit = JSON.parse(out.stdout);
-  return { file: name, cd: fit.dischargeCoefficient.value, parseMs: fit.timing.parseMs, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs, peakRssMB: fit.timing.peakRssMB };
+  return {
+    file: name,
+    cd: fit.dischargeCoefficient.value,
+    parseMs: fit.timing.parseMs,
+    fitMs: fit.timing.fitMs,
+    diagnosticsMs: fit.timing.diagnosticsMs,
+    peakRssMB: fit.timing.peakRssMB,
+    evaluations: fit.solver.evaluations,
+  };
 }
 
 if (!existsSync(shared)) {
   console.error(`bench: ${shared} not found (the shared benchmark workloads sit beside the project)`);
   process.exit(2);
 }
-console.log(`efflux fit --json on the shared benchmark logs, ${runs} fresh processes each (median):`);
-console.log('file             Cd          parse ms   fit ms   diagnostics ms   peak RSS MB');
+console.log(`efflux fit --json on the shared benchmark logs, ${runs} fresh processes each: median (min); a shared machine's load shows in the spread`);
+console.log('file             Cd          parse ms        fit ms          diagnostics ms   peak RSS MB  main-fit evaluations');
 for (const name of ['vcyl-86400', 'hcyl-86400']) {
   const rows: Row[] = [];
   for (let i = 0; i < runs; i++) {
-    if (process.stderr.isTTY) process.stderr.write(`  ${name}: run ${i + 1}/${runs}\r`);
+    process.stderr.write(`  ${name}: run ${i + 1}/${runs}\r`);
     rows.push(fitOnce(name));
   }
   const m = (k: keyof Row) => median(rows.map((r) => r[k] as number));
-  console.log(`${name.padEnd(17)}${m('cd').toFixed(6).padEnd(12)}${m('parseMs').toFixed(1).padStart(8)} ${m('fitMs').toFixed(1).padStart(8)} ${m('diagnosticsMs').toFixed(1).padStart(16)} ${m('peakRssMB').toFixed(0).padStart(13)}`);
+  const lo = (k: keyof Row) => Math.min(...rows.map((r) => r[k] as number));
+  const ms = (k: keyof Row) => `${m(k).toFixed(1)} (${lo(k).toFixed(1)})`.padStart(15);
+  console.log(`${name.padEnd(17)}${m('cd').toFixed(6).padEnd(12)}${ms('parseMs')} ${ms('fitMs')} ${ms('diagnosticsMs')} ${m('peakRssMB').toFixed(0).padStart(13)} ${String(m('evaluations')).padStart(21)}`);
 }
 
 for (const [script, label] of [
