@@ -28,6 +28,8 @@ export interface Alignment {
   /** Epoch ms of the common t = 0, or null for elapsed-time logs. */
   t0EpochMs: number | null;
   spanS: number;
+  /** The common t = 0 in seconds on the logs' shared clock: after the earliest log's first timestamp, or on their elapsed time. */
+  startS: number;
   warnings: string[];
 }
 
@@ -77,5 +79,5 @@ export function alignLogs(logs: readonly LogForSystem[], window?: { startS: numb
     };
   });
   const base = absolute.length ? Math.min(...absolute.map((a) => a.t0EpochMs!)) : null;
-  return { logs: out, t0EpochMs: base === null ? null : base + start * 1000, spanS: end - start, warnings };
+  return { logs: out, t0EpochMs: base === null ? null : base + start * 1000, spanS: end - start, startS: start, warnings };
 }

@@ -10,7 +10,8 @@ import { areas, netFlows, netParameterColumn, rateWork } from './rates.js';
  * fastest vessel; an outlet in the regularised zone near zero head (outflow.ts: an emptied vessel,
  * or two levels that have equalised) only relaxes, so for it the step merely stays inside RK4's
  * stability limit (STABILITY_SCALE over the largest absolute row sum of ∂f/∂η, a Gershgorin bound
- * on every rate). Capped at 1 % of the span.
+ * on every rate). Capped at 1 % of the span. A logged inflow is piecewise linear in time, and RK4
+ * loses its order across a kink, so no step crosses one of its sample times: steps end on them.
  */
 const ACCURACY_SCALE = 0.02;
 const STABILITY_SCALE = 1.5;
@@ -126,12 +127,17 @@ export function integrateSystem(
     if (role === P.initialReading || role === P.sensorZero) z[n + Math.floor(p / PER_VESSEL) * k + c] = 1;
   }
   rates(0, z, dz);
+  const breaks = inflowBreaks(inflows);
+  let b = 0;
   let t = 0;
   let s = 0;
   while (s < m && timeS[s] <= 0) write(s++, z);
   while (s < m) {
     let h = Math.min(signal > 0 ? ACCURACY_SCALE / signal : maxStep, fastest > 0 ? STABILITY_SCALE / fastest : maxStep);
     h = Math.min(Math.max(h, minStep), maxStep);
+    while (b < breaks.length && breaks[b] <= t) b++;
+    const toBreak = b < breaks.length && t + h >= breaks[b];
+    if (toBreak) h = breaks[b] - t;
     for (let j = 0; j < dim; j++) tmp[j] = z[j] + 0.5 * h * dz[j];
     rates(t + 0.5 * h, tmp, k2);
     for (let j = 0; j < dim; j++) tmp[j] = z[j] + 0.5 * h * k2[j];
@@ -139,7 +145,7 @@ export function integrateSystem(
     for (let j = 0; j < dim; j++) tmp[j] = z[j] + h * k3[j];
     rates(t + h, tmp, k4);
     for (let j = 0; j < dim; j++) zNext[j] = z[j] + (h / 6) * (dz[j] + 2 * k2[j] + 2 * k3[j] + k4[j]);
-    const tNext = t + h;
+    const tNext = toBreak ? breaks[b] : t + h;
     rates(tNext, zNext, dzNext);
     if (!Number.isFinite(zNext[0]) || !Number.isFinite(zNext[n - 1])) return false;
     while (s < m && timeS[s] <= tNext) {
@@ -158,6 +164,16 @@ export function integrateSystem(
     dz.set(dzNext);
   }
   return true;
+
+  /** Sample times of the logged inflows after t = 0, ascending, without repeats. */
+  function inflowBreaks(list: readonly InflowInput[]): Float64Array {
+    const all: number[] = [];
+    for (const f of list) if (f.timeS) for (const x of f.timeS) if (x > 0) all.push(x);
+    const sorted = Float64Array.from(all).sort();
+    let w = 0;
+    for (let i = 0; i < sorted.length; i++) if (w === 0 || sorted[i] > sorted[w - 1]) sorted[w++] = sorted[i];
+    return sorted.subarray(0, w);
+  }
 
   function write(index: number, state: Float64Array): void {
     for (let i = 0; i < n; i++) eta[index * n + i] = state[i];

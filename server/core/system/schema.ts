@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { InputError } from '../errors.js';
+import { flowFactorToM3s } from '../units/flow.js';
 import { parseFlow } from '../units/parse.js';
 import { describeIssue } from '../vessel/issues.js';
 import { jsonErrorOffset, lineOf } from '../vessel/json-position.js';
@@ -29,7 +30,8 @@ const SYSTEM_ONLY = ['id', 'dischargesTo', 'connection', 'baseElevationM', 'effe
 
 const inflowSchema = z.union([
   z.strictObject({ to: z.string().min(1), constant: z.union([z.number().min(0), z.string().min(1)]) }),
-  z.strictObject({ to: z.string().min(1), log: z.string().min(1) }),
+  // a flow log (time and flow columns); its path is relative to the system file; unit if its header gives none
+  z.strictObject({ to: z.string().min(1), log: z.string().min(1), unit: z.string().min(1).optional() }),
 ]);
 
 const systemObject = z.strictObject({
@@ -49,7 +51,7 @@ export interface SystemVessel extends VesselSpec {
   dischargeCoefficient?: number;
 }
 
-export type SystemInflow = { to: string; constantM3S: number } | { to: string; log: string };
+export type SystemInflow = { to: string; constantM3S: number } | { to: string; log: string; unit?: string };
 
 export interface SystemSpec {
   name: string;
@@ -123,7 +125,10 @@ export function validateSystem(value: unknown, fileName?: string): SystemSpec {
   });
   const inflows: SystemInflow[] = (r.data.inflows ?? []).map((f, i) => {
     if (!index.has(f.to)) refuse(`no vessel has id "${f.to}"`, `inflows.${i}.to`, fileName);
-    if ('log' in f) return { to: f.to, log: f.log };
+    if ('log' in f) {
+      if (f.unit !== undefined && flowFactorToM3s(f.unit) === null) refuse(`"${f.unit}" is not a flow unit we know (e.g. L/s, m3/h, gpm)`, `inflows.${i}.unit`, fileName);
+      return f.unit === undefined ? { to: f.to, log: f.log } : { to: f.to, log: f.log, unit: f.unit };
+    }
     let q: number;
     try {
       q = typeof f.constant === 'number' ? f.constant : parseFlow(f.constant);
