@@ -1,4 +1,5 @@
 import { residualDiagnostics } from '../stats/index.js';
+import { createSolveWorkspace } from '../lsq/index.js';
 import { THETA, THETA_NAMES, type DrainSetting } from '../drain/parameters.js';
 import type { SolveResult } from '../lsq/types.js';
 import { dischargeCoefficientQuantity, effectiveAreaQuantity, nominalAreaM2, type GumQuantity } from './coefficient.js';
@@ -76,7 +77,9 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
   const zs0 = input.knownSensorZeroM ?? 0;
   const data = { setting, timeS, levelM };
   const start = refineStartOnSubsample(data, terms, startTheta(setting, timeS, levelM, zs0));
-  const best = fitVariant(data, terms, start);
+  // one set of solver work buffers for the main fit and every refit after it
+  const work = createSolveWorkspace();
+  const best = fitVariant(data, terms, start, undefined, { work });
   const diag = residualDiagnostics(best.solve.residuals);
   const unc = uncertaintyFor(best, diag);
   const { solve } = best;
@@ -102,7 +105,7 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
   const areaCol = freeList.indexOf(THETA.effectiveArea);
   const cdA = best.theta[THETA.effectiveArea];
   const uCdA = unc.standardUncertainties[areaCol];
-  const profile = input.essentialsOnly ? null : profileIntervalEffectiveArea(data, best, unc);
+  const profile = input.essentialsOnly ? null : profileIntervalEffectiveArea(data, best, unc, work);
   const effectiveArea = {
     ...effectiveAreaQuantity(cdA, uCdA, unc.degreesOfFreedom),
     profileCi95: profile ? ([profile.lower, profile.upper] as [number, number]) : null,
@@ -119,8 +122,8 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
     lag1Autocorrelation: diag.lag1Autocorrelation,
     durbinWatson: diag.durbinWatson,
   };
-  const comparison = input.essentialsOnly ? null : compareModels(data, best, unc, datumRequired);
-  const bands = input.essentialsOnly ? [] : headBands(data, best);
+  const comparison = input.essentialsOnly ? null : compareModels(data, best, unc, datumRequired, work);
+  const bands = input.essentialsOnly ? [] : headBands(data, best, 4, work);
   const warnings = fitWarnings({ input, best, unc, dischargeCoefficient: dischargeCoefficient.value, comparison, bands, parameters });
   const t2 = now();
   return {

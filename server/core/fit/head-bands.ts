@@ -1,6 +1,6 @@
 import { THETA } from '../drain/parameters.js';
 import { predictReadings } from '../drain/predict.js';
-import { createSolveWorkspace } from '../lsq/index.js';
+import { createSolveWorkspace, type SolveWorkspace } from '../lsq/index.js';
 import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
 
 /**
@@ -19,7 +19,7 @@ export interface HeadBand {
   standardUncertainty: number;
 }
 
-export function headBands(input: VariantInput, best: FittedVariant, bands = 4): HeadBand[] {
+export function headBands(input: VariantInput, best: FittedVariant, bands = 4, work: SolveWorkspace = createSolveWorkspace()): HeadBand[] {
   const { timeS, levelM, setting } = input;
   const m = timeS.length;
   const zs = best.theta[THETA.sensorZero];
@@ -27,7 +27,6 @@ export function headBands(input: VariantInput, best: FittedVariant, bands = 4): 
   const hStart = head(0);
   const hEnd = head(m - 1);
   const out: HeadBand[] = [];
-  const work = createSolveWorkspace();
   const at = new Float64Array(1);
   const reading = new Float64Array(1);
   let from = 0;

@@ -1,6 +1,6 @@
 import { THETA } from '../drain/parameters.js';
 import type { UncertaintyModel } from './uncertainty.js';
-import { createSolveWorkspace } from '../lsq/index.js';
+import { createSolveWorkspace, type SolveWorkspace } from '../lsq/index.js';
 import { fitVariant, type FittedVariant, type VariantInput } from './variant.js';
 
 /**
@@ -27,6 +27,7 @@ export function profileIntervalEffectiveArea(
   input: VariantInput,
   best: FittedVariant,
   unc: UncertaintyModel,
+  work: SolveWorkspace = createSolveWorkspace(),
 ): ProfileInterval {
   const col = Array.from(best.free).indexOf(THETA.effectiveArea);
   const centre = best.theta[THETA.effectiveArea];
@@ -37,7 +38,6 @@ export function profileIntervalEffectiveArea(
   let found = true;
 
   const k = best.k;
-  const work = createSolveWorkspace();
   const start = new Float64Array(best.theta.length);
   const signedRoot = (c: number): number => {
     refits++;
