@@ -53,3 +53,46 @@ export async function dragAcross(page: Page, selector: string, from: number, to:
   await page.mouse.move(box.x + box.width * to, box.y + box.height / 2, { steps: 12 });
   await page.mouse.up();
 }
+
+export interface RunningServer {
+  base: string;
+  adminToken: string;
+  env: NodeJS.ProcessEnv;
+  stop(): Promise<void>;
+}
+
+/** `efflux serve` on a free port with its own data folder and a fresh web build; the demo scenario loads. */
+export async function startServer(): Promise<RunningServer> {
+  const { spawn } = await import('node:child_process');
+  const { rmSync } = await import('node:fs');
+  const { buildWeb } = await import('../../web/build.js');
+  const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
+  const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
+  await buildWeb(webRoot);
+  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1' };
+  const server = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+  let out = '';
+  const base = await new Promise<string>((resolve, reject) => {
+    server.stdout!.on('data', (d) => {
+      out += d;
+      const m = /listening on (http:\/\/127\.0\.0\.1:\d+)/.exec(out);
+      if (m && /\/api\/docs\n/.test(out)) resolve(m[1]);
+    });
+    server.stderr!.on('data', (d) => (out += d));
+    server.once('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
+  });
+  const adminToken = /keep it safe:\n\s+(\S+)/.exec(out)![1];
+  return {
+    base,
+    adminToken,
+    env,
+    async stop() {
+      if (server.exitCode === null) {
+        const exited = new Promise((r) => server.once('exit', r));
+        process.kill(server.pid!, 'SIGTERM');
+        await exited;
+      }
+      for (const d of [dataDir, webRoot]) rmSync(d, { recursive: true, force: true });
+    },
+  };
+}

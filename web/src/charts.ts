@@ -164,14 +164,14 @@ export interface WindowPlot {
 }
 
 /** Readings and the fitted curve over the window, against time from the log's start. */
-export function fitChart(el: HTMLElement, w: WindowPlot): uPlot {
+export function fitChart(el: HTMLElement, w: WindowPlot, xLabel = 'time from the start of the log (min)'): uPlot {
   const x = w.timeS.map((t) => t + w.offsetS);
   const u = new uPlot(
     {
       width: widthOf(el),
       height: 320,
       scales: { x: { time: false } },
-      axes: [axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }), axis('level above the sensor zero (m)')],
+      axes: [axis(xLabel, { values: minutes, incrs: MINUTE_STEPS }), axis('level above the sensor zero (m)')],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
         { label: 'readings (m)', stroke: COLOURS.level, width: 0, points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`) },

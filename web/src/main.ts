@@ -5,10 +5,12 @@
  */
 import { api, ApiError, type User } from './api.js';
 import { clear, h, notice } from './dom.js';
+import { auditPage } from './pages/audit.js';
 import { fitPage } from './pages/fit.js';
 import { fleetPage } from './pages/fleet.js';
 import { newTestPage } from './pages/new-test.js';
 import { signInPage } from './pages/sign-in.js';
+import { systemsPage } from './pages/systems.js';
 import { vesselPage } from './pages/vessel.js';
 
 export interface PageContext {
@@ -24,6 +26,8 @@ const routes: [RegExp, Page][] = [
   [/^#\/vessels\/(\d+)$/, vesselPage],
   [/^#\/vessels\/(\d+)\/new-test$/, newTestPage],
   [/^#\/fits\/(\d+)$/, fitPage],
+  [/^#\/systems$/, systemsPage],
+  [/^#\/audit$/, auditPage],
 ];
 
 let user: User | null = null;
@@ -39,6 +43,9 @@ function header(): void {
   clear(who);
   (document.querySelector('.bar nav') as HTMLElement).hidden = !user;
   if (!user) return;
+  // the audit log is for auditors and admins; the others are not shown a link they cannot use
+  const auditLink = document.querySelector('.bar nav a[href="#/audit"]') as HTMLElement | null;
+  if (auditLink) auditLink.hidden = user.role !== 'auditor' && user.role !== 'admin';
   const out = h('button', { type: 'button', class: 'quiet' }, 'Sign out');
   out.addEventListener('click', async () => {
     await api('DELETE', '/api/session').catch(() => undefined);
@@ -73,7 +80,11 @@ async function show(): Promise<void> {
     for (const [re, page] of routes) {
       const m = re.exec(hash);
       if (m) {
-        await page({ user, params: m.slice(1), main, go });
+        // each page draws into its own holder: a page still loading when the person moves on
+        // keeps appending to its detached holder, never to the next page
+        const holder = h('div', { class: 'page' });
+        main.append(holder);
+        await page({ user, params: m.slice(1), main: holder, go });
         focusHeading();
         return;
       }

@@ -11,7 +11,12 @@ interface Row {
   latest: TestedFit | null;
   tests: number;
   drift: string | null;
+  /** Days until the action threshold: past it first, then soonest, then none (for the sort). */
+  due: number;
 }
+
+const dueOf = (d: { status: string; daysToThreshold: number | null } | undefined) =>
+  !d ? Infinity : d.status === 'past threshold' ? -Infinity : d.daysToThreshold !== null && Number.isFinite(d.daysToThreshold) ? d.daysToThreshold : Infinity;
 
 export async function fleetPage({ main }: PageContext): Promise<void> {
   main.append(h('h1', {}, 'Fleet'), h('p', { class: 'lede' }, 'Every vessel and outlet with its latest discharge coefficient. Choose a vessel for its drawing, its tests and its history.'));
@@ -22,7 +27,7 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
     const active = v.outlets.filter((o) => o.retiredAt === null);
     for (const o of active.length ? active : [null]) {
       const tests = histories[i].tests.filter((t) => o === null || t.outletId === o.id || t.outletId === null).length;
-      rows.push({ vessel: v, outlet: o, latest: latestFor(o, histories[i].fits), tests, drift: o ? driftWords(drift.get(o.id)) : null });
+      rows.push({ vessel: v, outlet: o, latest: latestFor(o, histories[i].fits), tests, drift: o ? driftWords(drift.get(o.id)) : null, due: o ? dueOf(drift.get(o.id)) : Infinity });
     }
   });
   const anyDrift = drift.size > 0;
@@ -36,9 +41,10 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
     ['draft', 'latest fit waiting for review'],
     ['none', 'never tested'],
   ]);
+  const order = select('order', anyDrift ? [['due', 'time to the action threshold, soonest first'], ['name', 'vessel name']] : [['name', 'vessel name']], anyDrift ? 'due' : 'name');
   const count = h('p', { class: 'count', 'aria-live': 'polite' });
   const body = h('tbody');
-  const head = ['Vessel', 'Site', 'Shape', 'Outlet', 'Latest Cd ± expanded uncertainty (k)', 'Fit', 'Last test', 'Tests', ...(anyDrift ? ['Drift'] : [])];
+  const head = ['Vessel', 'Site', 'Shape', 'Outlet', 'Latest Cd ± expanded uncertainty (k)', 'Fit', 'Last test', 'Tests', ...(anyDrift ? ['Drift status'] : [])];
   const tableEl = h('table', { class: 'fleet' }, h('caption', { class: 'visually-hidden' }, 'Vessels and outlets'), h('thead', {}, h('tr', {}, head.map((t) => h('th', { scope: 'col' }, t)))), body);
 
   const draw = () => {
@@ -51,6 +57,7 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
       if (!q) return true;
       return [r.vessel.name, r.vessel.site, r.outlet?.key ?? ''].some((s) => s.toLowerCase().includes(q));
     });
+    if (order.value === 'due') shown.sort((a, b) => (a.due === b.due ? a.vessel.name.localeCompare(b.vessel.name) : a.due < b.due ? -1 : 1));
     body.replaceChildren(
       ...shown.map((r) => {
         const cd = r.latest?.fit.result.dischargeCoefficient;
@@ -66,13 +73,13 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
           h('td', {}, r.latest ? h('a', { href: `#/fits/${r.latest.fit.id}`, class: `badge badge-${r.latest.fit.status}` }, r.latest.fit.status) : '—'),
           h('td', {}, r.latest ? date(r.latest.at) : '—'),
           h('td', { class: 'num' }, String(r.tests)),
-          ...(anyDrift ? [h('td', { title: (r.outlet && drift.get(r.outlet.id)?.reason) || '' }, r.drift ?? '—')] : []),
+          ...(anyDrift ? [h('td', { title: (r.outlet && drift.get(r.outlet.id)?.reason) || '', class: `drift drift-${(r.outlet && drift.get(r.outlet.id)?.status.replace(/\s+/g, '-')) || 'none'}` }, r.drift ?? '—')] : []),
         );
       }),
     );
     count.textContent = `${shown.length} of ${rows.length} outlets shown${anyDrift ? '' : ' · drift status appears here once the service offers it'}`;
   };
-  for (const c of [search, site, state]) c.addEventListener('input', draw);
-  main.append(h('div', { class: 'filters' }, field('Search', search), field('Site', site), field('Show', state)), count, h('div', { class: 'table-wrap' }, tableEl));
+  for (const c of [search, site, state, order]) c.addEventListener('input', draw);
+  main.append(h('div', { class: 'filters' }, field('Search', search), field('Site', site), field('Show', state), field('Order by', order)), count, h('div', { class: 'table-wrap' }, tableEl));
   draw();
 }

@@ -1,11 +1,13 @@
 /** One vessel: its geometry and outlets, a drawing to scale, its tests, and Cd over time. */
-import { api, canUpload, optional, seesMaintenance, type MaintenanceEvent, type OutletTrend, type Page, type Vessel } from '../api.js';
+import { api, canReview, canUpload, optional, seesMaintenance, type MaintenanceEvent, type Page, type Vessel } from '../api.js';
 import { historyChart } from '../charts.js';
 import { h, notice, table } from '../dom.js';
 import { vesselDrawing } from '../drawing.js';
 import { date, metres, num, outletName, plusMinus, shapeName } from '../format.js';
 import { current, vesselHistory } from '../history.js';
 import type { PageContext } from '../main.js';
+import type { FullTrend } from '../trend-chart.js';
+import { maintenanceSection, trendSection } from './vessel-trend.js';
 
 const SHAPE_FIELDS: [string, string][] = [
   ['diameterM', 'Diameter'],
@@ -67,12 +69,13 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
   });
   main.append(h('section', { class: 'vessel-top' }, facts, h('figure', { class: 'card drawing' }, drawing, h('figcaption', {}, 'Drawn to scale from the vessel file'))));
 
-  // Cd over time, one chart per outlet
-  const section = h('section', {}, h('h2', {}, 'Discharge coefficient over time'));
+  // the trend of approved tests per outlet (the trend service), then every test including drafts
+  const trends = new Map<number, FullTrend | null>(await Promise.all(outlets.map(async (o) => [o.id, await optional<FullTrend>(`/api/outlets/${o.id}/trend`)] as [number, FullTrend | null])));
+  if (outlets.some((o) => trends.get(o.id))) main.append(trendSection(outlets, trends));
+
+  const section = h('section', {}, h('h2', {}, 'Every test, drafts included'));
   main.append(section);
   const fits = current(hist.fits).filter((f) => f.fit.result.dischargeCoefficient);
-  // the trend work's view per outlet (baseline, threshold, status) when the service offers it
-  const trends = new Map<number, OutletTrend | null>(await Promise.all(outlets.map(async (o) => [o.id, await optional<OutletTrend>(`/api/outlets/${o.id}/trend`)] as [number, OutletTrend | null])));
   for (const o of outlets.length ? outlets : [null]) {
     const mine = fits.filter((f) => o === null || f.fit.outletId === o.id || f.fit.outletId === null);
     const box = h('div', { class: 'chart', id: `history-${o?.id ?? 0}` });
@@ -93,9 +96,8 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
     box.setAttribute('aria-label', `Cd of outlet ${o?.key ?? ''} over time: ${mine.length} tests, ${box.dataset.approved} approved`);
     const trend = o ? trends.get(o.id) ?? null : null;
     const epoch = trend?.epochs.find((e) => e.current) ?? null;
-    const baseline = epoch ? epoch.series.find((p) => p.isBaseline)?.dischargeCoefficient ?? epoch.cd?.baselineValue ?? null : null;
+    const baseline = epoch?.cd?.baselineValue ?? null;
     const threshold = epoch?.thresholdCd ?? null;
-    if (trend) section.insertBefore(h('p', { class: 'trend-status' }, h('strong', {}, `Status: ${trend.status.status}. `), trend.status.reason.replace(/\.?$/, '.'), baseline !== null ? ' Green line: the baseline of the present epoch;' : '', threshold !== null ? ` red line: act below Cd ${threshold.toFixed(3)} (${trend.threshold.pct} % from the baseline).` : ''), box);
     historyChart(
       box,
       mine.map((f) => ({ atS: Date.parse(f.at) / 1000, cd: f.fit.result.dischargeCoefficient!.value, expanded: f.fit.result.dischargeCoefficient!.expandedUncertainty ?? 2 * f.fit.result.dischargeCoefficient!.standardUncertainty, status: f.fit.status })),
@@ -103,6 +105,8 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
       { threshold, baseline },
     );
   }
+
+  if (seesMaintenance(user)) main.append(maintenanceSection(id, outlets, events, canReview(user)));
 
   // the tests, newest first
   const testsSection = h('section', {}, h('h2', {}, 'Drain tests'));
