@@ -1,6 +1,12 @@
+import { dirname, isAbsolute, resolve } from 'node:path';
 import { InputError } from '../core/errors.js';
+import { timeUnitMs } from '../core/ingest/header.js';
 import { readLevelLog } from '../core/ingest/read-log.js';
-import { parseFlow } from '../core/units/index.js';
+import { parseFlow, parseLength } from '../core/units/index.js';
+import { readFlowLog } from '../core/system/flow-log.js';
+import { inflowOnFitClock } from '../core/system/inflow-log.js';
+import type { InflowInput } from '../core/system/network.js';
+import { levelsAfter, timeToLevel } from '../core/system/predict.js';
 import { fluidDensityKgM3 } from '../core/vessel/schema.js';
 import { alignLogs, type LogForSystem } from '../core/system/align.js';
 import { fitSystem } from '../core/system/fit.js';
@@ -21,7 +27,11 @@ Fits every outlet's Cd·a and Cd at once from the level logs of connected vessel
   --fit-datum            also fit each vessel's sensor zero
   --fit-inflow           also fit an unknown constant inflow into each vessel (a passing valve)
   --unit UNIT  --tz ZONE  --date-order dmy|mdy|ymd  --delimiter CHAR  --decimal . or ,   (for every log)
-  --json                 one JSON object on stdout (steady and linearize accept it as input)
+  --json                 one JSON object on stdout (steady, linearize and predict accept it as input)
+Known inflows come from the system file's "inflows": {"to": ID, "constant": "2.5L/s"} or
+{"to": ID, "log": "FILE", "unit"?: "L/s"}, a flow log (time and flow columns) whose path is
+relative to the system file; it is read with --tz, --date-order, --delimiter and --decimal too,
+interpolated linearly in time, and must cover the fitted span.
 exit codes: 0 done, 2 input refused, other: internal fault.
 `;
 
@@ -36,6 +46,20 @@ const LINEAR_USAGE = `usage: efflux linearize <system.json|fit.json> --inflow [I
 
 State-space model dx/dt = A x + B u (C = I) about the equilibrium at the given inflows, with
 each vessel's time constant and, from a fit, standard uncertainties.
+`;
+
+const PREDICT_USAGE = `usage: efflux predict <system.json|fit.json> --from ID=LEVEL [--from …] [--inflow [ID=]FLOW …]
+                     (--after DURATION | --until ID=LEVEL) [--json]
+
+Predicted levels after a time, or the time for one vessel to fall to a level, with 95 % intervals
+when given the output of fit-system --json (a system file alone needs each vessel's
+"effectiveAreaM2" or "dischargeCoefficient", and gives no interval).
+  --from ID=LEVEL      start level of vessel ID above its lowest interior point (e.g. FT1=2.1m);
+                       a vessel not named starts empty
+  --inflow [ID=]FLOW   constant inflow (default: the system file's constant inflows, else none)
+  --after DURATION     levels of every vessel after this time (e.g. 600s, 10min, 1.5h; a bare number is seconds)
+  --until ID=LEVEL     time for vessel ID to fall from its start level to LEVEL
+  --json               one JSON object on stdout
 `;
 
 export async function runFitSystem(argv: string[]): Promise<number> {
@@ -90,12 +114,26 @@ export async function runFitSystem(argv: string[]): Promise<number> {
     const missing = spec.vessels.filter((_, i) => !logs.some((l) => l.vessel === i)).map((v) => v.id);
     if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: add --log ID=FILE for every vessel`);
     const alignment = alignLogs(logs, values.window ? parseWindow(values.window) : undefined);
-    const inflows = spec.inflows.map((f) => {
-      if ('log' in f) throw new InputError(`inflow logs are not read yet: give a constant inflow for "${f.to}"`, { field: 'inflows' });
-      return { vessel: ids.get(f.to)!, constantM3S: f.constantM3S };
+    const inflowLogs: { to: string; file: string; unit: string; samples: number; warnings: string[] }[] = [];
+    const inflows: InflowInput[] = spec.inflows.map((f) => {
+      const vessel = ids.get(f.to)!;
+      if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
+      // a path in the system file is relative to the system file, wherever efflux is run from
+      const path = isAbsolute(f.log) ? f.log : resolve(dirname(positionals[0]), f.log);
+      const file = readInputFile(path);
+      const series = readFlowLog(file.bytes, file.fileName, {
+        unit: f.unit,
+        tz: values.tz,
+        dateOrder: values['date-order'] as 'dmy' | 'mdy' | 'ymd' | undefined,
+        delimiter: values.delimiter,
+        decimal: values.decimal as '.' | ',' | undefined,
+      });
+      const placed = inflowOnFitClock(series, vessel, alignment);
+      inflowLogs.push({ to: f.to, file: file.fileName, unit: series.unit, samples: placed.timeS!.length, warnings: series.warnings });
+      return placed;
     });
     const fit = fitSystem({ network, logs: alignment.logs, inflows, terms: { datum: !!values['fit-datum'], leak: !!values['fit-inflow'] } });
-    const json = systemFitJson(spec, fit, alignment);
+    const json = systemFitJson(spec, fit, alignment, inflowLogs);
     if (values.json) {
       process.stdout.write(JSON.stringify(json, null, 2) + '\n');
       return EXIT_OK;
@@ -107,6 +145,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       lines.push(`  ${id}: Cd·a = ${(a.value * 1e4).toFixed(4)} cm² ± ${(a.standardUncertainty * 1e4).toFixed(4)}  Cd = ${cd.value.toFixed(4)} (95 % ${cd.ci95[0].toFixed(4)} .. ${cd.ci95[1].toFixed(4)})`);
     }
     for (const v of fit.vessels) lines.push(`  log ${v.fileName} (${v.id}): ${v.samples} samples, noise ${(v.noiseM * 1000).toFixed(2)} mm, lag-1 ρ ${v.lag1Autocorrelation.toFixed(2)}`);
+    for (const f of inflowLogs) lines.push(`  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`);
     for (const w of json.warnings) lines.push(`  warning: ${w}`);
     lines.push('Engineering estimates with stated uncertainty, not certification.');
     process.stdout.write(lines.join('\n') + '\n');
@@ -164,6 +203,100 @@ export async function runLinearize(argv: string[]): Promise<number> {
     process.stdout.write(out);
     return EXIT_OK;
   });
+}
+
+export async function runPredict(argv: string[]): Promise<number> {
+  return guarded(() => {
+    const { values, positionals } = parseCommandLine(argv, {
+      from: { type: 'string', multiple: true },
+      inflow: { type: 'string', multiple: true },
+      after: { type: 'string' },
+      until: { type: 'string' },
+      json: { type: 'boolean' },
+      help: { type: 'boolean', short: 'h' },
+    });
+    if (values.help) {
+      process.stdout.write(PREDICT_USAGE);
+      return EXIT_OK;
+    }
+    if ((values.after === undefined) === (values.until === undefined)) throw new InputError('give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)');
+    const { spec, model, name, fromFit } = readModel(positionals);
+    const ids = spec.vessels.map((v) => v.id);
+    const start = new Float64Array(ids.length);
+    const given = new Set<string>();
+    for (const item of values.from ?? []) {
+      const { vessel, value } = idValue(item, '--from', ids, parseLength);
+      if (given.has(ids[vessel])) throw new InputError(`--from: vessel "${ids[vessel]}" is given twice`);
+      given.add(ids[vessel]);
+      start[vessel] = value;
+    }
+    if (given.size === 0) throw new InputError('give each vessel\'s start level with --from ID=LEVEL (e.g. --from ' + ids[0] + '=2.1m)');
+    const empty = ids.filter((id) => !given.has(id));
+    const hasConstant = spec.inflows.some((f) => 'constantM3S' in f);
+    const q = (values.inflow ?? []).length || hasConstant ? inflowsFrom(spec, values.inflow ?? [], name) : new Float64Array(ids.length);
+    const inflows: InflowInput[] = Array.from(q, (x, i) => ({ vessel: i, constantM3S: x })).filter((f) => f.constantM3S > 0);
+    const notes: string[] = [];
+    if (empty.length) notes.push(`${empty.join(', ')} start${empty.length === 1 ? 's' : ''} empty (no --from given)`);
+    if (spec.inflows.some((f) => 'log' in f)) notes.push('the inflow log in the system file belongs to the test and is not used: give --inflow for a constant inflow');
+    if (!fromFit) notes.push('no intervals: Cd·a taken from the system file as exact (give the output of fit-system --json for intervals)');
+    const inflowM3S = Object.fromEntries(ids.map((id, i) => [id, q[i]]));
+    const startM = Object.fromEntries(ids.map((id, i) => [id, start[i]]));
+    const mm = (x: number | null) => (x === null ? '' : ` ± ${(x * 1000).toPrecision(2)} mm`);
+    if (values.after !== undefined) {
+      const tS = parseDuration(values.after);
+      const levels = levelsAfter(model, start, inflows, tS);
+      if (values.json) {
+        process.stdout.write(JSON.stringify({ startM, inflowM3S, afterS: tS, levelsM: Object.fromEntries(ids.map((id, i) => [id, levels[i]])), coverage: '95 %, delta method from the ODE sensitivities', notes }, null, 2) + '\n');
+        return EXIT_OK;
+      }
+      const lines = [`efflux predict: ${spec.name}, levels after ${tS} s`];
+      ids.forEach((id, i) => {
+        const e = levels[i];
+        const ci = e.ci95 ? ` (95 % ${e.ci95[0].toFixed(4)} .. ${e.ci95[1].toFixed(4)} m)` : '';
+        lines.push(`  ${id}: ${start[i].toFixed(4)} m → ${e.value.toFixed(4)} m${mm(e.standardUncertainty)}${ci}`);
+      });
+      for (const n of notes) lines.push(`  note: ${n}`);
+      process.stdout.write(lines.join('\n') + '\n');
+      return EXIT_OK;
+    }
+    const { vessel, value: toM } = idValue(values.until!, '--until', ids, parseLength);
+    if (!given.has(ids[vessel])) throw new InputError(`--until ${values.until}: give the start level of ${ids[vessel]} with --from ${ids[vessel]}=LEVEL`);
+    const t = timeToLevel(model, start, inflows, vessel, toM);
+    if (values.json) {
+      process.stdout.write(JSON.stringify({ startM, inflowM3S, until: { vessel: ids[vessel], levelM: toM }, timeS: t, coverage: '95 %, delta method from the ODE sensitivities', notes }, null, 2) + '\n');
+      return EXIT_OK;
+    }
+    const s = (x: number) => x.toFixed(2);
+    const ci = t.ci95 ? ` (95 % ${s(t.ci95[0])} .. ${s(t.ci95[1])} s)` : '';
+    const lines = [`efflux predict: ${spec.name}`, `  ${ids[vessel]} falls from ${start[vessel].toFixed(4)} m to ${toM.toFixed(4)} m in ${s(t.value)} s${t.standardUncertainty === null ? '' : ` ± ${t.standardUncertainty.toPrecision(2)} s`}${ci} = ${(t.value / 60).toFixed(2)} min`];
+    for (const n of notes) lines.push(`  note: ${n}`);
+    process.stdout.write(lines.join('\n') + '\n');
+    return EXIT_OK;
+  });
+}
+
+/** ID=VALUE with a vessel id from the system, the value read by `parse` (its errors prefixed by the option). */
+function idValue(item: string, option: string, ids: string[], parse: (text: string) => number): { vessel: number; value: number } {
+  const eq = item.indexOf('=');
+  if (eq <= 0) throw new InputError(`${option} takes ID=LEVEL (got "${item}")`);
+  const vessel = ids.indexOf(item.slice(0, eq));
+  if (vessel < 0) throw new InputError(`${option} ${item}: no vessel has id "${item.slice(0, eq)}" (the system has ${ids.join(', ')})`);
+  try {
+    return { vessel, value: parse(item.slice(eq + 1)) };
+  } catch (e) {
+    if (e instanceof InputError) throw new InputError(`${option}: ${e.message}`);
+    throw e;
+  }
+}
+
+/** 600, 600s, 10min, 1.5h: seconds. */
+function parseDuration(text: string): number {
+  const m = /^\s*(\d+(?:\.\d*)?|\.\d+)\s*([a-z]*)\s*$/i.exec(text);
+  const per = m ? (m[2] === '' ? 1000 : timeUnitMs(m[2])) : null;
+  if (!m || per === null) throw new InputError(`--after takes a duration such as 600s, 10min or 1.5h (got "${text}")`);
+  const s = (Number(m[1]) * per) / 1000;
+  if (!(s > 0)) throw new InputError(`--after must be a positive duration (got "${text}")`);
+  return s;
 }
 
 function readSystem(positionals: string[]): SystemSpec {

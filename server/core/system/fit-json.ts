@@ -14,7 +14,16 @@ import { validateSystem, type SystemSpec } from './schema.js';
  */
 export const SYSTEM_FIT_FORMAT = 'efflux-system-fit';
 
-export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment) {
+/** A logged inflow as used by the fit: which vessel, which file, how many readings bracket the span. */
+export interface InflowLogUse {
+  to: string;
+  file: string;
+  unit: string;
+  samples: number;
+  warnings: string[];
+}
+
+export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment, inflowLogs: readonly InflowLogUse[] = []) {
   const k = fit.free.length;
   const rows = (a: Float64Array) => Array.from({ length: k }, (_, i) => Array.from(a.subarray(i * k, i * k + k)));
   return {
@@ -38,8 +47,9 @@ export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment:
         'each log weighted by 1/σ from a first unweighted pass; each log’s information divided by its AR(1) effective-sample-size factor (1+ρ)/(1−ρ); Student-t at Σ m_i/f_i − k degrees of freedom',
       alignment: { t0: alignment.t0EpochMs === null ? null : new Date(alignment.t0EpochMs).toISOString(), spanS: alignment.spanS, samples: 'each log at its own sample times' },
       vessels: fit.vessels,
+      inflowLogs: inflowLogs.map((f) => ({ to: f.to, file: f.file, unit: f.unit, samples: f.samples, interpolation: 'linear in time between readings' })),
     },
-    warnings: [...alignment.warnings, ...fit.warnings],
+    warnings: [...alignment.warnings, ...inflowLogs.flatMap((f) => f.warnings.map((w) => `inflow log ${f.file}: ${w}`)), ...fit.warnings],
   };
 }
 
