@@ -141,27 +141,8 @@ export function odeReadings(
     rates(zNext, dzNext);
     if (!Number.isFinite(zNext[0])) return false;
     const tNext = t + h;
-    // Hermite interpolation for every sample inside (t, tNext], written straight to the outputs:
-    // this loop runs once per sample (the steps above only a few hundred times), so it is kept flat
-    while (i < m && timeS[i] <= tNext) {
-      const s = (timeS[i] - t) / h;
-      const s2 = s * s;
-      const s3 = s2 * s;
-      const h00 = 2 * s3 - 3 * s2 + 1;
-      const h10 = (s3 - 2 * s2 + s) * h;
-      const h01 = -2 * s3 + 3 * s2;
-      const h11 = (s3 - s2) * h;
-      out[i] = h00 * z[0] + h10 * dz[0] + h01 * zNext[0] + h11 * dzNext[0] - zs;
-      if (k > 0) {
-        const row = i * k;
-        for (let c = 0; c < k; c++) {
-          const j = c + 1;
-          jac![row + c] = h00 * z[j] + h10 * dz[j] + h01 * zNext[j] + h11 * dzNext[j];
-        }
-        if (zeroCol >= 0) jac![row + zeroCol] -= 1;
-      }
-      i++;
-    }
+    // Hermite interpolation for every sample inside (t, tNext], straight to the outputs
+    i = hermiteOutput(timeS, i, t, h, tNext, z, dz, zNext, dzNext, out, jac, k, zs, zeroCol);
     t = tNext;
     z.set(zNext);
     dz.set(dzNext);
@@ -178,3 +159,48 @@ export function odeReadings(
   }
 }
 
+
+/**
+ * Cubic Hermite values (and sensitivities) at the samples i, i+1, … inside (t, tNext], from the
+ * states and slopes at both ends of the step; returns the first sample past the step. This loop
+ * runs once per sample (the steps only a few hundred times), so it is a small function of its own
+ * that the JIT optimises early, kept flat.
+ */
+function hermiteOutput(
+  timeS: Float64Array,
+  i: number,
+  t: number,
+  h: number,
+  tNext: number,
+  z: Float64Array,
+  dz: Float64Array,
+  zNext: Float64Array,
+  dzNext: Float64Array,
+  out: Float64Array,
+  jac: Float64Array | null,
+  k: number,
+  zs: number,
+  zeroCol: number,
+): number {
+  const m = timeS.length;
+  while (i < m && timeS[i] <= tNext) {
+    const s = (timeS[i] - t) / h;
+    const s2 = s * s;
+    const s3 = s2 * s;
+    const h00 = 2 * s3 - 3 * s2 + 1;
+    const h10 = (s3 - 2 * s2 + s) * h;
+    const h01 = -2 * s3 + 3 * s2;
+    const h11 = (s3 - s2) * h;
+    out[i] = h00 * z[0] + h10 * dz[0] + h01 * zNext[0] + h11 * dzNext[0] - zs;
+    if (jac !== null && k > 0) {
+      const row = i * k;
+      for (let c = 0; c < k; c++) {
+        const j = c + 1;
+        jac[row + c] = h00 * z[j] + h10 * dz[j] + h01 * zNext[j] + h11 * dzNext[j];
+      }
+      if (zeroCol >= 0) jac[row + zeroCol] -= 1;
+    }
+    i++;
+  }
+  return i;
+}
