@@ -1,10 +1,10 @@
 /**
- * sample-data/systems/: two invented connected-vessel tests at the fictional Kestrel Fen works,
+ * sample-data/systems/: three invented connected-vessel tests at the fictional Kestrel Fen works,
  * made by the coupled simulator with the truth recorded in truth.json. Pure apart from the fixed
  * scenario (seeded noise), so regenerating gives the same bytes; a test compares them with the
  * committed files. Write them with: npx tsx server/demo/systems.ts [folder]
  */
-import { buildNetwork, P, PER_VESSEL } from '../core/system/network.js';
+import { buildNetwork, P, PER_VESSEL, type InflowInput } from '../core/system/network.js';
 import { validateSystem } from '../core/system/schema.js';
 import { simulateSystemTest } from '../core/system/simulate.js';
 
@@ -34,6 +34,17 @@ interface DemoSystem {
     offsetS: number;
   }>;
   inflowM3S?: { to: string; flow: number };
+  /** A cycling transfer pump into one vessel, logged by a flow meter (file, reading interval). */
+  pump?: { to: string; log: string; intervalS: number; onM3S: number; periodS: number; onS: number; rampS: number; phaseS: number };
+}
+
+/** The pump's true flow at t (s): ramps up, runs, ramps down, rests; repeating. */
+function pumpFlow(p: NonNullable<DemoSystem['pump']>, t: number): number {
+  const u = (((t + p.phaseS) % p.periodS) + p.periodS) % p.periodS;
+  if (u < p.rampS) return (p.onM3S * u) / p.rampS;
+  if (u < p.rampS + p.onS) return p.onM3S;
+  if (u < 2 * p.rampS + p.onS) return (p.onM3S * (2 * p.rampS + p.onS - u)) / p.rampS;
+  return 0;
 }
 
 export const DEMO_SYSTEMS: DemoSystem[] = [
@@ -61,6 +72,18 @@ export const DEMO_SYSTEMS: DemoSystem[] = [
       { id: 'SW3', name: 'Sump well SW-3', diameterM: 1.3, heightM: 3.0, boreM: 0.05, outletM: 0.08, zeroM: 0.04, baseM: 0, to: null, connection: 'free', cd: 0.64, startSurfaceM: 1.0, log: 'sw3-2026-04-08.csv', intervalS: 1, offsetS: 0.5 },
     ],
   },
+  {
+    file: 'wash-transfer.system.json',
+    name: 'Wash water transfer (fictional)',
+    startIso: '2026-04-09T07:15:00Z',
+    durationS: 900,
+    seed: 73,
+    pump: { to: 'WT4', log: 'pump-2026-04-09.csv', intervalS: 2, onM3S: 0.0015, periodS: 240, onS: 100, rampS: 6, phaseS: 37 },
+    vessels: [
+      { id: 'WT4', name: 'Wash tank WT-4', diameterM: 1.2, heightM: 2.5, boreM: 0.05, outletM: 0.1, zeroM: 0.05, baseM: 2.5, to: 'HT5', connection: 'free', cd: 0.615, startSurfaceM: 1.9, log: 'wt4-2026-04-09.csv', intervalS: 1, offsetS: 0 },
+      { id: 'HT5', name: 'Holding tank HT-5', diameterM: 1.0, heightM: 2.5, boreM: 0.045, outletM: 0.08, zeroM: 0.04, baseM: 0, to: null, connection: 'free', cd: 0.63, startSurfaceM: 0.6, log: 'ht5-2026-04-09.csv', intervalS: 2, offsetS: 0.3 },
+    ],
+  },
 ];
 
 function systemFile(d: DemoSystem) {
@@ -79,6 +102,7 @@ function systemFile(d: DemoSystem) {
       baseElevationM: v.baseM,
     })),
     ...(d.inflowM3S ? { inflows: [{ to: d.inflowM3S.to, constant: `${d.inflowM3S.flow * 1000} L/s` }] } : {}),
+    ...(d.pump ? { inflows: [{ to: d.pump.to, log: d.pump.log }] } : {}),
   };
 }
 
@@ -96,7 +120,18 @@ export function buildSystemSampleData(): Record<string, string> {
       theta[i * PER_VESSEL + P.sensorZero] = v.zeroM;
       theta[i * PER_VESSEL + P.initialReading] = v.startSurfaceM - v.zeroM;
     });
-    const inflows = d.inflowM3S ? [{ vessel: d.vessels.findIndex((v) => v.id === d.inflowM3S!.to), constantM3S: d.inflowM3S.flow }] : [];
+    const inflows: InflowInput[] = d.inflowM3S ? [{ vessel: d.vessels.findIndex((v) => v.id === d.inflowM3S!.to), constantM3S: d.inflowM3S.flow }] : [];
+    const t0 = Date.parse(d.startIso);
+    if (d.pump) {
+      const p = d.pump;
+      // the truth at 0.5 s (exact for this piecewise-linear cycle); the meter reads every intervalS
+      // from a little before the levels to a little after, to 0.001 L/s
+      const timeS = Float64Array.from({ length: 2 * d.durationS + 21 }, (_, i) => i * 0.5 - 5);
+      inflows.push({ vessel: d.vessels.findIndex((v) => v.id === p.to), timeS, flowM3S: Float64Array.from(timeS, (t) => pumpFlow(p, t)) });
+      const lines = [`Site: ${SITE}`, 'Meter: transfer pump discharge, invented', '', 'timestamp,inflow (L/s)'];
+      for (let t = -4; t <= d.durationS + 4; t += p.intervalS) lines.push(`${new Date(t0 + t * 1000).toISOString()},${(pumpFlow(p, t) * 1000).toFixed(3)}`);
+      files[p.log] = lines.join('\n') + '\n';
+    }
     const logs = simulateSystemTest({
       network,
       theta,
@@ -109,7 +144,6 @@ export function buildSystemSampleData(): Record<string, string> {
       quantumM: 0.001,
       seed: d.seed,
     });
-    const t0 = Date.parse(d.startIso);
     d.vessels.forEach((v, i) => {
       const l = logs[i];
       const lines = [`Site: ${SITE}`, `Vessel: ${v.name}`, 'Record: connected-vessel drain test, invented', '', 'timestamp,level (m)'];
@@ -122,6 +156,7 @@ export function buildSystemSampleData(): Record<string, string> {
       logs: Object.fromEntries(d.vessels.map((v) => [v.id, v.log])),
       truth: Object.fromEntries(d.vessels.map((v) => [v.id, { dischargeCoefficient: v.cd, effectiveAreaM2: (v.cd * Math.PI * v.boreM ** 2) / 4, startSurfaceM: v.startSurfaceM }])),
       inflowM3S: d.inflowM3S ?? null,
+      ...(d.pump ? { inflowLog: { to: d.pump.to, file: d.pump.log, cycle: { onM3S: d.pump.onM3S, periodS: d.pump.periodS, onS: d.pump.onS, rampS: d.pump.rampS } } } : {}),
       noise: { sdM: 0.0015, lag1: 0.4, quantumM: 0.001 },
       invented: true,
     });
