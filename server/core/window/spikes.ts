@@ -25,7 +25,7 @@ export function movingMedian(x: Float64Array, k: number): Float64Array {
   const s = new Float64Array(L);
   for (let i = 0; i < L; i++) s[i] = x[i];
   s.sort();
-  const median = () => (L % 2 === 1 ? s[half] : (s[half - 1] + s[half]) / 2);
+  const odd = L % 2 === 1;
   const lastCentre = n - L + half;
   for (let c = half; c <= lastCentre; c++) {
     if (c > half) {
@@ -46,7 +46,7 @@ export function movingMedian(x: Float64Array, k: number): Float64Array {
       }
       s[p] = come;
     }
-    const m = median();
+    const m = odd ? s[half] : (s[half - 1] + s[half]) / 2;
     if (c === half) for (let i = 0; i < half; i++) out[i] = m;
     out[c] = m;
     if (c === lastCentre) for (let i = c + 1; i < n; i++) out[i] = m;
