@@ -7,7 +7,11 @@ import { inflowOnFitClock } from '../../../server/core/system/inflow-log.js';
 import { integrateSystem } from '../../../server/core/system/integrate.js';
 import { P, PER_VESSEL, type InflowInput } from '../../../server/core/system/network.js';
 import { simulateSystemTest } from '../../../server/core/system/simulate.js';
-import { rig, truthTheta, TWO_FREE } from './fixtures.js';
+import { validateSystem } from '../../../server/core/system/schema.js';
+import { rig, rigSpec, truthTheta, TWO_FREE } from './fixtures.js';
+
+/** The two-vessel rig as raw system-file vessels (re-serialised from the validated spec). */
+const rigSpecBody = () => JSON.parse(JSON.stringify(rigSpec(TWO_FREE).vessels));
 
 const enc = (s: string) => new TextEncoder().encode(s);
 const G = 9.80665; // standard gravity (CGPM 1901), as the model uses
@@ -144,6 +148,22 @@ describe('inflowOnFitClock: the log placed on the levels\' clock', () => {
     expect(f.flowM3S![0]).toBeCloseTo(30e-6, 15);
     expect(f.timeS![f.timeS!.length - 1]).toBe(80);
     expect(f.vessel).toBe(1);
+  });
+
+  it('elapsed-time logs: placed on the levels\' elapsed time (t = 0 at their latest first sample)', () => {
+    const bare = levels.map((l, i) => ({ ...l, t0EpochMs: null, timeS: Float64Array.from(l.timeS, (t) => t + 5 * i) }));
+    const a = alignLogs(bare);
+    const f = inflowOnFitClock(series(0, 400, false), 0, a);
+    // the second log starts at 5 s, so the flow reading at 5 s is the fit's t = 0
+    expect(f.timeS![0]).toBe(0);
+    expect(f.flowM3S![0]).toBeCloseTo(5e-6, 15);
+    expect(() => inflowOnFitClock(series(0, 400, true), 0, a)).toThrow(/has timestamps while the level logs have elapsed time only/);
+  });
+
+  it('the system file takes a unit for a log and refuses one that is not a flow unit', () => {
+    const body = (unit: string) => ({ name: 'x', vessels: rigSpecBody(), inflows: [{ to: 'T1', log: 'pump.csv', unit }] });
+    expect(validateSystem(body('L/min')).inflows[0]).toEqual({ to: 'T1', log: 'pump.csv', unit: 'L/min' });
+    expect(() => validateSystem(body('m'))).toThrow(/not a flow unit/);
   });
 
   it('refuses a log that does not cover the fitted span, naming both spans', () => {
