@@ -5,13 +5,12 @@
  * analysis runner), then auth and error handling, then one route module per resource.
  */
 import cookie from '@fastify/cookie';
-import helmet from '@fastify/helmet';
 import multipart from '@fastify/multipart';
 import rateLimit from '@fastify/rate-limit';
 import fastifyStatic from '@fastify/static';
 import swagger from '@fastify/swagger';
 import swaggerUi from '@fastify/swagger-ui';
-import Fastify, { type FastifyInstance, type FastifyServerOptions } from 'fastify';
+import Fastify, { LogController, type FastifyInstance, type FastifyServerOptions } from 'fastify';
 import {
   jsonSchemaTransform,
   jsonSchemaTransformObject,
@@ -28,6 +27,7 @@ import { PUBLIC, type Access } from './access.js';
 import { installAuth } from './auth.js';
 import './context.js';
 import { installProblemHandlers } from './problems.js';
+import { securityHeaders } from './security-headers.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
@@ -55,6 +55,12 @@ export interface AppOptions {
   /** Folder of the built web front end, served at /; skipped when absent. */
   webRoot?: string | null;
   logger?: FastifyServerOptions['logger'];
+  /**
+   * Log every request (Fastify's "incoming request" / "request completed" lines at info). Off by
+   * default: at info level a busy service spends much of its time writing them; with the logger at
+   * debug, one line per answered request is written instead (method, url, status, ms).
+   */
+  logRequests?: boolean;
   /** Status-change notices: a notifier the caller owns, or webhook addresses for one the app owns (closed with it). */
   notifier?: Notifier;
   webhooks?: readonly string[];
@@ -109,7 +115,17 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     bodyLimit: 1024 * 1024, // JSON bodies (vessel files, reviews); uploads have their own limit
     return503OnClosing: true,
     trustProxy: false,
+    logController: new LogController({ disableRequestLogging: !opts.logRequests }),
   }).withTypeProvider<ZodTypeProvider>();
+  if (!opts.logRequests) {
+    const debugOn = (level: string) => level === 'debug' || level === 'trace';
+    app.addHook('onResponse', (request, reply, done) => {
+      if (debugOn(request.log.level)) {
+        request.log.debug({ method: request.method, url: request.url, statusCode: reply.statusCode, ms: Math.round(reply.elapsedTime * 10) / 10 }, 'request');
+      }
+      done();
+    });
+  }
   app.setValidatorCompiler(validatorCompiler);
   app.setSerializerCompiler(serializerCompiler);
 
@@ -129,7 +145,12 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   });
 
   // external plugins
-  await app.register(helmet, { contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
+  // helmet's headers, computed once from the plugin (security-headers.ts), set on every answer
+  const security = await securityHeaders({ contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
+  app.addHook('onRequest', (_request, reply, done) => {
+    reply.headers(security);
+    done();
+  });
   await app.register(rateLimit, {
     global: false,
     errorResponseBuilder: (_req, ctx) => ({ statusCode: 429, message: `too many sign-in attempts; retry in ${ctx.after}` }),

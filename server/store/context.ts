@@ -1,11 +1,14 @@
 import type { AuditLog } from './audit.js';
 import type { Db } from './db.js';
+import type { ForeignWrites } from './read-cache.js';
 
 /** What every repository shares: one connection, the audit log, and the clock (injected for tests). */
 export interface StoreContext {
   db: Db;
   audit: AuditLog;
   now: () => string;
+  /** Tells the read caches when another connection has committed. */
+  foreign: ForeignWrites;
 }
 
 export function json(value: unknown): string | null {

@@ -3,6 +3,7 @@ import type { Actor } from './audit.js';
 import { canonicalJson } from './canonical-json.js';
 import { parse, type StoreContext } from './context.js';
 import { ConflictError, NotFoundError } from './errors.js';
+import { ReadCache, readyText, type ReadyText } from './read-cache.js';
 import type { TestRepo } from './tests.js';
 
 /**
@@ -19,6 +20,9 @@ function fitJson(r: FitRow): string {
     `"createdBy":${JSON.stringify(r.created_by)},"createdAt":${JSON.stringify(r.created_at)}}`
   );
 }
+
+/** Room for about a thousand fits of 40 KiB; answers beyond it are read again from SQLite. */
+const FIT_CACHE_BYTES = 48 * 1024 * 1024;
 
 export type FitStatus = 'draft' | 'approved' | 'rejected';
 
@@ -103,12 +107,18 @@ export interface NewFit {
 /** Fits: stored as drafts, reviewed once, superseded by refits, never overwritten or deleted. */
 export class FitRepo {
   private readonly q;
+  /**
+   * GET /api/fits/:id answers by id. A fit's row changes only by review and supersession (both
+   * here, both drop the entry); other connections' commits empty the cache (ForeignWrites).
+   */
+  private readonly texts: ReadCache<ReadyText>;
 
   constructor(
     private readonly c: StoreContext,
     private readonly tests: TestRepo,
   ) {
     const db = c.db;
+    this.texts = new ReadCache<ReadyText>(c.foreign, FIT_CACHE_BYTES, (t) => t.body.byteLength + 64);
     this.q = {
       insert: db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
         cda_u, cd_u, status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
@@ -134,6 +144,15 @@ export class FitRepo {
     const row = this.q.get.get(id) as FitRow | undefined;
     if (!row) throw new NotFoundError('fit', id);
     return fitJson(row);
+  }
+
+  /** getJson(id) as UTF-8 bytes with their digest, from memory when already read. */
+  getText(id: number): ReadyText {
+    const hit = this.texts.get(id);
+    if (hit) return hit;
+    const text = readyText(this.getJson(id));
+    this.texts.set(id, text);
+    return text;
   }
 
   listByVessel(vesselId: number, limit: number, offset: number): { items: StoredFit[]; total: number } {
@@ -165,6 +184,7 @@ export class FitRepo {
         if (old.supersededBy !== null) throw new ConflictError(`fit ${oldId} is already superseded by fit ${old.supersededBy}`);
         const created = this.insert(actor, old.testId, fit, 'fit.refit');
         this.q.supersede.run(created.id, oldId);
+        this.texts.delete(oldId);
         const after = this.get(oldId);
         this.c.audit.append(actor, this.c.now(), {
           action: 'fit.supersede',
@@ -186,6 +206,7 @@ export class FitRepo {
         if (before.supersededBy !== null) throw new ConflictError(`fit ${id} is superseded by fit ${before.supersededBy}; review that one`);
         const now = this.c.now();
         this.q.review.run({ status: decision, comment, by: actor.id, now, id });
+        this.texts.delete(id);
         const after = this.get(id);
         this.c.audit.append(actor, now, {
           action: decision === 'approved' ? 'fit.approve' : 'fit.reject',

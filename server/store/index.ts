@@ -4,6 +4,7 @@ import { openDatabase, openMemoryDatabase, type Db } from './db.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
 import { migrate } from './migrate.js';
+import { ForeignWrites } from './read-cache.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
@@ -34,7 +35,7 @@ export function openStore(opts: StoreOptions = {}): Store {
   const db = opts.dataDir ? openDatabase(opts.dataDir) : openMemoryDatabase();
   migrate(db, opts.migrationsDir);
   const audit = new AuditLog(db);
-  const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()) };
+  const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
   const tests = new TestRepo(c);
   return {
     db,

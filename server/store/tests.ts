@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import type { Actor } from './audit.js';
 import { parse, type StoreContext } from './context.js';
 import { NotFoundError } from './errors.js';
+import { ReadCache, readyText, type ReadyText } from './read-cache.js';
 
 export interface RawInput {
   bytes: Uint8Array;
@@ -103,9 +104,15 @@ function testJson(r: TestRow): string {
 /** Drain tests and the raw bytes they were read from. */
 export class TestRepo {
   private readonly q;
+  /**
+   * Pages of a vessel's tests as sent, keyed by vessel, limit and offset. Any write to a test here
+   * empties it (uploads are rare beside reads); other connections' commits too (ForeignWrites).
+   */
+  private readonly pages: ReadCache<ReadyText>;
 
   constructor(private readonly c: StoreContext) {
     const db = c.db;
+    this.pages = new ReadCache<ReadyText>(c.foreign, 16 * 1024 * 1024, (t) => t.body.byteLength + 64);
     this.q = {
       putRaw: db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
         ON CONFLICT (sha256) DO NOTHING`),
@@ -135,6 +142,7 @@ export class TestRepo {
     const baroSha = t.baro ? sha256Hex(t.baro.bytes) : null;
     return this.c.db
       .transaction(() => {
+        this.pages.clear();
         const now = this.c.now();
         this.q.putRaw.run(logSha, t.log.bytes.byteLength, Buffer.from(t.log.bytes.buffer, t.log.bytes.byteOffset, t.log.bytes.byteLength), now);
         if (t.baro) this.q.putRaw.run(baroSha, t.baro.bytes.byteLength, Buffer.from(t.baro.bytes.buffer, t.baro.bytes.byteOffset, t.baro.bytes.byteLength), now);
@@ -169,6 +177,7 @@ export class TestRepo {
   withdraw(actor: Actor, id: number, reason: string): void {
     this.c.db
       .transaction(() => {
+        this.pages.clear();
         const before = this.get(id);
         if (this.q.remove.run(id).changes !== 1) throw new Error(`test ${id} is not pending`);
         this.q.dropRaw.run({ sha: before.sha256 });
@@ -186,6 +195,7 @@ export class TestRepo {
 
   /** Marks a pending test analysed; call inside the transaction that stores its first fit. */
   markAnalysed(id: number, detected: Record<string, unknown>): void {
+    this.pages.clear();
     if (this.q.analysed.run(JSON.stringify(detected), id).changes !== 1) throw new Error(`test ${id} is not pending`);
   }
 
@@ -206,6 +216,17 @@ export class TestRepo {
   listByVesselJson(vesselId: number, limit: number, offset: number): { itemsJson: string; total: number } {
     const rows = this.q.list.all(vesselId, limit, offset) as TestRow[];
     return { itemsJson: `[${rows.map(testJson).join(',')}]`, total: this.q.count.get(vesselId) as number };
+  }
+
+  /** The API's page `{items, total, limit, offset}` of listByVesselJson as UTF-8 bytes, from memory when already read. */
+  pageText(vesselId: number, limit: number, offset: number): ReadyText {
+    const key = `${vesselId}:${limit}:${offset}`;
+    const hit = this.pages.get(key);
+    if (hit) return hit;
+    const { itemsJson, total } = this.listByVesselJson(vesselId, limit, offset);
+    const text = readyText(`{"items":${itemsJson},"total":${total},"limit":${limit},"offset":${offset}}`);
+    this.pages.set(key, text);
+    return text;
   }
 
   count(): number {

@@ -2,6 +2,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import type { Actor } from './audit.js';
 import type { StoreContext } from './context.js';
 import { ConflictError, NotFoundError } from './errors.js';
+import { ReadCache } from './read-cache.js';
 
 export const ROLES = ['technician', 'engineer', 'auditor', 'admin'] as const;
 export type Role = (typeof ROLES)[number];
@@ -35,9 +36,17 @@ export const actorOf = (u: User): Actor => ({ id: u.id, name: u.name });
 /** Users, their API tokens and sign-in sessions. */
 export class UserRepo {
   private readonly q;
+  /**
+   * Credentials already checked, by their hash: every request pays one lookup, so a hit skips the
+   * join. Only valid ones are kept (a guess never fills it); a session keeps its expiry and is
+   * checked against the clock on each hit; closing a session drops it; writes by another
+   * connection (the CLI) empty it (ForeignWrites). Nothing here revokes tokens or disables users.
+   */
+  private readonly known: ReadCache<{ user: User; expiresAt: string | null }>;
 
   constructor(private readonly c: StoreContext) {
     const db = c.db;
+    this.known = new ReadCache(c.foreign, 10_000, () => 1);
     this.q = {
       insertUser: db.prepare('INSERT INTO users (name, role, created_at) VALUES (?, ?, ?)'),
       get: db.prepare('SELECT * FROM users WHERE id = ?'),
@@ -47,7 +56,7 @@ export class UserRepo {
       byToken: db.prepare(`SELECT u.* FROM api_tokens t JOIN users u ON u.id = t.user_id
         WHERE t.token_hash = ? AND t.revoked_at IS NULL AND u.disabled_at IS NULL`),
       insertSession: db.prepare('INSERT INTO sessions (id_hash, user_id, created_at, expires_at) VALUES (?, ?, ?, ?)'),
-      bySession: db.prepare(`SELECT u.* FROM sessions s JOIN users u ON u.id = s.user_id
+      bySession: db.prepare(`SELECT u.*, s.expires_at FROM sessions s JOIN users u ON u.id = s.user_id
         WHERE s.id_hash = ? AND s.expires_at > ? AND u.disabled_at IS NULL`),
       dropSession: db.prepare('DELETE FROM sessions WHERE id_hash = ?'),
     };
@@ -92,8 +101,15 @@ export class UserRepo {
   }
 
   byToken(token: string): User | null {
-    const row = this.q.byToken.get(secretHash(token)) as UserRow | undefined;
-    return row ? toUser(row) : null;
+    const hash = secretHash(token);
+    const key = `t:${hash}`;
+    const hit = this.known.get(key);
+    if (hit) return hit.user;
+    const row = this.q.byToken.get(hash) as UserRow | undefined;
+    if (!row) return null;
+    const user = Object.freeze(toUser(row)); // shared by every request that presents it
+    this.known.set(key, { user, expiresAt: null });
+    return user;
   }
 
   openSession(user: User, ttlMs: number): { secret: string; expiresAt: string } {
@@ -110,13 +126,25 @@ export class UserRepo {
   }
 
   bySession(secret: string): User | null {
-    const row = this.q.bySession.get(secretHash(secret), this.c.now()) as UserRow | undefined;
-    return row ? toUser(row) : null;
+    const hash = secretHash(secret);
+    const key = `s:${hash}`;
+    const now = this.c.now();
+    const hit = this.known.get(key);
+    if (hit && hit.expiresAt! > now) return hit.user; // the same comparison as the query's
+    const row = this.q.bySession.get(hash, now) as (UserRow & { expires_at: string }) | undefined;
+    if (!row) {
+      this.known.delete(key);
+      return null;
+    }
+    const user = Object.freeze(toUser(row)); // shared by every request that presents it
+    this.known.set(key, { user, expiresAt: row.expires_at });
+    return user;
   }
 
   closeSession(user: User, secret: string): void {
     this.c.db
       .transaction(() => {
+        this.known.delete(`s:${secretHash(secret)}`);
         if (this.q.dropSession.run(secretHash(secret)).changes > 0) {
           this.c.audit.append(actorOf(user), this.c.now(), { action: 'session.close', entityType: 'user', entityId: user.id });
         }

@@ -117,6 +117,7 @@ export class VesselRepo {
       list: db.prepare(`SELECT v.id, s.name AS site, v.name, v.revision, v.spec, v.created_at, v.updated_at
         FROM vessels v JOIN sites s ON s.id = v.site_id ORDER BY v.id LIMIT ? OFFSET ?`),
       count: db.prepare('SELECT count(*) FROM vessels').pluck(),
+      exists: db.prepare('SELECT 1 FROM vessels WHERE id = ?').pluck(),
       outlets: db.prepare('SELECT * FROM outlets WHERE vessel_id = ? ORDER BY id'),
       outlet: db.prepare('SELECT * FROM outlets WHERE id = ?'),
       insert: db.prepare(`INSERT INTO vessels (site_id, name, spec, shape, fluid, sensor, created_at, updated_at)
@@ -135,6 +136,11 @@ export class VesselRepo {
     const row = this.q.get.get(id) as VesselRow | undefined;
     if (!row) throw new NotFoundError('vessel', id);
     return this.hydrate(row);
+  }
+
+  /** Throws NotFoundError as get(id) does, without reading the vessel file (hot read paths). */
+  assertExists(id: number): void {
+    if (this.q.exists.get(id) === undefined) throw new NotFoundError('vessel', id);
   }
 
   findId(site: string, name: string): number | null {

@@ -4,6 +4,7 @@ import { refit } from '../../jobs/ingest.js';
 import { reviewFit } from '../../jobs/review.js';
 import { actorOf } from '../../store/users.js';
 import { ENGINEERS_UP, READERS, TECHNICIANS_UP } from '../access.js';
+import { sendReadyText } from '../ready-text.js';
 import { analysisSettings, fit, idParams, pageOf, paging, problem, protectedErrors } from '../schemas.js';
 
 export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
@@ -22,8 +23,8 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/fits/:id',
     { config: { roles: READERS }, schema: { tags: ['fits'], summary: 'One fit', params: idParams, response: { 200: fit, ...protectedErrors } } },
-    // Stored JSON text sent as is (same shape as the schema; checked by the store's tests).
-    async (request, reply) => reply.type('application/json; charset=utf-8').serializer((x: string) => x).send(app.store.fits.getJson(request.params.id) as never),
+    // Stored JSON bytes sent as is (same shape as the schema; checked by the store's tests), with an ETag.
+    async (request, reply) => sendReadyText(request, reply, app.store.fits.getText(request.params.id)),
   );
 
   app.post(

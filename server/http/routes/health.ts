@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { PUBLIC } from '../access.js';
 
 export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
+  const probe = app.store.db.prepare('SELECT 1');
   app.get(
     '/api/health',
     {
@@ -10,7 +11,7 @@ export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
       schema: { tags: ['service'], summary: 'Liveness: the service answers and its database reads', response: { 200: z.object({ status: z.literal('ok') }) } },
     },
     async () => {
-      app.store.db.prepare('SELECT 1').get();
+      probe.get();
       return { status: 'ok' as const };
     },
   );

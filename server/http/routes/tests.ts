@@ -4,6 +4,7 @@ import { uploadDrainTest } from '../../jobs/ingest.js';
 import { actorOf } from '../../store/users.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
 import { HttpProblem } from '../problems.js';
+import { sendReadyText } from '../ready-text.js';
 import { drainTest, fit, idParams, pageOf, paging, problem, protectedErrors } from '../schemas.js';
 import { readUpload } from '../uploads.js';
 
@@ -46,12 +47,9 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       schema: { tags: ['tests'], summary: "A vessel's drain tests, newest first", params: idParams, querystring: paging, response: { 200: pageOf(drainTest), ...protectedErrors } },
     },
     async (request, reply) => {
-      app.store.vessels.get(request.params.id);
-      const { limit, offset } = request.query;
-      const { itemsJson, total } = app.store.tests.listByVesselJson(request.params.id, limit, offset);
-      // rendered by SQLite from the stored JSON (same shape as the schema; checked by the store's tests)
-      const body = `{"items":${itemsJson},"total":${total},"limit":${limit},"offset":${offset}}`;
-      return reply.type('application/json; charset=utf-8').serializer((x: string) => x).send(body as never);
+      app.store.vessels.assertExists(request.params.id);
+      // spliced from the stored JSON (same shape as the schema; checked by the store's tests), kept as bytes
+      return sendReadyText(request, reply, app.store.tests.pageText(request.params.id, request.query.limit, request.query.offset));
     },
   );
 
