@@ -270,8 +270,12 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
       }
       const pnorm = scaledNorm(diag, step, n);
       if (pnorm === 0) {
-        // The step is below the rounding of p: converged in p, unless the gradient says otherwise.
-        stopReason = gnorm <= 1e-8 ? 'relative-step' : 'no-progress';
+        // The step is below the rounding of p. With the trust region still open this is the
+        // Levenberg–Marquardt step itself vanishing: no double p is closer to the minimum
+        // (MINPACK's "no further improvement is possible"), even when rounding of very small
+        // residuals keeps the scaled gradient above a tolerance (NIST Lanczos1). Only a collapsed
+        // region with a gradient left over means the solver is stuck.
+        stopReason = gnorm <= 1e-8 || delta > EPS * xnorm ? 'relative-step' : 'no-progress';
         break outer;
       }
       if (iterations === 1) delta = Math.min(delta, pnorm);
