@@ -81,7 +81,7 @@ export function textReport(fit: FitJson): string {
     lines.push(`  chosen: ${cmp.chosen.model}  SSR ${sig(cmp.chosen.sumSquares)} m², AIC ${sig(cmp.chosen.aic, 6)}`);
     for (const row of cmp.rows as any[]) {
       const ft = row.fTest ? `F = ${sig(row.fTest.f, 3)}, p = ${sig(row.fTest.pValue, 2)}` : 'F-test —';
-      lines.push(`  ${pad(`${row.change} ${row.term}:`, 16)}SSR ${sig(row.sumSquares)} m², ΔAIC ${sig(row.deltaAic, 3)}, ${ft}`);
+      lines.push(`  ${pad(`${row.change} ${row.term}:`, 16)}SSR ${sig(row.sumSquares)} m², ΔAIC ${sig(row.deltaAic, 3)}, ${ft}${row.method ? ` (${row.method})` : ''}`);
     }
   }
   const bands = f.headBands as any[] | undefined;
