@@ -156,7 +156,11 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     expect(made.status).toBe(0);
     await page.goto(`${base}/#/`);
     const out = page.getByRole('button', { name: 'Sign out' });
-    if (await out.isVisible()) await out.click();
+    if (await out.isVisible()) {
+      await out.click();
+      // the sign-out request must finish before the next page load asks for the session
+      await page.getByLabel('Access token').waitFor();
+    }
     await signIn(made.stdout.trim());
     await page.getByRole('link', { name: 'Backwash tank FB-1' }).click();
     await page.locator('svg.vessel-drawing').waitFor();

@@ -57,7 +57,12 @@ function header(): void {
 }
 
 async function show(): Promise<void> {
+  // each navigation draws into its own holder: a page (or sign-in form) still loading when the
+  // person moves on keeps appending to its detached holder, never to the next page
   clear(main);
+  const holder = h('div', { class: 'page' });
+  main.append(holder);
+  const current = () => holder.parentNode === main;
   main.setAttribute('aria-busy', 'true');
   try {
     if (!user) {
@@ -66,10 +71,11 @@ async function show(): Promise<void> {
       } catch (e) {
         if (!(e instanceof ApiError) || e.status !== 401) throw e;
       }
+      if (!current()) return;
       header();
     }
     if (!user) {
-      await signInPage(main, (u) => {
+      await signInPage(holder, (u) => {
         user = u;
         header();
         void show();
@@ -80,25 +86,22 @@ async function show(): Promise<void> {
     for (const [re, page] of routes) {
       const m = re.exec(hash);
       if (m) {
-        // each page draws into its own holder: a page still loading when the person moves on
-        // keeps appending to its detached holder, never to the next page
-        const holder = h('div', { class: 'page' });
-        main.append(holder);
         await page({ user, params: m.slice(1), main: holder, go });
-        focusHeading();
+        if (current()) focusHeading();
         return;
       }
     }
-    main.append(h('h1', { tabindex: -1 }, 'Page not found'), h('p', {}, h('a', { href: '#/' }, 'Back to the fleet')));
+    holder.append(h('h1', { tabindex: -1 }, 'Page not found'), h('p', {}, h('a', { href: '#/' }, 'Back to the fleet')));
   } catch (e) {
+    if (!current()) return;
     if (e instanceof ApiError && e.status === 401) {
       user = null;
       header();
       return show();
     }
-    main.append(notice('error', e instanceof Error ? e.message : String(e)));
+    holder.append(notice('error', e instanceof Error ? e.message : String(e)));
   } finally {
-    main.removeAttribute('aria-busy');
+    if (current()) main.removeAttribute('aria-busy');
   }
 }
 

@@ -71,7 +71,7 @@ export function systemSchematic(vessels: SchematicVessel[], levelsM: Record<stri
       const over = level > v.heightM;
       const ly = y(base(v) + Math.min(Math.max(level, 0), v.heightM));
       root.appendChild(svg('rect', { x, y: ly, width: w, height: bottom - ly, class: over ? 'sch-liquid sch-over' : 'sch-liquid' }));
-      root.appendChild(svg('text', { x: x + w + 4, y: ly + 4, class: 'sch-small sch-level' }, `${num(level, 3)} m${over ? ' (overflows)' : ''}`));
+      root.appendChild(svg('text', { x: x + 4, y: ly - 4, class: 'sch-small sch-level' }, `${num(level, 3)} m${over ? ' (overflows)' : ''}`));
     }
     root.appendChild(svg('rect', { x, y: top, width: w, height: bottom - top, class: 'sch-vessel', 'data-vessel': v.id }));
     root.appendChild(svg('text', { x: x + w / 2, y: top - 18, 'text-anchor': 'middle', class: 'sch-name' }, v.name));

@@ -135,7 +135,11 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
             ctx.stroke();
             ctx.setLineDash([]);
             ctx.fillStyle = TREND.threshold;
-            ctx.fillText(`forecast crossing ${new Date(fcX * 1000).toISOString().slice(0, 10)}`, Math.min(px(fcX) + 4, left + width - 190 * dpr), top + 28 * dpr);
+            const label = `forecast crossing ${new Date(fcX * 1000).toISOString().slice(0, 10)}`;
+            const tw = ctx.measureText(label).width;
+            // left of the line when there is no room to its right; low in the plot, clear of the baseline
+            const lx = px(fcX) + 6 * dpr + tw > left + width ? px(fcX) - 6 * dpr - tw : px(fcX) + 6 * dpr;
+            ctx.fillText(label, lx, top + height - 10 * dpr);
           }
           t.epochs.forEach((e, i) => {
             const band = P.band(e);

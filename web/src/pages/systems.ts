@@ -7,7 +7,7 @@
 import { api, ApiError, canUpload } from '../api.js';
 import { fitChart } from '../charts.js';
 import { append as appendKids, field, h, notice, table } from '../dom.js';
-import { num, plusMinus, seconds } from '../format.js';
+import { decimalsFor, num, plusMinus, seconds } from '../format.js';
 import type { PageContext } from '../main.js';
 import { schematicVessels, systemSchematic } from '../schematic.js';
 
@@ -261,7 +261,7 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
       id,
       `${num((s.inflowM3S[id] ?? 0) * 1000, 4)} L/s`,
       estimate(v.levelM, 'm'),
-      v.levelM.ci95 ? `${v.levelM.ci95[0].toFixed(3)} to ${v.levelM.ci95[1].toFixed(3)} m` : '—',
+      interval(v.levelM, 'm'),
       `${num(v.headM, 4)} m`,
       `${num(v.outflowM3S * 1000, 4)} L/s`,
       h('span', { class: v.levelM.value > v.heightM ? 'strong-corr' : '' }, `${num(v.heightM, 4)} m`),
@@ -275,7 +275,7 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
       matrix('A (1/s)', lm.ids, lm.ids, lm.a, n),
       matrix('B (1/m²)', lm.ids, lm.ids.map((i) => `inflow ${i}`), lm.b, n),
     ),
-    table('Time constants', ['Vessel', 'Own time constant ± standard uncertainty', '95 % interval'], lm.ids.map((id, i) => [id, estimate(lm.timeConstantsS[i], 's'), lm.timeConstantsS[i].ci95 ? `${lm.timeConstantsS[i].ci95![0].toFixed(1)} to ${lm.timeConstantsS[i].ci95![1].toFixed(1)} s` : '—']), 'tau-table'),
+    table('Time constants', ['Vessel', 'Own time constant ± standard uncertainty', '95 % interval'], lm.ids.map((id, i) => [id, estimate(lm.timeConstantsS[i], 's'), interval(lm.timeConstantsS[i], 's')]), 'tau-table'),
     h('p', {}, `Coupled modes (−1/Re λ of A): ${lm.modeTimeConstantsS.map((t) => `${t.toFixed(1)} s`).join(', ')}.`),
   );
   const pre = h('pre', { class: 'model-text', id: 'model-text' }, lm.text);
@@ -306,4 +306,11 @@ function matrix(caption: string, rows: string[], cols: string[], e: Est[], n: nu
 
 function append(el: HTMLElement, ...kids: (Node | string | null)[]): void {
   appendKids(el, kids);
+}
+
+/** A 95 % interval with the digits its uncertainty earns. */
+function interval(e: Est, unit: string): string {
+  if (!e.ci95) return '—';
+  const d = decimalsFor(e.standardUncertainty ?? 0);
+  return `${e.ci95[0].toFixed(d)} to ${e.ci95[1].toFixed(d)} ${unit}`;
 }

@@ -1,7 +1,7 @@
 /** The vessel page's trend of approved tests per outlet, and the maintenance record with its entry form. */
 import { api, ApiError, type MaintenanceEvent, type Outlet } from '../api.js';
 import { field, h, notice, select, table } from '../dom.js';
-import { date, num } from '../format.js';
+import { date, num, plusMinus } from '../format.js';
 import { trendChart, type FullTrend, type TrendQuantity } from '../trend-chart.js';
 
 const STATUS_CLASS: Record<string, string> = {
@@ -15,8 +15,11 @@ const STATUS_CLASS: Record<string, string> = {
 
 function pct(v: number | null | undefined, u?: number | null): string {
   if (v === null || v === undefined || !Number.isFinite(v)) return '—';
-  return u === null || u === undefined ? `${v.toFixed(1)} %` : `${v.toFixed(1)} ± ${u.toFixed(1)} %`;
+  return u === null || u === undefined ? `${v.toFixed(1)} %` : plusMinus(v, u, '%');
 }
+
+/** The service's reason as a sentence: capital first letter, full stop. */
+const sentence = (s: string) => s.replace(/^./, (c) => c.toUpperCase()).replace(/\.?$/, '.');
 
 function forecastWords(t: FullTrend): string {
   const fc = t.epochs.find((e) => e.current)?.forecast;
@@ -36,7 +39,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   const cls = STATUS_CLASS[t.status.status] ?? 'quiet';
   wrap.append(
     h('div', { class: 'title-row' }, h('h3', {}, `Outlet ${o.key}`), h('span', { class: `status status-${cls}` }, t.status.status)),
-    h('p', { class: 'trend-status' }, t.status.reason.replace(/\.?$/, '.'), ' ', forecastWords(t)),
+    h('p', { class: 'trend-status' }, sentence(t.status.reason), ' ', t.status.crossingAt && t.status.reason.includes(date(t.status.crossingAt)) ? '' : forecastWords(t)),
   );
   if (!points) {
     wrap.append(h('p', {}, 'No approved test yet: the trend starts with the first approved fit.'));
@@ -77,7 +80,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
         `${e.index + 1}${e.current ? ' (present)' : ''}`,
         e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
         String(e.series.length),
-        e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} per year` : '—',
+        e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
         e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
         e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
         e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
