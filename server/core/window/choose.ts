@@ -79,13 +79,18 @@ export function chooseDrainWindow(
 
   // 1. Readings to set aside.
   const q = estimateResolution(levelM);
-  // the spike filter's default floor, from the resolution already measured here
-  const spikeIdx = findSpikes(timeS, levelM, { ...options.spikes, scaleFloorM: options.spikes?.scaleFloorM ?? Math.max(q, estimateNoise(levelM)) });
+  // The noise of all readings, measured once: the spike filter's default floor, and (while
+  // nothing is set aside) the noise the stuck-run test and the candidates need as well.
+  const noiseAll = options.spikes?.scaleFloorM === undefined ? estimateNoise(levelM) : NaN;
+  const spikeIdx = findSpikes(timeS, levelM, { ...options.spikes, scaleFloorM: options.spikes?.scaleFloorM ?? Math.max(q, noiseAll) });
   const excluded = new Uint8Array(n);
   for (const i of spikeIdx) excluded[i] = 1;
   const clipping = findClipping(timeS, levelM, { resolutionM: q });
   for (const r of clipping) excluded.fill(1, r.startIndex, r.endIndex + 1);
-  const flatLines = findFlatLines(timeS, levelM, { resolutionM: q, excluded });
+  // With nothing set aside the noise of the kept readings is the noise of all (the same numbers
+  // in the same order); otherwise measured once here for the stuck-run test and reused below.
+  const noiseKept = spikeIdx.length === 0 && clipping.length === 0 && noiseAll === noiseAll ? noiseAll : estimateNoise(levelM, excluded);
+  const flatLines = findFlatLines(timeS, levelM, { resolutionM: q, excluded, noiseM: noiseKept });
   for (const r of flatLines) excluded.fill(1, r.startIndex, r.endIndex + 1);
   const spikes = Array.from(spikeIdx, (i) => ({ index: i, line: sourceLine[i], timeS: timeS[i], levelM: levelM[i] }));
   if (q > 0) notes.push({ code: 'resolution', message: `readings come in steps of ${(q * 1000).toPrecision(3)} mm` });
@@ -95,7 +100,7 @@ export function chooseDrainWindow(
 
   // 2. Falling stretches.
   // the white noise of the readings left in, measured once for the candidates and the onset
-  const sigma = estimateNoise(levelM, excluded);
+  const sigma = flatLines.length ? estimateNoise(levelM, excluded) : noiseKept;
   const candidates = findDrainCandidates(timeS, levelM, excluded, options.candidates, { resolutionM: q, noiseM: sigma });
 
   let startIndex: number;

@@ -36,26 +36,10 @@ export function decimate(
   const first = new Int32Array(blocks);
   const last = new Int32Array(blocks);
   const scratch = new Float64Array(B);
+  const out: BlockOut = { t, v, first, last };
   let m = 0;
   for (let a = from; a <= to; a += B) {
-    const b = Math.min(a + B - 1, to);
-    let k = 0;
-    let st = 0;
-    let f = -1;
-    let l = -1;
-    for (let i = a; i <= b; i++) {
-      if (excluded && excluded[i]) continue;
-      scratch[k++] = levelM[i];
-      st += timeS[i];
-      if (f < 0) f = i;
-      l = i;
-    }
-    if (k === 0) continue;
-    t[m] = st / k;
-    v[m] = k === 1 ? scratch[0] : k <= 16 ? smallMedian(scratch, k) : medianInPlace(scratch, k);
-    first[m] = f;
-    last[m] = l;
-    m++;
+    if (excluded ? keptBlock(timeS, levelM, excluded, a, Math.min(a + B - 1, to), scratch, out, m) : wholeBlock(timeS, levelM, a, Math.min(a + B - 1, to), scratch, out, m)) m++;
   }
   return {
     timeS: t.subarray(0, m),
@@ -64,6 +48,55 @@ export function decimate(
     lastIndex: last.subarray(0, m),
     blockSamples: B,
   };
+}
+
+interface BlockOut {
+  t: Float64Array;
+  v: Float64Array;
+  first: Int32Array;
+  last: Int32Array;
+}
+
+// One block each, as small functions the JIT takes up early (called once per block).
+
+/** Block [a, b] with every reading kept into out[m]. */
+function wholeBlock(timeS: Float64Array, levelM: Float64Array, a: number, b: number, scratch: Float64Array, out: BlockOut, m: number): boolean {
+  let k = 0;
+  let st = 0;
+  for (let i = a; i <= b; i++) {
+    scratch[k++] = levelM[i];
+    st += timeS[i];
+  }
+  out.t[m] = st / k;
+  out.v[m] = blockMedian(scratch, k);
+  out.first[m] = a;
+  out.last[m] = b;
+  return true;
+}
+
+/** Block [a, b] without its set-aside readings into out[m]; false when none is left. */
+function keptBlock(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, a: number, b: number, scratch: Float64Array, out: BlockOut, m: number): boolean {
+  let k = 0;
+  let st = 0;
+  let f = -1;
+  let l = -1;
+  for (let i = a; i <= b; i++) {
+    if (excluded[i]) continue;
+    scratch[k++] = levelM[i];
+    st += timeS[i];
+    if (f < 0) f = i;
+    l = i;
+  }
+  if (k === 0) return false;
+  out.t[m] = st / k;
+  out.v[m] = blockMedian(scratch, k);
+  out.first[m] = f;
+  out.last[m] = l;
+  return true;
+}
+
+function blockMedian(scratch: Float64Array, k: number): number {
+  return k === 1 ? scratch[0] : k <= 16 ? smallMedian(scratch, k) : medianInPlace(scratch, k);
 }
 
 /** Median of the first k (≤ 16) values by insertion sort: cheaper than selection for a few values. */

@@ -82,17 +82,30 @@ export function estimateNoise(levelM: Float64Array, excluded?: Uint8Array | null
   const n = levelM.length;
   if (n < 3) return 0;
   const d = new Float64Array(n - 2);
-  let m = 0;
-  if (excluded) {
-    for (let i = 1; i < n - 1; i++) {
-      if (excluded[i - 1] | excluded[i] | excluded[i + 1]) continue;
-      d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
-    }
-  } else {
-    for (let i = 1; i < n - 1; i++) d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
-  }
+  const m = excluded ? keptSecondDiffs(levelM, excluded, d) : secondDiffs(levelM, d);
   if (m === 0) return 0;
   return (MAD_TO_SIGMA * medianInPlace(d, m)) / Math.sqrt(6);
+}
+
+// The passes over every reading as small functions: in a fresh process the JIT takes them up
+// early instead of running one big function's loops in the interpreter.
+
+/** d = |second differences| of all readings; returns their count. */
+function secondDiffs(levelM: Float64Array, d: Float64Array): number {
+  const n = levelM.length;
+  for (let i = 1; i < n - 1; i++) d[i - 1] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
+  return n - 2;
+}
+
+/** The same, leaving out any difference that touches a set-aside reading. */
+function keptSecondDiffs(levelM: Float64Array, excluded: Uint8Array, d: Float64Array): number {
+  const n = levelM.length;
+  let m = 0;
+  for (let i = 1; i < n - 1; i++) {
+    if (excluded[i - 1] | excluded[i] | excluded[i + 1]) continue;
+    d[m++] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
+  }
+  return m;
 }
 
 /** Least-squares slope of level against time over included samples in [from, to]; NaN if < 2. */
@@ -103,10 +116,12 @@ export function slopeOver(
   to: number,
   excluded?: Uint8Array | null,
 ): number {
+  const a = Math.max(0, from);
+  const b = Math.min(to, timeS.length - 1);
   let n = 0;
   let st = 0;
   let sy = 0;
-  for (let i = Math.max(0, from); i <= Math.min(to, timeS.length - 1); i++) {
+  for (let i = a; i <= b; i++) {
     if (excluded && excluded[i]) continue;
     n++;
     st += timeS[i];
@@ -117,7 +132,7 @@ export function slopeOver(
   const ym = sy / n;
   let stt = 0;
   let sty = 0;
-  for (let i = Math.max(0, from); i <= Math.min(to, timeS.length - 1); i++) {
+  for (let i = a; i <= b; i++) {
     if (excluded && excluded[i]) continue;
     const dt = timeS[i] - tm;
     stt += dt * dt;

@@ -34,7 +34,7 @@ export function findFlatLines(timeS: Float64Array, levelM: Float64Array, options
   const minSamples = options.minSamples ?? 10;
   const factor = options.factor ?? 5;
   const q = options.resolutionM ?? estimateResolution(levelM);
-  const unit = Math.max(q, estimateNoise(levelM, options.excluded), 1e-12);
+  const unit = Math.max(q, options.noiseM ?? estimateNoise(levelM, options.excluded), 1e-12);
   const out: SampleRun[] = [];
   for (const [a, b] of identicalRuns(levelM, minSamples, () => true)) {
     const side = Math.max(minSamples, 10);

@@ -50,6 +50,8 @@ export interface FlatLineOptions {
   factor?: number;
   resolutionM?: number;
   excluded?: Uint8Array | null;
+  /** estimateNoise(levelM, excluded), when the caller has measured it already. */
+  noiseM?: number;
 }
 
 export interface ClippingOptions {
