@@ -88,7 +88,7 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     // an inflow too large for the top vessel is an overflow warning, not a silent number
     await page.getByLabel('Inflow into FT1').fill('20 L/s');
     await page.getByRole('button', { name: 'Work out the operating point' }).click();
-    await page.getByText('overflows at this inflow').first().waitFor({ timeout: 30_000 });
+    await page.locator('.system-operating .notice-error').filter({ hasText: /overflow/ }).first().waitFor({ timeout: 30_000 });
     await page.locator('.system-operating').screenshot({ path: join(shots, '12-systems-overflow.png') });
   }, 180_000);
 

@@ -252,11 +252,12 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
 
 function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
   const n = lm.ids.length;
-  const over = Object.entries(s.vessels).filter(([, v]) => v.levelM.value > v.heightM);
+  // the service already warns of most overflows in words; add a notice only for those it did not name
+  const over = Object.entries(s.vessels).filter(([id, v]) => v.levelM.value > v.heightM && !s.warnings.some((w) => w.startsWith(`${id}:`)));
   append(
     out,
     ...over.map(([id, v]) => notice('error', `${id} overflows at this inflow: its steady level ${num(v.levelM.value, 4)} m is above its height ${num(v.heightM, 4)} m.`)),
-    s.warnings.length ? h('ul', { class: 'warnings' }, s.warnings.map((w) => h('li', {}, w))) : null,
+    s.warnings.length ? notice('error', h('ul', { class: 'warnings' }, s.warnings.map((w) => h('li', {}, w)))) : null,
     table('Steady state', ['Vessel', 'Inflow', 'Level above its bottom ± standard uncertainty', '95 % interval', 'Head over the outlet', 'Outflow', 'Vessel height'], Object.entries(s.vessels).map(([id, v]) => [
       id,
       `${num((s.inflowM3S[id] ?? 0) * 1000, 4)} L/s`,
