@@ -66,8 +66,10 @@ function select(a: Float64Array, k: number): number {
     }
     if (k <= j) hi = j;
     else if (k >= i) lo = i;
-    else return a[k];
+    else break;
   }
+  // One exit after the loop: a second return inside it left the read after the loop without type
+  // feedback, and V8 discarded the loop's compiled code there on almost every call.
   return a[k];
 }
 

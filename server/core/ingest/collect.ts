@@ -4,7 +4,7 @@
  * small fraction of the rows the file is refused, naming the first bad cell.
  */
 import { InputError } from '../errors.js';
-import { clockMs, newParts, scanDateTime, wallMs } from './datetime.js';
+import { clockMs, isoZuluMs, newParts, scanDateTime, wallMs } from './datetime.js';
 import { parseNumber } from './numbers.js';
 import { MAX_BAD_ROW_FRACTION } from './options.js';
 import type { Plan } from './plan.js';
@@ -88,6 +88,11 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     }
     let wall: number;
     if (tp.kind === 'text') {
+      const utc = isoZuluMs(r.src[tp.col], r.start[tp.col], r.end[tp.col]);
+      if (utc === utc) {
+        withOffset++;
+        return utc;
+      }
       if (!scanDateTime(r.src[tp.col], r.start[tp.col], r.end[tp.col], p) || !p.hasDate) return NaN;
       wall = wallMs(p, tp.order);
     } else {

@@ -181,6 +181,37 @@ function scanOffset(s: string, b: number, p: DateTimeParts): boolean {
   return true;
 }
 
+/**
+ * The common logger form "YYYY-MM-DDThh:mm:ss[.fff]Z" in s[a, b) as epoch ms, or NaN for any
+ * other text (which then goes through scanDateTime and wallMs, giving the same value for this
+ * form). A small function of its own, so the JIT optimises it after a few rows.
+ */
+export function isoZuluMs(s: string, a: number, b: number): number {
+  const len = b - a;
+  if ((len !== 20 && len !== 24) || s.charCodeAt(a + 4) !== 45 || s.charCodeAt(a + 7) !== 45 || s.charCodeAt(a + 10) !== 84 ||
+    s.charCodeAt(a + 13) !== COLON || s.charCodeAt(a + 16) !== COLON || s.charCodeAt(b - 1) !== 90) return NaN;
+  const y = d2(s, a) * 100 + d2(s, a + 2), m = d2(s, a + 5), d = d2(s, a + 8);
+  const h = d2(s, a + 11), mi = d2(s, a + 14), sec = d2(s, a + 17);
+  let ms = 0;
+  if (len === 24) {
+    if (s.charCodeAt(a + 19) !== 46) return NaN;
+    ms = d2(s, a + 20) * 10 + d1(s, a + 22);
+  }
+  // NaN digits fail every comparison, so they fall through to the general path too
+  if (!(y >= 1900 && y <= 2200 && m >= 1 && m <= 12 && d >= 1 && d <= daysIn(y, m) && h <= 23 && mi <= 59 && sec <= 59 && ms >= 0)) return NaN;
+  return daysFromCivil(y, m, d) * 86400000 + (((h * 60 + mi) * 60 + sec) * 1000 + ms);
+}
+
+/** The digit at s[i] as a number, NaN when it is not a digit. */
+function d1(s: string, i: number): number {
+  const c = s.charCodeAt(i) - D0;
+  return c >= 0 && c <= 9 ? c : NaN;
+}
+
+function d2(s: string, i: number): number {
+  return d1(s, i) * 10 + d1(s, i + 1);
+}
+
 /** Days from 1970-01-01 to a proleptic Gregorian date (Hinnant's days_from_civil). */
 export function daysFromCivil(y: number, m: number, d: number): number {
   y -= m <= 2 ? 1 : 0;

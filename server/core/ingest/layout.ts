@@ -31,6 +31,9 @@ const CANDIDATES: [string, string][] = [['\t', 'tab'], [';', 'semicolon'], ['|',
 const SAMPLE_ROWS = 200;
 
 function parseRows(head: string, delimiter: string): HeadRow[] {
+  // Without a quote anywhere, CSV fields are the text between delimiters: split directly (what
+  // papaparse itself does then), one line a row, instead of running its parser four times.
+  if (head.indexOf('"') < 0) return splitRows(head, delimiter);
   const res = Papa.parse<string[]>(head, { delimiter, newline: '\n', quoteChar: '"', skipEmptyLines: false });
   const rows: HeadRow[] = [];
   let line = 1;
@@ -40,6 +43,16 @@ function parseRows(head: string, delimiter: string): HeadRow[] {
     for (const f of fields) for (let i = f.indexOf('\n'); i >= 0; i = f.indexOf('\n', i + 1)) line++;
   }
   return rows.filter((r) => r.fields.some((f) => f.trim() !== ''));
+}
+
+function splitRows(head: string, delimiter: string): HeadRow[] {
+  const lines = head.split('\n');
+  const rows: HeadRow[] = [];
+  for (let i = 0; i < lines.length; i++) {
+    const fields = lines[i].split(delimiter);
+    if (fields.some((f) => f.trim() !== '')) rows.push({ line: i + 1, fields });
+  }
+  return rows;
 }
 
 const parts = newParts();
