@@ -127,3 +127,31 @@ describe('POST /api/systems/steady and /linearize', () => {
     expect(r4.json().errors[0].path).toBe('body.system');
   });
 });
+
+describe('POST /api/systems/fit with a logged inflow (the pump-fed sample, sample-data/systems/truth.json)', () => {
+  const wash = JSON.parse(readFileSync(dir + 'truth.json', 'utf8')).tests.find((x: { system: string }) => x.system === 'wash-transfer.system.json');
+  const parts = (withFlow: boolean) =>
+    multipart([
+      { field: 'system', name: 'wash-transfer.system.json', bytes: file('wash-transfer.system.json') },
+      { field: 'log:WT4', name: wash.logs.WT4, bytes: file(wash.logs.WT4) },
+      { field: 'log:HT5', name: wash.logs.HT5, bytes: file(wash.logs.HT5) },
+      ...(withFlow ? [{ field: `inflow:${wash.inflowLog.to}`, name: 'pump-2026-04-09.csv', bytes: file('pump-2026-04-09.csv') }] : []),
+    ]);
+
+  it('reads the flow log sent as "inflow:ID" and recovers both outlets within 0.5 %', async () => {
+    const m = parts(true);
+    const res = await t.app.inject({ method: 'POST', url: '/api/systems/fit', headers: { ...t.auth('technician'), ...m.headers }, payload: m.payload });
+    expect(res.statusCode, res.body).toBe(200);
+    const j = res.json();
+    for (const id of ['WT4', 'HT5']) {
+      expect(Math.abs(j.outlets[id].dischargeCoefficient.value / wash.truth[id].dischargeCoefficient - 1), id).toBeLessThan(0.005);
+    }
+  });
+
+  it('without the flow log: 422 naming the missing field', async () => {
+    const m = parts(false);
+    const res = await t.app.inject({ method: 'POST', url: '/api/systems/fit', headers: { ...t.auth('technician'), ...m.headers }, payload: m.payload });
+    expect(res.statusCode).toBe(422);
+    expect(res.json().field).toBe(`inflow:${wash.inflowLog.to}`);
+  });
+});

@@ -17,10 +17,12 @@ import { InputError } from '../../core/errors.js';
 import { readLevelLog } from '../../core/ingest/read-log.js';
 import { alignLogs, type Alignment, type LogForSystem } from '../../core/system/align.js';
 import { fitSystem, type SystemFitResult } from '../../core/system/fit.js';
-import { loadSystemModel, systemFitJson } from '../../core/system/fit-json.js';
+import { loadSystemModel, systemFitJson, type InflowLogUse } from '../../core/system/fit-json.js';
+import { readFlowLog } from '../../core/system/flow-log.js';
+import { inflowOnFitClock } from '../../core/system/inflow-log.js';
 import { linearize } from '../../core/system/linear.js';
 import { linearModelCsv, linearModelText } from '../../core/system/linear-export.js';
-import { buildNetwork } from '../../core/system/network.js';
+import { buildNetwork, type InflowInput } from '../../core/system/network.js';
 import { parseSystemFile, type SystemSpec } from '../../core/system/schema.js';
 import { steadyState } from '../../core/system/steady.js';
 import { parseFlow } from '../../core/units/index.js';
@@ -94,13 +96,13 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['systems'],
         summary: 'Joint fit of connected vessels from one test’s logs (nothing is stored)',
         description:
-          'multipart/form-data: file "system" (the system file), one file "log:ID" per vessel (ID as in the system file), and optional text fields window (START..END s), fitDatum, fitInflow (true/false), unit, tz, dateOrder, delimiter, decimal (for every log).',
+          'multipart/form-data: file "system" (the system file), one file "log:ID" per vessel (ID as in the system file), one file "inflow:ID" for each logged inflow the system file names, and optional text fields window (START..END s), fitDatum, fitInflow (true/false), unit, tz, dateOrder, delimiter, decimal (for every log).',
         consumes: ['multipart/form-data'],
         response: { 200: fitAnswer, 413: problem, 415: problem, 422: problem, ...protectedErrors },
       },
     },
     async (request) => {
-      const { system, logs, fields } = await readSystemUpload(request);
+      const { system, logs, flows, fields } = await readSystemUpload(request);
       const spec = parseSystemFile(new TextDecoder().decode(system.bytes), system.fileName);
       const network = buildNetwork(spec);
       const ids = new Map(spec.vessels.map((v, i) => [v.id, i]));
@@ -129,12 +131,20 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       if (samples > MAX_FIT_SAMPLES) {
         throw new InputError(`${samples} readings in the common span is more than the service fits at once (${MAX_FIT_SAMPLES}): give a shorter window, or run efflux fit-system`, { field: 'window' });
       }
-      const inflows = spec.inflows.map((f) => {
-        if ('log' in f) throw new InputError(`inflow logs are not read yet: give a constant inflow for "${f.to}"`, { field: 'inflows' });
-        return { vessel: ids.get(f.to)!, constantM3S: f.constantM3S };
+      const inflowLogs: InflowLogUse[] = [];
+      const inflows: InflowInput[] = spec.inflows.map((f) => {
+        const vessel = ids.get(f.to)!;
+        if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
+        // over HTTP the flow log named in the system file arrives as the file field "inflow:ID"
+        const file = flows.get(f.to);
+        if (!file) throw new InputError(`the system file gives a logged inflow for "${f.to}" (${f.log}): send it as the file field "inflow:${f.to}"`, { field: `inflow:${f.to}` });
+        const series = readFlowLog(file.bytes, file.fileName, { unit: f.unit, tz: fields.tz, dateOrder: fields.dateOrder, delimiter: fields.delimiter, decimal: fields.decimal });
+        const placed = inflowOnFitClock(series, vessel, alignment);
+        inflowLogs.push({ to: f.to, file: file.fileName, unit: series.unit, samples: placed.timeS!.length, warnings: series.warnings });
+        return placed;
       });
       const fit = fitSystem({ network, logs: alignment.logs, inflows, terms: { datum: !!fields.fitDatum, leak: !!fields.fitInflow } });
-      return { ...systemFitJson(spec, fit, alignment), drawing: drawing(spec, fit, alignment) };
+      return { ...systemFitJson(spec, fit, alignment, inflowLogs), drawing: drawing(spec, fit, alignment) };
     },
   );
 
@@ -184,13 +194,14 @@ interface FileIn {
   fileName: string;
 }
 
-async function readSystemUpload(request: FastifyRequest): Promise<{ system: FileIn; logs: Map<string, FileIn>; fields: z.infer<typeof fitFields> }> {
+async function readSystemUpload(request: FastifyRequest): Promise<{ system: FileIn; logs: Map<string, FileIn>; flows: Map<string, FileIn>; fields: z.infer<typeof fitFields> }> {
   if (!request.isMultipart()) throw new HttpProblem(415, 'multipart-required', 'send multipart/form-data with a file field "system" and one "log:ID" per vessel');
   let system: FileIn | null = null;
   const logs = new Map<string, FileIn>();
+  const flows = new Map<string, FileIn>();
   const text: Record<string, string> = {};
   const refuse = (path: string, message: string) => new HttpProblem(400, 'validation', `${path}: ${message}`, { title: 'Invalid request', errors: [{ path, message }] });
-  for await (const part of request.parts({ limits: { files: MAX_LOGS + 1 } })) {
+  for await (const part of request.parts({ limits: { files: 2 * MAX_LOGS + 1 } })) {
     if (part.type !== 'file') {
       text[part.fieldname] = String(part.value);
       continue;
@@ -205,7 +216,11 @@ async function readSystemUpload(request: FastifyRequest): Promise<{ system: File
       const id = part.fieldname.slice(4);
       if (logs.has(id)) throw refuse(part.fieldname, 'sent twice');
       logs.set(id, { bytes, fileName });
-    } else throw refuse(part.fieldname, 'unexpected file (send "system" and "log:ID")');
+    } else if (part.fieldname.startsWith('inflow:') && part.fieldname.length > 7) {
+      const id = part.fieldname.slice(7);
+      if (flows.has(id)) throw refuse(part.fieldname, 'sent twice');
+      flows.set(id, { bytes, fileName });
+    } else throw refuse(part.fieldname, 'unexpected file (send "system", "log:ID" and, for a logged inflow, "inflow:ID")');
   }
   if (!system) throw refuse('system', 'required: the system file');
   const parsed = fitFields.safeParse(text);
@@ -213,7 +228,7 @@ async function readSystemUpload(request: FastifyRequest): Promise<{ system: File
     const errors = parsed.error.issues.map((i) => ({ path: i.path.length ? i.path.join('.') : ((i as { keys?: string[] }).keys?.join(',') ?? ''), message: i.message }));
     throw new HttpProblem(400, 'validation', errors.map((e) => `${e.path}: ${e.message}`).join('; '), { title: 'Invalid request', errors });
   }
-  return { system, logs, fields: parsed.data };
+  return { system, logs, flows, fields: parsed.data };
 }
 
 function parseWindow(text: string): { startS: number; endS?: number } {
