@@ -190,26 +190,25 @@ export function isoZuluMs(s: string, a: number, b: number): number {
   const len = b - a;
   if ((len !== 20 && len !== 24) || s.charCodeAt(a + 4) !== 45 || s.charCodeAt(a + 7) !== 45 || s.charCodeAt(a + 10) !== 84 ||
     s.charCodeAt(a + 13) !== COLON || s.charCodeAt(a + 16) !== COLON || s.charCodeAt(b - 1) !== 90) return NaN;
-  const y = d2(s, a) * 100 + d2(s, a + 2), m = d2(s, a + 5), d = d2(s, a + 8);
-  const h = d2(s, a + 11), mi = d2(s, a + 14), sec = d2(s, a + 17);
+  // Small integers only (no NaN in the arithmetic): digit values, and a flag for any non-digit
+  // (a character below '0' makes the OR negative).
+  const c0 = s.charCodeAt(a) - D0, c1 = s.charCodeAt(a + 1) - D0, c2 = s.charCodeAt(a + 2) - D0, c3 = s.charCodeAt(a + 3) - D0;
+  const c5 = s.charCodeAt(a + 5) - D0, c6 = s.charCodeAt(a + 6) - D0, c8 = s.charCodeAt(a + 8) - D0, c9 = s.charCodeAt(a + 9) - D0;
+  const c11 = s.charCodeAt(a + 11) - D0, c12 = s.charCodeAt(a + 12) - D0, c14 = s.charCodeAt(a + 14) - D0, c15 = s.charCodeAt(a + 15) - D0;
+  const c17 = s.charCodeAt(a + 17) - D0, c18 = s.charCodeAt(a + 18) - D0;
+  let bad = (c0 | c1 | c2 | c3 | c5 | c6 | c8 | c9 | c11 | c12 | c14 | c15 | c17 | c18) < 0 ||
+    c0 > 9 || c1 > 9 || c2 > 9 || c3 > 9 || c5 > 9 || c6 > 9 || c8 > 9 || c9 > 9 || c11 > 9 || c12 > 9 || c14 > 9 || c15 > 9 || c17 > 9 || c18 > 9;
   let ms = 0;
   if (len === 24) {
-    if (s.charCodeAt(a + 19) !== 46) return NaN;
-    ms = d2(s, a + 20) * 10 + d1(s, a + 22);
+    const f0 = s.charCodeAt(a + 20) - D0, f1 = s.charCodeAt(a + 21) - D0, f2 = s.charCodeAt(a + 22) - D0;
+    bad = bad || s.charCodeAt(a + 19) !== 46 || f0 < 0 || f0 > 9 || f1 < 0 || f1 > 9 || f2 < 0 || f2 > 9;
+    ms = f0 * 100 + f1 * 10 + f2;
   }
-  // NaN digits fail every comparison, so they fall through to the general path too
-  if (!(y >= 1900 && y <= 2200 && m >= 1 && m <= 12 && d >= 1 && d <= daysIn(y, m) && h <= 23 && mi <= 59 && sec <= 59 && ms >= 0)) return NaN;
+  if (bad) return NaN;
+  const y = c0 * 1000 + c1 * 100 + c2 * 10 + c3, m = c5 * 10 + c6, d = c8 * 10 + c9;
+  const h = c11 * 10 + c12, mi = c14 * 10 + c15, sec = c17 * 10 + c18;
+  if (y < 1900 || y > 2200 || m < 1 || m > 12 || d < 1 || d > daysIn(y, m) || h > 23 || mi > 59 || sec > 59) return NaN;
   return daysFromCivil(y, m, d) * 86400000 + (((h * 60 + mi) * 60 + sec) * 1000 + ms);
-}
-
-/** The digit at s[i] as a number, NaN when it is not a digit. */
-function d1(s: string, i: number): number {
-  const c = s.charCodeAt(i) - D0;
-  return c >= 0 && c <= 9 ? c : NaN;
-}
-
-function d2(s: string, i: number): number {
-  return d1(s, i) * 10 + d1(s, i + 1);
 }
 
 /** Days from 1970-01-01 to a proleptic Gregorian date (Hinnant's days_from_civil). */

@@ -129,7 +129,8 @@ export function findLayout(head: string, fileName: string, opts: { delimiter?: s
     chosen = score(head, d, JSON.stringify(d));
     notes.push({ code: 'delimiter', message: `fields split on ${chosen.label}, as given` });
   } else {
-    const scored = CANDIDATES.map(([d, l]) => score(head, d, l));
+    // A delimiter absent from the head gives one field a line, which never scores: not split.
+    const scored = CANDIDATES.map(([d, l]) => (head.indexOf(d) < 0 ? { delimiter: d, label: l, rows: [], count: 1, score: -1 } : score(head, d, l)));
     chosen = scored.reduce((a, b) => (b.score > a.score ? b : a));
     if (chosen.score < 0) {
       throw new InputError('found no delimiter (comma, semicolon, tab or pipe) that splits the lines into columns; give --delimiter', { file: fileName });
