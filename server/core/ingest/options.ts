@@ -21,6 +21,11 @@ export interface ReadOptions {
   /** A barometric log (absolute pressure) to subtract from an absolute-pressure log. */
   baro?: { bytes: Uint8Array; fileName: string };
   fluidDensityKgM3?: number;
+  /**
+   * Density to use when the log has no temperature column and no fluidDensityKgM3 is given
+   * (e.g. water at the temperature the vessel file states), with where it comes from.
+   */
+  fallbackDensity?: { valueKgM3: number; source: string };
   /** Elevation of a top-mounted distance sensor, in metres on the vessel's datum. */
   mountElevationM?: number;
   /** Elevation of the level zero on the same datum (default 0). */

@@ -108,22 +108,7 @@ function plainPiece(text: string, cut: number, line: number, rs: RowSource, deli
     if (line > rs.skipThroughLine && e > p) {
       if (nextQuote < e) {
         if (!splitQuoted(text, p, e, delim, row)) return { line, stop: p };
-      } else {
-        let count = 0, s = p;
-        for (;;) {
-          let d = text.indexOf(delim, s);
-          if (d < 0 || d > e) d = e;
-          if (count < MAX_FIELDS) {
-            row.src[count] = text;
-            row.start[count] = s;
-            row.end[count] = d;
-          }
-          count++;
-          if (d >= e) break;
-          s = d + 1;
-        }
-        row.count = Math.min(count, MAX_FIELDS);
-      }
+      } else splitFields(text, p, e, delim, row);
       row.line = line;
       if (!blankRow(row)) onRow(row); // stops at the first non-blank character
     }
@@ -131,6 +116,27 @@ function plainPiece(text: string, cut: number, line: number, rs: RowSource, deli
     p = next;
   }
   return { line, stop: cut };
+}
+
+/**
+ * The fields of the unquoted line text[p, e) into row. Once per line, a small function of its
+ * own: V8 optimises it after a few hundred lines, long before the loop over the piece would be.
+ */
+function splitFields(text: string, p: number, e: number, delim: string, row: Row): void {
+  let count = 0, s = p;
+  for (;;) {
+    let d = text.indexOf(delim, s);
+    if (d < 0 || d > e) d = e;
+    if (count < MAX_FIELDS) {
+      row.src[count] = text;
+      row.start[count] = s;
+      row.end[count] = d;
+    }
+    count++;
+    if (d >= e) break;
+    s = d + 1;
+  }
+  row.count = Math.min(count, MAX_FIELDS);
 }
 
 /** Only empty or blank fields: a blank line, or the ",,," rows spreadsheets pad with. */
