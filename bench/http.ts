@@ -1,12 +1,13 @@
 /**
  * HTTP throughput on loopback against a real listening server (its own temp data folder):
- * reads of a fit and of a vessel's test list, and 1 MB uploads fitted by the real engine.
+ * reads of a fit and of a vessel's test list, and 1 MB uploads fitted by the real engine; then
+ * reads while uploads run, and one upload's time split into its steps (its Server-Timing header).
  * Run: node --import tsx bench/http.ts [seconds-per-case]   (prints requests/s and latencies)
  */
 import autocannon from 'autocannon';
 import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
@@ -57,12 +58,18 @@ try {
   const oneMb = full.subarray(0, full.lastIndexOf(0x0a, 1_000_000) + 1);
   const up = multipartBody(oneMb, 'vcyl-1mb.csv');
   let fitId = 0;
-  for (let i = 0; i < 20; i++) {
+  const upload = async () => {
+    const t0 = performance.now();
     const r = await fetch(`${base}/api/vessels/${vessel.id}/tests`, { method: 'POST', headers: { ...auth, 'content-type': up.contentType }, body: up.body });
-    if (r.status !== 201) throw new Error(`seed upload answered ${r.status}: ${await r.text()}`);
+    if (r.status !== 201) throw new Error(`upload answered ${r.status}: ${await r.text()}`);
     fitId = (await r.json()).fit.id;
-  }
+    return { ms: performance.now() - t0, serverTiming: r.headers.get('server-timing') ?? '' };
+  };
+  const firstMs = (await upload()).ms;
+  for (let i = 1; i < 20; i++) await upload();
+  console.log(`first upload after start ${firstMs.toFixed(0)} ms (the pool warms up at start)`);
   const fitBytes = (await (await fetch(`${base}/api/fits/${fitId}`, { headers: auth })).arrayBuffer()).byteLength;
+  console.log(`load average ${loadavg().map((x) => x.toFixed(2)).join(' ')} (${availableParallelism()} cores)`);
   console.log(`server ${base}; fit JSON ${(fitBytes / 1024).toFixed(1)} KiB; upload ${(oneMb.length / 1e6).toFixed(2)} MB; ${seconds} s per case`);
 
   report('GET /api/fits/:id', await autocannon({ url: `${base}/api/fits/${fitId}`, headers: auth, connections: 10, duration: seconds }));
@@ -70,6 +77,30 @@ try {
   report('GET /api/health', await autocannon({ url: `${base}/api/health`, connections: 10, duration: seconds }));
   report('POST 1 MB upload (1 at a time)', await autocannon({ url: `${base}/api/vessels/${vessel.id}/tests`, method: 'POST', headers: { ...auth, 'content-type': up.contentType }, body: up.body, connections: 1, duration: seconds }));
   report('POST 1 MB upload (4 at a time)', await autocannon({ url: `${base}/api/vessels/${vessel.id}/tests`, method: 'POST', headers: { ...auth, 'content-type': up.contentType }, body: up.body, connections: 4, duration: seconds }));
+
+  // reads at the goal's rate (2000/s) while uploads run one after another: reads keep their p99?
+  const paced = { url: `${base}/api/fits/${fitId}`, headers: auth, connections: 10, overallRate: 2000, duration: seconds }; // overallRate: not in the local type stub
+  const [reads, uploads] = await Promise.all([
+    autocannon(paced),
+    autocannon({ url: `${base}/api/vessels/${vessel.id}/tests`, method: 'POST', headers: { ...auth, 'content-type': up.contentType }, body: up.body, connections: 1, duration: seconds }),
+  ]);
+  report('GET /api/fits/:id 2000/s during uploads', reads);
+  report('POST 1 MB upload during reads', uploads);
+
+  // one upload at a time, its steps from Server-Timing (medians over the runs)
+  const runs: { ms: number; parts: Map<string, number> }[] = [];
+  for (let i = 0; i < 15; i++) {
+    const r = await upload();
+    runs.push({ ms: r.ms, parts: new Map(r.serverTiming.split(',').map((p) => /^\s*([\w-]+);dur=([\d.]+)/.exec(p)).filter((m) => m !== null).map((m) => [m[1], Number(m[2])])) });
+  }
+  const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
+  const names = [...runs[0].parts.keys()];
+  const total = median(runs.map((r) => r.ms));
+  const steps = names.map((n) => `${n} ${median(runs.map((r) => r.parts.get(n) ?? 0)).toFixed(1)}`);
+  const inServer = median(runs.map((r) => [...r.parts.values()].reduce((a, b) => a + b, 0)));
+  const engine = median(runs.map((r) => r.parts.get('engine') ?? 0));
+  console.log(`1 MB upload, ${runs.length} one at a time, medians in ms: client ${total.toFixed(1)} = ${steps.join(', ')}, other (client, HTTP) ${(total - inServer).toFixed(1)}`);
+  console.log(`  engine ${engine.toFixed(1)} ms (${((100 * engine) / total).toFixed(0)} %), service ${(total - engine).toFixed(1)} ms`);
 } finally {
   child.kill('SIGTERM');
 }

@@ -2,12 +2,25 @@
  * Piscina worker: runs one analysis off the main thread. Loads the engine lazily, once per thread,
  * from server/core/analyze.js (or the module named in workerData.analyzeModule: tests, benchmarks).
  */
+import { setPriority } from 'node:os';
 import { workerData } from 'node:worker_threads';
 import type { AnalysisOutcome, AnalysisRequest } from '../core/analysis-contract.js';
 import { EngineUnavailableError, serialiseError, type WorkerReply } from './worker-reply.js';
 
 type Analyze = (req: AnalysisRequest) => AnalysisOutcome;
 let engine: Promise<Analyze> | undefined;
+
+// A fit may take a core for a while; below the HTTP thread's priority, reads keep answering
+// quickly while it runs (Linux keeps a nice value per thread; elsewhere this may apply to the
+// whole process or be refused, so it is skipped there).
+const niceness = (workerData as { niceness?: number } | undefined)?.niceness ?? 0;
+if (niceness > 0 && process.platform === 'linux') {
+  try {
+    setPriority(0, niceness);
+  } catch {
+    // not permitted: run at the normal priority
+  }
+}
 
 function loadEngine(): Promise<Analyze> {
   const configured = (workerData as { analyzeModule?: string } | undefined)?.analyzeModule;
@@ -37,7 +50,9 @@ export default async function run(req: AnalysisRequest): Promise<WorkerReply> {
       engine = undefined; // try again next time (the engine may be installed while we run)
       throw e;
     });
-    return { ok: true, outcome: analyze(req) };
+    const t0 = performance.now();
+    const outcome = analyze(req);
+    return { ok: true, outcome, engineMs: performance.now() - t0 };
   } catch (e) {
     return { ok: false, error: serialiseError(e) };
   }

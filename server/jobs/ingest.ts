@@ -4,7 +4,7 @@ import type { Actor, Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
 import type { DrainTest, RawInput } from '../store/tests.js';
 import type { Outlet, Vessel } from '../store/vessels.js';
-import type { AnalyzeRunner } from './pool.js';
+import type { AnalyzeRunner, RunTiming } from './pool.js';
 
 export interface UploadInput {
   vesselId: number;
@@ -47,21 +47,33 @@ export function vesselForAnalysis(vessel: Vessel, outlet: Outlet | null): Record
   return spec;
 }
 
+/** Milliseconds per step of an upload (the service sends them as Server-Timing). */
+export interface UploadTiming extends RunTiming {
+  /** SHA-256 and the commit of the bytes and the test row. */
+  storeRawMs?: number;
+  /** Storing the fit and the test's new state, and reading both back. */
+  storeFitMs?: number;
+}
+
 /**
  * An upload: the raw bytes are committed first (so a crash during the analysis loses nothing),
  * then the analysis runs in the pool, then its fit is stored as a draft. When the analysis refuses
  * the input, the test is withdrawn (row and unshared bytes deleted; the audit log records both)
  * and the InputError goes back to the caller. Any other failure leaves the test pending; it is
- * analysed again on the next start (resumePending).
+ * analysed again on the next start (resumePending). The analysis is given the bytes received
+ * (moved to the worker once committed: `input`'s byte arrays are spent afterwards), not a copy
+ * read back from the database.
  */
 export async function uploadDrainTest(
   store: Store,
   analyze: AnalyzeRunner,
   actor: Actor,
   input: UploadInput,
+  timing: UploadTiming = {},
 ): Promise<{ test: DrainTest; fit: StoredFit }> {
   const vessel = store.vessels.get(input.vesselId);
   const outlet = chooseOutlet(vessel, input.outletId);
+  const t0 = performance.now();
   const test = store.tests.createPending(actor, {
     vesselId: vessel.id,
     outletId: outlet?.id ?? null,
@@ -73,8 +85,12 @@ export async function uploadDrainTest(
     testedAt: input.testedAt,
     notes: input.notes,
   });
-  const fit = await analyseStored(store, analyze, actor, test, vessel, outlet);
-  return { test: store.tests.get(test.id), fit };
+  timing.storeRawMs = performance.now() - t0;
+  const fit = await analyseStored(store, analyze, actor, test, vessel, outlet, { log: input.log, baro: input.baro }, timing);
+  const t1 = performance.now();
+  const answer = { test: store.tests.get(test.id), fit };
+  timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
+  return answer;
 }
 
 async function analyseStored(
@@ -84,21 +100,31 @@ async function analyseStored(
   test: DrainTest,
   vessel: Vessel,
   outlet: Outlet | null,
+  received?: { log: RawInput; baro?: RawInput },
+  timing: UploadTiming = {},
 ): Promise<StoredFit> {
   const vesselSpec = vesselForAnalysis(vessel, outlet);
   const settings = test.settings as AnalysisSettings;
   try {
-    const outcome = await analyze({
-      log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
-      baro: test.baro ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName } : undefined,
-      vessel: vesselSpec,
-      settings,
-    });
-    return store.fits.storeFirst(actor, test.id, outcome.detected, {
+    const logBytes = received?.log.bytes ?? store.tests.rawBytes(test.sha256);
+    const baroBytes = test.baro ? (received?.baro?.bytes ?? store.tests.rawBytes(test.baro.sha256)) : undefined;
+    const outcome = await analyze(
+      {
+        log: { bytes: logBytes, fileName: test.fileName },
+        baro: test.baro ? { bytes: baroBytes!, fileName: test.baro.fileName } : undefined,
+        vessel: vesselSpec,
+        settings,
+      },
+      timing,
+    );
+    const t0 = performance.now();
+    const fit = store.fits.storeFirst(actor, test.id, outcome.detected, {
       settings: settings as Record<string, unknown>,
       vessel: vesselSpec,
       result: outcome.fit as Record<string, unknown>,
     });
+    timing.storeFitMs = performance.now() - t0;
+    return fit;
   } catch (e) {
     if (isInputError(e)) store.tests.withdraw(actor, test.id, e.toLine());
     throw e;

@@ -7,8 +7,8 @@ import { InputError } from '../core/errors.js';
  * reaches the main thread as a bare Error.
  */
 export type WorkerReply =
-  | { ok: true; outcome: AnalysisOutcome }
-  | { ok: false; error: SerialisedError };
+  | { ok: true; outcome: AnalysisOutcome; engineMs: number }
+  | { ok: false; error: SerialisedError; engineMs?: number };
 
 export interface SerialisedError {
   name: string;

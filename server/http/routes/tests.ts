@@ -1,6 +1,6 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
-import { uploadDrainTest } from '../../jobs/ingest.js';
+import { uploadDrainTest, type UploadTiming } from '../../jobs/ingest.js';
 import { actorOf } from '../../store/users.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
 import { HttpProblem } from '../problems.js';
@@ -13,6 +13,15 @@ function contentDisposition(name: string): string {
   const ascii = name.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, '_');
   return `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(name)}`;
 }
+
+/**
+ * Server-Timing (W3C) on an upload's answer: receive (multipart read), store-raw (SHA-256 and the
+ * commit of the bytes), pool (hand-over, queue and reply around the engine), engine
+ * (analyzeDrainTest in the worker), store-fit (the fit's commit and read-back), serialise (the
+ * answer's JSON). Numbers for people measuring the service; nothing depends on them.
+ */
+const uploadTimings = new WeakMap<object, { receiveMs: number; timing: UploadTiming; doneAt: number }>();
+const dur = (name: string, ms: number | undefined) => (ms === undefined ? [] : [`${name};dur=${ms.toFixed(1)}`]);
 
 export const testRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
@@ -30,11 +39,33 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
         params: idParams,
         response: { 201: z.object({ test: drainTest, fit }), 413: problem, 415: problem, 422: problem, 503: problem, ...protectedErrors },
       },
+      onSend: async (request, reply, payload) => {
+        const t = uploadTimings.get(request);
+        if (t) {
+          const { timing: x } = t;
+          const engine = x.engineMs;
+          const pool = x.poolMs === undefined ? undefined : x.poolMs - (engine ?? 0);
+          const parts = [
+            ...dur('receive', t.receiveMs),
+            ...dur('store-raw', x.storeRawMs),
+            ...dur('pool', pool),
+            ...dur('engine', engine),
+            ...dur('store-fit', x.storeFitMs),
+            ...dur('serialise', performance.now() - t.doneAt),
+          ];
+          reply.header('server-timing', parts.join(', '));
+        }
+        return payload;
+      },
     },
     async (request, reply) => {
       const vessel = app.store.vessels.get(request.params.id); // 404 before reading the body
+      const t0 = performance.now();
       const up = await readUpload(request);
-      const out = await uploadDrainTest(app.store, app.analyze, actorOf(request.user!), { vesselId: vessel.id, ...up });
+      const receiveMs = performance.now() - t0;
+      const timing: UploadTiming = {};
+      const out = await uploadDrainTest(app.store, app.analyze, actorOf(request.user!), { vesselId: vessel.id, ...up }, timing);
+      uploadTimings.set(request, { receiveMs, timing, doneAt: performance.now() });
       reply.code(201);
       return out;
     },
