@@ -59,29 +59,45 @@ function largestOf(a: Float64Array, k: number): number {
  */
 export function estimateResolution(levelM: Float64Array): number {
   const n = levelM.length;
+  const tiny = Math.max(farthestFromFirst(levelM) * 1e-9, 1e-12);
+  const q = smallestStep(levelM, tiny);
+  if (!Number.isFinite(q)) return 0;
+  const stride = Math.max(1, Math.floor(n / 20000)); // a sample of steps is enough to judge
+  const { steps, onGrid } = countOnGrid(levelM, tiny, q, stride);
+  return steps > 0 && onGrid >= 0.95 * steps ? q : 0;
+}
+
+// estimateResolution's passes, each a small function (see secondDiffs below).
+
+function farthestFromFirst(levelM: Float64Array): number {
   let range = 0;
-  for (let i = 1; i < n; i++) {
+  for (let i = 1; i < levelM.length; i++) {
     const d = Math.abs(levelM[i] - levelM[0]);
     if (d > range) range = d;
   }
-  const tiny = Math.max(range * 1e-9, 1e-12);
+  return range;
+}
+
+function smallestStep(levelM: Float64Array, tiny: number): number {
   let q = Infinity;
-  for (let i = 1; i < n; i++) {
+  for (let i = 1; i < levelM.length; i++) {
     const d = Math.abs(levelM[i] - levelM[i - 1]);
     if (d > tiny && d < q) q = d;
   }
-  if (!Number.isFinite(q)) return 0;
+  return q;
+}
+
+function countOnGrid(levelM: Float64Array, tiny: number, q: number, stride: number): { steps: number; onGrid: number } {
   let steps = 0;
   let onGrid = 0;
-  const stride = Math.max(1, Math.floor(n / 20000)); // a sample of steps is enough to judge
-  for (let i = stride; i < n; i += stride) {
+  for (let i = stride; i < levelM.length; i += stride) {
     const d = Math.abs(levelM[i] - levelM[i - 1]);
     if (d <= tiny) continue;
     steps++;
     const r = d / q;
     if (Math.abs(r - Math.round(r)) < 0.02) onGrid++;
   }
-  return steps > 0 && onGrid >= 0.95 * steps ? q : 0;
+  return { steps, onGrid };
 }
 
 /**

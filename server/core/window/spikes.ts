@@ -28,30 +28,35 @@ export function movingMedian(x: Float64Array, k: number): Float64Array {
   const odd = L % 2 === 1;
   const lastCentre = n - L + half;
   for (let c = half; c <= lastCentre; c++) {
-    if (c > half) {
-      const gone = x[c - half - 1];
-      const come = x[c + L - 1 - half];
-      let lo = 0;
-      let hi = L - 1;
-      while (lo <= hi) {
-        const mid = (lo + hi) >> 1;
-        if (s[mid] < gone) lo = mid + 1;
-        else hi = mid - 1;
-      }
-      let p = lo; // first slot holding `gone`: overwrite it, shifting towards where `come` belongs
-      if (come >= gone) {
-        while (p + 1 < L && s[p + 1] < come) (s[p] = s[p + 1]), p++;
-      } else {
-        while (p > 0 && s[p - 1] > come) (s[p] = s[p - 1]), p--;
-      }
-      s[p] = come;
-    }
-    const m = odd ? s[half] : (s[half - 1] + s[half]) / 2;
-    if (c === half) for (let i = 0; i < half; i++) out[i] = m;
-    out[c] = m;
-    if (c === lastCentre) for (let i = c + 1; i < n; i++) out[i] = m;
+    if (c > half) slide(s, x[c - half - 1], x[c + L - 1 - half]);
+    out[c] = odd ? s[half] : (s[half - 1] + s[half]) / 2;
   }
+  out.fill(out[half], 0, half);
+  out.fill(out[lastCentre], lastCentre + 1, n);
   return out;
+}
+
+/**
+ * One step of the sorted window s: `gone` leaves, `come` enters. A small function called once
+ * per sample, so V8 optimises it after a few hundred samples (the loop around it would need
+ * on-the-fly compilation first).
+ */
+function slide(s: Float64Array, gone: number, come: number): void {
+  const L = s.length;
+  let lo = 0;
+  let hi = L - 1;
+  while (lo <= hi) {
+    const mid = (lo + hi) >> 1;
+    if (s[mid] < gone) lo = mid + 1;
+    else hi = mid - 1;
+  }
+  let p = lo; // first slot holding `gone`: overwrite it, shifting towards where `come` belongs
+  if (come >= gone) {
+    while (p + 1 < L && s[p + 1] < come) (s[p] = s[p + 1]), p++;
+  } else {
+    while (p > 0 && s[p - 1] > come) (s[p] = s[p - 1]), p--;
+  }
+  s[p] = come;
 }
 
 /** Indices (ascending) of the readings the Hampel filter calls spikes. */
@@ -90,8 +95,7 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
     return Int32Array.from(out);
   }
   const window = new Float64Array(L);
-  for (let i = 0; i < n; i++) {
-    if (!(dev[i] > bar)) continue;
+  for (let i = nextBeyond(dev, bar, 0); i < n; i = nextBeyond(dev, bar, i + 1)) {
     const from = Math.min(Math.max(i - half, 0), n - L);
     window.set(dev.subarray(from, from + L));
     window.sort();
@@ -99,6 +103,12 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
     if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad, floor)) out.push(i);
   }
   return Int32Array.from(out);
+}
+
+/** The first index from i on with dev above bar (dev.length when none). */
+function nextBeyond(dev: Float64Array, bar: number, i: number): number {
+  while (i < dev.length && !(dev[i] > bar)) i++;
+  return i;
 }
 
 // The passes over every reading, as small functions the JIT takes up early in a fresh process.
