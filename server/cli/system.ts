@@ -1,13 +1,12 @@
 import { dirname, isAbsolute, resolve } from 'node:path';
 import { InputError } from '../core/errors.js';
 import { timeUnitMs } from '../core/ingest/header.js';
-import { readLevelLog } from '../core/ingest/read-log.js';
 import { parseFlow, parseLength } from '../core/units/index.js';
 import { readFlowLog } from '../core/system/flow-log.js';
 import { inflowOnFitClock } from '../core/system/inflow-log.js';
 import type { InflowInput } from '../core/system/network.js';
 import { levelsAfter, timeToLevel } from '../core/system/predict.js';
-import { fluidDensityKgM3 } from '../core/vessel/schema.js';
+import { readVesselLog } from '../core/system/read-vessel-log.js';
 import { alignLogs, type LogForSystem } from '../core/system/align.js';
 import { fitSystem } from '../core/system/fit.js';
 import { loadSystemModel, systemFitJson } from '../core/system/fit-json.js';
@@ -98,18 +97,15 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       if (decimal !== undefined && decimal !== '.' && decimal !== ',') throw new InputError(`--decimal must be "." or "," (got "${decimal}")`);
       const dateOrder = values['date-order'];
       if (dateOrder !== undefined && !['dmy', 'mdy', 'ymd'].includes(dateOrder)) throw new InputError(`--date-order must be dmy, mdy or ymd (got "${dateOrder}")`);
-      const series = readLevelLog(file.bytes, file.fileName, {
-        unit: values.unit,
-        tz: values.tz,
-        dateOrder: dateOrder as 'dmy' | 'mdy' | 'ymd' | undefined,
-        delimiter: values.delimiter,
-        decimal: decimal as '.' | ',' | undefined,
-        fluidDensityKgM3: v.fluid && 'densityKgM3' in v.fluid ? fluidDensityKgM3(v).value : undefined,
-        mountElevationM: v.sensor?.mountElevationM,
-        zeroElevationM: v.sensor?.zeroElevationM,
-        gravityMS2: network.gravity,
-      });
-      logs.push({ vessel, fileName: file.fileName, timeS: series.timeS, levelM: series.levelM, t0EpochMs: series.t0EpochMs });
+      logs.push(
+        readVesselLog(spec, vessel, network.gravity, file, {
+          unit: values.unit,
+          tz: values.tz,
+          dateOrder: dateOrder as 'dmy' | 'mdy' | 'ymd' | undefined,
+          delimiter: values.delimiter,
+          decimal: decimal as '.' | ',' | undefined,
+        }),
+      );
     }
     const missing = spec.vessels.filter((_, i) => !logs.some((l) => l.vessel === i)).map((v) => v.id);
     if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: add --log ID=FILE for every vessel`);

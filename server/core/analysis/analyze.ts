@@ -49,6 +49,8 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
     decimal: settings.decimal,
     baro: request.baro,
     fluidDensityKgM3: 'densityKgM3' in (vessel.fluid ?? {}) ? density.value : undefined,
+    // a fluid temperature in the vessel file stands in when the log has no temperature column
+    fallbackDensity: vessel.fluid && 'temperatureC' in vessel.fluid ? { valueKgM3: density.value, source: density.source } : undefined,
     mountElevationM: vessel.sensor?.mountElevationM,
     zeroElevationM: vessel.sensor?.zeroElevationM,
     gravityMS2: gravity,

@@ -14,7 +14,6 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { FastifyRequest } from 'fastify';
 import { z } from 'zod';
 import { InputError } from '../../core/errors.js';
-import { readLevelLog } from '../../core/ingest/read-log.js';
 import { alignLogs, type Alignment, type LogForSystem } from '../../core/system/align.js';
 import { fitSystem, type SystemFitResult } from '../../core/system/fit.js';
 import { loadSystemModel, systemFitJson, type InflowLogUse } from '../../core/system/fit-json.js';
@@ -26,7 +25,7 @@ import { buildNetwork, type InflowInput } from '../../core/system/network.js';
 import { parseSystemFile, type SystemSpec } from '../../core/system/schema.js';
 import { steadyState } from '../../core/system/steady.js';
 import { parseFlow } from '../../core/units/index.js';
-import { fluidDensityKgM3 } from '../../core/vessel/schema.js';
+import { readVesselLog } from '../../core/system/read-vessel-log.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
 import { HttpProblem } from '../problems.js';
 import { problem, protectedErrors } from '../schemas.js';
@@ -110,19 +109,7 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       for (const [id, file] of logs) {
         const vessel = ids.get(id);
         if (vessel === undefined) throw new InputError(`no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`, { field: `log:${id}` });
-        const v = spec.vessels[vessel];
-        const s = readLevelLog(file.bytes, file.fileName, {
-          unit: fields.unit,
-          tz: fields.tz,
-          dateOrder: fields.dateOrder,
-          delimiter: fields.delimiter,
-          decimal: fields.decimal,
-          fluidDensityKgM3: v.fluid && 'densityKgM3' in v.fluid ? fluidDensityKgM3(v).value : undefined,
-          mountElevationM: v.sensor?.mountElevationM,
-          zeroElevationM: v.sensor?.zeroElevationM,
-          gravityMS2: network.gravity,
-        });
-        read.push({ vessel, fileName: file.fileName, timeS: s.timeS, levelM: s.levelM, t0EpochMs: s.t0EpochMs });
+        read.push(readVesselLog(spec, vessel, network.gravity, file, { unit: fields.unit, tz: fields.tz, dateOrder: fields.dateOrder, delimiter: fields.delimiter, decimal: fields.decimal }));
       }
       const missing = spec.vessels.filter((_, i) => !read.some((l) => l.vessel === i)).map((v) => v.id);
       if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: send a file field "log:ID" for every vessel`, { field: `log:${missing[0]}` });
