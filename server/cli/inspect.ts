@@ -34,7 +34,7 @@ export async function runInspect(argv: string[]): Promise<number> {
       detected = detectedSummary(prepareDrainTest({ log, baro, vessel, vesselFileName: values.vessel, settings }));
     } else {
       const series = readLevelLog(log.bytes, log.fileName, { ...settings, baro });
-      const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs) : undefined;
+      const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs, settings.tz) : undefined;
       const choice = chooseDrainWindow(series, { window });
       detected = { ...describeLog(series), window: choice.window, candidates: choice.candidates, spikes: choice.spikes, flatLines: choice.flatLines, clipping: choice.clipping, trims: choice.trims, windowNotes: choice.notes, windowWarnings: choice.warnings };
     }

@@ -58,7 +58,7 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const fromTop = series.columns.some((c) => c.role === 'distance-from-top');
   const knownSensorZeroM = vessel.sensor?.zeroElevationM ?? (fromTop ? 0 : null);
   const setting: DrainSetting = { shape: makeShape(vessel.shape), outletElevationM: vessel.outlet.elevationM, gravity };
-  const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs) : undefined;
+  const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs, settings.tz) : undefined;
   const choice = withFile(request.log.fileName, () =>
     chooseDrainWindow(series, {
       outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
