@@ -45,6 +45,8 @@ export async function run(argv: string[]): Promise<number> {
     webhooks: cfg.webhooks,
     logger: cfg.log === 'silent' ? false : { level: cfg.log },
   });
+  // the first analysis in a fresh worker pays the JIT; let the built-in warm-up drain finish first
+  await pool.warm;
   const address = await app.listen({ host: cfg.host, port: cfg.port });
   say(`efflux listening on ${address} (data in ${cfg.dataDir})`);
   if (firstToken) {
