@@ -87,8 +87,8 @@ export function textReport(fit: FitJson): string {
   const bands = f.headBands as any[] | undefined;
   if (bands?.length) {
     lines.push('');
-    lines.push('Cd by head band');
-    for (const b of bands) lines.push(`  head ${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)} m: Cd = ${sig(b.dischargeCoefficient)} ± ${sig(b.standardUncertainty, 2)} (${b.samples} samples)`);
+    lines.push('Cd by head band (u: standard uncertainty of the band\'s fit, AR(1)-corrected like the whole fit; bore tolerance not included, so bands compare with each other)');
+    for (const b of bands) lines.push(`  head ${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)} m: Cd = ${toU(b.dischargeCoefficient, b.standardUncertainty)}   u = ${sig(b.standardUncertainty, 2)} (${b.samples} samples)`);
   }
   const s = f.solver;
   lines.push('');

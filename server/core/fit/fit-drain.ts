@@ -123,7 +123,7 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
     durbinWatson: diag.durbinWatson,
   };
   const comparison = input.essentialsOnly ? null : compareModels(data, best, unc, datumRequired, work);
-  const bands = input.essentialsOnly ? [] : headBands(data, best, 4, work);
+  const bands = input.essentialsOnly ? [] : headBands(data, best, unc.varianceInflation, 4, work);
   const warnings = fitWarnings({ input, best, unc, dischargeCoefficient: dischargeCoefficient.value, comparison, bands, parameters });
   const t2 = now();
   return {

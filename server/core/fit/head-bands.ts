@@ -15,11 +15,22 @@ export interface HeadBand {
   headToM: number;
   samples: number;
   effectiveAreaM2: number;
-  /** Ordinary (uncorrected) standard uncertainty of the band's Cd·a, m². */
+  /**
+   * Standard uncertainty of the band's Cd·a from the band's fit alone (no bore tolerance), m²:
+   * s²(JᵀJ)⁻¹ of the band times the whole window's AR(1) variance inflation.
+   */
   standardUncertainty: number;
 }
 
-export function headBands(input: VariantInput, best: FittedVariant, bands = 4, work: SolveWorkspace = createSolveWorkspace()): HeadBand[] {
+/**
+ * `varianceInflation`: the whole fit's AR(1) factor (UncertaintyModel.varianceInflation). We use
+ * it rather than each band's own ρ because a band has only about a quarter of the readings and
+ * refits its own level and Cd·a: its lag-1 estimate comes out low (short-series bias, and the
+ * refit takes up part of the slow wander). In simulation (vertical cylinder, AR(1) ρ = 0.85, 60
+ * seeds) the bands' spread over their stated u was 1.11–1.47 with their own factor and 0.98–1.13
+ * with the whole window's (test/core/fit/head-bands.test.ts checks the latter).
+ */
+export function headBands(input: VariantInput, best: FittedVariant, varianceInflation: number, bands = 4, work: SolveWorkspace = createSolveWorkspace()): HeadBand[] {
   const { timeS, levelM, setting } = input;
   const m = timeS.length;
   const zs = best.theta[THETA.sensorZero];
@@ -44,12 +55,13 @@ export function headBands(input: VariantInput, best: FittedVariant, bands = 4, w
       start[THETA.initialReading] = ok && Number.isFinite(reading[0]) ? reading[0] : y[0];
       const v = fitVariant({ setting, timeS: t, levelM: y }, { inflow: false, datum: false, exponent: false }, start, undefined, { work });
       const s2 = v.solve.sumSquares / Math.max(count - v.k, 1);
+      const col = v.free.indexOf(THETA.effectiveArea);
       out.push({
         headFromM: head(from),
         headToM: head(to - 1),
         samples: count,
         effectiveAreaM2: v.theta[THETA.effectiveArea],
-        standardUncertainty: Math.sqrt(Math.max(v.solve.unscaledCovariance[0] * s2, 0)),
+        standardUncertainty: Math.sqrt(Math.max(v.solve.unscaledCovariance[col * v.k + col] * s2 * varianceInflation, 0)),
       });
     }
     from = to;
