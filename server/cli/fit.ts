@@ -5,7 +5,7 @@ import { textReport } from '../core/analysis/text-report.js';
 import { InputError } from '../core/errors.js';
 import { parseVesselFile } from '../core/vessel/schema.js';
 import { fitSvg } from '../render/fit-svg.js';
-import { EXIT_OK, guarded, readInputFile } from './io.js';
+import { EXIT_NOT_CONVERGED, EXIT_OK, EXIT_REFUSED, guarded, readInputFile } from './io.js';
 import { READ_OPTIONS, parseCommandLine, settingsFrom } from './options.js';
 
 const USAGE = `usage: efflux fit <log.csv> [more logs…] --vessel <vessel.json> [options]
@@ -25,7 +25,8 @@ reading (when the file does not say it):
 output:
   --json                 one JSON object on stdout (one per line for several logs)
   --plot FILE.svg        a picture of the log, the window, the fitted curve and the residuals
-exit codes: 0 done, 2 input refused (the message names the file, line or field), other: internal fault.
+exit codes: 0 done, 2 input refused (the message names the file, line or field), 3 fitted but the
+  fit did not converge (do not use its numbers; with several logs, 2 wins over 3), other: internal fault.
 `;
 
 export async function runFit(argv: string[]): Promise<number> {
@@ -50,6 +51,7 @@ export async function runFit(argv: string[]): Promise<number> {
     const baro = values.baro ? readInputFile(values.baro) : undefined;
     const batch = positionals.length > 1;
     let refused = 0;
+    let unconverged = 0;
     positionals.forEach((path, i) => {
       if (batch) process.stderr.write(`[${i + 1}/${positionals.length}] ${path}\n`);
       try {
@@ -70,14 +72,18 @@ export async function runFit(argv: string[]): Promise<number> {
           process.stdout.write(textReport(outcome.fit));
         }
         if (values.plot) writeAtomically(values.plot, fitSvg(outcome.fit));
+        if (!outcome.fit.converged) {
+          unconverged++;
+          process.stderr.write(`efflux: ${path}: the fit did not converge; do not use its numbers\n`);
+        }
       } catch (err) {
         if (!(err instanceof InputError) || !batch) throw err;
         refused++;
         process.stderr.write(`efflux: ${err.toLine()}\n`);
       }
     });
-    if (batch) process.stderr.write(`${positionals.length - refused} fitted, ${refused} refused\n`);
-    return refused ? 2 : EXIT_OK;
+    if (batch) process.stderr.write(`${positionals.length - refused} fitted (${unconverged} not converged), ${refused} refused\n`);
+    return refused ? EXIT_REFUSED : unconverged ? EXIT_NOT_CONVERGED : EXIT_OK;
   });
 }
 

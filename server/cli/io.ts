@@ -2,9 +2,13 @@ import { readFileSync, statSync } from 'node:fs';
 import { basename } from 'node:path';
 import { InputError } from '../core/errors.js';
 
-/** Exit codes: 0 done, 2 refused input (one line on stderr), 70 internal fault (EX_SOFTWARE). */
+/**
+ * Exit codes: 0 done, 2 refused input (one line on stderr), 3 fitted but the fit did not converge
+ * (a script must not take its numbers), 70 internal fault (EX_SOFTWARE).
+ */
 export const EXIT_OK = 0;
 export const EXIT_REFUSED = 2;
+export const EXIT_NOT_CONVERGED = 3;
 export const EXIT_INTERNAL = 70;
 
 export const DEFAULT_MAX_FILE_BYTES = 64 * 1024 * 1024;

@@ -55,6 +55,29 @@ describe('efflux fit', () => {
   });
 });
 
+describe('efflux fit on a fit that does not converge', () => {
+  // 11 readings (130..140 s of the demo log, 1 % of the head) with every optional term free:
+  // five parameters the data cannot separate, so the solver runs out of iterations.
+  const args = ['fit', sd('fb1-2026-03-10-preamble.csv'), '--vessel', sd('backwash-tank-fb1.vessel.json'), '--window', '130..140', '--fit-inflow', '--fit-datum', '--fit-exponent'];
+  it('text: the first line says it did not converge, no Cd headline, exit 3', () => {
+    const r = efflux(args);
+    expect(r.code).toBe(3);
+    const first = r.stdout.split('\n')[0];
+    expect(first).toMatch(/^FIT DID NOT CONVERGE/);
+    expect(first).toMatch(/do not use/);
+    expect(r.stdout).toMatch(/Cd\s+= NOT CONVERGED/);
+    expect(r.stdout).not.toMatch(/Cd\s+= \d/);
+    expect(r.stderr).toMatch(/did not converge/);
+  });
+  it('--json keeps converged: false and exits 3', () => {
+    const r = efflux([...args, '--json']);
+    expect(r.code).toBe(3);
+    const j = JSON.parse(r.stdout);
+    expect(j.converged).toBe(false);
+    expect(j.window.samples).toBe(11);
+  });
+});
+
 describe('efflux fit refuses bad input with exit 2 and one line naming the problem', () => {
   const vessel = sd('backwash-tank-fb1.vessel.json');
   const write = (name: string, content: string | Uint8Array) => {

@@ -31,18 +31,18 @@ export function textReport(fit: FitJson): string {
   const f = fit as FitJson & Record<string, any>;
   const lines: string[] = [];
   const rule = '─'.repeat(72);
+  // An unconverged fit has numbers but no result: say so before anything a reader could quote.
+  const unconverged = f.converged === false;
+  if (unconverged) {
+    lines.push(`FIT DID NOT CONVERGE (solver: ${f.solver?.stopReason ?? 'stopped'}): do not use any number in this report.`);
+    lines.push('Try a longer window, fewer fitted terms (--fit-inflow, --fit-datum, --fit-exponent) or a vessel file that gives the sensor zero.');
+  }
   lines.push(`Drain test fit — ${f.vessel?.name ?? 'vessel'} (${f.vessel?.shape?.kind ?? ''})`);
   lines.push(rule);
-  const cd = f.dischargeCoefficient as Quantity & Record<string, number>;
-  const ea = f.effectiveAreaM2 as Quantity & { profileCi95?: [number, number] | null };
-  if (cd) {
-    const u = cd.standardUncertainty;
-    lines.push(`Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
-    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, the bore tolerance dominates' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
-  }
-  const ue = ea.standardUncertainty;
-  lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
-  lines.push(`                       95 % interval ${toU(ea.ci95[0], ue)} … ${toU(ea.ci95[1], ue)} m²` + (ea.profileCi95 ? `   profile: ${toU(ea.profileCi95[0], ue)} … ${toU(ea.profileCi95[1], ue)} m²` : ''));
+  if (unconverged) {
+    lines.push('Discharge coefficient  Cd    = NOT CONVERGED (the solver\'s last values below are for diagnosis only)');
+    lines.push('Effective area         Cd·a  = NOT CONVERGED');
+  } else headline(lines, f);
   lines.push('');
   const w = f.window as Record<string, any>;
   lines.push(`Window   ${sig(w.startS, 6)} s … ${sig(w.endS, 6)} s from the log's start, ${w.samples} samples` + (w.startTime ? ` (${w.startTime} … ${w.endTime})` : '') + (w.chosenBy ? `, chosen ${w.chosenBy}` : ''));
@@ -102,4 +102,18 @@ export function textReport(fit: FitJson): string {
   lines.push('Engineering estimate with the stated uncertainty, not a certification. Drain tests involve work at');
   lines.push('height, confined spaces and discharges: follow site procedures, local codes and licensed engineering practice.');
   return lines.join('\n') + '\n';
+}
+
+/** The Cd and Cd·a lines of a converged fit. */
+function headline(lines: string[], f: FitJson & Record<string, any>): void {
+  const cd = f.dischargeCoefficient as Quantity & Record<string, number>;
+  const ea = f.effectiveAreaM2 as Quantity & { profileCi95?: [number, number] | null };
+  if (cd) {
+    const u = cd.standardUncertainty;
+    lines.push(`Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
+    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, the bore tolerance dominates' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
+  }
+  const ue = ea.standardUncertainty;
+  lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
+  lines.push(`                       95 % interval ${toU(ea.ci95[0], ue)} … ${toU(ea.ci95[1], ue)} m²` + (ea.profileCi95 ? `   profile: ${toU(ea.profileCi95[0], ue)} … ${toU(ea.profileCi95[1], ue)} m²` : ''));
 }
