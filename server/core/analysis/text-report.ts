@@ -1,29 +1,11 @@
 import type { FitJson } from '../analysis-contract.js';
+import { sig, toU } from './format.js';
 
 /**
  * The readable fit report printed by `efflux fit` (and reused by the service): everything a
  * reviewer needs to judge the fit, from the JSON result alone so both always agree.
  */
 type Quantity = { value: number; standardUncertainty: number; ci95: [number, number]; coverageFactor?: number; expandedUncertainty?: number; effectiveDegreesOfFreedom?: number };
-
-const sig = (x: number | null | undefined, digits = 4): string => {
-  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  return a >= 1e-3 && a < 1e5 ? x.toPrecision(digits) : x.toExponential(digits - 1);
-};
-
-/** A value shown to the resolution of its uncertainty (two significant digits of u). */
-const toU = (x: number | null | undefined, u: number | null | undefined): string => {
-  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
-  if (!u || !Number.isFinite(u) || u <= 0) return sig(x, 6);
-  const a = Math.abs(x);
-  if (a !== 0 && (a < 1e-3 || a >= 1e5)) {
-    const digits = Math.max(2, Math.min(12, Math.floor(Math.log10(a)) - Math.floor(Math.log10(u)) + 2));
-    return x.toExponential(digits - 1);
-  }
-  return x.toFixed(Math.max(0, Math.min(12, 1 - Math.floor(Math.log10(u)))));
-};
 
 const pad = (s: string, w: number) => (s.length >= w ? s : s + ' '.repeat(w - s.length));
 
