@@ -1,16 +1,8 @@
 /**
- * Canonical JSON for hashing: object keys sorted by code unit, no whitespace, undefined members
- * dropped, numbers as JSON.stringify writes them (shortest round-trip form, deterministic in JS).
- * The same value gives the same text on every run, so a hash over it can be recomputed later.
+ * Canonical JSON for hashing (the audit chain, stored fits' result hashes): core's function, so
+ * the store and the report ids follow one set of rules. Before, the store kept its own copy, which
+ * differed only on function-valued members (null here, dropped in core); nothing the store hashes
+ * holds a function, and test/core/report/canonical-store.test.ts checks that core's output equals
+ * the old rules on numbers, unicode, nested arrays and undefined members, so existing chains verify.
  */
-export function canonicalJson(value: unknown): string {
-  if (value === null || typeof value !== 'object') {
-    if (typeof value === 'number' && !Number.isFinite(value)) return 'null';
-    const s = JSON.stringify(value);
-    return s === undefined ? 'null' : s;
-  }
-  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
-  const obj = value as Record<string, unknown>;
-  const keys = Object.keys(obj).filter((k) => obj[k] !== undefined).sort();
-  return `{${keys.map((k) => `${JSON.stringify(k)}:${canonicalJson(obj[k])}`).join(',')}}`;
-}
+export { canonicalJson } from '../core/report/canonical.js';

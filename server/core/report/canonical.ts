@@ -2,8 +2,8 @@
  * Canonical JSON: object keys sorted by code unit, no whitespace, undefined members dropped,
  * non-finite numbers written as null, numbers as JSON.stringify writes them (shortest round-trip
  * form). The same value gives the same text on every run, so a hash over it can be recomputed.
- * Same rules as the store's audit chain (server/store/canonical-json.ts); core keeps its own copy
- * because it imports nothing of the store.
+ * The store's audit chain and result hashes use this same function (server/store/canonical-json.ts
+ * re-exports it): changing these rules changes every stored hash, so old chains would not verify.
  */
 export function canonicalJson(value: unknown): string {
   if (value === null || typeof value !== 'object') {
