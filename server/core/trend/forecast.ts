@@ -1,5 +1,5 @@
 import { InputError } from '../errors.js';
-import { tQuantile } from './tquantile.js';
+import { tQuantile } from '../stats/index.js';
 import { DAY_MS, YEAR_MS, type TrendLine } from './trendline.js';
 
 export type ForecastStatus = 'forecast' | 'crossed' | 'not-significant' | 'away-from-threshold';

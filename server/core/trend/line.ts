@@ -1,6 +1,6 @@
 import { InputError } from '../errors.js';
 import { chiSquareSf } from './chisquare.js';
-import { tQuantile } from './tquantile.js';
+import { tQuantile } from '../stats/index.js';
 
 export interface LineUncertainty {
   uIntercept: number;
