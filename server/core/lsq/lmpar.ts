@@ -118,7 +118,7 @@ export function lmParameter(
  * Solve min ‖[R; D̃]·z − [qtb; 0]‖ with D̃ = Pᵀ·diag·P by Givens rotations (MINPACK qrsolv);
  * x = P·z. `diag` here is already the scaled sqrt(par)·D.
  */
-export function dampedSolve(
+function dampedSolve(
   n: number,
   R: Float64Array,
   ipvt: Int32Array,

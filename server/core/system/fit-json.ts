@@ -12,7 +12,7 @@ import { validateSystem, type SystemSpec } from './schema.js';
  * diagnostics, and enough to compute with later (the system as read, θ, the free parameters
  * and their covariance), so `steady` and `linearize` can take it in place of a system file.
  */
-export const SYSTEM_FIT_FORMAT = 'efflux-system-fit';
+const SYSTEM_FIT_FORMAT = 'efflux-system-fit';
 
 /** A logged inflow as used by the fit: which vessel, which file, how many readings bracket the span. */
 export interface InflowLogUse {
@@ -63,7 +63,7 @@ const fitFileSchema = z.object({
 });
 
 /** A SystemModel from a fit-system JSON document. */
-export function modelFromFitJson(value: unknown, fileName: string): { spec: SystemSpec; model: SystemModel } {
+function modelFromFitJson(value: unknown, fileName: string): { spec: SystemSpec; model: SystemModel } {
   const r = fitFileSchema.safeParse(value);
   if (!r.success) {
     const { field, message } = describeIssue(r.error.issues[0], value);
@@ -91,7 +91,7 @@ export function modelFromFitJson(value: unknown, fileName: string): { spec: Syst
 }
 
 /** A SystemModel from a system file whose vessels state their Cd·a (or Cd); no uncertainty. */
-export function modelFromSystem(spec: SystemSpec, fileName: string): SystemModel {
+function modelFromSystem(spec: SystemSpec, fileName: string): SystemModel {
   const network = buildNetwork(spec);
   const theta = new Float64Array(network.vessels.length * PER_VESSEL);
   network.vessels.forEach((v, i) => {

@@ -26,7 +26,7 @@ export interface IntegrateOptions {
 }
 
 /** Surface elevation at t = 0 from θ (reading plus sensor zero). */
-export function initialSurface(theta: Float64Array, i: number): number {
+function initialSurface(theta: Float64Array, i: number): number {
   return theta[i * PER_VESSEL + P.initialReading] + theta[i * PER_VESSEL + P.sensorZero];
 }
 

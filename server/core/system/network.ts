@@ -47,7 +47,7 @@ export const P = {
   /** Unknown constant inflow into the vessel (a passing valve), m³/s. */
   leak: 3,
 } as const;
-export const P_NAMES = ['effectiveAreaM2', 'initialReadingM', 'sensorZeroElevationM', 'leakInflowM3S'] as const;
+const P_NAMES = ['effectiveAreaM2', 'initialReadingM', 'sensorZeroElevationM', 'leakInflowM3S'] as const;
 
 export function parameterIndex(vessel: number, role: number): number {
   return vessel * PER_VESSEL + role;

@@ -10,7 +10,7 @@ import type { VesselNetwork } from './network.js';
  * make the sensitivities (and Newton's method) blow up where two levels equalise or a vessel
  * empties. 0.1 mm is far below any logger's resolution, so the law is unchanged where it is seen.
  */
-export const REGULAR_HEAD_M = 1e-4;
+const REGULAR_HEAD_M = 1e-4;
 
 export interface OutletFlow {
   /** Q/(Cd·a), m/s. */
@@ -23,7 +23,7 @@ export interface OutletFlow {
 }
 
 /** sqrt(2g·|Δ|)·sign(Δ), regularised near zero, and its slope. */
-export function headLaw(delta: number, g: number, out: { value: number; slope: number }): void {
+function headLaw(delta: number, g: number, out: { value: number; slope: number }): void {
   const a = Math.abs(delta);
   if (a >= REGULAR_HEAD_M) {
     const v = Math.sqrt(2 * g * a);

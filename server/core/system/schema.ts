@@ -11,7 +11,7 @@ import { validateVessel, type VesselSpec } from '../vessel/schema.js';
  * and how (free jet or submerged), plus the inflows. Each vessel's own fields go through the
  * vessel-file schema unchanged, so a vessel can be copied between the two kinds of file.
  */
-export const CONNECTIONS = ['free', 'submerged'] as const;
+const CONNECTIONS = ['free', 'submerged'] as const;
 export type Connection = (typeof CONNECTIONS)[number];
 
 /** The fields a vessel has only inside a system file. */

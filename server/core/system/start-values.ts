@@ -60,7 +60,7 @@ export function startValues(network: VesselNetwork, logs: readonly AlignedLog[],
   }
 }
 
-export function interpolate(ts: Float64Array, ys: Float64Array, t: number): number {
+function interpolate(ts: Float64Array, ys: Float64Array, t: number): number {
   const n = ts.length;
   if (t <= ts[0]) return ys[0];
   if (t >= ts[n - 1]) return ys[n - 1];

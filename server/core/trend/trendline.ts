@@ -30,11 +30,11 @@ export function yearsSince(originMs: number, ms: number): number {
   return (ms - originMs) / YEAR_MS;
 }
 
-export function valueOf(f: ApprovedFit, q: TrendQuantity): number {
+function valueOf(f: ApprovedFit, q: TrendQuantity): number {
   return q === 'effectiveArea' ? f.effectiveAreaM2 : f.dischargeCoefficient;
 }
 
-export function uncertaintyOf(f: ApprovedFit, q: TrendQuantity): number {
+function uncertaintyOf(f: ApprovedFit, q: TrendQuantity): number {
   return q === 'effectiveArea' ? f.effectiveAreaU : f.dischargeCoefficientU;
 }
 

@@ -8,7 +8,7 @@ import { crossFieldProblems } from './sanity.js';
 
 export { shapeSchema } from './shape-schema.js';
 
-export const OUTLET_TYPES = [
+const OUTLET_TYPES = [
   'sharp-edged',
   'square-edged-short-tube',
   'rounded',
@@ -82,7 +82,7 @@ export function parseVesselFile(text: string, fileName: string): VesselSpec {
   return validateVessel(value, fileName);
 }
 
-export const ASSUMED_WATER_TEMPERATURE_C = 20;
+const ASSUMED_WATER_TEMPERATURE_C = 20;
 
 /**
  * The liquid's density and where it came from, in this order: a density in the vessel file;
