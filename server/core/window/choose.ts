@@ -26,24 +26,37 @@ function checkInput(series: Pick<LevelSeries, 'timeS' | 'levelM' | 'sourceLine'>
   if (n < Math.max(minSamples, 20)) {
     throw new InputError(`the log has only ${n} readings; a drain window needs at least ${Math.max(minSamples, 20)}`, { field: 'levelM' });
   }
-  for (let i = 0; i < n; i++) {
-    if (!Number.isFinite(levelM[i]) || !Number.isFinite(timeS[i])) {
-      throw new InputError('reading is not a finite number', { line: sourceLine[i], field: Number.isFinite(timeS[i]) ? 'level' : 'time' });
-    }
-    if (i > 0 && !(timeS[i] > timeS[i - 1])) {
-      throw new InputError('times must increase from one reading to the next', { line: sourceLine[i], field: 'time' });
-    }
+  const bad = firstUnfit(timeS, levelM);
+  if (bad < 0) return;
+  if (!Number.isFinite(levelM[bad]) || !Number.isFinite(timeS[bad])) {
+    throw new InputError('reading is not a finite number', { line: sourceLine[bad], field: Number.isFinite(timeS[bad]) ? 'level' : 'time' });
   }
+  throw new InputError('times must increase from one reading to the next', { line: sourceLine[bad], field: 'time' });
 }
 
 // The passes over every reading are small functions of their own, so that in a fresh process
 // the JIT takes them up at once instead of compiling the whole chooser first.
 
+/** The first reading that is not finite or not later than the one before; -1 when none. */
+function firstUnfit(timeS: Float64Array, levelM: Float64Array): number {
+  for (let i = 0; i < levelM.length; i++) {
+    if (!Number.isFinite(levelM[i]) || !Number.isFinite(timeS[i])) return i;
+    if (i > 0 && !(timeS[i] > timeS[i - 1])) return i;
+  }
+  return -1;
+}
+
 /** [min, max] of the readings. */
 function range(levelM: Float64Array): [number, number] {
   let lo = Infinity;
   let hi = -Infinity;
-  for (let i = 0; i < levelM.length; i++) (lo = Math.min(lo, levelM[i])), (hi = Math.max(hi, levelM[i]));
+  // comparisons, not Math.min/max: no call per reading before the JIT has compiled this (the
+  // readings are finite here, so the two agree)
+  for (let i = 0; i < levelM.length; i++) {
+    const v = levelM[i];
+    if (v < lo) lo = v;
+    if (v > hi) hi = v;
+  }
   return [lo, hi];
 }
 
@@ -85,7 +98,7 @@ export function chooseDrainWindow(
   const spikeIdx = findSpikes(timeS, levelM, { ...options.spikes, scaleFloorM: options.spikes?.scaleFloorM ?? Math.max(q, noiseAll) });
   const excluded = new Uint8Array(n);
   for (const i of spikeIdx) excluded[i] = 1;
-  const clipping = findClipping(timeS, levelM, { resolutionM: q });
+  const clipping = findClipping(timeS, levelM, { resolutionM: q, rangeM: [lo, hi] });
   for (const r of clipping) excluded.fill(1, r.startIndex, r.endIndex + 1);
   // With nothing set aside the noise of the kept readings is the noise of all (the same numbers
   // in the same order); otherwise measured once here for the stuck-run test and reused below.

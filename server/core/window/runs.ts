@@ -18,6 +18,16 @@ function identicalRuns(levelM: Float64Array, minSamples: number, accept: (v: num
   return runs;
 }
 
+function extremes(levelM: Float64Array): [number, number] {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < levelM.length; i++) {
+    if (levelM[i] < lo) lo = levelM[i];
+    if (levelM[i] > hi) hi = levelM[i];
+  }
+  return [lo, hi];
+}
+
 function run(timeS: Float64Array, levelM: Float64Array, a: number, b: number, reason: string): SampleRun {
   return { startIndex: a, endIndex: b, startS: timeS[a], endS: timeS[b], samples: b - a + 1, levelM: levelM[a], reason };
 }
@@ -73,12 +83,7 @@ export function findClipping(timeS: Float64Array, levelM: Float64Array, options:
   if (n < 3) return [];
   const minSamples = options.minSamples ?? 5;
   const q = options.resolutionM ?? estimateResolution(levelM);
-  let lo = Infinity;
-  let hi = -Infinity;
-  for (let i = 0; i < n; i++) {
-    if (levelM[i] < lo) lo = levelM[i];
-    if (levelM[i] > hi) hi = levelM[i];
-  }
+  const [lo, hi] = options.rangeM ?? extremes(levelM);
   if (hi === lo) return [];
   const runs = identicalRuns(levelM, minSamples, (v) => v === hi || v === lo);
   if (runs.length === 0) return [];

@@ -58,6 +58,8 @@ export interface ClippingOptions {
   /** Shortest run pinned at the extreme (default 5). */
   minSamples?: number;
   resolutionM?: number;
+  /** [lowest, highest] reading, when the caller has found them already. */
+  rangeM?: [number, number];
 }
 
 export interface CandidateOptions {
