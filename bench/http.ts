@@ -13,7 +13,7 @@ import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('../', import.meta.url));
 const seconds = Number(process.argv[2] ?? 8);
-const shared = join(root, '../shared/bench');
+const shared = process.env.EFFLUX_SHARED ? join(process.env.EFFLUX_SHARED, 'bench') : join(root, '../shared/bench'); // as bench/run.ts
 
 async function startServer() {
   const env = { ...process.env, EFFLUX_DATA_DIR: mkdtempSync(join(tmpdir(), 'efflux-bench-')), PORT: '0', EFFLUX_DEMO: '0', EFFLUX_LOG: 'silent' };

@@ -11,7 +11,9 @@ import { fileURLToPath } from 'node:url';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = resolve(here, existsSync(join(here, '..', 'package.json')) ? '..' : '../..');
-const shared = resolve(root, '..', 'shared', 'bench');
+// The shared folder holds the benchmark workloads: EFFLUX_SHARED, else ../shared beside the project.
+const sharedRoot = process.env.EFFLUX_SHARED ? resolve(process.env.EFFLUX_SHARED) : resolve(root, '..', 'shared');
+const shared = join(sharedRoot, 'bench');
 const cli = join(root, 'bin', 'efflux.js');
 const runs = Number(process.env.BENCH_RUNS ?? 5);
 
@@ -44,8 +46,21 @@ function fitOnce(name: string): Row {
   };
 }
 
+const USAGE = `usage: npm run bench [-- --help]
+
+Fits the shared benchmark logs (vcyl-86400, hcyl-86400) in fresh processes, then runs the reader,
+drain-window, trend and HTTP benchmarks. Settings come from the environment:
+  EFFLUX_SHARED=PATH     the shared folder holding bench/ (default ../shared beside the project)
+  BENCH_RUNS=N           fresh processes per log (default 5)
+  BENCH_HTTP=0           skip the HTTP benchmark;  BENCH_HTTP_SECONDS=S  its length (default 6)
+`;
+if (process.argv.includes('--help') || process.argv.includes('-h')) {
+  process.stdout.write(USAGE);
+  process.exit(0);
+}
 if (!existsSync(shared)) {
-  console.error(`bench: ${shared} not found (the shared benchmark workloads sit beside the project)`);
+  const from = process.env.EFFLUX_SHARED ? `EFFLUX_SHARED=${process.env.EFFLUX_SHARED}` : 'the default, ../shared beside the project';
+  console.error(`bench: no benchmark folder at ${shared} (from ${from}); set EFFLUX_SHARED to the shared folder`);
   process.exit(2);
 }
 console.log(`efflux fit --json on the shared benchmark logs, ${runs} fresh processes each: median (min); a shared machine's load shows in the spread`);
@@ -77,6 +92,6 @@ for (const [script, label] of [
 // HTTP throughput on loopback (a real server in a temp folder); BENCH_HTTP=0 skips it
 if (process.env.BENCH_HTTP !== '0' && existsSync(join(root, 'bench', 'http.ts'))) {
   console.log('\nHTTP on loopback (autocannon):');
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'bench', 'http.ts'), process.env.BENCH_HTTP_SECONDS ?? '6'], { stdio: 'inherit', cwd: root });
+  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'bench', 'http.ts'), process.env.BENCH_HTTP_SECONDS ?? '6'], { stdio: 'inherit', cwd: root, env: { ...process.env, EFFLUX_SHARED: sharedRoot } });
   if (r.status !== 0) console.log(`  (http.ts exited ${r.status})`);
 }

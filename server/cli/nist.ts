@@ -1,7 +1,8 @@
 /**
  * `node dist/server/cli/nist.js [--json] [--dir PATH]`: fit all NIST StRD nonlinear-regression
  * datasets from both starts and print the agreement with the certified values (LRE), as a table
- * or as JSON. Default folder: ../shared/reference/nist-strd beside the project root.
+ * or as JSON. Folder: --dir, else $EFFLUX_SHARED/reference/nist-strd, else
+ * ../shared/reference/nist-strd beside the project root.
  */
 import { existsSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
@@ -43,16 +44,36 @@ function table(runs: StrdRun[], totalMs: number): string {
   return lines.join('\n');
 }
 
+const USAGE = `usage: npm run nist -- [--json] [--dir PATH]
+
+Fits every NIST StRD nonlinear-regression dataset from both starts and prints the agreement with
+the certified values (LRE), as a table or (--json) as JSON.
+  --dir PATH   the folder of StRD .dat files
+The folder is --dir if given, else $EFFLUX_SHARED/reference/nist-strd when EFFLUX_SHARED is set,
+else ../shared/reference/nist-strd beside the project.
+`;
+
 export function main(argv: string[]): number {
   let json = false;
-  let dir = resolve(projectRoot(), '..', 'shared', 'reference', 'nist-strd');
+  const sharedFromEnv = process.env.EFFLUX_SHARED;
+  let dir = resolve(sharedFromEnv ? resolve(sharedFromEnv) : resolve(projectRoot(), '..', 'shared'), 'reference', 'nist-strd');
+  let from = sharedFromEnv ? `EFFLUX_SHARED=${sharedFromEnv}` : 'the default, ../shared beside the project';
   for (let k = 0; k < argv.length; k++) {
     if (argv[k] === '--json') json = true;
-    else if (argv[k] === '--dir' && argv[k + 1] !== undefined) dir = resolve(argv[++k]);
-    else {
-      process.stderr.write(`nist: unknown argument ${argv[k]}\nusage: nist [--json] [--dir PATH]\n`);
+    else if (argv[k] === '--help' || argv[k] === '-h') {
+      process.stdout.write(USAGE);
+      return 0;
+    } else if (argv[k] === '--dir' && argv[k + 1] !== undefined) {
+      dir = resolve(argv[++k]);
+      from = '--dir';
+    } else {
+      process.stderr.write(`nist: unknown argument ${argv[k]}\n${USAGE}`);
       return 2;
     }
+  }
+  if (!existsSync(dir)) {
+    process.stderr.write(`nist: no StRD folder at ${dir} (from ${from}); give --dir PATH or set EFFLUX_SHARED to the shared folder\n`);
+    return 2;
   }
   try {
     const datasets = loadStrdDirectory(dir);
