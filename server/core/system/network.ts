@@ -1,6 +1,7 @@
 import { makeShape, type VesselShape } from '../geometry/index.js';
 import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import type { Connection, SystemSpec } from './schema.js';
+import { interpolateLinear } from './interpolate.js';
 
 /**
  * The connected vessels as the equations see them. Vessel i's state is its surface elevation η_i
@@ -87,18 +88,5 @@ export function knownInflows(inflows: readonly InflowInput[], t: number, out: Fl
 }
 
 function inflowAt(f: InflowInput, t: number): number {
-  if (f.constantM3S !== undefined) return f.constantM3S;
-  const ts = f.timeS!;
-  const q = f.flowM3S!;
-  const n = ts.length;
-  if (t <= ts[0]) return q[0];
-  if (t >= ts[n - 1]) return q[n - 1];
-  let lo = 0;
-  let hi = n - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (ts[mid] <= t) lo = mid;
-    else hi = mid;
-  }
-  return q[lo] + ((q[hi] - q[lo]) * (t - ts[lo])) / (ts[hi] - ts[lo]);
+  return f.constantM3S !== undefined ? f.constantM3S : interpolateLinear(f.timeS!, f.flowM3S!, t);
 }

@@ -1,5 +1,6 @@
 import { knownInflows, P, PER_VESSEL, type InflowInput, type VesselNetwork } from './network.js';
 import type { AlignedLog } from './align.js';
+import { interpolateLinear } from './interpolate.js';
 
 /**
  * Start values for the joint fit from a mass balance over the logged span, upstream first:
@@ -14,7 +15,7 @@ export function startValues(network: VesselNetwork, logs: readonly AlignedLog[],
   const zs = (i: number) => theta[i * PER_VESSEL + P.sensorZero];
   const surfaceAt = (i: number, t: number): number => {
     const l = byVessel.get(i)!;
-    return interpolate(l.timeS, l.levelM, t) + zs(i);
+    return interpolateLinear(l.timeS, l.levelM, t) + zs(i);
   };
   for (let i = 0; i < n; i++) theta[i * PER_VESSEL + P.initialReading] = byVessel.get(i)!.levelM[0];
   const span = Math.max(...logs.map((l) => l.timeS[l.timeS.length - 1]));
@@ -60,16 +61,3 @@ export function startValues(network: VesselNetwork, logs: readonly AlignedLog[],
   }
 }
 
-function interpolate(ts: Float64Array, ys: Float64Array, t: number): number {
-  const n = ts.length;
-  if (t <= ts[0]) return ys[0];
-  if (t >= ts[n - 1]) return ys[n - 1];
-  let lo = 0;
-  let hi = n - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (ts[mid] <= t) lo = mid;
-    else hi = mid;
-  }
-  return ys[lo] + ((ys[hi] - ys[lo]) * (t - ts[lo])) / (ts[hi] - ts[lo]);
-}
