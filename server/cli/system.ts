@@ -143,7 +143,8 @@ export async function runFitSystem(argv: string[]): Promise<number> {
     for (const v of fit.vessels) lines.push(`  log ${v.fileName} (${v.id}): ${v.samples} samples, noise ${(v.noiseM * 1000).toFixed(2)} mm, lag-1 ρ ${v.lag1Autocorrelation.toFixed(2)}`);
     for (const f of inflowLogs) lines.push(`  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`);
     for (const w of json.warnings) lines.push(`  warning: ${w}`);
-    lines.push('Engineering estimates with stated uncertainty, not certification.');
+    lines.push('Engineering estimates with stated uncertainty, not certification. Drain tests involve work at height,');
+    lines.push('confined spaces and discharges: follow site procedures, local codes and licensed engineering practice.');
     process.stdout.write(lines.join('\n') + '\n');
     return EXIT_OK;
   });
