@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../server/core/errors.js';
 import { GOOD_LOG, multipart, testApp, VESSEL_FILE, type TestApp } from './helpers.js';
+import { seededRandom } from '../../server/core/drain/prng.js';
 
 const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
@@ -130,9 +131,10 @@ describe('POST /api/vessels/:id/tests', () => {
   });
 
   it('50 concurrent uploads are all stored, none lost, the chain intact', async () => {
+    const delays = seededRandom(50);
     const t = await withVessel({
       analyze: async (req) => {
-        await new Promise((r) => setTimeout(r, Math.random() * 5)); // finish out of order
+        await new Promise((r) => setTimeout(r, delays.uniform() * 5)); // finish out of order, reproducibly
         return (await import('./fake-analyze.js')).analyzeDrainTest(req);
       },
     });
