@@ -6,17 +6,16 @@
 import { InputError } from '../errors.js';
 import { dropRepeats, findGaps, sortByTime } from './clean.js';
 import { collect, countLines, type Collected } from './collect.js';
-import { newParts, scanDateTime } from './datetime.js';
-import { decodeHead, detectEncoding, NotUtf8, type EncodingGuess } from './decode.js';
+import { detectEncoding, NotUtf8, type EncodingGuess } from './decode.js';
 import { findLayout, type Layout } from './layout.js';
-import { DEFAULT_MAX_BYTES, type DateOrder, type ReadOptions } from './options.js';
+import { DEFAULT_MAX_BYTES, type ReadOptions } from './options.js';
 import { makePlan, type Plan } from './plan.js';
 import { temperaturesC, toLevelM, type BaroSeries } from './quantity.js';
-import { forEachRow, type RowSource } from './rows.js';
+import type { RowSource } from './rows.js';
 import type { LevelSeries, ReadNote } from './series.js';
 import { ZoneResolver } from './zone.js';
+import { decideDateOrder, readTextHead } from './head.js';
 
-const HEAD_BYTES = 256 * 1024;
 
 interface Raw {
   layout: Layout;
@@ -28,38 +27,11 @@ interface Raw {
   warnings: ReadNote[];
 }
 
-function decideOrder(rs: RowSource, plan: Plan, notes: ReadNote[]): DateOrder {
-  const tp = plan.time;
-  const c = tp.kind === 'text' ? tp.col : tp.kind === 'date+clock' ? tp.dateCol : -1;
-  const p = newParts();
-  let dmy = 0, mdy = 0, differ = false;
-  forEachRow(rs, (r) => {
-    if (c >= r.count || !scanDateTime(r.src[c], r.start[c], r.end[c], p) || !p.hasDate || p.yearFirst) return;
-    if (p.n1 > 12 && !dmy) dmy = r.line;
-    if (p.n2 > 12 && !mdy) mdy = r.line;
-    if (p.n1 !== p.n2) differ = true;
-  });
-  const where = { file: rs.fileName, field: plan.columns[c]?.header };
-  if (dmy && mdy) throw new InputError(`dates are day-first on line ${dmy} and month-first on line ${mdy}; give --date-order`, where);
-  if (dmy || mdy) {
-    notes.push({ code: 'date-order', message: `dates are ${dmy ? `day-first: line ${dmy}` : `month-first: line ${mdy}`} has a ${dmy ? 'first' : 'second'} number above 12` });
-    return dmy ? 'dmy' : 'mdy';
-  }
-  if (!differ) {
-    notes.push({ code: 'date-order', message: 'day and month are the same number on every row: the date order does not matter' });
-    return 'dmy';
-  }
-  throw new InputError('cannot tell day-first from month-first dates: no day above 12 in the file; give --date-order (dmy or mdy)', where);
-}
 
 function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: EncodingGuess, forBaro: boolean): Raw {
   const notes: ReadNote[] = [{ code: 'encoding', message: `text encoding ${guess.encoding}: ${guess.reason}` }];
   const warnings: ReadNote[] = [];
-  let head = decodeHead(bytes, guess, HEAD_BYTES, fileName);
-  if (head.trim() === '') throw new InputError('the file holds no text (only blanks)', { file: fileName });
-  const newline = head.indexOf('\n') < 0 && head.indexOf('\r') >= 0 ? '\r' : '\n';
-  head = head.replace(/\r\n?/g, '\n');
-  if (guess.bomBytes + HEAD_BYTES < bytes.length) head = head.slice(0, head.lastIndexOf('\n') + 1);
+  const { head, newline } = readTextHead(bytes, fileName, guess);
   const layout = findLayout(head, fileName, opts);
   notes.push(...layout.notes);
   const plan = makePlan(layout, opts, fileName, forBaro);
@@ -67,7 +39,7 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   warnings.push(...plan.warnings);
   const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
   const tp = plan.time;
-  if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideOrder(rs, plan, notes);
+  if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideDateOrder(rs, plan, notes);
   const dated = tp.kind === 'text' || tp.kind === 'date+clock';
   const zone = opts.tz !== undefined && dated ? new ZoneResolver(opts.tz, fileName) : null;
   const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes));

@@ -1,13 +1,13 @@
 import { InputError } from '../errors.js';
 import { dropRepeats, sortByTime } from '../ingest/clean.js';
 import { collect, countLines } from '../ingest/collect.js';
-import { newParts, scanDateTime } from '../ingest/datetime.js';
-import { decodeHead, detectEncoding, NotUtf8, type EncodingGuess } from '../ingest/decode.js';
+import { detectEncoding, NotUtf8, type EncodingGuess } from '../ingest/decode.js';
+import { decideDateOrder, readTextHead } from '../ingest/head.js';
 import { readHeader } from '../ingest/header.js';
 import { findLayout } from '../ingest/layout.js';
 import { DEFAULT_MAX_BYTES, type DateOrder } from '../ingest/options.js';
 import { makePlan } from '../ingest/plan.js';
-import { forEachRow, type RowSource } from '../ingest/rows.js';
+import type { RowSource } from '../ingest/rows.js';
 import { ZoneResolver } from '../ingest/zone.js';
 import { flowFactorToM3s } from '../units/index.js';
 
@@ -43,7 +43,6 @@ export interface FlowSeries {
   warnings: string[];
 }
 
-const HEAD_BYTES = 256 * 1024;
 const FLOW_WORDS = ['flow', 'inflow', 'q', 'rate', 'pump', 'discharge', 'feed'];
 
 /** A flow unit in the header: in brackets (as ingest reads it) or as the last word. */
@@ -68,26 +67,9 @@ function pickFlowColumn(names: string[], opts: FlowLogOptions, fileName: string)
   return i;
 }
 
-/** Day-first or month-first from the whole file, as the level reader decides it. */
-function decideOrder(rs: RowSource, col: number): DateOrder {
-  const p = newParts();
-  let dmy = 0, mdy = 0;
-  forEachRow(rs, (r) => {
-    if (col >= r.count || !scanDateTime(r.src[col], r.start[col], r.end[col], p) || !p.hasDate || p.yearFirst) return;
-    if (p.n1 > 12 && !dmy) dmy = r.line;
-    if (p.n2 > 12 && !mdy) mdy = r.line;
-  });
-  if (dmy && !mdy) return 'dmy';
-  if (mdy && !dmy) return 'mdy';
-  throw new InputError('cannot tell day-first from month-first dates; give the date order', { file: rs.fileName });
-}
 
 function readWith(bytes: Uint8Array, fileName: string, opts: FlowLogOptions, guess: EncodingGuess): FlowSeries {
-  let head = decodeHead(bytes, guess, HEAD_BYTES, fileName);
-  if (head.trim() === '') throw new InputError('the file holds no text (only blanks)', { file: fileName });
-  const newline = head.indexOf('\n') < 0 && head.indexOf('\r') >= 0 ? '\r' : '\n';
-  head = head.replace(/\r\n?/g, '\n');
-  if (guess.bomBytes + HEAD_BYTES < bytes.length) head = head.slice(0, head.lastIndexOf('\n') + 1);
+  const { head, newline } = readTextHead(bytes, fileName, guess);
   const layout = findLayout(head, fileName, opts);
   const fc = pickFlowColumn(layout.names, opts, fileName);
   const column = layout.names[fc] ?? `column ${fc + 1}`;
@@ -100,7 +82,7 @@ function readWith(bytes: Uint8Array, fileName: string, opts: FlowLogOptions, gue
   const plan = makePlan(layout, { timeColumn: opts.timeColumn, levelColumn: fc + 1, unit: 'm', dateOrder: opts.dateOrder, quantity: 'level' }, fileName);
   const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
   const tp = plan.time;
-  if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideOrder(rs, tp.kind === 'text' ? tp.col : tp.dateCol);
+  if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideDateOrder(rs, plan, []);
   const dated = tp.kind === 'text' || tp.kind === 'date+clock';
   const zone = opts.tz !== undefined && dated ? new ZoneResolver(opts.tz, fileName) : null;
   const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes));
