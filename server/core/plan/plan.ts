@@ -162,8 +162,9 @@ function contextFor(vessel: VesselSpec, req: PlanRequest): Context {
 }
 
 function checkLevel(ctx: Context, levelM: number, field: string): void {
-  if (!(levelM > ctx.outletLevelM)) throw new InputError(`${field} ${levelM} m is not above the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`, { field });
-  if (levelM + ctx.zs > ctx.setting.shape.heightM + 1e-9) throw new InputError(`${field} ${levelM} m is above the vessel's top`, { field });
+  const what = field === 'startLevelM' ? 'the start level' : 'the level';
+  if (!(levelM > ctx.outletLevelM)) throw new InputError(`${what} ${levelM} m is not above the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`, { field });
+  if (levelM + ctx.zs > ctx.setting.shape.heightM + 1e-9) throw new InputError(`${what} ${levelM} m is above the vessel's top (${(ctx.setting.shape.heightM - ctx.zs).toFixed(3)} m as a level)`, { field });
 }
 
 interface WindowGeometry {
@@ -372,7 +373,7 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
       recommendation = recommend(ctx, allowed);
       const possible = recommendation.shortest !== null;
       let reason: string;
-      if (possible) reason = `the target ${label} ${pct(relative)} leaves ${pct(allowed)} for the fit's scatter after ${pct(floor)} of type B`;
+      if (possible) reason = floor > 0 ? `the target ${label} ${pct(relative)} leaves ${pct(allowed)} for the fit's scatter after ${pct(floor)} of type B` : `no type B input is stated for ${label}: the fit's scatter may take all of ${pct(relative)}`;
       else if (recommendation.sampleIntervalNeededS !== null)
         reason = `even a full drain from the highest fill (${ctx.maxStartLevelM.toFixed(3)} m) misses ${label} ${pct(relative)} at ${req.sensor.sampleIntervalS} s sampling; sampling every ${sig(recommendation.sampleIntervalNeededS)} s would meet it if the noise per reading stayed the same`;
       else reason = `the target ${label} ${pct(relative)} cannot be met with this sensor from the highest fill (${ctx.maxStartLevelM.toFixed(3)} m)`;
@@ -411,7 +412,7 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
     vessel: { name: vessel.name, site: vessel.site ?? null },
     assumptions: {
       expectedCd: ctx.cd,
-      expectedCdSource: req.expectedCd !== undefined ? 'given' : `usual value for a ${vessel.outlet.type ?? 'other'} outlet (from memory of textbook values)`,
+      expectedCdSource: req.expectedCd !== undefined ? 'given' : `usual value for a ${vessel.outlet.type ?? 'other'} outlet, from memory of textbook values`,
       usualCdBand: ctx.band,
       nominalAreaM2: nominalAreaM2(vessel.outlet.boreM),
       effectiveAreaM2: ctx.cdA,
