@@ -34,6 +34,8 @@ export function serveConfig(env = process.env) {
     uploadLimitBytes: intOr(env.EFFLUX_UPLOAD_LIMIT_MB, 40, 'EFFLUX_UPLOAD_LIMIT_MB') * 1024 * 1024,
     requestTimeoutMs: intOr(env.EFFLUX_REQUEST_TIMEOUT_S, 120, 'EFFLUX_REQUEST_TIMEOUT_S') * 1000,
     analysisTimeoutMs: intOr(env.EFFLUX_ANALYSIS_TIMEOUT_S, 120, 'EFFLUX_ANALYSIS_TIMEOUT_S') * 1000,
+    /** Least seconds between two refits of a live test. */
+    liveRefitMs: intOr(env.EFFLUX_LIVE_REFIT_S, 3, 'EFFLUX_LIVE_REFIT_S') * 1000,
     workers: env.EFFLUX_WORKERS ? intOr(env.EFFLUX_WORKERS, 1, 'EFFLUX_WORKERS') : undefined,
     /** For tests and benchmarks only: a module exporting analyzeDrainTest instead of the engine. */
     analyzeModule: env.EFFLUX_ANALYZE_MODULE,

@@ -39,6 +39,8 @@ import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
 import { reportRoutes } from './routes/reports.js';
 import { workbenchRoutes } from './routes/workbench.js';
+import { planRoutes } from './routes/plan.js';
+import { liveRoutes } from './routes/live.js';
 
 export interface AppOptions {
   store: Store;
@@ -64,6 +66,8 @@ export interface AppOptions {
   /** Status-change notices: a notifier the caller owns, or webhook addresses for one the app owns (closed with it). */
   notifier?: Notifier;
   webhooks?: readonly string[];
+  /** Least time between two refits of a live test (default 3 s). */
+  liveRefitMs?: number;
   /** The trend's "now", epoch ms (tests inject a fixed time). */
   clockMs?: () => number;
 }
@@ -210,6 +214,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(reportRoutes);
   await app.register(workbenchRoutes);
   await app.register(systemRoutes);
+  await app.register(planRoutes);
+  await app.register(liveRoutes, { limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT, refitMs: opts.liveRefitMs });
   app.get(
     '/api/openapi.json',
     { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },

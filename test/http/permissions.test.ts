@@ -52,6 +52,13 @@ const TABLE: Record<string, Rule> = {
   'POST /api/systems/fit': TECH,
   'POST /api/systems/steady': ALL,
   'POST /api/systems/linearize': ALL,
+  'POST /api/vessels/:id/plan': ALL,
+  'POST /api/vessels/:id/live': TECH,
+  'GET /api/live/:id': ALL,
+  'POST /api/live/:id/rows': TECH,
+  'GET /api/live/:id/events': ALL,
+  'POST /api/live/:id/close': TECH,
+  'DELETE /api/live/:id': TECH,
 };
 
 function ruleFor(method: string, url: string): Rule | undefined {

@@ -31,8 +31,8 @@ export interface PreparedTest {
   density: { value: number; source: string };
 }
 
-/** Read the log and choose the window: everything `efflux inspect` shows. */
-export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
+/** Read the log into SI with the vessel's sensor and fluid (no window yet): the live page draws this as rows arrive. */
+export function readTestSeries(request: AnalysisRequest): { vessel: VesselSpec; series: LevelSeries; density: { value: number; source: string }; gravity: number } {
   const vesselFile = request.vesselFileName ?? 'vessel';
   const vessel = validateVessel(request.vessel, vesselFile);
   const settings = request.settings ?? {};
@@ -55,6 +55,13 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
     zeroElevationM: vessel.sensor?.zeroElevationM,
     gravityMS2: gravity,
   });
+  return { vessel, series, density, gravity };
+}
+
+/** Read the log and choose the window: everything `efflux inspect` shows. */
+export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
+  const { vessel, series, density, gravity } = readTestSeries(request);
+  const settings = request.settings ?? {};
   const fromTop = series.columns.some((c) => c.role === 'distance-from-top');
   const knownSensorZeroM = vessel.sensor?.zeroElevationM ?? (fromTop ? 0 : null);
   const setting: DrainSetting = { shape: makeShape(vessel.shape), outletElevationM: vessel.outlet.elevationM, gravity };
