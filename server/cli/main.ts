@@ -19,6 +19,7 @@ const COMMANDS: Record<string, Command> = {
   linearize: { summary: 'state-space model (A, B) and time constants about an operating point', load: async () => ({ run: (await import('./system.js')).runLinearize }) },
   predict: { summary: 'connected vessels: levels after a time, or the time to drain to a level, with 95 % intervals', load: async () => ({ run: (await import('./system.js')).runPredict }) },
   plan: { summary: 'plan a drain test: drain time, volume, peak flow, expected u of Cd·a and Cd, least test for a target', load: () => loadModule('plan') },
+  watch: { summary: 'tail a growing logger file into a live drain test on a service', load: () => loadModule('watch') },
   serve: { summary: 'start the service (API and web workbench)', load: () => loadModule('serve') },
   token: { summary: 'create an API token: token create --role ROLE --name NAME', load: () => loadModule('token') },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
