@@ -9,6 +9,8 @@ import { auditPage } from './pages/audit.js';
 import { fitPage } from './pages/fit.js';
 import { fleetPage } from './pages/fleet.js';
 import { newTestPage } from './pages/new-test.js';
+import { liveOpenPage, livePage } from './pages/live.js';
+import { planPage } from './pages/plan.js';
 import { signInPage } from './pages/sign-in.js';
 import { systemsPage } from './pages/systems.js';
 import { vesselPage } from './pages/vessel.js';
@@ -25,6 +27,9 @@ const routes: [RegExp, Page][] = [
   [/^#?\/?$/, fleetPage],
   [/^#\/vessels\/(\d+)$/, vesselPage],
   [/^#\/vessels\/(\d+)\/new-test$/, newTestPage],
+  [/^#\/vessels\/(\d+)\/plan$/, planPage],
+  [/^#\/vessels\/(\d+)\/live$/, liveOpenPage],
+  [/^#\/live\/([0-9a-f-]{36})$/, livePage],
   [/^#\/fits\/(\d+)$/, fitPage],
   [/^#\/systems$/, systemsPage],
   [/^#\/audit$/, auditPage],

@@ -41,7 +41,7 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
 
   main.append(
     h('nav', { class: 'crumbs', 'aria-label': 'Where you are' }, h('a', { href: '#/' }, 'Fleet'), ' › ', v.name),
-    h('div', { class: 'title-row' }, h('h1', {}, v.name), canUpload(user) ? h('a', { href: `#/vessels/${id}/new-test`, class: 'button primary' }, 'New drain test') : null),
+    h('div', { class: 'title-row' }, h('h1', {}, v.name), h('span', { class: 'title-actions' }, h('a', { href: `#/vessels/${id}/plan`, class: 'button' }, 'Plan a test'), ' ', canUpload(user) ? h('a', { href: `#/vessels/${id}/live`, class: 'button' }, 'Live test') : null, ' ', canUpload(user) ? h('a', { href: `#/vessels/${id}/new-test`, class: 'button primary' }, 'New drain test') : null)),
     h('p', { class: 'lede' }, `${v.site} · vessel file revision ${v.revision}`, typeof spec.notes === 'string' ? ` · ${spec.notes}` : ''),
   );
 
