@@ -64,7 +64,8 @@ export interface LiveState {
   testId: number | null;
   fitId: number | null;
   latest: LiveFit | null;
-  history: { elapsedS: number; value: number | null; u: number | null; targetRelative: number | null }[];
+  /** After each refit: the target's quantity (Cd or Cd·a) with its expanded uncertainty U and u_r. */
+  history: { elapsedS: number; rows: number; value: number | null; expandedUncertainty: number | null; relative: number | null }[];
   enoughSince: string | null;
 }
 
@@ -269,7 +270,8 @@ export class LiveTests {
     if (s.state.status !== 'open') return;
     fit.at = new Date(this.now()).toISOString();
     s.state.latest = fit;
-    s.state.history.push({ elapsedS, value: fit.cd?.value ?? fit.effectiveArea?.value ?? null, u: fit.cd?.expandedUncertainty ?? null, targetRelative: fit.targetRelative });
+    const q = s.state.target.quantity === 'discharge-coefficient' ? fit.cd : fit.effectiveArea;
+    s.state.history.push({ elapsedS, rows, value: q?.value ?? null, expandedUncertainty: q?.expandedUncertainty ?? null, relative: q?.relativeStandardUncertainty ?? null });
     if (fit.enough && !s.state.enoughSince) s.state.enoughSince = fit.at;
     this.emit(s, { type: 'fit', fit });
     if (s.state.rows !== s.fittedRows) this.scheduleRefit(s);

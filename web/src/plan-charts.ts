@@ -108,32 +108,56 @@ export function liveChart(el: HTMLElement): LiveChart {
   };
 }
 
-export interface NarrowingChart {
-  update(points: { elapsedS: number; percent: number | null }[], targetPercent: number): void;
+export interface NarrowingPoint {
+  elapsedS: number;
+  value: number | null;
+  expandedUncertainty: number | null;
 }
 
-/** u_r of the target's quantity after each refit, with the target as a flat line. */
-export function narrowingChart(el: HTMLElement, label: string): NarrowingChart {
-  const height = 220;
+export interface NarrowingChart {
+  update(points: NarrowingPoint[], target: { relative: number; coverageFactor: number } | null): void;
+}
+
+/**
+ * The target's quantity (Cd or Cd·a) after each refit with its ±U band, narrowing as data come
+ * in, and the target as two dashed lines at the latest value × (1 ± k·target).
+ */
+export function narrowingChart(el: HTMLElement, label: string, digits: number): NarrowingChart {
+  const height = 240;
+  const fmt = (_u: uPlot, v: number | null) => (v === null ? '—' : v.toPrecision(digits));
   const u = new uPlot(
     {
       width: widthOf(el),
       height,
-      scales: { x: { time: false }, y: { range: (_u, _min, max) => [0, Math.max(max, 1e-6) * 1.1] } },
-      axes: [axis('time since the live test was opened (min)', { values: minutes }), axis(`${label} (%)`)],
+      scales: { x: { time: false } },
+      axes: [axis('time since the live test was opened (s)'), axis(label, { size: 70, values: (_u, t) => t.map((v) => v.toPrecision(digits)) })],
       series: [
         { label: 'since opening (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
-        { label: `${label} (%)`, stroke: COLOURS.residual, width: 2, points: { show: true, size: 5 }, spanGaps: true },
-        { label: 'target (%)', stroke: COLOURS.approved, width: 2, dash: [6, 4] },
+        { label, stroke: COLOURS.fitted, width: 2, points: { show: true, size: 5 }, value: fmt },
+        { label: '+U', stroke: COLOURS.residual, width: 1, value: fmt },
+        { label: '−U', stroke: COLOURS.residual, width: 1, value: fmt },
+        { label: 'target +', stroke: COLOURS.approved, width: 2, dash: [6, 4], value: fmt },
+        { label: 'target −', stroke: COLOURS.approved, width: 2, dash: [6, 4], value: fmt },
       ],
+      bands: [{ series: [2, 3], fill: COLOURS.band }],
     },
-    [[], [], []],
+    [[], [], [], [], [], []],
     el,
   );
   follow(u, el, height);
   return {
-    update(points, targetPercent) {
-      u.setData([points.map((p) => p.elapsedS), points.map((p) => p.percent), points.map(() => targetPercent)] as uPlot.AlignedData);
+    update(points, target) {
+      const last = [...points].reverse().find((p) => p.value !== null);
+      const hi = last && target ? last.value! * (1 + target.coverageFactor * target.relative) : null;
+      const lo = last && target ? last.value! * (1 - target.coverageFactor * target.relative) : null;
+      u.setData([
+        points.map((p) => p.elapsedS),
+        points.map((p) => p.value),
+        points.map((p) => (p.value === null || p.expandedUncertainty === null ? null : p.value + p.expandedUncertainty)),
+        points.map((p) => (p.value === null || p.expandedUncertainty === null ? null : p.value - p.expandedUncertainty)),
+        points.map(() => hi),
+        points.map(() => lo),
+      ] as uPlot.AlignedData);
     },
   };
 }

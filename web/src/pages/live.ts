@@ -33,7 +33,7 @@ interface LiveState {
   status: string;
   target: { quantity: string; relativeStandardUncertainty: number };
   latest: LiveFit | null;
-  history: { elapsedS: number; targetRelative: number | null }[];
+  history: { elapsedS: number; value: number | null; expandedUncertainty: number | null; relative: number | null }[];
   testId: number | null;
   fitId: number | null;
 }
@@ -90,7 +90,8 @@ export async function livePage({ user, params, main }: PageContext): Promise<voi
   const message = h('p', { class: 'live-message' });
   const enough = h('div', { class: 'live-enough', role: 'status', 'aria-live': 'assertive' });
   const readingsEl = h('div', { class: 'chart live-chart', role: 'img', 'aria-label': 'Readings as they arrive, with the fitted curve' });
-  const narrowingEl = h('div', { class: 'chart live-narrowing', role: 'img', 'aria-label': `${label} after each refit, with the target` });
+  const what = first.target.quantity === 'effective-area' ? 'Cd·a (m²)' : 'Cd';
+  const narrowingEl = h('div', { class: 'chart live-narrowing', role: 'img', 'aria-label': `${what} ± U after each refit, with the target` });
   const done = h('div', { 'aria-live': 'polite' });
   const closeButton = canUpload(user) ? h('button', { type: 'button', class: 'primary' }, 'Close and store the test') : null;
   const abandonButton = canUpload(user) ? h('button', { type: 'button', class: 'quiet' }, 'Abandon') : null;
@@ -103,17 +104,22 @@ export async function livePage({ user, params, main }: PageContext): Promise<voi
     headline,
     message,
     readingsEl,
-    h('h2', {}, `${label} as the data come in`),
+    h('h2', {}, `${what} ± U as the data come in, and the target`),
     narrowingEl,
     h('div', { class: 'actions' }, closeButton, ' ', abandonButton),
     done,
   );
   const chart = liveChart(readingsEl);
-  const narrowing = narrowingChart(narrowingEl, label);
-  const targetPercent = first.target.relativeStandardUncertainty * 100;
+  const narrowing = narrowingChart(narrowingEl, what, 4);
+  const targetRelative = first.target.relativeStandardUncertainty;
   const readings = { timeS: [] as number[], levelM: [] as number[] };
   let latest: LiveFit | null = first.latest;
-  const history = first.history.map((p) => ({ elapsedS: p.elapsedS, percent: p.targetRelative === null ? null : p.targetRelative * 100 }));
+  const history = first.history.map((p) => ({ elapsedS: p.elapsedS, value: p.value, expandedUncertainty: p.expandedUncertainty }));
+  const quantityOf = (f: LiveFit | null) => (f ? (first.target.quantity === 'effective-area' ? f.effectiveArea : f.cd) : null);
+  const targetLines = () => {
+    const q = quantityOf(latest);
+    return q ? { relative: targetRelative, coverageFactor: q.expandedUncertainty / q.standardUncertainty } : null;
+  };
 
   const redraw = () => chart.update(readings, latest?.fittedCurve ?? null, latest?.openingS ?? null);
   const showFit = (f: LiveFit | null) => {
@@ -127,7 +133,7 @@ export async function livePage({ user, params, main }: PageContext): Promise<voi
     redraw();
   };
   showFit(latest);
-  narrowing.update(history, targetPercent);
+  narrowing.update(history, targetLines());
 
   const events = new EventSource(`/api/live/${id}/events`);
   const stop = () => events.close();
@@ -145,9 +151,10 @@ export async function livePage({ user, params, main }: PageContext): Promise<voi
   });
   events.addEventListener('fit', (e) => {
     const { fit } = JSON.parse((e as MessageEvent).data) as { fit: LiveFit };
-    history.push({ elapsedS: fit.elapsedS, percent: fit.targetRelative === null ? null : fit.targetRelative * 100 });
-    narrowing.update(history, targetPercent);
+    const q = quantityOf(fit);
+    history.push({ elapsedS: fit.elapsedS, value: q?.value ?? null, expandedUncertainty: q?.expandedUncertainty ?? null });
     showFit(fit);
+    narrowing.update(history, targetLines());
   });
   events.addEventListener('closed', (e) => {
     const d = JSON.parse((e as MessageEvent).data) as { testId: number; fitId: number };
