@@ -19,7 +19,9 @@ beforeAll(async () => {
   expect(v.statusCode, v.body).toBe(201);
   vesselId = v.json().id;
 });
-afterAll(() => t.app.close());
+afterAll(async () => {
+  if (t.app.server.listening) await t.app.close();
+});
 
 /** Byte offsets just past each line feed, so rows go whole. */
 function lineEnds(bytes: Buffer): number[] {
@@ -133,5 +135,14 @@ describe('live drain test', () => {
     const rows = JSON.parse(/event: rows\ndata: (.*"readings":\{.*)\n/.exec(text)![1]);
     expect(rows.readings.timeS.length).toBeGreaterThan(500);
     expect(rows.readings.levelM[0]).toBeCloseTo(3.498, 6);
+
+    // an open stream does not hold the service's shutdown: it is ended first
+    const still = await fetch(`${address}/api/live/${id}/events`, { headers: t.auth('auditor') });
+    const r2 = still.body!.getReader();
+    await r2.read();
+    await t.app.close();
+    let ended = false;
+    for (let i = 0; i < 10 && !ended; i++) ended = (await r2.read()).done;
+    expect(ended).toBe(true);
   });
 });

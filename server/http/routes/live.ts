@@ -35,6 +35,11 @@ const liveState = z.looseObject({ id: z.string(), vesselId: z.number(), received
 
 export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, opts) => {
   const live = new LiveTests({ store: app.store, analyze: app.analyze, limitBytes: opts.limitBytes ?? 40 * 1024 * 1024, refitMs: opts.refitMs, readMs: opts.readMs });
+  // open event streams end before the server stops listening (they would hold its close open)
+  const streams = new Set<() => void>();
+  app.addHook('preClose', async () => {
+    for (const end of streams) end();
+  });
   app.addHook('onClose', async () => live.closeAll());
   // rows arrive as bytes, kept exactly (a text parser would decode them)
   app.removeContentTypeParser(['text/plain']);
@@ -114,12 +119,11 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
       const end = () => {
         clearInterval(ping);
         unsubscribe();
+        streams.delete(end);
+        if (!res.writableEnded) res.end();
       };
+      streams.add(end);
       request.raw.on('close', end);
-      app.addHook('onClose', async () => {
-        end();
-        res.end();
-      });
     },
   );
 
