@@ -8,8 +8,9 @@
  * Acknowledgement: each append carries the byte offset the sender starts from; the answer is the
  * count of bytes held. A sender that lost its connection asks for that count and sends from
  * there; a resend that overlaps bytes already held is checked byte for byte and only its new part
- * kept, so nothing is lost or duplicated. Live tests live in this process's memory: a service
- * restart ends them (the sender then opens a new one and sends the file from the start).
+ * kept, so nothing is lost or duplicated. Each piece is committed to the store (migration 005)
+ * before it is acknowledged, and open live tests are taken up again when the service starts, so a
+ * restart loses nothing either (the page and the sender reconnect; the refits start again).
  */
 import { randomUUID } from 'node:crypto';
 import type { AnalysisSettings, FitJson } from '../core/analysis-contract.js';
@@ -124,19 +125,25 @@ export class LiveTests {
     this.refitMs = opts.refitMs ?? 3000;
     this.readMs = opts.readMs ?? 1000;
     this.now = opts.now ?? Date.now;
+    for (const row of opts.store.live.listOpen()) {
+      const req = row.request as Omit<LiveOpen, 'vesselId' | 'fileName'>;
+      const bytes = opts.store.live.bytes(row.id);
+      const s = this.session_(row.id, row.openedBy, { ...req, vesselId: row.vesselId, outletId: row.outletId, fileName: row.fileName }, row.openedAt);
+      if (bytes.length) s.chunks.push(bytes);
+      s.state.receivedBytes = bytes.length;
+      for (const b of bytes) if (b === 0x0a) s.state.rows++;
+      if (bytes.length) this.scheduleRefit(s);
+    }
   }
 
-  open(actor: Actor, input: LiveOpen): LiveState {
-    const vessel = this.opts.store.vessels.get(input.vesselId);
-    const outlet = chooseOutlet(vessel, input.outletId);
-    const id = randomUUID();
+  private session_(id: string, actor: Actor, input: LiveOpen, openedAt: string): Session {
     const state: LiveState = {
       id,
-      vesselId: vessel.id,
-      outletId: outlet?.id ?? null,
+      vesselId: input.vesselId,
+      outletId: input.outletId ?? null,
       fileName: input.fileName,
-      openedAt: new Date(this.now()).toISOString(),
-      openedBy: actor.name ?? String(actor.id),
+      openedAt,
+      openedBy: actor.name,
       target: input.target,
       receivedBytes: 0,
       rows: 0,
@@ -147,15 +154,34 @@ export class LiveTests {
       history: [],
       enoughSince: null,
     };
-    this.sessions.set(id, {
-      state, input: { ...input, outletId: outlet?.id ?? null }, actor, chunks: [], openedMs: this.now(), listeners: new Set(),
+    const s: Session = {
+      state, input, actor, chunks: [], openedMs: this.now(), listeners: new Set(),
       refitting: false, refitTimer: null, lastRefitMs: 0, fittedRows: 0, readTimer: null, lastReadMs: 0, sentReadings: 0,
-    });
-    return state;
+    };
+    this.sessions.set(id, s);
+    return s;
+  }
+
+  open(actor: Actor, input: LiveOpen): LiveState {
+    const vessel = this.opts.store.vessels.get(input.vesselId);
+    const outlet = chooseOutlet(vessel, input.outletId);
+    const id = randomUUID();
+    const { vesselId: _v, fileName, outletId: _o, ...request } = input;
+    const row = this.opts.store.live.open({ id, vesselId: vessel.id, outletId: outlet?.id ?? null, fileName, request: request as Record<string, unknown>, openedBy: actor });
+    return this.session_(id, actor, { ...input, vesselId: vessel.id, outletId: outlet?.id ?? null }, row.openedAt).state;
   }
 
   get(id: string): LiveState {
-    return this.session(id).state;
+    const s = this.sessions.get(id);
+    if (s) return s.state;
+    // ended before this process started: what the store remembers of it
+    const row = this.opts.store.live.get(id);
+    if (!row) return this.session(id).state; // 404
+    return {
+      id, vesselId: row.vesselId, outletId: row.outletId, fileName: row.fileName, openedAt: row.openedAt, openedBy: row.openedBy.name,
+      target: (row.request as { target: LiveTarget }).target, receivedBytes: row.receivedBytes, rows: 0, status: row.status,
+      testId: row.testId, fitId: null, latest: null, history: [], enoughSince: null,
+    };
   }
 
   private session(id: string): Session {
@@ -186,8 +212,9 @@ export class LiveTests {
     const fresh = body.subarray(overlap);
     if (held + fresh.length > this.opts.limitBytes) throw new LiveProblem(413, 'too-large', `a live test may hold at most ${this.opts.limitBytes} bytes`);
     if (fresh.length > 0) {
+      // committed before it is acknowledged
+      s.state.receivedBytes = this.opts.store.live.append(id, held, fresh);
       s.chunks.push(Buffer.from(fresh));
-      s.state.receivedBytes += fresh.length;
       for (const b of fresh) if (b === 0x0a) s.state.rows++;
       this.scheduleRead(s);
       this.scheduleRefit(s);
@@ -296,6 +323,7 @@ export class LiveTests {
       });
       s.state.testId = out.test.id;
       s.state.fitId = out.fit.id;
+      this.opts.store.live.finish(id, 'closed', out.test.id);
       this.emit(s, { type: 'closed', testId: out.test.id, fitId: out.fit.id });
       return out;
     } catch (e) {
@@ -307,6 +335,7 @@ export class LiveTests {
   abandon(id: string): void {
     const s = this.session(id);
     s.state.status = 'abandoned';
+    this.opts.store.live.finish(id, 'abandoned');
     this.stopTimers(s);
     this.emit(s, { type: 'abandoned' });
     this.sessions.delete(id);

@@ -3,6 +3,7 @@ import type { StoreContext } from './context.js';
 import { openDatabase, openMemoryDatabase, type Db } from './db.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
+import { LiveRepo } from './live.js';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
 import { TestRepo } from './tests.js';
@@ -19,6 +20,7 @@ export interface Store {
   events: EventRepo;
   users: UserRepo;
   trends: TrendRepo;
+  live: LiveRepo;
   close(): void;
 }
 
@@ -46,6 +48,7 @@ export function openStore(opts: StoreOptions = {}): Store {
     events: new EventRepo(c),
     users: new UserRepo(c),
     trends: new TrendRepo(c),
+    live: new LiveRepo(c),
     close: () => db.close(),
   };
 }

@@ -115,6 +115,34 @@ describe('live drain test', () => {
     expect(late.statusCode).toBe(409);
   });
 
+  it('a service restart loses nothing: the bytes held are committed, the live test is taken up again and closes into the file', async () => {
+    const ends = lineEnds(logBytes);
+    const open = await t.app.inject({ method: 'POST', url: `/api/vessels/${vesselId}/live`, headers: t.auth('technician'), payload: { fileName: 'restart.csv' } });
+    const id = open.json().id;
+    const part = ends[1200];
+    const r = await t.app.inject({ method: 'POST', url: `/api/live/${id}/rows?offset=0`, headers: { ...t.auth('technician'), 'content-type': 'application/octet-stream' }, payload: logBytes.subarray(0, part) });
+    expect(r.json().receivedBytes).toBe(part);
+    // a second service on the same database, as after a restart
+    const { buildApp } = await import('../../server/http/app.js');
+    const again = await buildApp({ store: t.store, analyze: engine, liveRefitMs: 0 });
+    await again.ready();
+    try {
+      const s = (await again.inject({ method: 'GET', url: `/api/live/${id}`, headers: t.auth('auditor') })).json();
+      expect(s.receivedBytes).toBe(part);
+      expect(s.rows).toBe(1201);
+      const rest = await again.inject({ method: 'POST', url: `/api/live/${id}/rows?offset=${part}`, headers: { ...t.auth('technician'), 'content-type': 'application/octet-stream' }, payload: logBytes.subarray(part) });
+      expect(rest.json().receivedBytes).toBe(logBytes.length);
+      const closed = await again.inject({ method: 'POST', url: `/api/live/${id}/close`, headers: t.auth('technician') });
+      expect(closed.statusCode, closed.body).toBe(201);
+      const raw = t.store.tests.rawBytes(closed.json().test.sha256);
+      expect(Buffer.compare(Buffer.from(raw), logBytes)).toBe(0);
+      expect(t.store.live.get(id)!.status).toBe('closed');
+      expect(t.store.live.bytes(id).length).toBe(0);
+    } finally {
+      await again.close();
+    }
+  });
+
   it('server-sent events on a real socket: the state first, then readings and a fit', async () => {
     const address = await t.app.listen({ host: '127.0.0.1', port: 0 });
     const open = await fetch(`${address}/api/vessels/${vesselId}/live`, { method: 'POST', headers: { ...t.auth('technician'), 'content-type': 'application/json' }, body: JSON.stringify({ fileName: 'x.csv' }) });
