@@ -100,6 +100,7 @@ interface Session {
   fittedRows: number;
   readTimer: NodeJS.Timeout | null;
   lastReadMs: number;
+  lastReadCostMs: number;
   sentReadings: number;
 }
 
@@ -156,7 +157,7 @@ export class LiveTests {
     };
     const s: Session = {
       state, input, actor, chunks: [], openedMs: this.now(), listeners: new Set(),
-      refitting: false, refitTimer: null, lastRefitMs: 0, fittedRows: 0, readTimer: null, lastReadMs: 0, sentReadings: 0,
+      refitting: false, refitTimer: null, lastRefitMs: 0, fittedRows: 0, readTimer: null, lastReadMs: 0, lastReadCostMs: 0, sentReadings: 0,
     };
     this.sessions.set(id, s);
     return s;
@@ -254,11 +255,14 @@ export class LiveTests {
 
   private scheduleRead(s: Session): void {
     if (s.readTimer || s.listeners.size === 0) return;
-    const wait = Math.max(0, s.lastReadMs + this.readMs - this.now());
+    // the read runs on the event loop: a long log is read less often (at most ~5 % of the time)
+    const wait = Math.max(0, s.lastReadMs + Math.max(this.readMs, 20 * s.lastReadCostMs) - this.now());
     s.readTimer = setTimeout(() => {
       s.readTimer = null;
-      s.lastReadMs = this.now();
+      const t0 = performance.now();
       const all = this.readSeries(s);
+      s.lastReadCostMs = performance.now() - t0;
+      s.lastReadMs = this.now();
       const from = all ? Math.min(s.sentReadings, all.timeS.length) : 0;
       const readings = all ? { fromIndex: from, timeS: all.timeS.slice(from), levelM: all.levelM.slice(from) } : null;
       if (all) s.sentReadings = all.timeS.length;
