@@ -405,6 +405,9 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
   if (req.sensor.resolutionM > 0 && req.sensor.noiseM < req.sensor.resolutionM / 2) {
     notes.push('the noise is below half the resolution: rounding is then not random and the fit\'s scatter may differ from this prediction');
   }
+  if (recommendation?.lowestStart) {
+    notes.push('a shallow drain meets the target on paper but is more exposed to low-head effects (vortices, the outlet uncovering, the opening transient) than this prediction shows; the shortest test from a high fill is the safer choice');
+  }
   if (req.statedInputs.length) notes.push('stated type B inputs are taken as given (relative contributions to Cd·a); their sensitivities are not derived here');
   notes.push('type A assumes the drain follows the orifice law (n = ½) with no inflow and the readings\' noise as stated; slosh, a leaking inlet or drift add to it');
 
