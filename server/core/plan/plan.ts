@@ -241,7 +241,7 @@ function typeBFloor(ctx: Context, quantity: TargetQuantity): { floor: number; la
 }
 
 /** A planned test from `startLevelM`, logged until `endLevelM` (or the window's end); `windowSamples` shortens the window. */
-function describe(ctx: Context, startLevelM: number, endLevelM: number | undefined, windowSamples?: number): PlannedTest {
+function predictTest(ctx: Context, startLevelM: number, endLevelM: number | undefined, windowSamples?: number): PlannedTest {
   const g = windowGeometry(ctx, startLevelM);
   const dt = ctx.req.sensor.sampleIntervalS;
   const zo = ctx.setting.outletElevationM;
@@ -327,7 +327,7 @@ function recommend(ctx: Context, allowed: number): NonNullable<PlanResult['recom
   const start = ctx.req.startLevelM !== undefined && fullTypeA(ctx, ctx.req.startLevelM) <= allowed ? ctx.req.startLevelM : top;
   const g = windowGeometry(ctx, start);
   const n = firstMeeting(typeAProfile(ctx, g, g.cutSurface), allowed);
-  const shortest = describe(ctx, start, undefined, n);
+  const shortest = predictTest(ctx, start, undefined, n);
   // lowest start level logged to the window's end: type A falls as the start rises
   let lo = ctx.outletLevelM;
   let hi = top;
@@ -336,7 +336,7 @@ function recommend(ctx: Context, allowed: number): NonNullable<PlanResult['recom
     if (fullTypeA(ctx, mid) <= allowed) hi = mid;
     else lo = mid;
   }
-  const lowestStart = describe(ctx, Math.ceil(hi * 1000) / 1000, undefined);
+  const lowestStart = predictTest(ctx, Math.ceil(hi * 1000) / 1000, undefined);
   return { shortest, lowestStart, sampleIntervalNeededS: null };
 }
 
@@ -352,7 +352,7 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
     if (!(req.endLevelM >= ctx.outletLevelM)) throw new InputError(`the end level is below the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`, { field: 'endLevelM' });
   }
   const notes: string[] = [];
-  const test = req.startLevelM !== undefined ? describe(ctx, req.startLevelM, req.endLevelM) : null;
+  const test = req.startLevelM !== undefined ? predictTest(ctx, req.startLevelM, req.endLevelM) : null;
   if (test && test.samplesInWindow < 10) notes.push('the planned window holds fewer than 10 readings: a fit would refuse it');
 
   let target: PlanResult['target'] = null;
