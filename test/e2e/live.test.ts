@@ -120,6 +120,7 @@ describe.skipIf(!haveBrowser)('plan and live test pages in a browser', () => {
     }
     expect(enoughAt, 'the enough-data notice came before the log ended').not.toBeNull();
     expect(enoughAt!).toBeLessThan(lineEnds.length);
+    console.info(`browser: the enough-data notice was up with ${enoughAt} of ${lineEnds.length} lines written`);
     expect(await page.locator('.live-headline').innerText()).toMatch(/^Cd = 0\.6\d+ ± 0\.0\d+/);
     await until('every byte on the service', async () => (await held()) === LOG.length);
     s.child.kill('SIGTERM');

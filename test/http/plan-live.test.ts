@@ -98,6 +98,7 @@ describe('live drain test', () => {
     expect(acked).toBe(logBytes.length);
     expect(enoughAtRow, 'the enough-data notice came').not.toBeNull();
     expect(enoughAtRow!).toBeLessThan(ends.length);
+    console.info(`live: enough data after ${enoughAtRow} of ${ends.length} lines`);
     const state = (await t.app.inject({ method: 'GET', url: `/api/live/${id}`, headers: t.auth('auditor') })).json();
     expect(state.latest.openingS).toBeGreaterThan(0);
     expect(state.latest.message).toMatch(/^Enough data/);
