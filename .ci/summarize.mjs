@@ -2,19 +2,21 @@
 // report, and exits non-zero unless every test that is meant to run ran and passed.
 // A skipped, pending or todo test counts as failed (a missing browser or tool must not pass
 // quietly), unless its full name is listed in ALLOWED_SKIPS with the reason. A test file that
-// failed to load (no tests ran in it) counts as one failure.
+// failed to load (no tests ran in it) counts as one failure. A second argument adds the number of
+// CI steps that failed before the tests (type-check, lint, format, pack), each one failure.
 import { readFileSync } from 'node:fs';
 
 /** Full test names ("describe … it") allowed to skip, each with why. Keep it empty. */
 const ALLOWED_SKIPS = new Map([]);
 
 const file = process.argv[2];
+const failedSteps = Number(process.argv[3] ?? 0) || 0;
 let report;
 try {
   report = JSON.parse(readFileSync(file, 'utf8'));
 } catch (err) {
   console.log(`ci: no vitest JSON report at ${file}: ${err.message}`);
-  console.log('0 passed, 1 failed');
+  console.log(`0 passed, ${1 + failedSteps} failed`);
   process.exit(1);
 }
 
@@ -41,7 +43,8 @@ for (const s of skipped) {
 }
 for (const f of brokenFiles) console.log(`ci: test file failed without a failing test (did not load?): ${f}`);
 
-failed += unexplained.length + brokenFiles.length;
+if (failedSteps) console.log(`ci: ${failedSteps} step(s) before the tests failed, counted as failed`);
+failed += unexplained.length + brokenFiles.length + failedSteps;
 if (passed === 0) console.log('ci: no test passed');
 console.log(`${passed} passed, ${failed} failed`);
 process.exit(failed === 0 && passed > 0 && report.success !== false ? 0 : 1);
