@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
-# The packed tarball installs and runs with no development tools: `npm pack` (its `prepare` builds
-# dist/ here, where the dev dependencies are), then in an empty folder `npm install --omit=dev
+# The packed tarball installs and runs with no development tools: build dist/ here (where the dev
+# dependencies are) and `npm pack` it, then in an empty folder `npm install --omit=dev
 # <tarball>` (better-sqlite3 compiles: about 2 minutes), `efflux fit` on a demo log, and
 # `efflux serve` on a new data folder answering /api/health. Needs the npm registry.
 set -euo pipefail
@@ -14,14 +14,16 @@ cleanup() {
 trap cleanup EXIT
 fail() { echo "pack: $*"; exit 1; }
 
-tarball=$(npm pack --json --pack-destination "$work" | node -e 'let s="";process.stdin.on("data",(d)=>(s+=d)).on("end",()=>console.log(JSON.parse(s)[0].filename))')
+npm run -s build > "$work/build.log" 2>&1 || { cat "$work/build.log"; fail 'npm run build failed'; }
+tarball=$(npm pack --json --ignore-scripts --pack-destination "$work" | node -e 'let s="";process.stdin.on("data",(d)=>(s+=d)).on("end",()=>console.log(JSON.parse(s)[0].filename))')
 echo "pack: $tarball ($(du -k "$work/$tarball" | cut -f1) KiB)"
+tar -tzf "$work/$tarball" > "$work/contents.txt"
 for must in package/bin/efflux.js package/dist/server/cli/main.js package/dist/server/core/engine-build.generated.js \
   package/dist/web/index.html package/dist/web/app.js package/migrations/001_initial.sql package/sample-data/manifest.json \
   package/LICENSE package/CHANGELOG.md; do
-  tar -tzf "$work/$tarball" | grep -qx "$must" || fail "the tarball lacks $must"
+  grep -qx "$must" "$work/contents.txt" || fail "the tarball lacks $must"
 done
-if tar -tzf "$work/$tarball" | grep -q '^package/\(test\|server\|web/src\|node_modules\)/'; then fail 'the tarball carries sources or tests it should not'; fi
+if grep -q '^package/\(test\|server\|web/src\|node_modules\)/' "$work/contents.txt"; then fail 'the tarball carries sources or tests it should not'; fi
 
 mkdir "$work/app"
 cd "$work/app"
