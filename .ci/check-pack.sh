@@ -14,21 +14,24 @@ cleanup() {
 trap cleanup EXIT
 fail() { echo "pack: $*"; exit 1; }
 
-npm run -s build > "$work/build.log" 2>&1 || { cat "$work/build.log"; fail 'npm run build failed'; }
-tarball=$(npm pack --json --ignore-scripts --pack-destination "$work" | node -e 'let s="";process.stdin.on("data",(d)=>(s+=d)).on("end",()=>console.log(JSON.parse(s)[0].filename))')
+# npm pack runs prepare (the build) and prepack/postpack (npm-shrinkwrap.json from the lock file)
+npm pack --pack-destination "$work" > "$work/pack.log" 2>&1 || { cat "$work/pack.log"; fail 'npm pack failed'; }
+tarball="efflux-$(node -p 'require("./package.json").version').tgz"
+overrides=$(node -p 'JSON.stringify(require("./package.json").overrides ?? {})')
 echo "pack: $tarball ($(du -k "$work/$tarball" | cut -f1) KiB)"
 tar -tzf "$work/$tarball" > "$work/contents.txt"
 for must in package/bin/efflux.js package/dist/server/cli/main.js package/dist/server/core/engine-build.generated.js \
   package/dist/web/index.html package/dist/web/app.js package/migrations/001_initial.sql package/sample-data/manifest.json \
-  package/LICENSE package/CHANGELOG.md; do
+  package/LICENSE package/CHANGELOG.md package/npm-shrinkwrap.json; do
   grep -qx "$must" "$work/contents.txt" || fail "the tarball lacks $must"
 done
 if grep -q '^package/\(test\|server\|web/src\|node_modules\)/' "$work/contents.txt"; then fail 'the tarball carries sources or tests it should not'; fi
 
 mkdir "$work/app"
 cd "$work/app"
-# an installing project approves better-sqlite3's native build (npm 11 asks for it)
-printf '{ "name": "efflux-pack-check", "private": true, "allowScripts": { "better-sqlite3": true } }\n' > package.json
+# the installing project as the README shows it: approves better-sqlite3's native build and
+# repeats efflux's overrides (npm applies only the root project's overrides)
+printf '{ "name": "efflux-pack-check", "private": true, "allowScripts": { "better-sqlite3": true }, "overrides": %s }\n' "$overrides" > package.json
 npm install --omit=dev --no-audit --no-fund "$work/$tarball" > "$work/install.log" 2>&1 || { cat "$work/install.log"; fail 'npm install --omit=dev of the tarball failed'; }
 if grep -q EBADENGINE "$work/install.log"; then grep -A3 EBADENGINE "$work/install.log"; fail "a dependency refuses this Node ($(node -v))"; fi
 [ ! -e node_modules/tsx ] && [ ! -e node_modules/typescript ] || fail 'development dependencies were installed'
@@ -59,6 +62,13 @@ done
 health=$(node -e 'fetch(process.argv[1] + "/api/health").then(async (r) => { console.log(r.status, await r.text()); process.exit(r.ok ? 0 : 1); }, (e) => { console.log(String(e)); process.exit(1); })' "$base") \
   || fail "GET /api/health: $health"
 echo "pack: efflux serve ok, /api/health: $health"
+# the first start printed an admin token: sign in with it (the session cookie goes through cookie)
+token=$(grep -A1 'keep it safe' "$work/serve.log" | tail -1 | tr -d ' ')
+session=$(node -e '
+  fetch(process.argv[1] + "/api/session", { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ token: process.argv[2] }) })
+    .then((r) => { const c = r.headers.get("set-cookie") ?? ""; console.log(r.status, c.split(";")[0].replace(/=.*/, "=…")); process.exit(r.status === 201 && c ? 0 : 1); }, (e) => { console.log(String(e)); process.exit(1); })' "$base" "$token") \
+  || fail "POST /api/session: $session"
+echo "pack: sign-in ok: $session"
 kill "$server_pid"
 wait "$server_pid" 2>/dev/null || true
 server_pid=

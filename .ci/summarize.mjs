@@ -30,20 +30,26 @@ for (const suite of report.testResults ?? []) {
   for (const t of tests) {
     if (t.status === 'passed') passed++;
     else if (t.status === 'failed') failed++;
-    else if (notRun.has(t.status)) skipped.push({ file: suite.name, name: t.fullName ?? t.title, status: t.status });
+    else if (notRun.has(t.status))
+      skipped.push({ file: suite.name, name: t.fullName ?? t.title, status: t.status });
     else failed++; // an unknown status is not a pass
   }
-  if (suite.status === 'failed' && !tests.some((t) => t.status === 'failed')) brokenFiles.push(suite.name);
+  if (suite.status === 'failed' && !tests.some((t) => t.status === 'failed'))
+    brokenFiles.push(suite.name);
 }
 
 const unexplained = skipped.filter((s) => !ALLOWED_SKIPS.has(s.name));
 for (const s of skipped) {
   const why = ALLOWED_SKIPS.get(s.name);
-  console.log(`ci: ${s.status}: ${s.name} (${s.file})${why ? ` — allowed: ${why}` : ' — not allowed, counted as failed'}`);
+  console.log(
+    `ci: ${s.status}: ${s.name} (${s.file})${why ? ` — allowed: ${why}` : ' — not allowed, counted as failed'}`,
+  );
 }
-for (const f of brokenFiles) console.log(`ci: test file failed without a failing test (did not load?): ${f}`);
+for (const f of brokenFiles)
+  console.log(`ci: test file failed without a failing test (did not load?): ${f}`);
 
-if (failedSteps) console.log(`ci: ${failedSteps} step(s) before the tests failed, counted as failed`);
+if (failedSteps)
+  console.log(`ci: ${failedSteps} step(s) before the tests failed, counted as failed`);
 failed += unexplained.length + brokenFiles.length + failedSteps;
 if (passed === 0) console.log('ci: no test passed');
 console.log(`${passed} passed, ${failed} failed`);

@@ -21,7 +21,9 @@ describe('engine version', () => {
   it('is package.json version plus the hash of the current core sources', () => {
     expect(PACKAGE_VERSION).toBe(pkg.version);
     expect(ENGINE_VERSION).toMatch(/^\d+\.\d+\.\d+(-[\w.]+)?\+core\.[0-9a-f]{12}$/);
-    expect(ENGINE_VERSION).toBe(`${pkg.version}+core.${coreSourcesSha256(join(root, 'server/core')).slice(0, 12)}`);
+    expect(ENGINE_VERSION).toBe(
+      `${pkg.version}+core.${coreSourcesSha256(join(root, 'server/core')).slice(0, 12)}`,
+    );
   });
 
   it('changes when any core source changes, and not for line endings or the generated module', () => {
