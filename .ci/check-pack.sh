@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # The packed tarball installs and runs with no development tools: build dist/ here (where the dev
 # dependencies are) and `npm pack` it, then in an empty folder `npm install --omit=dev
-# <tarball>` (better-sqlite3 compiles: about 2 minutes), `efflux fit` on a demo log, and
+# <tarball>` (better-sqlite3 compiles: about 2 minutes on a quiet machine, 11 under heavy load), `efflux fit` on a demo log, and
 # `efflux serve` on a new data folder answering /api/health. Needs the npm registry.
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -14,7 +14,7 @@ cleanup() {
 trap cleanup EXIT
 fail() { echo "pack: $*"; exit 1; }
 
-# npm pack runs prepare (the build) and prepack/postpack (npm-shrinkwrap.json from the lock file)
+# npm pack runs prepare (the build of dist/)
 npm pack --pack-destination "$work" > "$work/pack.log" 2>&1 || { cat "$work/pack.log"; fail 'npm pack failed'; }
 tarball="efflux-$(node -p 'require("./package.json").version').tgz"
 overrides=$(node -p 'JSON.stringify(require("./package.json").overrides ?? {})')
@@ -22,7 +22,7 @@ echo "pack: $tarball ($(du -k "$work/$tarball" | cut -f1) KiB)"
 tar -tzf "$work/$tarball" > "$work/contents.txt"
 for must in package/bin/efflux.js package/dist/server/cli/main.js package/dist/server/core/engine-build.generated.js \
   package/dist/web/index.html package/dist/web/app.js package/migrations/001_initial.sql package/sample-data/manifest.json \
-  package/LICENSE package/CHANGELOG.md package/npm-shrinkwrap.json; do
+  package/LICENSE package/CHANGELOG.md; do
   grep -qx "$must" "$work/contents.txt" || fail "the tarball lacks $must"
 done
 if grep -q '^package/\(test\|server\|web/src\|node_modules\)/' "$work/contents.txt"; then fail 'the tarball carries sources or tests it should not'; fi
