@@ -17,6 +17,7 @@ import {
   type ReportDifference,
   type SoftwareRecord,
 } from '../core/report/index.js';
+import { sha256Hex } from '../sha256.js';
 import { canonicalJson } from '../store/canonical-json.js';
 import type { Store } from '../store/index.js';
 import { renderFitReportPdf } from './fit-report-pdf.js';
@@ -25,11 +26,11 @@ import { readReportFile, type ReportFile } from './report-file.js';
 import { fitReportRecords, outletReportRecords } from './report-records.js';
 
 export function fitReport(store: Store, fitId: number, software: SoftwareRecord): FitReport {
-  return buildFitReport(fitReportRecords(store, fitId), software);
+  return buildFitReport(fitReportRecords(store, fitId), software, sha256Hex);
 }
 
 export function outletReport(store: Store, outletId: number, software: SoftwareRecord, asOf?: string): OutletReport {
-  return buildOutletReport(outletReportRecords(store, outletId), software, asOf);
+  return buildOutletReport(outletReportRecords(store, outletId), software, sha256Hex, asOf);
 }
 
 export { renderFitReportPdf, renderOutletReportPdf };
@@ -117,7 +118,7 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   const checks: Check[] = [];
   // 1. the file agrees with itself
   if (file.report) {
-    const h = contentHash(file.report);
+    const h = contentHash(file.report, sha256Hex);
     const ok = h === file.contentSha256 && reportIdOf(h) === file.reportId && file.report.contentSha256 === file.contentSha256;
     checks.push({ name: 'file content hash', ok, detail: ok ? `the report's content hashes to ${h}` : `the report's content hashes to ${h}, but the file states ${file.contentSha256} (id ${file.reportId}): edited after it was written` });
   } else {
