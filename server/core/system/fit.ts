@@ -1,10 +1,9 @@
 import { InputError } from '../errors.js';
 import { dischargeCoefficientQuantity, effectiveAreaQuantity, type GumQuantity } from '../fit/coefficient.js';
-import { solveLeastSquares, type LeastSquaresProblem, type SolveResult } from '../lsq/index.js';
+import { covarianceFromJacobian, solveLeastSquares, type LeastSquaresProblem, type SolveResult } from '../lsq/index.js';
 import { residualDiagnostics, tQuantile } from '../stats/index.js';
 import type { AlignedLog } from './align.js';
 import { integrateSystem } from './integrate.js';
-import { inverseSymmetric } from './matrix.js';
 import { P, PER_VESSEL, parameterName, type InflowInput, type VesselNetwork } from './network.js';
 import { startValues } from './start-values.js';
 
@@ -161,7 +160,8 @@ function summarise(
   const n = network.vessels.length;
   const k = free.length;
   const m = rowStart[n];
-  const info = new Float64Array(k * k);
+  // row weights 1/sqrt(f_i): JᵀW·J = Σ_i J_iᵀJ_i/f_i, the information of the AR(1)-corrected logs
+  const rowWeight = new Float64Array(m);
   const vessels: VesselDiagnostics[] = [];
   const residuals: Float64Array[] = [];
   let effectiveTotal = 0;
@@ -174,13 +174,7 @@ function summarise(
     const rho = Number.isFinite(rho0) ? rho0 : 0;
     const f = rho > 0 ? (1 + rho) / (1 - Math.min(rho, 0.999)) : 1;
     effectiveTotal += mi / f;
-    for (let row = rowStart[i]; row < rowStart[i + 1]; row++) {
-      for (let a = 0; a < k; a++) {
-        const ja = solve.jacobian[row * k + a] / f;
-        if (ja === 0) continue;
-        for (let b = 0; b < k; b++) info[a * k + b] += ja * solve.jacobian[row * k + b];
-      }
-    }
+    rowWeight.fill(1 / Math.sqrt(f), rowStart[i], rowStart[i + 1]);
     let ss = 0;
     for (const x of res) ss += x * x;
     vessels.push({
@@ -195,7 +189,8 @@ function summarise(
   }
   const warnings: string[] = [];
   const s2 = solve.sumSquares / Math.max(m - k, 1);
-  const inv = inverseSymmetric(info, k);
+  const svd = covarianceFromJacobian(solve.jacobian, m, k, rowWeight);
+  const inv = svd.rank === k ? svd.unscaledCovariance : null;
   if (!inv) warnings.push('the parameters cannot all be told apart from these logs (singular information matrix): the uncertainties are not defined');
   const covariance = inv ? inv.map((x) => x * s2) : new Float64Array(k * k).fill(NaN);
   const u = Float64Array.from({ length: k }, (_, j) => Math.sqrt(Math.max(covariance[j * k + j], 0)));
