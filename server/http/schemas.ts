@@ -3,6 +3,7 @@
  * the zod serializer checks them against these before they leave.
  */
 import { z } from 'zod';
+import type { Outlet, Vessel } from '../core/stored-vessel.js';
 
 export const idParams = z.object({ id: z.coerce.number().int().positive() });
 
@@ -42,7 +43,7 @@ export const outlet = z
     spec: json,
     retiredAt: z.string().nullable(),
   })
-  .meta({ id: 'Outlet' });
+  .meta({ id: 'Outlet' }) satisfies z.ZodType<Outlet>; // the one Outlet shape (core/stored-vessel.ts)
 
 export const vessel = z
   .object({
@@ -55,7 +56,7 @@ export const vessel = z
     createdAt: z.string(),
     updatedAt: z.string(),
   })
-  .meta({ id: 'Vessel' });
+  .meta({ id: 'Vessel' }) satisfies z.ZodType<Vessel>; // the one Vessel shape (core/stored-vessel.ts)
 
 const rawRef = z.object({ sha256: z.string(), fileName: z.string(), size: z.number().int() });
 

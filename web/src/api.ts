@@ -55,29 +55,7 @@ export interface User {
   name: string;
   role: Role;
 }
-export interface Outlet {
-  id: number;
-  key: string;
-  type: string | null;
-  boreM: number | null;
-  boreToleranceM: number | null;
-  elevationM: number | null;
-  actionThreshold: number | null;
-  spec: Record<string, unknown>;
-  retiredAt: string | null;
-  [more: string]: unknown;
-}
-export interface Vessel {
-  id: number;
-  site: string;
-  name: string;
-  revision: number;
-  spec: Record<string, unknown>;
-  outlets: Outlet[];
-  createdAt: string;
-  updatedAt: string;
-  [more: string]: unknown;
-}
+export type { Outlet, Vessel } from '../../server/core/stored-vessel.js';
 export interface DrainTest {
   id: number;
   vesselId: number;
@@ -177,19 +155,8 @@ export const canUpload = (u: User) => u.role === 'technician' || u.role === 'eng
 export const canReview = (u: User) => u.role === 'engineer' || u.role === 'admin';
 export const seesMaintenance = (u: User) => u.role !== 'technician';
 
-/** The trend work's answers (server/http/routes/trend-schemas.ts), the fields this page reads. */
-export interface FleetStatusItem {
-  outletId: number;
-  status: string;
-  reason: string;
-  daysToThreshold: number | null;
-  latestChangePct: number | null;
-}
-export interface OutletTrend {
-  status: { status: string; reason: string; daysToThreshold: number | null };
-  threshold: { pct: number; fraction: number | null; source: string };
-  epochs: { current: boolean; thresholdCd: number | null; cd: { baselineValue: number } | null; series: { isBaseline: boolean; dischargeCoefficient: number }[] }[];
-}
+/** The trend answers (server/jobs/trend-views.ts, type-only). */
+export type { FleetItem as FleetStatusItem, TrendView as OutletTrend } from '../../server/jobs/trend-views.js';
 
 /** GET that answers null when the route is absent (404 from the router, not from a missing record). */
 export async function optional<T>(url: string): Promise<T | null> {
