@@ -3,6 +3,7 @@
  * the zod serializer checks them against these before they leave.
  */
 import { z } from 'zod';
+import { singleFitResult } from '../core/fit-result/schema.js';
 import type { Outlet, Vessel } from '../core/stored-vessel.js';
 
 export const idParams = z.object({ id: z.coerce.number().int().positive() });
@@ -89,7 +90,7 @@ export const fit = z
     outletId: z.number().int().nullable(),
     settings: json,
     vessel: json,
-    result: json,
+    result: singleFitResult,
     engineVersion: z.string(),
     status: z.enum(['draft', 'approved', 'rejected']),
     supersededBy: z.number().int().nullable(),

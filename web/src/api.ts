@@ -103,35 +103,11 @@ export interface Settings {
   fitDatum?: boolean;
   fitExponent?: boolean;
 }
-export interface Estimate {
-  value: number;
-  standardUncertainty: number;
-  ci95: [number, number];
-  coverageFactor?: number;
-  expandedUncertainty?: number;
-  effectiveDegreesOfFreedom?: number;
-}
-export interface Note {
-  code: string;
-  message: string;
-  stage?: string;
-}
-export interface FitResult {
-  converged: boolean;
-  dischargeCoefficient: Estimate | null;
-  effectiveAreaM2: Estimate;
-  window: { startS: number; endS: number; samples: number; startTime?: string | null; endTime?: string | null; chosenBy?: string; trims?: { what: string; fromS: number; toS: number; reason: string }[]; notes?: Note[] };
-  warnings: Note[];
-  parameters?: { name: string; unit: string; free: boolean; value: number; standardUncertainty: number | null; ci95?: [number, number] | null; atBound?: boolean }[];
-  correlations?: { parameters: string[]; matrix: number[][] };
-  residuals?: { samples: number; rmseM: number; maxAbsM: number; lag1Autocorrelation: number; durbinWatson: number };
-  modelComparison?: { chosen: { model: string; parameters: number; sumSquares: number; aic: number }; rows: { term: string; change: string; model: string; parameters: number; deltaAic: number | null; fTest?: { f: number; pValue: number } | null; converged?: boolean }[]; basis?: string };
-  headBands?: { headFromM: number; headToM: number; samples: number; dischargeCoefficient: number; standardUncertainty: number }[];
-  read?: { t0: string | null; samples: number; columns?: unknown[]; notes?: Note[] };
-  model?: { description?: string; equation?: string };
-  plot?: { log: { timeS: number[]; levelM: number[] }; window: { offsetS: number; timeS: number[]; observedM: number[]; fittedM: number[] } };
-  [more: string]: unknown;
-}
+// The fit result: the one shape (server/core/fit-result/schema.ts), type-only
+export type { SingleFitResult as FitResult, FitParameter } from '../../server/core/fit-result/schema.js';
+import type { SingleFitResult as FitResult } from '../../server/core/fit-result/schema.js';
+export type Estimate = FitResult['effectiveAreaM2'];
+export type Note = FitResult['warnings'][number];
 export interface Series {
   t0: string | null;
   timeS: number[];
