@@ -2,7 +2,6 @@
 // still verify under the newer engine: the audit chain and the report's hash hold, the stored fit is
 // not rewritten, and the recomputation says the engine changed and compares the numbers against a
 // stated tolerance instead of claiming bit equality.
-import { spawnSync } from 'node:child_process';
 import { cpSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -11,16 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { ENGINE_VERSION } from '../../server/core/version.js';
 import { engineChange } from '../../server/render/report-service.js';
 import type { FitJson } from '../../server/core/analysis-contract.js';
-import { root } from './run-cli.js';
-
-function efflux(dataDir: string, args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args], {
-    cwd: root,
-    encoding: 'utf8',
-    env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir },
-  });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+import { efflux, root } from './run-cli.js';
 
 const storedResult = (dir: string) => {
   const db = new Database(join(dir, 'efflux.sqlite'), { readonly: true });
@@ -39,7 +29,7 @@ describe('a database made before issue 13', () => {
     expect(JSON.parse(before).engineVersion).toBe('0.1.0');
     expect(ENGINE_VERSION).not.toBe('0.1.0');
 
-    const r = efflux(dir, ['report', 'verify', join(dir, 'fit-1.json')]);
+    const r = efflux(['report', 'verify', join(dir, 'fit-1.json')], { env: { EFFLUX_DATA_DIR: dir } });
     expect(r.code, r.stdout + r.stderr).toBe(0);
     expect(r.stdout).toMatch(/fit report ec4c1ee77d2a67b2: MATCHES the records/);
     expect(r.stdout).toMatch(/ok {3}file content hash/);
