@@ -62,6 +62,8 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const choice = withFile(request.log.fileName, () =>
     chooseDrainWindow(series, {
       outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
+      // the plan area at a reading (sensor frame), for the still-opening rule's head model
+      areaAtReadingM2: knownSensorZeroM === null ? undefined : (y: number) => setting.shape.areaM2(y + knownSensorZeroM),
       window,
     }),
   );
