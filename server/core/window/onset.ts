@@ -13,7 +13,9 @@
  *    closed form of a draining cylinder is exactly quadratic, and a short stretch of any drain
  *    nearly so), each side weighted by its own scatter, over the hold and the first stretch of
  *    the fall. t0 is scanned continuously (8 points between samples) over the stretch where the
- *    opening can lie; the least weighted sum of squares wins.
+ *    opening can lie, either side of the crossing; the least weighted sum of squares wins.
+ * A "hold" that falls at a fifth of the drain's first rate or more is no hold: the log starts
+ * already falling.
  */
 import { medianInPlace, MAD_TO_SIGMA, slopeOver } from './robust.js';
 
@@ -78,13 +80,16 @@ export function findOnset(
 ): Onset {
   const floor = Math.max(0.5 * noiseM, 0.3 * resolutionM, 1e-9 * Math.abs(levelM[candidateStart]) + 1e-12);
   const falling = (i: number): Onset => ({ index: i, timeS: timeS[i], holdLevelM: levelM[i], holdScatterM: 0, holdSamples: 0 });
-  const near = holdStats(levelM, excluded, Math.max(earliest, candidateStart - 30), candidateStart, floor);
+  // The level just before the fall (or, when the fall's start is found inside the hold near the
+  // log's start, the first readings).
+  const nearTo = candidateStart - earliest >= 5 ? candidateStart : Math.min(candidateEnd, earliest + 29);
+  const near = holdStats(levelM, excluded, Math.max(earliest, nearTo - 30), nearTo, floor);
   if (near.count < 5) return falling(candidateStart);
   const tol = Math.max(0.05 * dropM, 8 * noiseM, 2 * resolutionM);
-  const hs = holdStart(levelM, excluded, earliest, candidateStart, near.level, tol);
+  const hs = holdStart(levelM, excluded, earliest, nearTo, near.level, tol);
   // The hold, then again over the readings up to where the level leaves its band (the fall's
   // start from the decimated series may lie a little before or after the opening).
-  let hold = holdStats(levelM, excluded, hs, candidateStart, floor);
+  let hold = holdStats(levelM, excluded, hs, nearTo, floor);
   let cross = leavesBand(levelM, excluded, hs, candidateEnd, hold.level - 4 * hold.scatter);
   hold = holdStats(levelM, excluded, hs, Math.max(hs, cross - 1), floor);
   cross = leavesBand(levelM, excluded, hs, candidateEnd, hold.level - 4 * hold.scatter);
@@ -96,20 +101,28 @@ export function findOnset(
   let fitEnd = cross;
   while (fitEnd < candidateEnd && timeS[fitEnd + 1] <= timeS[cross] + span) fitEnd++;
   const rate = -slopeOver(timeS, levelM, cross, fitEnd, excluded);
-  // Where the opening can lie: back from the crossing by twice the time the initial fall needs
-  // to cross the band, and at least 10 samples and 2 s.
-  const back = Math.max(rate > 0 ? (8 * hold.scatter) / rate : Infinity, 10 * dt, 2);
+  // A hold does not trend: when the "hold" falls at a fifth of the drain's first rate or more,
+  // the log starts already falling.
+  const holdRate = -slopeOver(timeS, levelM, hs, cross - 1, excluded);
+  if (!(holdRate < 0.2 * rate)) return falling(hs);
+  // Where the opening can lie: either side of the crossing by twice the time the initial fall
+  // needs to cross the band, and at least 20 samples and 10 s (a correlated dip in the hold can
+  // put the crossing early, a wandering hold late); forward no deeper than 12 scatters.
+  const back = Math.max(rate > 0 ? (8 * hold.scatter) / rate : Infinity, 20 * dt, 10);
   let lo = cross;
   while (lo > hs + 1 && timeS[lo - 1] >= timeS[cross] - back) lo--;
-  const t0 = hingeFit(timeS, levelM, excluded, hs, lo, cross, fitEnd, hold);
+  let hi = cross;
+  const deep = hold.level - 12 * hold.scatter;
+  while (hi < fitEnd - 5 && timeS[hi + 1] <= timeS[cross] + back && !(levelM[hi] < deep && !excluded[hi])) hi++;
+  const t0 = hingeFit(timeS, levelM, excluded, hs, lo, hi, cross, fitEnd, hold);
   let index = lo;
-  while (index < cross && timeS[index] < t0) index++;
+  while (index < hi && timeS[index] < t0) index++;
   return { index, timeS: t0, holdLevelM: hold.level, holdScatterM: hold.scatter, holdSamples: hold.count };
 }
 
 /**
  * The hinge time minimising the weighted sum of squares (see the file's head), with t0 in
- * (t[lo−1], t[cross]]. Sums over the fall's side come from suffix sums in u = t − t[cross],
+ * (t[lo−1], t[hi]]. Sums over the fall's side come from suffix sums in u = t − t[cross],
  * expanded in t0, so each trial costs a few operations.
  */
 function hingeFit(
@@ -118,6 +131,7 @@ function hingeFit(
   excluded: Uint8Array,
   hs: number,
   lo: number,
+  hi: number,
   cross: number,
   fitEnd: number,
   hold: HoldStats,
@@ -170,7 +184,7 @@ function hingeFit(
   const wd = 1 / (sd * sd);
   let bestT = timeS[cross];
   let best = Infinity;
-  for (let i = lo; i <= cross; i++) {
+  for (let i = lo; i <= hi; i++) {
     const j = i - lo;
     const ta = timeS[i - 1];
     const tb = timeS[i];

@@ -12,11 +12,12 @@
  * the outlet and the vessel are known, rate × area without the outlet, the bare rate without
  * either — is steady or shrinking. Chunks of max(8 samples, 1/40 of the drain) each give a rate
  * and its standard error from a line fit; the valve is taken as open from the first chunk that no
- * later chunk in the first half of the drain exceeds by more than 3 combined standard errors,
- * and the trim runs to that chunk's end (the ramp may end inside it).
+ * later chunk in the first 80 % of the drain exceeds by more than 3 combined standard errors,
+ * and the trim runs to the end of the chunk after it (the ramp's last part is within the noise of
+ * full flow, so it may end a chunk later).
  */
 import type { Onset } from './onset.js';
-import { medianInPlace, slopeOver } from './robust.js';
+import { MAD_TO_SIGMA, medianInPlace, slopeOver } from './robust.js';
 
 export interface OpeningTrim {
   /** Seconds skipped after the onset. */
@@ -89,10 +90,11 @@ function stillOpeningS(timeS: Float64Array, levelM: Float64Array, excluded: Uint
   const duration = timeS[endIndex] - t0;
   const dt = duration / Math.max(1, endIndex - onset.index);
   const chunkS = Math.max(8 * dt, duration / 40);
-  const k: number[] = [];
-  const se: number[] = [];
+  const rate: number[] = [];
+  const rateSe: number[] = [];
+  const scales: number[] = [];
   let a = onset.index;
-  for (let c = 0; a <= endIndex && c * chunkS < 0.5 * duration; c++) {
+  for (let c = 0; a <= endIndex && c * chunkS < 0.8 * duration; c++) {
     const b = lastBefore(timeS, a, endIndex, t0 + (c + 1) * chunkS);
     const f = lineFit(timeS, levelM, excluded, a, b);
     let scale = ctx.areaAtReadingM2 ? ctx.areaAtReadingM2(f.meanM) : 1;
@@ -100,17 +102,28 @@ function stillOpeningS(timeS: Float64Array, levelM: Float64Array, excluded: Uint
       const head = f.meanM - ctx.outletReadingM;
       scale = head > 0 ? scale / Math.sqrt(head) : NaN;
     }
-    k.push(-f.slope * scale);
-    se.push(f.se * Math.abs(scale));
+    rate.push(-f.slope);
+    rateSe.push(f.se);
+    scales.push(scale);
     a = b + 1;
   }
+  // Correlated noise makes a line fit's standard error too small: the scatter of consecutive
+  // chunk rates about each other (scaled MAD of their differences / √2) is the floor, in rate
+  // units before the head model's scaling (which grows as the head falls).
+  const diffs = new Float64Array(Math.max(0, rate.length - 1));
+  let m = 0;
+  for (let c = 1; c < rate.length; c++) if (Number.isFinite(rate[c]) && Number.isFinite(rate[c - 1])) diffs[m++] = Math.abs(rate[c] - rate[c - 1]);
+  const seFloor = m >= 4 ? (MAD_TO_SIGMA * medianInPlace(diffs, m)) / Math.SQRT2 : 0;
+  const k = rate.map((r, c) => r * scales[c]);
+  const se = rateSe.map((e, c) => Math.max(e, seFloor) * Math.abs(scales[c]));
   for (let c = 0; c < k.length; c++) {
     if (!Number.isFinite(k[c])) continue;
     let open = true;
     for (let j = c + 1; j < k.length && open; j++) {
       if (Number.isFinite(k[j]) && k[j] > k[c] + 3 * Math.hypot(se[c], se[j])) open = false;
     }
-    if (open) return c === 0 ? 0 : (c + 1) * chunkS;
+    // the last stretch of a ramp is within the noise of full flow: one chunk more
+    if (open) return c === 0 ? 0 : (c + 2) * chunkS;
   }
   return 0;
 }
