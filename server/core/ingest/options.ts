@@ -40,5 +40,8 @@ export const DEFAULT_MAX_BYTES = 64 * 1024 * 1024;
 /** Rows with an unreadable cell that are skipped (with a warning) before the file is refused. */
 export const MAX_BAD_ROW_FRACTION = 0.01;
 
+/** Rows that repeat an earlier time with another value, as a share of all rows (and more than two), before the file is refused. */
+export const CLASH_FRACTION = 0.03;
+
 /** An interval longer than this many median intervals is reported as a gap. */
 export const GAP_FACTOR = 5;

@@ -8,7 +8,8 @@ import { lengthFactorToM, pressureFactorToPa, temperatureUnit } from '../units/i
 import { newParts, scanDateTime } from './datetime.js';
 import { readHeader, timeUnitMs, type HeaderReading } from './header.js';
 import type { Layout } from './layout.js';
-import { parseNumber } from './numbers.js';
+import { parseGroupedNumber } from './numbers.js';
+import { scanBasicIso } from './basic-time.js';
 import type { DateOrder, Quantity, ReadOptions } from './options.js';
 import type { ColumnRole, DetectedColumn, ReadNote } from './series.js';
 
@@ -44,12 +45,13 @@ const parts = newParts();
 
 function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number; min: number; fractional: boolean; dmy: boolean; mdy: boolean; dayMonth: boolean } {
   const dec = layout.decimal.charCodeAt(0);
+  const grp = layout.group ? layout.group.charCodeAt(0) : 0;
   const counts: Record<DataKind, number> = { number: 0, datetime: 0, date: 0, clock: 0, text: 0, empty: 0 };
   let maxAbs = 0, min = Infinity, fractional = false, dmy = false, mdy = false, dayMonth = false;
   for (const r of layout.sample) {
     const f = r.fields[col] ?? '';
     if (f.trim() === '') { counts.empty++; continue; }
-    const v = parseNumber(f, 0, f.length, dec);
+    const v = parseGroupedNumber(f, 0, f.length, dec, grp);
     if (Number.isFinite(v)) {
       counts.number++;
       maxAbs = Math.max(maxAbs, Math.abs(v));
@@ -57,7 +59,7 @@ function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number
       if (!Number.isInteger(v)) fractional = true;
       continue;
     }
-    if (scanDateTime(f, 0, f.length, parts)) {
+    if (scanDateTime(f, 0, f.length, parts) || scanBasicIso(f, 0, f.length, parts)) {
       if (parts.hasDate && !parts.yearFirst) {
         dayMonth = true;
         if (parts.n1 > 12) dmy = true;

@@ -8,7 +8,7 @@ import { dropRepeats, findGaps, sortByTime } from './clean.js';
 import { collect, countLines, type Collected } from './collect.js';
 import { detectEncoding, NotUtf8, type EncodingGuess } from './decode.js';
 import { findLayout, type Layout } from './layout.js';
-import { DEFAULT_MAX_BYTES, type ReadOptions } from './options.js';
+import { CLASH_FRACTION, DEFAULT_MAX_BYTES, type ReadOptions } from './options.js';
 import { makePlan, type Plan } from './plan.js';
 import { temperaturesC, toLevelM, type BaroSeries } from './quantity.js';
 import type { RowSource } from './rows.js';
@@ -42,7 +42,7 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideDateOrder(rs, plan, notes);
   const dated = tp.kind === 'text' || tp.kind === 'date+clock';
   const zone = opts.tz !== undefined && dated ? new ZoneResolver(opts.tz, fileName) : null;
-  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes));
+  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes), layout.group);
 
   if (col.badRows) warnings.push({ code: 'rows-skipped', message: `${col.badRows} row(s) with unreadable cells skipped (line ${col.badLines.join(', ')}${col.badRows > col.badLines.length ? ', …' : ''})` });
   if (col.n === 0) throw new InputError('no readable data rows', { file: fileName });
@@ -53,12 +53,25 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   if (col.withOffset) notes.push({ code: 'time-zone', message: `${col.withOffset} time(s) carry their UTC offset` });
   if (col.local && col.withOffset) warnings.push({ code: 'mixed-offsets', message: 'some times carry an offset and some do not' });
   if (col.repeated) warnings.push({ code: 'dst-repeated', message: `${col.repeated} time(s) in the hour repeated when clocks went back in ${zone!.zone}: resolved by row order` });
+  if (col.hourBack && !zone && col.local) {
+    throw new InputError(
+      `the time steps back by ${(col.hourBack.stepS / 60).toFixed(1)} min here: a clock change (clocks going back an hour) ` +
+        'in a log written in local time without offsets; give the zone the logger kept, e.g. --tz Europe/Lisbon (the same `tz` setting in the service)',
+      { file: fileName, line: col.hourBack.line, field: plan.columns[tp.kind === 'date+clock' ? tp.clockCol : tp.col]?.header },
+    );
+  }
   if (col.outOfOrder) {
     sortByTime(col);
     warnings.push({ code: 'rows-sorted', message: 'rows were out of time order: sorted by time' });
   }
   const rep = dropRepeats(col);
   if (rep.copies) warnings.push({ code: 'duplicates-dropped', message: `${rep.copies} repeated row(s) dropped (first on line ${rep.firstLine})` });
+  if (rep.conflicts > Math.max(2, CLASH_FRACTION * col.rows)) {
+    const hint = zone || !dated ? 'check the time column and the logger\'s clock'
+      : 'a clock change read without the zone is the usual cause: give the zone the logger kept, e.g. --tz Europe/Lisbon';
+    throw new InputError(`${rep.conflicts} of ${col.rows} rows repeat an earlier time with a different value (first on line ${rep.firstLine}), ` +
+      `more than ${CLASH_FRACTION * 100} %: ${hint}`, { file: fileName, line: rep.firstLine });
+  }
   if (rep.conflicts) warnings.push({ code: 'conflicting-duplicates', message: `${rep.conflicts} row(s) repeat an earlier time with a different value: the first kept (first on line ${rep.firstLine})` });
   if (col.n < 2) throw new InputError('only one data row: a drain test needs a series of readings', { file: fileName, line: col.line[0] });
   const tempC = plan.temperature && col.temp
