@@ -21,6 +21,8 @@ reading (when the file does not say it):
   --quantity level|gauge-pressure|absolute-pressure|distance-from-top
   --date-order dmy|mdy|ymd   --tz ZONE (e.g. Europe/Lisbon)   --baro FILE (barometric log)
   --delimiter CHAR       --decimal . or ,
+  --level-tag TAG        --baro-tag TAG  (files with one row per time, tag and value)
+  --sheet NAME           the workbook sheet to read (.xlsx; default the first)
   --window START..END    seconds from the log's start, or ISO 8601 timestamps
 output:
   --json                 one JSON object on stdout (one per line for several logs)

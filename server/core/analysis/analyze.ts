@@ -47,6 +47,9 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
     tz: settings.tz,
     delimiter: settings.delimiter,
     decimal: settings.decimal,
+    levelTag: settings.levelTag,
+    baroTag: settings.baroTag,
+    sheet: settings.sheet,
     baro: request.baro,
     fluidDensityKgM3: 'densityKgM3' in (vessel.fluid ?? {}) ? density.value : undefined,
     // a fluid temperature in the vessel file stands in when the log has no temperature column

@@ -122,7 +122,11 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     return t;
   };
 
+  const tagCol = plan.tagFilter?.col ?? -1;
+  const tag = plan.tagFilter?.tag ?? '';
   forEachRow(rs, (r) => {
+    // long format: only the rows of the tag being read
+    if (tagCol >= 0 && (tagCol >= r.count || r.src[tagCol].slice(r.start[tagCol], r.end[tagCol]).trim() !== tag)) return;
     rows++;
     if (r.count < need) {
       markBad(r, r.count, `row has ${r.count} fields, ${need} needed`);

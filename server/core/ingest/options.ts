@@ -18,6 +18,12 @@ export interface ReadOptions {
   /** Field delimiter: one character, or "tab". */
   delimiter?: string;
   decimal?: '.' | ',';
+  /** In a long-format file (time, tag, value rows): the tag of the level series. */
+  levelTag?: string;
+  /** In a long-format file: the tag of the barometric series, read from the same file. */
+  baroTag?: string;
+  /** Workbooks (.xlsx): the sheet to read, by name (default the first sheet). */
+  sheet?: string;
   /** A barometric log (absolute pressure) to subtract from an absolute-pressure log. */
   baro?: { bytes: Uint8Array; fileName: string };
   fluidDensityKgM3?: number;

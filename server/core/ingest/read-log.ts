@@ -9,7 +9,8 @@ import { collect, countLines, type Collected } from './collect.js';
 import { detectEncoding, NotUtf8, type EncodingGuess } from './decode.js';
 import { findLayout, type Layout } from './layout.js';
 import { CLASH_FRACTION, DEFAULT_MAX_BYTES, type ReadOptions } from './options.js';
-import { makePlan, type Plan } from './plan.js';
+import { makePlan, type LongPlan, type Plan } from './plan.js';
+import { findTagColumns, listTags, pickTag, type TagSummary } from './long-format.js';
 import { temperaturesC, toLevelM, type BaroSeries } from './quantity.js';
 import type { RowSource } from './rows.js';
 import type { LevelSeries, ReadNote } from './series.js';
@@ -21,6 +22,7 @@ interface Raw {
   layout: Layout;
   plan: Plan;
   col: Collected;
+  tags: TagSummary[] | null;
   tempC: Float64Array | null;
   absolute: boolean;
   notes: ReadNote[];
@@ -34,10 +36,11 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   const { head, newline } = readTextHead(bytes, fileName, guess);
   const layout = findLayout(head, fileName, opts);
   notes.push(...layout.notes);
-  const plan = makePlan(layout, opts, fileName, forBaro);
+  const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
+  const long = longFormat(rs, layout, opts, fileName, forBaro, notes);
+  const plan = makePlan(layout, opts, fileName, forBaro, long);
   notes.push(...plan.notes);
   warnings.push(...plan.warnings);
-  const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
   const tp = plan.time;
   if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideDateOrder(rs, plan, notes);
   const dated = tp.kind === 'text' || tp.kind === 'date+clock';
@@ -77,7 +80,34 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   const tempC = plan.temperature && col.temp
     ? temperaturesC(col.temp, col.n, plan.temperature.unit, col.line, fileName, plan.temperature.name) : null;
   const absolute = dated || (tp.kind === 'number' && tp.absolute);
-  return { layout, plan, col, tempC, absolute, notes, warnings };
+  return { layout, plan, col, tags: long?.tags ?? null, tempC, absolute, notes, warnings };
+}
+
+/** For a long-format file: its tags, and the one this pass reads (level or barometric). */
+function longFormat(rs: RowSource, layout: Layout, opts: ReadOptions, fileName: string, forBaro: boolean, notes: ReadNote[]): LongPlan | null {
+  const cols = findTagColumns(layout);
+  const wanted = forBaro ? opts.baroTag : opts.levelTag;
+  if (!cols) {
+    if (wanted !== undefined)
+      throw new InputError(`--${forBaro ? 'baro' : 'level'}-tag is for files with one row per time and tag; this file has one column per series (name the column with --level-column)`,
+        { file: fileName, field: forBaro ? 'baroTag' : 'levelTag' });
+    return null;
+  }
+  const tagHeader = layout.names[cols.tagCol];
+  const tags = listTags(rs, cols);
+  const tag = pickTag(tags, wanted, fileName, forBaro ? 'barometric' : 'level', tagHeader);
+  notes.push({ code: 'long-format', message: `one row per time and tag (tag column "${tagHeader}", ${tags.length} tag(s)): the ${forBaro ? 'barometric' : 'level'} series is tag "${tag.tag}"${tag.unit ? ` [${tag.unit}]` : ''}, ${tag.rows} rows` });
+  return { ...cols, tag, tags };
+}
+
+/** The tags of a long-format file (one row per time and tag), or null for an ordinary file. */
+export function readLogTags(bytes: Uint8Array, fileName: string, opts: ReadOptions = {}): TagSummary[] | null {
+  const guess = detectEncoding(bytes);
+  const { head, newline } = readTextHead(bytes, fileName, guess);
+  const layout = findLayout(head, fileName, opts);
+  const cols = findTagColumns(layout);
+  if (!cols) return null;
+  return listTags({ bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine }, cols);
 }
 
 function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro: boolean): Raw {
@@ -96,10 +126,12 @@ function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro
   return raw;
 }
 
-function readBaro(opts: ReadOptions): { series: BaroSeries; raw: Raw } | null {
-  if (!opts.baro) return null;
-  const { bytes, fileName: baroName } = opts.baro;
-  const raw = readRaw(bytes, baroName, { tz: opts.tz, dateOrder: opts.dateOrder }, true);
+function readBaro(opts: ReadOptions, levelBytes: Uint8Array, levelFile: string): { series: BaroSeries; raw: Raw } | null {
+  // a barometric tag in the level's own long-format file, or a file of its own
+  const source = opts.baroTag !== undefined ? { bytes: levelBytes, fileName: levelFile } : opts.baro;
+  if (!source) return null;
+  const { bytes, fileName: baroName } = source;
+  const raw = readRaw(bytes, baroName, { tz: opts.tz, dateOrder: opts.dateOrder, baroTag: opts.baroTag, delimiter: opts.baroTag !== undefined ? opts.delimiter : undefined, decimal: opts.baroTag !== undefined ? opts.decimal : undefined }, true);
   if (!raw.absolute) throw new InputError('the barometric log needs dates and times (not elapsed time)', { file: baroName });
   const n = raw.col.n;
   const pa = new Float64Array(n);
@@ -129,7 +161,7 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
   const raw = readRaw(bytes, fileName, options, false);
   const { col, plan, layout } = raw;
   const notes = raw.notes, warnings = raw.warnings;
-  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options) : null;
+  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options, bytes, fileName) : null;
   if (baro) warnings.push(...baro.raw.warnings.map((w) => ({ code: `baro-${w.code}`, message: `barometric log: ${w.message}` })));
   const { levelM, notes: qNotes } = toLevelM({ n: col.n, timeMs: col.timeMs, value: col.value, line: col.line, tempC: raw.tempC, absoluteTime: raw.absolute },
     plan, options, fileName, baro?.series ?? null);
@@ -156,6 +188,7 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
     sourceLine: col.line.subarray(0, n),
     metadata: layout.metadata,
     columns: plan.columns,
+    ...(raw.tags ? { tags: raw.tags } : {}),
     notes,
     warnings,
   };
