@@ -10,6 +10,7 @@ import { fitDrain, type DrainFitResult } from '../fit/fit-drain.js';
 import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
+import { intervalWiderThanValue, positiveInterval } from '../fit/interval.js';
 import { ENGINE_VERSION } from '../version.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
@@ -174,7 +175,20 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const fitted = new Float64Array(winPlot.timeS.length);
   predictReadings(p.setting, fit.variant.solution, fit.variant.theta, Float64Array.from(winPlot.timeS), fitted, null, new Int32Array(0));
 
+  // Cd·a and Cd are positive: intervals that would reach zero are given on the log scale, and a
+  // fit whose interval is wider than its value is flagged first among the warnings.
+  const eaCi = positiveInterval(ea.value, ea.standardUncertainty, ea.coverageFactor, ea.ci95);
+  const cdCi = positiveInterval(cd.value, cd.standardUncertainty, cd.coverageFactor, cd.ci95);
+  const uncertain = intervalWiderThanValue(ea.value, ea.ci95) || intervalWiderThanValue(cd.value, cd.ci95);
   const warnings = [
+    ...(uncertain
+      ? [{
+          code: 'interval-wider-than-value',
+          message: `the 95 % interval of Cd·a (${ea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
+            'the fit says little about Cd; do not use it without checking the window, the time column and the clock (--tz)',
+          stage: 'fit',
+        }]
+      : []),
     ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
     ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
     ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
@@ -186,7 +200,8 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     dischargeCoefficient: {
       value: cd.value,
       standardUncertainty: cd.standardUncertainty,
-      ci95: cd.ci95,
+      ci95: cdCi.ci95,
+      ...(cdCi.logScale ? { ci95Scale: 'log' } : {}),
       coverageFactor: cd.coverageFactor,
       expandedUncertainty: cd.expandedUncertainty,
       relativeStandardUncertainty: cd.relativeStandardUncertainty,
@@ -197,7 +212,8 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     effectiveAreaM2: {
       value: ea.value,
       standardUncertainty: ea.standardUncertainty,
-      ci95: ea.ci95,
+      ci95: eaCi.ci95,
+      ...(eaCi.logScale ? { ci95Scale: 'log' } : {}),
       coverageFactor: ea.coverageFactor,
       expandedUncertainty: ea.expandedUncertainty,
       relativeStandardUncertainty: ea.relativeStandardUncertainty,
@@ -226,7 +242,11 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       terms: fit.variant.terms,
       solution: fit.variant.solution === 'closed-form' ? 'closed form (constant plan area)' : 'ODE with sensitivity equations (RK4, Hermite output)',
     },
-    parameters: fit.parameters.map((q) => ({ ...q, standardUncertainty: q.free ? q.standardUncertainty : null })),
+    parameters: fit.parameters.map((q) => ({
+      ...q,
+      standardUncertainty: q.free ? q.standardUncertainty : null,
+      ...(q.name === 'effectiveAreaM2' && q.ci95 ? { ci95: positiveInterval(q.value, q.standardUncertainty, ea.coverageFactor, q.ci95).ci95 } : {}),
+    })),
     correlations: { parameters: free, matrix },
     residuals: fit.residuals,
     uncertaintyMethod: {
