@@ -6,7 +6,7 @@
  * to fitting the wrong series.
  */
 import { InputError } from '../errors.js';
-import type { Layout } from './layout.js';
+import { isDataCell, type Layout } from './layout.js';
 import { forEachRow, type RowSource } from './rows.js';
 
 export interface TagSummary {
@@ -24,9 +24,10 @@ export interface TagColumns {
 const TAG_WORDS = /^(tag|tags|tagname|tag name|tag id|tagid|name|point|point name|pointname|signal|variable|channel|item|parameter|series|sensor|measurement)$/i;
 const UNIT_WORDS = /^(unit|units|uom|eu|eng units|engineering units|engunits|unit of measure)$/i;
 
+/** Words, not a number or a date and time ("11:59 PM" and "20260611T070000Z" have letters too). */
 function isText(f: string): boolean {
   const t = f.trim();
-  return t !== '' && /[A-Za-z_]/.test(t);
+  return t !== '' && /[A-Za-z_]/.test(t) && !isDataCell(t);
 }
 
 /**
