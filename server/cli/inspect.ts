@@ -1,4 +1,5 @@
-import { prepareDrainTest, detectedSummary } from '../core/analyze.js';
+import { prepareDrainTest, detectedSummary, expandWorkbook } from '../core/analyze.js';
+import { isZip } from '../core/ingest/workbook.js';
 import { InputError } from '../core/errors.js';
 import { describeLog } from '../core/ingest/describe.js';
 import { readLevelLog, readLogTags } from '../core/ingest/read-log.js';
@@ -19,7 +20,7 @@ their units and row counts until --level-tag names the level. Reading options ar
 `;
 
 export async function runInspect(argv: string[]): Promise<number> {
-  return guarded(() => {
+  return guarded(async () => {
     const { values, positionals } = parseCommandLine(argv, READ_OPTIONS);
     if (values.help) {
       process.stdout.write(USAGE);
@@ -29,7 +30,7 @@ export async function runInspect(argv: string[]): Promise<number> {
     const settings = settingsFrom(values);
     const log = readInputFile(positionals[0]);
     // A long-format file with several tags and none named: list them, so the level tag can be named.
-    const tags = settings.levelTag === undefined ? readLogTags(log.bytes, log.fileName, settings) : null;
+    const tags = settings.levelTag === undefined && !isZip(log.bytes) ? readLogTags(log.bytes, log.fileName, settings) : null;
     if (tags && tags.length > 1) {
       const listed = { tags, hint: 'one row per time and tag: name the level tag with --level-tag TAG (and the barometric one with --baro-tag)' };
       process.stdout.write(values.json ? JSON.stringify(listed, null, 2) + '\n' : tagText(positionals[0], tags, listed.hint));
@@ -40,9 +41,10 @@ export async function runInspect(argv: string[]): Promise<number> {
     if (values.vessel) {
       const vf = readInputFile(values.vessel, 1024 * 1024);
       const vessel = parseVesselFile(new TextDecoder().decode(vf.bytes), values.vessel);
-      detected = detectedSummary(prepareDrainTest({ log, baro, vessel, vesselFileName: values.vessel, settings }));
+      detected = detectedSummary(prepareDrainTest(await expandWorkbook({ log, baro, vessel, vesselFileName: values.vessel, settings })));
     } else {
-      const series = readLevelLog(log.bytes, log.fileName, { ...settings, baro });
+      const text = await expandWorkbook({ log, baro, vessel: null, settings });
+      const series = readLevelLog(text.log.bytes, text.log.fileName, { ...settings, baro: text.baro });
       const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs, settings.tz) : undefined;
       const choice = chooseDrainWindow(series, { window });
       detected = { ...describeLog(series), window: choice.window, candidates: choice.candidates, spikes: choice.spikes, flatLines: choice.flatLines, clipping: choice.clipping, trims: choice.trims, windowNotes: choice.notes, windowWarnings: choice.warnings };

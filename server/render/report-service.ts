@@ -5,7 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import type { AnalysisRequest, FitJson } from '../core/analysis-contract.js';
-import { analyzeDrainTest } from '../core/analyze.js';
+import { analyzeDrainTest, expandWorkbook } from '../core/analyze.js';
 import {
   buildFitReport,
   buildOutletReport,
@@ -71,14 +71,14 @@ const withoutTiming = (r: Record<string, unknown>) => {
 };
 
 /** Re-runs a stored fit from the stored bytes and settings; identical numbers, timing aside, or the differences. */
-export function reproduceFit(store: Store, fitId: number): Check {
+export async function reproduceFit(store: Store, fitId: number): Promise<Check> {
   const { request, result } = storedRequest(store, fitId);
   const raw = sha256(request.log.bytes);
   const test = store.tests.get(store.fits.get(fitId).testId);
   if (raw !== test.sha256) return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored raw bytes hash to ${raw}, not the recorded ${test.sha256}` };
   let again: FitJson;
   try {
-    again = analyzeDrainTest(request).fit;
+    again = analyzeDrainTest(await expandWorkbook(request)).fit;
   } catch (e) {
     return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored input no longer analyses: ${(e as Error).message}` };
   }
@@ -156,7 +156,7 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   }
   // 4. every fit reproduces from the stored raw bytes, and matches what the audit log recorded
   for (const id of fitIds) {
-    checks.push(reproduceFit(store, id));
+    checks.push(await reproduceFit(store, id));
     checks.push(auditedResult(store, id));
   }
   // 5. the audit chain

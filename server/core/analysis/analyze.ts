@@ -1,4 +1,4 @@
-import type { AnalysisOutcome, AnalysisRequest, FitJson } from '../analysis-contract.js';
+import type { AnalysisOutcome, AnalysisRequest, FitJson, RawFile } from '../analysis-contract.js';
 import { InputError } from '../errors.js';
 import { makeShape } from '../geometry/index.js';
 import { readLevelLog } from '../ingest/read-log.js';
@@ -11,6 +11,7 @@ import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
 import { intervalWiderThanValue, positiveInterval } from '../fit/interval.js';
+import { isZip, workbookAsText } from '../ingest/workbook.js';
 import { ENGINE_VERSION } from '../version.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
@@ -30,6 +31,22 @@ export interface PreparedTest {
   choice: WindowChoice;
   knownSensorZeroM: number | null;
   density: { value: number; source: string };
+}
+
+/**
+ * A request whose log (or barometric log) is an .xlsx workbook, with that file replaced by the
+ * chosen sheet as text (same file name, so messages name the workbook). The shells call this
+ * before analyzeDrainTest / prepareDrainTest: the workbook reader is asynchronous. Text logs
+ * pass through untouched.
+ */
+export async function expandWorkbook(request: AnalysisRequest): Promise<AnalysisRequest> {
+  const sheet = request.settings?.sheet;
+  const expand = async (f: RawFile | undefined): Promise<RawFile | undefined> =>
+    f && isZip(f.bytes) ? { bytes: (await workbookAsText(f.bytes, f.fileName, sheet)).bytes, fileName: f.fileName } : f;
+  if (!isZip(request.log.bytes) && !(request.baro && isZip(request.baro.bytes))) return request;
+  const log = (await expand(request.log))!;
+  const baro = await expand(request.baro);
+  return { ...request, log, ...(baro ? { baro } : {}) };
 }
 
 /** Read the log and choose the window: everything `efflux inspect` shows. */

@@ -15,6 +15,7 @@ import { temperaturesC, toLevelM, type BaroSeries } from './quantity.js';
 import type { RowSource } from './rows.js';
 import type { LevelSeries, ReadNote } from './series.js';
 import { ZoneResolver } from './zone.js';
+import { isZip } from './workbook.js';
 import { decideDateOrder, readTextHead } from './head.js';
 
 
@@ -115,6 +116,10 @@ function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro
   const max = opts.maxBytes ?? DEFAULT_MAX_BYTES;
   if (bytes.length > max) throw new InputError(`file is ${bytes.length} bytes, more than the ${max} allowed`, { file: fileName });
   if (bytes.length === 0) throw new InputError('empty file', { file: fileName });
+  if (isZip(bytes)) {
+    throw new InputError('a workbook or zip archive, not a text log: efflux fit, efflux inspect and the service read .xlsx workbooks (first sheet, or --sheet NAME); elsewhere export the sheet as CSV',
+      { file: fileName });
+  }
   const guess = detectEncoding(bytes);
   try {
     return pass(bytes, fileName, opts, guess, forBaro);
