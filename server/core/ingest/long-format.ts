@@ -52,10 +52,17 @@ export function findTagColumns(layout: Layout): TagColumns | null {
   if (timeCol < 0 || candidates.length === 0) return null;
   const times = layout.sample.map((r) => (r.fields[timeCol] ?? '').trim());
   if (new Set(times).size === times.length) return null;
-  // several rows at one time: the text column with the most distinct values among those rows names them
+  // several rows at one time that differ in a text column: that column names them (rows merely
+  // pasted twice repeat their text too, and stay an ordinary file)
   let best = -1, bestDistinct = 1;
   for (const c of candidates) {
-    const d = new Set(layout.sample.map((r) => (r.fields[c] ?? '').trim())).size;
+    const atTime = new Map<string, Set<string>>();
+    layout.sample.forEach((r, i) => {
+      const set = atTime.get(times[i]) ?? new Set<string>();
+      set.add((r.fields[c] ?? '').trim());
+      atTime.set(times[i], set);
+    });
+    const d = Math.max(...[...atTime.values()].map((x) => x.size));
     if (d > bestDistinct) (best = c), (bestDistinct = d);
   }
   return best >= 0 ? { tagCol: best, unitCol } : null;

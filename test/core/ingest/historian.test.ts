@@ -167,6 +167,14 @@ describe('plant historian exports', () => {
       expect(() => fit(text, 'long.csv', { levelTag: 'FD1.LVL' })).toThrow(/no tag "FD1.LVL"/);
     });
 
+    it('an ordinary file with a text column and rows pasted twice is not taken for long format', () => {
+      const wide = ['Time,Level (m),Status'];
+      for (let i = 0; i < 20; i++) wide.push(`2026-03-01 10:00:${String(i).padStart(2, '0')},${(2 - i * 0.01).toFixed(3)},OK`);
+      const s = readLevelLog(enc(wide.concat(wide.slice(1, 6)).join('\n')), 'pasted.csv');
+      expect(s.tags).toBeUndefined();
+      expect(s.levelM.length).toBe(20);
+    });
+
     it('efflux inspect lists the tags with units and counts', () => {
       const dir = mkdtempSync(join(tmpdir(), 'efflux-tags-'));
       writeFileSync(join(dir, 'long.csv'), text);
