@@ -11,6 +11,7 @@ import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
 import { ENGINE_VERSION } from '../version.js';
+import { budgetForFit } from '../budget/for-fit.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
 
@@ -162,6 +163,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const k = free.length;
   const matrix = free.map((_, i) => free.map((__, j) => unc.correlations[i * k + j]));
   const nominal = fit.nominalAreaM2;
+  const budget = budgetForFit(p, fit, data);
 
   // drawing data: the whole log, and the window with the fitted curve
   const logPlot = decimateForDrawing(series.timeS, series.levelM, 600);
@@ -173,30 +175,34 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
     ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
     ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
+    ...budget.warnings.map((x) => ({ ...x, stage: 'budget' })),
   ];
   const excluded = w.samples - data.timeS.length;
   const json: FitJson = {
     engineVersion: ENGINE_VERSION,
     converged: fit.solver.converged,
+    // the headline carries the full budget (server/core/budget); typeA… keeps the fit's own part
     dischargeCoefficient: {
       value: cd.value,
-      standardUncertainty: cd.standardUncertainty,
-      ci95: cd.ci95,
-      coverageFactor: cd.coverageFactor,
-      expandedUncertainty: cd.expandedUncertainty,
-      relativeStandardUncertainty: cd.relativeStandardUncertainty,
-      effectiveDegreesOfFreedom: cd.effectiveDegreesOfFreedom,
+      standardUncertainty: budget.dischargeCoefficient.combinedStandardUncertainty,
+      ci95: budget.dischargeCoefficient.ci95,
+      coverageFactor: budget.dischargeCoefficient.coverageFactor,
+      expandedUncertainty: budget.dischargeCoefficient.expandedUncertainty,
+      relativeStandardUncertainty: budget.dischargeCoefficient.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: budget.dischargeCoefficient.effectiveDegreesOfFreedom,
       fitContribution: cd.fitContribution,
       boreContribution: cd.boreContribution,
+      typeAStandardUncertainty: budget.typeA.standardUncertainty / nominal,
     } as FitJson['dischargeCoefficient'],
     effectiveAreaM2: {
       value: ea.value,
-      standardUncertainty: ea.standardUncertainty,
-      ci95: ea.ci95,
-      coverageFactor: ea.coverageFactor,
-      expandedUncertainty: ea.expandedUncertainty,
-      relativeStandardUncertainty: ea.relativeStandardUncertainty,
-      effectiveDegreesOfFreedom: ea.effectiveDegreesOfFreedom,
+      standardUncertainty: budget.effectiveAreaM2.combinedStandardUncertainty,
+      ci95: budget.effectiveAreaM2.ci95,
+      coverageFactor: budget.effectiveAreaM2.coverageFactor,
+      expandedUncertainty: budget.effectiveAreaM2.expandedUncertainty,
+      relativeStandardUncertainty: budget.effectiveAreaM2.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: budget.effectiveAreaM2.effectiveDegreesOfFreedom,
+      typeAStandardUncertainty: budget.typeA.standardUncertainty,
       profileCi95: ea.profileCi95,
     } as FitJson['effectiveAreaM2'],
     window: {
@@ -236,6 +242,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       boreUncertainty: 'bore tolerance as a rectangular distribution, u(d) = T/√3 (JCGM 100:2008, 4.3.7)',
       profile: ea.profile,
     },
+    budget,
     modelComparison: fit.comparison,
     headBands: fit.headBands.map((b) => ({ ...b, dischargeCoefficient: b.effectiveAreaM2 / nominal, standardUncertainty: b.standardUncertainty / nominal })),
     solver: {
