@@ -3,6 +3,7 @@ import type { HeadBand } from '../fit/head-bands.js';
 import { driftCheck, type DriftCheck } from './drift.js';
 import { budgetInputs, type InputContext, type Source } from './inputs.js';
 import { linearise, parameterSensitivity, type FittedModel } from './sensitivity.js';
+import { budgetTable, type BudgetTable } from './table.js';
 
 /**
  * The uncertainty budget of Cd·a and Cd in the terms of JCGM 100:2008 (GUM): each input with its
@@ -54,6 +55,8 @@ export interface UncertaintyBudget {
   typeA: { standardUncertainty: number; ar1StandardUncertainty: number; degreesOfFreedom: number; drift: DriftCheck };
   notes: string[];
   warnings: { code: string; message: string }[];
+  /** The table as printed (same strings in the CLI report, the fit page and the PDF). */
+  table: BudgetTable;
 }
 
 export interface BudgetRequest extends InputContext {
@@ -145,7 +148,7 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
   if (unstated.length) notes.push(`not stated in the vessel file, counted as 0: ${[...new Set(unstated)].join(', ')}`);
   if (req.datumFitted) notes.push('the sensor zero is fitted: its uncertainty is inside the type-A line');
   const warnings = drift.reason ? [{ code: 'systematic-drift', message: drift.reason }] : [];
-  return { basis: 'JCGM 100:2008 (GUM), law of propagation of uncertainty with independent inputs', lines, effectiveAreaM2, dischargeCoefficient, typeA: { standardUncertainty: uA, ar1StandardUncertainty: req.typeAStandardUncertainty, degreesOfFreedom: nuA, drift }, notes, warnings };
+  return { basis: 'JCGM 100:2008 (GUM), law of propagation of uncertainty with independent inputs', lines, effectiveAreaM2, dischargeCoefficient, typeA: { standardUncertainty: uA, ar1StandardUncertainty: req.typeAStandardUncertainty, degreesOfFreedom: nuA, drift }, notes, warnings, table: budgetTable(lines, dischargeCoefficient, effectiveAreaM2) };
 }
 
 function combine(value: number, parts: Array<[number, number | null]>): CombinedQuantity {
