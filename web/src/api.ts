@@ -149,6 +149,8 @@ export interface FitResult {
   residuals?: { samples: number; rmseM: number; maxAbsM: number; lag1Autocorrelation: number; durbinWatson: number };
   modelComparison?: { chosen: { model: string; parameters: number; sumSquares: number; aic: number }; rows: { term: string; change: string; model: string; parameters: number; deltaAic: number | null; fTest?: { f: number; pValue: number } | null; converged?: boolean }[]; basis?: string };
   headBands?: { headFromM: number; headToM: number; samples: number; dischargeCoefficient: number; standardUncertainty: number }[];
+  /** The uncertainty budget (server/core/budget): the table's strings are the ones the CLI and the PDF print. */
+  budget?: { table: { columns: string[]; rows: string[][]; totals: [string, string][] }; notes: string[]; lines: unknown[] };
   read?: { t0: string | null; samples: number; columns?: unknown[]; notes?: Note[] };
   model?: { description?: string; equation?: string };
   plot?: { log: { timeS: number[]; levelM: number[] }; window: { offsetS: number; timeS: number[]; observedM: number[]; fittedM: number[] } };

@@ -40,5 +40,5 @@ export function singleVesselModel(value: unknown, single: { vessel: DrainVessel;
   const u = f.effectiveAreaM2?.standardUncertainty;
   if (!(typeof u === 'number' && u >= 0)) throw new InputError('the fit has no standard uncertainty of Cd·a', { file: fileName, field: 'effectiveAreaM2.standardUncertainty' });
   const nu = f.effectiveAreaM2?.effectiveDegreesOfFreedom ?? 1e7;
-  return { spec, model: { network, theta, free: Int32Array.of(P.effectiveArea), covariance: Float64Array.of(u * u), degreesOfFreedom: nu } };
+  return { spec, model: { network, theta, free: Int32Array.of(P.effectiveArea), covariance: Float64Array.of(u * u), degreesOfFreedom: nu, specs: [spec.vessels[0].shape] } };
 }
