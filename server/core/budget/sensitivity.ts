@@ -135,11 +135,14 @@ export function parameterSensitivity(model: FittedModel, lin: Linearisation, inp
   const plus = new Float64Array(m);
   const minus = new Float64Array(m);
   const h = input.step;
+  // a stage–area point at height 0 cannot move down: a forward difference there
+  const forward = input.effect.kind === 'vessel-field' && input.unit === 'm' && input.value - h < 0;
   residualsWith(model, input, h, plus);
-  residualsWith(model, input, -h, minus);
+  residualsWith(model, input, forward ? 0 : -h, minus);
+  const span = forward ? h : 2 * h;
   const g = new Float64Array(k);
   for (let i = 0; i < m; i++) {
-    const d = (plus[i] - minus[i]) / (2 * h);
+    const d = (plus[i] - minus[i]) / span;
     const row = i * k;
     for (let a = 0; a < k; a++) g[a] += jacobian[row + a] * d;
   }
