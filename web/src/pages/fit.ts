@@ -105,7 +105,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
       e.preventDefault();
       try {
         const p = drainTimeWithBudget(drainModel.vessel, drainModel.lines, Number(fromIn.value), Number(toIn.value));
-        answer.replaceChildren(`${seconds(p.value)} (${num(p.value, 6)} s); 95 % interval ${num(p.ci95[0], 6)} s to ${num(p.ci95[1], 6)} s`);
+        answer.replaceChildren(`${num(p.value, 6)} s, about ${(p.value / 60).toFixed(1)} min; 95 % interval ${num(p.ci95[0], 6)} s to ${num(p.ci95[1], 6)} s (k = ${num(p.coverageFactor, 3)})`);
       } catch (err) {
         answer.replaceChildren(notice('error', err instanceof Error ? err.message : String(err)));
       }
