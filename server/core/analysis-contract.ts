@@ -53,6 +53,6 @@ export interface FitJson {
   effectiveAreaM2: { value: number; standardUncertainty: number; ci95: [number, number] };
   window: { startS: number; endS: number; samples: number; [key: string]: unknown };
   warnings: { code: string; message: string }[];
-  timing: { parseMs: number; fitMs: number; diagnosticsMs?: number };
+  timing: { parseMs: number; fitMs: number; diagnosticsMs?: number; budgetMs?: number };
   [key: string]: unknown;
 }

@@ -12,6 +12,7 @@ import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/sch
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
 import { ENGINE_VERSION } from '../version.js';
 import { budgetForFit } from '../budget/for-fit.js';
+import type { UncertaintyBudget } from '../budget/budget.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
 
@@ -105,10 +106,13 @@ export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks =
     outlet: vessel.outlet,
     now,
   });
-  const json = fitJson(prepared, fit, { timeS, levelM });
+  const t2 = now();
+  const budget = budgetForFit(prepared, fit, { timeS, levelM });
+  const t3 = now();
+  const json = fitJson(prepared, fit, { timeS, levelM }, budget);
   // fitMs: solver and uncertainty (covariance, correction, profile interval); diagnosticsMs: the
-  // model comparison, head bands and warnings
-  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs };
+  // model comparison, head bands and warnings; budgetMs: the uncertainty budget and drift check
+  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs, budgetMs: t3 - t2 };
   return { detected: detectedSummary(prepared), fit: json };
 }
 
@@ -153,7 +157,7 @@ function finite(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }
 
-function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }): FitJson {
+function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }, budget: UncertaintyBudget): FitJson {
   const { vessel, series, choice } = p;
   const w = choice.window;
   const unc = fit.uncertainty;
@@ -163,7 +167,6 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const k = free.length;
   const matrix = free.map((_, i) => free.map((__, j) => unc.correlations[i * k + j]));
   const nominal = fit.nominalAreaM2;
-  const budget = budgetForFit(p, fit, data);
 
   // drawing data: the whole log, and the window with the fitted curve
   const logPlot = decimateForDrawing(series.timeS, series.levelM, 600);

@@ -59,7 +59,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
 
   // warnings, in the service's own plain sentences
   main.append(
-    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : 'the fit'}: `) : null, inWords(w.message)))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
+    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : w.stage === 'budget' ? 'the uncertainty budget' : 'the fit'}: `) : null, inWords(w.message)))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
   );
 
   // charts
