@@ -108,6 +108,12 @@ describe('efflux predict from a single-vessel fit', () => {
     // Cd·a·√(2g·H) = Q at equilibrium
     expect(level.levelM.value).toBeCloseTo((0.002 / (fit.effectiveAreaM2.value * Math.sqrt(2 * G))) ** 2 + 0.1, 6);
     expect(level.levelM.standardUncertainty).toBeGreaterThan(0);
+    // τ = 2·A·√H/(Cd·a·√(2g)) about the operating head (linearised Torricelli drain)
+    const lin = JSON.parse(cli(['linearize', fitJsonFile, '--inflow', '2L/s', '--format', 'json']).stdout);
+    const H = (0.002 / (fit.effectiveAreaM2.value * Math.sqrt(2 * G))) ** 2;
+    const tau = (2 * A * Math.sqrt(H)) / (fit.effectiveAreaM2.value * Math.sqrt(2 * G));
+    expect(Math.abs(lin.timeConstantsS[0].value / tau - 1)).toBeLessThan(1e-6);
+    expect(lin.timeConstantsS[0].standardUncertainty).toBeGreaterThan(0);
   }, 60_000);
 });
 

@@ -101,7 +101,7 @@ function headline(lines: string[], f: FitJson & Record<string, any>): void {
   if (cd) {
     const u = cd.standardUncertainty;
     lines.push(`Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
-    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, the bore tolerance dominates' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
+    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, stated limits dominate' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
   }
   const ue = ea.standardUncertainty;
   lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
