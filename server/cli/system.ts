@@ -16,7 +16,7 @@ import { buildNetwork } from '../core/system/network.js';
 import { parseJsonText, parseSystemFile, type SystemSpec } from '../core/system/schema.js';
 import { steadyState } from '../core/system/steady.js';
 import { drainTimeWithBudget, drainVesselFromFit, levelAfterWithBudget } from '../core/budget/drain-time.js';
-import { singleVesselModel } from '../core/budget/single-vessel.js';
+import { requireOrificeLaw, singleVesselModel } from '../core/budget/single-vessel.js';
 import { openStore } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
 import { dataDir } from './serve-config.js';
@@ -170,7 +170,8 @@ export async function runSteady(argv: string[]): Promise<number> {
       process.stdout.write(STEADY_USAGE);
       return EXIT_OK;
     }
-    const { spec, model, name } = readModel(positionals);
+    const { spec, model, name, single } = readModel(positionals);
+    if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const s = steadyState(model, q);
     if (values.json) {
@@ -206,7 +207,8 @@ export async function runLinearize(argv: string[]): Promise<number> {
     }
     const format = values.format ?? 'text';
     if (!['json', 'csv', 'text'].includes(format)) throw new InputError(`--format must be json, csv or text (got "${format}")`);
-    const { spec, model, name } = readModel(positionals);
+    const { spec, model, name, single } = readModel(positionals);
+    if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const lm = linearize(model, q);
     const out = format === 'json' ? JSON.stringify(lm, null, 2) + '\n' : format === 'csv' ? linearModelCsv(lm) : linearModelText(lm);
@@ -238,6 +240,7 @@ export async function runPredict(argv: string[]): Promise<number> {
       if (values.until !== undefined && !values.until.includes('=')) values.until = `${ids[0]}=${values.until}`;
     }
     if (single && !(values.inflow ?? []).length) return predictSingle(single, spec.name, ids[0], values.from ?? [], values.after, values.until, !!values.json);
+    if (single) requireOrificeLaw(single.vessel, name);
     const start = new Float64Array(ids.length);
     const given = new Set<string>();
     for (const item of values.from ?? []) {

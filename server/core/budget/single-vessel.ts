@@ -42,3 +42,10 @@ export function singleVesselModel(value: unknown, single: { vessel: DrainVessel;
   const nu = f.effectiveAreaM2?.effectiveDegreesOfFreedom ?? 1e7;
   return { spec, model: { network, theta, free: Int32Array.of(P.effectiveArea), covariance: Float64Array.of(u * u), degreesOfFreedom: nu, specs: [spec.vessels[0].shape] } };
 }
+
+/** Steady states, linear models and predictions with an inflow use the orifice law: refuse a fit with another exponent. */
+export function requireOrificeLaw(vessel: DrainVessel, fileName: string): void {
+  if (Math.abs(vessel.exponent - 0.5) > 1e-12) {
+    throw new InputError(`the fit's head exponent is n = ${vessel.exponent}; steady states, linear models and predictions with an inflow use the orifice law (n = 0.5): refit without --fit-exponent, or predict with no inflow`, { file: fileName, field: 'parameters.headExponent' });
+  }
+}

@@ -164,6 +164,15 @@ describe('ODE shapes: the linear response against central differences of whole r
       const clock = (e: number) => ({ timeS: data.timeS.map((t) => t * (1 + e)), levelM: data.levelM });
       check('logger.clockRate', central(refit(vessel, clock(h)).variant.theta[0], refit(vessel, clock(-h)).variant.theta[0], h));
       const shifted = (e: number) => ({ timeS: data.timeS, levelM: data.levelM.map((y) => y + e) });
+      // a pressure sensor: density (h = p/(ρg), readings × ρ0/ρ) and the barometer's offset (+δ/(ρg))
+      const rho = 998.2;
+      const pressure = budgetOf({ ...vessel, fluid: { densityKgM3: rho } } as VesselSpec, fit, data, { quantity: 'absolute-pressure', densityKgM3: rho }).lines;
+      const hRho = 1;
+      const dens = central(refit(vessel, scaled(hRho / rho)).variant.theta[0], refit(vessel, scaled(-hRho / rho)).variant.theta[0], hRho);
+      expect(Math.abs(byKey(pressure, 'fluid.density').sensitivityEffectiveArea - dens)).toBeLessThan(Math.max(0.02 * Math.abs(dens), 1e-6 * c));
+      const hPa = 100;
+      const baro = central(refit(vessel, shifted(hPa / (rho * g))).variant.theta[0], refit(vessel, shifted(-hPa / (rho * g))).variant.theta[0], hPa);
+      expect(Math.abs(byKey(pressure, 'sensor.barometer').sensitivityEffectiveArea - baro)).toBeLessThan(Math.max(0.02 * Math.abs(baro), 1e-7 * c));
       const top2 = budgetOf({ ...vessel, sensor: { mountElevationM: 3.5 } } as VesselSpec, fit, data, { quantity: 'distance-from-top' }).lines;
       const mount = byKey(top2, 'sensor.mountElevationM').sensitivityEffectiveArea;
       const mountRefit = central(refit(vessel, shifted(h)).variant.theta[0], refit(vessel, shifted(-h)).variant.theta[0], h);
