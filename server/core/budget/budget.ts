@@ -2,7 +2,7 @@ import { tQuantile } from '../stats/index.js';
 import type { HeadBand } from '../fit/head-bands.js';
 import { driftCheck, type DriftCheck } from './drift.js';
 import { budgetInputs, type InputContext, type Source } from './inputs.js';
-import { linearise, parameterSensitivity, type FittedModel } from './sensitivity.js';
+import { linearise, parameterSensitivity, type FittedModel, type Linearisation } from './sensitivity.js';
 import { budgetTable, type BudgetTable } from './table.js';
 
 /**
@@ -73,10 +73,18 @@ const NU_CAP = 1e7;
 export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
   const { model, boreM } = req;
   const nominal = (Math.PI * boreM * boreM) / 4;
-  const lin = linearise(model);
+  let lin: Linearisation | null = null;
+  try {
+    lin = linearise(model);
+  } catch (e) {
+    // θ̂ outside the model's domain (an unconverged fit): no coefficients, said in each line
+    if (!(e instanceof RangeError)) throw e;
+  }
   const cdA = model.theta[0];
   const cd = cdA / nominal;
-  const drift = driftCheck(lin, req.typeAStandardUncertainty ** 2, req.headBands);
+  const drift: DriftCheck = lin
+    ? driftCheck(lin, req.typeAStandardUncertainty ** 2, req.headBands)
+    : { blocks: 0, jackknifeRatio: null, jackknifeLimit: null, headBandRatio: null, headBandLimit: null, varianceFactor: 1, degreesOfFreedom: null, reason: null };
   const uA = req.typeAStandardUncertainty * Math.sqrt(drift.varianceFactor);
   const nuA = drift.degreesOfFreedom ?? req.typeADegreesOfFreedom;
   const lines: BudgetLine[] = [];
@@ -105,6 +113,10 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
     let note = input.note ?? null;
     if (input.effect.kind === 'bore') {
       cCd = (-2 * cd) / boreM;
+    } else if (!lin) {
+      cA = NaN;
+      cCd = NaN;
+      note = 'sensitivity could not be computed: the fitted parameters are outside the model (the fit did not converge)';
     } else if (input.effect.kind === 'per-reading') {
       // independent per-reading errors: the effect on Cd·a is √((JᵀJ)⁻¹_aa) per unit u; inside type A
       cA = lin.areaColumn >= 0 ? Math.sqrt(lin.inverseNormal[lin.areaColumn * lin.k + lin.areaColumn]) : 0;
@@ -112,8 +124,15 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
       counted = false;
       note = note ?? 'independent per reading: already inside the fit scatter, shown, not added again';
     } else {
-      const d = parameterSensitivity(model, lin, input);
-      cA = lin.areaColumn >= 0 ? d[lin.areaColumn] : 0;
+      try {
+        const d = parameterSensitivity(model, lin, input);
+        cA = lin.areaColumn >= 0 ? d[lin.areaColumn] : 0;
+      } catch (e) {
+        // the model left its domain when this input moved (e.g. a head near zero): say so, do not guess
+        if (!(e instanceof RangeError)) throw e;
+        cA = NaN;
+        note = `sensitivity could not be computed (${e.message})`;
+      }
       cCd = cA / nominal;
     }
     lines.push({
@@ -129,8 +148,8 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
       note,
       sensitivityEffectiveArea: cA,
       sensitivity: cCd,
-      contribution: Math.abs(cCd) * input.standardUncertainty,
-      contributionEffectiveArea: Math.abs(cA) * input.standardUncertainty,
+      contribution: input.standardUncertainty > 0 ? Math.abs(cCd) * input.standardUncertainty : 0,
+      contributionEffectiveArea: input.standardUncertainty > 0 ? Math.abs(cA) * input.standardUncertainty : 0,
       share: 0,
       counted,
     });
@@ -160,7 +179,8 @@ function combine(value: number, parts: Array<[number, number | null]>): Combined
   }
   const uc = Math.sqrt(sum2);
   const nu = ws > 0 ? Math.min(uc ** 4 / ws, NU_CAP) : NU_CAP;
-  const k = tQuantile(0.975, nu);
+  // an input whose coefficient could not be computed leaves u_c unknown: no k, no interval
+  const k = Number.isFinite(uc) && nu > 0 ? tQuantile(0.975, nu) : NaN;
   return {
     value,
     combinedStandardUncertainty: uc,

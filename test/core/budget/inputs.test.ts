@@ -38,3 +38,24 @@ describe('stated uncertainties in the vessel file', () => {
     expect(budgetInputs(ctx(ok)).filter((l) => l.key.startsWith('shape.points.')).length).toBe(4);
   });
 });
+
+describe('a fit whose parameters leave the model', () => {
+  it('gives a budget that says the coefficients could not be computed, instead of failing', async () => {
+    const { uncertaintyBudget } = await import('../../../server/core/budget/budget.js');
+    const { makeShape } = await import('../../../server/core/geometry/index.js');
+    const vessel = validateVessel(base);
+    const theta = Float64Array.of(0.001, -1, 0.1, 0, 0.5); // initial reading below the outlet: no drain
+    const b = uncertaintyBudget({
+      ...ctx(base),
+      boreM: 0.05,
+      model: { setting: { shape: makeShape(vessel.shape), outletElevationM: 0.1, gravity: 9.80665 }, shapeSpec: vessel.shape, outletElevationM: 0.1, solution: 'closed-form', theta, free: Int32Array.of(0, 1), timeS: Float64Array.of(0, 1, 2), levelM: Float64Array.of(1, 0.9, 0.8) },
+      typeAStandardUncertainty: 1e-6,
+      typeADegreesOfFreedom: 10,
+      headBands: [],
+    });
+    const d = b.lines.find((l) => l.key === 'shape.diameterM')!;
+    expect(Number.isNaN(d.sensitivityEffectiveArea)).toBe(true);
+    expect(d.note).toMatch(/could not be computed/);
+    expect(Number.isNaN(b.effectiveAreaM2.combinedStandardUncertainty)).toBe(true);
+  });
+});
