@@ -132,6 +132,21 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     expect(win.endS).toBeLessThanOrEqual(2000);
     await shot('05-fit');
 
+    // the uncertainty budget: the same strings as the fit JSON (which the CLI and the PDF print)
+    const result = await page.evaluate(async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result, fitId);
+    const cells = await page.locator('table.budget tbody tr').evaluateAll((rows) => rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent)));
+    expect(cells).toEqual(result.budget.table.rows);
+    // the drain-time calculator: 3 m → 1 m against 2A(√H0 − √H1)/(Cd·a·√(2g)) (Torricelli, constant area)
+    await page.getByLabel('From level, m').fill('3');
+    await page.getByLabel('To level, m').fill('1');
+    await page.getByRole('button', { name: 'Work it out' }).click();
+    const answer = await page.locator('#drain-time-answer').textContent();
+    const seconds = Number(/^([\d.]+) s, about/.exec(answer ?? '')![1]);
+    const A = (Math.PI * 3.2 ** 2) / 4;
+    const exact = ((2 * A) / (result.effectiveAreaM2.value * Math.sqrt(2 * 9.80665))) * (Math.sqrt(2.9) - Math.sqrt(0.9));
+    expect(Math.abs(seconds - exact) / exact).toBeLessThan(1e-3);
+    expect(answer).toMatch(/95 % interval [\d.]+ s to [\d.]+ s/);
+
     // approve with a comment (markup typed in a comment stays text)
     await page.getByLabel('Comment (kept with the fit)').fill('Window checked by eye <script>x</script>');
     await page.getByRole('button', { name: 'Approve' }).click();
