@@ -48,7 +48,8 @@ function auditFor(store: Store, entityType: string, entityId: number): AuditReco
 
 export function reviewOf(store: Store, f: StoredFit) {
   if (!f.review || f.status === 'draft') return null;
-  return { decision: f.status as 'approved' | 'rejected', by: userName(store, f.review.by), at: f.review.at!, comment: f.review.comment };
+  // selfReview only when true, so reports issued before it existed still rebuild to the same content
+  return { decision: f.status as 'approved' | 'rejected', by: userName(store, f.review.by), at: f.review.at!, comment: f.review.comment, ...(f.review.selfReview ? { selfReview: true as const } : {}) };
 }
 
 export function fitReportRecords(store: Store, fitId: number): FitReportRecords {
@@ -123,7 +124,7 @@ export function outletReportRecords(store: Store, outletId: number): OutletRepor
       return {
         fitId: f.id,
         testId: test.id,
-        testedAt: test.testedAt ?? test.createdAt,
+        testedAt: test.testedAt ?? test.createdAt, // only an old test no one could date lacks one (listed by efflux audit verify)
         log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
         result: f.result as FitJson,
         review: reviewOf(store, f)!,
