@@ -12,9 +12,14 @@ import { HttpProblem } from './problems.js';
 
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
 
+/** scheme://host[:port] in lower case, without the scheme's default port (RFC 6454 serialises it so). */
+function normal(origin: string): string {
+  return origin.toLowerCase().replace(/^(http:\/\/[^/]+):80$/, '$1').replace(/^(https:\/\/[^/]+):443$/, '$1');
+}
+
 /** This service's own origin as the browser names it (scheme, host and port of the request). */
 export function ownOrigin(request: FastifyRequest): string {
-  return `${request.protocol}://${request.headers.host ?? ''}`.toLowerCase();
+  return normal(`${request.protocol}://${request.headers.host ?? ''}`);
 }
 
 /**
@@ -25,8 +30,8 @@ export function assertSameOrigin(request: FastifyRequest, extra: readonly string
   if (SAFE.has(request.method)) return;
   const origin = request.headers.origin;
   if (origin !== undefined) {
-    const o = origin.toLowerCase();
-    if (o === ownOrigin(request) || extra.includes(o)) return;
+    const o = normal(origin);
+    if (o === ownOrigin(request) || extra.some((x) => normal(x) === o)) return;
     throw new HttpProblem(403, 'foreign-origin', `a request signed in by the session cookie must come from the workbench's own origin, not ${origin}`);
   }
   if (request.headers['sec-fetch-site'] === 'same-origin') return;

@@ -108,7 +108,7 @@ function testJson(r: TestRow): string {
   return (
     `{"id":${r.id},"vesselId":${r.vessel_id},"outletId":${q(r.outlet_id)},"status":${q(r.status)},"sha256":${q(r.log_sha256)},` +
     `"fileName":${q(r.log_name)},"size":${r.log_size},"baro":${baro},"settings":${r.settings},"detected":${r.detected ?? 'null'},` +
-    `"operator":${q(r.operator)},"loggerId":${q(r.logger_id)},"testedAt":${q(r.tested_at)},"notes":${q(r.notes)},` +
+    `"operator":${q(r.operator)},"loggerId":${q(r.logger_id)},"testedAt":${q(r.tested_at)},"testedAtSource":${q(r.tested_at_source)},"notes":${q(r.notes)},` +
     `"createdBy":${q(r.created_by)},"createdAt":${q(r.created_at)}}`
   );
 }

@@ -6,7 +6,7 @@
  * The bundle is built here into a temporary folder (EFFLUX_WEB_ROOT), so no separate step is needed.
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
@@ -46,7 +46,7 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
       server.stderr!.on('data', (d) => (out += d));
       server.once('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
     });
-    adminToken = /keep it safe:\n\s+(\S+)/.exec(out)![1];
+    adminToken = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
     ({ context, page, profile, problems } = await launch());
   }, 180_000);
 
