@@ -28,13 +28,14 @@ export function assertEverySite(request: FastifyRequest, what: string): void {
 }
 
 export function installSiteScope(app: FastifyInstance, store: Store): void {
-  app.addHook('preHandler', async (request) => {
+  // before validation, so a record of another site is refused whatever the body holds
+  app.addHook('preValidation', async (request) => {
     const scope = request.routeOptions.config.scope;
     const sites = sitesOf(request);
     if (sites === null || scope === undefined || scope === 'none' || scope === 'listed') return;
     if (scope === 'every-site') return assertEverySite(request, `${request.method} ${request.routeOptions.url}`);
-    const id = (request.params as { id?: number }).id;
-    if (typeof id !== 'number') return;
+    const id = Number((request.params as { id?: string }).id);
+    if (!Number.isInteger(id) || id <= 0) return; // validation answers 400 next
     const site = store.sites.siteOf(scope, id); // 404 when there is no such record
     if (!sites.includes(site)) throw outsideSites(site, sites);
   });
