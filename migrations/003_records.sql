@@ -30,6 +30,22 @@ UPDATE drain_tests SET
 WHERE tested_at_source IS NULL
   AND (SELECT json_extract(f.result, '$.window.startTime') FROM fits f WHERE f.test_id = drain_tests.id ORDER BY f.id LIMIT 1) IS NOT NULL;
 
+-- Logs in elapsed time whose preamble states when logging started ("Started: 2024-10-07T08:00:00Z"):
+-- that start plus the first fit's window offset (server/core/analysis/test-date.ts, logTestDate).
+UPDATE drain_tests SET
+  tested_at = (SELECT strftime('%Y-%m-%dT%H:%M:%fZ', json_extract(m.value, '$.value'),
+                 printf('%+.3f seconds', (SELECT json_extract(f.result, '$.window.startS') FROM fits f WHERE f.test_id = drain_tests.id ORDER BY f.id LIMIT 1)))
+               FROM json_each(drain_tests.detected, '$.metadata') m
+               WHERE lower(trim(json_extract(m.value, '$.key'))) IN ('start', 'started', 'start time', 'started at', 'start date', 'test start', 'test started', 'logging started', 'log start')
+                 AND trim(json_extract(m.value, '$.value')) GLOB '[0-9][0-9][0-9][0-9]-[0-9][0-9]-[0-9][0-9][T ][0-9][0-9]:[0-9][0-9]*[Z+-]*'
+               LIMIT 1),
+  tested_at_source = 'log'
+WHERE tested_at_source IS NULL AND detected IS NOT NULL AND json_valid(detected)
+  AND (SELECT 1 FROM json_each(drain_tests.detected, '$.metadata') m
+       WHERE lower(trim(json_extract(m.value, '$.key'))) IN ('start', 'started', 'start time', 'started at', 'start date', 'test start', 'test started', 'logging started', 'log start')
+         AND trim(json_extract(m.value, '$.value')) GLOB '[0-9][0-9][0-9][0-9]-[0-9][0-9]-[0-9][0-9][T ][0-9][0-9]:[0-9][0-9]*[Z+-]*') IS NOT NULL
+  AND EXISTS (SELECT 1 FROM fits f WHERE f.test_id = drain_tests.id);
+
 INSERT INTO undated_tests (test_id, reason)
 SELECT id, CASE WHEN tested_at IS NULL THEN 'no date was stated and its log has only elapsed time'
                 ELSE 'the stated date "' || tested_at || '" is not a date, and its log has only elapsed time' END

@@ -1,5 +1,5 @@
 import type { AnalysisSettings } from '../core/analysis-contract.js';
-import { checkStatedTestDate, undatedTestError } from '../core/analysis/test-date.js';
+import { checkStatedTestDate, logTestDate, undatedTestError } from '../core/analysis/test-date.js';
 import { InputError, isInputError } from '../core/errors.js';
 import type { Actor, Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
@@ -144,7 +144,7 @@ async function analyseStored(
       timing,
     );
     // the test's one date: stated, else the first reading of the fitted window on the log's clock
-    const logDate = typeof outcome.fit.window.startTime === 'string' ? outcome.fit.window.startTime : null;
+    const logDate = logTestDate(outcome.fit.window, outcome.detected.metadata);
     if (test.testedAt === null && logDate === null) throw undatedTestError(test.fileName);
     const t0 = performance.now();
     const fit = store.fits.storeFirst(

@@ -7,6 +7,7 @@
  * recomputation at the time it was computed. Each difference names the table, row and field.
  */
 import { createHash } from 'node:crypto';
+import { logTestDate } from '../core/analysis/test-date.js';
 import { canonicalJson } from '../store/canonical-json.js';
 import type { Store } from '../store/index.js';
 import { computeStatus } from './trend.js';
@@ -77,11 +78,11 @@ export function verifyRecords(store: Store): RecordsReport {
   }
 
   let fitsChecked = 0;
-  const firstWindowStart = new Map<number, unknown>();
+  const firstWindow = new Map<number, { startS: number; startTime?: unknown }>();
   for (const r of db.prepare('SELECT id, test_id, result, status, superseded_by, cda_m2, cd, cda_u, cd_u FROM fits ORDER BY id').iterate() as Iterable<FitCopyRow>) {
     fitsChecked++;
     const result = JSON.parse(r.result) as Record<string, unknown>;
-    if (!firstWindowStart.has(r.test_id)) firstWindowStart.set(r.test_id, (result.window as Record<string, unknown> | undefined)?.startTime ?? null);
+    if (!firstWindow.has(r.test_id)) firstWindow.set(r.test_id, (result.window ?? { startS: NaN }) as { startS: number; startTime?: unknown });
     for (const [column, key, field] of COPIES) {
       const expected = numberAt(result, key, field);
       if (r[column] !== expected) differ('fits', r.id, column, r[column], expected, `its stored result (${key}.${field})`);
@@ -98,16 +99,18 @@ export function verifyRecords(store: Store): RecordsReport {
   }
 
   // each analysed test's one date against where it came from
-  for (const t of db.prepare(`SELECT id, tested_at, tested_at_source FROM drain_tests WHERE status = 'analysed' ORDER BY id`).iterate() as Iterable<{
+  for (const t of db.prepare(`SELECT id, tested_at, tested_at_source, detected FROM drain_tests WHERE status = 'analysed' ORDER BY id`).iterate() as Iterable<{
     id: number;
     tested_at: string | null;
     tested_at_source: string | null;
+    detected: string | null;
   }>) {
     if (t.tested_at_source === 'stated') {
       const up = uploadEntry.get(String(t.id));
       if (up && up.testedAt !== t.tested_at) differ('drain_tests', t.id, 'tested_at', t.tested_at, up.testedAt, 'its upload audit entry');
     } else if (t.tested_at_source === 'log') {
-      const fromLog = firstWindowStart.get(t.id) ?? null;
+      const w = firstWindow.get(t.id);
+      const fromLog = w ? logTestDate(w, t.detected ? (JSON.parse(t.detected) as { metadata?: unknown }).metadata : null) : null;
       if (fromLog !== t.tested_at) differ('drain_tests', t.id, 'tested_at', t.tested_at, fromLog, "its first fit's window start (the log's own clock)");
     } else if (t.tested_at !== null) {
       differ('drain_tests', t.id, 'tested_at_source', null, 'stated or log', 'a dated test');

@@ -26,8 +26,8 @@ describe('migration 003 on an existing database', () => {
     db.prepare(`INSERT INTO sites (id, name, created_at) VALUES (1, 'main', ?)`).run(at);
     db.prepare(`INSERT INTO vessels (id, site_id, name, spec, shape, created_at, updated_at) VALUES (1, 1, 'T-1', '{}', '{}', ?, ?)`).run(at, at);
     const raw = db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, 1, x'00', ?)`);
-    const test = db.prepare(`INSERT INTO drain_tests (id, vessel_id, log_sha256, log_name, settings, status, tested_at, created_at)
-      VALUES (?, 1, ?, 'log.csv', '{}', ?, ?, ?)`);
+    const test = db.prepare(`INSERT INTO drain_tests (id, vessel_id, log_sha256, log_name, settings, status, tested_at, created_at, detected)
+      VALUES (?, 1, ?, 'log.csv', '{}', ?, ?, ?, ?)`);
     const fit = db.prepare(`INSERT INTO fits (test_id, vessel_id, settings, vessel_spec, result, engine_version, created_at)
       VALUES (?, 1, '{}', '{}', ?, 'old', ?)`);
     const cases: [id: number, status: string, testedAt: string | null, windowStart: string | null | undefined][] = [
@@ -37,12 +37,14 @@ describe('migration 003 on an existing database', () => {
       [4, 'analysed', 'next tuesday', '2024-11-02T12:00:00.000Z'], // unreadable stated text: from its log
       [5, 'analysed', 'next tuesday', null], // unreadable and no clock: undated
       [6, 'pending', null, undefined], // not analysed yet: dated when it is
+      [7, 'analysed', null, null], // elapsed time, but the preamble says when logging started (window at 70 s)
     ];
+    const started = JSON.stringify({ metadata: [{ line: 2, text: 'Started: 2024-10-07T08:00:00Z', key: 'Started', value: '2024-10-07T08:00:00Z' }] });
     for (const [id, status, testedAt, start] of cases) {
       const sha = String(id).padStart(64, '0');
       raw.run(sha, at);
-      test.run(id, sha, status, testedAt, at);
-      if (start !== undefined) fit.run(id, JSON.stringify({ window: { startS: 0, endS: 9, samples: 10, startTime: start } }), at);
+      test.run(id, sha, status, testedAt, at, id === 7 ? started : null);
+      if (start !== undefined) fit.run(id, JSON.stringify({ window: { startS: id === 7 ? 70 : 0, endS: 900, samples: 10, startTime: start } }), at);
     }
     const applied = migrate(db);
     expect(applied).toContain('003_records.sql');
@@ -54,6 +56,7 @@ describe('migration 003 on an existing database', () => {
       { id: 4, tested_at: '2024-11-02T12:00:00.000Z', tested_at_source: 'log' },
       { id: 5, tested_at: null, tested_at_source: null },
       { id: 6, tested_at: null, tested_at_source: null },
+      { id: 7, tested_at: '2024-10-07T08:01:10.000Z', tested_at_source: 'log' }, // as logTestDate computes it
     ]);
     const undated = db.prepare('SELECT test_id, reason FROM undated_tests ORDER BY test_id').all() as { test_id: number; reason: string }[];
     expect(undated.map((u) => u.test_id)).toEqual([3, 5]);

@@ -40,3 +40,26 @@ export function checkStatedTestDate(text: string, nowMs: number, field = 'tested
 export function undatedTestError(fileName: string): InputError {
   return new InputError('the log has only elapsed time and no date: state when the test was run in testedAt (ISO 8601)', { file: fileName, field: 'testedAt' });
 }
+
+/** Preamble keys that state when logging started (common practice in logger exports: "Started: …"). */
+const START_KEYS = /^(start|started|start time|started at|start date|test start|test started|logging started|log start)$/i;
+const ISO_WITH_OFFSET = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/;
+
+/**
+ * The test's date from the log itself: the fitted window's first reading on the log's own clock
+ * (`window.startTime`), else, for a log in elapsed time whose preamble states when logging started
+ * ("Started: 2024-10-07T08:00:00Z", with a UTC offset), that start plus the window's offset (the
+ * start is taken as the first reading's time). Null when the log gives no clock at all.
+ */
+export function logTestDate(window: { startS: number; startTime?: unknown }, metadata: unknown): string | null {
+  if (typeof window.startTime === 'string') return window.startTime;
+  if (!Array.isArray(metadata)) return null;
+  for (const m of metadata as { key?: unknown; value?: unknown }[]) {
+    if (typeof m?.key !== 'string' || typeof m.value !== 'string' || !START_KEYS.test(m.key.trim())) continue;
+    const v = m.value.trim();
+    if (!ISO_WITH_OFFSET.test(v)) continue;
+    const ms = Date.parse(v.replace(' ', 'T'));
+    if (Number.isFinite(ms) && Number.isFinite(window.startS)) return new Date(ms + window.startS * 1000).toISOString();
+  }
+  return null;
+}
