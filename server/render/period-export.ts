@@ -67,6 +67,22 @@ export function selectFits(store: Store, sel: ExportSelection): { fit: StoredFit
 }
 
 
+/** What the archive holds and how to open it safely (written into every export). */
+const EXPORT_README = [
+  'efflux period export',
+  '',
+  'reports/            one PDF fit report per approved fit (each carries its report.json; check with efflux report verify)',
+  'summary.csv         one row per fit (RFC 4180, UTF-8, CRLF); tested_at is the test\'s one date, UTC',
+  'audit-excerpt.jsonl the audit entries of these tests and fits, whole, with their chain hashes',
+  'manifest.json       the selection, the software, every file with its SHA-256; SHA256SUMS the same for sha256sum -c',
+  '',
+  'Opening summary.csv in a spreadsheet: text cells that begin with =, +, -, @, a tab or a carriage return',
+  'are written with a leading apostrophe (\') inside quotes, as the OWASP guidance on CSV injection',
+  'recommends, so no cell is run as a formula; remove the apostrophe only if you trust the text.',
+  'Numbers (including negative ones) are written as plain numbers.',
+  '',
+].join('\r\n');
+
 export interface ExportResult {
   zip: Buffer;
   fits: number;
@@ -107,6 +123,7 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
   audit.sort((a, b) => a.seq - b.seq);
   const enc = new TextEncoder();
   entries.push({ name: 'summary.csv', bytes: enc.encode(csvText(rows)) });
+  entries.push({ name: 'README.txt', bytes: enc.encode(EXPORT_README) });
   entries.push({ name: 'audit-excerpt.jsonl', bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n') });
   const files = entries.map((e) => ({ name: e.name, size: e.bytes.length, sha256: createHash('sha256').update(e.bytes).digest('hex') }));
   const manifest = {
