@@ -132,10 +132,22 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     expect(win.endS).toBeLessThanOrEqual(2000);
     await shot('05-fit');
 
+    // four eyes: the admin uploaded this test, so the approval is refused until an admin allows
+    // self-review for the site (a one-person site); the approval is then marked as a self-review
+    await page.getByRole('button', { name: 'Approve' }).click();
+    await page.getByText('four eyes').first().waitFor();
+    const allowed = await page.evaluate(async (id) => {
+      const f = await (await fetch(`/api/fits/${id}`)).json();
+      const v = await (await fetch(`/api/vessels/${f.vesselId}`)).json();
+      const r = await fetch(`/api/sites/${encodeURIComponent(v.site)}/settings`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ selfReviewAllowed: true }) });
+      return r.status;
+    }, fitId);
+    expect(allowed).toBe(200);
     // approve with a comment (markup typed in a comment stays text)
     await page.getByLabel('Comment (kept with the fit)').fill('Window checked by eye <script>x</script>');
     await page.getByRole('button', { name: 'Approve' }).click();
     await page.locator('.title-row .badge-approved').waitFor();
+    await page.getByText('Self-review: approved by the person who uploaded').waitFor();
     await expect(page.locator('.review blockquote').textContent()).resolves.toBe('Window checked by eye <script>x</script>');
     await shot('06-fit-approved');
 
