@@ -2,9 +2,12 @@
  * Every stored copy is checked (issue 12): editing a copied result column, a test's date or a row
  * of the status cache directly in SQLite makes `efflux audit verify` and `efflux report verify` (on
  * a report written before) fail, naming the row and the field. And exports are safe to open: no
- * cell of summary.csv starts a spreadsheet formula. Data: the invented demo's backwash tank.
+ * cell of summary.csv starts a spreadsheet formula. And people managed from the command line.
+ * Data: the invented demo's backwash tank; people are fictional.
  */
 import { spawnSync } from 'node:child_process';
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
 import Papa from 'papaparse';
@@ -13,7 +16,7 @@ import { checkVesselFile } from '../../server/http/vessel-file.js';
 import { fleetStatus } from '../../server/jobs/trend.js';
 import { periodExport } from '../../server/render/period-export.js';
 import { readZip } from '../../server/render/zip.js';
-import { SYSTEM_ACTOR } from '../../server/store/index.js';
+import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
 import { reportFixture, SOFTWARE } from '../render/report-fixture.js';
 import { root } from './run-cli.js';
 
@@ -113,4 +116,25 @@ describe('exports safe to open', () => {
     }
     store.close();
   }, 90_000);
+});
+
+describe('efflux people, token and site', () => {
+  it('adds a person limited to a site with a first token, changes, lists and revokes them; the token stops working', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'efflux-people-'));
+    const add = efflux(dir, ['people', 'add', 'A. Fenwick (fictional)', '--role', 'technician', '--sites', 'north,south', '--token', 'tablet']);
+    expect(add.code, add.stderr).toBe(0);
+    const token = add.stdout.trim().split('\n').pop()!;
+    expect(token).toMatch(/^efx_/);
+    expect(efflux(dir, ['people', 'change', 'A. Fenwick (fictional)', '--role', 'engineer', '--all-sites']).stdout).toMatch(/engineer\s+every site/);
+    expect(efflux(dir, ['people', 'add', 'x', '--role', 'boss']).code).toBe(2);
+    const listed = efflux(dir, ['token', 'list', '--name', 'A. Fenwick (fictional)']);
+    expect(listed.stdout).toMatch(/tablet/);
+    const revoke = efflux(dir, ['people', 'revoke', 'A. Fenwick (fictional)']);
+    expect(revoke.stdout).toMatch(/revoked/);
+    const store = openStore({ dataDir: dir });
+    expect(store.users.byToken(token)).toBeNull();
+    expect(store.sites.list().map((s) => s.name)).toEqual(['north', 'south']);
+    store.close();
+    expect(efflux(dir, ['site', 'self-review', 'north', 'on']).stdout).toMatch(/self-review allowed/);
+  }, 120_000);
 });
