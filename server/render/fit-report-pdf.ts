@@ -104,7 +104,7 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
   fields(doc, quantityRows(r.results.effectiveArea), 150);
   if (r.results.profileInterval95M2) fields(doc, [['profile-likelihood interval', `${toU(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty)} … ${toU(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty)} m²`]], 150);
   fields(doc, [['solver converged', r.results.converged ? 'yes' : 'NO']], 150);
-  if (r.review) fields(doc, [[r.review.decision === 'approved' ? 'approved by' : 'rejected by', `${r.review.by ?? '—'} on ${dateText(r.review.at)}${r.review.comment ? ` — “${r.review.comment}”` : ''}`]], 150);
+  if (r.review) fields(doc, [[r.review.decision === 'approved' ? 'approved by' : 'rejected by', `${r.review.by ?? '—'} on ${dateText(r.review.at)}${r.review.selfReview ? ' (SELF-REVIEW: approved by the person who uploaded the test or asked for this fit; allowed for the site by an admin)' : ''}${r.review.comment ? ` — “${r.review.comment}”` : ''}`]], 150);
   else fields(doc, [['review', 'not reviewed (draft)']], 150);
 
   heading(doc, 'Vessel, outlet and test');

@@ -5,6 +5,7 @@ import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
+import { SiteRepo } from './sites.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
@@ -18,6 +19,7 @@ export interface Store {
   fits: FitRepo;
   events: EventRepo;
   users: UserRepo;
+  sites: SiteRepo;
   trends: TrendRepo;
   close(): void;
 }
@@ -37,19 +39,21 @@ export function openStore(opts: StoreOptions = {}): Store {
   const audit = new AuditLog(db);
   const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
   const tests = new TestRepo(c);
+  const sites = new SiteRepo(c);
   return {
     db,
     audit,
     vessels: new VesselRepo(c),
     tests,
-    fits: new FitRepo(c, tests),
+    fits: new FitRepo(c, tests, sites),
     events: new EventRepo(c),
-    users: new UserRepo(c),
+    users: new UserRepo(c, sites),
+    sites,
     trends: new TrendRepo(c),
     close: () => db.close(),
   };
 }
 
 export { SYSTEM_ACTOR, type Actor } from './audit.js';
-export { ConflictError, NotFoundError } from './errors.js';
-export { ROLES, actorOf, type Role, type User } from './users.js';
+export { ConflictError, DuplicateUploadError, ForbiddenError, NotFoundError } from './errors.js';
+export { ROLES, actorOf, type Person, type Role, type TokenInfo, type User } from './users.js';

@@ -71,7 +71,8 @@ export interface FitReport {
    */
   budget?: { columns: string[]; rows: string[][]; totals: [string, string][]; notes: string[] };
   warnings: { stage: string | null; code: string; message: string }[];
-  review: { decision: string; by: string | null; at: string; comment: string | null } | null;
+  /** selfReview: approved by the uploader or refit requester where the site allows it (four eyes waived). */
+  review: { decision: string; by: string | null; at: string; comment: string | null; selfReview?: true } | null;
   history: { fitId: number; status: string; createdAt: string; createdBy: string | null; supersededBy: number | null; dischargeCoefficient: number | null; effectiveAreaM2: number | null; settings: Record<string, unknown>; thisFit: boolean }[];
   audit: { seq: number; at: string; actor: string; action: string; entity: string; hash: string }[];
   /** Data for drawing: the log, the window with the fitted curve (decimated by the analysis). */

@@ -185,7 +185,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     reject.addEventListener('click', decide('reject'));
     main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), field('Comment (kept with the fit)', comment), h('div', { class: 'actions' }, approve, reject), out));
   } else if (fit.review?.at) {
-    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`), fit.review.comment ? h('blockquote', {}, fit.review.comment) : null));
+    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`),
+      fit.review.selfReview ? notice('caution', 'Self-review: approved by the person who uploaded the test or asked for this fit (allowed for this site by an admin; four eyes waived).') : null, fit.review.comment ? h('blockquote', {}, fit.review.comment) : null));
   }
 
   // refit
