@@ -21,7 +21,9 @@ const COMMANDS: Record<string, Command> = {
   plan: { summary: 'plan a drain test: drain time, volume, peak flow, expected u of Cd·a and Cd, least test for a target', load: () => loadModule('plan') },
   watch: { summary: 'tail a growing logger file into a live drain test on a service', load: () => loadModule('watch') },
   serve: { summary: 'start the service (API and web workbench)', load: () => loadModule('serve') },
-  token: { summary: 'create an API token: token create --role ROLE --name NAME', load: () => loadModule('token') },
+  token: { summary: 'API tokens: token create --role ROLE --name NAME | token list | token revoke ID', load: () => loadModule('token') },
+  people: { summary: 'people, roles and site limits: people list | add | change | revoke', load: () => loadModule('people') },
+  site: { summary: 'site settings: site self-review SITE on|off', load: async () => ({ run: (await import('./people.js')).runSite }) },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
   report: { summary: 'fit and outlet reports (PDF/JSON) and report verify', load: () => loadModule('report') },
   trend: { summary: "an outlet's Cd·a trend and forecast, or the fleet: trend <outletId> | trend --fleet", load: () => loadModule('trend') },
@@ -42,7 +44,8 @@ async function main(argv: string[]): Promise<number> {
     return name ? 0 : EXIT_REFUSED;
   }
   if (name === '--version') {
-    process.stdout.write(`${(await import('../core/version.js')).ENGINE_VERSION}\n`);
+    const { ENGINE_VERSION, PACKAGE_VERSION } = await import('../core/version.js');
+    process.stdout.write(`efflux ${PACKAGE_VERSION} (engine ${ENGINE_VERSION})\n`);
     return 0;
   }
   const command = COMMANDS[name];

@@ -44,5 +44,7 @@ export function serveConfig(env = process.env) {
     log: env.EFFLUX_LOG ?? 'info',
     /** Addresses told of outlet status changes (comma-separated http(s) URLs). */
     webhooks: parseWebhookList(env.EFFLUX_WEBHOOKS),
+    /** Origins besides the request's own accepted for cookie-authenticated writes (e.g. the public https address behind a proxy). */
+    allowedOrigins: (env.EFFLUX_ORIGINS ?? '').split(',').map((s) => s.trim()).filter(Boolean),
   };
 }

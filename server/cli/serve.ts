@@ -4,6 +4,8 @@
  * in-flight requests finish (every write is one SQLite transaction, so nothing is half-written).
  */
 import closeWithGrace from 'close-with-grace';
+import { writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { buildApp } from '../http/app.js';
 import { resumePending } from '../jobs/ingest.js';
 import { createAnalysisPool } from '../jobs/pool.js';
@@ -22,8 +24,16 @@ export async function run(argv: string[]): Promise<number> {
   const store = openStore({ dataDir: cfg.dataDir });
   const pool = createAnalysisPool({ threads: cfg.workers, timeoutMs: cfg.analysisTimeoutMs, analyzeModule: cfg.analyzeModule });
 
-  let firstToken: string | null = null;
-  if (store.users.count() === 0) firstToken = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start').token;
+  // The first admin token goes to a file only its owner can read, never to the output (logs are
+  // collected and kept by process managers); the person reads it, keeps it, deletes the file.
+  let firstTokenFile: string | null = null;
+  if (store.users.count() === 0) {
+    const { token } = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start');
+    firstTokenFile = join(cfg.dataDir, 'first-admin-token.txt');
+    writeFileSync(firstTokenFile, `${token}\n`, { mode: 0o600, flag: 'w' });
+  }
+  const undated = store.tests.undated();
+  if (undated.length) say(`note: ${undated.length} old test(s) have no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`);
 
   const resumed = await resumePending(store, pool.run, SYSTEM_ACTOR).catch((e: Error) => ({ error: e.message }));
   if ('error' in resumed) say(`note: tests left pending by an earlier run could not be analysed yet (${resumed.error})`);
@@ -44,15 +54,16 @@ export async function run(argv: string[]): Promise<number> {
     webRoot: cfg.webRoot,
     webhooks: cfg.webhooks,
     liveRefitMs: cfg.liveRefitMs,
+    allowedOrigins: cfg.allowedOrigins,
     logger: cfg.log === 'silent' ? false : { level: cfg.log },
   });
   // the first analysis in a fresh worker pays the JIT; let the built-in warm-up drain finish first
   await pool.warm;
   const address = await app.listen({ host: cfg.host, port: cfg.port });
   say(`efflux listening on ${address} (data in ${cfg.dataDir})`);
-  if (firstToken) {
-    say('first start: an admin token was created. It is shown this once; keep it safe:');
-    say(`  ${firstToken}`);
+  if (firstTokenFile) {
+    say(`first start: an admin token was written to ${firstTokenFile} (readable by this user only);`);
+    say('  sign in with it, keep it safe, delete the file; make people with efflux people add');
   }
   say(`API docs: ${address}/api/docs`); // last line of the start-up banner (tests wait for it)
 

@@ -5,6 +5,7 @@
  * analysis runner), then auth and error handling, then one route module per resource.
  */
 import cookie from '@fastify/cookie';
+import helmet from '@fastify/helmet';
 import multipart from '@fastify/multipart';
 import rateLimit from '@fastify/rate-limit';
 import fastifyStatic from '@fastify/static';
@@ -23,11 +24,12 @@ import { z } from 'zod';
 import { createNotifier, type Notifier } from '../jobs/alerts.js';
 import type { AnalyzeRunner } from '../jobs/pool.js';
 import type { Store } from '../store/index.js';
-import { PUBLIC, type Access } from './access.js';
+import { PUBLIC, scopeFromPath, type Access, type SiteScope } from './access.js';
 import { installAuth } from './auth.js';
 import './context.js';
 import { installProblemHandlers } from './problems.js';
-import { securityHeaders } from './security-headers.js';
+import { installSiteScope } from './site-scope.js';
+import { peopleRoutes } from './routes/people.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
@@ -41,6 +43,7 @@ import { reportRoutes } from './routes/reports.js';
 import { workbenchRoutes } from './routes/workbench.js';
 import { planRoutes } from './routes/plan.js';
 import { liveRoutes } from './routes/live.js';
+import { PACKAGE_VERSION } from '../core/version.js';
 
 export interface AppOptions {
   store: Store;
@@ -70,12 +73,15 @@ export interface AppOptions {
   liveRefitMs?: number;
   /** The trend's "now", epoch ms (tests inject a fixed time). */
   clockMs?: () => number;
+  /** Origins besides the request's own from which cookie-authenticated writes are accepted (EFFLUX_ORIGINS). */
+  allowedOrigins?: readonly string[];
 }
 
 export interface RouteInfo {
   method: string;
   url: string;
   roles: Access;
+  scope: SiteScope;
 }
 
 declare module 'fastify' {
@@ -145,16 +151,19 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
         throw new Error(`route ${String(route.method)} ${route.url} declares no roles (config.roles)`);
       }
     }
-    for (const method of [route.method].flat()) app.routeList.push({ method, url: route.url, roles });
+    // and which site its record belongs to (people limited to sites): from the path, else declared
+    let scope = route.config?.scope ?? scopeFromPath(route.url);
+    if (scope === undefined) {
+      if (roles === PUBLIC) scope = 'none';
+      else throw new Error(`route ${String(route.method)} ${route.url} declares no site scope (config.scope)`);
+    }
+    route.config = { ...(route.config ?? {}), roles, scope };
+    for (const method of [route.method].flat()) app.routeList.push({ method, url: route.url, roles, scope });
   });
 
   // external plugins
-  // helmet's headers, computed once from the plugin (security-headers.ts), set on every answer
-  const security = await securityHeaders({ contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
-  app.addHook('onRequest', (_request, reply, done) => {
-    reply.headers(security);
-    done();
-  });
+  // security headers on every answer, by helmet as a plugin (the strict CSP is ours)
+  await app.register(helmet, { contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
   await app.register(rateLimit, {
     global: false,
     errorResponseBuilder: (_req, ctx) => ({ statusCode: 429, message: `too many sign-in attempts; retry in ${ctx.after}` }),
@@ -166,7 +175,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(swagger, {
     openapi: {
       openapi: '3.1.0',
-      info: { title: 'efflux API', version: '0.1.0', description: 'Drain tests, fits, history and audit for gravity-draining vessels.' },
+      info: { title: 'efflux API', version: PACKAGE_VERSION, description: 'Drain tests, fits, history and audit for gravity-draining vessels.' },
       components: { securitySchemes: { bearer: { type: 'http', scheme: 'bearer' }, session: { type: 'apiKey', in: 'cookie', name: 'efflux_session' } } },
       security: [{ bearer: [] }, { session: [] }],
     },
@@ -195,7 +204,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.decorate('clockMs', opts.clockMs ?? Date.now);
 
   // auth and errors (on the root: both are inherited by every route module below)
-  installAuth(app, opts.store);
+  installAuth(app, opts.store, (opts.allowedOrigins ?? []).map((o) => o.toLowerCase()));
+  installSiteScope(app, opts.store);
   installProblemHandlers(app);
 
   // routes
@@ -216,6 +226,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(systemRoutes);
   await app.register(planRoutes);
   await app.register(liveRoutes, { limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT, refitMs: opts.liveRefitMs });
+  await app.register(peopleRoutes);
   app.get(
     '/api/openapi.json',
     { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },

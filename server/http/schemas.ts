@@ -3,6 +3,8 @@
  * the zod serializer checks them against these before they leave.
  */
 import { z } from 'zod';
+import { singleFitResult } from '../core/fit-result/schema.js';
+import type { Outlet, Vessel } from '../core/stored-vessel.js';
 
 export const idParams = z.object({ id: z.coerce.number().int().positive() });
 
@@ -27,6 +29,7 @@ export const problem = z
     line: z.number().int().optional(),
     field: z.string().optional(),
     errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+    existingTestId: z.number().int().optional(),
   })
   .meta({ id: 'Problem', description: 'RFC 9457 problem details' });
 
@@ -42,7 +45,7 @@ export const outlet = z
     spec: json,
     retiredAt: z.string().nullable(),
   })
-  .meta({ id: 'Outlet' });
+  .meta({ id: 'Outlet' }) satisfies z.ZodType<Outlet>; // the one Outlet shape (core/stored-vessel.ts)
 
 export const vessel = z
   .object({
@@ -55,7 +58,7 @@ export const vessel = z
     createdAt: z.string(),
     updatedAt: z.string(),
   })
-  .meta({ id: 'Vessel' });
+  .meta({ id: 'Vessel' }) satisfies z.ZodType<Vessel>; // the one Vessel shape (core/stored-vessel.ts)
 
 const rawRef = z.object({ sha256: z.string(), fileName: z.string(), size: z.number().int() });
 
@@ -73,7 +76,8 @@ export const drainTest = z
     detected: json.nullable(),
     operator: z.string().nullable(),
     loggerId: z.string().nullable(),
-    testedAt: z.string().nullable(),
+    testedAt: z.string().nullable().meta({ description: "THE date of the test (UTC ISO 8601): stated, or the fitted window's first reading on the log's clock" }),
+    testedAtSource: z.enum(['stated', 'log']).nullable(),
     notes: z.string().nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),
@@ -88,11 +92,13 @@ export const fit = z
     outletId: z.number().int().nullable(),
     settings: json,
     vessel: json,
-    result: json,
+    result: singleFitResult,
     engineVersion: z.string(),
     status: z.enum(['draft', 'approved', 'rejected']),
     supersededBy: z.number().int().nullable(),
-    review: z.object({ comment: z.string().nullable(), by: z.number().int().nullable(), at: z.string().nullable() }).nullable(),
+    review: z
+      .object({ comment: z.string().nullable(), by: z.number().int().nullable(), at: z.string().nullable(), selfReview: z.boolean().meta({ description: 'approved by the uploader or refit requester (site allows self-review)' }) })
+      .nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),
   })
@@ -109,6 +115,9 @@ export const analysisSettings = z
     tz: z.string().min(1),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
+    levelTag: z.string().min(1),
+    baroTag: z.string().min(1),
+    sheet: z.string().min(1),
     window: z.string().min(1),
     fitInflow: z.boolean(),
     fitDatum: z.boolean(),

@@ -28,15 +28,19 @@ export const uploadFields = z
     tz: text.min(1),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
+    levelTag: text.min(1),
+    baroTag: text.min(1),
+    sheet: text.min(1),
     window: text.min(1),
     fitInflow: bool,
     fitDatum: bool,
     fitExponent: bool,
+    allowDuplicate: bool,
   })
   .partial()
   .strict();
 
-const SETTING_KEYS = ['timeColumn', 'levelColumn', 'unit', 'quantity', 'dateOrder', 'tz', 'delimiter', 'decimal', 'window', 'fitInflow', 'fitDatum', 'fitExponent'] as const;
+const SETTING_KEYS = ['timeColumn', 'levelColumn', 'unit', 'quantity', 'dateOrder', 'tz', 'delimiter', 'decimal', 'levelTag', 'baroTag', 'sheet', 'window', 'fitInflow', 'fitDatum', 'fitExponent'] as const;
 
 export interface ParsedUpload {
   log: RawInput;
@@ -47,6 +51,7 @@ export interface ParsedUpload {
   loggerId?: string;
   testedAt?: string;
   notes?: string;
+  allowDuplicate?: boolean;
 }
 
 /** The name as the client gave it, stripped of any folder part and control characters. */
@@ -81,5 +86,5 @@ export async function readUpload(request: FastifyRequest): Promise<ParsedUpload>
   const f = parsed.data;
   const settings: AnalysisSettings = {};
   for (const k of SETTING_KEYS) if (f[k] !== undefined) (settings as Record<string, unknown>)[k] = f[k];
-  return { log: files.log, baro: files.baro, settings, outletId: f.outletId, operator: f.operator, loggerId: f.loggerId, testedAt: f.testedAt, notes: f.notes };
+  return { log: files.log, baro: files.baro, settings, outletId: f.outletId, operator: f.operator, loggerId: f.loggerId, testedAt: f.testedAt, notes: f.notes, allowDuplicate: f.allowDuplicate };
 }

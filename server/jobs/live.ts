@@ -309,7 +309,8 @@ export class LiveTests {
   }
 
   /** Store the received bytes as an ordinary upload; the live test ends. */
-  async close(id: string, actor: Actor): Promise<{ test: DrainTest; fit: StoredFit }> {
+  /** `allowDuplicate`: store it even when an earlier test of the vessel has the same bytes (else 409, as for an upload). */
+  async close(id: string, actor: Actor, opts: { allowDuplicate?: boolean } = {}): Promise<{ test: DrainTest; fit: StoredFit }> {
     const s = this.session(id);
     if (s.state.status !== 'open') throw new LiveProblem(409, 'live-closed', `live test ${id} is ${s.state.status}`);
     if (s.state.receivedBytes === 0) throw new InputError('no rows have been received: nothing to store', { field: 'rows' });
@@ -324,6 +325,7 @@ export class LiveTests {
         operator: s.input.operator ?? null,
         loggerId: s.input.loggerId ?? null,
         notes: s.input.notes ?? null,
+        allowDuplicate: opts.allowDuplicate,
       });
       s.state.testId = out.test.id;
       s.state.fitId = out.fit.id;

@@ -5,7 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import type { AnalysisRequest, FitJson } from '../core/analysis-contract.js';
-import { analyzeDrainTest } from '../core/analyze.js';
+import { analyzeDrainTest, expandWorkbook } from '../core/analyze.js';
 import {
   buildFitReport,
   buildOutletReport,
@@ -17,7 +17,9 @@ import {
   type ReportDifference,
   type SoftwareRecord,
 } from '../core/report/index.js';
+import { sha256Hex } from '../sha256.js';
 import { canonicalJson } from '../store/canonical-json.js';
+import { verifyRecords } from '../jobs/verify-records.js';
 import type { Store } from '../store/index.js';
 import { renderFitReportPdf } from './fit-report-pdf.js';
 import { renderOutletReportPdf } from './outlet-report-pdf.js';
@@ -25,11 +27,11 @@ import { readReportFile, type ReportFile } from './report-file.js';
 import { fitReportRecords, outletReportRecords } from './report-records.js';
 
 export function fitReport(store: Store, fitId: number, software: SoftwareRecord): FitReport {
-  return buildFitReport(fitReportRecords(store, fitId), software);
+  return buildFitReport(fitReportRecords(store, fitId), software, sha256Hex);
 }
 
 export function outletReport(store: Store, outletId: number, software: SoftwareRecord, asOf?: string): OutletReport {
-  return buildOutletReport(outletReportRecords(store, outletId), software, asOf);
+  return buildOutletReport(outletReportRecords(store, outletId), software, sha256Hex, asOf);
 }
 
 export { renderFitReportPdf, renderOutletReportPdf };
@@ -70,24 +72,80 @@ const withoutTiming = (r: Record<string, unknown>) => {
   return rest;
 };
 
-/** Re-runs a stored fit from the stored bytes and settings; identical numbers, timing aside, or the differences. */
-export function reproduceFit(store: Store, fitId: number): Check {
+/**
+ * When the engine has changed since a fit was stored, a recomputation is not expected to be bit
+ * for bit the same (a new integrator step, a new solver path); it must agree on the results within
+ * this fraction of the stored standard uncertainty of each. The stored result is never rewritten.
+ */
+export const ENGINE_CHANGE_TOLERANCE = 0.05;
+
+/** The headline results of a fit JSON: Cd·a and Cd, each with its standard uncertainty. */
+function headlines(r: FitJson): { name: string; unit: string; value: number | null; u: number | null }[] {
+  const pick = (e: { value?: unknown; standardUncertainty?: unknown } | null | undefined) => ({
+    value: typeof e?.value === 'number' ? e.value : null,
+    u: typeof e?.standardUncertainty === 'number' ? e.standardUncertainty : null,
+  });
+  return [
+    { name: 'Cd·a', unit: ' m²', ...pick(r.effectiveAreaM2) },
+    { name: 'Cd', unit: '', ...pick(r.dischargeCoefficient) },
+  ];
+}
+
+/** The stored and recomputed headline results side by side, against ENGINE_CHANGE_TOLERANCE. */
+export function engineChange(stored: FitJson, again: FitJson): { ok: boolean; text: string } {
+  const now = headlines(again);
+  let ok = true;
+  const parts = headlines(stored).map((s, i) => {
+    const a = now[i];
+    if (s.value === null && a.value === null) return `${s.name}: none either way`;
+    if (s.value === null || a.value === null || s.u === null || !(s.u > 0)) {
+      ok = false;
+      return `${s.name}: stored ${s.value ?? 'none'}, recomputed ${a.value ?? 'none'} (cannot be compared)`;
+    }
+    const diff = a.value - s.value;
+    const share = Math.abs(diff) / s.u;
+    if (!(share <= ENGINE_CHANGE_TOLERANCE)) ok = false;
+    return `${s.name} ${s.value.toPrecision(7)}${s.unit} → ${a.value.toPrecision(7)}${s.unit}, difference ${diff.toPrecision(2)}${s.unit} = ${(share * 100).toPrecision(2)} % of its standard uncertainty`;
+  });
+  return { ok, text: `${parts.join('; ')} (tolerance ${ENGINE_CHANGE_TOLERANCE * 100} % of the stored standard uncertainty)` };
+}
+
+/**
+ * Re-runs a stored fit from the stored bytes and settings. Under the engine that stored it: identical
+ * numbers, timing aside, or the differences. Under a newer engine: says so, and compares the results
+ * against ENGINE_CHANGE_TOLERANCE instead of asking for bit equality.
+ */
+export async function reproduceFit(store: Store, fitId: number): Promise<Check> {
   const { request, result } = storedRequest(store, fitId);
   const raw = sha256(request.log.bytes);
   const test = store.tests.get(store.fits.get(fitId).testId);
   if (raw !== test.sha256) return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored raw bytes hash to ${raw}, not the recorded ${test.sha256}` };
   let again: FitJson;
   try {
-    again = analyzeDrainTest(request).fit;
+    again = analyzeDrainTest(await expandWorkbook(request)).fit;
   } catch (e) {
     return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored input no longer analyses: ${(e as Error).message}` };
   }
+  const name = `reproduce fit ${fitId}`;
+  const storedEngine = typeof result.engineVersion === 'string' ? result.engineVersion : 'unknown';
+  if (storedEngine !== again.engineVersion) {
+    const change = engineChange(result, again);
+    const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
+    return {
+      name,
+      // a newer engine may choose another window or step: a difference is reported, not taken for tampering
+      // (the stored result's hash and the audit chain are checked separately)
+      ok: true,
+      detail: `the engine changed since this fit was stored (stored by ${storedEngine}, recomputed by ${again.engineVersion}), so the numbers are compared, not the bits; the stored result is kept as it was: ${change.ok ? 'within' : 'BEYOND'} the tolerance: ${change.text}${change.ok ? '' : '; a refit would adopt the new engine\'s result'}`,
+      differences,
+    };
+  }
   const a = canonicalJson(withoutTiming(result));
   const b = canonicalJson(withoutTiming(again as Record<string, unknown>));
-  if (a === b) return { name: `reproduce fit ${fitId}`, ok: true, detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)' };
+  if (a === b) return { name, ok: true, detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)' };
   const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
   return {
-    name: `reproduce fit ${fitId}`,
+    name,
     ok: false,
     detail: `the stored result differs from a recomputation from the stored raw bytes (engine ${again.engineVersion}, stored by ${result.engineVersion}) at ${differences.map((d) => d.path).join(', ')}`,
     differences,
@@ -117,7 +175,7 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   const checks: Check[] = [];
   // 1. the file agrees with itself
   if (file.report) {
-    const h = contentHash(file.report);
+    const h = contentHash(file.report, sha256Hex);
     const ok = h === file.contentSha256 && reportIdOf(h) === file.reportId && file.report.contentSha256 === file.contentSha256;
     checks.push({ name: 'file content hash', ok, detail: ok ? `the report's content hashes to ${h}` : `the report's content hashes to ${h}, but the file states ${file.contentSha256} (id ${file.reportId}): edited after it was written` });
   } else {
@@ -156,11 +214,20 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   }
   // 4. every fit reproduces from the stored raw bytes, and matches what the audit log recorded
   for (const id of fitIds) {
-    checks.push(reproduceFit(store, id));
+    checks.push(await reproduceFit(store, id));
     checks.push(auditedResult(store, id));
   }
   // 5. the audit chain
   const chain = store.audit.verify();
   checks.push({ name: 'audit chain', ok: chain.ok, detail: chain.ok ? `intact, ${chain.count} entries, head ${chain.head}` : `broken at entry ${chain.brokenAt}: ${chain.reason}` });
+  // 6. every stored copy (result columns, test dates, status cache) against what it was copied from
+  const records = verifyRecords(store);
+  checks.push({
+    name: 'stored copies',
+    ok: records.ok,
+    detail: records.ok
+      ? `${records.fitsChecked} fits and ${records.outletsChecked} cached outlet statuses agree with their sources`
+      : records.differences.slice(0, 20).map((d) => d.message).join('; '),
+  });
   return { ok: checks.every((c) => c.ok), kind: file.kind, reportId: file.reportId, checks };
 }

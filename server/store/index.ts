@@ -6,6 +6,7 @@ import { FitRepo } from './fits.js';
 import { LiveRepo } from './live.js';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
+import { SiteRepo } from './sites.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
@@ -19,6 +20,7 @@ export interface Store {
   fits: FitRepo;
   events: EventRepo;
   users: UserRepo;
+  sites: SiteRepo;
   trends: TrendRepo;
   live: LiveRepo;
   close(): void;
@@ -39,14 +41,16 @@ export function openStore(opts: StoreOptions = {}): Store {
   const audit = new AuditLog(db);
   const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
   const tests = new TestRepo(c);
+  const sites = new SiteRepo(c);
   return {
     db,
     audit,
     vessels: new VesselRepo(c),
     tests,
-    fits: new FitRepo(c, tests),
+    fits: new FitRepo(c, tests, sites),
     events: new EventRepo(c),
-    users: new UserRepo(c),
+    users: new UserRepo(c, sites),
+    sites,
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     close: () => db.close(),
@@ -54,5 +58,5 @@ export function openStore(opts: StoreOptions = {}): Store {
 }
 
 export { SYSTEM_ACTOR, type Actor } from './audit.js';
-export { ConflictError, NotFoundError } from './errors.js';
-export { ROLES, actorOf, type Role, type User } from './users.js';
+export { ConflictError, DuplicateUploadError, ForbiddenError, NotFoundError } from './errors.js';
+export { ROLES, actorOf, type Person, type Role, type TokenInfo, type User } from './users.js';

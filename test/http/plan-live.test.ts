@@ -133,7 +133,12 @@ describe('live drain test', () => {
       expect(s.rows).toBe(1201);
       const rest = await again.inject({ method: 'POST', url: `/api/live/${id}/rows?offset=${part}`, headers: { ...t.auth('technician'), 'content-type': 'application/octet-stream' }, payload: logBytes.subarray(part) });
       expect(rest.json().receivedBytes).toBe(logBytes.length);
-      const closed = await again.inject({ method: 'POST', url: `/api/live/${id}/close`, headers: t.auth('technician') });
+      // the first test already stored these bytes for this vessel: refused as for an upload, naming it, until asked again
+      const dup = await again.inject({ method: 'POST', url: `/api/live/${id}/close`, headers: t.auth('technician') });
+      expect(dup.statusCode, dup.body).toBe(409);
+      expect(dup.json().type).toBe('urn:efflux:problem:duplicate-upload');
+      expect(typeof dup.json().existingTestId).toBe('number');
+      const closed = await again.inject({ method: 'POST', url: `/api/live/${id}/close?allowDuplicate=true`, headers: t.auth('technician') });
       expect(closed.statusCode, closed.body).toBe(201);
       const raw = t.store.tests.rawBytes(closed.json().test.sha256);
       expect(Buffer.compare(Buffer.from(raw), logBytes)).toBe(0);

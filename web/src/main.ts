@@ -11,6 +11,7 @@ import { fleetPage } from './pages/fleet.js';
 import { newTestPage } from './pages/new-test.js';
 import { liveOpenPage, livePage } from './pages/live.js';
 import { planPage } from './pages/plan.js';
+import { peoplePage } from './pages/people.js';
 import { signInPage } from './pages/sign-in.js';
 import { systemsPage } from './pages/systems.js';
 import { vesselPage } from './pages/vessel.js';
@@ -33,6 +34,7 @@ const routes: [RegExp, Page][] = [
   [/^#\/fits\/(\d+)$/, fitPage],
   [/^#\/systems$/, systemsPage],
   [/^#\/audit$/, auditPage],
+  [/^#\/people$/, peoplePage],
 ];
 
 let user: User | null = null;
@@ -51,6 +53,8 @@ function header(): void {
   // the audit log is for auditors and admins; the others are not shown a link they cannot use
   const auditLink = document.querySelector('.bar nav a[href="#/audit"]') as HTMLElement | null;
   if (auditLink) auditLink.hidden = user.role !== 'auditor' && user.role !== 'admin';
+  const peopleLink = document.querySelector('.bar nav a[href="#/people"]') as HTMLElement | null;
+  if (peopleLink) peopleLink.hidden = user.role !== 'admin' || user.sites !== null;
   const out = h('button', { type: 'button', class: 'quiet' }, 'Sign out');
   out.addEventListener('click', async () => {
     await api('DELETE', '/api/session').catch(() => undefined);

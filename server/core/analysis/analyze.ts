@@ -1,4 +1,4 @@
-import type { AnalysisOutcome, AnalysisRequest, FitJson } from '../analysis-contract.js';
+import type { AnalysisOutcome, AnalysisRequest, FitJson, RawFile } from '../analysis-contract.js';
 import { InputError } from '../errors.js';
 import { makeShape } from '../geometry/index.js';
 import { readLevelLog } from '../ingest/read-log.js';
@@ -7,10 +7,15 @@ import { describeLog } from '../ingest/describe.js';
 import { THETA, type DrainSetting } from '../drain/parameters.js';
 import { predictReadings } from '../drain/predict.js';
 import { fitDrain, type DrainFitResult } from '../fit/fit-drain.js';
+import { boundsFor } from '../fit/terms.js';
 import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
+import { intervalWiderThanValue, positiveInterval } from '../fit/interval.js';
+import { isZip, workbookAsText } from '../ingest/workbook.js';
 import { ENGINE_VERSION } from '../version.js';
+import { budgetForFit } from '../budget/for-fit.js';
+import type { UncertaintyBudget } from '../budget/budget.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
 
@@ -31,6 +36,22 @@ export interface PreparedTest {
   density: { value: number; source: string };
 }
 
+/**
+ * A request whose log (or barometric log) is an .xlsx workbook, with that file replaced by the
+ * chosen sheet as text (same file name, so messages name the workbook). The shells call this
+ * before analyzeDrainTest / prepareDrainTest: the workbook reader is asynchronous. Text logs
+ * pass through untouched.
+ */
+export async function expandWorkbook(request: AnalysisRequest): Promise<AnalysisRequest> {
+  const sheet = request.settings?.sheet;
+  const expand = async (f: RawFile | undefined): Promise<RawFile | undefined> =>
+    f && isZip(f.bytes) ? { bytes: (await workbookAsText(f.bytes, f.fileName, sheet)).bytes, fileName: f.fileName } : f;
+  if (!isZip(request.log.bytes) && !(request.baro && isZip(request.baro.bytes))) return request;
+  const log = (await expand(request.log))!;
+  const baro = await expand(request.baro);
+  return { ...request, log, ...(baro ? { baro } : {}) };
+}
+
 /** Read the log into SI with the vessel's sensor and fluid (no window yet): the live page draws this as rows arrive. */
 export function readTestSeries(request: AnalysisRequest): { vessel: VesselSpec; series: LevelSeries; density: { value: number; source: string }; gravity: number } {
   const vesselFile = request.vesselFileName ?? 'vessel';
@@ -47,6 +68,9 @@ export function readTestSeries(request: AnalysisRequest): { vessel: VesselSpec; 
     tz: settings.tz,
     delimiter: settings.delimiter,
     decimal: settings.decimal,
+    levelTag: settings.levelTag,
+    baroTag: settings.baroTag,
+    sheet: settings.sheet,
     baro: request.baro,
     fluidDensityKgM3: 'densityKgM3' in (vessel.fluid ?? {}) ? density.value : undefined,
     // a fluid temperature in the vessel file stands in when the log has no temperature column
@@ -69,6 +93,8 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const choice = withFile(request.log.fileName, () =>
     chooseDrainWindow(series, {
       outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
+      // the plan area at a reading (sensor frame), for the still-opening rule's head model
+      areaAtReadingM2: knownSensorZeroM === null ? undefined : (y: number) => setting.shape.areaM2(y + knownSensorZeroM),
       window,
     }),
   );
@@ -111,10 +137,13 @@ export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks =
     outlet: vessel.outlet,
     now,
   });
-  const json = fitJson(prepared, fit, { timeS, levelM });
+  const t2 = now();
+  const budget = budgetForFit(prepared, fit, { timeS, levelM });
+  const t3 = now();
+  const json = fitJson(prepared, fit, { timeS, levelM }, budget);
   // fitMs: solver and uncertainty (covariance, correction, profile interval); diagnosticsMs: the
-  // model comparison, head bands and warnings
-  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs };
+  // model comparison, head bands and warnings; budgetMs: the uncertainty budget and drift check
+  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs, budgetMs: t3 - t2 };
   return { detected: detectedSummary(prepared), fit: json };
 }
 
@@ -159,7 +188,7 @@ function finite(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }
 
-function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }): FitJson {
+function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }, budget: UncertaintyBudget): FitJson {
   const { vessel, series, choice } = p;
   const w = choice.window;
   const unc = fit.uncertainty;
@@ -169,6 +198,10 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const k = free.length;
   const matrix = free.map((_, i) => free.map((__, j) => unc.correlations[i * k + j]));
   const nominal = fit.nominalAreaM2;
+  // the box the solver kept to, per free parameter (a fixed one is pinned at its value)
+  const freeIndex = Array.from(fit.variant.free);
+  const solverBounds = boundsFor(fit.variant.free);
+  const bound = (x: number) => (Number.isFinite(x) ? x : null);
 
   // drawing data: the whole log, and the window with the fitted curve
   const logPlot = decimateForDrawing(series.timeS, series.levelM, 600);
@@ -176,36 +209,59 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const fitted = new Float64Array(winPlot.timeS.length);
   predictReadings(p.setting, fit.variant.solution, fit.variant.theta, Float64Array.from(winPlot.timeS), fitted, null, new Int32Array(0));
 
+  // Cd·a and Cd are positive: intervals that would reach zero are given on the log scale, and a
+  // fit whose interval is wider than its value is flagged first among the warnings.
+  // (on the whole budget's intervals: the headline carries the full budget, server/core/budget)
+  const bea = budget.effectiveAreaM2;
+  const bcd = budget.dischargeCoefficient;
+  const eaCi = positiveInterval(ea.value, bea.combinedStandardUncertainty, bea.coverageFactor, bea.ci95);
+  const cdCi = positiveInterval(cd.value, bcd.combinedStandardUncertainty, bcd.coverageFactor, bcd.ci95);
+  const uncertain = intervalWiderThanValue(ea.value, bea.ci95) || intervalWiderThanValue(cd.value, bcd.ci95);
   const warnings = [
+    ...(uncertain
+      ? [{
+          code: 'interval-wider-than-value',
+          message: `the 95 % interval of Cd·a (${bea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
+            'the fit says little about Cd; do not use it without checking the window, the time column and the clock (--tz)',
+          stage: 'fit',
+        }]
+      : []),
     ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
     ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
     ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
+    ...budget.warnings.map((x) => ({ ...x, stage: 'budget' })),
   ];
   const excluded = w.samples - data.timeS.length;
-  const json: FitJson = {
+  // built loosely, then read back through JSON (no NaN) as the one fit-result shape
+  const json = {
     engineVersion: ENGINE_VERSION,
     converged: fit.solver.converged,
+    // the headline carries the full budget (server/core/budget); typeA… keeps the fit's own part
     dischargeCoefficient: {
       value: cd.value,
-      standardUncertainty: cd.standardUncertainty,
-      ci95: cd.ci95,
-      coverageFactor: cd.coverageFactor,
-      expandedUncertainty: cd.expandedUncertainty,
-      relativeStandardUncertainty: cd.relativeStandardUncertainty,
-      effectiveDegreesOfFreedom: cd.effectiveDegreesOfFreedom,
+      standardUncertainty: bcd.combinedStandardUncertainty,
+      ci95: cdCi.ci95,
+      ...(cdCi.logScale ? { ci95Scale: 'log' } : {}),
+      coverageFactor: bcd.coverageFactor,
+      expandedUncertainty: bcd.expandedUncertainty,
+      relativeStandardUncertainty: bcd.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: bcd.effectiveDegreesOfFreedom,
       fitContribution: cd.fitContribution,
       boreContribution: cd.boreContribution,
-    } as FitJson['dischargeCoefficient'],
+      typeAStandardUncertainty: budget.typeA.standardUncertainty / nominal,
+    },
     effectiveAreaM2: {
       value: ea.value,
-      standardUncertainty: ea.standardUncertainty,
-      ci95: ea.ci95,
-      coverageFactor: ea.coverageFactor,
-      expandedUncertainty: ea.expandedUncertainty,
-      relativeStandardUncertainty: ea.relativeStandardUncertainty,
-      effectiveDegreesOfFreedom: ea.effectiveDegreesOfFreedom,
+      standardUncertainty: bea.combinedStandardUncertainty,
+      ci95: eaCi.ci95,
+      ...(eaCi.logScale ? { ci95Scale: 'log' } : {}),
+      coverageFactor: bea.coverageFactor,
+      expandedUncertainty: bea.expandedUncertainty,
+      relativeStandardUncertainty: bea.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: bea.effectiveDegreesOfFreedom,
+      typeAStandardUncertainty: budget.typeA.standardUncertainty,
       profileCi95: ea.profileCi95,
-    } as FitJson['effectiveAreaM2'],
+    },
     window: {
       startS: w.startS,
       endS: w.endS,
@@ -217,7 +273,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       chosenBy: p.choice.notes.some((n) => n.code === 'window-chosen-by-user') ? 'by the person' : 'automatically',
       trims: choice.trims,
       notes: choice.notes,
-    } as FitJson['window'],
+    },
     warnings,
     timing: { parseMs: 0, fitMs: 0 },
     vessel: { name: vessel.name, site: vessel.site ?? null, shape: vessel.shape, fluidDensityKgM3: p.density.value, fluidDensitySource: p.density.source, gravityMS2: p.setting.gravity },
@@ -228,7 +284,16 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       terms: fit.variant.terms,
       solution: fit.variant.solution === 'closed-form' ? 'closed form (constant plan area)' : 'ODE with sensitivity equations (RK4, Hermite output)',
     },
-    parameters: fit.parameters.map((q) => ({ ...q, standardUncertainty: q.free ? q.standardUncertainty : null })),
+    parameters: fit.parameters.map((q, j) => {
+      const col = freeIndex.indexOf(j);
+      const bounds = col >= 0 ? { lower: bound(solverBounds.lower[col]), upper: bound(solverBounds.upper[col]) } : { lower: q.value, upper: q.value };
+      return {
+        ...q,
+        standardUncertainty: q.free ? q.standardUncertainty : null,
+        bounds,
+        ...(q.name === 'effectiveAreaM2' && q.ci95 ? { ci95: positiveInterval(q.value, q.standardUncertainty, ea.coverageFactor, q.ci95).ci95 } : {}),
+      };
+    }),
     correlations: { parameters: free, matrix },
     residuals: fit.residuals,
     uncertaintyMethod: {
@@ -243,6 +308,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       boreUncertainty: 'bore tolerance as a rectangular distribution, u(d) = T/√3 (JCGM 100:2008, 4.3.7)',
       profile: ea.profile,
     },
+    budget,
     modelComparison: fit.comparison,
     headBands: fit.headBands.map((b) => ({ ...b, dischargeCoefficient: b.effectiveAreaM2 / nominal, standardUncertainty: b.standardUncertainty / nominal })),
     solver: {

@@ -1,5 +1,7 @@
 import type { FitJson } from '../analysis-contract.js';
+import { correlationLines, pad, parameterLines, SAFETY_LINES, solverLine, warningLines } from '../fit-result/text.js';
 import { sig, toU } from './format.js';
+import { autocorrelationText } from '../budget/table.js';
 
 /**
  * The readable fit report printed by `efflux fit` (and reused by the service): everything a
@@ -7,7 +9,6 @@ import { sig, toU } from './format.js';
  */
 type Quantity = { value: number; standardUncertainty: number; ci95: [number, number]; coverageFactor?: number; expandedUncertainty?: number; effectiveDegreesOfFreedom?: number };
 
-const pad = (s: string, w: number) => (s.length >= w ? s : s + ' '.repeat(w - s.length));
 
 export function textReport(fit: FitJson): string {
   const f = fit as FitJson & Record<string, any>;
@@ -19,6 +20,9 @@ export function textReport(fit: FitJson): string {
     lines.push(`FIT DID NOT CONVERGE (solver: ${f.solver?.stopReason ?? 'stopped'}): do not use any number in this report.`);
     lines.push('Try a longer window, fewer fitted terms (--fit-inflow, --fit-datum, --fit-exponent) or a vessel file that gives the sensor zero.');
   }
+  // A converged fit that says little about Cd is flagged before anything a reader could quote.
+  const wide = (f.warnings ?? []).find((x: { code: string }) => x.code === 'interval-wider-than-value');
+  if (wide && !unconverged) lines.push(`UNCERTAIN FIT: ${wide.message}.`);
   lines.push(`Drain test fit — ${f.vessel?.name ?? 'vessel'} (${f.vessel?.shape?.kind ?? ''})`);
   lines.push(rule);
   if (unconverged) {
@@ -33,28 +37,21 @@ export function textReport(fit: FitJson): string {
   lines.push(`Model    ${f.model?.equation ?? ''}`);
   lines.push(`         free: ${f.model?.description ?? ''}; solution: ${f.model?.solution ?? ''}`);
   lines.push('');
-  lines.push('Parameters');
-  lines.push(`  ${pad('name', 22)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 30)}unit`);
-  for (const p of (f.parameters ?? []) as any[]) {
-    const ci = p.ci95 ? `${toU(p.ci95[0], p.standardUncertainty)} … ${toU(p.ci95[1], p.standardUncertainty)}` : 'fixed';
-    lines.push(`  ${pad(p.name, 22)}${pad(p.free ? toU(p.value, p.standardUncertainty) : sig(p.value, 6), 14)}${pad(p.free ? sig(p.standardUncertainty, 2) : '—', 12)}${pad(ci, 30)}${p.unit}${p.atBound ? '  (at bound)' : ''}`);
-  }
-  const corr = f.correlations as { parameters: string[]; matrix: number[][] } | undefined;
-  if (corr && corr.parameters.length > 1) {
-    lines.push('');
-    lines.push('Correlations');
-    for (let i = 0; i < corr.parameters.length; i++) {
-      for (let j = i + 1; j < corr.parameters.length; j++) {
-        lines.push(`  ${pad(`${corr.parameters[i]} ~ ${corr.parameters[j]}`, 46)}${corr.matrix[i][j].toFixed(4)}`);
-      }
-    }
-  }
+  lines.push(...parameterLines(f.parameters ?? []));
+  lines.push(...correlationLines(f.correlations));
   const r = f.residuals;
   const um = f.uncertaintyMethod;
   lines.push('');
   lines.push(`Residuals  RMSE ${sig(r?.rmseM, 3)} m, max |r| ${sig(r?.maxAbsM, 3)} m, lag-1 autocorrelation ${sig(r?.lag1Autocorrelation, 3)}, Durbin–Watson ${sig(r?.durbinWatson, 3)}`);
   if (um) {
-    lines.push(`Uncertainty  ${um.covariance}; correction: ${um.autocorrelationCorrection} (variance ×${sig(um.varianceInflation, 3)}, ${sig(um.effectiveSamples, 4)} effective of ${um.samples} samples, ν = ${sig(um.degreesOfFreedom, 4)}, t = ${sig(um.coverageFactor, 4)})`);
+    lines.push(`Uncertainty  ${um.covariance}; correction: ${um.autocorrelationCorrection} (${autocorrelationText(um.lag1Autocorrelation, um.varianceInflation)}, ${sig(um.effectiveSamples, 4)} effective of ${um.samples} samples, ν = ${sig(um.degreesOfFreedom, 4)}, t = ${sig(um.coverageFactor, 4)})`);
+  }
+  const budget = f.budget as { table?: { columns: string[]; rows: string[][]; totals: [string, string][] }; notes?: string[] } | undefined;
+  if (budget?.table) {
+    lines.push('');
+    lines.push('Uncertainty budget (JCGM 100:2008)');
+    lines.push(...budgetTableText(budget.table));
+    for (const n of budget.notes ?? []) lines.push(`  · ${n}`);
   }
   const cmp = f.modelComparison;
   if (cmp && cmp.rows?.length) {
@@ -72,17 +69,12 @@ export function textReport(fit: FitJson): string {
     lines.push('Cd by head band (u: standard uncertainty of the band\'s fit, AR(1)-corrected like the whole fit; bore tolerance not included, so bands compare with each other)');
     for (const b of bands) lines.push(`  head ${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)} m: Cd = ${toU(b.dischargeCoefficient, b.standardUncertainty)}   u = ${sig(b.standardUncertainty, 2)} (${b.samples} samples)`);
   }
-  const s = f.solver;
   lines.push('');
-  lines.push(`Solver   ${s?.method}: ${s?.stopReason}, ${s?.iterations} iterations, ${s?.evaluations} evaluations, rank ${s?.rank}; converged: ${f.converged ? 'yes' : 'NO'}`);
+  lines.push(solverLine(f.solver, f.converged));
   lines.push('');
-  if (f.warnings.length) {
-    lines.push('Warnings');
-    for (const wn of f.warnings) lines.push(`  ! ${wn.message}`);
-  } else lines.push('Warnings: none');
+  lines.push(...warningLines(f.warnings));
   lines.push(rule);
-  lines.push('Engineering estimate with the stated uncertainty, not a certification. Drain tests involve work at');
-  lines.push('height, confined spaces and discharges: follow site procedures, local codes and licensed engineering practice.');
+  lines.push(...SAFETY_LINES);
   return lines.join('\n') + '\n';
 }
 
@@ -93,9 +85,16 @@ function headline(lines: string[], f: FitJson & Record<string, any>): void {
   if (cd) {
     const u = cd.standardUncertainty;
     lines.push(`Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
-    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, the bore tolerance dominates' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
+    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, stated limits dominate' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
   }
   const ue = ea.standardUncertainty;
   lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
   lines.push(`                       95 % interval ${toU(ea.ci95[0], ue)} … ${toU(ea.ci95[1], ue)} m²` + (ea.profileCi95 ? `   profile: ${toU(ea.profileCi95[0], ue)} … ${toU(ea.profileCi95[1], ue)} m²` : ''));
+}
+
+/** The budget table in fixed-width columns (the strings come from the fit JSON). */
+export function budgetTableText(t: { columns: string[]; rows: string[][]; totals: [string, string][] }): string[] {
+  const widths = t.columns.map((c, j) => Math.max(c.length, ...t.rows.map((r) => r[j].length)));
+  const row = (cells: string[]) => '  ' + cells.map((c, j) => pad(c, widths[j] + 2)).join('').trimEnd();
+  return [row(t.columns), ...t.rows.map(row), ...t.totals.map(([k, v]) => `  ${pad(k, 6)}${v}`)];
 }

@@ -4,7 +4,7 @@
  * Pure; the JSON report is its canonical serialisation and the PDF is drawn from it.
  */
 import { InputError } from '../errors.js';
-import { withIdentity } from './identity.js';
+import { withIdentity, type Sha256Hex } from './identity.js';
 import type { FitReportRecords, RawFileRecord, SoftwareRecord } from './records.js';
 import { SCOPE_STATEMENT } from './statement.js';
 
@@ -65,8 +65,14 @@ export interface FitReport {
   };
   modelComparison: unknown;
   headBands: { headFromM: number; headToM: number; samples: number; dischargeCoefficient: number; standardUncertainty: number }[];
+  /**
+   * The uncertainty budget table exactly as the fit JSON states it (server/core/budget/table.ts);
+   * absent for fits made before it, so the report of such a fit keeps its content and id.
+   */
+  budget?: { columns: string[]; rows: string[][]; totals: [string, string][]; notes: string[] };
   warnings: { stage: string | null; code: string; message: string }[];
-  review: { decision: string; by: string | null; at: string; comment: string | null } | null;
+  /** selfReview: approved by the uploader or refit requester where the site allows it (four eyes waived). */
+  review: { decision: string; by: string | null; at: string; comment: string | null; selfReview?: true } | null;
   history: { fitId: number; status: string; createdAt: string; createdBy: string | null; supersededBy: number | null; dischargeCoefficient: number | null; effectiveAreaM2: number | null; settings: Record<string, unknown>; thisFit: boolean }[];
   audit: { seq: number; at: string; actor: string; action: string; entity: string; hash: string }[];
   /** Data for drawing: the log, the window with the fitted curve (decimated by the analysis). */
@@ -113,8 +119,8 @@ function modelInWords(terms: Json | undefined, solution: string): string[] {
   ];
 }
 
-/** Builds the report for one fit. `software` comes from the shell (version and git commit). */
-export function buildFitReport(records: FitReportRecords, software: SoftwareRecord): FitReport {
+/** Builds the report for one fit. `software` and the hash come from the shell (version and git commit; node:crypto). */
+export function buildFitReport(records: FitReportRecords, software: SoftwareRecord, sha256Hex: Sha256Hex): FitReport {
   const { vessel, outlet, test, fit } = records;
   const r = fit.result as Json;
   if (!r || typeof r !== 'object' || !r.effectiveAreaM2) throw new InputError(`fit ${fit.id} has no result to report`, { field: 'result' });
@@ -239,6 +245,7 @@ export function buildFitReport(records: FitReportRecords, software: SoftwareReco
     },
     modelComparison: r.modelComparison ?? null,
     headBands: arr<Json>(r.headBands).map((b) => ({ headFromM: b.headFromM, headToM: b.headToM, samples: b.samples, dischargeCoefficient: b.dischargeCoefficient, standardUncertainty: b.standardUncertainty })),
+    ...(r.budget?.table ? { budget: { columns: arr<string>(r.budget.table.columns), rows: arr<string[]>(r.budget.table.rows), totals: arr<[string, string]>(r.budget.table.totals), notes: arr<string>(r.budget.notes) } } : {}),
     warnings: arr<Json>(r.warnings).map((x) => ({ stage: str(x.stage), code: String(x.code), message: String(x.message) })),
     review: fit.review ? { ...fit.review } : null,
     history: records.history
@@ -255,5 +262,5 @@ export function buildFitReport(records: FitReportRecords, software: SoftwareReco
     },
     statement: [...SCOPE_STATEMENT],
   };
-  return withIdentity(body as unknown as Record<string, unknown>) as unknown as FitReport;
+  return withIdentity(body as unknown as Record<string, unknown>, sha256Hex) as unknown as FitReport;
 }

@@ -5,6 +5,7 @@
  * bytes as an ordinary upload. The events are a plain SSE reply (text/event-stream written on the
  * raw response: no plugin needed for one-way messages; the browser's EventSource reconnects).
  */
+import type { FastifyRequest } from 'fastify';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { QUANTITIES } from '../../core/plan/schema.js';
@@ -12,6 +13,7 @@ import { LiveProblem, LiveTests, type LiveEvent } from '../../jobs/live.js';
 import { actorOf } from '../../store/users.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
 import { HttpProblem, sendProblem } from '../problems.js';
+import { assertSite } from '../site-scope.js';
 import { analysisSettings, drainTest, fit, idParams, problem, protectedErrors } from '../schemas.js';
 
 export interface LiveRouteOptions {
@@ -53,11 +55,17 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
       throw e;
     }
   };
+  // a live test belongs to its vessel's site: the /api/live/:id routes are 'listed' and check it here
+  const ownLive = (request: FastifyRequest, id: string) => {
+    const state = guard(() => live.get(id));
+    assertSite(request, app.store.sites.siteOf('vessel', state.vesselId));
+    return state;
+  };
 
   app.post(
     '/api/vessels/:id/live',
     {
-      config: { roles: TECHNICIANS_UP },
+      config: { roles: TECHNICIANS_UP, scope: 'vessel' },
       schema: { tags: ['live'], summary: 'Open a live drain test before the valve opens; rows follow', params: idParams, body: openBody, response: { 201: liveState, 422: problem, ...protectedErrors } },
     },
     async (request, reply) => {
@@ -70,14 +78,14 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
 
   app.get(
     '/api/live/:id',
-    { config: { roles: READERS }, schema: { tags: ['live'], summary: 'A live test: bytes and rows held (a resuming sender sends from receivedBytes), the latest fit', params: liveParams, response: { 200: liveState, ...protectedErrors } } },
-    async (request) => guard(() => live.get(request.params.id)) as never,
+    { config: { roles: READERS, scope: 'listed' }, schema: { tags: ['live'], summary: 'A live test: bytes and rows held (a resuming sender sends from receivedBytes), the latest fit', params: liveParams, response: { 200: liveState, ...protectedErrors } } },
+    async (request) => ownLive(request, request.params.id) as never,
   );
 
   app.post(
     '/api/live/:id/rows',
     {
-      config: { roles: TECHNICIANS_UP },
+      config: { roles: TECHNICIANS_UP, scope: 'listed' },
       bodyLimit: 8 * 1024 * 1024,
       schema: {
         tags: ['live'],
@@ -90,6 +98,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
     },
     async (request, reply) => {
       const body = request.body;
+      ownLive(request, request.params.id);
       if (!Buffer.isBuffer(body)) throw new HttpProblem(415, 'unsupported-media-type', 'send the rows as application/octet-stream, text/plain or text/csv');
       try {
         const s = live.append(request.params.id, request.query.offset, body);
@@ -106,9 +115,9 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
 
   app.get(
     '/api/live/:id/events',
-    { config: { roles: READERS }, schema: { tags: ['live'], summary: 'Server-sent events: rows (new readings in SI), fit (each refit), closed, abandoned', params: liveParams, response: { ...protectedErrors } } },
+    { config: { roles: READERS, scope: 'listed' }, schema: { tags: ['live'], summary: 'Server-sent events: rows (new readings in SI), fit (each refit), closed, abandoned', params: liveParams, response: { ...protectedErrors } } },
     async (request, reply) => {
-      const state = guard(() => live.get(request.params.id));
+      const state = ownLive(request, request.params.id);
       reply.hijack();
       const res = reply.raw;
       res.writeHead(200, { 'content-type': 'text/event-stream; charset=utf-8', 'cache-control': 'no-store', connection: 'keep-alive', 'x-accel-buffering': 'no' });
@@ -130,11 +139,16 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
   app.post(
     '/api/live/:id/close',
     {
-      config: { roles: TECHNICIANS_UP },
-      schema: { tags: ['live'], summary: 'Close: store the received bytes as an ordinary upload (fit, audit, review)', params: liveParams, response: { 201: z.object({ test: drainTest, fit }), 409: problem, 422: problem, 503: problem, ...protectedErrors } },
+      config: { roles: TECHNICIANS_UP, scope: 'listed' },
+      schema: { tags: ['live'], summary: 'Close: store the received bytes as an ordinary upload (fit, audit, review)',
+        description: 'The same bytes as an earlier test of the vessel: 409 naming it (existingTestId), unless allowDuplicate=true.',
+        params: liveParams,
+        querystring: z.object({ allowDuplicate: z.enum(['true', 'false']).optional() }),
+        response: { 201: z.object({ test: drainTest, fit }), 409: problem, 422: problem, 503: problem, ...protectedErrors } },
     },
     async (request, reply) => {
-      const out = await live.close(request.params.id, actorOf(request.user!)).catch((e) => {
+      ownLive(request, request.params.id);
+      const out = await live.close(request.params.id, actorOf(request.user!), { allowDuplicate: request.query.allowDuplicate === 'true' }).catch((e) => {
         if (e instanceof LiveProblem) throw new HttpProblem(e.status, e.slug, e.message);
         throw e;
       });
@@ -145,8 +159,9 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
 
   app.delete(
     '/api/live/:id',
-    { config: { roles: TECHNICIANS_UP }, schema: { tags: ['live'], summary: 'Abandon a live test (nothing is stored)', params: liveParams, response: { 204: z.null(), ...protectedErrors } } },
+    { config: { roles: TECHNICIANS_UP, scope: 'listed' }, schema: { tags: ['live'], summary: 'Abandon a live test (nothing is stored)', params: liveParams, response: { 204: z.null(), ...protectedErrors } } },
     async (request, reply) => {
+      ownLive(request, request.params.id);
       guard(() => live.abandon(request.params.id));
       reply.code(204);
       return null;

@@ -30,7 +30,7 @@ export const planRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/api/vessels/:id/plan',
     {
-      config: { roles: READERS },
+      config: { roles: READERS, scope: 'vessel' },
       schema: {
         tags: ['plan'],
         summary: 'Plan a drain test: drain time, volume, peak outflow, expected u of Cd·a and Cd, the least test for a target',

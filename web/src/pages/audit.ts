@@ -4,20 +4,13 @@
  * Auditors and admins only (the service refuses the others; the page says so).
  */
 import { api, ApiError, type Page, type Vessel } from '../api.js';
-import { field, h, notice, select, table } from '../dom.js';
+import { field, h, notice, select } from '../dom.js';
 import { dateTime } from '../format.js';
 import type { PageContext } from '../main.js';
+import type { AuditEntry } from '../../../server/store/audit.js';
 
-interface Entry {
-  seq: number;
-  at: string;
-  actorId: number | null;
-  actorName: string;
-  action: string;
-  entityType: string;
-  entityId: string | null;
-  hash: string;
-}
+/** An audit entry as the service sends it (server/store/audit.ts, type-only). */
+type Entry = AuditEntry;
 
 const ACTION_WORDS: Record<string, string> = {
   'vessel.create': 'vessel added',
@@ -33,6 +26,11 @@ const ACTION_WORDS: Record<string, string> = {
   'session.open': 'signed in',
   'session.close': 'signed out',
   'user.create': 'person added',
+  'user.update': 'role or sites changed',
+  'user.revoke': 'person revoked (sessions ended)',
+  'token.revoke': 'access token revoked (sessions ended)',
+  'site.settings': 'site setting changed (self-review)',
+  'fit.supersede': 'fit replaced by an approved one',
   'api-token.create': 'access token made',
 };
 

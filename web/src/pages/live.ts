@@ -5,7 +5,7 @@
  * there is enough data and the valve may be closed. Closing stores the bytes as an ordinary
  * upload and links to its fit.
  */
-import { api, canUpload, type Vessel } from '../api.js';
+import { api, ApiError, canUpload, type Vessel } from '../api.js';
 import { clear, field, h, notice, select } from '../dom.js';
 import type { PageContext } from '../main.js';
 import { liveChart, narrowingChart } from '../plan-charts.js';
@@ -170,14 +170,34 @@ export async function livePage({ user, params, main }: PageContext): Promise<voi
     done.append(notice('info', 'This live test was abandoned; nothing was stored.'));
   });
 
+  const closeTest = async (allowDuplicate: boolean) => {
+    const r = await api<{ test: { id: number }; fit: { id: number } }>('POST', `/api/live/${id}/close${allowDuplicate ? '?allowDuplicate=true' : ''}`);
+    clear(done);
+    done.append(notice('info', `Stored as test ${r.test.id}. `, h('a', { href: `#/fits/${r.fit.id}`, class: 'stored-fit' }, 'Open its fit for review')));
+    stop();
+  };
   closeButton?.addEventListener('click', async () => {
     closeButton.disabled = true;
     try {
-      const r = await api<{ test: { id: number }; fit: { id: number } }>('POST', `/api/live/${id}/close`);
-      clear(done);
-      done.append(notice('info', `Stored as test ${r.test.id}. `, h('a', { href: `#/fits/${r.fit.id}`, class: 'stored-fit' }, 'Open its fit for review')));
-      stop();
+      await closeTest(false);
     } catch (err) {
+      clear(done);
+      // the same bytes as an earlier test of this vessel: say which, and let the person store it anyway
+      if (err instanceof ApiError && err.status === 409 && typeof err.problem?.existingTestId === 'number') {
+        const again = h('button', { type: 'button' }, 'Store it again anyway');
+        again.addEventListener('click', async () => {
+          again.disabled = true;
+          try {
+            await closeTest(true);
+          } catch (e2) {
+            clear(done);
+            done.append(notice('error', e2 instanceof Error ? e2.message : String(e2)));
+            closeButton.disabled = false;
+          }
+        });
+        done.append(notice('caution', `This file is already stored: test ${err.problem.existingTestId}. `, again));
+        return;
+      }
       done.append(notice('error', err instanceof Error ? err.message : String(err)));
       closeButton.disabled = false;
     }
