@@ -59,21 +59,47 @@ export function sendProblem(reply: FastifyReply, request: FastifyRequest, p: Omi
   return reply.code(p.status).type('application/problem+json').send(body);
 }
 
+interface FieldIssue {
+  path: string;
+  message: string;
+  tooLong: boolean;
+}
+
+/**
+ * Field problems as one answer: 422 `too-long` naming the field when every problem is text past
+ * its limit (server/core/limits.ts: the value is understood, there is just too much of it), else
+ * 400 `validation` with every problem.
+ */
+function fieldsProblem(issues: FieldIssue[]): Omit<Problem, 'instance' | 'title'> & { title?: string } {
+  const errors = issues.map(({ path, message }) => ({ path, message }));
+  const detail = errors.map((e) => `${e.path}: ${e.message}`).join('; ');
+  if (issues.length > 0 && issues.every((i) => i.tooLong)) {
+    return { type: typeOf('too-long'), status: 422, title: 'Input refused', detail, field: issues[0].path, errors };
+  }
+  return { type: typeOf('validation'), status: 400, title: 'Invalid request', detail, errors };
+}
+
+const isTooLongText = (code: string, origin: unknown) => code === 'too_big' && origin === 'string';
+
+/** A refusal of multipart text fields checked with zod outside Fastify's own validation. */
+export function refuseFields(issues: readonly { code: string; path: PropertyKey[]; message: string; origin?: unknown; keys?: string[] }[]): HttpProblem {
+  const p = fieldsProblem(
+    issues.map((i) => ({ path: i.path.length ? i.path.map(String).join('.') : (i.keys?.join(',') ?? ''), message: i.message, tooLong: isTooLongText(i.code, i.origin) })),
+  );
+  return new HttpProblem(p.status, p.type.replace('urn:efflux:problem:', ''), p.detail ?? '', { title: p.title, errors: p.errors, field: p.field });
+}
+
 function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?: string } {
   if (err instanceof HttpProblem) return { type: typeOf(err.slug), status: err.status, detail: err.message, ...err.extra };
   if (hasZodFastifySchemaValidationErrors(err)) {
     const where = (err as { validationContext?: string }).validationContext ?? 'request';
-    const errors = err.validation.map((v) => ({
-      path: [where, ...v.instancePath.split('/').filter(Boolean)].join('.'),
-      message: v.message ?? 'invalid',
-    }));
-    return {
-      type: typeOf('validation'),
-      status: 400,
-      title: 'Invalid request',
-      detail: errors.map((e) => `${e.path}: ${e.message}`).join('; '),
-      errors,
-    };
+    return fieldsProblem(
+      err.validation.map((v) => ({
+        path: [where, ...v.instancePath.split('/').filter(Boolean)].join('.'),
+        message: v.message ?? 'invalid',
+        tooLong: isTooLongText(v.keyword, (v.params as { origin?: unknown } | undefined)?.origin),
+      })),
+    );
   }
   if (isInputError(err)) {
     return {

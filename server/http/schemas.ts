@@ -3,6 +3,7 @@
  * the zod serializer checks them against these before they leave.
  */
 import { z } from 'zod';
+import { nameText, tagText } from '../core/limits.js';
 
 export const idParams = z.object({ id: z.coerce.number().int().positive() });
 
@@ -101,15 +102,15 @@ export const fit = z
 /** The settings a person can state (AnalysisSettings), as JSON. */
 export const analysisSettings = z
   .object({
-    timeColumn: z.string().min(1),
-    levelColumn: z.string().min(1),
-    unit: z.string().min(1),
+    timeColumn: nameText().min(1),
+    levelColumn: nameText().min(1),
+    unit: tagText().min(1),
     quantity: z.enum(['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top']),
     dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
-    tz: z.string().min(1),
+    tz: tagText().min(1),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
-    window: z.string().min(1),
+    window: tagText().min(1),
     fitInflow: z.boolean(),
     fitDatum: z.boolean(),
     fitExponent: z.boolean(),

@@ -6,6 +6,7 @@
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { nameText, tagText } from '../../core/limits.js';
 import { reportJson } from '../../core/report/index.js';
 import { periodExport } from '../../render/period-export.js';
 import { fitReport, outletReport, renderFitReportPdf, renderOutletReportPdf } from '../../render/report-service.js';
@@ -39,7 +40,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/outlets/:id/report.pdf',
     {
       config: { roles: READERS },
-      schema: { tags: ['reports'], summary: "An outlet's approved fits and trend as PDF", params: idParams, querystring: z.object({ asOf: z.string().optional() }), response: { 200: binary, 422: problem, ...protectedErrors } },
+      schema: { tags: ['reports'], summary: "An outlet's approved fits and trend as PDF", params: idParams, querystring: z.object({ asOf: tagText().optional() }), response: { 200: binary, 422: problem, ...protectedErrors } },
     },
     async (request, reply) => {
       const report = outletReport(app.store, request.params.id, currentSoftware(), request.query.asOf);
@@ -55,7 +56,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['reports'],
         summary: 'Approved fits of a site, vessel or period: zip of PDF reports, CSV summary, audit excerpt, SHA-256 manifest',
-        body: z.object({ site: z.string().optional(), vessel: z.string().optional(), from: z.string().optional(), to: z.string().optional() }),
+        body: z.object({ site: nameText().optional(), vessel: nameText().optional(), from: tagText().optional(), to: tagText().optional() }),
         response: { 200: binary, 422: problem, ...protectedErrors },
       },
     },

@@ -14,6 +14,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { FastifyRequest } from 'fastify';
 import { z } from 'zod';
 import { InputError } from '../../core/errors.js';
+import { tagText } from '../../core/limits.js';
 import { alignLogs, type Alignment, type LogForSystem } from '../../core/system/align.js';
 import { fitSystem, type SystemFitResult } from '../../core/system/fit.js';
 import { loadSystemModel, systemFitJson, type InflowLogUse } from '../../core/system/fit-json.js';
@@ -27,7 +28,7 @@ import { steadyState } from '../../core/system/steady.js';
 import { parseFlow } from '../../core/units/index.js';
 import { readVesselLog } from '../../core/system/read-vessel-log.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
-import { HttpProblem } from '../problems.js';
+import { HttpProblem, refuseFields } from '../problems.js';
 import { problem, protectedErrors } from '../schemas.js';
 
 /** Readings (all logs, inside the common span) one synchronous fit may take. */
@@ -37,13 +38,13 @@ const DRAW_POINTS = 600;
 const MAX_LOGS = 12;
 
 const bool = z.enum(['true', 'false']).transform((s) => s === 'true');
-const fitFields = z
+export const fitFields = z
   .object({
-    window: z.string().regex(/^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/, 'START..END in seconds from the logs’ common start'),
+    window: tagText().regex(/^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/, 'START..END in seconds from the logs’ common start'),
     fitDatum: bool,
     fitInflow: bool,
-    unit: z.string().min(1).max(20),
-    tz: z.string().min(1).max(60),
+    unit: tagText().min(1),
+    tz: tagText().min(1),
     dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
@@ -64,8 +65,8 @@ const fitAnswer = z
   .meta({ id: 'SystemFit', description: 'The output of `efflux fit-system --json`, plus `drawing` (each log thinned for charts, with the fitted curve)' });
 
 const inflowItem = z.object({
-  to: z.string().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
-  flow: z.union([z.string().min(1).max(40), z.number().min(0)]).meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
+  to: tagText().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
+  flow: z.union([tagText().min(1), z.number().min(0)]).meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
 });
 const operatingBody = z.object({
   system: z.record(z.string(), z.unknown()).meta({ description: 'a system file, or the answer of POST /api/systems/fit' }),
@@ -211,10 +212,7 @@ async function readSystemUpload(request: FastifyRequest): Promise<{ system: File
   }
   if (!system) throw refuse('system', 'required: the system file');
   const parsed = fitFields.safeParse(text);
-  if (!parsed.success) {
-    const errors = parsed.error.issues.map((i) => ({ path: i.path.length ? i.path.join('.') : ((i as { keys?: string[] }).keys?.join(',') ?? ''), message: i.message }));
-    throw new HttpProblem(400, 'validation', errors.map((e) => `${e.path}: ${e.message}`).join('; '), { title: 'Invalid request', errors });
-  }
+  if (!parsed.success) throw refuseFields(parsed.error.issues);
   return { system, logs, flows, fields: parsed.data };
 }
 
