@@ -38,16 +38,6 @@ export async function api<T>(method: string, url: string, body?: unknown): Promi
   return data as T;
 }
 
-/** Whether a route exists (a route another part of the service may add later, e.g. a report). */
-export async function routeExists(url: string): Promise<boolean> {
-  try {
-    const res = await fetch(url, { method: 'HEAD', credentials: 'same-origin' });
-    return res.ok;
-  } catch {
-    return false;
-  }
-}
-
 // Shapes as the service sends them (server/http/schemas.ts)
 export type Role = 'technician' | 'engineer' | 'auditor' | 'admin';
 export interface User {
