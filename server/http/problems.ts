@@ -6,7 +6,9 @@
 import type { FastifyError, FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { hasZodFastifySchemaValidationErrors, isResponseSerializationError } from 'fastify-type-provider-zod';
 import { isInputError } from '../core/errors.js';
+import { ExportsBusyError } from '../jobs/exports.js';
 import { AnalysisTimeoutError } from '../jobs/pool.js';
+import { TaskQueueFullError, TaskTimeoutError } from '../jobs/tasks.js';
 import { EngineUnavailableError } from '../jobs/worker-reply.js';
 import { ConflictError, NotFoundError } from '../store/errors.js';
 
@@ -117,6 +119,9 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
   if (err instanceof EngineUnavailableError || err instanceof AnalysisTimeoutError) {
     return { type: typeOf('analysis-unavailable'), status: 503, detail: err.message };
   }
+  // heavy work past its time limit, or too much of it waiting: nothing was written, ask again later
+  if (err instanceof TaskTimeoutError) return { type: typeOf('over-time-limit'), status: 503, detail: err.message };
+  if (err instanceof TaskQueueFullError || err instanceof ExportsBusyError) return { type: typeOf('busy'), status: 503, detail: err.message };
   const fe = err as FastifyError;
   if (!isResponseSerializationError(err) && typeof fe.statusCode === 'number' && fe.statusCode >= 400 && fe.statusCode < 500) {
     return { type: 'about:blank', status: fe.statusCode, detail: fe.message };
@@ -129,6 +134,7 @@ export function installProblemHandlers(app: FastifyInstance): void {
     const p = toProblem(err);
     if (p.status >= 500) request.log.error({ err }, 'request failed');
     if (p.status === 401) reply.header('www-authenticate', 'Bearer');
+    if (p.status === 503) reply.header('retry-after', '30');
     return sendProblem(reply, request, p);
   });
   app.setNotFoundHandler((request, reply) =>

@@ -47,6 +47,8 @@ const TABLE: Record<string, Rule> = {
   'GET /api/fits/:id/report.json': ALL,
   'GET /api/outlets/:id/report.pdf': ALL,
   'POST /api/exports': ENG_AUD,
+  'GET /api/exports/:id': ENG_AUD,
+  'GET /api/exports/:id/archive.zip': ENG_AUD,
   'POST /api/vessels/:id/inspect': TECH,
   'GET /api/tests/:id/series': ALL,
   'POST /api/systems/fit': TECH,
