@@ -167,10 +167,19 @@ async function heavy() {
     // the first export also starts the task thread and fills the read cache
     for (let job = preview; job.state === 'running'; ) {
       await new Promise((r) => setTimeout(r, 200));
-      job = await (await fetch(job.statusUrl, { headers: auth })).json();
+      job = await (await fetch(base + job.statusUrl, { headers: auth })).json();
     }
     console.log(`heavy case: demo loaded, server up in ${(startMs / 1000).toFixed(1)} s; ${total} outlets; export of every approved fit = ${preview.total} reports; 1 000 000-row log ${(million.length / 1e6).toFixed(1)} MB`);
 
+    // the same reads with nothing heavy running: what the shared machine gives at this moment
+    const idleLoad = loadavg();
+    const [idleHealth, idleFit] = await Promise.all([
+      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds }),
+      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds }),
+    ]);
+    console.log(`load average ${idleLoad.map((x) => x.toFixed(2)).join(' ')} (${availableParallelism()} cores)`);
+    report('GET /api/health, nothing heavy', idleHealth);
+    report('GET /api/fits/:id, nothing heavy', idleFit);
     const until = performance.now() + seconds * 1000;
     const counts = { pdfBytes: 0, zipBytes: 0, seriesBytes: 0 };
     const loadBefore = loadavg();
@@ -184,10 +193,10 @@ async function heavy() {
         let job = await (await fetch(`${base}/api/exports`, { method: 'POST', headers: json, body: '{}' })).json();
         while (job.state === 'running') {
           await new Promise((r) => setTimeout(r, 200));
-          job = await (await fetch(job.statusUrl, { headers: auth })).json();
+          job = await (await fetch(base + job.statusUrl, { headers: auth })).json();
         }
         if (job.state !== 'done') throw new Error(`export ${job.state}: ${job.error}`);
-        counts.zipBytes = (await (await fetch(job.archiveUrl, { headers: auth })).arrayBuffer()).byteLength;
+        counts.zipBytes = (await (await fetch(base + job.archiveUrl, { headers: auth })).arrayBuffer()).byteLength;
       }),
       repeat(until, async () => {
         counts.seriesBytes = (await (await fetch(`${base}/api/tests/${big.test.id}/series`, { headers: auth })).arrayBuffer()).byteLength;

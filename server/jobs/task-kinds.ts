@@ -9,14 +9,14 @@ import { renderFitReportPdf } from '../render/fit-report-pdf.js';
 import { renderOutletReportPdf } from '../render/outlet-report-pdf.js';
 import { assembleExport, type ExportAssembly } from '../render/period-export-assembly.js';
 import { systemFitAnswer, type SystemFitInput } from './system-fit.js';
-import { inspectAnswer, seriesAnswer } from './workbench-read.js';
+import { inspectAnswer, seriesAnswer, type SeriesRequest } from './workbench-read.js';
 
 export interface TaskIo {
   'fit-report-pdf': { input: FitReport; output: Uint8Array };
   'outlet-report-pdf': { input: OutletReport; output: Uint8Array };
   zip: { input: ExportAssembly; output: Uint8Array };
   inspect: { input: AnalysisRequest; output: Uint8Array };
-  series: { input: AnalysisRequest; output: Uint8Array };
+  series: { input: SeriesRequest; output: Uint8Array };
   'system-fit': { input: SystemFitInput; output: Record<string, unknown> };
 }
 
@@ -35,7 +35,7 @@ export async function runTask<K extends TaskKind>(kind: K, input: TaskInput<K>):
     case 'inspect':
       return inspectAnswer(input as AnalysisRequest) as TaskOutput<K>;
     case 'series':
-      return seriesAnswer(input as AnalysisRequest) as TaskOutput<K>;
+      return seriesAnswer(input as SeriesRequest) as TaskOutput<K>;
     case 'system-fit':
       return systemFitAnswer(input as SystemFitInput) as TaskOutput<K>;
   }

@@ -3,9 +3,10 @@
  * the service): the same pure reader as a fit (prepareDrainTest), and the answer's JSON written
  * here as bytes, so the HTTP thread neither parses a million-row log nor serialises its series.
  */
-import type { AnalysisRequest } from '../core/analysis-contract.js';
+import type { AnalysisRequest, RawFile } from '../core/analysis-contract.js';
 import { detectedSummary, prepareDrainTest, type PreparedTest } from '../core/analyze.js';
 import { decodeHead, detectEncoding, NotUtf8 } from '../core/ingest/decode.js';
+import { readStoredRaw } from '../store/raw-reader.js';
 
 const HEAD_LINES = 25;
 const HEAD_BYTES = 16 * 1024;
@@ -48,8 +49,18 @@ export function inspectAnswer(req: AnalysisRequest): Uint8Array {
   return utf8(`{"head":${JSON.stringify(head)},"detected":${JSON.stringify(detectedSummary(p))},"series":${seriesJson(p)},"settings":${JSON.stringify(req.settings ?? {})}}`);
 }
 
+/** A raw file given as bytes, or by its hash in the database file (read in this thread). */
+export type RawSource = RawFile | { fileName: string; dbPath: string; sha256: string };
+
+export interface SeriesRequest extends Omit<AnalysisRequest, 'log' | 'baro'> {
+  log: RawSource;
+  baro?: RawSource;
+}
+
+const bytesOf = (r: RawSource): RawFile => ('bytes' in r ? r : { bytes: readStoredRaw(r.dbPath, r.sha256), fileName: r.fileName });
+
 /** GET /api/tests/:id/series: the stored log's series at full resolution and what was detected. */
-export function seriesAnswer(req: AnalysisRequest): Uint8Array {
-  const p = prepareDrainTest(req);
+export function seriesAnswer(req: SeriesRequest): Uint8Array {
+  const p = prepareDrainTest({ ...req, log: bytesOf(req.log), baro: req.baro ? bytesOf(req.baro) : undefined });
   return utf8(`{"series":${seriesJson(p)},"detected":${JSON.stringify(detectedSummary(p))}}`);
 }

@@ -142,6 +142,26 @@ describe('a period export as a job', () => {
   }, 120_000);
 });
 
+describe('series of a stored log', () => {
+  it('is read in the task thread from the database file, the same as from the bytes', async () => {
+    const app = await buildApp({ store, analyze: fakeAnalyze, tasks: pool.run });
+    try {
+      const res = await app.inject({ method: 'GET', url: `/api/tests/${testId}/series`, headers: auth() });
+      expect(res.statusCode).toBe(200);
+      const { series, detected } = res.json();
+      const { seriesAnswer } = await import('../../server/jobs/workbench-read.js');
+      const t = store.tests.get(testId);
+      const fit = store.fits.get(fitIds[0]);
+      const fromBytes = JSON.parse(new TextDecoder().decode(seriesAnswer({ log: { bytes: store.tests.rawBytes(t.sha256), fileName: t.fileName }, vessel: fit.vessel, vesselFileName: 'v', settings: t.settings })));
+      expect(series.timeS.length).toBeGreaterThan(100);
+      expect(series).toEqual(fromBytes.series);
+      expect(detected).toEqual(fromBytes.detected);
+    } finally {
+      await app.close();
+    }
+  }, 60_000);
+});
+
 describe('with a real listening server', () => {
   it('answers /api/health while a report with the longest fields is rendered, before the report', async () => {
     const app = await buildApp({ store, analyze: fakeAnalyze, tasks: pool.run });

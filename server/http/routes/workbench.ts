@@ -84,10 +84,13 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       const f = request.query.fit === undefined ? null : app.store.fits.get(request.query.fit);
       const settings = (f && f.testId === t.id ? f.settings : t.settings) as AnalysisSettings;
       const v = app.store.vessels.get(t.vesselId);
-      const log = { bytes: app.store.tests.rawBytes(t.sha256), fileName: t.fileName };
-      const baro = t.baro ? { bytes: app.store.tests.rawBytes(t.baro.sha256), fileName: t.baro.fileName } : undefined;
+      // a file database: the task thread reads the raw bytes itself (tens of MB stay off this thread)
+      const dbPath = app.store.db.memory ? null : app.store.db.name;
+      const raw = (sha256: string, fileName: string) => (dbPath ? { fileName, dbPath, sha256 } : { fileName, bytes: app.store.tests.rawBytes(sha256) });
+      const log = raw(t.sha256, t.fileName);
+      const baro = t.baro ? raw(t.baro.sha256, t.baro.fileName) : undefined;
       const vessel = f && f.testId === t.id ? f.vessel : vesselFile(v, t.outletId ?? undefined);
-      return json(reply, await app.tasks('series', { log, baro, vessel, vesselFileName: v.name, settings }, { transfer: [log.bytes, ...(baro ? [baro.bytes] : [])] }));
+      return json(reply, await app.tasks('series', { log, baro, vessel, vesselFileName: v.name, settings }, { transfer: [log, baro].flatMap((r) => (r && 'bytes' in r && r.bytes ? [r.bytes] : [])) }));
     },
   );
 };
