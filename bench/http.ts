@@ -171,11 +171,12 @@ async function heavy() {
     }
     console.log(`heavy case: demo loaded, server up in ${(startMs / 1000).toFixed(1)} s; ${total} outlets; export of every approved fit = ${preview.total} reports; 1 000 000-row log ${(million.length / 1e6).toFixed(1)} MB`);
 
-    // the same reads with nothing heavy running: what the shared machine gives at this moment
+    // the same reads with nothing heavy running: what the shared machine gives at this moment.
+    // autocannon in a thread of its own (workers: 1), so this process's big downloads below do not delay its clock
     const idleLoad = loadavg();
     const [idleHealth, idleFit] = await Promise.all([
-      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds }),
-      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds }),
+      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
+      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
     ]);
     console.log(`load average ${idleLoad.map((x) => x.toFixed(2)).join(' ')} (${availableParallelism()} cores)`);
     report('GET /api/health, nothing heavy', idleHealth);
@@ -184,8 +185,8 @@ async function heavy() {
     const counts = { pdfBytes: 0, zipBytes: 0, seriesBytes: 0 };
     const loadBefore = loadavg();
     const [health, fitReads, pdfs, exports, series] = await Promise.all([
-      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds }),
-      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds }),
+      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
+      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
       repeat(until, async () => {
         counts.pdfBytes = (await (await fetch(`${base}/api/fits/${long.fit.id}/report.pdf`, { headers: auth })).arrayBuffer()).byteLength;
       }),
