@@ -109,7 +109,7 @@ export function createTaskPool(opts: TaskPoolOptions = {}): TaskPool {
     } catch (e) {
       const name = (e as Error)?.name;
       if ((name === 'AbortError' || name === 'TimeoutError') && timeout.aborted) throw new TaskTimeoutError(kind, limit);
-      if (/queue is at limit/i.test((e as Error)?.message ?? '')) throw new TaskQueueFullError(kind);
+      if (/queue is at limit|no task queue available/i.test((e as Error)?.message ?? '')) throw new TaskQueueFullError(kind);
       throw e;
     }
     if (reply instanceof Uint8Array) return reply as TaskOutput<typeof kind>;
