@@ -17,9 +17,9 @@ import { parseSystemFile, type SystemSpec } from '../core/system/schema.js';
 /**
  * Readings (all logs, inside the common span) one fit over HTTP may take. The fit runs off the
  * event loop with a time limit (EFFLUX_TASK_TIMEOUT_S, 120 s for this task); this bound keeps it
- * well inside that limit on a small machine: bench/system-fit.ts measured about 50 µs of fitting per
- * reading at 57 600 readings on 2 loaded cores (≈ 10 s at the cap, extrapolated; server/http/README.md,
- * "Connected vessels"). The CLI has no cap.
+ * well inside that limit on a small machine: bench/system-fit.ts measured 9.8 s for 197 900 readings
+ * (≈ 50 µs each) on 2 cores at load ~10, a tenth of the limit (server/http/README.md, "Connected
+ * vessels"). The CLI has no cap.
  */
 export const MAX_FIT_SAMPLES = 200_000;
 /** Points per vessel in the drawing part of the fit answer. */
