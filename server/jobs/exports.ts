@@ -72,7 +72,8 @@ export class ExportJobs {
   start(ownerId: number, selection: ExportSelection): ExportJobView {
     this.prune();
     if ([...this.jobs.values()].filter((j) => j.state === 'running').length >= RUNNING_MAX) throw new ExportsBusyError();
-    const total = selectFits(this.o.store, selection).length;
+    const chosen = selectFits(this.o.store, selection);
+    const total = chosen.length;
     if (total === 0) throw new InputError('no approved fits match the selection');
     const job: Job = {
       id: randomUUID(),
@@ -90,11 +91,11 @@ export class ExportJobs {
       abort: new AbortController(),
     };
     this.jobs.set(job.id, job);
-    void this.run(job);
+    void this.run(job, chosen);
     return view(job);
   }
 
-  private async run(job: Job): Promise<void> {
+  private async run(job: Job, chosen: ReturnType<typeof selectFits>): Promise<void> {
     const limit = AbortSignal.timeout(EXPORT_TIMEOUT_MS);
     const signal = AbortSignal.any([limit, job.abort.signal]);
     try {
@@ -106,6 +107,7 @@ export class ExportJobs {
           job.total = total;
         },
         signal,
+        chosen,
       });
       job.zip = r.zip;
       job.bytes = r.zip.byteLength;

@@ -88,12 +88,14 @@ export interface ExportSteps {
   onProgress?: (done: number, total: number) => void;
   /** Checked between fits: an aborted export stops and rejects with the signal's reason. */
   signal?: AbortSignal;
+  /** The fits already chosen for this selection (selectFits), so they are not read twice. */
+  chosen?: ReturnType<typeof selectFits>;
 }
 
 export async function periodExport(store: Store, sel: ExportSelection, software: SoftwareRecord, steps: ExportSteps = {}): Promise<ExportResult> {
   const renderPdf = steps.renderPdf ?? renderFitReportPdf;
   const assemble = steps.assemble ?? (async (a: ExportAssembly) => assembleExport(a));
-  const chosen = selectFits(store, sel);
+  const chosen = steps.chosen ?? selectFits(store, sel);
   if (chosen.length === 0) throw new InputError('no approved fits match the selection');
   steps.onProgress?.(0, chosen.length);
   const entries: ZipEntry[] = [];
