@@ -37,6 +37,9 @@ export function serveConfig(env = process.env) {
     /** Least seconds between two refits of a live test. */
     liveRefitMs: intOr(env.EFFLUX_LIVE_REFIT_S, 3, 'EFFLUX_LIVE_REFIT_S') * 1000,
     workers: env.EFFLUX_WORKERS ? intOr(env.EFFLUX_WORKERS, 1, 'EFFLUX_WORKERS') : undefined,
+    /** Time limit of reports, exports' PDFs, large reads and joint fits (jobs/tasks.ts); default per kind. */
+    taskTimeoutMs: env.EFFLUX_TASK_TIMEOUT_S ? intOr(env.EFFLUX_TASK_TIMEOUT_S, 60, 'EFFLUX_TASK_TIMEOUT_S') * 1000 : undefined,
+    taskThreads: env.EFFLUX_TASK_THREADS ? intOr(env.EFFLUX_TASK_THREADS, 1, 'EFFLUX_TASK_THREADS') : undefined,
     /** For tests and benchmarks only: a module exporting analyzeDrainTest instead of the engine. */
     analyzeModule: env.EFFLUX_ANALYZE_MODULE,
     webRoot: env.EFFLUX_WEB_ROOT ?? projectPath('dist/web'),

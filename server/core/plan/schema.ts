@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { nameText } from '../limits.js';
 
 /**
  * A planned drain test, as a person states it (CLI flags, API body, workbench form): one shape,
@@ -20,7 +21,7 @@ export const sensorPlanSchema = z.strictObject({
 
 export const statedInputSchema = z.strictObject({
   /** What it is, in words (e.g. "plan area from a taped diameter"). */
-  name: z.string().min(1).max(120),
+  name: nameText().min(1),
   /** Its relative standard uncertainty contribution to Cd·a (already times its sensitivity). */
   relativeStandardUncertainty: z.number().min(0).max(1),
 });

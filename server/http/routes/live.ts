@@ -8,6 +8,7 @@
 import type { FastifyRequest } from 'fastify';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { nameText, noteText } from '../../core/limits.js';
 import { QUANTITIES } from '../../core/plan/schema.js';
 import { LiveProblem, LiveTests, type LiveEvent } from '../../jobs/live.js';
 import { actorOf } from '../../store/users.js';
@@ -25,13 +26,13 @@ export interface LiveRouteOptions {
 const liveParams = z.object({ id: z.uuid() });
 const target = z.object({ quantity: z.enum(QUANTITIES).default('discharge-coefficient'), relativeStandardUncertainty: z.number().positive().max(0.5) });
 const openBody = z.strictObject({
-  fileName: z.string().min(1).max(255).regex(/^[^/\\\u0000-\u001f"]+$/, 'a plain file name, no folders or quotes'),
+  fileName: nameText().min(1).regex(/^[^/\\\u0000-\u001f"]+$/, 'a plain file name, no folders or quotes'),
   outletId: z.number().int().positive().optional(),
   settings: analysisSettings.optional(),
   target: target.default({ quantity: 'discharge-coefficient', relativeStandardUncertainty: 0.01 }),
-  operator: z.string().max(10_000).optional(),
-  loggerId: z.string().max(10_000).optional(),
-  notes: z.string().max(10_000).optional(),
+  operator: nameText().optional(),
+  loggerId: nameText().optional(),
+  notes: noteText().optional(),
 });
 const liveState = z.looseObject({ id: z.string(), vesselId: z.number(), receivedBytes: z.number(), rows: z.number(), status: z.string() }).meta({ id: 'LiveTest' });
 
