@@ -279,6 +279,16 @@ describe('permission table', () => {
     // nor may a vessel of theirs be moved to another site
     const moved = await t.app.inject({ method: 'PUT', url: `/api/vessels/${ids.vessel}`, headers: as, payload: { ...VESSEL_FILE, site: 'north' } });
     expect(moved.statusCode).toBe(403);
+    // a live test belongs to its vessel's site: reading, feeding, closing or abandoning one at "north" is refused
+    const liveNorth = await t.app.inject({ method: 'POST', url: `/api/vessels/${north.vessel}/live`, headers: t.auth('admin'), payload: { fileName: 'n.csv' } });
+    const liveMain = await t.app.inject({ method: 'POST', url: `/api/vessels/${ids.vessel}/live`, headers: t.auth('admin'), payload: { fileName: 'm.csv' } });
+    for (const [method, suffix] of [['GET', ''], ['GET', '/events'], ['POST', '/rows?offset=0'], ['POST', '/close'], ['DELETE', '']] as const) {
+      const res = await t.app.inject({ method, url: `/api/live/${liveNorth.json().id}${suffix}`, headers: { ...as, 'content-type': 'application/octet-stream' }, payload: method === 'POST' ? 'x' : undefined });
+      expect(res.statusCode, `${method} live${suffix}`).toBe(403);
+      expect(problemType(res.body)).toBe('urn:efflux:problem:site-forbidden');
+    }
+    expect((await t.app.inject({ method: 'GET', url: `/api/live/${liveMain.json().id}`, headers: as })).statusCode).toBe(200);
+    for (const l of [liveNorth, liveMain]) await t.app.inject({ method: 'DELETE', url: `/api/live/${l.json().id}`, headers: t.auth('admin') });
     // the unlimited admin sees both
     expect((await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('admin') })).json().total).toBe(2);
   });
