@@ -36,6 +36,7 @@ const TITLES: Record<number, string> = {
   429: 'Too many requests',
   500: 'Internal error',
   503: 'Unavailable',
+  507: 'Insufficient storage',
 };
 
 /** Problem types are URNs in the project's namespace: stable names, nothing to dereference. */
@@ -86,6 +87,9 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
       errors: [{ path: err.field ?? err.file ?? 'input', message: err.message }],
     };
   }
+  if (isDiskFull(err)) {
+    return { type: typeOf('disk-full'), status: 507, detail: 'The service\'s disk is full: nothing of this request was kept. Tell the administrator; retry once space is freed.' };
+  }
   if (err instanceof NotFoundError) return { type: typeOf('not-found'), status: 404, detail: err.message };
   if (err instanceof ConflictError) return { type: typeOf('conflict'), status: 409, detail: err.message };
   if (err instanceof EngineUnavailableError || err instanceof AnalysisTimeoutError) {
@@ -98,10 +102,39 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
   return { type: 'about:blank', status: 500, detail: 'The service could not complete the request; the error was logged.' };
 }
 
+/** SQLite's "database or disk is full" and the file system's ENOSPC/EDQUOT: the request was fine, the disk is not. */
+export function isDiskFull(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return code === 'SQLITE_FULL' || code === 'ENOSPC' || code === 'EDQUOT' || (typeof code === 'string' && code.startsWith('SQLITE_IOERR') && /disk|space|full/i.test(String((err as Error).message)));
+}
+
+/**
+ * Bodies are read as sent: a compressed body (any Content-Encoding but identity) is refused before
+ * it is read, 415 with Accept-Encoding: identity (RFC 9110 §15.5.16), instead of failing later
+ * inside a parser.
+ */
+function refuseEncodedBodies(app: FastifyInstance): void {
+  app.addHook('onRequest', async (request, reply) => {
+    const enc = request.headers['content-encoding'];
+    if (enc === undefined) return;
+    const codings = String(enc).split(',').map((s) => s.trim().toLowerCase()).filter(Boolean);
+    if (codings.every((c) => c === 'identity')) return;
+    reply.header('accept-encoding', 'identity');
+    await sendProblem(reply, request, {
+      type: typeOf('content-encoding'),
+      status: 415,
+      detail: `Content-Encoding "${String(enc).slice(0, 40)}" is not accepted; send the body uncompressed`,
+    });
+    return reply;
+  });
+}
+
 export function installProblemHandlers(app: FastifyInstance): void {
+  refuseEncodedBodies(app);
   app.setErrorHandler((err, request, reply) => {
     const p = toProblem(err);
-    if (p.status >= 500) request.log.error({ err }, 'request failed');
+    if (p.status === 507) request.log.error({ err }, 'disk full');
+    else if (p.status >= 500) request.log.error({ err }, 'request failed');
     if (p.status === 401) reply.header('www-authenticate', 'Bearer');
     return sendProblem(reply, request, p);
   });
