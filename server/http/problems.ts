@@ -8,7 +8,7 @@ import { hasZodFastifySchemaValidationErrors, isResponseSerializationError } fro
 import { isInputError } from '../core/errors.js';
 import { AnalysisTimeoutError } from '../jobs/pool.js';
 import { EngineUnavailableError } from '../jobs/worker-reply.js';
-import { ConflictError, NotFoundError } from '../store/errors.js';
+import { ConflictError, isDiskFull, NotFoundError } from '../store/errors.js';
 
 export interface Problem {
   type: string;
@@ -100,12 +100,6 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
     return { type: 'about:blank', status: fe.statusCode, detail: fe.message };
   }
   return { type: 'about:blank', status: 500, detail: 'The service could not complete the request; the error was logged.' };
-}
-
-/** SQLite's "database or disk is full" and the file system's ENOSPC/EDQUOT: the request was fine, the disk is not. */
-export function isDiskFull(err: unknown): boolean {
-  const code = (err as { code?: unknown } | null)?.code;
-  return code === 'SQLITE_FULL' || code === 'ENOSPC' || code === 'EDQUOT' || (typeof code === 'string' && code.startsWith('SQLITE_IOERR') && /disk|space|full/i.test(String((err as Error).message)));
 }
 
 /**

@@ -12,3 +12,9 @@ export class ConflictError extends Error {
     this.name = 'ConflictError';
   }
 }
+
+/** SQLite's "database or disk is full" and the file system's ENOSPC/EDQUOT: the request was fine, the disk is not. */
+export function isDiskFull(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return code === 'SQLITE_FULL' || code === 'ENOSPC' || code === 'EDQUOT';
+}

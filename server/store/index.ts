@@ -3,8 +3,10 @@ import type { StoreContext } from './context.js';
 import { openDatabase, openMemoryDatabase, type Db } from './db.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
+import { join } from 'node:path';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
+import { ServiceMetaRepo } from './service-meta.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
@@ -19,6 +21,7 @@ export interface Store {
   events: EventRepo;
   users: UserRepo;
   trends: TrendRepo;
+  meta: ServiceMetaRepo;
   close(): void;
 }
 
@@ -30,10 +33,25 @@ export interface StoreOptions {
   migrationsDir?: string;
 }
 
+/** The copy a migration takes first, in the data folder, named with both schema versions. */
+export function preMigrationBackupName(from: number, to: number, at: string): string {
+  return `efflux-before-schema-${from}-to-${to}-${at.replace(/[:.]/g, '').slice(0, 15)}.sqlite`;
+}
+
 /** Opens the database, brings its schema up to date and builds the repositories on it. */
 export function openStore(opts: StoreOptions = {}): Store {
   const db = opts.dataDir ? openDatabase(opts.dataDir) : openMemoryDatabase();
-  migrate(db, opts.migrationsDir);
+  try {
+    migrate(db, opts.migrationsDir, {
+      // VACUUM INTO: a consistent copy, synchronous (the backup API is asynchronous and opening is not)
+      beforeFirst: opts.dataDir
+        ? (from, to) => db.prepare('VACUUM INTO ?').run(join(opts.dataDir!, preMigrationBackupName(from, to, (opts.now ?? (() => new Date().toISOString()))())))
+        : undefined,
+    });
+  } catch (e) {
+    db.close();
+    throw e;
+  }
   const audit = new AuditLog(db);
   const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
   const tests = new TestRepo(c);
@@ -46,10 +64,12 @@ export function openStore(opts: StoreOptions = {}): Store {
     events: new EventRepo(c),
     users: new UserRepo(c),
     trends: new TrendRepo(c),
+    meta: new ServiceMetaRepo(c),
     close: () => db.close(),
   };
 }
 
 export { SYSTEM_ACTOR, type Actor } from './audit.js';
 export { ConflictError, NotFoundError } from './errors.js';
+export { MigrationError, NewerSchemaError } from './migrate.js';
 export { ROLES, actorOf, type Role, type User } from './users.js';

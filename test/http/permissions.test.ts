@@ -33,6 +33,8 @@ const TABLE: Record<string, Rule> = {
   'GET /api/tests/:id': ALL,
   'GET /api/tests/:id/fits': ALL,
   'GET /api/tests/:id/raw': ALL,
+  'POST /api/tests/:id/retry': TECH,
+  'POST /api/tests/:id/withdraw': ENG,
   'GET /api/fits/:id': ALL,
   'POST /api/fits/:id/refit': TECH,
   'POST /api/fits/:id/review': ENG,
