@@ -96,6 +96,7 @@ export async function uploadDrainTest(
     throw e;
   }
   const t1 = performance.now();
+  store.reserve?.ensure(); // one stat; remakes the reserve once a full disk has room again
   const answer = { test: store.tests.get(test.id), fit };
   timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
   return answer;
@@ -161,8 +162,10 @@ function analysing(store: Store): Set<number> {
  * client was not told of. If even that fails, the test stays pending and marked, for a retry.
  */
 function keepNothing(store: Store, actor: Actor, testId: number, cause: unknown): void {
+  const withdraw = () => store.tests.withdraw(actor, testId, 'not kept: the disk was full when its fit was stored');
   try {
-    store.tests.withdraw(actor, testId, 'not kept: the disk was full when its fit was stored');
+    if (store.reserve) store.reserve.spend(withdraw);
+    else withdraw();
   } catch {
     noteFailure(store, testId, cause);
   }

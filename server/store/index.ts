@@ -6,6 +6,7 @@ import { FitRepo } from './fits.js';
 import { join } from 'node:path';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
+import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
@@ -22,6 +23,8 @@ export interface Store {
   users: UserRepo;
   trends: TrendRepo;
   meta: ServiceMetaRepo;
+  /** Room kept on disk for the compensating step after a full disk (file stores only). */
+  reserve: DiskReserve | null;
   close(): void;
 }
 
@@ -31,6 +34,8 @@ export interface StoreOptions {
   /** ISO-8601 clock; injected by tests. */
   now?: () => string;
   migrationsDir?: string;
+  /** Size of the data folder's reserve file (default 4 MiB). */
+  reserveBytes?: number;
 }
 
 /** The copy a migration takes first, in the data folder, named with both schema versions. */
@@ -52,6 +57,8 @@ export function openStore(opts: StoreOptions = {}): Store {
     db.close();
     throw e;
   }
+  const reserve = opts.dataDir ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
+  reserve?.ensure(); // false on a full disk: made again after the next compensating step
   const audit = new AuditLog(db);
   const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
   const tests = new TestRepo(c);
@@ -65,6 +72,7 @@ export function openStore(opts: StoreOptions = {}): Store {
     users: new UserRepo(c),
     trends: new TrendRepo(c),
     meta: new ServiceMetaRepo(c),
+    reserve,
     close: () => db.close(),
   };
 }
