@@ -40,7 +40,7 @@ export interface StoreOptions {
 
 /** The copy a migration takes first, in the data folder, named with both schema versions. */
 export function preMigrationBackupName(from: number, to: number, at: string): string {
-  return `efflux-before-schema-${from}-to-${to}-${at.replace(/[:.]/g, '').slice(0, 15)}.sqlite`;
+  return `efflux-before-schema-${from}-to-${to}-${at.replace(/[-:.]/g, '').slice(0, 15)}.sqlite`;
 }
 
 /** Opens the database, brings its schema up to date and builds the repositories on it. */

@@ -143,7 +143,7 @@ export function restoreDatabase(dataDir: string, backupFile: string, at: string,
     current.pragma('wal_checkpoint(TRUNCATE)');
     current.pragma('journal_mode = DELETE'); // folds the WAL in, so one file holds everything
     current.close();
-    keptAs = join(dataDir, `efflux-replaced-${at.replace(/[:.]/g, '').slice(0, 15)}.sqlite`);
+    keptAs = join(dataDir, `efflux-replaced-${at.replace(/[-:.]/g, '').slice(0, 15)}.sqlite`);
     renameSync(file, keptAs);
   }
   for (const side of ['-wal', '-shm']) rmSync(file + side, { force: true });
