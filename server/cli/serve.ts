@@ -53,7 +53,7 @@ export async function run(argv: string[]): Promise<number> {
     lock.release();
     throw e;
   }
-  const pool = createAnalysisPool({ threads: cfg.workers, timeoutMs: cfg.analysisTimeoutMs, analyzeModule: cfg.analyzeModule });
+  const pool = createAnalysisPool({ threads: cfg.workers, timeoutMs: cfg.analysisTimeoutMs, analyzeModule: cfg.analyzeModule, niceness: cfg.workerNice });
   const stopEarly = async (code: number) => {
     await pool.close();
     store.close();
