@@ -78,6 +78,7 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     await page.getByRole('button', { name: 'Sign in' }).click();
     await page.getByRole('alert').waitFor();
     await signIn(adminToken);
+    await page.locator('.demo-banner').getByText('Demo data').waitFor(); // the demo's folder says so
 
     // fleet: every demo vessel, and the search narrows it
     await page.locator('table.fleet tbody tr').first().waitFor();

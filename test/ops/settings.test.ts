@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { envExample, serveConfig, SettingsError, SETTINGS } from '../../server/cli/serve-config.js';
 import { efflux, root } from '../cli/run-cli.js';
+import { testApp } from '../http/helpers.js';
 
 describe('settings from the environment', () => {
   it('defaults: loopback, 8080, no demo, ./data, 40 MiB uploads, cookie not Secure, no proxy trusted', () => {
@@ -44,5 +45,35 @@ describe('settings from the environment', () => {
     const r = efflux(['serve'], { env: { PORT: 'abc', EFFLUX_DATA_DIR: '/nonexistent/never-created' } });
     expect(r.code).toBe(2);
     expect(r.stderr.trim()).toBe('efflux: setting PORT: must be a whole number (0–65535), not "abc"');
+  });
+});
+
+describe('behind a reverse proxy', () => {
+  const attempts = async (app: import('fastify').FastifyInstance, client: string, n: number) => {
+    const codes: number[] = [];
+    for (let i = 0; i < n; i++) {
+      const r = await app.inject({ method: 'POST', url: '/api/session', remoteAddress: '127.0.0.1', headers: { 'x-forwarded-for': client }, payload: { token: 'x' } });
+      codes.push(r.statusCode);
+    }
+    return codes;
+  };
+
+  it('with trustProxy the sign-in limit is per client (X-Forwarded-For); without it every client shares the proxy\'s', async () => {
+    const trusted = await testApp({ signInPerMinute: 2, trustProxy: ['127.0.0.1'] });
+    expect(await attempts(trusted.app, '198.51.100.7', 3)).toEqual([401, 401, 429]);
+    expect(await attempts(trusted.app, '198.51.100.8', 1)).toEqual([401]); // another client: its own count
+    await trusted.app.close();
+    const plain = await testApp({ signInPerMinute: 2 });
+    expect(await attempts(plain.app, '198.51.100.7', 2)).toEqual([401, 401]);
+    expect(await attempts(plain.app, '198.51.100.8', 1)).toEqual([429]); // all are the proxy
+    await plain.app.close();
+  });
+
+  it('EFFLUX_SECURE_COOKIE=1 marks the session cookie Secure', async () => {
+    const t = await testApp({ secureCookie: serveConfig({ EFFLUX_SECURE_COOKIE: '1' }).secureCookie });
+    const r = await t.app.inject({ method: 'POST', url: '/api/session', payload: { token: t.tokens.technician } });
+    expect(r.statusCode).toBeLessThan(300);
+    expect(String(r.headers['set-cookie'])).toMatch(/;\s*Secure/i);
+    await t.app.close();
   });
 });
