@@ -7,7 +7,7 @@
 import { InputError } from '../core/errors.js';
 import { lockDataFolder } from '../store/folder-lock.js';
 import { openStore } from '../store/index.js';
-import { backupDatabase, BackupCheckError, checkDatabase, databasePath, NoDatabaseError, openExisting, restoreDatabase, type DatabaseCheck } from '../store/maintenance.js';
+import { backupDatabase, BackupCheckError, BackupRefusedError, checkDatabase, databasePath, NoDatabaseError, openExisting, restoreDatabase, type DatabaseCheck } from '../store/maintenance.js';
 import { EXIT_REFUSED } from './io.js';
 import { parseCommandLine } from './options.js';
 import { dataDir } from './serve-config.js';
@@ -48,7 +48,7 @@ export async function runBackup(argv: string[]): Promise<number> {
       process.stderr.write(`efflux: ${e.message}\n`);
       return 1;
     }
-    if (e instanceof Error && / already exists; name a new file$/.test(e.message)) return refuse(new InputError(e.message));
+    if (e instanceof BackupRefusedError) return refuse(new InputError(e.message));
     return refuse(e);
   }
 }

@@ -4,6 +4,8 @@
  * connection is open and released when the process ends however it ends (no stale lock to clear by
  * hand after a crash or kill -9). Who holds it is written beside it (`efflux.lock.json`) so a second
  * start can name the first: pid, host, start time.
+ * Why not a lock-file package: they lock by pid file or mkdir and must guess when a lock is stale;
+ * the OS lock SQLite takes cannot outlive its process, and better-sqlite3 is here already.
  */
 import Database from 'better-sqlite3';
 import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -73,15 +75,4 @@ export function lockDataFolder(dataDir: string, command: string, now = () => new
       db.close();
     },
   };
-}
-
-/** True when some process holds the folder (used by restore, which must not run beside a server). */
-export function folderHeld(dataDir: string): LockHolder | null | false {
-  try {
-    lockDataFolder(dataDir, 'probe').release();
-    return false;
-  } catch (e) {
-    if (e instanceof FolderBusyError) return e.holder;
-    throw e;
-  }
 }

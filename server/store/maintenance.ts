@@ -80,7 +80,7 @@ export interface BackupReport {
 export async function backupDatabase(dataDir: string, out: string, migrationsDir = defaultMigrationsDir()): Promise<BackupReport> {
   const file = databasePath(dataDir);
   if (!existsSync(file)) throw new NoDatabaseError(file);
-  if (existsSync(out)) throw new Error(`${out} already exists; name a new file`);
+  if (existsSync(out)) throw new BackupRefusedError(`${out} already exists; name a new file`);
   const partial = `${out}.partial`;
   rmSync(partial, { force: true });
   const src = openDatabase(dataDir);
@@ -114,6 +114,14 @@ export async function backupDatabase(dataDir: string, out: string, migrationsDir
   renameSync(partial, out);
   const bytes = statSync(out).size;
   return { out, bytes, counts, check };
+}
+
+/** The backup was not attempted (the target exists). */
+export class BackupRefusedError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'BackupRefusedError';
+  }
 }
 
 export class BackupCheckError extends Error {

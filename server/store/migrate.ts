@@ -1,3 +1,8 @@
+/**
+ * Migrations: apply, refuse a newer schema, name a failing statement. The statement splitter is
+ * hand-written because neither SQLite's C API for it (sqlite3_complete) nor a splitter is exposed by
+ * better-sqlite3; it only ever names a statement, never decides what runs.
+ */
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { Db } from './db.js';
