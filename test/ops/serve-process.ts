@@ -1,6 +1,7 @@
 /** `efflux serve` as a real process (from source, the small stand-in engine), and the CLI run asynchronously. */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { join } from 'node:path';
+import { existsSync, readFileSync } from 'node:fs';
+import { join, resolve as resolvePath } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 export const root = fileURLToPath(new URL('../../', import.meta.url));
@@ -37,11 +38,21 @@ export function serve(env: NodeJS.ProcessEnv, args: string[] = []): Promise<Serv
     child.stdout!.on('data', (d) => {
       out += d;
       const m = /listening on (http:\/\/127\.0\.0\.1:\d+)/.exec(out);
-      if (m && /\/api\/docs\n/.test(out)) resolve({ child, base: m[1], out: () => out, exited, token: /keep it safe:\n\s+(\S+)/.exec(out)?.[1] ?? null });
+      if (m && /\/api\/docs\n/.test(out)) resolve({ child, base: m[1], out: () => out, exited, token: firstToken(out, env, args) });
     });
     child.stderr!.on('data', (d) => (out += d));
     child.on('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
   });
+}
+
+/** The first start's admin token: printed, or written to first-admin-token.txt in the data folder. */
+function firstToken(out: string, env: NodeJS.ProcessEnv, args: string[]): string | null {
+  const printed = /keep it safe:\n\s+(\S+)/.exec(out)?.[1];
+  if (printed) return printed;
+  const i = args.indexOf('--data');
+  const dir = resolvePath(root, i >= 0 ? args[i + 1] : env.EFFLUX_DATA_DIR || 'data');
+  const file = join(dir, 'first-admin-token.txt');
+  return existsSync(file) ? readFileSync(file, 'utf8').trim() : null;
 }
 
 /** The CLI without blocking the event loop (a server in this process's tests keeps answering). */
