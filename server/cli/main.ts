@@ -43,7 +43,8 @@ async function main(argv: string[]): Promise<number> {
     return name ? 0 : EXIT_REFUSED;
   }
   if (name === '--version') {
-    process.stdout.write(`${(await import('../core/version.js')).ENGINE_VERSION}\n`);
+    const { ENGINE_VERSION, PACKAGE_VERSION } = await import('../core/version.js');
+    process.stdout.write(`efflux ${PACKAGE_VERSION} (engine ${ENGINE_VERSION})\n`);
     return 0;
   }
   const command = COMMANDS[name];

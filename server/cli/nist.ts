@@ -1,8 +1,7 @@
 /**
  * `node dist/server/cli/nist.js [--json] [--dir PATH]`: fit all NIST StRD nonlinear-regression
  * datasets from both starts and print the agreement with the certified values (LRE), as a table
- * or as JSON. Folder: --dir, else $EFFLUX_SHARED/reference/nist-strd, else
- * ../shared/reference/nist-strd beside the project root.
+ * or as JSON. Folder: --dir, else the committed copy test/reference/nist-strd in the project.
  */
 import { existsSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
@@ -49,15 +48,13 @@ const USAGE = `usage: npm run nist -- [--json] [--dir PATH]
 Fits every NIST StRD nonlinear-regression dataset from both starts and prints the agreement with
 the certified values (LRE), as a table or (--json) as JSON.
   --dir PATH   the folder of StRD .dat files
-The folder is --dir if given, else $EFFLUX_SHARED/reference/nist-strd when EFFLUX_SHARED is set,
-else ../shared/reference/nist-strd beside the project.
+The folder is --dir if given, else the project's committed copy, test/reference/nist-strd.
 `;
 
 export function main(argv: string[]): number {
   let json = false;
-  const sharedFromEnv = process.env.EFFLUX_SHARED;
-  let dir = resolve(sharedFromEnv ? resolve(sharedFromEnv) : resolve(projectRoot(), '..', 'shared'), 'reference', 'nist-strd');
-  let from = sharedFromEnv ? `EFFLUX_SHARED=${sharedFromEnv}` : 'the default, ../shared beside the project';
+  let dir = resolve(projectRoot(), 'test', 'reference', 'nist-strd');
+  let from = 'the default, the committed copy in the project';
   for (let k = 0; k < argv.length; k++) {
     if (argv[k] === '--json') json = true;
     else if (argv[k] === '--help' || argv[k] === '-h') {
@@ -72,7 +69,7 @@ export function main(argv: string[]): number {
     }
   }
   if (!existsSync(dir)) {
-    process.stderr.write(`nist: no StRD folder at ${dir} (from ${from}); give --dir PATH or set EFFLUX_SHARED to the shared folder\n`);
+    process.stderr.write(`nist: no StRD folder at ${dir} (from ${from}); give --dir PATH to a folder of StRD .dat files\n`);
     return 2;
   }
   try {

@@ -91,7 +91,6 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       const vessel = ids.get(id);
       if (vessel === undefined) throw new InputError(`--log ${item}: no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`);
       if (logs.some((l) => l.vessel === vessel)) throw new InputError(`--log: vessel "${id}" is given twice`);
-      const v = spec.vessels[vessel];
       const file = readInputFile(item.slice(eq + 1));
       const decimal = values.decimal;
       if (decimal !== undefined && decimal !== '.' && decimal !== ',') throw new InputError(`--decimal must be "." or "," (got "${decimal}")`);

@@ -40,6 +40,7 @@ import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
 import { reportRoutes } from './routes/reports.js';
 import { workbenchRoutes } from './routes/workbench.js';
+import { PACKAGE_VERSION } from '../core/version.js';
 
 export interface AppOptions {
   store: Store;
@@ -170,7 +171,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(swagger, {
     openapi: {
       openapi: '3.1.0',
-      info: { title: 'efflux API', version: '0.1.0', description: 'Drain tests, fits, history and audit for gravity-draining vessels.' },
+      info: { title: 'efflux API', version: PACKAGE_VERSION, description: 'Drain tests, fits, history and audit for gravity-draining vessels.' },
       components: { securitySchemes: { bearer: { type: 'http', scheme: 'bearer' }, session: { type: 'apiKey', in: 'cookie', name: 'efflux_session' } } },
       security: [{ bearer: [] }, { session: [] }],
     },

@@ -65,8 +65,8 @@ function storedRequest(store: Store, fitId: number): { request: AnalysisRequest;
   };
 }
 
-const withoutTiming = (r: Record<string, unknown>) => {
-  const { timing: _t, ...rest } = r;
+const withoutEngine = (r: Record<string, unknown>) => {
+  const { timing: _t, engineVersion: _e, ...rest } = r;
   return rest;
 };
 
@@ -82,10 +82,14 @@ export function reproduceFit(store: Store, fitId: number): Check {
   } catch (e) {
     return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored input no longer analyses: ${(e as Error).message}` };
   }
-  const a = canonicalJson(withoutTiming(result));
-  const b = canonicalJson(withoutTiming(again as Record<string, unknown>));
-  if (a === b) return { name: `reproduce fit ${fitId}`, ok: true, detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)' };
-  const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
+  // the engine version names the code (it changes with any edit of server/core); the numbers are what must agree
+  const a = canonicalJson(withoutEngine(result));
+  const b = canonicalJson(withoutEngine(again as Record<string, unknown>));
+  if (a === b) {
+    const engine = again.engineVersion === result.engineVersion ? '' : ` (stored by engine ${String(result.engineVersion)}, recomputed by ${again.engineVersion})`;
+    return { name: `reproduce fit ${fitId}`, ok: true, detail: `recomputed from the stored raw bytes and settings: identical numbers (timing aside)${engine}` };
+  }
+  const differences = compareReports(withoutEngine(result), withoutEngine(again as Record<string, unknown>), 10);
   return {
     name: `reproduce fit ${fitId}`,
     ok: false,

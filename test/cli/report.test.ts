@@ -1,6 +1,6 @@
 import { spawnSync } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { readFileSync } from 'node:fs';
+import { readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -32,6 +32,7 @@ beforeAll(async () => {
   fx.store.close();
   ({ dataDir, fitId, outletId, logSha256: logSha } = fx);
 }, 60_000);
+afterAll(() => rmSync(dataDir, { recursive: true, force: true }));
 
 describe('efflux report', () => {
   let pdf: string;

@@ -14,7 +14,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeDrainTest } from '../../server/core/analyze.js';
 import { buildApp } from '../../server/http/app.js';
 import { workbenchRoutes } from '../../server/http/routes/workbench.js';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { buildWeb } from '../../web/build.js';
 import { dragAcross, guardBrowser, haveBrowser, launch, root, shots, unexpected } from './browser.js';
 
@@ -22,6 +22,7 @@ guardBrowser('preview');
 
 describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () => {
   let app: FastifyInstance;
+  let store: Store | undefined;
   let base = '';
   let token = '';
   let vesselId = 0;
@@ -34,7 +35,7 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
 
   beforeAll(async () => {
     await buildWeb(webRoot);
-    const store = openStore({ dataDir });
+    store = openStore({ dataDir });
     token = store.users.createToken(SYSTEM_ACTOR, 'tech-e2e', 'technician').token;
     const engineer = store.users.createToken(SYSTEM_ACTOR, 'eng-e2e', 'engineer').token;
     app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req), webRoot });
@@ -50,6 +51,7 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
   afterAll(async () => {
     await context?.close();
     await app?.close();
+    store?.close();
     for (const d of [dataDir, webRoot, profile]) if (d) rmSync(d, { recursive: true, force: true });
   });
 

@@ -1,6 +1,6 @@
 /**
- * Uploads through the real engine (server/core/analyze.ts) with the shared bench inputs
- * (../shared/bench: a vessel file and a logger file). Checks the service's side of the contract:
+ * Uploads through the real engine (server/core/analyze.ts) with a demo vessel file and logger file
+ * from sample-data/ (in the repository). Checks the service's side of the contract:
  * the stored fit is exactly what the engine computes from the stored bytes, settings and vessel,
  * and a refusal keeps its file/line/field across the worker boundary.
  */
@@ -12,10 +12,10 @@ import { ENGINE_VERSION } from '../../server/core/version.js';
 import { createAnalysisPool } from '../../server/jobs/pool.js';
 import { multipart, testApp } from './helpers.js';
 
-const bench = (name: string) => fileURLToPath(new URL(`../../../shared/bench/${name}`, import.meta.url));
-const vesselFile = JSON.parse(readFileSync(bench('vcyl-86400.vessel.json'), 'utf8'));
-// the first 12 000 readings (20 minutes at 10 Hz) keep the test quick
-const log = Buffer.from(readFileSync(bench('vcyl-86400.csv'), 'utf8').split('\n').slice(0, 12_001).join('\n') + '\n');
+const sample = (name: string) => fileURLToPath(new URL(`../../sample-data/${name}`, import.meta.url));
+const vesselFile = JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8'));
+// a logger file with metadata lines before its header (65 kB), as it came off the logger
+const log = readFileSync(sample('fb1-2026-03-10-preamble.csv'));
 
 const pool = createAnalysisPool({ threads: 1 });
 afterAll(() => pool.close());
@@ -27,7 +27,7 @@ describe('uploads through the real engine in the worker pool', () => {
     const t = await testApp({ analyze: pool.run });
     const v = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('engineer'), payload: vesselFile });
     expect(v.statusCode).toBe(201);
-    const m = multipart([{ field: 'log', name: 'vcyl.csv', bytes: log }], { fitInflow: 'false' });
+    const m = multipart([{ field: 'log', name: 'fb1-2026-03-10-preamble.csv', bytes: log }], { fitInflow: 'false' });
     const res = await t.app.inject({ method: 'POST', url: `/api/vessels/${v.json().id}/tests`, headers: { ...t.auth('technician'), ...m.headers }, payload: m.payload });
     expect(res.statusCode, res.body).toBe(201);
     const { test, fit } = res.json();

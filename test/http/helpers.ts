@@ -3,6 +3,7 @@ import { buildApp, type AppOptions } from '../../server/http/app.js';
 import type { AnalyzeRunner } from '../../server/jobs/pool.js';
 import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import type { Role } from '../../server/store/users.js';
+import { afterAll } from 'vitest';
 import { fakeAnalyze } from './fake-analyze.js';
 
 export interface TestApp {
@@ -12,6 +13,17 @@ export interface TestApp {
   auth: (role: Role) => { authorization: string };
 }
 
+const opened: TestApp[] = [];
+
+// Every app a test file makes through testApp is closed, and its store with it, when that file's
+// tests are done (a test may also close its own earlier; closing twice is harmless).
+afterAll(async () => {
+  for (const t of opened.splice(0)) {
+    await t.app.close();
+    if (t.store.db.open) t.store.close();
+  }
+});
+
 export async function testApp(over: Partial<AppOptions> & { analyze?: AnalyzeRunner } = {}): Promise<TestApp> {
   const store = openStore();
   const tokens = {} as Record<Role, string>;
@@ -19,8 +31,10 @@ export async function testApp(over: Partial<AppOptions> & { analyze?: AnalyzeRun
     tokens[role] = store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role).token;
   }
   const app = await buildApp({ store, analyze: fakeAnalyze, ...over });
+  const t: TestApp = { app, store, tokens, auth: (role) => ({ authorization: `Bearer ${tokens[role]}` }) };
+  opened.push(t);
   await app.ready();
-  return { app, store, tokens, auth: (role) => ({ authorization: `Bearer ${tokens[role]}` }) };
+  return t;
 }
 
 export const VESSEL_FILE = {

@@ -32,7 +32,10 @@ beforeAll(async () => {
   if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' })) await app.register(workbenchRoutes);
   await app.ready();
 });
-afterAll(() => app.close());
+afterAll(async () => {
+  await app.close();
+  store.close();
+});
 
 let made = 0;
 async function vesselId(): Promise<number> {

@@ -1,13 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { dirname, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { loadStrdDirectory, runStrd } from '../../server/reference/nist/run.js';
 import type { StrdRun } from '../../server/reference/nist/run.js';
+import { STRD_DIR } from './strd-dir.js';
 
 // Source: NIST Statistical Reference Datasets, nonlinear regression, certified values
-// (../shared/reference/nist-strd). LRE = −log10(|est − cert|/|cert|), capped at the certified digits.
-const dir = resolve(dirname(fileURLToPath(import.meta.url)), '../../../shared/reference/nist-strd');
-const datasets = loadStrdDirectory(dir);
+// (committed in test/reference/nist-strd). LRE = −log10(|est − cert|/|cert|), capped at the certified digits.
+const datasets = loadStrdDirectory(STRD_DIR);
 
 // Residuals are formed in double-double from the decimal data (server/reference/nist/run.ts), so
 // the data-rounding-limited sums of squares (Lanczos1: 1.43e-25) are held to the same bar as the rest.

@@ -114,7 +114,7 @@ export function validateSystem(value: unknown, fileName?: string): SystemSpec {
     }
   });
   // each vessel has one outlet, so following dischargesTo from any vessel must end
-  vessels.forEach((v, i) => {
+  vessels.forEach((_, i) => {
     const seen = new Set<number>([i]);
     let k = i;
     while (vessels[k].dischargesTo !== null) {

@@ -30,7 +30,7 @@ export function yearsSince(originMs: number, ms: number): number {
   return (ms - originMs) / YEAR_MS;
 }
 
-function valueOf(f: ApprovedFit, q: TrendQuantity): number {
+function quantityValue(f: ApprovedFit, q: TrendQuantity): number {
   return q === 'effectiveArea' ? f.effectiveAreaM2 : f.dischargeCoefficient;
 }
 
@@ -47,11 +47,11 @@ export function epochLine(epoch: Epoch, quantity: TrendQuantity): TrendLine | nu
   const t = new Float64Array(n), y = new Float64Array(n), u = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     t[i] = yearsSince(origin, fits[i].testedAtMs);
-    y[i] = valueOf(fits[i], quantity);
+    y[i] = quantityValue(fits[i], quantity);
     u[i] = uncertaintyOf(fits[i], quantity);
   }
   const fit = weightedLine(t, y, u);
-  const base = valueOf(epoch.baseline, quantity);
+  const base = quantityValue(epoch.baseline, quantity);
   const pct = 100 / base;
   return {
     quantity,

@@ -61,6 +61,7 @@ describe('joint fit of connected vessels (simulated tests with known truth, inve
         if (a.ci95[0] <= t && t <= a.ci95[1]) covered++;
       });
     }
+    expect(total).toBe(24);
     // 24 intervals at 95 %: at least 20 expected to cover (binomial, P(X ≤ 19) ≈ 3 %)
     expect(covered).toBeGreaterThanOrEqual(20);
   });

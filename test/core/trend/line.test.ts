@@ -70,12 +70,12 @@ describe('weightedLine', () => {
     const n = 30, nrm = seededNormal(7);
     const t = Float64Array.from({ length: n }, (_, i) => i / 12);
     const u = new Float64Array(n).fill(1e-5);
-    const big = Float64Array.from(t, (ti) => 1e-3 + 3e-5 * nrm()); // 3× the stated u
+    const big = Float64Array.from(t, () => 1e-3 + 3e-5 * nrm()); // 3× the stated u
     const wide = weightedLine(t, big, u);
     expect(wide.scaled).toBe(true);
     expect(wide.uSlope).toBeCloseTo(wide.internal.uSlope * wide.birgeRatio, 20);
     expect(wide.lackOfFitP).toBeLessThan(1e-6);
-    const small = Float64Array.from(t, (ti) => 1e-3 + 0.3e-5 * nrm());
+    const small = Float64Array.from(t, () => 1e-3 + 0.3e-5 * nrm());
     const tight = weightedLine(t, small, u);
     expect(tight.scaled).toBe(false);
     expect(tight.uSlope).toBe(tight.internal.uSlope);

@@ -1,4 +1,4 @@
-import { readFileSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../../server/core/errors.js';
 import {
@@ -42,11 +42,13 @@ describe('validateVessel accepts', () => {
     const min = { name: 'x', shape: { kind: 'sphere', diameterM: 2 }, outlet: { boreM: 0.02, elevationM: 0 } };
     expect(validateVessel(min)).toEqual(min);
   });
-  it('the shared benchmark vessel files', () => {
-    // /work/shared/bench: vessel files the benchmark uses (project root/../shared).
-    for (const name of ['hcyl-86400', 'vcyl-86400']) {
-      const url = new URL(`../../../../shared/bench/${name}.vessel.json`, import.meta.url);
-      expect(parseVesselFile(readFileSync(url, 'utf8'), `${name}.vessel.json`).name).toBe(name);
+  it('the demo vessel files in sample-data', () => {
+    // the 11 invented vessels of the demo scenario (sample-data/README.md); kept in the repository
+    const folder = new URL('../../../sample-data/', import.meta.url);
+    const names = readdirSync(folder).filter((f) => f.endsWith('.vessel.json'));
+    expect(names.length).toBe(11);
+    for (const name of names) {
+      expect(parseVesselFile(readFileSync(new URL(name, folder), 'utf8'), name).name).toMatch(/\S/);
     }
   });
   it('every shape kind', () => {

@@ -1,6 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { dirname, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import {
   LN2,
   ONE,
@@ -26,6 +24,7 @@ import {
 } from '../../../server/reference/nist/double-double.js';
 import type { Dd } from '../../../server/reference/nist/double-double.js';
 import { loadStrdDirectory } from '../../../server/reference/nist/run.js';
+import { STRD_DIR } from '../strd-dir.js';
 
 // Reference values are mathematical constants, digits from memory (facts of mathematics, not
 // measurements); each is also tied to an identity below that does not use it. Exact checks use
@@ -99,9 +98,8 @@ describe('double-double: parsing decimal text', () => {
   });
 
   it('reads every StRD data value with the same double as Number() and a tail that brings it closer', () => {
-    // Source: NIST StRD nonlinear regression files (../shared/reference/nist-strd).
-    const dir = resolve(dirname(fileURLToPath(import.meta.url)), '../../../../shared/reference/nist-strd');
-    for (const ds of loadStrdDirectory(dir)) {
+    // Source: NIST StRD nonlinear regression files (committed in test/reference/nist-strd).
+    for (const ds of loadStrdDirectory(STRD_DIR)) {
       ds.y.forEach((v, i) => expect(ds.yExact[i].hi).toBe(v));
       ds.x.forEach((col, c) => col.forEach((v, i) => expect(ds.xExact[c][i].hi).toBe(v)));
     }

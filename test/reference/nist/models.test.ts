@@ -1,14 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { dirname, resolve } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { finiteDifferenceJacobian } from '../../../server/core/lsq/index.js';
 import { toNumber } from '../../../server/reference/nist/double-double.js';
 import { STRD_MODELS } from '../../../server/reference/nist/models.js';
 import { loadStrdDirectory, strdProblem } from '../../../server/reference/nist/run.js';
+import { STRD_DIR } from '../strd-dir.js';
 
-// Source of the model forms and the points checked: NIST StRD nonlinear regression files.
-const dir = resolve(dirname(fileURLToPath(import.meta.url)), '../../../../shared/reference/nist-strd');
-const datasets = loadStrdDirectory(dir);
+// Source of the model forms and the points checked: NIST StRD nonlinear regression files
+// (committed in test/reference/nist-strd).
+const datasets = loadStrdDirectory(STRD_DIR);
 
 describe('StRD model Jacobians against central differences', () => {
   it('covers all 27 datasets', () => {

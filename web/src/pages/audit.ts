@@ -4,7 +4,7 @@
  * Auditors and admins only (the service refuses the others; the page says so).
  */
 import { api, ApiError, type Page, type Vessel } from '../api.js';
-import { field, h, notice, select, table } from '../dom.js';
+import { field, h, notice, select } from '../dom.js';
 import { dateTime } from '../format.js';
 import type { PageContext } from '../main.js';
 
