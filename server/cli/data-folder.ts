@@ -7,14 +7,27 @@
 import { InputError } from '../core/errors.js';
 import { lockDataFolder } from '../store/folder-lock.js';
 import { openStore } from '../store/index.js';
-import { backupDatabase, BackupCheckError, BackupRefusedError, checkDatabase, databasePath, NoDatabaseError, openExisting, restoreDatabase, type DatabaseCheck } from '../store/maintenance.js';
+import {
+  backupDatabase,
+  BackupCheckError,
+  BackupRefusedError,
+  checkDatabase,
+  databasePath,
+  NoDatabaseError,
+  openExisting,
+  restoreDatabase,
+  type DatabaseCheck,
+} from '../store/maintenance.js';
 import { EXIT_REFUSED } from './io.js';
 import { parseCommandLine } from './options.js';
 import { dataDir } from './serve-config.js';
 
 const say = (line: string) => process.stdout.write(`${line}\n`);
 const countsLine = (c: Record<string, number>) =>
-  ['vessels', 'drain_tests', 'fits', 'maintenance_events', 'users', 'audit_log'].filter((t) => t in c).map((t) => `${t} ${c[t]}`).join(', ');
+  ['vessels', 'drain_tests', 'fits', 'maintenance_events', 'users', 'audit_log']
+    .filter((t) => t in c)
+    .map((t) => `${t} ${c[t]}`)
+    .join(', ');
 
 function refuse(e: unknown): number {
   if (e instanceof NoDatabaseError || e instanceof InputError) {
@@ -25,23 +38,39 @@ function refuse(e: unknown): number {
 }
 
 function printCheck(c: DatabaseCheck): void {
-  say(`integrity: ${c.integrity.length === 1 && c.integrity[0] === 'ok' ? 'ok' : c.integrity.slice(0, 5).join('; ')}`);
-  say(`schema: database ${c.schema.database}, this build ${c.schema.build}${c.schema.database < c.schema.build ? ' (the service migrates on its next start, after a backup)' : ''}`);
-  say(c.chain.ok ? `audit chain intact: ${c.chain.count} entries; head ${c.chain.head}` : `audit chain BROKEN at entry ${c.chain.brokenAt}: ${c.chain.reason}`);
+  say(
+    `integrity: ${c.integrity.length === 1 && c.integrity[0] === 'ok' ? 'ok' : c.integrity.slice(0, 5).join('; ')}`,
+  );
+  say(
+    `schema: database ${c.schema.database}, this build ${c.schema.build}${c.schema.database < c.schema.build ? ' (the service migrates on its next start, after a backup)' : ''}`,
+  );
+  say(
+    c.chain.ok
+      ? `audit chain intact: ${c.chain.count} entries; head ${c.chain.head}`
+      : `audit chain BROKEN at entry ${c.chain.brokenAt}: ${c.chain.reason}`,
+  );
   say(`rows: ${countsLine(c.counts)}`);
 }
 
 export async function runBackup(argv: string[]): Promise<number> {
-  const { values } = parseCommandLine(argv, { out: { type: 'string' }, data: { type: 'string' }, help: { type: 'boolean', short: 'h' } });
+  const { values } = parseCommandLine(argv, {
+    out: { type: 'string' },
+    data: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help || !values.out) {
-    (values.help ? process.stdout : process.stderr).write('usage: efflux backup --out FILE [--data DIR]   (online; the copy is checked before it is kept)\n');
+    (values.help ? process.stdout : process.stderr).write(
+      'usage: efflux backup --out FILE [--data DIR]   (online; the copy is checked before it is kept)\n',
+    );
     return values.help ? 0 : EXIT_REFUSED;
   }
   try {
     const r = await backupDatabase(dataDir(process.env, { flag: values.data }), values.out);
     say(`backup written: ${r.out} (${r.bytes} bytes)`);
     printCheck(r.check);
-    say('copy checked: integrity ok, audit chain intact, row counts equal to the source at the snapshot copied');
+    say(
+      'copy checked: integrity ok, audit chain intact, row counts equal to the source at the snapshot copied',
+    );
     return 0;
   } catch (e) {
     if (e instanceof BackupCheckError) {
@@ -54,9 +83,14 @@ export async function runBackup(argv: string[]): Promise<number> {
 }
 
 export async function runCheck(argv: string[]): Promise<number> {
-  const { values } = parseCommandLine(argv, { data: { type: 'string' }, help: { type: 'boolean', short: 'h' } });
+  const { values } = parseCommandLine(argv, {
+    data: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) {
-    say('usage: efflux check [--data DIR]   (integrity, schema version, audit chain; exit 1 on a fault)');
+    say(
+      'usage: efflux check [--data DIR]   (integrity, schema version, audit chain; exit 1 on a fault)',
+    );
     return 0;
   }
   try {
@@ -75,9 +109,14 @@ export async function runCheck(argv: string[]): Promise<number> {
 }
 
 export async function runRestore(argv: string[]): Promise<number> {
-  const { values, positionals } = parseCommandLine(argv, { data: { type: 'string' }, help: { type: 'boolean', short: 'h' } });
+  const { values, positionals } = parseCommandLine(argv, {
+    data: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help || positionals.length !== 1) {
-    (values.help ? process.stdout : process.stderr).write('usage: efflux restore FILE [--data DIR]   (refused while a server holds the folder; the replaced database is kept)\n');
+    (values.help ? process.stdout : process.stderr).write(
+      'usage: efflux restore FILE [--data DIR]   (refused while a server holds the folder; the replaced database is kept)\n',
+    );
     return values.help ? 0 : EXIT_REFUSED;
   }
   const dir = dataDir(process.env, { flag: values.data });
@@ -96,7 +135,9 @@ export async function runRestore(argv: string[]): Promise<number> {
     }
   } catch (e) {
     if (e instanceof BackupCheckError) {
-      process.stderr.write(`efflux: ${positionals[0]} is not a sound backup: ${e.problems.join('; ')}; nothing was changed\n`);
+      process.stderr.write(
+        `efflux: ${positionals[0]} is not a sound backup: ${e.problems.join('; ')}; nothing was changed\n`,
+      );
       return 1;
     }
     return refuse(e);

@@ -38,10 +38,15 @@ const whole = (min: number, max = Number.MAX_SAFE_INTEGER) =>
   z
     .string()
     .trim()
-    .regex(/^\d+$/, `must be a whole number (${min}–${max === Number.MAX_SAFE_INTEGER ? '…' : max})`)
+    .regex(
+      /^\d+$/,
+      `must be a whole number (${min}–${max === Number.MAX_SAFE_INTEGER ? '…' : max})`,
+    )
     .transform(Number)
     .pipe(z.number().int().min(min).max(max));
-const flag = z.enum(['0', '1', 'true', 'false'], 'must be 0, 1, true or false').transform((s) => s === '1' || s === 'true');
+const flag = z
+  .enum(['0', '1', 'true', 'false'], 'must be 0, 1, true or false')
+  .transform((s) => s === '1' || s === 'true');
 
 /**
  * Fastify's trustProxy: false (default: the client is the TCP peer), true (trust every hop: only
@@ -55,13 +60,20 @@ const trustProxy = z
     if (s === '' || s === 'false') return false;
     if (s === 'true') return true;
     if (/^\d+$/.test(s)) return Number(s);
-    const list = s.split(',').map((x) => x.trim()).filter(Boolean);
+    const list = s
+      .split(',')
+      .map((x) => x.trim())
+      .filter(Boolean);
     for (const a of list) {
       const [ip, bits, extra] = a.split('/');
       const v = isIP(ip);
-      const okBits = bits === undefined || (/^\d+$/.test(bits) && Number(bits) <= (v === 6 ? 128 : 32));
+      const okBits =
+        bits === undefined || (/^\d+$/.test(bits) && Number(bits) <= (v === 6 ? 128 : 32));
       if (!v || !okBits || extra !== undefined) {
-        ctx.addIssue({ code: 'custom', message: `"${a}" is not an IP address or CIDR range (use false, true, a hop count, or addresses)` });
+        ctx.addIssue({
+          code: 'custom',
+          message: `"${a}" is not an IP address or CIDR range (use false, true, a hop count, or addresses)`,
+        });
         return z.NEVER;
       }
     }
@@ -73,23 +85,95 @@ const trustProxy = z
  * .env.example, and meaning. Order is the order of .env.example.
  */
 export const SETTINGS = {
-  EFFLUX_DATA_DIR: { schema: z.string().min(1, 'must not be empty'), dflt: '', meaning: `data folder (SQLite database, lock, pre-migration backups); default ${DEFAULT_DATA_DIR}, or ${DEMO_DATA_DIR} with --demo` },
-  HOST: { schema: z.string().trim().min(1, 'must not be empty'), dflt: '127.0.0.1', meaning: 'address to listen on (0.0.0.0 for every interface; keep loopback behind a reverse proxy)' },
+  EFFLUX_DATA_DIR: {
+    schema: z.string().min(1, 'must not be empty'),
+    dflt: '',
+    meaning: `data folder (SQLite database, lock, pre-migration backups); default ${DEFAULT_DATA_DIR}, or ${DEMO_DATA_DIR} with --demo`,
+  },
+  HOST: {
+    schema: z.string().trim().min(1, 'must not be empty'),
+    dflt: '127.0.0.1',
+    meaning:
+      'address to listen on (0.0.0.0 for every interface; keep loopback behind a reverse proxy)',
+  },
   PORT: { schema: whole(0, 65535), dflt: '8080', meaning: 'TCP port (0: any free port)' },
-  EFFLUX_DEMO: { schema: flag, dflt: '0', meaning: 'load the invented demo scenario into an EMPTY data folder (same as serve --demo); refused on a folder with real records' },
-  EFFLUX_DEMO_MANIFEST: { schema: z.string().min(1), dflt: '', meaning: 'demo scenario manifest; default sample-data/manifest.json beside the program' },
-  EFFLUX_UPLOAD_LIMIT_MB: { schema: whole(1, 4096), dflt: '40', meaning: 'largest accepted log file, MiB (keep the proxy\'s body limit a little above it)' },
-  EFFLUX_REQUEST_TIMEOUT_S: { schema: whole(1), dflt: '120', meaning: 'whole-request deadline, seconds (receiving the body included)' },
-  EFFLUX_ANALYSIS_TIMEOUT_S: { schema: whole(1), dflt: '120', meaning: 'longest one analysis may run in a worker thread, seconds' },
-  EFFLUX_WORKERS: { schema: whole(1, 256), dflt: '', meaning: 'analysis worker threads; default: cores − 1, at least 1' },
-  EFFLUX_WORKER_NICE: { schema: whole(0, 19), dflt: '5', meaning: 'nice value of the analysis threads on Linux, so reads keep answering while a fit runs' },
-  EFFLUX_WEB_ROOT: { schema: z.string().min(1), dflt: '', meaning: 'built web workbench folder; default dist/web beside the program' },
-  EFFLUX_SECURE_COOKIE: { schema: flag, dflt: '0', meaning: 'mark the session cookie Secure (set to 1 whenever users reach the service over HTTPS)' },
-  EFFLUX_TRUST_PROXY: { schema: trustProxy, dflt: 'false', meaning: 'trust X-Forwarded-For from: false, true, a hop count, or proxy addresses/CIDRs (so sign-in rate limits are per client)' },
-  EFFLUX_SIGNIN_PER_MINUTE: { schema: whole(1, 10_000), dflt: '10', meaning: 'sign-in attempts per client address per minute' },
-  EFFLUX_LOG: { schema: z.enum(['silent', 'fatal', 'error', 'warn', 'info', 'debug', 'trace'], 'must be silent, fatal, error, warn, info, debug or trace'), dflt: 'info', meaning: 'log level (JSON lines on stdout)' },
-  EFFLUX_WEBHOOKS: { schema: z.string(), dflt: '', meaning: 'comma-separated http(s) URLs told of outlet status changes' },
-  EFFLUX_ANALYZE_MODULE: { schema: z.string().min(1), dflt: '', meaning: 'tests and benchmarks only: a module exporting analyzeDrainTest instead of the engine' },
+  EFFLUX_DEMO: {
+    schema: flag,
+    dflt: '0',
+    meaning:
+      'load the invented demo scenario into an EMPTY data folder (same as serve --demo); refused on a folder with real records',
+  },
+  EFFLUX_DEMO_MANIFEST: {
+    schema: z.string().min(1),
+    dflt: '',
+    meaning: 'demo scenario manifest; default sample-data/manifest.json beside the program',
+  },
+  EFFLUX_UPLOAD_LIMIT_MB: {
+    schema: whole(1, 4096),
+    dflt: '40',
+    meaning: "largest accepted log file, MiB (keep the proxy's body limit a little above it)",
+  },
+  EFFLUX_REQUEST_TIMEOUT_S: {
+    schema: whole(1),
+    dflt: '120',
+    meaning: 'whole-request deadline, seconds (receiving the body included)',
+  },
+  EFFLUX_ANALYSIS_TIMEOUT_S: {
+    schema: whole(1),
+    dflt: '120',
+    meaning: 'longest one analysis may run in a worker thread, seconds',
+  },
+  EFFLUX_WORKERS: {
+    schema: whole(1, 256),
+    dflt: '',
+    meaning: 'analysis worker threads; default: cores − 1, at least 1',
+  },
+  EFFLUX_WORKER_NICE: {
+    schema: whole(0, 19),
+    dflt: '5',
+    meaning:
+      'nice value of the analysis threads on Linux, so reads keep answering while a fit runs',
+  },
+  EFFLUX_WEB_ROOT: {
+    schema: z.string().min(1),
+    dflt: '',
+    meaning: 'built web workbench folder; default dist/web beside the program',
+  },
+  EFFLUX_SECURE_COOKIE: {
+    schema: flag,
+    dflt: '0',
+    meaning:
+      'mark the session cookie Secure (set to 1 whenever users reach the service over HTTPS)',
+  },
+  EFFLUX_TRUST_PROXY: {
+    schema: trustProxy,
+    dflt: 'false',
+    meaning:
+      'trust X-Forwarded-For from: false, true, a hop count, or proxy addresses/CIDRs (so sign-in rate limits are per client)',
+  },
+  EFFLUX_SIGNIN_PER_MINUTE: {
+    schema: whole(1, 10_000),
+    dflt: '10',
+    meaning: 'sign-in attempts per client address per minute',
+  },
+  EFFLUX_LOG: {
+    schema: z.enum(
+      ['silent', 'fatal', 'error', 'warn', 'info', 'debug', 'trace'],
+      'must be silent, fatal, error, warn, info, debug or trace',
+    ),
+    dflt: 'info',
+    meaning: 'log level (JSON lines on stdout)',
+  },
+  EFFLUX_WEBHOOKS: {
+    schema: z.string(),
+    dflt: '',
+    meaning: 'comma-separated http(s) URLs told of outlet status changes',
+  },
+  EFFLUX_ANALYZE_MODULE: {
+    schema: z.string().min(1),
+    dflt: '',
+    meaning: 'tests and benchmarks only: a module exporting analyzeDrainTest instead of the engine',
+  },
 } as const;
 
 type Key = keyof typeof SETTINGS;
@@ -102,13 +186,16 @@ function read<K extends Key>(env: NodeJS.ProcessEnv, key: K): Parsed<K> | undefi
   const text = given ? raw : SETTINGS[key].dflt;
   if (text === '') return undefined;
   const r = SETTINGS[key].schema.safeParse(text);
-  if (!r.success) throw new SettingsError(key, `${r.error.issues[0]?.message ?? 'invalid'}, not "${text}"`);
+  if (!r.success)
+    throw new SettingsError(key, `${r.error.issues[0]?.message ?? 'invalid'}, not "${text}"`);
   return r.data as Parsed<K>;
 }
 
 /** The data folder the service commands use: --data, else EFFLUX_DATA_DIR, else ./data (./data-demo for the demo). */
 export function dataDir(env = process.env, opts: { flag?: string; demo?: boolean } = {}): string {
-  return resolve(opts.flag ?? read(env, 'EFFLUX_DATA_DIR') ?? (opts.demo ? DEMO_DATA_DIR : DEFAULT_DATA_DIR));
+  return resolve(
+    opts.flag ?? read(env, 'EFFLUX_DATA_DIR') ?? (opts.demo ? DEMO_DATA_DIR : DEFAULT_DATA_DIR),
+  );
 }
 
 export interface ServeOverrides {
@@ -124,7 +211,10 @@ export function serveConfig(env = process.env, over: ServeOverrides = {}) {
   try {
     webhooks = parseWebhookList(read(env, 'EFFLUX_WEBHOOKS'));
   } catch (e) {
-    throw new SettingsError('EFFLUX_WEBHOOKS', (e as Error).message.replace(/^EFFLUX_WEBHOOKS: /, ''));
+    throw new SettingsError(
+      'EFFLUX_WEBHOOKS',
+      (e as Error).message.replace(/^EFFLUX_WEBHOOKS: /, ''),
+    );
   }
   const workers = read(env, 'EFFLUX_WORKERS');
   return {
@@ -152,7 +242,10 @@ export type ServeConfig = ReturnType<typeof serveConfig>;
 
 /** `.env.example` as it should read (written by hand once; the settings test compares). */
 export function envExample(): string {
-  const lines = ['# efflux settings (environment variables). Each line: the default; an empty value means "computed" (see the comment).', ''];
+  const lines = [
+    '# efflux settings (environment variables). Each line: the default; an empty value means "computed" (see the comment).',
+    '',
+  ];
   for (const [k, s] of Object.entries(SETTINGS)) lines.push(`# ${s.meaning}`, `${k}=${s.dflt}`, '');
   return lines.join('\n');
 }

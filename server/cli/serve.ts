@@ -32,16 +32,27 @@ export class DemoRefusedError extends Error {
 /** May the demo go into this store? True to load it now, false when it is the demo's already. */
 function demoWanted(store: Store, dataDir: string): boolean {
   if (store.meta.isDemo()) return store.vessels.count() === 0 && store.tests.count() === 0;
-  if (store.vessels.count() > 0 || store.tests.count() > 0) throw new DemoRefusedError(dataDir, store.vessels.count(), store.tests.count());
+  if (store.vessels.count() > 0 || store.tests.count() > 0)
+    throw new DemoRefusedError(dataDir, store.vessels.count(), store.tests.count());
   return true;
 }
 
 export async function run(argv: string[]): Promise<number> {
-  const { values } = parseCommandLine(argv, { data: { type: 'string' }, demo: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } });
+  const { values } = parseCommandLine(argv, {
+    data: { type: 'string' },
+    demo: { type: 'boolean' },
+    help: { type: 'boolean', short: 'h' },
+  });
   if (values.help) {
-    say('usage: efflux serve [--data DIR] [--demo]   (other settings from the environment: see .env.example)');
-    say('  --data DIR  the data folder (default EFFLUX_DATA_DIR, else ./data; ./data-demo with --demo)');
-    say('  --demo      load the invented demo scenario into an empty folder (refused where real records are)');
+    say(
+      'usage: efflux serve [--data DIR] [--demo]   (other settings from the environment: see .env.example)',
+    );
+    say(
+      '  --data DIR  the data folder (default EFFLUX_DATA_DIR, else ./data; ./data-demo with --demo)',
+    );
+    say(
+      '  --demo      load the invented demo scenario into an empty folder (refused where real records are)',
+    );
     return 0;
   }
   const cfg = serveConfig(process.env, { dataDir: values.data, demo: values.demo });
@@ -53,7 +64,12 @@ export async function run(argv: string[]): Promise<number> {
     lock.release();
     throw e;
   }
-  const pool = createAnalysisPool({ threads: cfg.workers, timeoutMs: cfg.analysisTimeoutMs, analyzeModule: cfg.analyzeModule, niceness: cfg.workerNice });
+  const pool = createAnalysisPool({
+    threads: cfg.workers,
+    timeoutMs: cfg.analysisTimeoutMs,
+    analyzeModule: cfg.analyzeModule,
+    niceness: cfg.workerNice,
+  });
   const stopEarly = async (code: number) => {
     await pool.close();
     store.close();
@@ -77,7 +93,8 @@ export async function run(argv: string[]): Promise<number> {
     await stopEarly(0);
     throw e;
   }
-  if (store.users.count() === 0) firstToken = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start').token;
+  if (store.users.count() === 0)
+    firstToken = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start').token;
 
   const app = await buildApp({
     store,
@@ -94,7 +111,9 @@ export async function run(argv: string[]): Promise<number> {
   // the first analysis in a fresh worker pays the JIT; let the built-in warm-up drain finish first
   await pool.warm;
   const address = await app.listen({ host: cfg.host, port: cfg.port });
-  say(`efflux listening on ${address} (data in ${cfg.dataDir}${store.meta.isDemo() ? '; DEMO data, invented' : ''})`);
+  say(
+    `efflux listening on ${address} (data in ${cfg.dataDir}${store.meta.isDemo() ? '; DEMO data, invented' : ''})`,
+  );
   if (firstToken) {
     say('first start: an admin token was created. It is shown this once; keep it safe:');
     say(`  ${firstToken}`);

@@ -50,7 +50,11 @@ export function readHolder(dataDir: string): LockHolder | null {
 }
 
 /** Takes the folder's lock or throws FolderBusyError naming the holder. */
-export function lockDataFolder(dataDir: string, command: string, now = () => new Date().toISOString()): FolderLock {
+export function lockDataFolder(
+  dataDir: string,
+  command: string,
+  now = () => new Date().toISOString(),
+): FolderLock {
   mkdirSync(dataDir, { recursive: true });
   const db = new Database(join(dataDir, LOCK_FILE), { timeout: 0 });
   try {
@@ -61,7 +65,8 @@ export function lockDataFolder(dataDir: string, command: string, now = () => new
   } catch (e) {
     db.close();
     const code = (e as { code?: string }).code;
-    if (code === 'SQLITE_BUSY' || code === 'SQLITE_LOCKED') throw new FolderBusyError(dataDir, readHolder(dataDir));
+    if (code === 'SQLITE_BUSY' || code === 'SQLITE_LOCKED')
+      throw new FolderBusyError(dataDir, readHolder(dataDir));
     throw e;
   }
   const holder: LockHolder = { pid: process.pid, host: hostname(), startedAt: now(), command };

@@ -9,7 +9,12 @@ import { copyFileSync, existsSync, renameSync, rmSync, statSync } from 'node:fs'
 import { join } from 'node:path';
 import { AuditLog, type ChainReport } from './audit.js';
 import { openDatabase, type Db } from './db.js';
-import { buildSchemaVersion, defaultMigrationsDir, NewerSchemaError, schemaVersion } from './migrate.js';
+import {
+  buildSchemaVersion,
+  defaultMigrationsDir,
+  NewerSchemaError,
+  schemaVersion,
+} from './migrate.js';
 
 export const DB_FILE = 'efflux.sqlite';
 
@@ -20,11 +25,17 @@ export function databasePath(dataDir: string): string {
 /** Rows in every table of the schema (names from sqlite_master, never from input). */
 export function rowCounts(db: Db): Record<string, number> {
   const tables = db
-    .prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name")
+    .prepare(
+      "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name",
+    )
     .pluck()
     .all() as string[];
   const out: Record<string, number> = {};
-  for (const t of tables) out[t] = db.prepare(`SELECT count(*) FROM "${t.replace(/"/g, '""')}"`).pluck().get() as number;
+  for (const t of tables)
+    out[t] = db
+      .prepare(`SELECT count(*) FROM "${t.replace(/"/g, '""')}"`)
+      .pluck()
+      .get() as number;
   return out;
 }
 
@@ -39,15 +50,26 @@ export interface DatabaseCheck {
 
 /** integrity_check, the schema version against this build's, and the audit chain. */
 export function checkDatabase(db: Db, migrationsDir = defaultMigrationsDir()): DatabaseCheck {
-  const integrity = db.pragma('integrity_check', { simple: false }) as { integrity_check: string }[];
+  const integrity = db.pragma('integrity_check', { simple: false }) as {
+    integrity_check: string;
+  }[];
   const lines = integrity.map((r) => r.integrity_check);
   const schema = { database: schemaVersion(db), build: buildSchemaVersion(migrationsDir) };
   const chain = new AuditLog(db).verify();
   const problems: string[] = [];
-  if (!(lines.length === 1 && lines[0] === 'ok')) problems.push(`integrity check: ${lines.slice(0, 5).join('; ')}`);
-  if (schema.database > schema.build) problems.push(new NewerSchemaError(schema.database, schema.build).message);
+  if (!(lines.length === 1 && lines[0] === 'ok'))
+    problems.push(`integrity check: ${lines.slice(0, 5).join('; ')}`);
+  if (schema.database > schema.build)
+    problems.push(new NewerSchemaError(schema.database, schema.build).message);
   if (!chain.ok) problems.push(`audit chain broken at entry ${chain.brokenAt}: ${chain.reason}`);
-  return { ok: problems.length === 0, integrity: lines, schema, chain, counts: rowCounts(db), problems };
+  return {
+    ok: problems.length === 0,
+    integrity: lines,
+    schema,
+    chain,
+    counts: rowCounts(db),
+    problems,
+  };
 }
 
 export class NoDatabaseError extends Error {
@@ -77,7 +99,11 @@ export interface BackupReport {
  * audit chain, and every table's row count equal to the source's in the snapshot copied. The copy
  * is written to `out.partial` and renamed only once it has passed; a failed check leaves no file.
  */
-export async function backupDatabase(dataDir: string, out: string, migrationsDir = defaultMigrationsDir()): Promise<BackupReport> {
+export async function backupDatabase(
+  dataDir: string,
+  out: string,
+  migrationsDir = defaultMigrationsDir(),
+): Promise<BackupReport> {
   const file = databasePath(dataDir);
   if (!existsSync(file)) throw new NoDatabaseError(file);
   if (existsSync(out)) throw new BackupRefusedError(`${out} already exists; name a new file`);
@@ -105,8 +131,13 @@ export async function backupDatabase(dataDir: string, out: string, migrationsDir
   } finally {
     copy.close();
   }
-  const mismatched = Object.keys({ ...counts, ...check.counts }).filter((t) => counts[t] !== check.counts[t]);
-  if (mismatched.length) check.problems.push(`row counts differ from the source in ${mismatched.map((t) => `${t} (${counts[t]} vs ${check.counts[t]})`).join(', ')}`);
+  const mismatched = Object.keys({ ...counts, ...check.counts }).filter(
+    (t) => counts[t] !== check.counts[t],
+  );
+  if (mismatched.length)
+    check.problems.push(
+      `row counts differ from the source in ${mismatched.map((t) => `${t} (${counts[t]} vs ${check.counts[t]})`).join(', ')}`,
+    );
   if (check.problems.length) {
     rmSync(partial, { force: true });
     throw new BackupCheckError(check.problems);
@@ -135,7 +166,12 @@ export class BackupCheckError extends Error {
  * Puts a checked backup in place of the folder's database. The caller holds the folder lock. The
  * database replaced is kept beside it (`efflux-replaced-<time>.sqlite`), never deleted.
  */
-export function restoreDatabase(dataDir: string, backupFile: string, at: string, migrationsDir = defaultMigrationsDir()): { check: DatabaseCheck; keptAs: string | null } {
+export function restoreDatabase(
+  dataDir: string,
+  backupFile: string,
+  at: string,
+  migrationsDir = defaultMigrationsDir(),
+): { check: DatabaseCheck; keptAs: string | null } {
   const candidate = openExisting(backupFile);
   let check: DatabaseCheck;
   try {

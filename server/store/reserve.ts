@@ -27,7 +27,8 @@ export class DiskReserve {
     let fd: number | null = null;
     try {
       fd = openSync(part, 'w');
-      for (let n = 0; n < this.bytes; ) n += writeSync(fd, chunk, 0, Math.min(chunk.length, this.bytes - n));
+      for (let n = 0; n < this.bytes; )
+        n += writeSync(fd, chunk, 0, Math.min(chunk.length, this.bytes - n));
       closeSync(fd);
       fd = null;
       // rename last, so a half-written reserve is never taken for a whole one

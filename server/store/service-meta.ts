@@ -23,7 +23,12 @@ export class ServiceMetaRepo {
         if (this.isDemo()) return;
         const now = this.c.now();
         this.q.put.run('purpose', 'demo', now);
-        this.c.audit.append(actor, now, { action: 'service.mark-demo', entityType: 'service', entityId: null, after: { purpose: 'demo' } });
+        this.c.audit.append(actor, now, {
+          action: 'service.mark-demo',
+          entityType: 'service',
+          entityId: null,
+          after: { purpose: 'demo' },
+        });
       })
       .immediate();
   }

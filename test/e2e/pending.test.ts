@@ -37,7 +37,12 @@ describe.skipIf(!haveBrowser)('tests waiting for analysis, in the workbench', ()
     token = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin').token;
     vesselId = store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never).id;
     const put = (name: string, body: string) =>
-      store.tests.createPending(SYSTEM_ACTOR, { vesselId, outletId: null, log: { bytes: Buffer.from(body), fileName: name }, settings: {} });
+      store.tests.createPending(SYSTEM_ACTOR, {
+        vesselId,
+        outletId: null,
+        log: { bytes: Buffer.from(body), fileName: name },
+        settings: {},
+      });
     put('late-engine.csv', 't,level\nFAIL_UNTIL_GATE\n0,2\n1,1.9\n');
     put('wrong-logger.csv', 't,level\nFAIL\n0,2\n1,1.9\n');
     store.close();
@@ -52,7 +57,11 @@ describe.skipIf(!haveBrowser)('tests waiting for analysis, in the workbench', ()
       EFFLUX_ANALYZE_MODULE: new URL('../ops/gated-analyze.ts', import.meta.url).href,
       EFFLUX_TEST_GATE: gate,
     };
-    server = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    server = spawn(
+      process.execPath,
+      ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'],
+      { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] },
+    );
     let out = '';
     await new Promise<void>((resolve, reject) => {
       server.stdout!.on('data', (d) => {
@@ -60,7 +69,13 @@ describe.skipIf(!haveBrowser)('tests waiting for analysis, in the workbench', ()
         const m = /listening on (http:\/\/127\.0\.0\.1:\d+)/.exec(out);
         if (m) url = m[1];
         // the background resume has tried both tests once
-        if (url && /pending tests from an earlier run: 0 analysed, 0 refused and withdrawn, 2 failed again/.test(out)) resolve();
+        if (
+          url &&
+          /pending tests from an earlier run: 0 analysed, 0 refused and withdrawn, 2 failed again/.test(
+            out,
+          )
+        )
+          resolve();
       });
       server.stderr!.on('data', (d) => (out += d));
       server.once('exit', (code) => reject(new Error(`server exited ${code}:\n${out}`)));
@@ -110,12 +125,18 @@ describe.skipIf(!haveBrowser)('tests waiting for analysis, in the workbench', ()
     await page.screenshot({ path: join(shots, 'pending-02-done.png'), fullPage: true });
 
     const auth = { authorization: `Bearer ${token}` };
-    const tests = await (await fetch(`${url}/api/vessels/${vesselId}/tests`, { headers: auth })).json();
-    expect(tests.items.map((t: { fileName: string; status: string }) => [t.fileName, t.status])).toEqual([['late-engine.csv', 'analysed']]);
+    const tests = await (
+      await fetch(`${url}/api/vessels/${vesselId}/tests`, { headers: auth })
+    ).json();
+    expect(
+      tests.items.map((t: { fileName: string; status: string }) => [t.fileName, t.status]),
+    ).toEqual([['late-engine.csv', 'analysed']]);
     const audit = await (await fetch(`${url}/api/audit?limit=100`, { headers: auth })).json();
     const actions = audit.items.map((e: { action: string }) => e.action);
     expect(actions.filter((a: string) => a === 'test.retry')).toHaveLength(2);
-    expect(audit.items.find((e: { action: string }) => e.action === 'test.withdraw').after).toEqual({ reason: 'logger clock was wrong; test repeated' });
+    expect(audit.items.find((e: { action: string }) => e.action === 'test.withdraw').after).toEqual(
+      { reason: 'logger clock was wrong; test repeated' },
+    );
     expect(unexpected(problems).filter((p) => !/status of 500/.test(p))).toEqual([]);
   }, 120_000);
 });

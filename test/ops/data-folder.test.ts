@@ -19,8 +19,16 @@ afterAll(() => running.forEach((s) => s.child.exitCode === null && s.child.kill(
 
 async function upload(s: Served, vesselId: number, i: number) {
   const form = new FormData();
-  form.append('log', new Blob([`t,level\n0,2.0\n1,1.9\n2,1.${i}\n` + '3,1.7\n'.repeat(3000)]), `run-${i}.csv`);
-  const res = await fetch(`${s.base}/api/vessels/${vesselId}/tests`, { method: 'POST', headers: { authorization: `Bearer ${s.token}` }, body: form });
+  form.append(
+    'log',
+    new Blob([`t,level\n0,2.0\n1,1.9\n2,1.${i}\n` + '3,1.7\n'.repeat(3000)]),
+    `run-${i}.csv`,
+  );
+  const res = await fetch(`${s.base}/api/vessels/${vesselId}/tests`, {
+    method: 'POST',
+    headers: { authorization: `Bearer ${s.token}` },
+    body: form,
+  });
   return res.status;
 }
 
@@ -38,14 +46,21 @@ describe('one data folder, one server; backup, restore, check', () => {
     expect(second.stderr).toContain(`pid ${first.child.pid} on ${hostname()}`);
     expect(second.stderr).toMatch(/started \d{4}-\d\d-\d\dT/);
 
-    const restoreBeside = await eff(['restore', join(base, 'whatever.sqlite'), '--data', dataDir], env);
+    const restoreBeside = await eff(
+      ['restore', join(base, 'whatever.sqlite'), '--data', dataDir],
+      env,
+    );
     expect(restoreBeside.code).toBe(2);
     expect(restoreBeside.stderr).toContain(`pid ${first.child.pid}`);
 
     const v = await fetch(`${first.base}/api/vessels`, {
       method: 'POST',
       headers: { authorization: `Bearer ${first.token}`, 'content-type': 'application/json' },
-      body: JSON.stringify({ name: 'K-2', shape: { kind: 'vertical-cylinder', diameterM: 2 }, outlet: { boreM: 0.02, elevationM: 0 } }),
+      body: JSON.stringify({
+        name: 'K-2',
+        shape: { kind: 'vertical-cylinder', diameterM: 2 },
+        outlet: { boreM: 0.02, elevationM: 0 },
+      }),
     });
     const vesselId = (await v.json()).id;
     for (let i = 0; i < 5; i++) expect(await upload(first, vesselId, i)).toBe(201);
@@ -73,7 +88,9 @@ describe('one data folder, one server; backup, restore, check', () => {
     const n = rowCounts(copy);
     expect(n.drain_tests).toBeGreaterThanOrEqual(5);
     expect(n.fits).toBe(n.drain_tests);
-    expect(copy.prepare("SELECT count(*) FROM audit_log WHERE action = 'test.upload'").pluck().get()).toBe(n.drain_tests);
+    expect(
+      copy.prepare("SELECT count(*) FROM audit_log WHERE action = 'test.upload'").pluck().get(),
+    ).toBe(n.drain_tests);
     copy.close();
     expect(existsSync(`${backupFile}.partial`)).toBe(false);
 
@@ -119,7 +136,11 @@ describe('one data folder, one server; backup, restore, check', () => {
     copyFileSync(backupFile, join(newer, 'efflux.sqlite'));
     const db = new Database(join(newer, 'efflux.sqlite'));
     const build = db.prepare('SELECT max(version) FROM schema_migrations').pluck().get() as number;
-    db.prepare('INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)').run(build + 5, `${build + 5}_later.sql`, '2030-01-01T00:00:00Z');
+    db.prepare('INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)').run(
+      build + 5,
+      `${build + 5}_later.sql`,
+      '2030-01-01T00:00:00Z',
+    );
     db.close();
     const s = await eff(['serve', '--data', newer], env);
     expect(s.code).toBe(2);

@@ -17,11 +17,19 @@ afterAll(() => running.forEach((s) => s.child.exitCode === null && s.child.kill(
 
 describe('demo apart from real data', () => {
   it('serve --data on a new folder starts empty and says it is not the demo', async () => {
-    const s = await serve(envFor('', { EFFLUX_DATA_DIR: '', EFFLUX_DEMO: '' }), ['--data', join(base, 'real')]); // no demo setting at all: the default
+    const s = await serve(envFor('', { EFFLUX_DATA_DIR: '', EFFLUX_DEMO: '' }), [
+      '--data',
+      join(base, 'real'),
+    ]); // no demo setting at all: the default
     running.push(s);
     expect(s.out()).toContain(`(data in ${join(base, 'real')})`);
-    expect(await (await fetch(`${s.base}/api/health`)).json()).toEqual({ status: 'ok', demo: false });
-    const vessels = await (await fetch(`${s.base}/api/vessels`, { headers: { authorization: `Bearer ${s.token}` } })).json();
+    expect(await (await fetch(`${s.base}/api/health`)).json()).toEqual({
+      status: 'ok',
+      demo: false,
+    });
+    const vessels = await (
+      await fetch(`${s.base}/api/vessels`, { headers: { authorization: `Bearer ${s.token}` } })
+    ).json();
     expect(vessels.total).toBe(0);
     expect(await stop(s)).toBe(0);
   }, 60_000);
@@ -31,8 +39,13 @@ describe('demo apart from real data', () => {
     const s = await serve(envFor(dir), ['--demo']);
     running.push(s);
     expect(s.out()).toMatch(/DEMO data, invented/);
-    expect(await (await fetch(`${s.base}/api/health`)).json()).toEqual({ status: 'ok', demo: true });
-    const vessels = await (await fetch(`${s.base}/api/vessels`, { headers: { authorization: `Bearer ${s.token}` } })).json();
+    expect(await (await fetch(`${s.base}/api/health`)).json()).toEqual({
+      status: 'ok',
+      demo: true,
+    });
+    const vessels = await (
+      await fetch(`${s.base}/api/vessels`, { headers: { authorization: `Bearer ${s.token}` } })
+    ).json();
     expect(vessels.total).toBeGreaterThan(0);
     expect(await stop(s)).toBe(0);
     const store = openStore({ dataDir: dir });

@@ -50,7 +50,8 @@ afterAll(() => {
   }
 });
 
-const log = (i: number) => Buffer.from(`t,level\n0,2.0\n1,1.9\n2,1.${i}\n` + '3,1.7\n'.repeat(30_000)); // ~180 kB
+const log = (i: number) =>
+  Buffer.from(`t,level\n0,2.0\n1,1.9\n2,1.${i}\n` + '3,1.7\n'.repeat(30_000)); // ~180 kB
 
 describe('a full disk', () => {
   let store: Store;
@@ -66,11 +67,21 @@ describe('a full disk', () => {
     const token = store.users.createToken(SYSTEM_ACTOR, 'tech', 'admin').token;
     const app = await buildApp({ store, analyze });
     const auth = { authorization: `Bearer ${token}` };
-    const v = await app.inject({ method: 'POST', url: '/api/vessels', headers: auth, payload: VESSEL_FILE });
+    const v = await app.inject({
+      method: 'POST',
+      url: '/api/vessels',
+      headers: auth,
+      payload: VESSEL_FILE,
+    });
     const vesselId = v.json().id;
     const up = (i: number) => {
       const m = multipart([{ field: 'log', name: `run-${i}.csv`, bytes: log(i) }]);
-      return app.inject({ method: 'POST', url: `/api/vessels/${vesselId}/tests`, headers: { ...auth, ...m.headers }, payload: m.payload });
+      return app.inject({
+        method: 'POST',
+        url: `/api/vessels/${vesselId}/tests`,
+        headers: { ...auth, ...m.headers },
+        payload: m.payload,
+      });
     };
     expect((await up(0)).statusCode).toBe(201);
     const before = rowCounts(store.db);

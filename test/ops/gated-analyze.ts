@@ -9,14 +9,22 @@ import { analyzeDrainTest as plain } from '../http/fake-analyze.js';
 
 export function analyzeDrainTest(req: AnalysisRequest) {
   const text = new TextDecoder().decode(req.log.bytes);
-  if (text.includes('FAIL_UNTIL_GATE') && !existsSync(process.env.EFFLUX_TEST_GATE!)) throw new Error('the stand-in engine is not ready yet');
-  if (text.includes('FAIL_UNTIL_GATE')) return plain({ ...req, log: { ...req.log, bytes: new TextEncoder().encode(text.replace(/^FAIL_UNTIL_GATE\n/m, '')) } });
+  if (text.includes('FAIL_UNTIL_GATE') && !existsSync(process.env.EFFLUX_TEST_GATE!))
+    throw new Error('the stand-in engine is not ready yet');
+  if (text.includes('FAIL_UNTIL_GATE'))
+    return plain({
+      ...req,
+      log: { ...req.log, bytes: new TextEncoder().encode(text.replace(/^FAIL_UNTIL_GATE\n/m, '')) },
+    });
   if (text.includes('FAIL')) throw new Error('the stand-in engine failed on purpose');
   if (text.includes('GATE')) {
     const gate = process.env.EFFLUX_TEST_GATE!;
     const pause = new Int32Array(new SharedArrayBuffer(4));
     while (!existsSync(gate)) Atomics.wait(pause, 0, 0, 20);
-    return plain({ ...req, log: { ...req.log, bytes: new TextEncoder().encode(text.replace(/^GATE\n/m, '')) } });
+    return plain({
+      ...req,
+      log: { ...req.log, bytes: new TextEncoder().encode(text.replace(/^GATE\n/m, '')) },
+    });
   }
   return plain(req);
 }

@@ -6,7 +6,15 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openDatabase } from '../../server/store/db.js';
 import { openStore } from '../../server/store/index.js';
-import { defaultMigrationsDir, migrate, MigrationError, NewerSchemaError, readMigrations, schemaVersion, splitStatements } from '../../server/store/migrate.js';
+import {
+  defaultMigrationsDir,
+  migrate,
+  MigrationError,
+  NewerSchemaError,
+  readMigrations,
+  schemaVersion,
+  splitStatements,
+} from '../../server/store/migrate.js';
 
 const tmp = () => mkdtempSync(join(tmpdir(), 'efflux-mig-'));
 
@@ -30,15 +38,20 @@ describe('migration safety', () => {
       'migration 002_b.sql failed at statement 4 (line 6: "ALTER TABLE a ADD COLUMN x INTEGER"): duplicate column name: x; the database was left at the previous version',
     );
     expect(schemaVersion(db)).toBe(1);
-    expect(db.prepare("SELECT name FROM sqlite_master WHERE name IN ('b', 'c', 'b_t')").all()).toEqual([]);
+    expect(
+      db.prepare("SELECT name FROM sqlite_master WHERE name IN ('b', 'c', 'b_t')").all(),
+    ).toEqual([]);
   });
 
-  it('splits the project\'s own migrations into statements that each stand alone (triggers kept whole)', () => {
+  it("splits the project's own migrations into statements that each stand alone (triggers kept whole)", () => {
     for (const f of readMigrations(defaultMigrationsDir())) {
       const parts = splitStatements(f.sql);
       const db = new Database(':memory:');
       // each piece is one complete statement: SQLite prepares it without "incomplete input"
-      for (const p of parts) expect(() => db.prepare(p.text), `${f.name} line ${p.line}`).not.toThrow(/incomplete input|more than one statement/);
+      for (const p of parts)
+        expect(() => db.prepare(p.text), `${f.name} line ${p.line}`).not.toThrow(
+          /incomplete input|more than one statement/,
+        );
       const triggers = (f.sql.match(/CREATE TRIGGER/gi) ?? []).length;
       expect(parts.filter((p) => /^CREATE TRIGGER/i.test(p.text)).length).toBe(triggers);
     }
@@ -57,7 +70,11 @@ describe('migration safety', () => {
     const from = all.at(-2)!.version;
     const to = all.at(-1)!.version;
     expect(readdirSync(data).filter((n) => n.startsWith('efflux-before'))).toEqual([]); // a new database needs no copy
-    openStore({ dataDir: data, migrationsDir: newest, now: () => '2026-12-05T04:45:00.000Z' }).close();
+    openStore({
+      dataDir: data,
+      migrationsDir: newest,
+      now: () => '2026-12-05T04:45:00.000Z',
+    }).close();
     const copies = readdirSync(data).filter((n) => n.startsWith('efflux-before'));
     expect(copies).toEqual([`efflux-before-schema-${from}-to-${to}-20261205T044500.sqlite`]);
     const copy = new Database(join(data, copies[0]), { readonly: true });
@@ -73,7 +90,9 @@ describe('migration safety', () => {
     db.prepare('INSERT INTO schema_migrations VALUES (?, ?, ?)').run(build + 1, 'next.sql', 'x');
     db.close();
     expect(() => openStore({ dataDir: data })).toThrow(NewerSchemaError);
-    expect(() => openStore({ dataDir: data })).toThrow(`schema version ${build + 1}, newer than this build's ${build}`);
+    expect(() => openStore({ dataDir: data })).toThrow(
+      `schema version ${build + 1}, newer than this build's ${build}`,
+    );
     const again = new Database(join(data, 'efflux.sqlite'), { readonly: true });
     expect(schemaVersion(again)).toBe(build + 1);
     again.close();

@@ -31,17 +31,24 @@ export interface Served {
 }
 
 export function serve(env: NodeJS.ProcessEnv, args: string[] = []): Promise<Served> {
-  const child = spawn(process.execPath, ['--import', 'tsx', main, 'serve', ...args], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+  const child = spawn(process.execPath, ['--import', 'tsx', main, 'serve', ...args], {
+    cwd: root,
+    env,
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
   const exited = new Promise<number | null>((r) => child.once('exit', (code) => r(code)));
   let out = '';
   return new Promise((resolve, reject) => {
     child.stdout!.on('data', (d) => {
       out += d;
       const m = /listening on (http:\/\/127\.0\.0\.1:\d+)/.exec(out);
-      if (m && /\/api\/docs\n/.test(out)) resolve({ child, base: m[1], out: () => out, exited, token: firstToken(out, env, args) });
+      if (m && /\/api\/docs\n/.test(out))
+        resolve({ child, base: m[1], out: () => out, exited, token: firstToken(out, env, args) });
     });
     child.stderr!.on('data', (d) => (out += d));
-    child.on('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
+    child.on('exit', (code) =>
+      reject(new Error(`server exited ${code} before listening:\n${out}`)),
+    );
   });
 }
 
@@ -56,8 +63,15 @@ function firstToken(out: string, env: NodeJS.ProcessEnv, args: string[]): string
 }
 
 /** The CLI without blocking the event loop (a server in this process's tests keeps answering). */
-export function eff(args: string[], env: NodeJS.ProcessEnv): Promise<{ code: number | null; stdout: string; stderr: string }> {
-  const child = spawn(process.execPath, ['--import', 'tsx', main, ...args], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+export function eff(
+  args: string[],
+  env: NodeJS.ProcessEnv,
+): Promise<{ code: number | null; stdout: string; stderr: string }> {
+  const child = spawn(process.execPath, ['--import', 'tsx', main, ...args], {
+    cwd: root,
+    env,
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
   let stdout = '';
   let stderr = '';
   child.stdout!.on('data', (d) => (stdout += d));

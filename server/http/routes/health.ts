@@ -11,7 +11,8 @@ export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: PUBLIC },
       schema: {
         tags: ['service'],
-        summary: 'Liveness: the service answers and its database reads; `demo` when the data folder holds the invented demo scenario',
+        summary:
+          'Liveness: the service answers and its database reads; `demo` when the data folder holds the invented demo scenario',
         response: { 200: z.object({ status: z.literal('ok'), demo: z.boolean() }) },
       },
     },

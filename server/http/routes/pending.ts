@@ -16,13 +16,26 @@ export const pendingRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: TECHNICIANS_UP },
       schema: {
         tags: ['tests'],
-        summary: 'Analyse a pending test again (after a timeout, a fault or a full disk); its first fit is stored as a draft',
+        summary:
+          'Analyse a pending test again (after a timeout, a fault or a full disk); its first fit is stored as a draft',
         params: idParams,
-        response: { 201: z.object({ test: drainTest, fit }), 409: problem, 422: problem, 503: problem, 507: problem, ...protectedErrors },
+        response: {
+          201: z.object({ test: drainTest, fit }),
+          409: problem,
+          422: problem,
+          503: problem,
+          507: problem,
+          ...protectedErrors,
+        },
       },
     },
     async (request, reply) => {
-      const out = await retryPending(app.store, app.analyze, actorOf(request.user!), request.params.id);
+      const out = await retryPending(
+        app.store,
+        app.analyze,
+        actorOf(request.user!),
+        request.params.id,
+      );
       reply.code(201);
       return { test: app.store.tests.get(request.params.id), fit: out };
     },
@@ -34,10 +47,16 @@ export const pendingRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: ENGINEERS_UP },
       schema: {
         tags: ['tests'],
-        summary: 'Withdraw a pending test: its row and unshared raw bytes are deleted; the audit log keeps the upload and the reason',
+        summary:
+          'Withdraw a pending test: its row and unshared raw bytes are deleted; the audit log keeps the upload and the reason',
         params: idParams,
         body: z.object({ reason: z.string().trim().min(1).max(500) }).strict(),
-        response: { 200: z.object({ withdrawn: z.number().int() }), 409: problem, 507: problem, ...protectedErrors },
+        response: {
+          200: z.object({ withdrawn: z.number().int() }),
+          409: problem,
+          507: problem,
+          ...protectedErrors,
+        },
       },
     },
     async (request) => {
