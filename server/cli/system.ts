@@ -9,6 +9,7 @@ import { levelsAfter, timeToLevel } from '../core/system/predict.js';
 import { readVesselLog } from '../core/system/read-vessel-log.js';
 import { alignLogs, type LogForSystem } from '../core/system/align.js';
 import { fitSystem } from '../core/system/fit.js';
+import { correlationLines, parameterLines, SAFETY_LINES, solverLine, warningLines } from '../core/fit-result/text.js';
 import { loadSystemModel, systemFitJson } from '../core/system/fit-json.js';
 import { linearize } from '../core/system/linear.js';
 import { linearModelCsv, linearModelText } from '../core/system/linear-export.js';
@@ -133,7 +134,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       process.stdout.write(JSON.stringify(json, null, 2) + '\n');
       return EXIT_OK;
     }
-    const lines = [`efflux fit-system: ${spec.name}`, fit.converged ? `converged (${fit.stopReason}, ${fit.iterations} iterations)` : `NOT converged (${fit.stopReason})`];
+    const lines = [`efflux fit-system: ${spec.name}`, fit.converged ? `converged (${fit.stopReason}, ${fit.iterations} iterations)` : `NOT converged (${fit.stopReason})`, '─'.repeat(72)];
     for (const [id, o] of Object.entries(fit.outlets)) {
       const a = o.effectiveAreaM2;
       const cd = o.dischargeCoefficient;
@@ -141,9 +142,9 @@ export async function runFitSystem(argv: string[]): Promise<number> {
     }
     for (const v of fit.vessels) lines.push(`  log ${v.fileName} (${v.id}): ${v.samples} samples, noise ${(v.noiseM * 1000).toFixed(2)} mm, lag-1 ρ ${v.lag1Autocorrelation.toFixed(2)}`);
     for (const f of inflowLogs) lines.push(`  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`);
-    for (const w of json.warnings) lines.push(`  warning: ${w}`);
-    lines.push('Engineering estimates with stated uncertainty, not certification. Drain tests involve work at height,');
-    lines.push('confined spaces and discharges: follow site procedures, local codes and licensed engineering practice.');
+    // the sections every fit's report shares (core/fit-result/text.ts)
+    lines.push('', ...parameterLines(json.parameters, 30), ...correlationLines(json.correlations), '', solverLine(json.solver, json.converged), '', ...warningLines(json.warnings));
+    lines.push('─'.repeat(72), ...SAFETY_LINES);
     process.stdout.write(lines.join('\n') + '\n');
     return EXIT_OK;
   });

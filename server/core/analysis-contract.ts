@@ -5,6 +5,8 @@
  * throws InputError (server/core/errors.ts) for any refused input.
  */
 
+import type { SingleFitResult } from './fit-result/schema.js';
+
 /** Settings a person can state; JSON-serialisable so they can be stored beside the fit. */
 export interface AnalysisSettings {
   // reading
@@ -45,14 +47,5 @@ export interface AnalysisOutcome {
   fit: FitJson;
 }
 
-/** The JSON fit result (SI units, camelCase). More fields exist; these are guaranteed. */
-export interface FitJson {
-  engineVersion: string;
-  converged: boolean;
-  dischargeCoefficient: { value: number; standardUncertainty: number; ci95: [number, number] } | null;
-  effectiveAreaM2: { value: number; standardUncertainty: number; ci95: [number, number] };
-  window: { startS: number; endS: number; samples: number; [key: string]: unknown };
-  warnings: { code: string; message: string }[];
-  timing: { parseMs: number; fitMs: number; diagnosticsMs?: number };
-  [key: string]: unknown;
-}
+/** The JSON fit result (SI units, camelCase): the one shape, core/fit-result/schema.ts. */
+export type FitJson = SingleFitResult;

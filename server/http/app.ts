@@ -5,6 +5,7 @@
  * analysis runner), then auth and error handling, then one route module per resource.
  */
 import cookie from '@fastify/cookie';
+import helmet from '@fastify/helmet';
 import multipart from '@fastify/multipart';
 import rateLimit from '@fastify/rate-limit';
 import fastifyStatic from '@fastify/static';
@@ -27,7 +28,6 @@ import { PUBLIC, type Access } from './access.js';
 import { installAuth } from './auth.js';
 import './context.js';
 import { installProblemHandlers } from './problems.js';
-import { securityHeaders } from './security-headers.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
@@ -154,12 +154,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   });
 
   // external plugins
-  // helmet's headers, computed once from the plugin (security-headers.ts), set on every answer
-  const security = await securityHeaders({ contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
-  app.addHook('onRequest', (_request, reply, done) => {
-    reply.headers(security);
-    done();
-  });
+  // security headers on every answer, by helmet as a plugin (the strict CSP is ours)
+  await app.register(helmet, { contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
   await app.register(rateLimit, {
     global: false,
     errorResponseBuilder: (_req, ctx) => ({ statusCode: 429, message: `too many sign-in attempts; retry in ${ctx.after}` }),

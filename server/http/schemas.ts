@@ -3,6 +3,8 @@
  * the zod serializer checks them against these before they leave.
  */
 import { z } from 'zod';
+import { singleFitResult } from '../core/fit-result/schema.js';
+import type { Outlet, Vessel } from '../core/stored-vessel.js';
 
 export const idParams = z.object({ id: z.coerce.number().int().positive() });
 
@@ -42,7 +44,7 @@ export const outlet = z
     spec: json,
     retiredAt: z.string().nullable(),
   })
-  .meta({ id: 'Outlet' });
+  .meta({ id: 'Outlet' }) satisfies z.ZodType<Outlet>; // the one Outlet shape (core/stored-vessel.ts)
 
 export const vessel = z
   .object({
@@ -55,7 +57,7 @@ export const vessel = z
     createdAt: z.string(),
     updatedAt: z.string(),
   })
-  .meta({ id: 'Vessel' });
+  .meta({ id: 'Vessel' }) satisfies z.ZodType<Vessel>; // the one Vessel shape (core/stored-vessel.ts)
 
 const rawRef = z.object({ sha256: z.string(), fileName: z.string(), size: z.number().int() });
 
@@ -91,7 +93,7 @@ export const fit = z
     outletId: z.number().int().nullable(),
     settings: json,
     vessel: json,
-    result: json,
+    result: singleFitResult,
     engineVersion: z.string(),
     status: z.enum(['draft', 'approved', 'rejected']),
     supersededBy: z.number().int().nullable(),

@@ -25,19 +25,15 @@ import {
 import type { Store } from '../store/index.js';
 import type { CachedStatus, SkippedFit, TrendFitRow } from '../store/trends.js';
 import type { Outlet } from '../store/vessels.js';
+import type { EpochView, FleetItem, FleetView, ForecastView, LineView, OutletRef, PointView, StatusView, StepView, ThresholdChoice, TrendView } from './trend-views.js';
+
+export type { EpochView, FleetItem, FleetView, ForecastView, LineView, OutletRef, PointView, StatusView, StepView, ThresholdChoice, TrendView };
 
 export const STATUS_WORDS: readonly StatusWord[] = ['past threshold', 'sudden change', 'action due soon', 'drifting', 'not enough tests', 'steady'];
 
 const iso = (ms: number | null) => (ms === null || !Number.isFinite(ms) ? null : new Date(ms).toISOString());
 const fin = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? null : x);
 
-export interface ThresholdChoice {
-  /** Act when Cd·a has moved this many % from the epoch's baseline (negative: loss). */
-  pct: number;
-  /** The outlet's own setting (fraction of the baseline Cd·a), or null. */
-  fraction: number | null;
-  source: string;
-}
 
 /** The outlet's threshold as a percentage; the project's default (−10 %) when it has none. */
 export function thresholdOf(o: Pick<Outlet, 'actionThreshold'>): ThresholdChoice {
@@ -50,14 +46,6 @@ export function thresholdOf(o: Pick<Outlet, 'actionThreshold'>): ThresholdChoice
   return { pct: DEFAULT_ACTION_THRESHOLD_PCT, fraction: null, source: `no threshold set on the outlet: the default, ${DEFAULT_ACTION_THRESHOLD_PCT} % of the baseline Cd·a` };
 }
 
-export interface OutletRef {
-  id: number;
-  key: string;
-  vesselId: number;
-  vesselName: string;
-  site: string;
-  retired: boolean;
-}
 
 function outletRef(store: Store, outletId: number): { ref: OutletRef; outlet: Outlet } {
   const o = store.vessels.outlet(outletId);
@@ -67,106 +55,12 @@ function outletRef(store: Store, outletId: number): { ref: OutletRef; outlet: Ou
 
 // ---- shapes of the answer (documented in server/http/README.md) ----
 
-export interface StatusView {
-  status: StatusWord;
-  reason: string;
-  daysToThreshold: number | null;
-  crossingAt: string | null;
-  crossingMs: number | null;
-  epochIndex: number;
-  testsInEpoch: number;
-  latestTestAt: string | null;
-  latestChangePct: number | null;
-  slopePctPerYear: number | null;
-  thresholdPct: number;
-}
 
-export interface LineView {
-  originAt: string;
-  baselineValue: number;
-  /** The line's value at the baseline test (t = 0). */
-  intercept: number;
-  slopePerYear: number;
-  slopePerYearU: number;
-  slopePctPerYear: number;
-  slopePctPerYearU: number;
-  slopePctPerYearInterval95: { lower: number; upper: number };
-  n: number;
-  dof: number;
-  reducedChi2: number;
-  birgeRatio: number;
-  /** True when the uncertainties were widened by the Birge ratio (scatter beyond the tests' own u). */
-  scaled: boolean;
-  lackOfFitP: number;
-}
 
-export interface ForecastView {
-  status: ForecastStatus;
-  thresholdValue: number;
-  crossingAt: string | null;
-  crossingMs: number | null;
-  lowerAt: string | null;
-  lowerMs: number | null;
-  upperAt: string | null;
-  upperMs: number | null;
-  daysFromNow: number | null;
-  reason: string;
-}
 
-export interface StepView {
-  flagged: boolean;
-  by: StepCheck['by'];
-  fitId: number | null;
-  alarmFitId: number | null;
-  direction: StepCheck['direction'];
-  latestZ: number | null;
-  reason: string;
-}
 
-export interface PointView {
-  fitId: number;
-  testId: number;
-  testedAt: string;
-  testedAtMs: number;
-  approvedAt: string | null;
-  tYears: number;
-  effectiveAreaM2: number;
-  effectiveAreaU: number;
-  dischargeCoefficient: number;
-  dischargeCoefficientU: number;
-  changePct: number;
-  isBaseline: boolean;
-  /** Standardised departure from the line fitted to the earlier tests of the epoch (null for the first few). */
-  stepZ: number | null;
-}
 
-export interface EpochView {
-  index: number;
-  current: boolean;
-  startedBy: { kind: string; at: string; atMs: number; note: string | null } | null;
-  startAt: string | null;
-  startMs: number | null;
-  baselineFitId: number | null;
-  series: PointView[];
-  area: LineView | null;
-  cd: LineView | null;
-  areaBand: BandPoint[];
-  cdBand: BandPoint[];
-  thresholdM2: number | null;
-  thresholdCd: number | null;
-  forecast: ForecastView | null;
-  step: StepView | null;
-}
 
-export interface TrendView {
-  outlet: OutletRef;
-  asOf: string;
-  nowMs: number;
-  threshold: ThresholdChoice;
-  status: StatusView;
-  epochs: EpochView[];
-  skipped: SkippedFit[];
-}
 
 function statusView(s: OutletStatus): StatusView {
   return {
@@ -290,16 +184,6 @@ export function outletTrendView(store: Store, outletId: number, nowMs: number): 
 
 // ---- status, cached per outlet ----
 
-export interface FleetItem extends StatusView {
-  outletId: number;
-  outletKey: string;
-  vesselId: number;
-  vesselName: string;
-  site: string;
-  retired: boolean;
-  /** The current epoch's forecast outcome (null with too few tests for a line). */
-  forecastStatus: ForecastStatus | null;
-}
 
 interface Computed {
   status: StatusView;
@@ -376,14 +260,6 @@ export interface FleetQuery {
   includeRetired?: boolean;
 }
 
-export interface FleetView {
-  asOf: string;
-  nowMs: number;
-  /** Outlets recomputed for this answer (stale or overtaken by time); the rest came from the cache. */
-  recomputed: number;
-  counts: Record<string, number>;
-  items: FleetItem[];
-}
 
 /** Every outlet's status, in the order to act on them (soonest threshold first). */
 export function fleetStatus(store: Store, q: FleetQuery, nowMs: number): FleetView {

@@ -19,16 +19,7 @@ function userName(store: Store, id: number | null): string | null {
 }
 
 const vesselRecord = (v: Vessel): VesselRecord => ({ id: v.id, site: v.site, name: v.name, revision: v.revision, spec: v.spec });
-const outletRecord = (o: Outlet): OutletRecord => ({
-  id: o.id,
-  key: o.key,
-  type: o.type,
-  boreM: o.boreM,
-  boreToleranceM: o.boreToleranceM,
-  elevationM: o.elevationM,
-  actionThreshold: o.actionThreshold,
-  retiredAt: o.retiredAt,
-});
+const outletRecord = ({ spec: _spec, vesselId: _vessel, ...o }: Outlet & { vesselId?: number }): OutletRecord => o;
 
 const numberAt = (r: Record<string, unknown>, key: string) => {
   const v = (r[key] as { value?: unknown } | null)?.value;

@@ -17,6 +17,7 @@ import {
   type ReportDifference,
   type SoftwareRecord,
 } from '../core/report/index.js';
+import { sha256Hex } from '../sha256.js';
 import { canonicalJson } from '../store/canonical-json.js';
 import type { Store } from '../store/index.js';
 import { renderFitReportPdf } from './fit-report-pdf.js';
@@ -25,11 +26,11 @@ import { readReportFile, type ReportFile } from './report-file.js';
 import { fitReportRecords, outletReportRecords } from './report-records.js';
 
 export function fitReport(store: Store, fitId: number, software: SoftwareRecord): FitReport {
-  return buildFitReport(fitReportRecords(store, fitId), software);
+  return buildFitReport(fitReportRecords(store, fitId), software, sha256Hex);
 }
 
 export function outletReport(store: Store, outletId: number, software: SoftwareRecord, asOf?: string): OutletReport {
-  return buildOutletReport(outletReportRecords(store, outletId), software, asOf);
+  return buildOutletReport(outletReportRecords(store, outletId), software, sha256Hex, asOf);
 }
 
 export { renderFitReportPdf, renderOutletReportPdf };
@@ -65,12 +66,54 @@ function storedRequest(store: Store, fitId: number): { request: AnalysisRequest;
   };
 }
 
-const withoutEngine = (r: Record<string, unknown>) => {
-  const { timing: _t, engineVersion: _e, ...rest } = r;
+const withoutTiming = (r: Record<string, unknown>) => {
+  const { timing: _t, ...rest } = r;
   return rest;
 };
 
-/** Re-runs a stored fit from the stored bytes and settings; identical numbers, timing aside, or the differences. */
+/**
+ * When the engine has changed since a fit was stored, a recomputation is not expected to be bit
+ * for bit the same (a new integrator step, a new solver path); it must agree on the results within
+ * this fraction of the stored standard uncertainty of each. The stored result is never rewritten.
+ */
+export const ENGINE_CHANGE_TOLERANCE = 0.05;
+
+/** The headline results of a fit JSON: Cd·a and Cd, each with its standard uncertainty. */
+function headlines(r: FitJson): { name: string; unit: string; value: number | null; u: number | null }[] {
+  const pick = (e: { value?: unknown; standardUncertainty?: unknown } | null | undefined) => ({
+    value: typeof e?.value === 'number' ? e.value : null,
+    u: typeof e?.standardUncertainty === 'number' ? e.standardUncertainty : null,
+  });
+  return [
+    { name: 'Cd·a', unit: ' m²', ...pick(r.effectiveAreaM2) },
+    { name: 'Cd', unit: '', ...pick(r.dischargeCoefficient) },
+  ];
+}
+
+/** The stored and recomputed headline results side by side, against ENGINE_CHANGE_TOLERANCE. */
+export function engineChange(stored: FitJson, again: FitJson): { ok: boolean; text: string } {
+  const now = headlines(again);
+  let ok = true;
+  const parts = headlines(stored).map((s, i) => {
+    const a = now[i];
+    if (s.value === null && a.value === null) return `${s.name}: none either way`;
+    if (s.value === null || a.value === null || s.u === null || !(s.u > 0)) {
+      ok = false;
+      return `${s.name}: stored ${s.value ?? 'none'}, recomputed ${a.value ?? 'none'} (cannot be compared)`;
+    }
+    const diff = a.value - s.value;
+    const share = Math.abs(diff) / s.u;
+    if (!(share <= ENGINE_CHANGE_TOLERANCE)) ok = false;
+    return `${s.name} ${s.value.toPrecision(7)}${s.unit} → ${a.value.toPrecision(7)}${s.unit}, difference ${diff.toPrecision(2)}${s.unit} = ${(share * 100).toPrecision(2)} % of its standard uncertainty`;
+  });
+  return { ok, text: `${parts.join('; ')} (tolerance ${ENGINE_CHANGE_TOLERANCE * 100} % of the stored standard uncertainty)` };
+}
+
+/**
+ * Re-runs a stored fit from the stored bytes and settings. Under the engine that stored it: identical
+ * numbers, timing aside, or the differences. Under a newer engine: says so, and compares the results
+ * against ENGINE_CHANGE_TOLERANCE instead of asking for bit equality.
+ */
 export function reproduceFit(store: Store, fitId: number): Check {
   const { request, result } = storedRequest(store, fitId);
   const raw = sha256(request.log.bytes);
@@ -82,16 +125,24 @@ export function reproduceFit(store: Store, fitId: number): Check {
   } catch (e) {
     return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored input no longer analyses: ${(e as Error).message}` };
   }
-  // the engine version names the code (it changes with any edit of server/core); the numbers are what must agree
-  const a = canonicalJson(withoutEngine(result));
-  const b = canonicalJson(withoutEngine(again as Record<string, unknown>));
-  if (a === b) {
-    const engine = again.engineVersion === result.engineVersion ? '' : ` (stored by engine ${String(result.engineVersion)}, recomputed by ${again.engineVersion})`;
-    return { name: `reproduce fit ${fitId}`, ok: true, detail: `recomputed from the stored raw bytes and settings: identical numbers (timing aside)${engine}` };
+  const name = `reproduce fit ${fitId}`;
+  const storedEngine = typeof result.engineVersion === 'string' ? result.engineVersion : 'unknown';
+  if (storedEngine !== again.engineVersion) {
+    const change = engineChange(result, again);
+    const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
+    return {
+      name,
+      ok: change.ok,
+      detail: `the engine changed since this fit was stored (stored by ${storedEngine}, recomputed by ${again.engineVersion}), so the numbers are compared, not the bits; the stored result is kept as it was: ${change.text}`,
+      differences,
+    };
   }
-  const differences = compareReports(withoutEngine(result), withoutEngine(again as Record<string, unknown>), 10);
+  const a = canonicalJson(withoutTiming(result));
+  const b = canonicalJson(withoutTiming(again as Record<string, unknown>));
+  if (a === b) return { name, ok: true, detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)' };
+  const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
   return {
-    name: `reproduce fit ${fitId}`,
+    name,
     ok: false,
     detail: `the stored result differs from a recomputation from the stored raw bytes (engine ${again.engineVersion}, stored by ${result.engineVersion}) at ${differences.map((d) => d.path).join(', ')}`,
     differences,
@@ -121,7 +172,7 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   const checks: Check[] = [];
   // 1. the file agrees with itself
   if (file.report) {
-    const h = contentHash(file.report);
+    const h = contentHash(file.report, sha256Hex);
     const ok = h === file.contentSha256 && reportIdOf(h) === file.reportId && file.report.contentSha256 === file.contentSha256;
     checks.push({ name: 'file content hash', ok, detail: ok ? `the report's content hashes to ${h}` : `the report's content hashes to ${h}, but the file states ${file.contentSha256} (id ${file.reportId}): edited after it was written` });
   } else {

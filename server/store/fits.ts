@@ -1,3 +1,4 @@
+import type { FitJson } from '../core/analysis-contract.js';
 import { createHash } from 'node:crypto';
 import type { Actor } from './audit.js';
 import { canonicalJson } from './canonical-json.js';
@@ -33,7 +34,7 @@ export interface StoredFit {
   outletId: number | null;
   settings: Record<string, unknown>;
   vessel: Record<string, unknown>;
-  result: Record<string, unknown>;
+  result: FitJson;
   engineVersion: string;
   status: FitStatus;
   supersededBy: number | null;

@@ -1,4 +1,4 @@
-import { createHash } from 'node:crypto';
+import { sha256Hex } from '../sha256.js';
 import type { Actor } from './audit.js';
 import { parse, type StoreContext } from './context.js';
 import { NotFoundError } from './errors.js';
@@ -71,9 +71,7 @@ interface TestRow {
   last_failure: string | null;
 }
 
-export function sha256Hex(bytes: Uint8Array): string {
-  return createHash('sha256').update(bytes).digest('hex');
-}
+export { sha256Hex };
 
 function toTest(r: TestRow): DrainTest {
   return {

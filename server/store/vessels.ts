@@ -1,40 +1,12 @@
+import type { Outlet, Vessel } from '../core/stored-vessel.js';
 import type { Actor } from './audit.js';
 import { json, parse, type StoreContext } from './context.js';
 import { ConflictError, NotFoundError } from './errors.js';
 
-export interface Outlet {
-  id: number;
-  key: string;
-  type: string | null;
-  boreM: number | null;
-  boreToleranceM: number | null;
-  elevationM: number | null;
-  actionThreshold: number | null;
-  spec: Record<string, unknown>;
-  retiredAt: string | null;
-}
-
-export interface Vessel {
-  id: number;
-  site: string;
-  name: string;
-  revision: number;
-  spec: Record<string, unknown>;
-  outlets: Outlet[];
-  createdAt: string;
-  updatedAt: string;
-}
+export type { Outlet, Vessel };
 
 /** The columns this store reads out of a vessel file; the file itself is kept whole in `spec`. */
-interface OutletInput {
-  key: string;
-  type: string | null;
-  boreM: number | null;
-  boreToleranceM: number | null;
-  elevationM: number | null;
-  actionThreshold: number | null;
-  spec: Record<string, unknown>;
-}
+type OutletInput = Omit<Outlet, 'id' | 'retiredAt'>;
 
 const DEFAULT_SITE = 'main';
 

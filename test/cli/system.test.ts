@@ -1,5 +1,6 @@
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { jointFitResult } from '../../server/core/fit-result/schema.js';
 import { describe, expect, it } from 'vitest';
 import { efflux, root } from './run-cli.js';
 
@@ -28,7 +29,14 @@ describe('efflux fit-system, steady, linearize', () => {
         expect(a.ci95[0]).toBeLessThanOrEqual(v.effectiveAreaM2);
         expect(a.ci95[1]).toBeGreaterThanOrEqual(v.effectiveAreaM2);
       }
-      expect(out.correlation.names.length).toBe(out.correlation.matrix.length);
+      expect(out.correlations.parameters.length).toBe(out.correlations.matrix.length);
+      // the one fit-result shape (core/fit-result/schema.ts), as for a single vessel
+      const parsed = jointFitResult.safeParse(out);
+      expect(parsed.success, JSON.stringify(parsed.error?.issues.slice(0, 3))).toBe(true);
+      const area = out.parameters.find((p: { name: string }) => p.name.endsWith('.effectiveAreaM2'));
+      expect(area).toMatchObject({ unit: 'm²', free: true, bounds: { lower: 0, upper: null } });
+      expect(area.start).toBeGreaterThan(0);
+      expect(out.solver.converged).toBe(true);
     }, 30_000);
   }
 

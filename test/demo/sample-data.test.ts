@@ -38,8 +38,8 @@ describe('sample-data: the invented scenario', () => {
       expect(fit.converged).toBe(true);
       const cd = fit.dischargeCoefficient!;
       expect(Math.abs(cd.value / t.truth.dischargeCoefficient - 1)).toBeLessThan(0.005);
-      expect(cd.ci95[0]).toBeLessThanOrEqual(t.truth.dischargeCoefficient);
-      expect(cd.ci95[1]).toBeGreaterThanOrEqual(t.truth.dischargeCoefficient);
+      expect(cd.ci95![0]).toBeLessThanOrEqual(t.truth.dischargeCoefficient);
+      expect(cd.ci95![1]).toBeGreaterThanOrEqual(t.truth.dischargeCoefficient);
     });
   }
 });

@@ -29,8 +29,19 @@ export function analyzeDrainTest(req: AnalysisRequest): AnalysisOutcome {
       window: { startS: 0, endS: rows - 1, samples: rows },
       warnings: [],
       timing: { parseMs: 0, fitMs: 0 },
+      ...fakeDiagnostics(4e-4, 1e-5, rows),
       window_setting: req.settings.window ?? null,
     },
+  };
+}
+
+/** The members every fit result has (core/fit-result/schema.ts), for a fake Cd·a ± u. */
+export function fakeDiagnostics(cda: number, u: number, samples: number) {
+  return {
+    parameters: [{ name: 'effectiveAreaM2', unit: 'm²', free: true, value: cda, standardUncertainty: u, ci95: [cda - 2 * u, cda + 2 * u] as [number, number], start: cda }],
+    correlations: { parameters: ['effectiveAreaM2'], matrix: [[1]] },
+    solver: { method: 'fake', stopReason: 'fake', converged: true, iterations: 0 },
+    residuals: { samples, rmseM: 0, maxAbsM: 0, lag1Autocorrelation: null, durbinWatson: null },
   };
 }
 

@@ -1,3 +1,4 @@
+import { fakeDiagnostics } from './fake-analyze.js';
 /**
  * A stand-in analysis for the trend tests: the log's first line states the result,
  * "cda=<m²>,u=<m²>", so a test sets each month's Cd·a exactly. Cd = Cd·a / (π·0.03²/4).
@@ -23,6 +24,7 @@ export async function trendAnalyze(req: AnalysisRequest): Promise<AnalysisOutcom
       window: { startS: 0, endS: 1, samples: 2 },
       warnings: [],
       timing: { parseMs: 0, fitMs: 0 },
+      ...fakeDiagnostics(cda, u, 2),
     },
   };
 }

@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../server/core/errors.js';
 import { GOOD_LOG, multipart, testApp, VESSEL_FILE, type TestApp } from './helpers.js';
-import { seededRandom } from '../../server/core/drain/prng.js';
+import { seededRandom } from '../../server/core/random/prng.js';
 
 const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 

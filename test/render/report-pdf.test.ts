@@ -3,6 +3,7 @@ import { createHash } from 'node:crypto';
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { sha256Hex } from '../../server/sha256.js';
 import { buildFitReport, buildOutletReport, reportJson, type FitReport } from '../../server/core/report/index.js';
 import { renderFitReportPdf } from '../../server/render/fit-report-pdf.js';
 import { renderOutletReportPdf } from '../../server/render/outlet-report-pdf.js';
@@ -25,7 +26,7 @@ beforeAll(async () => {
     { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' },
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T08:15:00Z' },
   ]);
-  report = buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE);
+  report = buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex);
   pdf = await renderFitReportPdf(report);
   mkdirSync(out, { recursive: true });
 }, 60_000);
@@ -41,7 +42,7 @@ describe('fit report model', () => {
     expect(report.audit.some((a) => a.action === 'fit.approve')).toBe(true);
     expect(report.issuedAt).toBe(report.review!.at);
     // the same records give the same id
-    expect(buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE).reportId).toBe(report.reportId);
+    expect(buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex).reportId).toBe(report.reportId);
   });
 });
 
@@ -91,12 +92,12 @@ describe('outlet history report', () => {
   it('trends the approved fits and renders deterministically with the threshold', async () => {
     const records = outletReportRecords(fx.store, fx.outletId);
     expect(records.fits.map((f) => f.fitId)).toEqual(fx.fitIds);
-    const r = buildOutletReport(records, SOFTWARE);
+    const r = buildOutletReport(records, SOFTWARE, sha256Hex);
     expect(r.asOf).toBe(new Date(Math.max(...records.fits.map((f) => Date.parse(f.review.at)))).toISOString());
     expect(r.trend.epochs[0].series.map((p) => p.fitId)).toEqual(fx.fitIds.map(String));
     expect(r.actionThresholdPct).toBe(-10); // the demo vessel names no threshold: the default
     const a = await renderOutletReportPdf(r);
-    const b = await renderOutletReportPdf(buildOutletReport(outletReportRecords(fx.store, fx.outletId), SOFTWARE));
+    const b = await renderOutletReportPdf(buildOutletReport(outletReportRecords(fx.store, fx.outletId), SOFTWARE, sha256Hex));
     expect(sha(b)).toBe(sha(a));
     const file = join(out, 'outlet-report.pdf');
     writeFileSync(file, a);

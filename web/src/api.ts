@@ -55,29 +55,7 @@ export interface User {
   name: string;
   role: Role;
 }
-export interface Outlet {
-  id: number;
-  key: string;
-  type: string | null;
-  boreM: number | null;
-  boreToleranceM: number | null;
-  elevationM: number | null;
-  actionThreshold: number | null;
-  spec: Record<string, unknown>;
-  retiredAt: string | null;
-  [more: string]: unknown;
-}
-export interface Vessel {
-  id: number;
-  site: string;
-  name: string;
-  revision: number;
-  spec: Record<string, unknown>;
-  outlets: Outlet[];
-  createdAt: string;
-  updatedAt: string;
-  [more: string]: unknown;
-}
+export type { Outlet, Vessel } from '../../server/core/stored-vessel.js';
 export interface DrainTest {
   id: number;
   vesselId: number;
@@ -128,35 +106,11 @@ export interface Settings {
   fitDatum?: boolean;
   fitExponent?: boolean;
 }
-export interface Estimate {
-  value: number;
-  standardUncertainty: number;
-  ci95: [number, number];
-  coverageFactor?: number;
-  expandedUncertainty?: number;
-  effectiveDegreesOfFreedom?: number;
-}
-export interface Note {
-  code: string;
-  message: string;
-  stage?: string;
-}
-export interface FitResult {
-  converged: boolean;
-  dischargeCoefficient: Estimate | null;
-  effectiveAreaM2: Estimate;
-  window: { startS: number; endS: number; samples: number; startTime?: string | null; endTime?: string | null; chosenBy?: string; trims?: { what: string; fromS: number; toS: number; reason: string }[]; notes?: Note[] };
-  warnings: Note[];
-  parameters?: { name: string; unit: string; free: boolean; value: number; standardUncertainty: number | null; ci95?: [number, number] | null; atBound?: boolean }[];
-  correlations?: { parameters: string[]; matrix: number[][] };
-  residuals?: { samples: number; rmseM: number; maxAbsM: number; lag1Autocorrelation: number; durbinWatson: number };
-  modelComparison?: { chosen: { model: string; parameters: number; sumSquares: number; aic: number }; rows: { term: string; change: string; model: string; parameters: number; deltaAic: number | null; fTest?: { f: number; pValue: number } | null; converged?: boolean }[]; basis?: string };
-  headBands?: { headFromM: number; headToM: number; samples: number; dischargeCoefficient: number; standardUncertainty: number }[];
-  read?: { t0: string | null; samples: number; columns?: unknown[]; notes?: Note[] };
-  model?: { description?: string; equation?: string };
-  plot?: { log: { timeS: number[]; levelM: number[] }; window: { offsetS: number; timeS: number[]; observedM: number[]; fittedM: number[] } };
-  [more: string]: unknown;
-}
+// The fit result: the one shape (server/core/fit-result/schema.ts), type-only
+export type { SingleFitResult as FitResult, FitParameter } from '../../server/core/fit-result/schema.js';
+import type { SingleFitResult as FitResult } from '../../server/core/fit-result/schema.js';
+export type Estimate = FitResult['effectiveAreaM2'];
+export type Note = FitResult['warnings'][number];
 export interface Series {
   t0: string | null;
   timeS: number[];
@@ -180,19 +134,8 @@ export const canUpload = (u: User) => u.role === 'technician' || u.role === 'eng
 export const canReview = (u: User) => u.role === 'engineer' || u.role === 'admin';
 export const seesMaintenance = (u: User) => u.role !== 'technician';
 
-/** The trend work's answers (server/http/routes/trend-schemas.ts), the fields this page reads. */
-export interface FleetStatusItem {
-  outletId: number;
-  status: string;
-  reason: string;
-  daysToThreshold: number | null;
-  latestChangePct: number | null;
-}
-export interface OutletTrend {
-  status: { status: string; reason: string; daysToThreshold: number | null };
-  threshold: { pct: number; fraction: number | null; source: string };
-  epochs: { current: boolean; thresholdCd: number | null; cd: { baselineValue: number } | null; series: { isBaseline: boolean; dischargeCoefficient: number }[] }[];
-}
+/** The trend answers (server/jobs/trend-views.ts, type-only). */
+export type { FleetItem as FleetStatusItem, TrendView as OutletTrend } from '../../server/jobs/trend-views.js';
 
 /** GET that answers null when the route is absent (404 from the router, not from a missing record). */
 export async function optional<T>(url: string): Promise<T | null> {

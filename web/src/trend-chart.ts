@@ -8,46 +8,9 @@
 import uPlot from 'uplot';
 import { COLOURS } from './charts.js';
 
-export interface TrendPoint {
-  fitId: number;
-  testedAt: string;
-  testedAtMs: number;
-  effectiveAreaM2: number;
-  effectiveAreaU: number;
-  dischargeCoefficient: number;
-  dischargeCoefficientU: number;
-  changePct: number;
-  isBaseline: boolean;
-}
-export interface TrendLine {
-  baselineValue: number;
-  slopePctPerYear: number;
-  slopePctPerYearU: number;
-  n: number;
-}
-export interface TrendEpoch {
-  index: number;
-  current: boolean;
-  startedBy: { kind: string; at: string; atMs: number; note: string | null } | null;
-  startMs: number | null;
-  series: TrendPoint[];
-  area: TrendLine | null;
-  cd: TrendLine | null;
-  areaBand: { atMs: number; value: number; lower: number; upper: number }[];
-  cdBand: { atMs: number; value: number; lower: number; upper: number }[];
-  thresholdM2: number | null;
-  thresholdCd: number | null;
-  forecast: { status: string; thresholdValue: number; crossingAt: string | null; crossingMs: number | null; lowerMs: number | null; upperMs: number | null; daysFromNow: number | null; reason: string } | null;
-  step: { flagged: boolean; fitId: number | null; direction: 'drop' | 'rise' | null; reason: string } | null;
-}
-export interface FullTrend {
-  outlet: { id: number; key: string };
-  nowMs: number;
-  threshold: { pct: number; fraction: number | null; source: string };
-  status: { status: string; reason: string; daysToThreshold: number | null; crossingAt: string | null };
-  epochs: TrendEpoch[];
-  skipped: { fitId: number; why: string }[];
-}
+// The API's shapes, defined once in server/jobs/trend-views.ts (type-only: erased by the bundler)
+export type { PointView as TrendPoint, LineView as TrendLine, EpochView as TrendEpoch, TrendView as FullTrend } from '../../server/jobs/trend-views.js';
+import type { PointView as TrendPoint, EpochView as TrendEpoch, TrendView as FullTrend } from '../../server/jobs/trend-views.js';
 
 export type TrendQuantity = 'area' | 'cd';
 

@@ -7,6 +7,7 @@ import { describeLog } from '../ingest/describe.js';
 import { THETA, type DrainSetting } from '../drain/parameters.js';
 import { predictReadings } from '../drain/predict.js';
 import { fitDrain, type DrainFitResult } from '../fit/fit-drain.js';
+import { boundsFor } from '../fit/terms.js';
 import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
@@ -162,6 +163,10 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const k = free.length;
   const matrix = free.map((_, i) => free.map((__, j) => unc.correlations[i * k + j]));
   const nominal = fit.nominalAreaM2;
+  // the box the solver kept to, per free parameter (a fixed one is pinned at its value)
+  const freeIndex = Array.from(fit.variant.free);
+  const solverBounds = boundsFor(fit.variant.free);
+  const bound = (x: number) => (Number.isFinite(x) ? x : null);
 
   // drawing data: the whole log, and the window with the fitted curve
   const logPlot = decimateForDrawing(series.timeS, series.levelM, 600);
@@ -175,7 +180,8 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
   ];
   const excluded = w.samples - data.timeS.length;
-  const json: FitJson = {
+  // built loosely, then read back through JSON (no NaN) as the one fit-result shape
+  const json = {
     engineVersion: ENGINE_VERSION,
     converged: fit.solver.converged,
     dischargeCoefficient: {
@@ -188,7 +194,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       effectiveDegreesOfFreedom: cd.effectiveDegreesOfFreedom,
       fitContribution: cd.fitContribution,
       boreContribution: cd.boreContribution,
-    } as FitJson['dischargeCoefficient'],
+    },
     effectiveAreaM2: {
       value: ea.value,
       standardUncertainty: ea.standardUncertainty,
@@ -198,7 +204,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       relativeStandardUncertainty: ea.relativeStandardUncertainty,
       effectiveDegreesOfFreedom: ea.effectiveDegreesOfFreedom,
       profileCi95: ea.profileCi95,
-    } as FitJson['effectiveAreaM2'],
+    },
     window: {
       startS: w.startS,
       endS: w.endS,
@@ -210,7 +216,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       chosenBy: p.choice.notes.some((n) => n.code === 'window-chosen-by-user') ? 'by the person' : 'automatically',
       trims: choice.trims,
       notes: choice.notes,
-    } as FitJson['window'],
+    },
     warnings,
     timing: { parseMs: 0, fitMs: 0 },
     vessel: { name: vessel.name, site: vessel.site ?? null, shape: vessel.shape, fluidDensityKgM3: p.density.value, fluidDensitySource: p.density.source, gravityMS2: p.setting.gravity },
@@ -221,7 +227,11 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       terms: fit.variant.terms,
       solution: fit.variant.solution === 'closed-form' ? 'closed form (constant plan area)' : 'ODE with sensitivity equations (RK4, Hermite output)',
     },
-    parameters: fit.parameters.map((q) => ({ ...q, standardUncertainty: q.free ? q.standardUncertainty : null })),
+    parameters: fit.parameters.map((q, j) => {
+      const col = freeIndex.indexOf(j);
+      const bounds = col >= 0 ? { lower: bound(solverBounds.lower[col]), upper: bound(solverBounds.upper[col]) } : { lower: q.value, upper: q.value };
+      return { ...q, standardUncertainty: q.free ? q.standardUncertainty : null, bounds };
+    }),
     correlations: { parameters: free, matrix },
     residuals: fit.residuals,
     uncertaintyMethod: {

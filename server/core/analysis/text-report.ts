@@ -1,4 +1,5 @@
 import type { FitJson } from '../analysis-contract.js';
+import { correlationLines, pad, parameterLines, SAFETY_LINES, solverLine, warningLines } from '../fit-result/text.js';
 import { sig, toU } from './format.js';
 
 /**
@@ -7,7 +8,6 @@ import { sig, toU } from './format.js';
  */
 type Quantity = { value: number; standardUncertainty: number; ci95: [number, number]; coverageFactor?: number; expandedUncertainty?: number; effectiveDegreesOfFreedom?: number };
 
-const pad = (s: string, w: number) => (s.length >= w ? s : s + ' '.repeat(w - s.length));
 
 export function textReport(fit: FitJson): string {
   const f = fit as FitJson & Record<string, any>;
@@ -33,22 +33,8 @@ export function textReport(fit: FitJson): string {
   lines.push(`Model    ${f.model?.equation ?? ''}`);
   lines.push(`         free: ${f.model?.description ?? ''}; solution: ${f.model?.solution ?? ''}`);
   lines.push('');
-  lines.push('Parameters');
-  lines.push(`  ${pad('name', 22)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 30)}unit`);
-  for (const p of (f.parameters ?? []) as any[]) {
-    const ci = p.ci95 ? `${toU(p.ci95[0], p.standardUncertainty)} … ${toU(p.ci95[1], p.standardUncertainty)}` : 'fixed';
-    lines.push(`  ${pad(p.name, 22)}${pad(p.free ? toU(p.value, p.standardUncertainty) : sig(p.value, 6), 14)}${pad(p.free ? sig(p.standardUncertainty, 2) : '—', 12)}${pad(ci, 30)}${p.unit}${p.atBound ? '  (at bound)' : ''}`);
-  }
-  const corr = f.correlations as { parameters: string[]; matrix: number[][] } | undefined;
-  if (corr && corr.parameters.length > 1) {
-    lines.push('');
-    lines.push('Correlations');
-    for (let i = 0; i < corr.parameters.length; i++) {
-      for (let j = i + 1; j < corr.parameters.length; j++) {
-        lines.push(`  ${pad(`${corr.parameters[i]} ~ ${corr.parameters[j]}`, 46)}${corr.matrix[i][j].toFixed(4)}`);
-      }
-    }
-  }
+  lines.push(...parameterLines(f.parameters ?? []));
+  lines.push(...correlationLines(f.correlations));
   const r = f.residuals;
   const um = f.uncertaintyMethod;
   lines.push('');
@@ -72,17 +58,12 @@ export function textReport(fit: FitJson): string {
     lines.push('Cd by head band (u: standard uncertainty of the band\'s fit, AR(1)-corrected like the whole fit; bore tolerance not included, so bands compare with each other)');
     for (const b of bands) lines.push(`  head ${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)} m: Cd = ${toU(b.dischargeCoefficient, b.standardUncertainty)}   u = ${sig(b.standardUncertainty, 2)} (${b.samples} samples)`);
   }
-  const s = f.solver;
   lines.push('');
-  lines.push(`Solver   ${s?.method}: ${s?.stopReason}, ${s?.iterations} iterations, ${s?.evaluations} evaluations, rank ${s?.rank}; converged: ${f.converged ? 'yes' : 'NO'}`);
+  lines.push(solverLine(f.solver, f.converged));
   lines.push('');
-  if (f.warnings.length) {
-    lines.push('Warnings');
-    for (const wn of f.warnings) lines.push(`  ! ${wn.message}`);
-  } else lines.push('Warnings: none');
+  lines.push(...warningLines(f.warnings));
   lines.push(rule);
-  lines.push('Engineering estimate with the stated uncertainty, not a certification. Drain tests involve work at');
-  lines.push('height, confined spaces and discharges: follow site procedures, local codes and licensed engineering practice.');
+  lines.push(...SAFETY_LINES);
   return lines.join('\n') + '\n';
 }
 

@@ -1,6 +1,6 @@
 import { odeReadings } from './ode.js';
 import { THETA, THETA_SIZE, type DrainSetting } from './parameters.js';
-import { seededRandom } from './prng.js';
+import { seededRandom } from '../random/prng.js';
 
 /**
  * A simulated drain test with known truth: hold at the filled level, open the valve (a short

@@ -24,11 +24,15 @@ export interface DateTimeParts {
   meridiem: number;
   /** Offset east of UTC in minutes, NaN when the text gives none. */
   offsetMin: number;
+  /** Scanner cursor and the digit count of the last number read: kept in the caller's parts
+   * object (reused per cell) rather than in module state, so scans share nothing. */
+  pos: number;
+  digits: number;
 }
 
 export function newParts(): DateTimeParts {
   return { hasDate: false, hasTime: false, yearFirst: false, n1: 0, n2: 0, n3: 0, n3Digits: 0,
-    hour: 0, minute: 0, second: 0, ms: 0, meridiem: 0, offsetMin: NaN };
+    hour: 0, minute: 0, second: 0, ms: 0, meridiem: 0, offsetMin: NaN, pos: 0, digits: 0 };
 }
 
 const D0 = 48, D9 = 57, COLON = 58, SPACE = 32;
@@ -37,89 +41,84 @@ function isDigit(c: number): boolean {
   return c >= D0 && c <= D9;
 }
 
-// Cursor of the scanner below; module-local to avoid an object per cell. Each scan sets it
-// before use, so no result depends on a previous call.
-let pos = 0;
-
-function digitsAt(s: string, b: number, max: number): number {
+function digitsAt(s: string, b: number, max: number, p: DateTimeParts): number {
   let v = 0, n = 0;
-  while (pos < b && n < max && isDigit(s.charCodeAt(pos))) {
-    v = v * 10 + (s.charCodeAt(pos) - D0);
-    pos++;
+  while (p.pos < b && n < max && isDigit(s.charCodeAt(p.pos))) {
+    v = v * 10 + (s.charCodeAt(p.pos) - D0);
+    p.pos++;
     n++;
   }
-  lastDigits = n;
+  p.digits = n;
   return v;
 }
-let lastDigits = 0;
 
-function skipSpaces(s: string, b: number): void {
-  while (pos < b && (s.charCodeAt(pos) === SPACE || s.charCodeAt(pos) === 9)) pos++;
+function skipSpaces(s: string, b: number, p: DateTimeParts): void {
+  while (p.pos < b && (s.charCodeAt(p.pos) === SPACE || s.charCodeAt(p.pos) === 9)) p.pos++;
 }
 
 /** Split s[a, b) into date and time numbers; false when it is not a date/time at all. */
 export function scanDateTime(s: string, a: number, b: number, p: DateTimeParts): boolean {
-  pos = a;
-  skipSpaces(s, b);
-  while (b > pos && (s.charCodeAt(b - 1) === SPACE || s.charCodeAt(b - 1) === 9)) b--;
+  p.pos = a;
+  skipSpaces(s, b, p);
+  while (b > p.pos && (s.charCodeAt(b - 1) === SPACE || s.charCodeAt(b - 1) === 9)) b--;
   p.hasDate = p.hasTime = p.yearFirst = false;
   p.hour = p.minute = p.second = p.ms = p.meridiem = 0;
   p.offsetMin = NaN;
-  const start = pos;
-  const first = digitsAt(s, b, 4);
-  const d1 = lastDigits;
-  if (d1 === 0 || pos >= b) return false;
-  const sep = s.charCodeAt(pos);
+  const start = p.pos;
+  const first = digitsAt(s, b, 4, p);
+  const d1 = p.digits;
+  if (d1 === 0 || p.pos >= b) return false;
+  const sep = s.charCodeAt(p.pos);
   if (sep === 45 || sep === 47 || sep === 46) {
     // - / .
-    pos++;
-    const second = digitsAt(s, b, 2);
-    if (lastDigits === 0 || pos >= b || s.charCodeAt(pos) !== sep) return false;
-    pos++;
-    const third = digitsAt(s, b, 4);
-    if (lastDigits === 0) return false;
+    p.pos++;
+    const second = digitsAt(s, b, 2, p);
+    if (p.digits === 0 || p.pos >= b || s.charCodeAt(p.pos) !== sep) return false;
+    p.pos++;
+    const third = digitsAt(s, b, 4, p);
+    if (p.digits === 0) return false;
     p.hasDate = true;
     p.yearFirst = d1 === 4;
     p.n1 = first;
     p.n2 = second;
     p.n3 = third;
-    p.n3Digits = lastDigits;
-    if (p.yearFirst ? lastDigits > 2 : lastDigits === 3) return false;
-    if (pos >= b) return true;
-    const c = s.charCodeAt(pos);
-    if (c === 84 || c === 116) pos++; // T
+    p.n3Digits = p.digits;
+    if (p.yearFirst ? p.digits > 2 : p.digits === 3) return false;
+    if (p.pos >= b) return true;
+    const c = s.charCodeAt(p.pos);
+    if (c === 84 || c === 116) p.pos++; // T
     else if (c === SPACE || c === 9 || c === 44) {
-      pos++;
-      skipSpaces(s, b);
+      p.pos++;
+      skipSpaces(s, b, p);
     } else return false;
-    if (pos >= b) return false;
+    if (p.pos >= b) return false;
     return scanClock(s, b, p);
   }
   if (sep === COLON && d1 <= 2) {
-    pos = start;
+    p.pos = start;
     return scanClock(s, b, p);
   }
   return false;
 }
 
 function scanClock(s: string, b: number, p: DateTimeParts): boolean {
-  p.hour = digitsAt(s, b, 2);
-  if (lastDigits === 0 || pos >= b || s.charCodeAt(pos) !== COLON) return false;
-  pos++;
-  p.minute = digitsAt(s, b, 2);
-  if (lastDigits !== 2) return false;
-  if (pos < b && s.charCodeAt(pos) === COLON) {
-    pos++;
-    p.second = digitsAt(s, b, 2);
-    if (lastDigits !== 2) return false;
-    const c = s.charCodeAt(pos);
-    if (pos < b && (c === 46 || c === 44)) {
-      pos++;
+  p.hour = digitsAt(s, b, 2, p);
+  if (p.digits === 0 || p.pos >= b || s.charCodeAt(p.pos) !== COLON) return false;
+  p.pos++;
+  p.minute = digitsAt(s, b, 2, p);
+  if (p.digits !== 2) return false;
+  if (p.pos < b && s.charCodeAt(p.pos) === COLON) {
+    p.pos++;
+    p.second = digitsAt(s, b, 2, p);
+    if (p.digits !== 2) return false;
+    const c = s.charCodeAt(p.pos);
+    if (p.pos < b && (c === 46 || c === 44)) {
+      p.pos++;
       let scale = 100, ms = 0, n = 0;
-      while (pos < b && isDigit(s.charCodeAt(pos))) {
-        ms += (s.charCodeAt(pos) - D0) * scale;
+      while (p.pos < b && isDigit(s.charCodeAt(p.pos))) {
+        ms += (s.charCodeAt(p.pos) - D0) * scale;
         scale /= 10;
-        pos++;
+        p.pos++;
         n++;
       }
       if (n === 0) return false;
@@ -127,56 +126,56 @@ function scanClock(s: string, b: number, p: DateTimeParts): boolean {
     }
   }
   p.hasTime = true;
-  skipSpaces(s, b);
-  if (pos >= b) return true;
-  const c = s.charCodeAt(pos) | 32; // lower case
-  if ((c === 97 || c === 112) && pos + 1 < b) {
+  skipSpaces(s, b, p);
+  if (p.pos >= b) return true;
+  const c = s.charCodeAt(p.pos) | 32; // lower case
+  if ((c === 97 || c === 112) && p.pos + 1 < b) {
     // a / p, then m or .m.
     const pm = c === 112;
-    let q = pos + 1;
+    let q = p.pos + 1;
     if (s.charCodeAt(q) === 46) q++;
     if (q < b && (s.charCodeAt(q) | 32) === 109) {
       q++;
       if (q < b && s.charCodeAt(q) === 46) q++;
       p.meridiem = pm ? 2 : 1;
-      pos = q;
-      skipSpaces(s, b);
-      if (pos >= b) return true;
+      p.pos = q;
+      skipSpaces(s, b, p);
+      if (p.pos >= b) return true;
     }
   }
   return scanOffset(s, b, p);
 }
 
 function scanOffset(s: string, b: number, p: DateTimeParts): boolean {
-  let c = s.charCodeAt(pos);
+  let c = s.charCodeAt(p.pos);
   if (c === 90 || c === 122) {
     // Z
     p.offsetMin = 0;
-    pos++;
-    return pos === b;
+    p.pos++;
+    return p.pos === b;
   }
   if ((c | 32) === 117 || (c | 32) === 103) {
     // "UTC" or "GMT", optionally followed by an offset
-    const word = s.slice(pos, pos + 3).toUpperCase();
+    const word = s.slice(p.pos, p.pos + 3).toUpperCase();
     if (word !== 'UTC' && word !== 'GMT') return false;
-    pos += 3;
+    p.pos += 3;
     p.offsetMin = 0;
-    skipSpaces(s, b);
-    if (pos >= b) return true;
-    c = s.charCodeAt(pos);
+    skipSpaces(s, b, p);
+    if (p.pos >= b) return true;
+    c = s.charCodeAt(p.pos);
   }
   if (c !== 43 && c !== 45 && c !== 0x2212) return false;
   const sign = c === 43 ? 1 : -1;
-  pos++;
-  const hh = digitsAt(s, b, 2);
-  if (lastDigits !== 2) return false;
+  p.pos++;
+  const hh = digitsAt(s, b, 2, p);
+  if (p.digits !== 2) return false;
   let mm = 0;
-  if (pos < b && s.charCodeAt(pos) === COLON) pos++;
-  if (pos < b) {
-    mm = digitsAt(s, b, 2);
-    if (lastDigits !== 2) return false;
+  if (p.pos < b && s.charCodeAt(p.pos) === COLON) p.pos++;
+  if (p.pos < b) {
+    mm = digitsAt(s, b, 2, p);
+    if (p.digits !== 2) return false;
   }
-  if (pos !== b || hh > 18 || mm > 59) return false;
+  if (p.pos !== b || hh > 18 || mm > 59) return false;
   p.offsetMin = sign * (hh * 60 + mm);
   return true;
 }

@@ -1,4 +1,6 @@
 /**
+ * Hand-written fast path: parseFloat needs a substring per cell; this one reads the offsets and falls back to it.
+ *
  * Decimal numbers read straight from the text, without slicing a substring per cell.
  * Up to 15 significant digits and a power of ten up to 22 the result is one correctly
  * rounded division or multiplication of exact doubles (the classic fast path), so it equals

@@ -22,7 +22,27 @@ export function covarianceFromR(R: Float64Array, n: number, ipvt: Int32Array, m:
     for (let j = 0; j < n; j++) row[j] = R[j * n + i];
     rows.push(row);
   }
-  const svd = new SingularValueDecomposition(new Matrix(rows), {
+  return pseudoInverse(new Matrix(rows), n, m, ipvt, null);
+}
+
+/**
+ * (JᵀW·J)⁻¹ straight from the SVD of a row-major m×n Jacobian whose row r is weighted by
+ * rowWeight[r] (W = diag(rowWeight²)), as the joint fit needs (per-log AR(1) factors). The columns
+ * are equilibrated first so parameters of very different size (m² and m) keep their digits.
+ */
+export function covarianceFromJacobian(J: Float64Array, m: number, n: number, rowWeight: Float64Array): CovarianceFromR {
+  const scale = new Float64Array(n);
+  for (let r = 0; r < m; r++) for (let j = 0; j < n; j++) scale[j] += (J[r * n + j] * rowWeight[r]) ** 2;
+  for (let j = 0; j < n; j++) scale[j] = scale[j] > 0 ? Math.sqrt(scale[j]) : 1;
+  const a = new Matrix(m, n);
+  for (let r = 0; r < m; r++) for (let j = 0; j < n; j++) a.set(r, j, (J[r * n + j] * rowWeight[r]) / scale[j]);
+  const identity = Int32Array.from({ length: n }, (_, j) => j);
+  return pseudoInverse(a, n, m, identity, scale);
+}
+
+/** Pseudo-inverse of AᵀA from A's SVD; entry (a, b) goes to (perm[a], perm[b]), divided by colScale[a]·colScale[b]. */
+function pseudoInverse(a: Matrix, n: number, m: number, perm: Int32Array, colScale: Float64Array | null): CovarianceFromR {
+  const svd = new SingularValueDecomposition(a, {
     computeLeftSingularVectors: false,
     computeRightSingularVectors: true,
     autoTranspose: false,
@@ -30,7 +50,7 @@ export function covarianceFromR(R: Float64Array, n: number, ipvt: Int32Array, m:
   const sigma = svd.diagonal;
   const V = svd.rightSingularVectors;
   // ml-matrix returns them in descending order; sort defensively with the vectors.
-  const order = sigma.map((_, k) => k).sort((a, b) => sigma[b] - sigma[a]);
+  const order = sigma.map((_, k) => k).sort((x, y) => sigma[y] - sigma[x]);
   const singularValues = new Float64Array(n);
   for (let k = 0; k < n; k++) singularValues[k] = Math.abs(sigma[order[k]]);
   const smax = n > 0 ? singularValues[0] : 0;
@@ -39,15 +59,15 @@ export function covarianceFromR(R: Float64Array, n: number, ipvt: Int32Array, m:
   for (let k = 0; k < n; k++) if (singularValues[k] > threshold) rank++;
 
   const cov = new Float64Array(n * n);
-  for (let a = 0; a < n; a++) {
-    for (let b = 0; b < n; b++) {
+  for (let x = 0; x < n; x++) {
+    for (let y = 0; y < n; y++) {
       let s = 0;
       for (let t = 0; t < rank; t++) {
         const k = order[t];
         const inv = 1 / (singularValues[t] * singularValues[t]);
-        s += V.get(a, k) * V.get(b, k) * inv;
+        s += V.get(x, k) * V.get(y, k) * inv;
       }
-      cov[ipvt[a] * n + ipvt[b]] = s;
+      cov[perm[x] * n + perm[y]] = colScale ? s / (colScale[x] * colScale[y]) : s;
     }
   }
   return { unscaledCovariance: cov, singularValues, rank };

@@ -1,4 +1,6 @@
 /**
+ * Hand-written: no maintained JS solver has bounds, a convergence reason and a covariance (ml-levenberg-marquardt: STACK-NOTES.md).
+ *
  * Trust-region Levenberg–Marquardt after MINPACK's lmder (Moré 1978), with box bounds.
  *
  * Each iteration factors the Jacobian by Householder QR with column pivoting, finds the

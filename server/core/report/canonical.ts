@@ -1,4 +1,6 @@
 /**
+ * Hand-written: the stored hashes depend on these exact rules, which no package promises to keep.
+ *
  * Canonical JSON: object keys sorted by code unit, no whitespace, undefined members dropped,
  * non-finite numbers written as null, numbers as JSON.stringify writes them (shortest round-trip
  * form). The same value gives the same text on every run, so a hash over it can be recomputed.

@@ -4,7 +4,7 @@
  * Pure; the JSON report is its canonical serialisation and the PDF is drawn from it.
  */
 import { InputError } from '../errors.js';
-import { withIdentity } from './identity.js';
+import { withIdentity, type Sha256Hex } from './identity.js';
 import type { FitReportRecords, RawFileRecord, SoftwareRecord } from './records.js';
 import { SCOPE_STATEMENT } from './statement.js';
 
@@ -113,8 +113,8 @@ function modelInWords(terms: Json | undefined, solution: string): string[] {
   ];
 }
 
-/** Builds the report for one fit. `software` comes from the shell (version and git commit). */
-export function buildFitReport(records: FitReportRecords, software: SoftwareRecord): FitReport {
+/** Builds the report for one fit. `software` and the hash come from the shell (version and git commit; node:crypto). */
+export function buildFitReport(records: FitReportRecords, software: SoftwareRecord, sha256Hex: Sha256Hex): FitReport {
   const { vessel, outlet, test, fit } = records;
   const r = fit.result as Json;
   if (!r || typeof r !== 'object' || !r.effectiveAreaM2) throw new InputError(`fit ${fit.id} has no result to report`, { field: 'result' });
@@ -255,5 +255,5 @@ export function buildFitReport(records: FitReportRecords, software: SoftwareReco
     },
     statement: [...SCOPE_STATEMENT],
   };
-  return withIdentity(body as unknown as Record<string, unknown>) as unknown as FitReport;
+  return withIdentity(body as unknown as Record<string, unknown>, sha256Hex) as unknown as FitReport;
 }

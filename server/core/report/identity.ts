@@ -1,11 +1,14 @@
 import { canonicalJson } from './canonical.js';
-import { sha256Hex } from './sha256.js';
+
+/** SHA-256 of a text as lower-case hex: injected by the shell (node:crypto), so core stays free
+ * of node: imports. */
+export type Sha256Hex = (text: string) => string;
 
 /**
  * A report's identity: the SHA-256 of its canonical JSON with the identity fields left out, and
  * the report id = the first 16 hex digits of that hash. The same records give the same id.
  */
-export function contentHash(body: Record<string, unknown>): string {
+export function contentHash(body: Record<string, unknown>, sha256Hex: Sha256Hex): string {
   const { reportId: _id, contentSha256: _h, ...rest } = body;
   return sha256Hex(canonicalJson(rest));
 }
@@ -15,9 +18,9 @@ export function reportIdOf(hash: string): string {
 }
 
 /** Fills in the identity fields and returns the object as it will read back from its JSON. */
-export function withIdentity<T extends Record<string, unknown>>(body: T): T & { reportId: string; contentSha256: string } {
+export function withIdentity<T extends Record<string, unknown>>(body: T, sha256Hex: Sha256Hex): T & { reportId: string; contentSha256: string } {
   const normal = JSON.parse(canonicalJson(body)) as T;
-  const hash = contentHash(normal);
+  const hash = contentHash(normal, sha256Hex);
   return { ...normal, reportId: reportIdOf(hash), contentSha256: hash };
 }
 

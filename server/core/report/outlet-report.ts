@@ -4,7 +4,7 @@
  */
 import { InputError } from '../errors.js';
 import { outletTrend, type ApprovedFit, type MaintenanceEvent, type OutletTrend } from '../trend/index.js';
-import { withIdentity } from './identity.js';
+import { withIdentity, type Sha256Hex } from './identity.js';
 import type { OutletReportRecords, SoftwareRecord } from './records.js';
 import { REPORT_FORMAT_VERSION } from './fit-report.js';
 import { SCOPE_STATEMENT } from './statement.js';
@@ -65,7 +65,7 @@ export function latestRecordTime(records: OutletReportRecords): string | null {
   return best;
 }
 
-export function buildOutletReport(records: OutletReportRecords, software: SoftwareRecord, asOf?: string): OutletReport {
+export function buildOutletReport(records: OutletReportRecords, software: SoftwareRecord, sha256Hex: Sha256Hex, asOf?: string): OutletReport {
   const { vessel, outlet } = records;
   if (records.fits.length === 0) throw new InputError(`outlet ${outlet.id} has no approved fits to report`, { field: 'outletId' });
   const at = asOf ?? latestRecordTime(records)!;
@@ -119,5 +119,5 @@ export function buildOutletReport(records: OutletReportRecords, software: Softwa
     trend: outletTrend(trendFits, trendEvents, { actionThresholdPct: pct }, nowMs),
     statement: [...SCOPE_STATEMENT],
   };
-  return withIdentity(body) as unknown as OutletReport;
+  return withIdentity(body, sha256Hex) as unknown as OutletReport;
 }

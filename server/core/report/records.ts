@@ -3,6 +3,7 @@
  * store (server/render/report-records.ts); the core never sees the database.
  */
 import type { FitJson } from '../analysis-contract.js';
+import type { Outlet } from '../stored-vessel.js';
 
 export interface RawFileRecord {
   fileName: string;
@@ -19,17 +20,8 @@ export interface VesselRecord {
   spec: Record<string, unknown>;
 }
 
-export interface OutletRecord {
-  id: number;
-  key: string;
-  type: string | null;
-  boreM: number | null;
-  boreToleranceM: number | null;
-  elevationM: number | null;
-  /** Fraction of the baseline Cd·a at which action is due (0 < x ≤ 1), or null. */
-  actionThreshold: number | null;
-  retiredAt: string | null;
-}
+/** The outlet (core/stored-vessel.ts) without its part of the vessel file. */
+export type OutletRecord = Omit<Outlet, 'spec'>;
 
 export interface TestRecord {
   id: number;

@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import type { JointFitResult } from '../fit-result/schema.js';
+import { ENGINE_VERSION } from '../version.js';
 import { InputError } from '../errors.js';
 import { describeIssue } from '../vessel/issues.js';
 import type { Alignment } from './align.js';
@@ -23,20 +25,50 @@ export interface InflowLogUse {
   warnings: string[];
 }
 
-export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment, inflowLogs: readonly InflowLogUse[] = []) {
+const UNITS = ['m²', 'm', 'm', 'm³/s'];
+const bound = (x: number) => (Number.isFinite(x) ? x : null);
+
+/** The joint fit in the one fit-result shape (core/fit-result/schema.ts: jointFitResult). */
+export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment, inflowLogs: readonly InflowLogUse[] = []): JointFitResult {
   const k = fit.free.length;
   const rows = (a: Float64Array) => Array.from({ length: k }, (_, i) => Array.from(a.subarray(i * k, i * k + k)));
-  return {
+  const { solve } = fit;
+  const json: JointFitResult = {
     format: SYSTEM_FIT_FORMAT,
-    version: 1,
+    version: 2,
+    engineVersion: ENGINE_VERSION,
     // the system in its file form, so it reads back through validateSystem
     system: { ...spec, inflows: spec.inflows.map((f) => ('log' in f ? f : { to: f.to, constant: f.constantM3S })) },
     converged: fit.converged,
-    stopReason: fit.stopReason,
-    iterations: fit.iterations,
-    outlets: fit.outlets,
-    parameters: fit.names.map((name, c) => ({ name, value: fit.theta[fit.free[c]], standardUncertainty: fit.standardUncertainties[c] })),
-    correlation: { names: fit.names, matrix: rows(fit.correlations) },
+    outlets: fit.outlets as unknown as JointFitResult['outlets'],
+    parameters: fit.names.map((name, c) => {
+      const value = fit.theta[fit.free[c]];
+      const u = fit.standardUncertainties[c];
+      return {
+        name,
+        unit: UNITS[fit.free[c] % PER_VESSEL],
+        free: true,
+        value,
+        standardUncertainty: u,
+        ci95: [value - fit.coverageFactor * u, value + fit.coverageFactor * u] as [number, number],
+        start: fit.start[c],
+        bounds: { lower: bound(fit.lower[c]), upper: bound(fit.upper[c]) },
+        atBound: value <= fit.lower[c] || value >= fit.upper[c],
+      };
+    }),
+    correlations: { parameters: fit.names, matrix: rows(fit.correlations) },
+    solver: {
+      method: 'trust-region Levenberg–Marquardt (Moré scaling, QR with column pivoting), Jacobian from the sensitivity equations; two passes (unweighted, then 1/σ per log)',
+      stopReason: solve.stopReason,
+      converged: solve.converged,
+      iterations: solve.iterations,
+      evaluations: solve.evaluations,
+      jacobianEvaluations: solve.jacobianEvaluations,
+      rank: solve.rank,
+      singularValues: Array.from(solve.singularValues),
+      sumSquares: solve.sumSquares,
+    },
+    residuals: fit.vessels.map((v) => ({ ...v })),
     covariance: rows(fit.covariance),
     theta: Array.from(fit.theta),
     free: Array.from(fit.free),
@@ -46,11 +78,16 @@ export function systemFitJson(spec: SystemSpec, fit: SystemFitResult, alignment:
       uncertaintyMethod:
         'each log weighted by 1/σ from a first unweighted pass; each log’s information divided by its AR(1) effective-sample-size factor (1+ρ)/(1−ρ); Student-t at Σ m_i/f_i − k degrees of freedom',
       alignment: { t0: alignment.t0EpochMs === null ? null : new Date(alignment.t0EpochMs).toISOString(), spanS: alignment.spanS, samples: 'each log at its own sample times' },
-      vessels: fit.vessels,
       inflowLogs: inflowLogs.map((f) => ({ to: f.to, file: f.file, unit: f.unit, samples: f.samples, interpolation: 'linear in time between readings' })),
     },
-    warnings: [...alignment.warnings, ...inflowLogs.flatMap((f) => f.warnings.map((w) => `inflow log ${f.file}: ${w}`)), ...fit.warnings],
+    warnings: [
+      ...alignment.warnings.map((message) => ({ code: 'alignment', message })),
+      ...inflowLogs.flatMap((f) => f.warnings.map((w) => ({ code: 'inflow-log', message: `inflow log ${f.file}: ${w}` }))),
+      ...fit.warnings.map((message) => ({ code: 'joint-fit', message })),
+    ],
   };
+  // JSON has no NaN or ±Infinity: null, as for the single fit
+  return JSON.parse(JSON.stringify(json, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v))) as JointFitResult;
 }
 
 const fitFileSchema = z.object({

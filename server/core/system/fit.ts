@@ -1,10 +1,9 @@
 import { InputError } from '../errors.js';
 import { dischargeCoefficientQuantity, effectiveAreaQuantity, type GumQuantity } from '../fit/coefficient.js';
-import { solveLeastSquares, type LeastSquaresProblem, type SolveResult } from '../lsq/index.js';
+import { covarianceFromJacobian, solveLeastSquares, type LeastSquaresProblem, type SolveResult } from '../lsq/index.js';
 import { residualDiagnostics, tQuantile } from '../stats/index.js';
 import type { AlignedLog } from './align.js';
 import { integrateSystem } from './integrate.js';
-import { inverseSymmetric } from './matrix.js';
 import { P, PER_VESSEL, parameterName, type InflowInput, type VesselNetwork } from './network.js';
 import { startValues } from './start-values.js';
 
@@ -31,6 +30,10 @@ export interface VesselDiagnostics {
   id: string;
   fileName: string;
   samples: number;
+  /** sqrt(Σr²/m_i), largest |r|, and the Durbin–Watson statistic of the log's residuals. */
+  rmseM: number;
+  maxAbsM: number;
+  durbinWatson: number;
   /** σ_i: the log's residual standard deviation, m (its weight is 1/σ_i). */
   noiseM: number;
   lag1Autocorrelation: number;
@@ -47,6 +50,11 @@ export interface SystemFitResult {
   converged: boolean;
   stopReason: string;
   iterations: number;
+  /** The second (weighted) pass's solver record, its start values and the bounds it kept to. */
+  solve: SolveResult;
+  start: Float64Array;
+  lower: Float64Array;
+  upper: Float64Array;
   /** Full θ (PER_VESSEL per vessel) at the optimum, fixed entries included. */
   theta: Float64Array;
   free: Int32Array;
@@ -105,11 +113,13 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
   const weights = new Float64Array(n).fill(1);
   const work = new Float64Array(theta.length);
 
+  const lower = Float64Array.from(free, (p) => (p % PER_VESSEL === P.effectiveArea ? 0 : -Infinity));
+  const upper = Float64Array.from(free, () => Infinity);
   const problem: LeastSquaresProblem = {
     m,
     n: k,
-    lower: Float64Array.from(free, (p) => (p % PER_VESSEL === P.effectiveArea ? 0 : -Infinity)),
-    upper: Float64Array.from(free, () => Infinity),
+    lower,
+    upper,
     evaluate(p, r, J) {
       work.set(theta);
       for (let c = 0; c < k; c++) work[free[c]] = p[c];
@@ -145,7 +155,7 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
   }
   const solve = solveLeastSquares(problem, first.p);
   for (let c = 0; c < k; c++) theta[free[c]] = solve.p[c];
-  return summarise(request, byVessel, theta, free, solve, sigma, rowStart);
+  return { ...summarise(request, byVessel, theta, free, solve, sigma, rowStart), solve, start: p0, lower, upper };
 }
 
 function summarise(
@@ -156,12 +166,13 @@ function summarise(
   solve: SolveResult,
   sigma: Float64Array,
   rowStart: Int32Array,
-): SystemFitResult {
+): Omit<SystemFitResult, 'solve' | 'start' | 'lower' | 'upper'> {
   const { network } = request;
   const n = network.vessels.length;
   const k = free.length;
   const m = rowStart[n];
-  const info = new Float64Array(k * k);
+  // row weights 1/sqrt(f_i): JᵀW·J = Σ_i J_iᵀJ_i/f_i, the information of the AR(1)-corrected logs
+  const rowWeight = new Float64Array(m);
   const vessels: VesselDiagnostics[] = [];
   const residuals: Float64Array[] = [];
   let effectiveTotal = 0;
@@ -170,23 +181,25 @@ function summarise(
     const res = new Float64Array(mi);
     for (let s = 0; s < mi; s++) res[s] = -solve.residuals[rowStart[i] + s] * sigma[i];
     residuals.push(res);
-    const rho0 = residualDiagnostics(res).lag1Autocorrelation;
+    const diag = residualDiagnostics(res);
+    const rho0 = diag.lag1Autocorrelation;
     const rho = Number.isFinite(rho0) ? rho0 : 0;
     const f = rho > 0 ? (1 + rho) / (1 - Math.min(rho, 0.999)) : 1;
     effectiveTotal += mi / f;
-    for (let row = rowStart[i]; row < rowStart[i + 1]; row++) {
-      for (let a = 0; a < k; a++) {
-        const ja = solve.jacobian[row * k + a] / f;
-        if (ja === 0) continue;
-        for (let b = 0; b < k; b++) info[a * k + b] += ja * solve.jacobian[row * k + b];
-      }
-    }
+    rowWeight.fill(1 / Math.sqrt(f), rowStart[i], rowStart[i + 1]);
     let ss = 0;
-    for (const x of res) ss += x * x;
+    let maxAbs = 0;
+    for (const x of res) {
+      ss += x * x;
+      maxAbs = Math.max(maxAbs, Math.abs(x));
+    }
     vessels.push({
       id: network.vessels[i].id,
       fileName: logs[i].fileName,
       samples: mi,
+      rmseM: diag.rmse,
+      maxAbsM: maxAbs,
+      durbinWatson: diag.durbinWatson,
       noiseM: Math.sqrt(ss / Math.max(mi - (k * mi) / m, 1)),
       lag1Autocorrelation: rho,
       varianceInflation: f,
@@ -195,7 +208,8 @@ function summarise(
   }
   const warnings: string[] = [];
   const s2 = solve.sumSquares / Math.max(m - k, 1);
-  const inv = inverseSymmetric(info, k);
+  const svd = covarianceFromJacobian(solve.jacobian, m, k, rowWeight);
+  const inv = svd.rank === k ? svd.unscaledCovariance : null;
   if (!inv) warnings.push('the parameters cannot all be told apart from these logs (singular information matrix): the uncertainties are not defined');
   const covariance = inv ? inv.map((x) => x * s2) : new Float64Array(k * k).fill(NaN);
   const u = Float64Array.from({ length: k }, (_, j) => Math.sqrt(Math.max(covariance[j * k + j], 0)));

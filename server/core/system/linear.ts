@@ -1,3 +1,4 @@
+import { integrateRk4, type OdeProblem } from '../ode/rk4.js';
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { propagate } from './matrix.js';
 import { coverageFactor, estimate, operatingTheta, outletCovariance, type Estimate, type SystemModel } from './model.js';
@@ -99,20 +100,25 @@ function flatten(c: Core): Float64Array {
   return out;
 }
 
-/** The linear model's response x(t) to a constant input step du from x = 0 (RK4; for checks). */
+/** The linear model's response x(t) to a constant input step du from x = 0 (the one RK4, ode/rk4.ts; for checks). */
 export function linearStepResponse(a: Float64Array, b: Float64Array, du: Float64Array, n: number, tS: number, steps: number): Float64Array {
-  const x = new Float64Array(n);
   const bu = new Float64Array(n);
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) bu[i] += b[i * n + j] * du[j];
-  const f = (v: Float64Array) => Float64Array.from({ length: n }, (_, i) => bu[i] + v.reduce((s, vj, j) => s + a[i * n + j] * vj, 0));
-  const h = tS / steps;
-  for (let s = 0; s < steps; s++) {
-    const k1 = f(x);
-    const k2 = f(x.map((v, i) => v + 0.5 * h * k1[i]));
-    const k3 = f(x.map((v, i) => v + 0.5 * h * k2[i]));
-    const k4 = f(x.map((v, i) => v + h * k3[i]));
-    for (let i = 0; i < n; i++) x[i] += (h / 6) * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
-  }
+  const x = new Float64Array(n);
+  const problem: OdeProblem = {
+    dim: n,
+    breaks: new Float64Array(0),
+    rates: (_t, v, dv) => {
+      for (let i = 0; i < n; i++) {
+        let s = bu[i];
+        for (let j = 0; j < n; j++) s += a[i * n + j] * v[j];
+        dv[i] = s;
+      }
+    },
+    stepS: () => tS / steps,
+    settle: () => false,
+    write: (_index, state) => x.set(state.subarray(0, n)),
+  };
+  integrateRk4(problem, new Float64Array(n), Float64Array.of(tS));
   return x;
 }
-

@@ -1,4 +1,4 @@
-import { seededRandom } from '../drain/prng.js';
+import { seededRandom } from '../random/prng.js';
 import { integrateSystem } from './integrate.js';
 import type { InflowInput, VesselNetwork } from './network.js';
 

@@ -1,6 +1,6 @@
 import { InputError } from '../errors.js';
-import { seededRandom } from '../drain/prng.js';
-import { cholesky, propagate, solve } from './matrix.js';
+import { seededRandom } from '../random/prng.js';
+import { covarianceRoot, propagate, solve } from './matrix.js';
 import { coverageFactor, estimate, operatingTheta, outletCovariance, type Estimate, type SystemModel } from './model.js';
 import { P, PER_VESSEL, type InflowInput } from './network.js';
 import { netFlows, netParameterColumn, rateWork } from './rates.js';
@@ -149,7 +149,7 @@ export function steadyStateMonteCarlo(model: SystemModel, inflowM3S: Float64Arra
   if (!cov) throw new InputError('Monte Carlo needs a covariance (a fit)');
   const n = model.network.vessels.length;
   const r = cov.index.length;
-  const l = cholesky(cov.sigma, r);
+  const l = covarianceRoot(cov.sigma, r);
   const rng = seededRandom(seed);
   const base = operatingTheta(model);
   const sum = new Float64Array(n);
@@ -160,7 +160,7 @@ export function steadyStateMonteCarlo(model: SystemModel, inflowM3S: Float64Arra
     const th = Float64Array.from(base);
     for (let a = 0; a < r; a++) {
       let s = 0;
-      for (let b = 0; b <= a; b++) s += l[a * r + b] * z[b];
+      for (let b = 0; b < r; b++) s += l[a * r + b] * z[b];
       th[cov.index[a]] += s;
     }
     const { eta } = equilibrium(model, th, inflowM3S);

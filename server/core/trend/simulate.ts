@@ -1,3 +1,4 @@
+import { seededRandom } from '../random/prng.js';
 import { InputError } from '../errors.js';
 import type { ApprovedFit, MaintenanceEvent, MaintenanceKind } from './types.js';
 import { YEAR_MS, DAY_MS } from './trendline.js';
@@ -39,29 +40,14 @@ export interface FoulingHistory {
   epochs: { startMs: number; startAreaM2: number }[];
 }
 
-/** mulberry32: a small seeded 32-bit generator; plenty for test noise. */
+/** Uniform draws on [0, 1) from the one seeded generator (random/prng.ts). */
 export function seededUniform(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return seededRandom(seed).uniform;
 }
 
-/** Standard normal draws by Box–Muller from a seeded uniform. */
+/** Standard normal draws from the one seeded generator (random/prng.ts). */
 export function seededNormal(seed: number): () => number {
-  const u = seededUniform(seed);
-  let spare: number | null = null;
-  return () => {
-    if (spare !== null) { const v = spare; spare = null; return v; }
-    const u1 = 1 - u(), u2 = u();
-    const r = Math.sqrt(-2 * Math.log(u1));
-    spare = r * Math.sin(2 * Math.PI * u2);
-    return r * Math.cos(2 * Math.PI * u2);
-  };
+  return seededRandom(seed, 'complement').normal;
 }
 
 export function simulateFoulingHistory(o: FoulingHistoryOptions): FoulingHistory {

@@ -13,6 +13,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import type { FastifyRequest } from 'fastify';
 import { z } from 'zod';
+import { jointFitResult } from '../../core/fit-result/schema.js';
 import { InputError } from '../../core/errors.js';
 import { alignLogs, type Alignment, type LogForSystem } from '../../core/system/align.js';
 import { fitSystem, type SystemFitResult } from '../../core/system/fit.js';
@@ -53,15 +54,11 @@ const fitFields = z
 
 const estimate = z.object({ value: z.number(), standardUncertainty: z.number().nullable(), ci95: z.tuple([z.number(), z.number()]).nullable() });
 
-const fitAnswer = z
-  .looseObject({
-    format: z.string(),
-    converged: z.boolean(),
-    outlets: z.record(z.string(), z.unknown()),
-    warnings: z.array(z.string()),
+const fitAnswer = jointFitResult
+  .extend({
     drawing: z.array(z.object({ id: z.string(), fileName: z.string(), timeS: z.array(z.number()), levelM: z.array(z.number()), fittedM: z.array(z.number()) })),
   })
-  .meta({ id: 'SystemFit', description: 'The output of `efflux fit-system --json`, plus `drawing` (each log thinned for charts, with the fitted curve)' });
+  .meta({ id: 'SystemFit', description: 'The output of `efflux fit-system --json` (the one fit-result shape), plus `drawing` (each log thinned for charts, with the fitted curve)' });
 
 const inflowItem = z.object({
   to: z.string().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),

@@ -3,7 +3,7 @@ import type { SystemModel } from '../../../server/core/system/model.js';
 import { P, PER_VESSEL } from '../../../server/core/system/network.js';
 import { levelsAfter, timeToLevel } from '../../../server/core/system/predict.js';
 import { rig, truthTheta, TWO_FREE } from './fixtures.js';
-import { seededRandom } from '../../../server/core/drain/prng.js';
+import { seededRandom } from '../../../server/core/random/prng.js';
 
 const g = 9.80665; // standard gravity (CGPM 1901)
 

@@ -1,3 +1,4 @@
+import { seededRandom } from '../../../server/core/random/prng.js';
 /**
  * A small drain-test log simulator for the window tests only (invented data). A vertical cylinder
  * drains by Torricelli's law, h(t) = (√h0 − k·t)² above the outlet, then sits at the outlet
@@ -32,14 +33,7 @@ export interface SimTruth {
 }
 
 function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  return seededRandom(seed).uniform;
 }
 
 export function simulate(o: SimOptions): { series: LevelSeries; truth: SimTruth } {

@@ -7,17 +7,10 @@ import { api, ApiError, type Page, type Vessel } from '../api.js';
 import { field, h, notice, select } from '../dom.js';
 import { dateTime } from '../format.js';
 import type { PageContext } from '../main.js';
+import type { AuditEntry } from '../../../server/store/audit.js';
 
-interface Entry {
-  seq: number;
-  at: string;
-  actorId: number | null;
-  actorName: string;
-  action: string;
-  entityType: string;
-  entityId: string | null;
-  hash: string;
-}
+/** An audit entry as the service sends it (server/store/audit.ts, type-only). */
+type Entry = AuditEntry;
 
 const ACTION_WORDS: Record<string, string> = {
   'vessel.create': 'vessel added',

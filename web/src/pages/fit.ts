@@ -4,7 +4,7 @@
  * comparison; review (approve or reject with a comment), refit, and the report when there is one.
  */
 import { api, ApiError, canReview, canUpload, routeExists, type DrainTest, type Fit, type Series, type Vessel } from '../api.js';
-import { fitChart, headBandChart, logChart, residualChart } from '../charts.js';
+import { fitChart, headBandChart, logChart, residualChart, type WindowPlot } from '../charts.js';
 import { field, h, notice, table } from '../dom.js';
 import { areaMm2, clockAt, inWords, dateTime, decimalsFor, mm, num, paramName, plusMinus, seconds, termName } from '../format.js';
 import type { PageContext } from '../main.js';
@@ -49,8 +49,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     h(
       'section',
       { class: 'headline', 'aria-label': 'Result' },
-      h('div', { class: 'card big' }, h('h2', {}, 'Discharge coefficient Cd'), h('p', { class: 'value' }, cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty) : 'not available'), h('p', { class: 'hint' }, cd ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95[0], 4)} to ${num(cd.ci95[1], 4)}` : 'the outlet bore is not known, so only Cd·a is given')),
-      h('div', { class: 'card big' }, h('h2', {}, 'Effective area Cd·a'), h('p', { class: 'value' }, areaMm2(ea.value, ea.expandedUncertainty ?? 2 * ea.standardUncertainty)), h('p', { class: 'hint' }, `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95[0])} to ${areaMm2(ea.ci95[1])}`)),
+      h('div', { class: 'card big' }, h('h2', {}, 'Discharge coefficient Cd'), h('p', { class: 'value' }, cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN)) : 'not available'), h('p', { class: 'hint' }, cd ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95?.[0], 4)} to ${num(cd.ci95?.[1], 4)}` : 'the outlet bore is not known, so only Cd·a is given')),
+      h('div', { class: 'card big' }, h('h2', {}, 'Effective area Cd·a'), h('p', { class: 'value' }, areaMm2(ea.value, ea.expandedUncertainty ?? 2 * (ea.standardUncertainty ?? NaN))), h('p', { class: 'hint' }, `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95?.[0] ?? NaN)} to ${areaMm2(ea.ci95?.[1] ?? NaN)}`)),
       h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${num(r.window.startS, 6)} s to ${num(r.window.endS, 6)} s from the first reading`), h('p', { class: 'hint' }, `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
       h('div', { class: 'card' }, h('h2', {}, 'Scatter about the curve'), h('p', {}, `RMS ${mm(r.residuals?.rmseM)}`), h('p', { class: 'hint' }, `largest ${mm(r.residuals?.maxAbsM)}; neighbouring residuals correlate ${num(r.residuals?.lag1Autocorrelation, 2)}; ${r.converged ? 'the solver converged' : 'the solver did NOT converge'}`)),
     ),
@@ -70,16 +70,16 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
       h('section', {}, h('h2', {}, 'Readings and the fitted drain curve'), h('p', { class: 'hint' }, 'Dots: readings in the window (thinned for drawing; the fit used every reading). Line: the fitted model.'), curve),
       h('section', {}, h('h2', {}, 'Residuals against time'), h('p', { class: 'hint' }, 'Reading minus fitted level. A good fit scatters evenly about zero; a slow wander means the model misses something. The band is ±2 × RMS.'), resid),
     );
-    fitChart(curve, plot.window);
-    residualChart(resid, plot.window, r.residuals?.rmseM ?? null);
+    fitChart(curve, plot.window as WindowPlot);
+    residualChart(resid, plot.window as WindowPlot, r.residuals?.rmseM ?? null);
   }
   if (r.headBands?.length) {
     const box = h('div', { class: 'chart', id: 'band-chart' });
     main.append(
       h('section', {}, h('h2', {}, 'Cd by head band'), h('p', { class: 'hint' }, 'The window cut into bands of head over the outlet, each fitted alone; bars are ±2 standard uncertainties. A trend with head suggests the outflow law differs from the model.'), box,
-        table(null, ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'], r.headBands.map((b) => [`${num(b.headFromM, 4)} m`, `${num(b.headToM, 4)} m`, String(b.samples), b.dischargeCoefficient.toFixed(decimalsFor(b.standardUncertainty)), num(b.standardUncertainty, 2)]))),
+        table(null, ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'], r.headBands.map((b) => [`${num(b.headFromM, 4)} m`, `${num(b.headToM, 4)} m`, String(b.samples), (b.dischargeCoefficient ?? NaN).toFixed(decimalsFor(b.standardUncertainty ?? NaN)), num(b.standardUncertainty, 2)]))),
     );
-    headBandChart(box, r.headBands);
+    headBandChart(box, r.headBands as Parameters<typeof headBandChart>[1]);
   }
 
   // parameters, correlations, model comparison
@@ -92,9 +92,9 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         const unit = s.unit ? ` ${s.unit}` : '';
         return [
           paramName(p.name),
-          `${u ? (p.value * s.factor).toFixed(d) : num(p.value * s.factor, 5)}${unit}`,
+          `${u ? ((p.value ?? NaN) * s.factor).toFixed(d) : num((p.value ?? NaN) * s.factor, 5)}${unit}`,
           u === null ? '—' : `${num(u * s.factor, 2)}${unit}`,
-          p.ci95 && p.free ? `${(p.ci95[0] * s.factor).toFixed(d)} to ${(p.ci95[1] * s.factor).toFixed(d)}${unit}` : '—',
+          p.ci95 && p.free ? `${((p.ci95[0] ?? NaN) * s.factor).toFixed(d)} to ${((p.ci95[1] ?? NaN) * s.factor).toFixed(d)}${unit}` : '—',
           p.free ? (p.atBound ? 'fitted (at its limit)' : 'fitted') : 'fixed',
         ];
       }))),
@@ -102,14 +102,14 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   }
   if (r.correlations && r.correlations.parameters.length > 1) {
     const names = r.correlations.parameters;
-    main.append(h('section', {}, h('h2', {}, 'Correlations between fitted parameters'), h('p', { class: 'hint' }, 'Near ±1: the data cannot tell the two apart well.'), table(null, ['', ...names.map(paramName)], names.map((n, i) => [paramName(n), ...r.correlations!.matrix[i].map((c) => h('span', { class: Math.abs(c) > 0.95 && i !== r.correlations!.matrix[i].indexOf(c) ? 'strong-corr' : '' }, c.toFixed(3)))]), 'corr')));
+    main.append(h('section', {}, h('h2', {}, 'Correlations between fitted parameters'), h('p', { class: 'hint' }, 'Near ±1: the data cannot tell the two apart well.'), table(null, ['', ...names.map(paramName)], names.map((n, i) => [paramName(n), ...r.correlations!.matrix[i].map((c) => h('span', { class: c !== null && Math.abs(c) > 0.95 && i !== r.correlations!.matrix[i].indexOf(c) ? 'strong-corr' : '' }, c === null ? '—' : c.toFixed(3)))]), 'corr')));
   }
   if (r.modelComparison) {
     const mc = r.modelComparison;
     main.append(
       h('section', {}, h('h2', {}, 'Model comparison'), h('p', {}, `Chosen model: ${mc.chosen.model} (${mc.chosen.parameters} fitted parameters). ${mc.basis ?? ''}`),
         table(null, ['Term', 'Compared model', 'Change in AIC', 'F-test p', 'In words'], mc.rows.map((row) => {
-          const earned = row.fTest ? row.fTest.pValue < 0.05 : false;
+          const earned = row.fTest ? (row.fTest.pValue ?? 1) < 0.05 : false;
           const words = row.change === 'with' ? (earned && (row.deltaAic ?? 0) < -2 ? `adding the ${termName(row.term)} is supported by the data` : `the ${termName(row.term)} is not needed`) : earned ? `the ${termName(row.term)} is earned: keep it` : `the ${termName(row.term)} is not supported by the data`;
           return [`${row.change} ${termName(row.term)}`, row.model, row.deltaAic === null ? '—' : row.deltaAic.toFixed(1), pct(row.fTest?.pValue), words];
         }))),
@@ -119,7 +119,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   // the window on the whole log, and how it was cut
   const logBox = h('div', { class: 'chart', id: 'window-chart' });
   const trims = r.window.trims ?? [];
-  const windowSection = h('section', {}, h('h2', {}, 'The window on the whole log'), logBox, trims.length ? h('ul', {}, trims.map((t) => h('li', {}, `${t.fromS.toFixed(1)} s to ${t.toS.toFixed(1)} s left out: ${t.reason}`))) : null, h('details', {}, h('summary', {}, 'How the window was chosen'), h('ul', {}, (r.window.notes ?? []).map((n) => h('li', {}, n.message)))));
+  const windowSection = h('section', {}, h('h2', {}, 'The window on the whole log'), logBox, trims.length ? h('ul', {}, trims.map((t) => h('li', {}, `${(t.fromS ?? NaN).toFixed(1)} s to ${(t.toS ?? NaN).toFixed(1)} s left out: ${t.reason}`))) : null, h('details', {}, h('summary', {}, 'How the window was chosen'), h('ul', {}, (r.window.notes ?? []).map((n) => h('li', {}, n.message)))));
   main.append(windowSection);
   let series: Series | null = null;
   try {
@@ -129,7 +129,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   }
   const t0 = series?.t0 ?? r.read?.t0 ?? null;
   const win = windowForm((s) => clockAt(t0, s), 'Window of this fit');
-  const lc = logChart(logBox, series?.timeS ?? plot?.log.timeS ?? [], series?.levelM ?? plot?.log.levelM ?? [], r.window, canUpload(user) ? (a, b) => {
+  const lc = logChart(logBox, series?.timeS ?? plot?.log.timeS ?? [], series?.levelM ?? (plot?.log.levelM as number[] | undefined) ?? [], r.window, canUpload(user) ? (a, b) => {
     win.set(a, b, true);
     lc.setWindow(a, b);
   } : undefined);

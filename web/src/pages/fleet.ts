@@ -69,7 +69,7 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
           h('td', {}, r.vessel.site),
           h('td', {}, shapeName(String((r.vessel.spec.shape as { kind?: string } | undefined)?.kind ?? ''))),
           h('td', {}, r.outlet ? `${r.outlet.key} (${outletName(r.outlet.type)}${r.outlet.boreM ? `, ${(r.outlet.boreM * 1000).toFixed(1)} mm bore` : ''})` : 'no outlet'),
-          h('td', { class: 'num' }, cd ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty)}${k ? ` (k = ${k.toFixed(2)})` : ''}` : '—'),
+          h('td', { class: 'num' }, cd ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN))}${k ? ` (k = ${k.toFixed(2)})` : ''}` : '—'),
           h('td', {}, r.latest ? h('a', { href: `#/fits/${r.latest.fit.id}`, class: `badge badge-${r.latest.fit.status}` }, r.latest.fit.status) : '—'),
           h('td', {}, r.latest ? date(r.latest.at) : '—'),
           h('td', { class: 'num' }, String(r.tests)),

@@ -9,27 +9,11 @@ import { fitChart } from '../charts.js';
 import { append as appendKids, field, h, notice, table } from '../dom.js';
 import { decimalsFor, num, plusMinus, seconds } from '../format.js';
 import type { PageContext } from '../main.js';
+import type { JointFitResult } from '../../../server/core/fit-result/schema.js';
 import { schematicVessels, systemSchematic } from '../schematic.js';
 
-interface Gum {
-  value: number;
-  standardUncertainty: number;
-  ci95: [number, number];
-  coverageFactor?: number;
-  expandedUncertainty?: number;
-}
-interface SystemFit {
-  format: string;
-  system: Record<string, unknown>;
-  converged: boolean;
-  stopReason: string;
-  outlets: Record<string, { effectiveAreaM2: Gum; dischargeCoefficient: Gum }>;
-  correlation: { names: string[]; matrix: number[][] };
-  degreesOfFreedom: number;
-  diagnostics: { vessels: { id: string; fileName: string; samples: number; noiseM: number; lag1Autocorrelation: number }[]; alignment: { t0: string | null; spanS: number } };
-  warnings: string[];
-  drawing?: { id: string; fileName: string; timeS: number[]; levelM: number[]; fittedM: number[] }[];
-}
+/** The joint fit as the service sends it: the one fit-result shape (type-only) plus the drawing. */
+type SystemFit = JointFitResult & { drawing?: { id: string; fileName: string; timeS: number[]; levelM: number[]; fittedM: number[] }[] };
 interface Est {
   value: number;
   standardUncertainty: number | null;
@@ -131,7 +115,7 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
     }
     if (doc.format === 'efflux-system-fit') {
       fitted = doc as unknown as SystemFit;
-      system = fitted.system;
+      system = fitted.system as Record<string, unknown>;
       drawSchematic(null);
       showFit(fitted);
       return;
@@ -172,26 +156,26 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
 
   function showFit(fit: SystemFit): void {
     results.replaceChildren();
-    const names = fit.correlation.names;
-    const k = (Object.values(fit.outlets)[0]?.dischargeCoefficient.coverageFactor ?? 2).toFixed(2);
+    const names = fit.correlations.parameters;
+    const k = (Object.values(fit.outlets)[0]?.dischargeCoefficient?.coverageFactor ?? 2).toFixed(2);
     append(
       results,
       h('h2', {}, 'Joint fit'),
-      h('p', { class: 'headline-line' }, fit.converged ? `Converged (${fit.stopReason}). ` : `Did not converge (${fit.stopReason}). `, `Common span of the logs ${seconds(fit.diagnostics.alignment.spanS)}; ${num(fit.degreesOfFreedom, 4)} effective degrees of freedom.`),
-      fit.warnings.length ? h('ul', { class: 'warnings' }, fit.warnings.map((w) => h('li', {}, w))) : null,
+      h('p', { class: 'headline-line' }, fit.converged ? `Converged (${fit.solver.stopReason}). ` : `Did not converge (${fit.solver.stopReason}). `, `Common span of the logs ${seconds((fit.diagnostics as { alignment: { spanS: number } }).alignment.spanS)}; ${num(fit.degreesOfFreedom, 4)} effective degrees of freedom.`),
+      fit.warnings.length ? h('ul', { class: 'warnings' }, fit.warnings.map((w) => h('li', {}, w.message))) : null,
       table('Outlets', ['Outlet', 'Effective area Cd·a ± standard uncertainty', 'Cd ± expanded uncertainty', `Cd 95 % interval (k = ${k})`], Object.entries(fit.outlets).map(([id, o]) => [
         id,
-        plusMinus(o.effectiveAreaM2.value * 1e6, o.effectiveAreaM2.standardUncertainty * 1e6, 'mm²'),
-        plusMinus(o.dischargeCoefficient.value, o.dischargeCoefficient.expandedUncertainty ?? 2 * o.dischargeCoefficient.standardUncertainty),
-        `${o.dischargeCoefficient.ci95[0].toFixed(4)} to ${o.dischargeCoefficient.ci95[1].toFixed(4)}`,
+        plusMinus(o.effectiveAreaM2.value * 1e6, (o.effectiveAreaM2.standardUncertainty ?? NaN) * 1e6, 'mm²'),
+        o.dischargeCoefficient ? plusMinus(o.dischargeCoefficient.value, o.dischargeCoefficient.expandedUncertainty ?? 2 * (o.dischargeCoefficient.standardUncertainty ?? NaN)) : '—',
+        o.dischargeCoefficient?.ci95 ? `${(o.dischargeCoefficient.ci95[0] ?? NaN).toFixed(4)} to ${(o.dischargeCoefficient.ci95[1] ?? NaN).toFixed(4)}` : '—',
       ]), 'system-outlets'),
-      table('Logs', ['Vessel', 'Logger file', 'Readings used', 'Noise (standard deviation)', 'Lag-1 autocorrelation'], fit.diagnostics.vessels.map((v) => [v.id, v.fileName, String(v.samples), `${(v.noiseM * 1000).toFixed(2)} mm`, v.lag1Autocorrelation.toFixed(2)])),
+      table('Logs', ['Vessel', 'Logger file', 'Readings used', 'Noise (standard deviation)', 'Lag-1 autocorrelation'], fit.residuals.map((v) => [v.id, v.fileName, String(v.samples), `${(Number(v.noiseM) * 1000).toFixed(2)} mm`, v.lag1Autocorrelation === null ? '—' : v.lag1Autocorrelation.toFixed(2)])),
       h('h3', {}, 'Correlations between the fitted parameters'),
       h('p', { class: 'hint' }, 'Near ±1: the logs barely tell the two apart. Marked red past ±0.95.'),
       h(
         'div',
         { class: 'table-wrap' },
-        table(null, ['', ...names.map(paramWords)], fit.correlation.matrix.map((row, i) => [h('strong', {}, paramWords(names[i])), ...row.map((r, j) => h('span', { class: i !== j && Math.abs(r) > 0.95 ? 'strong-corr' : '' }, r.toFixed(3)))]), 'corr'),
+        table(null, ['', ...names.map(paramWords)], fit.correlations.matrix.map((row, i) => [h('strong', {}, paramWords(names[i])), ...row.map((r, j) => h('span', { class: r !== null && i !== j && Math.abs(r) > 0.95 ? 'strong-corr' : '' }, r === null ? '—' : r.toFixed(3)))]), 'corr'),
       ),
     );
     if (fit.drawing) {

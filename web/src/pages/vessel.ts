@@ -101,7 +101,7 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
     const threshold = epoch?.thresholdCd ?? null;
     historyChart(
       box,
-      mine.map((f) => ({ atS: Date.parse(f.at) / 1000, cd: f.fit.result.dischargeCoefficient!.value, expanded: f.fit.result.dischargeCoefficient!.expandedUncertainty ?? 2 * f.fit.result.dischargeCoefficient!.standardUncertainty, status: f.fit.status })),
+      mine.map((f) => ({ atS: Date.parse(f.at) / 1000, cd: f.fit.result.dischargeCoefficient!.value, expanded: f.fit.result.dischargeCoefficient!.expandedUncertainty ?? 2 * (f.fit.result.dischargeCoefficient!.standardUncertainty ?? NaN), status: f.fit.status })),
       evs.map((e) => ({ atS: Date.parse(e.occurredAt) / 1000, kind: e.kind })),
       { threshold, baseline },
     );
@@ -128,7 +128,7 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
         t.fileName,
         v.outlets.find((o) => o.id === t.outletId)?.key ?? '—',
         t.operator ?? '—',
-        cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * cd.standardUncertainty) : t.status === 'pending' ? (t.stuck ? 'analysis failed: retry or withdraw' : 'waiting for analysis') : '—',
+        cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN)) : t.status === 'pending' ? (t.stuck ? 'analysis failed: retry or withdraw' : 'waiting for analysis') : '—',
         f ? h('a', { href: `#/fits/${f.fit.id}`, class: `badge badge-${f.fit.status}` }, `${f.fit.status} · open`) : '—',
       ];
     })),
