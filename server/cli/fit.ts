@@ -1,6 +1,6 @@
 import { writeFileSync, renameSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
-import { analyzeDrainTest } from '../core/analyze.js';
+import { analyzeDrainTest, expandWorkbook } from '../core/analyze.js';
 import { textReport } from '../core/analysis/text-report.js';
 import { InputError } from '../core/errors.js';
 import { parseVesselFile } from '../core/vessel/schema.js';
@@ -21,6 +21,8 @@ reading (when the file does not say it):
   --quantity level|gauge-pressure|absolute-pressure|distance-from-top
   --date-order dmy|mdy|ymd   --tz ZONE (e.g. Europe/Lisbon)   --baro FILE (barometric log)
   --delimiter CHAR       --decimal . or ,
+  --level-tag TAG        --baro-tag TAG  (files with one row per time, tag and value)
+  --sheet NAME           the workbook sheet to read (.xlsx; default the first)
   --window START..END    seconds from the log's start, or ISO 8601 timestamps
 output:
   --json                 one JSON object on stdout (one per line for several logs)
@@ -30,7 +32,7 @@ exit codes: 0 done, 2 input refused (the message names the file, line or field),
 `;
 
 export async function runFit(argv: string[]): Promise<number> {
-  return guarded(() => {
+  return guarded(async () => {
     const { values, positionals } = parseCommandLine(argv, {
       ...READ_OPTIONS,
       'fit-inflow': { type: 'boolean' },
@@ -52,14 +54,14 @@ export async function runFit(argv: string[]): Promise<number> {
     const batch = positionals.length > 1;
     let refused = 0;
     let unconverged = 0;
-    positionals.forEach((path, i) => {
+    for (const [i, path] of positionals.entries()) {
       if (batch) process.stderr.write(`[${i + 1}/${positionals.length}] ${path}\n`);
       try {
         const t0 = performance.now();
         const log = readInputFile(path);
         const readMs = performance.now() - t0;
         const outcome = analyzeDrainTest(
-          { log, baro, vessel, vesselFileName: values.vessel, settings },
+          await expandWorkbook({ log, baro, vessel, vesselFileName: values.vessel, settings }),
           { now: () => performance.now() },
         );
         outcome.fit.timing.parseMs += readMs;
@@ -81,7 +83,7 @@ export async function runFit(argv: string[]): Promise<number> {
         refused++;
         process.stderr.write(`efflux: ${err.toLine()}\n`);
       }
-    });
+    }
     if (batch) process.stderr.write(`${positionals.length - refused} fitted (${unconverged} not converged), ${refused} refused\n`);
     return refused ? EXIT_REFUSED : unconverged ? EXIT_NOT_CONVERGED : EXIT_OK;
   });

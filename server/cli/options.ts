@@ -14,6 +14,9 @@ export const READ_OPTIONS = {
   window: { type: 'string' },
   delimiter: { type: 'string' },
   decimal: { type: 'string' },
+  'level-tag': { type: 'string' },
+  'baro-tag': { type: 'string' },
+  sheet: { type: 'string' },
   vessel: { type: 'string' },
   json: { type: 'boolean' },
   help: { type: 'boolean', short: 'h' },
@@ -55,6 +58,9 @@ export function settingsFrom(values: Record<string, string | boolean | undefined
     if (dec !== '.' && dec !== ',') throw new InputError(`--decimal must be "." or "," (got "${dec}")`);
     s.decimal = dec;
   }
+  if (str('level-tag')) s.levelTag = str('level-tag');
+  if (str('baro-tag')) s.baroTag = str('baro-tag');
+  if (str('sheet')) s.sheet = str('sheet');
   if (values['fit-inflow']) s.fitInflow = true;
   if (values['fit-datum']) s.fitDatum = true;
   if (values['fit-exponent']) s.fitExponent = true;

@@ -18,6 +18,11 @@ export interface AnalysisSettings {
   tz?: string;
   delimiter?: string;
   decimal?: '.' | ',';
+  /** Long-format files (one row per time, tag and value): the level's tag, and the barometric tag if any. */
+  levelTag?: string;
+  baroTag?: string;
+  /** Workbooks (.xlsx): the sheet to read (default the first). */
+  sheet?: string;
   // window: "START..END" in seconds from the log's start or ISO timestamps
   window?: string;
   // model

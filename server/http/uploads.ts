@@ -28,6 +28,9 @@ export const uploadFields = z
     tz: text.min(1),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
+    levelTag: text.min(1),
+    baroTag: text.min(1),
+    sheet: text.min(1),
     window: text.min(1),
     fitInflow: bool,
     fitDatum: bool,
@@ -36,7 +39,7 @@ export const uploadFields = z
   .partial()
   .strict();
 
-const SETTING_KEYS = ['timeColumn', 'levelColumn', 'unit', 'quantity', 'dateOrder', 'tz', 'delimiter', 'decimal', 'window', 'fitInflow', 'fitDatum', 'fitExponent'] as const;
+const SETTING_KEYS = ['timeColumn', 'levelColumn', 'unit', 'quantity', 'dateOrder', 'tz', 'delimiter', 'decimal', 'levelTag', 'baroTag', 'sheet', 'window', 'fitInflow', 'fitDatum', 'fitExponent'] as const;
 
 export interface ParsedUpload {
   log: RawInput;

@@ -8,7 +8,8 @@ import type { AnalysisOutcome, AnalysisRequest } from '../core/analysis-contract
 import { EngineUnavailableError, serialiseError, type WorkerReply } from './worker-reply.js';
 
 type Analyze = (req: AnalysisRequest) => AnalysisOutcome;
-let engine: Promise<Analyze> | undefined;
+type Expand = (req: AnalysisRequest) => Promise<AnalysisRequest>;
+let engine: Promise<(req: AnalysisRequest) => Promise<AnalysisOutcome>> | undefined;
 
 // A fit may take a core for a while; below the HTTP thread's priority, reads keep answering
 // quickly while it runs (Linux keeps a nice value per thread; elsewhere this may apply to the
@@ -22,7 +23,7 @@ if (niceness > 0 && process.platform === 'linux') {
   }
 }
 
-function loadEngine(): Promise<Analyze> {
+function loadEngine(): Promise<(req: AnalysisRequest) => Promise<AnalysisOutcome>> {
   const configured = (workerData as { analyzeModule?: string } | undefined)?.analyzeModule;
   const ext = import.meta.url.endsWith('.ts') ? '.ts' : '.js';
   const url = configured ?? new URL(`../core/analyze${ext}`, import.meta.url).href;
@@ -32,9 +33,12 @@ function loadEngine(): Promise<Analyze> {
     ? import('tsx/esm/api').then((api) => api.tsImport(url, import.meta.url))
     : import(url);
   return load.then(
-    (m: { analyzeDrainTest?: Analyze }) => {
+    (m: { analyzeDrainTest?: Analyze; expandWorkbook?: Expand }) => {
       if (typeof m.analyzeDrainTest !== 'function') throw new EngineUnavailableError('the analysis engine exports no analyzeDrainTest');
-      return m.analyzeDrainTest;
+      const analyze = m.analyzeDrainTest;
+      // a workbook (.xlsx) is expanded to its sheet's text first (an engine without it reads text only)
+      const expand = m.expandWorkbook;
+      return expand ? async (req: AnalysisRequest) => analyze(await expand(req)) : async (req: AnalysisRequest) => analyze(req);
     },
     (e: { code?: string }) => {
       if (e?.code === 'ERR_MODULE_NOT_FOUND') throw new EngineUnavailableError('the analysis engine is not built yet');
@@ -51,7 +55,7 @@ export default async function run(req: AnalysisRequest): Promise<WorkerReply> {
       throw e;
     });
     const t0 = performance.now();
-    const outcome = analyze(req);
+    const outcome = await analyze(req);
     return { ok: true, outcome, engineMs: performance.now() - t0 };
   } catch (e) {
     return { ok: false, error: serialiseError(e) };

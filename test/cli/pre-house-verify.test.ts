@@ -42,6 +42,7 @@ describe('a database made before issue 13', () => {
     expect(line).toMatch(/Cd·a [\d.e-]+ m² → [\d.e-]+ m², difference [-\d.e]+ m² = [\d.e-]+ % of its standard uncertainty/);
     expect(line).toContain('tolerance 5 % of the stored standard uncertainty');
     expect(line).not.toMatch(/identical/);
+    expect(line).toMatch(/(within|BEYOND) the tolerance/);
     // the stored result is never rewritten
     expect(storedResult(dir)).toBe(before);
   }, 120_000);

@@ -101,6 +101,9 @@ export interface Settings {
   tz?: string;
   delimiter?: string;
   decimal?: string;
+  levelTag?: string;
+  baroTag?: string;
+  sheet?: string;
   window?: string;
   fitInflow?: boolean;
   fitDatum?: boolean;

@@ -20,6 +20,11 @@ export function readingForm(initial: Settings = {}): ReadingForm {
   const tz = h('input', { type: 'text', name: 'tz', value: initial.tz ?? '', placeholder: 'UTC unless stated, e.g. Europe/Lisbon', autocomplete: 'off' });
   const delimiter = select('delimiter', [['', 'as detected'], [',', 'comma ,'], [';', 'semicolon ;'], ['tab', 'tab'], ['|', 'pipe |']], initial.delimiter ?? '');
   const decimal = select('decimal', [['', 'as detected'], ['.', 'point 1.5'], [',', 'comma 1,5']], initial.decimal ?? '');
+  const text = (name: string, value: string | undefined, placeholder: string) =>
+    h('input', { type: 'text', name, value: value ?? '', placeholder, autocomplete: 'off' });
+  const levelTag = text('levelTag', initial.levelTag, 'files with one row per time, tag and value');
+  const baroTag = text('baroTag', initial.baroTag, 'barometric tag in the same file, if any');
+  const sheet = text('sheet', initial.sheet, 'workbooks: the first sheet unless named');
 
   const setColumns = (headers: string[]) => {
     for (const s of [timeColumn, levelColumn]) {
@@ -48,6 +53,9 @@ export function readingForm(initial: Settings = {}): ReadingForm {
       field('Time zone of local times', tz),
       field('Delimiter', delimiter),
       field('Decimal mark', decimal),
+      field('Level tag', levelTag),
+      field('Barometric tag', baroTag),
+      field('Workbook sheet', sheet),
     ),
   );
   return {
@@ -63,6 +71,9 @@ export function readingForm(initial: Settings = {}): ReadingForm {
       if (tz.value.trim()) s.tz = tz.value.trim();
       if (delimiter.value) s.delimiter = delimiter.value;
       if (decimal.value) s.decimal = decimal.value;
+      if (levelTag.value.trim()) s.levelTag = levelTag.value.trim();
+      if (baroTag.value.trim()) s.baroTag = baroTag.value.trim();
+      if (sheet.value.trim()) s.sheet = sheet.value.trim();
       return s;
     },
   };

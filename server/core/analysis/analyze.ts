@@ -1,4 +1,4 @@
-import type { AnalysisOutcome, AnalysisRequest, FitJson } from '../analysis-contract.js';
+import type { AnalysisOutcome, AnalysisRequest, FitJson, RawFile } from '../analysis-contract.js';
 import { InputError } from '../errors.js';
 import { makeShape } from '../geometry/index.js';
 import { readLevelLog } from '../ingest/read-log.js';
@@ -11,6 +11,8 @@ import { boundsFor } from '../fit/terms.js';
 import { STANDARD_GRAVITY_MS2 } from '../units/index.js';
 import { validateVessel, fluidDensityKgM3, type VesselSpec } from '../vessel/schema.js';
 import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
+import { intervalWiderThanValue, positiveInterval } from '../fit/interval.js';
+import { isZip, workbookAsText } from '../ingest/workbook.js';
 import { ENGINE_VERSION } from '../version.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
@@ -32,6 +34,22 @@ export interface PreparedTest {
   density: { value: number; source: string };
 }
 
+/**
+ * A request whose log (or barometric log) is an .xlsx workbook, with that file replaced by the
+ * chosen sheet as text (same file name, so messages name the workbook). The shells call this
+ * before analyzeDrainTest / prepareDrainTest: the workbook reader is asynchronous. Text logs
+ * pass through untouched.
+ */
+export async function expandWorkbook(request: AnalysisRequest): Promise<AnalysisRequest> {
+  const sheet = request.settings?.sheet;
+  const expand = async (f: RawFile | undefined): Promise<RawFile | undefined> =>
+    f && isZip(f.bytes) ? { bytes: (await workbookAsText(f.bytes, f.fileName, sheet)).bytes, fileName: f.fileName } : f;
+  if (!isZip(request.log.bytes) && !(request.baro && isZip(request.baro.bytes))) return request;
+  const log = (await expand(request.log))!;
+  const baro = await expand(request.baro);
+  return { ...request, log, ...(baro ? { baro } : {}) };
+}
+
 /** Read the log and choose the window: everything `efflux inspect` shows. */
 export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const vesselFile = request.vesselFileName ?? 'vessel';
@@ -48,6 +66,9 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
     tz: settings.tz,
     delimiter: settings.delimiter,
     decimal: settings.decimal,
+    levelTag: settings.levelTag,
+    baroTag: settings.baroTag,
+    sheet: settings.sheet,
     baro: request.baro,
     fluidDensityKgM3: 'densityKgM3' in (vessel.fluid ?? {}) ? density.value : undefined,
     // a fluid temperature in the vessel file stands in when the log has no temperature column
@@ -63,6 +84,8 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const choice = withFile(request.log.fileName, () =>
     chooseDrainWindow(series, {
       outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
+      // the plan area at a reading (sensor frame), for the still-opening rule's head model
+      areaAtReadingM2: knownSensorZeroM === null ? undefined : (y: number) => setting.shape.areaM2(y + knownSensorZeroM),
       window,
     }),
   );
@@ -174,7 +197,20 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const fitted = new Float64Array(winPlot.timeS.length);
   predictReadings(p.setting, fit.variant.solution, fit.variant.theta, Float64Array.from(winPlot.timeS), fitted, null, new Int32Array(0));
 
+  // Cd·a and Cd are positive: intervals that would reach zero are given on the log scale, and a
+  // fit whose interval is wider than its value is flagged first among the warnings.
+  const eaCi = positiveInterval(ea.value, ea.standardUncertainty, ea.coverageFactor, ea.ci95);
+  const cdCi = positiveInterval(cd.value, cd.standardUncertainty, cd.coverageFactor, cd.ci95);
+  const uncertain = intervalWiderThanValue(ea.value, ea.ci95) || intervalWiderThanValue(cd.value, cd.ci95);
   const warnings = [
+    ...(uncertain
+      ? [{
+          code: 'interval-wider-than-value',
+          message: `the 95 % interval of Cd·a (${ea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
+            'the fit says little about Cd; do not use it without checking the window, the time column and the clock (--tz)',
+          stage: 'fit',
+        }]
+      : []),
     ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
     ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
     ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
@@ -187,7 +223,8 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     dischargeCoefficient: {
       value: cd.value,
       standardUncertainty: cd.standardUncertainty,
-      ci95: cd.ci95,
+      ci95: cdCi.ci95,
+      ...(cdCi.logScale ? { ci95Scale: 'log' } : {}),
       coverageFactor: cd.coverageFactor,
       expandedUncertainty: cd.expandedUncertainty,
       relativeStandardUncertainty: cd.relativeStandardUncertainty,
@@ -198,7 +235,8 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     effectiveAreaM2: {
       value: ea.value,
       standardUncertainty: ea.standardUncertainty,
-      ci95: ea.ci95,
+      ci95: eaCi.ci95,
+      ...(eaCi.logScale ? { ci95Scale: 'log' } : {}),
       coverageFactor: ea.coverageFactor,
       expandedUncertainty: ea.expandedUncertainty,
       relativeStandardUncertainty: ea.relativeStandardUncertainty,
@@ -230,7 +268,12 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     parameters: fit.parameters.map((q, j) => {
       const col = freeIndex.indexOf(j);
       const bounds = col >= 0 ? { lower: bound(solverBounds.lower[col]), upper: bound(solverBounds.upper[col]) } : { lower: q.value, upper: q.value };
-      return { ...q, standardUncertainty: q.free ? q.standardUncertainty : null, bounds };
+      return {
+        ...q,
+        standardUncertainty: q.free ? q.standardUncertainty : null,
+        bounds,
+        ...(q.name === 'effectiveAreaM2' && q.ci95 ? { ci95: positiveInterval(q.value, q.standardUncertainty, ea.coverageFactor, q.ci95).ci95 } : {}),
+      };
     }),
     correlations: { parameters: free, matrix },
     residuals: fit.residuals,

@@ -19,6 +19,9 @@ export function textReport(fit: FitJson): string {
     lines.push(`FIT DID NOT CONVERGE (solver: ${f.solver?.stopReason ?? 'stopped'}): do not use any number in this report.`);
     lines.push('Try a longer window, fewer fitted terms (--fit-inflow, --fit-datum, --fit-exponent) or a vessel file that gives the sensor zero.');
   }
+  // A converged fit that says little about Cd is flagged before anything a reader could quote.
+  const wide = (f.warnings ?? []).find((x: { code: string }) => x.code === 'interval-wider-than-value');
+  if (wide && !unconverged) lines.push(`UNCERTAIN FIT: ${wide.message}.`);
   lines.push(`Drain test fit — ${f.vessel?.name ?? 'vessel'} (${f.vessel?.shape?.kind ?? ''})`);
   lines.push(rule);
   if (unconverged) {

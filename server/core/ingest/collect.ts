@@ -5,7 +5,8 @@
  */
 import { InputError } from '../errors.js';
 import { clockMs, isoZuluMs, newParts, scanDateTime, wallMs } from './datetime.js';
-import { parseNumber } from './numbers.js';
+import { parseGroupedNumber, parseNumber } from './numbers.js';
+import { scanBasicIso } from './basic-time.js';
 import { MAX_BAD_ROW_FRACTION } from './options.js';
 import type { Plan } from './plan.js';
 import { forEachRow, type Row, type RowSource } from './rows.js';
@@ -26,6 +27,8 @@ export interface Collected {
   withOffset: number;
   local: number;
   repeated: number;
+  /** First row whose time is 55–60 minutes before the previous row's (a clock set back), or null. */
+  hourBack: { line: number; stepS: number } | null;
 }
 
 const DAY = 86_400_000;
@@ -41,7 +44,7 @@ export function countLines(bytes: Uint8Array): number {
 }
 
 export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.' | ',', zone: ZoneResolver | null,
-  capacity: number): Collected {
+  capacity: number, group = ''): Collected {
   const fileName = rs.fileName;
   const timeMs = new Float64Array(capacity);
   const value = new Float64Array(capacity);
@@ -53,10 +56,12 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
   const timeCols = tp.kind === 'date+clock' ? [tp.dateCol, tp.clockCol] : [tp.col];
   const need = Math.max(vcol, tcol, ...timeCols) + 1;
   const dec = decimal.charCodeAt(0);
+  const grp = group ? group.charCodeAt(0) : 0;
   const p = newParts();
   const allowed = Math.max(1, Math.floor(MAX_BAD_ROW_FRACTION * capacity));
   let n = 0, rows = 0, bad = 0, withOffset = 0, local = 0, repeated = 0;
-  let latest = -Infinity, outOfOrder = false, prevClock = -Infinity, dayAdd = 0;
+  let latest = -Infinity, outOfOrder = false, prevClock = -Infinity, dayAdd = 0, prevT = NaN;
+  let hourBack: Collected['hourBack'] = null;
   let first: { line: number; field: string; text: string; why: string } | null = null;
   const badLines: number[] = [];
 
@@ -93,7 +98,7 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
         withOffset++;
         return utc;
       }
-      if (!scanDateTime(r.src[tp.col], r.start[tp.col], r.end[tp.col], p) || !p.hasDate) return NaN;
+      if (!(scanDateTime(r.src[tp.col], r.start[tp.col], r.end[tp.col], p) || scanBasicIso(r.src[tp.col], r.start[tp.col], r.end[tp.col], p)) || !p.hasDate) return NaN;
       wall = wallMs(p, tp.order);
     } else {
       if (!scanDateTime(r.src[tp.dateCol], r.start[tp.dateCol], r.end[tp.dateCol], p) || !p.hasDate) return NaN;
@@ -117,7 +122,11 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     return t;
   };
 
+  const tagCol = plan.tagFilter?.col ?? -1;
+  const tag = plan.tagFilter?.tag ?? '';
   forEachRow(rs, (r) => {
+    // long format: only the rows of the tag being read
+    if (tagCol >= 0 && (tagCol >= r.count || r.src[tagCol].slice(r.start[tagCol], r.end[tagCol]).trim() !== tag)) return;
     rows++;
     if (r.count < need) {
       markBad(r, r.count, `row has ${r.count} fields, ${need} needed`);
@@ -128,13 +137,13 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
       markBad(r, timeCols[0], 'not a time');
       return;
     }
-    const v = parseNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec);
+    const v = grp ? parseGroupedNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec, grp) : parseNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec);
     if (!Number.isFinite(v)) {
       markBad(r, vcol, 'not a number');
       return;
     }
     if (temp) {
-      const tv = parseNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec);
+      const tv = grp ? parseGroupedNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec, grp) : parseNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec);
       if (!Number.isFinite(tv)) {
         markBad(r, tcol, 'temperature is not a number');
         return;
@@ -143,11 +152,15 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     }
     if (t < latest) outOfOrder = true;
     else latest = t;
+    // A step back by (nearly) one hour from the row before: the clocks went back.
+    const back = prevT - t;
+    if (!hourBack && back >= 3_300_000 && back <= 3_601_000) hourBack = { line: r.line, stepS: back / 1000 };
+    prevT = t;
     timeMs[n] = t;
     value[n] = v;
     line[n] = r.line;
     n++;
   });
   if (first && bad > Math.max(1, Math.floor(MAX_BAD_ROW_FRACTION * rows))) refuse();
-  return { n, timeMs, value, temp, line, rows, badRows: bad, badLines, outOfOrder, withOffset, local, repeated };
+  return { n, timeMs, value, temp, line, rows, badRows: bad, badLines, outOfOrder, withOffset, local, repeated, hourBack };
 }

@@ -18,6 +18,8 @@ export interface LogDescription {
   level: { minM: number; maxM: number; firstM: number; lastM: number };
   temperatureC: { min: number; max: number } | null;
   metadata: LevelSeries['metadata'];
+  /** A long-format file's tags with their units and row counts; null for an ordinary file. */
+  tags: NonNullable<LevelSeries['tags']> | null;
   notes: ReadNote[];
   warnings: ReadNote[];
 }
@@ -48,6 +50,7 @@ export function describeLog(series: LevelSeries): LogDescription {
     level: { minM: lv.min, maxM: lv.max, firstM: series.levelM[0], lastM: series.levelM[n - 1] },
     temperatureC: series.temperatureC ? range(series.temperatureC) : null,
     metadata: series.metadata,
+    tags: series.tags ?? null,
     notes: series.notes,
     warnings: series.warnings,
   };

@@ -4,7 +4,9 @@
  */
 import Papa from 'papaparse';
 import { InputError } from '../errors.js';
+import { scanBasicIso } from './basic-time.js';
 import { newParts, scanDateTime } from './datetime.js';
+import { GROUPED, numberFormat } from './number-format.js';
 import { parseNumber, DECIMAL_COMMA, DECIMAL_DOT } from './numbers.js';
 import type { LevelSeries, ReadNote } from './series.js';
 
@@ -16,6 +18,8 @@ export interface HeadRow {
 export interface Layout {
   delimiter: string;
   decimal: '.' | ',';
+  /** Thousands separator in numbers ("2,099.9", "2.099,9", "2 099,9"), or '' for none. */
+  group: string;
   /** 1-based line of the header, or null for a file without one. */
   headerLine: number | null;
   names: string[];
@@ -60,7 +64,8 @@ const parts = newParts();
 /** A cell that reads as data: a number in either decimal style, or a date/time. */
 export function isDataCell(f: string): boolean {
   return !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_DOT)) ||
-    !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_COMMA)) || scanDateTime(f, 0, f.length, parts);
+    !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_COMMA)) || GROUPED.test(f) ||
+    scanDateTime(f, 0, f.length, parts) || scanBasicIso(f, 0, f.length, parts);
 }
 
 function dataLike(fields: string[]): boolean {
@@ -169,23 +174,9 @@ export function findLayout(head: string, fileName: string, opts: { delimiter?: s
   else notes.push({ code: 'header', message: 'no header row: columns are named by position' });
   const sample = rows.slice(first, first + SAMPLE_ROWS);
 
-  let decimal: '.' | ',' = '.';
-  if (opts.decimal) {
-    decimal = opts.decimal;
-    notes.push({ code: 'decimal', message: `decimal mark "${decimal}", as given` });
-  } else if (chosen.delimiter !== ',') {
-    let comma = 0, dot = 0;
-    for (const r of sample) for (const f of r.fields) {
-      if (/^\s*[+-]?\d+,\d+\s*$/.test(f)) comma++;
-      else if (/^\s*[+-]?\d*\.\d+([eE][+-]?\d+)?\s*$/.test(f)) dot++;
-    }
-    if (comma > 0 && dot === 0) {
-      decimal = ',';
-      notes.push({ code: 'decimal', message: `decimal comma: numbers such as "${sample.flatMap((r) => r.fields).find((f) => /^\s*[+-]?\d+,\d+\s*$/.test(f))!.trim()}" and none with a decimal point` });
-    }
-  }
+  const { decimal, group } = numberFormat(sample.flatMap((r) => r.fields), chosen.delimiter, opts.decimal, fileName, notes);
   return {
-    delimiter: chosen.delimiter, decimal, headerLine: hasHeader ? prev!.line : null, names, fieldCount: n,
+    delimiter: chosen.delimiter, decimal, group, headerLine: hasHeader ? prev!.line : null, names, fieldCount: n,
     dataAfterLine: hasHeader ? prev!.line : rows[first].line - 1, metadata, sample, notes,
   };
 }

@@ -78,3 +78,19 @@ export function parseNumber(s: string, a: number, b: number, decimal: number): n
 
 export const DECIMAL_DOT = DOT;
 export const DECIMAL_COMMA = COMMA;
+
+/**
+ * The number in s[a, b) whose integer part may be grouped in threes by `group` (a code; 0 for
+ * none), e.g. "2,099.9" or "2.099,9". Grouping that is not in threes is not a number (NaN).
+ */
+export function parseGroupedNumber(s: string, a: number, b: number, decimal: number, group: number): number {
+  if (group === 0 || s.indexOf(String.fromCharCode(group), a) < 0 || s.indexOf(String.fromCharCode(group), a) >= b) return parseNumber(s, a, b, decimal);
+  const text = s.slice(a, b).trim();
+  const g = String.fromCharCode(group);
+  const d = String.fromCharCode(decimal);
+  const dot = text.indexOf(d);
+  const int = dot < 0 ? text : text.slice(0, dot);
+  if (!/^[+-]?\d{1,3}$/.test(int.split(g)[0]) || int.split(g).slice(1).some((p) => !/^\d{3}$/.test(p))) return NaN;
+  const plain = int.split(g).join('') + (dot < 0 ? '' : text.slice(dot));
+  return parseNumber(plain, 0, plain.length, decimal);
+}

@@ -18,6 +18,12 @@ export interface ReadOptions {
   /** Field delimiter: one character, or "tab". */
   delimiter?: string;
   decimal?: '.' | ',';
+  /** In a long-format file (time, tag, value rows): the tag of the level series. */
+  levelTag?: string;
+  /** In a long-format file: the tag of the barometric series, read from the same file. */
+  baroTag?: string;
+  /** Workbooks (.xlsx): the sheet to read, by name (default the first sheet). */
+  sheet?: string;
   /** A barometric log (absolute pressure) to subtract from an absolute-pressure log. */
   baro?: { bytes: Uint8Array; fileName: string };
   fluidDensityKgM3?: number;
@@ -39,6 +45,9 @@ export const DEFAULT_MAX_BYTES = 64 * 1024 * 1024;
 
 /** Rows with an unreadable cell that are skipped (with a warning) before the file is refused. */
 export const MAX_BAD_ROW_FRACTION = 0.01;
+
+/** Rows that repeat an earlier time with another value, as a share of all rows (and more than two), before the file is refused. */
+export const CLASH_FRACTION = 0.03;
 
 /** An interval longer than this many median intervals is reported as a gap. */
 export const GAP_FACTOR = 5;

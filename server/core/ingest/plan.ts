@@ -8,7 +8,9 @@ import { lengthFactorToM, pressureFactorToPa, temperatureUnit } from '../units/i
 import { newParts, scanDateTime } from './datetime.js';
 import { readHeader, timeUnitMs, type HeaderReading } from './header.js';
 import type { Layout } from './layout.js';
-import { parseNumber } from './numbers.js';
+import { parseGroupedNumber } from './numbers.js';
+import { scanBasicIso } from './basic-time.js';
+import type { TagColumns, TagSummary } from './long-format.js';
 import type { DateOrder, Quantity, ReadOptions } from './options.js';
 import type { ColumnRole, DetectedColumn, ReadNote } from './series.js';
 
@@ -27,8 +29,16 @@ export interface ValuePlan {
   factor: number;
 }
 
+/** A long-format file's tag and unit columns, its tags, and the tag this pass reads. */
+export interface LongPlan extends TagColumns {
+  tag: TagSummary;
+  tags: TagSummary[];
+}
+
 export interface Plan {
   time: TimePlan;
+  /** Long format: only rows whose tag column holds this tag are read. */
+  tagFilter: { col: number; tag: string } | null;
   /** Day/month order still to be decided from the whole file. */
   orderOpen: boolean;
   value: ValuePlan;
@@ -44,12 +54,13 @@ const parts = newParts();
 
 function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number; min: number; fractional: boolean; dmy: boolean; mdy: boolean; dayMonth: boolean } {
   const dec = layout.decimal.charCodeAt(0);
+  const grp = layout.group ? layout.group.charCodeAt(0) : 0;
   const counts: Record<DataKind, number> = { number: 0, datetime: 0, date: 0, clock: 0, text: 0, empty: 0 };
   let maxAbs = 0, min = Infinity, fractional = false, dmy = false, mdy = false, dayMonth = false;
   for (const r of layout.sample) {
     const f = r.fields[col] ?? '';
     if (f.trim() === '') { counts.empty++; continue; }
-    const v = parseNumber(f, 0, f.length, dec);
+    const v = parseGroupedNumber(f, 0, f.length, dec, grp);
     if (Number.isFinite(v)) {
       counts.number++;
       maxAbs = Math.max(maxAbs, Math.abs(v));
@@ -57,7 +68,7 @@ function dataKind(layout: Layout, col: number): { kind: DataKind; maxAbs: number
       if (!Number.isInteger(v)) fractional = true;
       continue;
     }
-    if (scanDateTime(f, 0, f.length, parts)) {
+    if (scanDateTime(f, 0, f.length, parts) || scanBasicIso(f, 0, f.length, parts)) {
       if (parts.hasDate && !parts.yearFirst) {
         dayMonth = true;
         if (parts.n1 > 12) dmy = true;
@@ -86,7 +97,7 @@ function pickColumn(sel: string | number, names: string[], fileName: string, fie
   throw new InputError(`no column named "${sel}" (columns: ${names.map((n) => `"${n}"`).join(', ')})`, { file: fileName, field });
 }
 
-export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, forBaro = false): Plan {
+export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, forBaro = false, long: LongPlan | null = null): Plan {
   const notes: ReadNote[] = [];
   const warnings: ReadNote[] = [];
   const n = layout.fieldCount;
@@ -171,9 +182,18 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
 
   // ---- measured column
   const used = new Set<number>(roles.map((r, i) => (r ? i : -1)).filter((i) => i >= 0));
+  if (long) {
+    used.add(long.tagCol);
+    reasons[long.tagCol] += '; names the tag of each row (one row per time and tag)';
+    if (long.unitCol >= 0) {
+      used.add(long.unitCol);
+      reasons[long.unitCol] += '; gives the unit of each row\'s tag';
+    }
+  }
   const MEASURED: ColumnRole[] = forBaro ? ['absolute-pressure', 'gauge-pressure'] : ['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top'];
   let vc = -1;
   if (!forBaro && opts.levelColumn !== undefined) vc = pickColumn(opts.levelColumn, layout.names, fileName, 'levelColumn');
+  else if (long) vc = longValueColumn(layout, kinds, used, fileName);
   else {
     for (const role of MEASURED) {
       vc = heads.findIndex((h, i) => !used.has(i) && h.role === role && kinds[i].kind === 'number');
@@ -194,7 +214,8 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
   const vName = layout.names[vc];
   if (kinds[vc].kind !== 'number')
     throw new InputError(`column "${vName}" does not hold numbers (${kinds[vc].kind} values)`, { file: fileName, field: vName });
-  const vh = heads[vc];
+  // In long format the tag and its unit say what the value column holds, as a header would.
+  const vh = long ? readHeader(long.tag.unit ? `${long.tag.tag} [${long.tag.unit}]` : long.tag.tag) : heads[vc];
   // Unit: the header's if it names one we know, else the one given.
   let unit: string;
   const givenUnit = forBaro ? undefined : opts.unit;
@@ -211,19 +232,20 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
   const len = lengthFactorToM(unit), pres = pressureFactorToPa(unit);
   if (len === null && pres === null) throw new InputError(`unit "${unit}" is not a length or pressure unit we know`, { file: fileName, field: vName });
   let quantity: Quantity;
+  const hasBaro = !!opts.baro || opts.baroTag !== undefined;
   if (forBaro) quantity = 'absolute-pressure';
   else if (opts.quantity) {
     quantity = opts.quantity;
     notes.push({ code: 'quantity', message: `"${vName}" read as ${quantity}, as given` });
   } else {
     const r = vh.role;
-    if (r === 'gauge-pressure' || r === 'absolute-pressure') quantity = vh.pressureRef === null && opts.baro ? 'absolute-pressure' : r;
+    if (r === 'gauge-pressure' || r === 'absolute-pressure') quantity = vh.pressureRef === null && hasBaro ? 'absolute-pressure' : r;
     else if (r === 'distance-from-top') quantity = r;
     else quantity = 'level';
-    if (pres !== null && (quantity === 'level' || quantity === 'distance-from-top')) quantity = opts.baro ? 'absolute-pressure' : 'gauge-pressure';
+    if (pres !== null && (quantity === 'level' || quantity === 'distance-from-top')) quantity = hasBaro ? 'absolute-pressure' : 'gauge-pressure';
     if (len !== null && (quantity === 'gauge-pressure' || quantity === 'absolute-pressure')) quantity = 'level';
     if ((quantity === 'gauge-pressure' || quantity === 'absolute-pressure') && vh.pressureRef === null)
-      notes.push({ code: 'pressure-reference', message: `"${vName}" does not say gauge or absolute: read as ${quantity}${opts.baro ? ' because a barometric log was given' : ''} (override with --quantity)` });
+      notes.push({ code: 'pressure-reference', message: `"${vName}" does not say gauge or absolute: read as ${quantity}${hasBaro ? ' because a barometric log was given' : ''} (override with --quantity)` });
   }
   const isPressure = quantity === 'gauge-pressure' || quantity === 'absolute-pressure';
   const factor = isPressure ? pres : len;
@@ -255,5 +277,21 @@ export function makePlan(layout: Layout, opts: ReadOptions, fileName: string, fo
     const reason = roles[index] ? reasons[index] : `${reasons[index]}; not used${h.role !== 'other' ? ` (looked like ${h.role})` : ''}`;
     return { index, header, role, unit: u, reason };
   });
-  return { time, orderOpen, value: { col: vc, name: vName, quantity, unit, factor }, temperature, columns, notes, warnings };
+  return { time, tagFilter: long ? { col: long.tagCol, tag: long.tag.tag } : null, orderOpen, value: { col: vc, name: vName, quantity, unit, factor }, temperature, columns, notes, warnings };
+}
+
+const VALUE_WORDS = /^(value|values|val|reading|pv|avg|average|mean|measurement|interpolated value|actual value)$/i;
+const NOT_VALUE = /^(quality|status|flag|flags|q|good|confidence)$/i;
+
+/** The value column of a long-format file: named "value" (or the like), or the only numeric column left. */
+function longValueColumn(layout: Layout, kinds: { kind: string }[], used: Set<number>, fileName: string): number {
+  const numeric = kinds.map((k, i) => (k.kind === 'number' && !used.has(i) && !NOT_VALUE.test(layout.names[i].trim()) ? i : -1)).filter((i) => i >= 0);
+  const named = numeric.find((i) => VALUE_WORDS.test(layout.names[i].trim()));
+  if (named !== undefined) return named;
+  if (numeric.length === 1) return numeric[0];
+  throw new InputError(
+    numeric.length ? `several numeric columns could hold the tags' values (${numeric.map((i) => `"${layout.names[i]}"`).join(', ')}); name it with --level-column`
+      : 'found no numeric column for the tags\' values; name it with --level-column',
+    { file: fileName },
+  );
 }

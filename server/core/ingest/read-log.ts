@@ -8,12 +8,14 @@ import { dropRepeats, findGaps, sortByTime } from './clean.js';
 import { collect, countLines, type Collected } from './collect.js';
 import { detectEncoding, NotUtf8, type EncodingGuess } from './decode.js';
 import { findLayout, type Layout } from './layout.js';
-import { DEFAULT_MAX_BYTES, type ReadOptions } from './options.js';
-import { makePlan, type Plan } from './plan.js';
+import { CLASH_FRACTION, DEFAULT_MAX_BYTES, type ReadOptions } from './options.js';
+import { makePlan, type LongPlan, type Plan } from './plan.js';
+import { findTagColumns, listTags, pickTag, type TagSummary } from './long-format.js';
 import { temperaturesC, toLevelM, type BaroSeries } from './quantity.js';
 import type { RowSource } from './rows.js';
 import type { LevelSeries, ReadNote } from './series.js';
 import { ZoneResolver } from './zone.js';
+import { isZip } from './workbook.js';
 import { decideDateOrder, readTextHead } from './head.js';
 
 
@@ -21,6 +23,7 @@ interface Raw {
   layout: Layout;
   plan: Plan;
   col: Collected;
+  tags: TagSummary[] | null;
   tempC: Float64Array | null;
   absolute: boolean;
   notes: ReadNote[];
@@ -34,15 +37,16 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   const { head, newline } = readTextHead(bytes, fileName, guess);
   const layout = findLayout(head, fileName, opts);
   notes.push(...layout.notes);
-  const plan = makePlan(layout, opts, fileName, forBaro);
+  const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
+  const long = longFormat(rs, layout, opts, fileName, forBaro, notes);
+  const plan = makePlan(layout, opts, fileName, forBaro, long);
   notes.push(...plan.notes);
   warnings.push(...plan.warnings);
-  const rs: RowSource = { bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine };
   const tp = plan.time;
   if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideDateOrder(rs, plan, notes);
   const dated = tp.kind === 'text' || tp.kind === 'date+clock';
   const zone = opts.tz !== undefined && dated ? new ZoneResolver(opts.tz, fileName) : null;
-  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes));
+  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes), layout.group);
 
   if (col.badRows) warnings.push({ code: 'rows-skipped', message: `${col.badRows} row(s) with unreadable cells skipped (line ${col.badLines.join(', ')}${col.badRows > col.badLines.length ? ', …' : ''})` });
   if (col.n === 0) throw new InputError('no readable data rows', { file: fileName });
@@ -53,18 +57,58 @@ function pass(bytes: Uint8Array, fileName: string, opts: ReadOptions, guess: Enc
   if (col.withOffset) notes.push({ code: 'time-zone', message: `${col.withOffset} time(s) carry their UTC offset` });
   if (col.local && col.withOffset) warnings.push({ code: 'mixed-offsets', message: 'some times carry an offset and some do not' });
   if (col.repeated) warnings.push({ code: 'dst-repeated', message: `${col.repeated} time(s) in the hour repeated when clocks went back in ${zone!.zone}: resolved by row order` });
+  if (col.hourBack && !zone && col.local) {
+    throw new InputError(
+      `the time steps back by ${(col.hourBack.stepS / 60).toFixed(1)} min here: a clock change (clocks going back an hour) ` +
+        'in a log written in local time without offsets; give the zone the logger kept, e.g. --tz Europe/Lisbon (the same `tz` setting in the service)',
+      { file: fileName, line: col.hourBack.line, field: plan.columns[tp.kind === 'date+clock' ? tp.clockCol : tp.col]?.header },
+    );
+  }
   if (col.outOfOrder) {
     sortByTime(col);
     warnings.push({ code: 'rows-sorted', message: 'rows were out of time order: sorted by time' });
   }
   const rep = dropRepeats(col);
   if (rep.copies) warnings.push({ code: 'duplicates-dropped', message: `${rep.copies} repeated row(s) dropped (first on line ${rep.firstLine})` });
+  if (rep.conflicts > Math.max(2, CLASH_FRACTION * col.rows)) {
+    const hint = zone || !dated ? 'check the time column and the logger\'s clock'
+      : 'a clock change read without the zone is the usual cause: give the zone the logger kept, e.g. --tz Europe/Lisbon';
+    throw new InputError(`${rep.conflicts} of ${col.rows} rows repeat an earlier time with a different value (first on line ${rep.firstLine}), ` +
+      `more than ${CLASH_FRACTION * 100} %: ${hint}`, { file: fileName, line: rep.firstLine });
+  }
   if (rep.conflicts) warnings.push({ code: 'conflicting-duplicates', message: `${rep.conflicts} row(s) repeat an earlier time with a different value: the first kept (first on line ${rep.firstLine})` });
   if (col.n < 2) throw new InputError('only one data row: a drain test needs a series of readings', { file: fileName, line: col.line[0] });
   const tempC = plan.temperature && col.temp
     ? temperaturesC(col.temp, col.n, plan.temperature.unit, col.line, fileName, plan.temperature.name) : null;
   const absolute = dated || (tp.kind === 'number' && tp.absolute);
-  return { layout, plan, col, tempC, absolute, notes, warnings };
+  return { layout, plan, col, tags: long?.tags ?? null, tempC, absolute, notes, warnings };
+}
+
+/** For a long-format file: its tags, and the one this pass reads (level or barometric). */
+function longFormat(rs: RowSource, layout: Layout, opts: ReadOptions, fileName: string, forBaro: boolean, notes: ReadNote[]): LongPlan | null {
+  const cols = findTagColumns(layout);
+  const wanted = forBaro ? opts.baroTag : opts.levelTag;
+  if (!cols) {
+    if (wanted !== undefined)
+      throw new InputError(`--${forBaro ? 'baro' : 'level'}-tag is for files with one row per time and tag; this file has one column per series (name the column with --level-column)`,
+        { file: fileName, field: forBaro ? 'baroTag' : 'levelTag' });
+    return null;
+  }
+  const tagHeader = layout.names[cols.tagCol];
+  const tags = listTags(rs, cols);
+  const tag = pickTag(tags, wanted, fileName, forBaro ? 'barometric' : 'level', tagHeader);
+  notes.push({ code: 'long-format', message: `one row per time and tag (tag column "${tagHeader}", ${tags.length} tag(s)): the ${forBaro ? 'barometric' : 'level'} series is tag "${tag.tag}"${tag.unit ? ` [${tag.unit}]` : ''}, ${tag.rows} rows` });
+  return { ...cols, tag, tags };
+}
+
+/** The tags of a long-format file (one row per time and tag), or null for an ordinary file. */
+export function readLogTags(bytes: Uint8Array, fileName: string, opts: ReadOptions = {}): TagSummary[] | null {
+  const guess = detectEncoding(bytes);
+  const { head, newline } = readTextHead(bytes, fileName, guess);
+  const layout = findLayout(head, fileName, opts);
+  const cols = findTagColumns(layout);
+  if (!cols) return null;
+  return listTags({ bytes, guess, fileName, delimiter: layout.delimiter, newline, skipThroughLine: layout.dataAfterLine }, cols);
 }
 
 function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro: boolean): Raw {
@@ -72,6 +116,10 @@ function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro
   const max = opts.maxBytes ?? DEFAULT_MAX_BYTES;
   if (bytes.length > max) throw new InputError(`file is ${bytes.length} bytes, more than the ${max} allowed`, { file: fileName });
   if (bytes.length === 0) throw new InputError('empty file', { file: fileName });
+  if (isZip(bytes)) {
+    throw new InputError('a workbook or zip archive, not a text log: efflux fit, efflux inspect and the service read .xlsx workbooks (first sheet, or --sheet NAME); elsewhere export the sheet as CSV',
+      { file: fileName });
+  }
   const guess = detectEncoding(bytes);
   try {
     return pass(bytes, fileName, opts, guess, forBaro);
@@ -83,10 +131,12 @@ function readRaw(bytes: Uint8Array, fileName: string, opts: ReadOptions, forBaro
   return raw;
 }
 
-function readBaro(opts: ReadOptions): { series: BaroSeries; raw: Raw } | null {
-  if (!opts.baro) return null;
-  const { bytes, fileName: baroName } = opts.baro;
-  const raw = readRaw(bytes, baroName, { tz: opts.tz, dateOrder: opts.dateOrder }, true);
+function readBaro(opts: ReadOptions, levelBytes: Uint8Array, levelFile: string): { series: BaroSeries; raw: Raw } | null {
+  // a barometric tag in the level's own long-format file, or a file of its own
+  const source = opts.baroTag !== undefined ? { bytes: levelBytes, fileName: levelFile } : opts.baro;
+  if (!source) return null;
+  const { bytes, fileName: baroName } = source;
+  const raw = readRaw(bytes, baroName, { tz: opts.tz, dateOrder: opts.dateOrder, baroTag: opts.baroTag, delimiter: opts.baroTag !== undefined ? opts.delimiter : undefined, decimal: opts.baroTag !== undefined ? opts.decimal : undefined }, true);
   if (!raw.absolute) throw new InputError('the barometric log needs dates and times (not elapsed time)', { file: baroName });
   const n = raw.col.n;
   const pa = new Float64Array(n);
@@ -116,7 +166,7 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
   const raw = readRaw(bytes, fileName, options, false);
   const { col, plan, layout } = raw;
   const notes = raw.notes, warnings = raw.warnings;
-  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options) : null;
+  const baro = plan.value.quantity === 'absolute-pressure' ? readBaro(options, bytes, fileName) : null;
   if (baro) warnings.push(...baro.raw.warnings.map((w) => ({ code: `baro-${w.code}`, message: `barometric log: ${w.message}` })));
   const { levelM, notes: qNotes } = toLevelM({ n: col.n, timeMs: col.timeMs, value: col.value, line: col.line, tempC: raw.tempC, absoluteTime: raw.absolute },
     plan, options, fileName, baro?.series ?? null);
@@ -143,6 +193,7 @@ export function readLevelLog(bytes: Uint8Array, fileName: string, options: ReadO
     sourceLine: col.line.subarray(0, n),
     metadata: layout.metadata,
     columns: plan.columns,
+    ...(raw.tags ? { tags: raw.tags } : {}),
     notes,
     warnings,
   };

@@ -44,6 +44,8 @@ export interface LevelSeries {
   /** Lines of metadata before the header, as key/value where they look like "key: value". */
   metadata: { line: number; text: string; key?: string; value?: string }[];
   columns: DetectedColumn[];
+  /** For a long-format file (one row per time and tag): every tag with its unit and row count. */
+  tags?: { tag: string; unit: string | null; rows: number }[];
   notes: ReadNote[];
   warnings: ReadNote[];
 }

@@ -85,7 +85,7 @@ function readWith(bytes: Uint8Array, fileName: string, opts: FlowLogOptions, gue
   if (plan.orderOpen && (tp.kind === 'text' || tp.kind === 'date+clock')) tp.order = decideDateOrder(rs, plan, []);
   const dated = tp.kind === 'text' || tp.kind === 'date+clock';
   const zone = opts.tz !== undefined && dated ? new ZoneResolver(opts.tz, fileName) : null;
-  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes));
+  const col = collect(rs, plan, layout.names, layout.decimal, zone, countLines(bytes), layout.group);
   const warnings: string[] = [];
   if (col.badRows) warnings.push(`${col.badRows} row(s) with unreadable cells skipped (line ${col.badLines.join(', ')})`);
   if (col.outOfOrder) {

@@ -8,7 +8,8 @@ import type { LevelSeries } from '../ingest/series.js';
 import { candidateScales, findDrainCandidates } from './candidates.js';
 import { decimate, defaultBlockSamples } from './decimate.js';
 import { cutEnd } from './ending.js';
-import { findOnset, openingTrim } from './opening.js';
+import { findOnset } from './onset.js';
+import { openingTrim } from './opening.js';
 import { estimateNoise, estimateResolution } from './robust.js';
 import { findClipping, findFlatLines } from './runs.js';
 import { findSpikes } from './spikes.js';
@@ -154,28 +155,41 @@ export function chooseDrainWindow(
 
     // 3. Onset and the valve-opening transient.
     const earliest = candidates.filter((c) => c.endIndex <= best.startIndex).reduce((e, c) => Math.max(e, c.endIndex), 0);
-    const onset = findOnset(timeS, levelM, excluded, best.startIndex, best.endIndex, earliest, Math.max(3 * sigma, 1.5 * q));
+    const onset = findOnset(timeS, levelM, excluded, best.startIndex, best.endIndex, earliest, sigma, q, best.dropM);
     notes.push({
       code: 'valve-opened',
       message:
         onset.holdSamples > 0
-          ? `the level left its hold at ${m3(onset.holdLevelM)} at about ${s1(onset.timeS)}`
+          ? `the level left its hold at ${m3(onset.holdLevelM)} (scatter ${(onset.holdScatterM * 1000).toPrecision(2)} mm over ${onset.holdSamples} readings) at about ${s1(onset.timeS)}`
           : `the log starts already falling; the drain is taken from ${s1(onset.timeS)}`,
     });
-    const open = openingTrim(
-      timeS,
-      levelM,
-      excluded,
-      onset,
-      best.endIndex,
-      options.minOpeningTrimS ?? 5,
-      options.maxOpeningTrimFraction ?? 0.1,
-      q,
-    );
-    if (open.capped) warnings.push({ code: 'opening-unsettled', message: open.reason });
+    const open = openingTrim(timeS, levelM, excluded, onset, best.endIndex, {
+      minTrimS: options.minOpeningTrimS ?? 5,
+      resolutionM: q,
+      outletReadingM: options.outletReadingM,
+      areaAtReadingM2: options.areaAtReadingM2,
+    });
     startIndex = onset.index;
     while (startIndex < best.endIndex && timeS[startIndex] < onset.timeS + open.trimS) startIndex++;
-    trims.push({ what: 'valve-opening', fromS: onset.timeS, toS: timeS[startIndex], reason: open.reason });
+    const usedS = timeS[startIndex] - onset.timeS;
+    const share = usedS / Math.max(1e-9, timeS[best.endIndex] - onset.timeS);
+    const pct = `${(share * 100).toFixed(0)} %`;
+    const refuseAt = options.refuseOpeningTrimFraction ?? 0.5;
+    if (share > refuseAt) {
+      throw new InputError(
+        `${open.reason}: trimming that leaves too little of the drain (the trim would take ${pct} of it, more than ` +
+          `${(refuseAt * 100).toFixed(0)} %), so no Cd is given from an automatic window; choose the window by hand (--window START..END) ` +
+          'after looking at the log',
+        { field: 'window' },
+      );
+    }
+    if (share > (options.warnOpeningTrimFraction ?? 0.2)) {
+      warnings.push({
+        code: 'opening-trim-large',
+        message: `the valve-opening trim takes ${usedS.toFixed(1)} s, ${pct} of the drain: the valve opened slowly or the start is unsettled; check the window`,
+      });
+    }
+    trims.push({ what: 'valve-opening', fromS: onset.timeS, toS: timeS[startIndex], reason: `${open.reason}; ${usedS.toFixed(1)} s trimmed (${pct} of the drain)` });
 
     // 4. The end.
     const cut = cutEnd(timeS, levelM, excluded, startIndex, best.endIndex, headFraction, options.outletReadingM);

@@ -1,77 +1,43 @@
 /**
- * The start of a drain: when the valve opened, and how much of the opening transient to skip.
+ * How much of the drain's start to skip: the opening transient, judged from the data, with no
+ * fixed cap. Two rules; the later of the two (and at least `minTrimS`) wins.
  *
- * Onset: the level of the hold before the fall is the median of up to `holdSamples` readings
- * before the candidate's start; the fall is confirmed at the first reading that, with the next
- * two, lies more than max(3 σ, 1.5 reading steps) below it; the onset is put earlier by the time
- * the initial fall rate needs to cover that margin.
- *
- * Transient rule: cut the series after the onset into chunks of max(4 s, 8 sample intervals) and
+ * Wobble rule: cut the series after the onset into chunks of max(4 s, 8 sample intervals) and
  * fit a line to each. The transient has settled at the first chunk from which three chunks in a
  * row have a residual RMS no more than 2.5 times the typical chunk RMS of the drain's body (20 %
- * to 60 % of its duration). The trim lasts at least `minTrimS` (the flow develops over the first
- * seconds even when no wobble shows) and at most `maxFraction` of the drain's duration (so a log
- * that never settles still keeps most of its drain; that case is warned about).
+ * to 60 % of its duration).
+ *
+ * Still-opening rule (physics): once the valve is fully open the outflow can only fall as the
+ * head falls, so the fall rate relative to the head model — rate × area(reading) / √head when
+ * the outlet and the vessel are known, rate × area without the outlet, the bare rate without
+ * either — is steady or shrinking. Chunks of max(8 samples, 1/40 of the drain) each give a rate
+ * and its standard error from a line fit; the valve is taken as open from the first chunk that no
+ * later chunk in the first 80 % of the drain exceeds by more than 3 combined standard errors,
+ * and the trim runs to the end of the chunk after it (the ramp's last part is within the noise of
+ * full flow, so it may end a chunk later).
  */
-import { medianInPlace, slopeOver } from './robust.js';
-
-export interface Onset {
-  index: number;
-  timeS: number;
-  holdLevelM: number;
-  /** Readings the hold level was taken from (0 when the log starts falling). */
-  holdSamples: number;
-}
-
-export function findOnset(
-  timeS: Float64Array,
-  levelM: Float64Array,
-  excluded: Uint8Array,
-  candidateStart: number,
-  candidateEnd: number,
-  earliest: number,
-  marginM: number,
-  holdSamples = 30,
-): Onset {
-  const from = Math.max(earliest, candidateStart - holdSamples);
-  const scratch = new Float64Array(candidateStart - from + 1);
-  let k = 0;
-  for (let i = from; i <= candidateStart; i++) if (!excluded[i]) scratch[k++] = levelM[i];
-  if (k === 0) return { index: candidateStart, timeS: timeS[candidateStart], holdLevelM: levelM[candidateStart], holdSamples: 0 };
-  const hold = medianInPlace(scratch, k);
-  const below = hold - marginM;
-  let cross = -1;
-  for (let i = Math.max(from, 0); i <= candidateEnd && cross < 0; i++) {
-    if (excluded[i] || levelM[i] >= below) continue;
-    let ok = true;
-    let seen = 0;
-    for (let j = i + 1; j <= candidateEnd && seen < 2; j++) {
-      if (excluded[j]) continue;
-      seen++;
-      if (levelM[j] >= below) ok = false;
-    }
-    if (ok) cross = i;
-  }
-  if (cross < 0) cross = candidateStart;
-  // Initial fall rate over max(10 s, 5 % of the drain) after the crossing.
-  const span = Math.max(10, 0.05 * (timeS[candidateEnd] - timeS[cross]));
-  let to = cross;
-  while (to < candidateEnd && timeS[to] < timeS[cross] + span) to++;
-  const rate = -slopeOver(timeS, levelM, cross, to, excluded);
-  let t = timeS[cross];
-  if (rate > 0) t = Math.max(timeS[from], t - marginM / rate);
-  let index = cross;
-  while (index > from && timeS[index - 1] >= t) index--;
-  return { index, timeS: t, holdLevelM: hold, holdSamples: k };
-}
+import type { Onset } from './onset.js';
+import { MAD_TO_SIGMA, medianInPlace, slopeOver } from './robust.js';
 
 export interface OpeningTrim {
   /** Seconds skipped after the onset. */
   trimS: number;
-  /** Seconds after the onset at which the transient was judged settled (may exceed trimS when capped). */
-  settledS: number;
-  capped: boolean;
+  /** Seconds after the onset by which the wobble had died down. */
+  wobbleS: number;
+  /** Seconds after the onset by which the outflow had stopped growing (0 when it never grew). */
+  openingS: number;
+  /** The trim as a share of the drain from the onset to the candidate's end. */
+  share: number;
   reason: string;
+}
+
+export interface TrimContext {
+  minTrimS: number;
+  resolutionM: number;
+  /** Outlet elevation as a reading, when known. */
+  outletReadingM?: number;
+  /** Plan area at a reading, m², when the vessel is known. */
+  areaAtReadingM2?: (readingM: number) => number;
 }
 
 /** The last index in [a, endIndex] from which the next sample is still before tEnd (a at least). */
@@ -99,15 +65,76 @@ function chunkRms(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Arra
   return Math.sqrt(ss / n);
 }
 
+/** Least-squares line over kept samples in [a, b]: slope, its standard error and the mean level. */
+function lineFit(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, a: number, b: number): { slope: number; se: number; meanM: number } {
+  let n = 0, tm = 0, ym = 0;
+  for (let i = a; i <= b; i++) if (!excluded[i]) (n++, (tm += timeS[i]), (ym += levelM[i]));
+  if (n < 3) return { slope: NaN, se: NaN, meanM: NaN };
+  tm /= n;
+  ym /= n;
+  let stt = 0, sty = 0;
+  for (let i = a; i <= b; i++) {
+    if (excluded[i]) continue;
+    stt += (timeS[i] - tm) ** 2;
+    sty += (timeS[i] - tm) * (levelM[i] - ym);
+  }
+  const slope = sty / stt;
+  let ss = 0;
+  for (let i = a; i <= b; i++) if (!excluded[i]) ss += (levelM[i] - ym - slope * (timeS[i] - tm)) ** 2;
+  return { slope, se: Math.sqrt(ss / (n - 2) / stt), meanM: ym };
+}
+
+/** Seconds after the onset by which the outflow, relative to the head model, had stopped growing. */
+function stillOpeningS(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, onset: Onset, endIndex: number, ctx: TrimContext): number {
+  const t0 = onset.timeS;
+  const duration = timeS[endIndex] - t0;
+  const dt = duration / Math.max(1, endIndex - onset.index);
+  const chunkS = Math.max(8 * dt, duration / 40);
+  const rate: number[] = [];
+  const rateSe: number[] = [];
+  const scales: number[] = [];
+  let a = onset.index;
+  for (let c = 0; a <= endIndex && c * chunkS < 0.8 * duration; c++) {
+    const b = lastBefore(timeS, a, endIndex, t0 + (c + 1) * chunkS);
+    const f = lineFit(timeS, levelM, excluded, a, b);
+    let scale = ctx.areaAtReadingM2 ? ctx.areaAtReadingM2(f.meanM) : 1;
+    if (ctx.outletReadingM !== undefined) {
+      const head = f.meanM - ctx.outletReadingM;
+      scale = head > 0 ? scale / Math.sqrt(head) : NaN;
+    }
+    rate.push(-f.slope);
+    rateSe.push(f.se);
+    scales.push(scale);
+    a = b + 1;
+  }
+  // Correlated noise makes a line fit's standard error too small: the scatter of consecutive
+  // chunk rates about each other (scaled MAD of their differences / √2) is the floor, in rate
+  // units before the head model's scaling (which grows as the head falls).
+  const diffs = new Float64Array(Math.max(0, rate.length - 1));
+  let m = 0;
+  for (let c = 1; c < rate.length; c++) if (Number.isFinite(rate[c]) && Number.isFinite(rate[c - 1])) diffs[m++] = Math.abs(rate[c] - rate[c - 1]);
+  const seFloor = m >= 4 ? (MAD_TO_SIGMA * medianInPlace(diffs, m)) / Math.SQRT2 : 0;
+  const k = rate.map((r, c) => r * scales[c]);
+  const se = rateSe.map((e, c) => Math.max(e, seFloor) * Math.abs(scales[c]));
+  for (let c = 0; c < k.length; c++) {
+    if (!Number.isFinite(k[c])) continue;
+    let open = true;
+    for (let j = c + 1; j < k.length && open; j++) {
+      if (Number.isFinite(k[j]) && k[j] > k[c] + 3 * Math.hypot(se[c], se[j])) open = false;
+    }
+    // the last stretch of a ramp is within the noise of full flow: one chunk more
+    if (open) return c === 0 ? 0 : (c + 2) * chunkS;
+  }
+  return 0;
+}
+
 export function openingTrim(
   timeS: Float64Array,
   levelM: Float64Array,
   excluded: Uint8Array,
   onset: Onset,
   endIndex: number,
-  minTrimS: number,
-  maxFraction: number,
-  resolutionM: number,
+  ctx: TrimContext,
 ): OpeningTrim {
   const t0 = onset.timeS;
   const duration = timeS[endIndex] - t0;
@@ -125,7 +152,7 @@ export function openingTrim(
   const body = rms.slice(Math.floor(0.2 * rms.length), Math.max(Math.floor(0.2 * rms.length) + 1, Math.ceil(0.6 * rms.length)));
   const finite = Float64Array.from(body.filter(Number.isFinite));
   const ref = finite.length ? medianInPlace(finite) : 0;
-  const limit = 2.5 * ref + 0.1 * resolutionM + 1e-12;
+  const limit = 2.5 * ref + 0.1 * ctx.resolutionM + 1e-12;
   let settled = rms.length;
   for (let c = 0; c + 2 < rms.length; c++) {
     if (rms[c] <= limit && rms[c + 1] <= limit && rms[c + 2] <= limit) {
@@ -133,14 +160,20 @@ export function openingTrim(
       break;
     }
   }
-  const settledS = settled * chunkS;
-  const cap = maxFraction * duration;
-  const trimS = Math.min(Math.max(settledS, minTrimS), cap);
-  const capped = settledS > cap;
-  const why = capped
-    ? `the level had not settled ${cap.toFixed(1)} s after opening (${(maxFraction * 100).toFixed(0)} % of the drain), so the trim stops there`
-    : settledS > minTrimS
-      ? `the wobble after opening died down by ${settledS.toFixed(1)} s after opening (chunks of ${chunkS.toFixed(1)} s fit a line within 2.5× the drain's usual scatter)`
-      : `the level settled quickly, so the shortest trim of ${minTrimS.toFixed(1)} s is used while the outflow develops`;
-  return { trimS, settledS, capped, reason: `valve opened at about ${t0.toFixed(1)} s; ${why}` };
+  const wobbleS = settled * chunkS;
+  const openingS = stillOpeningS(timeS, levelM, excluded, onset, endIndex, ctx);
+  const trimS = Math.max(wobbleS, openingS, ctx.minTrimS);
+  const why =
+    openingS >= wobbleS && openingS > ctx.minTrimS
+      ? `the outflow kept growing against the head model (the valve was still opening) until about ${openingS.toFixed(1)} s after opening`
+      : wobbleS > ctx.minTrimS
+        ? `the wobble after opening died down by ${wobbleS.toFixed(1)} s after opening (chunks of ${chunkS.toFixed(1)} s fit a line within 2.5× the drain's usual scatter)`
+        : `the level settled quickly, so the shortest trim is used while the outflow develops`;
+  return {
+    trimS,
+    wobbleS,
+    openingS,
+    share: duration > 0 ? trimS / duration : 1,
+    reason: `valve opened at about ${t0.toFixed(1)} s; ${why}`,
+  };
 }

@@ -80,8 +80,15 @@ export interface WindowOptions {
   headFraction?: number;
   /** Shortest valve-opening trim, s (default 5). */
   minOpeningTrimS?: number;
-  /** Longest valve-opening trim as a fraction of the drain's duration (default 0.1). */
-  maxOpeningTrimFraction?: number;
+  /** Warn when the valve-opening trim takes more than this share of the drain (default 0.2). */
+  warnOpeningTrimFraction?: number;
+  /**
+   * Refuse an automatic window when the valve-opening trim takes more than this share of the
+   * drain (default 0.5): too little is left to trust; a person must choose the window.
+   */
+  refuseOpeningTrimFraction?: number;
+  /** Plan area of the vessel at a level reading, m² (lets the still-opening rule use the head model). */
+  areaAtReadingM2?: (readingM: number) => number;
   spikes?: SpikeOptions;
   candidates?: CandidateOptions;
   /** Shortest window accepted, samples (default 10). */

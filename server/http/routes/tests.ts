@@ -33,7 +33,7 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
         summary: 'Upload a drain test (multipart: file "log", optional file "baro", settings and metadata fields); fitted at once',
         description:
           'Text fields: outletId, operator, loggerId, testedAt, notes, and the AnalysisSettings (timeColumn, levelColumn, unit, quantity, ' +
-          'dateOrder, tz, delimiter, decimal, window, fitInflow, fitDatum, fitExponent; booleans as "true"/"false"). ' +
+          'dateOrder, tz, delimiter, decimal, levelTag, baroTag, sheet, window, fitInflow, fitDatum, fitExponent; booleans as "true"/"false"). ' +
           'The raw bytes are stored before the analysis runs. A refused file is answered 422 and not kept.',
         consumes: ['multipart/form-data'],
         params: idParams,

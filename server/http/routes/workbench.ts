@@ -9,7 +9,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { AnalysisSettings } from '../../core/analysis-contract.js';
-import { detectedSummary, prepareDrainTest, type PreparedTest } from '../../core/analyze.js';
+import { detectedSummary, expandWorkbook, prepareDrainTest, type PreparedTest } from '../../core/analyze.js';
 import { decodeHead, detectEncoding, NotUtf8 } from '../../core/ingest/decode.js';
 import { chooseOutlet, vesselForAnalysis } from '../../jobs/ingest.js';
 import type { Vessel } from '../../store/vessels.js';
@@ -88,8 +88,10 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
     async (request) => {
       const v = app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
-      const prepared = prepareDrainTest({ log: up.log, baro: up.baro, vessel: vesselFile(v, up.outletId), vesselFileName: v.name, settings: up.settings });
-      return { head: headLines(up.log.bytes, up.log.fileName), detected: detectedSummary(prepared), series: seriesOf(prepared), settings: up.settings };
+      const req = await expandWorkbook({ log: up.log, baro: up.baro, vessel: vesselFile(v, up.outletId), vesselFileName: v.name, settings: up.settings });
+      const prepared = prepareDrainTest(req);
+      // a workbook's first lines are those of its sheet as text
+      return { head: headLines(req.log.bytes, up.log.fileName), detected: detectedSummary(prepared), series: seriesOf(prepared), settings: up.settings };
     },
   );
 
@@ -113,7 +115,7 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       const log = { bytes: app.store.tests.rawBytes(t.sha256), fileName: t.fileName };
       const baro = t.baro ? { bytes: app.store.tests.rawBytes(t.baro.sha256), fileName: t.baro.fileName } : undefined;
       const vessel = f && f.testId === t.id ? f.vessel : vesselFile(v, t.outletId ?? undefined);
-      const prepared = prepareDrainTest({ log, baro, vessel, vesselFileName: v.name, settings });
+      const prepared = prepareDrainTest(await expandWorkbook({ log, baro, vessel, vesselFileName: v.name, settings }));
       return { series: seriesOf(prepared), detected: detectedSummary(prepared) };
     },
   );

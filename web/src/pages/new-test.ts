@@ -50,7 +50,7 @@ export async function newTestPage({ user, params, main, go }: PageContext): Prom
   const datumKnown = typeof sensor.zeroElevationM === 'number' || typeof sensor.mountElevationM === 'number';
 
   // 1. the files
-  const logInput = h('input', { type: 'file', name: 'log', accept: '.csv,.txt,.tsv,.dat,text/*', required: true });
+  const logInput = h('input', { type: 'file', name: 'log', accept: '.csv,.txt,.tsv,.dat,.xlsx,text/*', required: true });
   const baroInput = h('input', { type: 'file', name: 'baro', accept: '.csv,.txt,.tsv,.dat,text/*' });
   const dropZone = h('div', { class: 'drop-zone' }, h('p', {}, 'Drop the logger file here, or choose it:'), field('Logger file', logInput), field('Barometric log (optional, for an absolute-pressure sensor)', baroInput));
   dropZone.addEventListener('dragover', (e) => {
