@@ -16,7 +16,8 @@ const seconds = Number(process.argv[2] ?? 8);
 const shared = process.env.EFFLUX_SHARED ? join(process.env.EFFLUX_SHARED, 'bench') : join(root, '../shared/bench'); // as bench/run.ts
 
 async function startServer() {
-  const env = { ...process.env, EFFLUX_DATA_DIR: mkdtempSync(join(tmpdir(), 'efflux-bench-')), PORT: '0', EFFLUX_DEMO: '0', EFFLUX_LOG: 'silent' };
+  const dataDir = mkdtempSync(join(tmpdir(), 'efflux-bench-'));
+  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, PORT: '0', EFFLUX_DEMO: '0', EFFLUX_LOG: 'silent' };
   const child = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { env, stdio: ['ignore', 'pipe', 'inherit'] });
   let out = '';
   const base = await new Promise<string>((resolve, reject) => {
@@ -27,13 +28,15 @@ async function startServer() {
     });
     child.on('exit', (c) => reject(new Error(`server exited ${c}`)));
   });
-  const token = /keep it safe:\n\s+(\S+)/.exec(out)![1];
+  const token = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
   return { child, base, token };
 }
 
 function multipartBody(bytes: Buffer, name: string) {
   const boundary = '----effluxbench';
   const body = Buffer.concat([
+    // the same bytes again and again, on purpose: a second copy is otherwise refused (409)
+    Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="allowDuplicate"\r\n\r\ntrue\r\n`),
     Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="log"; filename="${name}"\r\nContent-Type: text/csv\r\n\r\n`),
     bytes,
     Buffer.from(`\r\n--${boundary}--\r\n`),

@@ -156,6 +156,29 @@ export const SETTINGS = {
     dflt: '10',
     meaning: 'sign-in attempts per client address per minute',
   },
+  EFFLUX_ORIGINS: {
+    schema: z
+      .string()
+      .transform((s) =>
+        s
+          .split(',')
+          .map((x) => x.trim())
+          .filter(Boolean),
+      )
+      .pipe(
+        z.array(
+          z
+            .string()
+            .regex(
+              /^https?:\/\/[^/\s]+\/?$/,
+              'must be comma-separated origins like https://efflux.example (scheme and host, no path)',
+            ),
+        ),
+      ),
+    dflt: '',
+    meaning:
+      "origins besides the request's own accepted for cookie-signed writes (comma-separated, e.g. the public https address behind a proxy)",
+  },
   EFFLUX_LOG: {
     schema: z.enum(
       ['silent', 'fatal', 'error', 'warn', 'info', 'debug', 'trace'],
@@ -235,6 +258,8 @@ export function serveConfig(env = process.env, over: ServeOverrides = {}) {
     signInPerMinute: read(env, 'EFFLUX_SIGNIN_PER_MINUTE')!,
     log: read(env, 'EFFLUX_LOG')!,
     webhooks,
+    /** Origins besides the request's own accepted for cookie-authenticated writes (e.g. the public https address behind a proxy). */
+    allowedOrigins: read(env, 'EFFLUX_ORIGINS') ?? [],
   };
 }
 

@@ -6,6 +6,8 @@
  * half-written). The invented demo goes only into an empty folder (marked as the demo's) with --demo.
  */
 import closeWithGrace from 'close-with-grace';
+import { writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { buildApp } from '../http/app.js';
 import { loadDemo } from '../jobs/demo.js';
 import { resumePending, StoppingError } from '../jobs/ingest.js';
@@ -77,7 +79,6 @@ export async function run(argv: string[]): Promise<number> {
     return code;
   };
 
-  let firstToken: string | null = null;
   try {
     if (cfg.demo && demoWanted(store, cfg.dataDir)) {
       store.meta.markDemo(SYSTEM_ACTOR); // before anything invented is written
@@ -93,8 +94,19 @@ export async function run(argv: string[]): Promise<number> {
     await stopEarly(0);
     throw e;
   }
-  if (store.users.count() === 0)
-    firstToken = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start').token;
+  // The first admin token goes to a file only its owner can read, never to the output (logs are
+  // collected and kept by process managers); the person reads it, keeps it, deletes the file.
+  let firstTokenFile: string | null = null;
+  if (store.users.count() === 0) {
+    const { token } = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start');
+    firstTokenFile = join(cfg.dataDir, 'first-admin-token.txt');
+    writeFileSync(firstTokenFile, `${token}\n`, { mode: 0o600, flag: 'w' });
+  }
+  const undated = store.tests.undated();
+  if (undated.length)
+    say(
+      `note: ${undated.length} old test(s) have no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`,
+    );
 
   const app = await buildApp({
     store,
@@ -106,6 +118,7 @@ export async function run(argv: string[]): Promise<number> {
     signInPerMinute: cfg.signInPerMinute,
     webRoot: cfg.webRoot,
     webhooks: cfg.webhooks,
+    allowedOrigins: cfg.allowedOrigins,
     logger: cfg.log === 'silent' ? false : { level: cfg.log },
   });
   // the first analysis in a fresh worker pays the JIT; let the built-in warm-up drain finish first
@@ -114,9 +127,9 @@ export async function run(argv: string[]): Promise<number> {
   say(
     `efflux listening on ${address} (data in ${cfg.dataDir}${store.meta.isDemo() ? '; DEMO data, invented' : ''})`,
   );
-  if (firstToken) {
-    say('first start: an admin token was created. It is shown this once; keep it safe:');
-    say(`  ${firstToken}`);
+  if (firstTokenFile) {
+    say(`first start: an admin token was written to ${firstTokenFile} (readable by this user only);`);
+    say('  sign in with it, keep it safe, delete the file; make people with efflux people add');
   }
   say(`API docs: ${address}/api/docs`); // last line of the start-up banner (tests wait for it)
 

@@ -16,6 +16,12 @@ import { linearModelCsv, linearModelText } from '../core/system/linear-export.js
 import { buildNetwork } from '../core/system/network.js';
 import { parseJsonText, parseSystemFile, type SystemSpec } from '../core/system/schema.js';
 import { steadyState } from '../core/system/steady.js';
+import { drainTimeWithBudget, drainVesselFromFit, levelAfterWithBudget } from '../core/budget/drain-time.js';
+import { requireOrificeLaw, singleVesselModel } from '../core/budget/single-vessel.js';
+import { openStore } from '../store/index.js';
+import { NotFoundError } from '../store/errors.js';
+import { dataDir } from './serve-config.js';
+import { existsSync } from 'node:fs';
 import { EXIT_OK, guarded, readInputFile } from './io.js';
 import { parseCommandLine } from './options.js';
 
@@ -35,20 +41,24 @@ interpolated linearly in time, and must cover the fitted span.
 exit codes: 0 done, 2 input refused, other: internal fault.
 `;
 
-const STEADY_USAGE = `usage: efflux steady <system.json|fit.json> --inflow [ID=]FLOW [--inflow …] [--json]
-
-Equilibrium levels at constant inflows (e.g. --inflow 2.5L/s into the top vessel, or
---inflow T2=1L/s), with intervals when given the output of fit-system --json. A system file
-alone needs each vessel's "effectiveAreaM2" (or "dischargeCoefficient").
+const MODEL_SOURCES = `The model: a system file, the output of fit-system --json, the output of efflux fit --json
+(one vessel), or the id of a fit stored in the data folder (EFFLUX_DATA_DIR, as for efflux serve).
 `;
 
-const LINEAR_USAGE = `usage: efflux linearize <system.json|fit.json> --inflow [ID=]FLOW [--format json|csv|text]
+const STEADY_USAGE = `usage: efflux steady <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--inflow …] [--json]
+
+Equilibrium levels at constant inflows (e.g. --inflow 2.5L/s into the top vessel, or
+--inflow T2=1L/s), with intervals when given a fit. A system file
+alone needs each vessel's "effectiveAreaM2" (or "dischargeCoefficient").
+` + MODEL_SOURCES;
+
+const LINEAR_USAGE = `usage: efflux linearize <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--format json|csv|text]
 
 State-space model dx/dt = A x + B u (C = I) about the equilibrium at the given inflows, with
 each vessel's time constant and, from a fit, standard uncertainties.
-`;
+` + MODEL_SOURCES;
 
-const PREDICT_USAGE = `usage: efflux predict <system.json|fit.json> --from ID=LEVEL [--from …] [--inflow [ID=]FLOW …]
+const PREDICT_USAGE = `usage: efflux predict <system.json|fit.json|FIT_ID> --from [ID=]LEVEL [--from …] [--inflow [ID=]FLOW …]
                      (--after DURATION | --until ID=LEVEL) [--json]
 
 Predicted levels after a time, or the time for one vessel to fall to a level, with 95 % intervals
@@ -60,6 +70,9 @@ when given the output of fit-system --json (a system file alone needs each vesse
   --after DURATION     levels of every vessel after this time (e.g. 600s, 10min, 1.5h; a bare number is seconds)
   --until ID=LEVEL     time for vessel ID to fall from its start level to LEVEL
   --json               one JSON object on stdout
+From a single-vessel fit (efflux fit --json, or a stored fit id) with no inflow the drain is
+integrated exactly (closed form for a constant plan area) and the 95 % interval comes from the
+fit's full uncertainty budget; ID may be left out (--from 3m --until 1m).
 `;
 
 export async function runFitSystem(argv: string[]): Promise<number> {
@@ -157,7 +170,8 @@ export async function runSteady(argv: string[]): Promise<number> {
       process.stdout.write(STEADY_USAGE);
       return EXIT_OK;
     }
-    const { spec, model, name } = readModel(positionals);
+    const { spec, model, name, single } = readModel(positionals);
+    if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const s = steadyState(model, q);
     if (values.json) {
@@ -193,7 +207,8 @@ export async function runLinearize(argv: string[]): Promise<number> {
     }
     const format = values.format ?? 'text';
     if (!['json', 'csv', 'text'].includes(format)) throw new InputError(`--format must be json, csv or text (got "${format}")`);
-    const { spec, model, name } = readModel(positionals);
+    const { spec, model, name, single } = readModel(positionals);
+    if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const lm = linearize(model, q);
     const out = format === 'json' ? JSON.stringify(lm, null, 2) + '\n' : format === 'csv' ? linearModelCsv(lm) : linearModelText(lm);
@@ -217,8 +232,15 @@ export async function runPredict(argv: string[]): Promise<number> {
       return EXIT_OK;
     }
     if ((values.after === undefined) === (values.until === undefined)) throw new InputError('give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)');
-    const { spec, model, name, fromFit } = readModel(positionals);
+    const { spec, model, name, fromFit, single } = readModel(positionals);
     const ids = spec.vessels.map((v) => v.id);
+    if (ids.length === 1) {
+      // one vessel: ID= may be left out
+      values.from = (values.from ?? []).map((x) => (x.includes('=') ? x : `${ids[0]}=${x}`));
+      if (values.until !== undefined && !values.until.includes('=')) values.until = `${ids[0]}=${values.until}`;
+    }
+    if (single && !(values.inflow ?? []).length) return predictSingle(single, spec.name, ids[0], values.from ?? [], values.after, values.until, !!values.json);
+    if (single) requireOrificeLaw(single.vessel, name);
     const start = new Float64Array(ids.length);
     const given = new Set<string>();
     for (const item of values.from ?? []) {
@@ -303,10 +325,66 @@ function readSystem(positionals: string[]): SystemSpec {
 }
 
 function readModel(positionals: string[]) {
-  if (positionals.length !== 1) throw new InputError('give exactly one system file or fit-system JSON');
+  if (positionals.length !== 1) throw new InputError('give exactly one system file, fit JSON or stored fit id');
   const name = positionals[0];
-  const f = readInputFile(name, 16 * 1024 * 1024);
-  return { ...loadSystemModel(parseJsonText(new TextDecoder().decode(f.bytes), name), name), name };
+  let value: unknown;
+  if (/^\d+$/.test(name) && !existsSync(name)) value = storedFitResult(Number(name));
+  else {
+    const f = readInputFile(name, 16 * 1024 * 1024);
+    value = parseJsonText(new TextDecoder().decode(f.bytes), name);
+  }
+  const single = drainVesselFromFit(value);
+  if (single) return { ...singleVesselModel(value, single, name), name, fromFit: true, single };
+  return { ...loadSystemModel(value, name), name, single: null };
+}
+
+/** The result JSON of fit N in the data folder. */
+function storedFitResult(id: number): unknown {
+  const store = openStore({ dataDir: dataDir() });
+  try {
+    return store.fits.get(id).result;
+  } catch (e) {
+    if (e instanceof NotFoundError) throw new InputError(`no fit ${id} in the data folder ${dataDir()} (and no file of that name)`);
+    throw e;
+  } finally {
+    store.close();
+  }
+}
+
+/** predict from a single-vessel fit with no inflow: exact drain integral, intervals from the full budget. */
+function predictSingle(single: NonNullable<ReturnType<typeof drainVesselFromFit>>, name: string, id: string, from: string[], after: string | undefined, until: string | undefined, json: boolean): number {
+  if (from.length !== 1) throw new InputError(`give the start level with --from LEVEL (e.g. --from 3m)`);
+  const level = (item: string, option: string) => idValue(item, option, [id], parseLength).value;
+  const start = level(from[0], '--from');
+  const basis = '95 %, from the fit\'s full uncertainty budget (each input through Cd·a and, for the vessel\'s own dimensions, directly; JCGM 100:2008)';
+  const s2 = (x: number) => x.toFixed(2);
+  if (after !== undefined) {
+    const tS = parseDuration(after);
+    const r = levelAfterWithBudget(single.vessel, single.lines, start, tS);
+    const drained = r.value <= single.vessel.outletElevationM + 1e-9;
+    if (json) {
+      process.stdout.write(JSON.stringify({ vessel: name, id, startM: start, afterS: tS, levelM: r, drainedToOutlet: drained, coverage: basis }, null, 2) + '\n');
+      return EXIT_OK;
+    }
+    const lines = [`efflux predict: ${name}, level after ${tS} s`, `  ${start.toFixed(4)} m → ${r.value.toFixed(4)} m ± ${(r.standardUncertainty * 1000).toPrecision(2)} mm (95 % ${r.ci95[0].toFixed(4)} .. ${r.ci95[1].toFixed(4)} m, k = ${r.coverageFactor.toFixed(2)})`];
+    if (drained) lines.push(`  note: drained to the outlet's level (${single.vessel.outletElevationM} m) within that time`);
+    lines.push(`  interval: ${basis}`);
+    process.stdout.write(lines.join('\n') + '\n');
+    return EXIT_OK;
+  }
+  const toM = level(until!, '--until');
+  const r = drainTimeWithBudget(single.vessel, single.lines, start, toM);
+  if (json) {
+    process.stdout.write(JSON.stringify({ vessel: name, id, startM: start, until: { levelM: toM }, timeS: r, coverage: basis }, null, 2) + '\n');
+    return EXIT_OK;
+  }
+  const lines = [
+    `efflux predict: ${name}`,
+    `  falls from ${start.toFixed(4)} m to ${toM.toFixed(4)} m in ${s2(r.value)} s ± ${r.standardUncertainty.toPrecision(2)} s (95 % ${s2(r.ci95[0])} .. ${s2(r.ci95[1])} s, k = ${r.coverageFactor.toFixed(2)}) = ${(r.value / 60).toFixed(2)} min`,
+    `  interval: ${basis}`,
+  ];
+  process.stdout.write(lines.join('\n') + '\n');
+  return EXIT_OK;
 }
 
 /** --inflow [ID=]FLOW, repeatable; a bare flow goes to the one vessel nothing discharges into. */

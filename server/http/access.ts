@@ -24,3 +24,31 @@ declare module 'fastify' {
     roles?: Access;
   }
 }
+
+/**
+ * Which site a route's record belongs to, for people limited to sites (migration 003):
+ * - 'vessel' | 'test' | 'fit' | 'outlet': the record named by `:id` (checked before the handler);
+ * - 'listed': the handler narrows or checks what it reads itself (lists, fleet, exports, audit);
+ * - 'every-site': only people with no site limit (people and site management, the whole chain);
+ * - 'none': nothing site-owned is read or written (health, sign-in, connected-vessel fits).
+ * Routes under /api/vessels/:id, /api/tests/:id, /api/fits/:id and /api/outlets/:id get theirs
+ * from the path; every other /api route must declare `config.scope` or it refuses to register.
+ */
+export type SiteScope = 'vessel' | 'test' | 'fit' | 'outlet' | 'listed' | 'every-site' | 'none';
+
+const FROM_PATH: [RegExp, SiteScope][] = [
+  [/^\/api\/vessels\/:id(\/|$)/, 'vessel'],
+  [/^\/api\/tests\/:id(\/|$)/, 'test'],
+  [/^\/api\/fits\/:id(\/|$)/, 'fit'],
+  [/^\/api\/outlets\/:id(\/|$)/, 'outlet'],
+];
+
+export function scopeFromPath(url: string): SiteScope | undefined {
+  return FROM_PATH.find(([re]) => re.test(url))?.[1];
+}
+
+declare module 'fastify' {
+  interface FastifyContextConfig {
+    scope?: SiteScope;
+  }
+}

@@ -24,10 +24,12 @@ import { z } from 'zod';
 import { createNotifier, type Notifier } from '../jobs/alerts.js';
 import type { AnalyzeRunner } from '../jobs/pool.js';
 import type { Store } from '../store/index.js';
-import { PUBLIC, type Access } from './access.js';
+import { PUBLIC, scopeFromPath, type Access, type SiteScope } from './access.js';
 import { installAuth } from './auth.js';
 import './context.js';
 import { installProblemHandlers } from './problems.js';
+import { installSiteScope } from './site-scope.js';
+import { peopleRoutes } from './routes/people.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
@@ -74,12 +76,15 @@ export interface AppOptions {
   webhooks?: readonly string[];
   /** The trend's "now", epoch ms (tests inject a fixed time). */
   clockMs?: () => number;
+  /** Origins besides the request's own from which cookie-authenticated writes are accepted (EFFLUX_ORIGINS). */
+  allowedOrigins?: readonly string[];
 }
 
 export interface RouteInfo {
   method: string;
   url: string;
   roles: Access;
+  scope: SiteScope;
 }
 
 declare module 'fastify' {
@@ -150,7 +155,14 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
         throw new Error(`route ${String(route.method)} ${route.url} declares no roles (config.roles)`);
       }
     }
-    for (const method of [route.method].flat()) app.routeList.push({ method, url: route.url, roles });
+    // and which site its record belongs to (people limited to sites): from the path, else declared
+    let scope = route.config?.scope ?? scopeFromPath(route.url);
+    if (scope === undefined) {
+      if (roles === PUBLIC) scope = 'none';
+      else throw new Error(`route ${String(route.method)} ${route.url} declares no site scope (config.scope)`);
+    }
+    route.config = { ...(route.config ?? {}), roles, scope };
+    for (const method of [route.method].flat()) app.routeList.push({ method, url: route.url, roles, scope });
   });
 
   // external plugins
@@ -196,7 +208,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.decorate('clockMs', opts.clockMs ?? Date.now);
 
   // auth and errors (on the root: both are inherited by every route module below)
-  installAuth(app, opts.store);
+  installAuth(app, opts.store, (opts.allowedOrigins ?? []).map((o) => o.toLowerCase()));
+  installSiteScope(app, opts.store);
   installProblemHandlers(app);
 
   // routes
@@ -216,6 +229,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(reportRoutes);
   await app.register(workbenchRoutes);
   await app.register(systemRoutes);
+  await app.register(peopleRoutes);
   app.get(
     '/api/openapi.json',
     { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },

@@ -6,6 +6,7 @@
 import type { FastifyInstance } from 'fastify';
 import type { Store } from '../store/index.js';
 import type { User } from '../store/users.js';
+import { assertSameOrigin } from './origin.js';
 import { HttpProblem } from './problems.js';
 
 export const SESSION_COOKIE = 'efflux_session';
@@ -26,14 +27,20 @@ export function identify(store: Store, authorization: string | undefined, cookie
   return null;
 }
 
-export function installAuth(app: FastifyInstance, store: Store): void {
+export function installAuth(app: FastifyInstance, store: Store, extraOrigins: readonly string[] = []): void {
   app.decorateRequest('user', null);
   app.addHook('onRequest', async (request) => {
     const roles = request.routeOptions.config.roles;
-    if (roles === undefined || roles === 'public') return; // not-found handler, docs, static files
+    if (roles === undefined || roles === 'public') {
+      // sign-in from a foreign page (login CSRF) is refused as well
+      if (request.headers.origin !== undefined && request.routeOptions.url === '/api/session') assertSameOrigin(request, extraOrigins);
+      return; // not-found handler, docs, static files
+    }
     const who = identify(store, request.headers.authorization, request.cookies?.[SESSION_COOKIE]);
     if (who === null) throw new HttpProblem(401, 'unauthenticated', 'credentials required: a Bearer token or a session');
     if (who === 'bad') throw new HttpProblem(401, 'unauthenticated', 'the token or session is not valid');
+    // the cookie is sent by the browser whatever page asks: writes must come from our own origin
+    if (request.headers.authorization === undefined) assertSameOrigin(request, extraOrigins);
     if (!roles.includes(who.role)) throw new HttpProblem(403, 'forbidden', `role ${who.role} may not ${request.method} this resource`);
     request.user = who;
   });

@@ -8,7 +8,7 @@ import { hasZodFastifySchemaValidationErrors, isResponseSerializationError } fro
 import { isInputError } from '../core/errors.js';
 import { AnalysisTimeoutError } from '../jobs/pool.js';
 import { EngineUnavailableError } from '../jobs/worker-reply.js';
-import { ConflictError, isDiskFull, NotFoundError } from '../store/errors.js';
+import { ConflictError, DuplicateUploadError, ForbiddenError, isDiskFull, NotFoundError } from '../store/errors.js';
 
 export interface Problem {
   type: string;
@@ -20,6 +20,8 @@ export interface Problem {
   line?: number;
   field?: string;
   errors?: { path: string; message: string }[];
+  /** 409 duplicate upload: the test that already has these bytes. */
+  existingTestId?: number;
 }
 
 const TITLES: Record<number, string> = {
@@ -91,6 +93,8 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
     return { type: typeOf('disk-full'), status: 507, detail: 'The service\'s disk is full: nothing of this request was kept. Tell the administrator; retry once space is freed.' };
   }
   if (err instanceof NotFoundError) return { type: typeOf('not-found'), status: 404, detail: err.message };
+  if (err instanceof DuplicateUploadError) return { type: typeOf('duplicate-upload'), status: 409, detail: err.message, existingTestId: err.existingTestId };
+  if (err instanceof ForbiddenError) return { type: typeOf('forbidden'), status: 403, detail: err.message };
   if (err instanceof ConflictError) return { type: typeOf('conflict'), status: 409, detail: err.message };
   if (err instanceof EngineUnavailableError || err instanceof AnalysisTimeoutError) {
     return { type: typeOf('analysis-unavailable'), status: 503, detail: err.message };

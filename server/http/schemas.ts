@@ -29,6 +29,7 @@ export const problem = z
     line: z.number().int().optional(),
     field: z.string().optional(),
     errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+    existingTestId: z.number().int().optional(),
   })
   .meta({ id: 'Problem', description: 'RFC 9457 problem details' });
 
@@ -75,7 +76,8 @@ export const drainTest = z
     detected: json.nullable(),
     operator: z.string().nullable(),
     loggerId: z.string().nullable(),
-    testedAt: z.string().nullable(),
+    testedAt: z.string().nullable().meta({ description: "THE date of the test (UTC ISO 8601): stated, or the fitted window's first reading on the log's clock" }),
+    testedAtSource: z.enum(['stated', 'log']).nullable(),
     notes: z.string().nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),
@@ -97,7 +99,9 @@ export const fit = z
     engineVersion: z.string(),
     status: z.enum(['draft', 'approved', 'rejected']),
     supersededBy: z.number().int().nullable(),
-    review: z.object({ comment: z.string().nullable(), by: z.number().int().nullable(), at: z.string().nullable() }).nullable(),
+    review: z
+      .object({ comment: z.string().nullable(), by: z.number().int().nullable(), at: z.string().nullable(), selfReview: z.boolean().meta({ description: 'approved by the uploader or refit requester (site allows self-review)' }) })
+      .nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),
   })

@@ -35,6 +35,7 @@ export const uploadFields = z
     fitInflow: bool,
     fitDatum: bool,
     fitExponent: bool,
+    allowDuplicate: bool,
   })
   .partial()
   .strict();
@@ -50,6 +51,7 @@ export interface ParsedUpload {
   loggerId?: string;
   testedAt?: string;
   notes?: string;
+  allowDuplicate?: boolean;
 }
 
 /** The name as the client gave it, stripped of any folder part and control characters. */
@@ -103,5 +105,5 @@ export async function readUpload(request: FastifyRequest): Promise<ParsedUpload>
   const f = parsed.data;
   const settings: AnalysisSettings = {};
   for (const k of SETTING_KEYS) if (f[k] !== undefined) (settings as Record<string, unknown>)[k] = f[k];
-  return { log: files.log, baro: files.baro, settings, outletId: f.outletId, operator: f.operator, loggerId: f.loggerId, testedAt: f.testedAt, notes: f.notes };
+  return { log: files.log, baro: files.baro, settings, outletId: f.outletId, operator: f.operator, loggerId: f.loggerId, testedAt: f.testedAt, notes: f.notes, allowDuplicate: f.allowDuplicate };
 }

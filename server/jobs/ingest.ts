@@ -1,9 +1,10 @@
 import type { AnalysisSettings } from '../core/analysis-contract.js';
+import { checkStatedTestDate, logTestDate, undatedTestError } from '../core/analysis/test-date.js';
 import { InputError, isInputError } from '../core/errors.js';
 import { ConflictError, isDiskFull } from '../store/errors.js';
 import type { Actor, Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
-import type { DrainTest, RawInput } from '../store/tests.js';
+import { sha256Hex, type DrainTest, type RawInput } from '../store/tests.js';
 import type { Outlet, Vessel } from '../store/vessels.js';
 import type { AnalyzeRunner, RunTiming } from './pool.js';
 
@@ -17,6 +18,12 @@ export interface UploadInput {
   loggerId?: string | null;
   testedAt?: string | null;
   notes?: string | null;
+  /** Store it even when a test of this vessel has the same bytes (the audit entry says so). */
+  allowDuplicate?: boolean;
+  /** The client's Idempotency-Key: a retry with the same key answers the first result. */
+  idempotencyKey?: string | null;
+  /** "Now" for checking a stated date (tests inject it); default the clock. */
+  nowMs?: number;
 }
 
 /** The outlet a test is for: the one named, else the vessel's only active outlet. */
@@ -71,9 +78,14 @@ export async function uploadDrainTest(
   actor: Actor,
   input: UploadInput,
   timing: UploadTiming = {},
-): Promise<{ test: DrainTest; fit: StoredFit }> {
+): Promise<{ test: DrainTest; fit: StoredFit; replayed?: boolean }> {
   const vessel = store.vessels.get(input.vesselId);
+  if (input.idempotencyKey) {
+    const prior = store.tests.byIdempotencyKey(actor.id, input.idempotencyKey);
+    if (prior) return replay(store, prior, input);
+  }
   const outlet = chooseOutlet(vessel, input.outletId);
+  const testedAt = input.testedAt ? checkStatedTestDate(input.testedAt, input.nowMs ?? Date.now()) : null;
   const t0 = performance.now();
   const test = store.tests.createPending(actor, {
     vesselId: vessel.id,
@@ -83,8 +95,10 @@ export async function uploadDrainTest(
     settings: input.settings as Record<string, unknown>,
     operator: input.operator,
     loggerId: input.loggerId,
-    testedAt: input.testedAt,
+    testedAt,
     notes: input.notes,
+    allowDuplicate: input.allowDuplicate,
+    idempotencyKey: input.idempotencyKey,
   });
   timing.storeRawMs = performance.now() - t0;
   let fit: StoredFit;
@@ -100,6 +114,17 @@ export async function uploadDrainTest(
   const answer = { test: store.tests.get(test.id), fit };
   timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
   return answer;
+}
+
+/** A retry with a key already used: the first upload's test and first fit, nothing stored. */
+function replay(store: Store, prior: { testId: number; sha256: string }, input: UploadInput): { test: DrainTest; fit: StoredFit; replayed: true } {
+  if (prior.sha256 !== sha256Hex(input.log.bytes)) {
+    throw new InputError(`this Idempotency-Key was used for test ${prior.testId} with another log file; use a new key for a new upload`, { field: 'Idempotency-Key' });
+  }
+  const test = store.tests.get(prior.testId);
+  const first = store.fits.listByTest(test.id)[0];
+  if (!first) throw new ConflictError(`the upload with this Idempotency-Key (test ${test.id}) is still being analysed; retry shortly`);
+  return { test, fit: first, replayed: true };
 }
 
 async function analyseStored(
@@ -130,12 +155,17 @@ async function analyseStored(
       },
       timing,
     );
+    // the test's one date: stated, else the first reading of the fitted window on the log's clock
+    const logDate = logTestDate(outcome.fit.window, outcome.detected.metadata);
+    if (test.testedAt === null && logDate === null) throw undatedTestError(test.fileName);
     const t0 = performance.now();
-    const fit = store.fits.storeFirst(actor, test.id, outcome.detected, {
-      settings: settings as Record<string, unknown>,
-      vessel: vesselSpec,
-      result: outcome.fit as Record<string, unknown>,
-    });
+    const fit = store.fits.storeFirst(
+      actor,
+      test.id,
+      outcome.detected,
+      { settings: settings as Record<string, unknown>, vessel: vesselSpec, result: outcome.fit as Record<string, unknown> },
+      logDate,
+    );
     timing.storeFitMs = performance.now() - t0;
     return fit;
   } catch (e) {
@@ -188,7 +218,7 @@ function noteFailure(store: Store, testId: number, cause: unknown): void {
   }
 }
 
-/** A new fit of a stored test with changed settings (merged over the old fit's); the old is superseded. */
+/** A new fit of a stored test with changed settings (merged over the old fit's); see FitRepo.refit for what it supersedes. */
 export async function refit(
   store: Store,
   analyze: AnalyzeRunner,

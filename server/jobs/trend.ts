@@ -28,6 +28,7 @@ import type { Outlet } from '../store/vessels.js';
 import type { EpochView, FleetItem, FleetView, ForecastView, LineView, OutletRef, PointView, StatusView, StepView, ThresholdChoice, TrendView } from './trend-views.js';
 
 export type { EpochView, FleetItem, FleetView, ForecastView, LineView, OutletRef, PointView, StatusView, StepView, ThresholdChoice, TrendView };
+import { csvText } from '../core/report/csv.js';
 
 export const STATUS_WORDS: readonly StatusWord[] = ['past threshold', 'sudden change', 'action due soon', 'drifting', 'not enough tests', 'steady'];
 
@@ -255,6 +256,8 @@ export function refreshStale(store: Store, nowMs: number): number {
 }
 
 export interface FleetQuery {
+  /** Only these sites (a person limited to sites); undefined or null = every site. */
+  sites?: readonly string[] | null;
   site?: string;
   status?: StatusWord[];
   includeRetired?: boolean;
@@ -267,6 +270,7 @@ export function fleetStatus(store: Store, q: FleetQuery, nowMs: number): FleetVi
   let items = store.trends.cachedStatuses().map((r) => aged(r, nowMs));
   if (!q.includeRetired) items = items.filter((i) => !i.retired);
   if (q.site !== undefined) items = items.filter((i) => i.site === q.site);
+  if (q.sites) items = items.filter((i) => q.sites!.includes(i.site));
   const counts: Record<string, number> = {};
   for (const w of STATUS_WORDS) counts[w] = 0;
   for (const i of items) counts[i.status]++;
@@ -281,22 +285,17 @@ const CSV_HEADER = [
   'effective_area_m2', 'u_effective_area_m2', 'discharge_coefficient', 'u_discharge_coefficient', 'change_from_baseline_pct',
 ];
 
-function csvField(v: string | number | boolean | null): string {
-  if (v === null) return '';
-  const s = String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
 
 /** An outlet's approved fits with their standard uncertainties and epoch, one row each (RFC 4180, CRLF). */
 export function historyCsv(view: TrendView): string {
-  const lines = [CSV_HEADER.join(',')];
+  const rows: (string | number | boolean | null)[][] = [CSV_HEADER];
   for (const ep of view.epochs) {
     for (const p of ep.series) {
-      lines.push([
+      rows.push([
         p.fitId, p.testId, p.testedAt, p.approvedAt, ep.index, ep.startedBy?.kind ?? 'first tests', p.isBaseline,
         p.effectiveAreaM2, p.effectiveAreaU, p.dischargeCoefficient, p.dischargeCoefficientU, Number(p.changePct.toFixed(6)),
-      ].map(csvField).join(','));
+      ]);
     }
   }
-  return lines.join('\r\n') + '\r\n';
+  return csvText(rows);
 }

@@ -5,6 +5,7 @@ import { domainOf, drawChart } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type Doc, type DocIdentity } from './pdf-doc.js';
 import { contentWidth, ensureRoom, fields, heading, paragraph, table } from './pdf-layout.js';
 import { bytesText, dateText, sig, toU } from './report-format.js';
+import { autocorrelationText } from '../core/budget/table.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
@@ -103,7 +104,7 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
   fields(doc, quantityRows(r.results.effectiveArea), 150);
   if (r.results.profileInterval95M2) fields(doc, [['profile-likelihood interval', `${toU(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty)} … ${toU(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty)} m²`]], 150);
   fields(doc, [['solver converged', r.results.converged ? 'yes' : 'NO']], 150);
-  if (r.review) fields(doc, [[r.review.decision === 'approved' ? 'approved by' : 'rejected by', `${r.review.by ?? '—'} on ${dateText(r.review.at)}${r.review.comment ? ` — “${r.review.comment}”` : ''}`]], 150);
+  if (r.review) fields(doc, [[r.review.decision === 'approved' ? 'approved by' : 'rejected by', `${r.review.by ?? '—'} on ${dateText(r.review.at)}${r.review.selfReview ? ' (SELF-REVIEW: approved by the person who uploaded the test or asked for this fit; allowed for the site by an admin)' : ''}${r.review.comment ? ` — “${r.review.comment}”` : ''}`]], 150);
   else fields(doc, [['review', 'not reviewed (draft)']], 150);
 
   heading(doc, 'Vessel, outlet and test');
@@ -181,9 +182,17 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
   fields(doc, [
     ['residuals', `${rs.samples ?? '—'} samples; RMSE ${sig(rs.rmseM, 3)} m; largest |r| ${sig(rs.maxAbsM, 3)} m; lag-1 autocorrelation ρ = ${sig(rs.lag1Autocorrelation, 3)}; Durbin–Watson ${sig(rs.durbinWatson, 3)}`],
     ['covariance', rs.covariance ?? '—'],
-    ['autocorrelation correction', `${rs.correction ?? '—'}: variance × ${sig(rs.varianceInflation, 4)} = (1+ρ)/(1−ρ) when ρ > 0; ${sig(rs.effectiveSamples, 5)} effective samples, ν = ${sig(rs.degreesOfFreedom, 5)}`],
+    ['autocorrelation correction', `${rs.correction ?? '—'}: ${autocorrelationText(rs.lag1Autocorrelation, rs.varianceInflation)}; ${sig(rs.effectiveSamples, 5)} effective samples, ν = ${sig(rs.degreesOfFreedom, 5)}`],
     ['bore', rs.boreUncertainty ?? '—'],
   ], 150);
+
+  if (r.budget) {
+    heading(doc, 'Uncertainty budget (JCGM 100:2008)');
+    const widths = [130, 70, 70, 70, 80, 60, 45];
+    table(doc, r.budget.columns.map((title, j) => ({ title, width: widths[j] ?? 60, align: j === 0 || j === 3 ? undefined : ('right' as const) })), r.budget.rows);
+    fields(doc, r.budget.totals, 60);
+    for (const n of r.budget.notes) paragraph(doc, `· ${n}`, { size: 7.5 });
+  }
 
   const cmp = r.modelComparison as { basis?: string; chosen?: { model: string; sumSquares: number; aic: number }; rows?: Record<string, any>[] } | null;
   if (cmp?.rows?.length) {

@@ -93,7 +93,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
     { title: 'U(Cd), k', width: 65, align: 'right' }, { title: 'Cd·a, m²', width: 70, align: 'right' }, { title: 'approved', width: 90 }, { title: 'raw file SHA-256 (first 16)', width: 95, mono: true },
   ], r.fits.map((f) => [
     String(f.fitId), dateText(f.testedAt).slice(0, 10), toU(f.dischargeCoefficient, f.dischargeCoefficientU), sig(f.dischargeCoefficientU, 2),
-    `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`, toU(f.effectiveAreaM2, f.effectiveAreaU), `${f.approvedBy ?? '—'}, ${dateText(f.approvedAt).slice(0, 10)}`, f.logSha256.slice(0, 16),
+    `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`, toU(f.effectiveAreaM2, f.effectiveAreaU), `${f.approvedBy ?? '—'}${f.selfReview ? ' (self-review)' : ''}, ${dateText(f.approvedAt).slice(0, 10)}`, f.logSha256.slice(0, 16),
   ]));
   heading(doc, 'Epochs');
   table(doc, [{ title: 'epoch', width: 40 }, { title: 'started by', width: 120 }, { title: 'fits', width: 35, align: 'right' }, { title: 'slope, %/year', width: 90, align: 'right' }, { title: 'threshold, m²', width: 80, align: 'right' }, { title: 'forecast', width: 140 }],

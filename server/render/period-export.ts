@@ -15,6 +15,7 @@ import { renderFitReportPdf } from './fit-report-pdf.js';
 import { allFitsOfVessel, countsInHistory } from './report-records.js';
 import { fitReport } from './report-service.js';
 import { writeZip, type ZipEntry } from './zip.js';
+import { csvText } from '../core/report/csv.js';
 
 export interface ExportSelection {
   site?: string;
@@ -55,7 +56,8 @@ export function selectFits(store: Store, sel: ExportSelection): { fit: StoredFit
   for (const v of vessels) {
     for (const f of allFitsOfVessel(store, v.id).filter(countsInHistory)) {
       const test = store.tests.get(f.testId);
-      const testedAt = test.testedAt ?? test.createdAt;
+      const testedAt = test.testedAt; // the test's one date; an old test no one could date has no place in a period
+      if (testedAt === null) continue;
       const t = Date.parse(testedAt);
       if ((from !== null && t < from) || (to !== null && t >= to)) continue;
       out.push({ fit: f, vessel: v, testedAt });
@@ -64,10 +66,22 @@ export function selectFits(store: Store, sel: ExportSelection): { fit: StoredFit
   return out.sort((a, b) => a.fit.id - b.fit.id);
 }
 
-const csvField = (v: unknown) => {
-  const s = v === null || v === undefined ? '' : String(v);
-  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-};
+
+/** What the archive holds and how to open it safely (written into every export). */
+const EXPORT_README = [
+  'efflux period export',
+  '',
+  'reports/            one PDF fit report per approved fit (each carries its report.json; check with efflux report verify)',
+  'summary.csv         one row per fit (RFC 4180, UTF-8, CRLF); tested_at is the test\'s one date, UTC',
+  'audit-excerpt.jsonl the audit entries of these tests and fits, whole, with their chain hashes',
+  'manifest.json       the selection, the software, every file with its SHA-256; SHA256SUMS the same for sha256sum -c',
+  '',
+  'Opening summary.csv in a spreadsheet: text cells that begin with =, +, -, @, a tab or a carriage return',
+  'are written with a leading apostrophe (\') inside quotes, as the OWASP guidance on CSV injection',
+  'recommends, so no cell is run as a formula; remove the apostrophe only if you trust the text.',
+  'Numbers (including negative ones) are written as plain numbers.',
+  '',
+].join('\r\n');
 
 export interface ExportResult {
   zip: Buffer;
@@ -79,7 +93,8 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
   const chosen = selectFits(store, sel);
   if (chosen.length === 0) throw new InputError('no approved fits match the selection');
   const entries: ZipEntry[] = [];
-  const rows: string[][] = [[
+  // numbers as numbers, text neutralised against spreadsheet formulas (core/report/csv.ts)
+  const rows: (string | number | null)[][] = [[
     'fit_id', 'report_id', 'site', 'vessel', 'outlet', 'tested_at', 'cd', 'cd_standard_uncertainty', 'cd_coverage_factor', 'cd_expanded_uncertainty',
     'cda_m2', 'cda_standard_uncertainty_m2', 'warnings', 'approved_by', 'approved_at', 'raw_file', 'raw_sha256', 'report_file',
   ]];
@@ -93,9 +108,9 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
     const cd = report.results.dischargeCoefficient;
     const ea = report.results.effectiveArea;
     rows.push([
-      String(fit.id), report.reportId, vessel.site, vessel.name, report.outlet.key ?? '', testedAt,
-      String(cd?.value ?? ''), String(cd?.standardUncertainty ?? ''), String(cd?.coverageFactor ?? ''), String(cd?.expandedUncertainty ?? ''),
-      String(ea.value), String(ea.standardUncertainty ?? ''), String(report.warnings.length), report.review?.by ?? '', report.review?.at ?? '',
+      fit.id, report.reportId, vessel.site, vessel.name, report.outlet.key ?? '', testedAt,
+      cd?.value ?? null, cd?.standardUncertainty ?? null, cd?.coverageFactor ?? null, cd?.expandedUncertainty ?? null,
+      ea.value, ea.standardUncertainty ?? null, report.warnings.length, report.review?.by ?? '', report.review?.at ?? '',
       report.rawFiles[0].fileName, report.rawFiles[0].sha256, pdfName,
     ]);
     if (report.review && Date.parse(report.review.at) > Date.parse(latest)) latest = report.review.at;
@@ -107,7 +122,8 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
   }
   audit.sort((a, b) => a.seq - b.seq);
   const enc = new TextEncoder();
-  entries.push({ name: 'summary.csv', bytes: enc.encode(rows.map((r) => r.map(csvField).join(',')).join('\r\n') + '\r\n') });
+  entries.push({ name: 'summary.csv', bytes: enc.encode(csvText(rows)) });
+  entries.push({ name: 'README.txt', bytes: enc.encode(EXPORT_README) });
   entries.push({ name: 'audit-excerpt.jsonl', bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n') });
   const files = entries.map((e) => ({ name: e.name, size: e.bytes.length, sha256: createHash('sha256').update(e.bytes).digest('hex') }));
   const manifest = {

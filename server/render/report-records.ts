@@ -39,7 +39,15 @@ function auditFor(store: Store, entityType: string, entityId: number): AuditReco
 
 export function reviewOf(store: Store, f: StoredFit) {
   if (!f.review || f.status === 'draft') return null;
-  return { decision: f.status as 'approved' | 'rejected', by: userName(store, f.review.by), at: f.review.at!, comment: f.review.comment };
+  // selfReview only when the approval was recorded as one (approvals made before the four-eyes rule
+  // are not marked), so reports issued before it existed still rebuild to the same content
+  const self = f.review.selfReview && approvalRecordedAsSelfReview(store, f.id);
+  return { decision: f.status as 'approved' | 'rejected', by: userName(store, f.review.by), at: f.review.at!, comment: f.review.comment, ...(self ? { selfReview: true as const } : {}) };
+}
+
+function approvalRecordedAsSelfReview(store: Store, fitId: number): boolean {
+  const entries = store.audit.list({ entityType: 'fit', entityId: String(fitId), action: 'fit.approve', limit: 10 });
+  return entries.some((e) => (e.after as { selfReview?: unknown } | null)?.selfReview === true);
 }
 
 export function fitReportRecords(store: Store, fitId: number): FitReportRecords {
@@ -114,7 +122,7 @@ export function outletReportRecords(store: Store, outletId: number): OutletRepor
       return {
         fitId: f.id,
         testId: test.id,
-        testedAt: test.testedAt ?? test.createdAt,
+        testedAt: test.testedAt ?? test.createdAt, // only an old test no one could date lacks one (listed by efflux audit verify)
         log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
         result: f.result as FitJson,
         review: reviewOf(store, f)!,

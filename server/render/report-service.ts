@@ -19,6 +19,7 @@ import {
 } from '../core/report/index.js';
 import { sha256Hex } from '../sha256.js';
 import { canonicalJson } from '../store/canonical-json.js';
+import { verifyRecords } from '../jobs/verify-records.js';
 import type { Store } from '../store/index.js';
 import { renderFitReportPdf } from './fit-report-pdf.js';
 import { renderOutletReportPdf } from './outlet-report-pdf.js';
@@ -219,5 +220,14 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   // 5. the audit chain
   const chain = store.audit.verify();
   checks.push({ name: 'audit chain', ok: chain.ok, detail: chain.ok ? `intact, ${chain.count} entries, head ${chain.head}` : `broken at entry ${chain.brokenAt}: ${chain.reason}` });
+  // 6. every stored copy (result columns, test dates, status cache) against what it was copied from
+  const records = verifyRecords(store);
+  checks.push({
+    name: 'stored copies',
+    ok: records.ok,
+    detail: records.ok
+      ? `${records.fitsChecked} fits and ${records.outletsChecked} cached outlet statuses agree with their sources`
+      : records.differences.slice(0, 20).map((d) => d.message).join('; '),
+  });
   return { ok: checks.every((c) => c.ok), kind: file.kind, reportId: file.reportId, checks };
 }

@@ -18,3 +18,19 @@ export function isDiskFull(err: unknown): boolean {
   const code = (err as { code?: unknown } | null)?.code;
   return code === 'SQLITE_FULL' || code === 'ENOSPC' || code === 'EDQUOT';
 }
+
+/** A rule of the records refuses the act itself (four eyes, a site outside a person's limits): 403. */
+export class ForbiddenError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'ForbiddenError';
+  }
+}
+
+/** A second upload of the same bytes for the same vessel: 409 naming the first test. */
+export class DuplicateUploadError extends ConflictError {
+  constructor(readonly existingTestId: number, message: string) {
+    super(message);
+    this.name = 'DuplicateUploadError';
+  }
+}

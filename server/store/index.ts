@@ -8,6 +8,7 @@ import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
+import { SiteRepo } from './sites.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
@@ -21,6 +22,7 @@ export interface Store {
   fits: FitRepo;
   events: EventRepo;
   users: UserRepo;
+  sites: SiteRepo;
   trends: TrendRepo;
   meta: ServiceMetaRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
@@ -62,14 +64,16 @@ export function openStore(opts: StoreOptions = {}): Store {
   const audit = new AuditLog(db);
   const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
   const tests = new TestRepo(c);
+  const sites = new SiteRepo(c);
   return {
     db,
     audit,
     vessels: new VesselRepo(c),
     tests,
-    fits: new FitRepo(c, tests),
+    fits: new FitRepo(c, tests, sites),
     events: new EventRepo(c),
-    users: new UserRepo(c),
+    users: new UserRepo(c, sites),
+    sites,
     trends: new TrendRepo(c),
     meta: new ServiceMetaRepo(c),
     reserve,
@@ -78,6 +82,6 @@ export function openStore(opts: StoreOptions = {}): Store {
 }
 
 export { SYSTEM_ACTOR, type Actor } from './audit.js';
-export { ConflictError, NotFoundError } from './errors.js';
+export { ConflictError, DuplicateUploadError, ForbiddenError, NotFoundError } from './errors.js';
 export { MigrationError, NewerSchemaError } from './migrate.js';
-export { ROLES, actorOf, type Role, type User } from './users.js';
+export { ROLES, actorOf, type Person, type Role, type TokenInfo, type User } from './users.js';

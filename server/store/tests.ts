@@ -1,7 +1,7 @@
 import { sha256Hex } from '../sha256.js';
 import type { Actor } from './audit.js';
 import { parse, type StoreContext } from './context.js';
-import { NotFoundError } from './errors.js';
+import { ConflictError, DuplicateUploadError, NotFoundError } from './errors.js';
 import { ReadCache, readyText, type ReadyText } from './read-cache.js';
 
 export interface RawInput {
@@ -17,9 +17,17 @@ export interface NewDrainTest {
   settings: Record<string, unknown>;
   operator?: string | null;
   loggerId?: string | null;
+  /** The date the person stated, already checked and in UTC ISO 8601; else the log's own (at analysis). */
   testedAt?: string | null;
   notes?: string | null;
+  /** Store it even when a test of this vessel has the same bytes (recorded in the audit entry). */
+  allowDuplicate?: boolean;
+  /** The client's Idempotency-Key for this upload (per person). */
+  idempotencyKey?: string | null;
 }
+
+/** Where a test's date came from: stated by the person, or the first reading of the fitted window. */
+export type TestedAtSource = 'stated' | 'log';
 
 export interface DrainTest {
   id: number;
@@ -34,7 +42,9 @@ export interface DrainTest {
   detected: Record<string, unknown> | null;
   operator: string | null;
   loggerId: string | null;
+  /** THE date of the test (UTC ISO 8601); null only while pending or for an old test no one could date. */
   testedAt: string | null;
+  testedAtSource: TestedAtSource | null;
   notes: string | null;
   createdBy: number | null;
   createdAt: string;
@@ -64,6 +74,7 @@ interface TestRow {
   operator: string | null;
   logger_id: string | null;
   tested_at: string | null;
+  tested_at_source: TestedAtSource | null;
   notes: string | null;
   created_by: number | null;
   created_at: string;
@@ -88,6 +99,7 @@ function toTest(r: TestRow): DrainTest {
     operator: r.operator,
     loggerId: r.logger_id,
     testedAt: r.tested_at,
+    testedAtSource: r.tested_at_source,
     notes: r.notes,
     createdBy: r.created_by,
     createdAt: r.created_at,
@@ -112,7 +124,7 @@ function testJson(r: TestRow): string {
   return (
     `{"id":${r.id},"vesselId":${r.vessel_id},"outletId":${q(r.outlet_id)},"status":${q(r.status)},"sha256":${q(r.log_sha256)},` +
     `"fileName":${q(r.log_name)},"size":${r.log_size},"baro":${baro},"settings":${r.settings},"detected":${r.detected ?? 'null'},` +
-    `"operator":${q(r.operator)},"loggerId":${q(r.logger_id)},"testedAt":${q(r.tested_at)},"notes":${q(r.notes)},` +
+    `"operator":${q(r.operator)},"loggerId":${q(r.logger_id)},"testedAt":${q(r.tested_at)},"testedAtSource":${q(r.tested_at_source)},"notes":${q(r.notes)},` +
     `"createdBy":${q(r.created_by)},"createdAt":${q(r.created_at)},"failedAttempts":${r.failed_attempts},` +
     `"lastFailure":${q(r.last_failure)},"stuck":${isStuck(r)}}`
   );
@@ -137,15 +149,21 @@ export class TestRepo {
       dropRaw: db.prepare(`DELETE FROM raw_files WHERE sha256 = @sha AND NOT EXISTS
         (SELECT 1 FROM drain_tests WHERE log_sha256 = @sha OR baro_sha256 = @sha)`),
       insert: db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
-        settings, status, operator, logger_id, tested_at, notes, created_by, created_at)
+        settings, status, operator, logger_id, tested_at, tested_at_source, notes, created_by, created_at)
         VALUES (@vesselId, @outletId, @logSha, @logName, @baroSha, @baroName, @settings, 'pending', @operator,
-        @loggerId, @testedAt, @notes, @createdBy, @now)`),
+        @loggerId, @testedAt, @testedAtSource, @notes, @createdBy, @now)`),
+      sameBytes: db.prepare('SELECT id FROM drain_tests WHERE vessel_id = ? AND log_sha256 = ? ORDER BY id LIMIT 1').pluck(),
+      byKey: db.prepare('SELECT test_id, log_sha256 FROM upload_keys WHERE user_id = ? AND key = ?'),
+      putKey: db.prepare('INSERT INTO upload_keys (user_id, key, test_id, log_sha256, created_at) VALUES (?, ?, ?, ?, ?)'),
+      undated: db.prepare('SELECT test_id, reason FROM undated_tests ORDER BY test_id'),
       get: db.prepare(`${SELECT} WHERE t.id = ?`),
       list: db.prepare(`${SELECT} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?`),
       count: db.prepare('SELECT count(*) FROM drain_tests WHERE vessel_id = ?').pluck(),
       countAll: db.prepare('SELECT count(*) FROM drain_tests').pluck(),
       pending: db.prepare(`${SELECT} WHERE t.status = 'pending' ORDER BY t.id`),
-      analysed: db.prepare(`UPDATE drain_tests SET status = 'analysed', detected = ? WHERE id = ? AND status = 'pending'`),
+      analysed: db.prepare(`UPDATE drain_tests SET status = 'analysed', detected = @detected,
+        tested_at = coalesce(tested_at, @logDate), tested_at_source = coalesce(tested_at_source, CASE WHEN @logDate IS NULL THEN NULL ELSE 'log' END)
+        WHERE id = @id AND status = 'pending'`),
       remove: db.prepare(`DELETE FROM drain_tests WHERE id = ? AND status = 'pending'`),
       failed: db.prepare('INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, ?)'),
     };
@@ -162,6 +180,15 @@ export class TestRepo {
       .transaction(() => {
         this.pages.clear();
         const now = this.c.now();
+        const keyOwner = actor.id ?? 0;
+        if (t.idempotencyKey) {
+          const prior = this.q.byKey.get(keyOwner, t.idempotencyKey) as { test_id: number } | undefined;
+          if (prior) throw new ConflictError(`an upload with this Idempotency-Key is still being analysed (test ${prior.test_id}); retry shortly`);
+        }
+        const same = this.q.sameBytes.get(t.vesselId, logSha) as number | undefined;
+        if (same !== undefined && !t.allowDuplicate) {
+          throw new DuplicateUploadError(same, `test ${same} of this vessel has the same log file (SHA-256 ${logSha}); send allowDuplicate=true to store it again`);
+        }
         this.q.putRaw.run(logSha, t.log.bytes.byteLength, Buffer.from(t.log.bytes.buffer, t.log.bytes.byteOffset, t.log.bytes.byteLength), now);
         if (t.baro) this.q.putRaw.run(baroSha, t.baro.bytes.byteLength, Buffer.from(t.baro.bytes.buffer, t.baro.bytes.byteOffset, t.baro.bytes.byteLength), now);
         const id = Number(
@@ -176,13 +203,16 @@ export class TestRepo {
             operator: t.operator ?? null,
             loggerId: t.loggerId ?? null,
             testedAt: t.testedAt ?? null,
+            testedAtSource: t.testedAt ? 'stated' : null,
             notes: t.notes ?? null,
             createdBy: actor.id,
             now,
           }).lastInsertRowid,
         );
+        if (t.idempotencyKey) this.q.putKey.run(keyOwner, t.idempotencyKey, id, logSha, now);
         const test = this.get(id);
-        this.c.audit.append(actor, now, { action: 'test.upload', entityType: 'test', entityId: id, after: test });
+        const marks = same !== undefined ? { duplicateOf: same, allowDuplicate: true } : {};
+        this.c.audit.append(actor, now, { action: 'test.upload', entityType: 'test', entityId: id, after: { ...test, ...marks } });
         return test;
       })
       .immediate();
@@ -234,10 +264,24 @@ export class TestRepo {
       .immediate();
   }
 
-  /** Marks a pending test analysed; call inside the transaction that stores its first fit. */
-  markAnalysed(id: number, detected: Record<string, unknown>): void {
+  /**
+   * Marks a pending test analysed; call inside the transaction that stores its first fit. A test
+   * with no stated date takes `logDate` (the first reading of the fitted window, UTC), once.
+   */
+  markAnalysed(id: number, detected: Record<string, unknown>, logDate: string | null = null): void {
     this.pages.clear();
-    if (this.q.analysed.run(JSON.stringify(detected), id).changes !== 1) throw new Error(`test ${id} is not pending`);
+    if (this.q.analysed.run({ detected: JSON.stringify(detected), logDate, id }).changes !== 1) throw new Error(`test ${id} is not pending`);
+  }
+
+  /** The test an earlier upload with this Idempotency-Key made, with the SHA-256 of its log. */
+  byIdempotencyKey(actorId: number | null, key: string): { testId: number; sha256: string } | null {
+    const r = this.q.byKey.get(actorId ?? 0, key) as { test_id: number; log_sha256: string } | undefined;
+    return r ? { testId: r.test_id, sha256: r.log_sha256 } : null;
+  }
+
+  /** Tests migration 003 could not date (no stated date, and a log with only elapsed time). */
+  undated(): { testId: number; reason: string }[] {
+    return (this.q.undated.all() as { test_id: number; reason: string }[]).map((r) => ({ testId: r.test_id, reason: r.reason }));
   }
 
   get(id: number): DrainTest {

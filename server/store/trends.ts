@@ -91,10 +91,10 @@ const toChange = (r: ChangeRow): StatusChange => ({
   at: r.at,
 });
 
-/** The test's stated time, else when it was uploaded (a test with no usable time still counts). */
-function testedAtOf(r: FitRow): { iso: string; ms: number } {
-  const stated = r.tested_at === null ? NaN : Date.parse(r.tested_at);
-  return Number.isFinite(stated) ? { iso: r.tested_at!, ms: stated } : { iso: r.created_at, ms: Date.parse(r.created_at) };
+/** The test's one date (migration 003); null for an old test no one could date (skipped, never placed at its upload time). */
+function testedAtOf(r: FitRow): { iso: string; ms: number } | null {
+  const ms = r.tested_at === null ? NaN : Date.parse(r.tested_at);
+  return Number.isFinite(ms) ? { iso: r.tested_at!, ms } : null;
 }
 
 export class TrendRepo {
@@ -139,6 +139,10 @@ export class TrendRepo {
         continue;
       }
       const t = testedAtOf(r);
+      if (t === null) {
+        skipped.push({ fitId: r.id, why: `its test ${r.test_id} has no date (no date was stated and its log has only elapsed time)` });
+        continue;
+      }
       fits.push({
         fitId: String(r.id),
         testId: r.test_id,

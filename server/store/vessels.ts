@@ -9,6 +9,8 @@ export type { Outlet, Vessel };
 type OutletInput = Omit<Outlet, 'id' | 'retiredAt'>;
 
 const DEFAULT_SITE = 'main';
+/** Fixed SQL: a NULL @sites (JSON array text) switches the condition off. */
+const IN_SITES = '(@sites IS NULL OR s.name IN (SELECT value FROM json_each(@sites)))';
 
 function num(v: unknown): number | null {
   return typeof v === 'number' && Number.isFinite(v) ? v : null;
@@ -87,7 +89,8 @@ export class VesselRepo {
       byName: db.prepare(`SELECT v.id FROM vessels v JOIN sites s ON s.id = v.site_id
         WHERE s.name = ? AND v.name = ?`).pluck(),
       list: db.prepare(`SELECT v.id, s.name AS site, v.name, v.revision, v.spec, v.created_at, v.updated_at
-        FROM vessels v JOIN sites s ON s.id = v.site_id ORDER BY v.id LIMIT ? OFFSET ?`),
+        FROM vessels v JOIN sites s ON s.id = v.site_id WHERE ${IN_SITES} ORDER BY v.id LIMIT @limit OFFSET @offset`),
+      countIn: db.prepare(`SELECT count(*) FROM vessels v JOIN sites s ON s.id = v.site_id WHERE ${IN_SITES}`).pluck(),
       count: db.prepare('SELECT count(*) FROM vessels').pluck(),
       exists: db.prepare('SELECT 1 FROM vessels WHERE id = ?').pluck(),
       outlets: db.prepare('SELECT * FROM outlets WHERE vessel_id = ? ORDER BY id'),
@@ -119,9 +122,11 @@ export class VesselRepo {
     return (this.q.byName.get(site, name) as number | undefined) ?? null;
   }
 
-  list(limit: number, offset: number): { items: Vessel[]; total: number } {
-    const rows = this.q.list.all(limit, offset) as VesselRow[];
-    return { items: rows.map((r) => this.hydrate(r)), total: this.q.count.get() as number };
+  /** A page of vessels, of the given sites only when `sites` is not null (a person limited to sites). */
+  list(limit: number, offset: number, sites: readonly string[] | null = null): { items: Vessel[]; total: number } {
+    const within = sites === null ? null : JSON.stringify(sites);
+    const rows = this.q.list.all({ sites: within, limit, offset }) as VesselRow[];
+    return { items: rows.map((r) => this.hydrate(r)), total: this.q.countIn.get({ sites: within }) as number };
   }
 
   count(): number {

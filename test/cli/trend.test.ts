@@ -35,13 +35,15 @@ beforeAll(async () => {
   const store = openStore({ dataDir });
   const token = store.users.createToken(SYSTEM_ACTOR, 'eng', 'engineer').token;
   const auth = { authorization: `Bearer ${token}` };
+  // four eyes: a technician uploads, the engineer approves
+  const tech = { authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'tech', 'technician').token}` };
   const app = await buildApp({ store, analyze: trendAnalyze, clockMs: () => Date.parse(AS_OF) });
   const v = (await app.inject({ method: 'POST', url: '/api/vessels', headers: auth, payload: { name: 'CLI tank', site: 'east', shape: { kind: 'vertical-cylinder', diameterM: 2 }, outlet: { boreM: 0.03, elevationM: 0, actionThreshold: 0.9 }, sensor: { zeroElevationM: 0 } } })).json();
   outletId = v.outlets[0].id;
   const h = simulateFoulingHistory({ seed: 3, months: 16, startMs: Date.UTC(2024, 3, 1), baselineAreaM2: 4e-4, driftPctPerYear: -5, relU: 0.004 });
   for (const f of h.fits) {
     const m = multipart([{ field: 'log', name: 'l.csv', bytes: logFor(f.effectiveAreaM2, f.effectiveAreaU) }], { testedAt: new Date(f.testedAtMs).toISOString() });
-    const up = await app.inject({ method: 'POST', url: `/api/vessels/${v.id}/tests`, headers: { ...auth, ...m.headers }, payload: m.payload });
+    const up = await app.inject({ method: 'POST', url: `/api/vessels/${v.id}/tests`, headers: { ...tech, ...m.headers }, payload: m.payload });
     await app.inject({ method: 'POST', url: `/api/fits/${up.json().fit.id}/review`, headers: auth, payload: { decision: 'approve' } });
   }
   apiTrend = (await app.inject({ method: 'GET', url: `/api/outlets/${outletId}/trend?asOf=${AS_OF}`, headers: auth })).json();

@@ -64,7 +64,7 @@ export interface RunningServer {
 /** `efflux serve` on a free port with its own data folder and a fresh web build; the demo scenario loads. */
 export async function startServer(): Promise<RunningServer> {
   const { spawn } = await import('node:child_process');
-  const { rmSync } = await import('node:fs');
+  const { rmSync, readFileSync } = await import('node:fs');
   const { buildWeb } = await import('../../web/build.js');
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
   const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
@@ -81,7 +81,7 @@ export async function startServer(): Promise<RunningServer> {
     server.stderr!.on('data', (d) => (out += d));
     server.once('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
   });
-  const adminToken = /keep it safe:\n\s+(\S+)/.exec(out)![1];
+  const adminToken = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
   return {
     base,
     adminToken,

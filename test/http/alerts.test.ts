@@ -68,7 +68,7 @@ async function until(cond: () => boolean) {
 }
 
 async function uploadAndApprove(vesselId: number, cda: number, atMs: number) {
-  const m = multipart([{ field: 'log', name: 'log.csv', bytes: logFor(cda, cda * 0.003) }], { testedAt: new Date(atMs).toISOString() });
+  const m = multipart([{ field: 'log', name: 'log.csv', bytes: logFor(cda, cda * 0.003) }], { testedAt: new Date(atMs).toISOString(), allowDuplicate: 'true' }); // equal Cd·a → equal bytes, on purpose
   const up = await t.app.inject({ method: 'POST', url: `/api/vessels/${vesselId}/tests`, headers: { ...t.auth('technician'), ...m.headers }, payload: m.payload });
   const fitId = up.json().fit.id as number;
   const res = await t.app.inject({ method: 'POST', url: `/api/fits/${fitId}/review`, headers: t.auth('engineer'), payload: { decision: 'approve' } });

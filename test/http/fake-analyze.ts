@@ -6,6 +6,9 @@
 import type { AnalysisOutcome, AnalysisRequest } from '../../server/core/analysis-contract.js';
 import { InputError } from '../../server/core/errors.js';
 
+/** The window start the stand-in reports for a dated log (the test's date when none is stated). */
+export const FAKE_LOG_START = '2025-03-01T08:00:00.000Z';
+
 export function analyzeDrainTest(req: AnalysisRequest): AnalysisOutcome {
   const text = new TextDecoder().decode(req.log.bytes);
   const lines = text.split('\n');
@@ -26,7 +29,8 @@ export function analyzeDrainTest(req: AnalysisRequest): AnalysisOutcome {
       converged: true,
       dischargeCoefficient: { value: 0.6, standardUncertainty: 0.01, ci95: [0.58, 0.62] },
       effectiveAreaM2: { value: 4e-4, standardUncertainty: 1e-5, ci95: [3.8e-4, 4.2e-4] },
-      window: { startS: 0, endS: rows - 1, samples: rows },
+      // a log whose header says "elapsed" has no clock; the others are dated by this fixed start
+      window: { startS: 0, endS: rows - 1, samples: rows, startTime: /elapsed/i.test(lines[0]) ? null : FAKE_LOG_START },
       warnings: [],
       timing: { parseMs: 0, fitMs: 0 },
       ...fakeDiagnostics(4e-4, 1e-5, rows),

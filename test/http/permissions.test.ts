@@ -1,9 +1,11 @@
 /**
- * Every registered route against every role, from the app's own route list. The table below is
- * declared separately from the routes: a new route with no row here fails the first test, and a
- * route whose roles differ from its row fails the second.
+ * Every registered route against every role, and against site limits, from the app's own route
+ * list. The tables below are declared separately from the routes: a new route with no row here
+ * fails the first test, and a route whose roles or site scope differ from its row fails the second.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
+import type { SiteScope } from '../../server/http/access.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
 import type { Role } from '../../server/store/users.js';
 import { GOOD_LOG, multipart, testApp, VESSEL_FILE, type TestApp } from './helpers.js';
 
@@ -13,6 +15,7 @@ const TECH: Role[] = ['technician', 'engineer', 'admin'];
 const ENG: Role[] = ['engineer', 'admin'];
 const ENG_AUD: Role[] = ['engineer', 'auditor', 'admin'];
 const AUD: Role[] = ['auditor', 'admin'];
+const ADM: Role[] = ['admin'];
 
 const TABLE: Record<string, Rule> = {
   'GET /api/health': 'public',
@@ -54,23 +57,125 @@ const TABLE: Record<string, Rule> = {
   'POST /api/systems/fit': TECH,
   'POST /api/systems/steady': ALL,
   'POST /api/systems/linearize': ALL,
+  'GET /api/people': ADM,
+  'POST /api/people': ADM,
+  'PATCH /api/people/:id': ADM,
+  'POST /api/people/:id/revoke': ADM,
+  'POST /api/people/:id/tokens': ADM,
+  'GET /api/tokens': ADM,
+  'DELETE /api/tokens/:id': ADM,
+  'GET /api/sites': ADM,
+  'PUT /api/sites/:name/settings': ADM,
 };
 
-function ruleFor(method: string, url: string): Rule | undefined {
+/**
+ * Which site each route's record belongs to (server/http/access.ts, SiteScope). Routes with a
+ * vessel, test, fit or outlet in the path are checked before the handler; 'listed' routes narrow
+ * what they read; 'every-site' routes are closed to people limited to sites.
+ */
+const SCOPE: Record<string, SiteScope> = {
+  'GET /api/health': 'none',
+  'GET /api/openapi.json': 'none',
+  'GET /api/docs*': 'none',
+  'POST /api/session': 'none',
+  'GET /api/session': 'none',
+  'DELETE /api/session': 'none',
+  'GET /api/vessels': 'listed',
+  'POST /api/vessels': 'listed',
+  'GET /api/vessels/:id': 'vessel',
+  'PUT /api/vessels/:id': 'vessel',
+  'POST /api/vessels/:id/tests': 'vessel',
+  'GET /api/vessels/:id/tests': 'vessel',
+  'GET /api/vessels/:id/fits': 'vessel',
+  'POST /api/vessels/:id/events': 'vessel',
+  'GET /api/vessels/:id/events': 'vessel',
+  'GET /api/tests/:id': 'test',
+  'GET /api/tests/:id/fits': 'test',
+  'GET /api/tests/:id/raw': 'test',
+  'POST /api/tests/:id/retry': 'test',
+  'POST /api/tests/:id/withdraw': 'test',
+  'GET /api/fits/:id': 'fit',
+  'POST /api/fits/:id/refit': 'fit',
+  'POST /api/fits/:id/review': 'fit',
+  'GET /api/outlets/:id/trend': 'outlet',
+  'GET /api/outlets/:id/history.csv': 'outlet',
+  'GET /api/outlets/:id/status-changes': 'outlet',
+  'PUT /api/outlets/:id/settings': 'outlet',
+  'GET /api/fleet': 'listed',
+  'GET /api/audit': 'listed',
+  'GET /api/audit/verify': 'every-site',
+  'GET /api/fits/:id/report.pdf': 'fit',
+  'GET /api/fits/:id/report.json': 'fit',
+  'GET /api/outlets/:id/report.pdf': 'outlet',
+  'POST /api/exports': 'listed',
+  'POST /api/vessels/:id/inspect': 'vessel',
+  'GET /api/tests/:id/series': 'test',
+  'POST /api/systems/fit': 'none',
+  'POST /api/systems/steady': 'none',
+  'POST /api/systems/linearize': 'none',
+  'GET /api/people': 'every-site',
+  'POST /api/people': 'every-site',
+  'PATCH /api/people/:id': 'every-site',
+  'POST /api/people/:id/revoke': 'every-site',
+  'POST /api/people/:id/tokens': 'every-site',
+  'GET /api/tokens': 'every-site',
+  'DELETE /api/tokens/:id': 'every-site',
+  'GET /api/sites': 'every-site',
+  'PUT /api/sites/:name/settings': 'every-site',
+};
+
+function keyOf(method: string, url: string): string {
   const m = method === 'HEAD' ? 'GET' : method;
-  if (url.startsWith('/api/docs')) return TABLE[`${m} /api/docs*`];
-  return TABLE[`${m} ${url}`];
+  return url.startsWith('/api/docs') ? `${m} /api/docs*` : `${m} ${url}`;
+}
+const ruleFor = (method: string, url: string): Rule | undefined => TABLE[keyOf(method, url)];
+
+interface Records {
+  vessel: number;
+  test: number;
+  fit: number;
+  outlet: number;
+}
+
+/** The problem type of an answer, if it is problem+json (docs pages answer HTML). */
+function problemType(body: string): string | undefined {
+  try {
+    return (JSON.parse(body) as { type?: string }).type;
+  } catch {
+    return undefined;
+  }
 }
 
 let t: TestApp;
-let ids: { vessel: number; test: number; fit: number };
+let ids: Records & { person: number; token: number };
+/** The same kinds of record at site "north", for the site walk. */
+let north: Records;
+/** One token per role for a person limited to site "main". */
+const limited = {} as Record<Role, string>;
+
+/** A route's path with its parameters filled in from the given records. */
+function pathFor(url: string, r: Records, extra: { person: number; token: number }): string {
+  const id = url.startsWith('/api/tests') ? r.test : url.startsWith('/api/fits') ? r.fit : url.startsWith('/api/outlets') ? r.outlet
+    : url.startsWith('/api/people') ? extra.person : url.startsWith('/api/tokens') ? extra.token : r.vessel;
+  return url.replace(':id', String(id)).replace(':name', 'main').replace('*', 'index.css');
+}
 
 beforeAll(async () => {
   t = await testApp();
   const v = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('admin'), payload: VESSEL_FILE });
   const m = multipart([{ field: 'log', name: 'log.csv', bytes: GOOD_LOG }]);
   const up = await t.app.inject({ method: 'POST', url: `/api/vessels/${v.json().id}/tests`, headers: { ...t.auth('admin'), ...m.headers }, payload: m.payload });
-  ids = { vessel: v.json().id, test: up.json().test.id, fit: up.json().fit.id };
+  // a throwaway person and token for the people routes (revoking them must not lock the walk out)
+  const spare = t.store.users.createToken(SYSTEM_ACTOR, 'spare (fictional)', 'technician');
+  ids = { vessel: v.json().id, test: up.json().test.id, fit: up.json().fit.id, outlet: v.json().outlets[0].id, person: spare.user.id, token: spare.tokenId };
+  const nv = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('admin'), payload: { ...VESSEL_FILE, name: 'N-1', site: 'north' } });
+  const nm = multipart([{ field: 'log', name: 'log.csv', bytes: GOOD_LOG }]);
+  const nup = await t.app.inject({ method: 'POST', url: `/api/vessels/${nv.json().id}/tests`, headers: { ...t.auth('admin'), ...nm.headers }, payload: nm.payload });
+  north = { vessel: nv.json().id, test: nup.json().test.id, fit: nup.json().fit.id, outlet: nv.json().outlets[0].id };
+  for (const role of ALL) {
+    const p = t.store.users.addPerson(SYSTEM_ACTOR, `${role} at main (fictional)`, role, ['main']);
+    limited[role] = t.store.users.createTokenFor(SYSTEM_ACTOR, p.id).token;
+  }
 });
 
 describe('permission table', () => {
@@ -95,9 +200,7 @@ describe('permission table', () => {
     const checked: string[] = [];
     for (const r of t.app.routeList) {
       const rule = ruleFor(r.method, r.url)!;
-      const url = r.url
-        .replace(':id', String(r.url.startsWith('/api/tests') ? ids.test : r.url.startsWith('/api/fits') ? ids.fit : ids.vessel))
-        .replace('*', 'index.css');
+      const url = pathFor(r.url, ids, ids);
       for (const who of [null, ...ALL] as (Role | null)[]) {
         const res = await t.app.inject({ method: r.method as 'GET', url, headers: who ? t.auth(who) : {} });
         const label = `${r.method} ${r.url} as ${who ?? 'nobody'} → ${res.statusCode}`;
@@ -111,6 +214,59 @@ describe('permission table', () => {
       }
     }
     expect(checked.length).toBe(t.app.routeList.length * 5);
+  });
+
+  it('each route declares exactly the site scope of its row', () => {
+    const missing = t.app.routeList.filter((r) => SCOPE[keyOf(r.method, r.url)] === undefined).map((r) => `${r.method} ${r.url}`);
+    expect(missing).toEqual([]);
+    for (const r of t.app.routeList) expect(r.scope, `${r.method} ${r.url}`).toBe(SCOPE[keyOf(r.method, r.url)]);
+  });
+
+  it('walks every route against site limits: a person limited to "main" is refused "north" records and routes for everyone', async () => {
+    const as = (role: Role) => ({ authorization: `Bearer ${limited[role]}` });
+    let walked = 0;
+    for (const r of t.app.routeList) {
+      const rule = ruleFor(r.method, r.url)!;
+      const scope = SCOPE[keyOf(r.method, r.url)];
+      for (const role of ALL) {
+        if (rule !== 'public' && !rule.includes(role)) continue; // the role walk covers these
+        const label = `${r.method} ${r.url} as ${role} limited to main`;
+        const other = await t.app.inject({ method: r.method as 'GET', url: pathFor(r.url, north, ids), headers: as(role) });
+        if (scope === 'vessel' || scope === 'test' || scope === 'fit' || scope === 'outlet' || scope === 'every-site') {
+          expect(other.statusCode, label).toBe(403);
+          if (r.method !== 'HEAD') expect(problemType(other.body), label).toBe('urn:efflux:problem:site-forbidden'); // HEAD has no body
+        } else if (scope === 'none') {
+          expect(problemType(other.body), label).not.toBe('urn:efflux:problem:site-forbidden');
+        } // 'listed': the next test checks what each one shows and takes
+        if (scope !== 'every-site' && scope !== 'listed') {
+          const own = await t.app.inject({ method: r.method as 'GET', url: pathFor(r.url, ids, ids), headers: as(role) });
+          expect([401, 403], `${label}, own site → ${own.statusCode}`).not.toContain(own.statusCode);
+        }
+        walked++;
+      }
+    }
+    expect(walked).toBeGreaterThan(t.app.routeList.length);
+  });
+
+  it("'listed' routes show and take only the person's sites", async () => {
+    const as = { authorization: `Bearer ${limited.admin}` };
+    const vessels = await t.app.inject({ method: 'GET', url: '/api/vessels', headers: as });
+    expect(vessels.json().items.map((v: { site: string }) => v.site)).toEqual(['main']);
+    expect(vessels.json().total).toBe(1);
+    const fleet = await t.app.inject({ method: 'GET', url: '/api/fleet', headers: as });
+    expect(new Set(fleet.json().items.map((i: { site: string }) => i.site))).toEqual(new Set(['main']));
+    expect((await t.app.inject({ method: 'GET', url: '/api/fleet?site=north', headers: as })).statusCode).toBe(403);
+    expect((await t.app.inject({ method: 'GET', url: '/api/audit', headers: as })).statusCode).toBe(403);
+    expect((await t.app.inject({ method: 'GET', url: `/api/audit?vesselId=${north.vessel}`, headers: as })).statusCode).toBe(403);
+    expect((await t.app.inject({ method: 'GET', url: `/api/audit?vesselId=${ids.vessel}`, headers: as })).statusCode).toBe(200);
+    expect((await t.app.inject({ method: 'POST', url: '/api/exports', headers: as, payload: { site: 'north' } })).statusCode).toBe(403);
+    expect((await t.app.inject({ method: 'POST', url: '/api/exports', headers: as, payload: {} })).statusCode).toBe(403);
+    expect((await t.app.inject({ method: 'POST', url: '/api/vessels', headers: as, payload: { ...VESSEL_FILE, name: 'N-2', site: 'north' } })).statusCode).toBe(403);
+    // nor may a vessel of theirs be moved to another site
+    const moved = await t.app.inject({ method: 'PUT', url: `/api/vessels/${ids.vessel}`, headers: as, payload: { ...VESSEL_FILE, site: 'north' } });
+    expect(moved.statusCode).toBe(403);
+    // the unlimited admin sees both
+    expect((await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('admin') })).json().total).toBe(2);
   });
 
   it('a bad token is 401, not 403', async () => {

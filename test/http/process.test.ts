@@ -5,7 +5,7 @@
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { mkdtempSync } from 'node:fs';
+import { mkdtempSync, readFileSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -59,7 +59,12 @@ async function upload(base: string, token: string, vesselId: number, i: number) 
 describe('a real server process', () => {
   it('keeps every upload answered 201 across a SIGKILL, and the audit chain verifies', async () => {
     const first = await start();
-    const token = /keep it safe:\n\s+(\S+)/.exec(first.out())![1];
+    // the first admin token is in a file readable by its owner only, never in the output
+    const tokenFile = join(dataDir, 'first-admin-token.txt');
+    const token = readFileSync(tokenFile, 'utf8').trim();
+    expect(token).toMatch(/^efx_/);
+    expect(first.out()).not.toContain(token);
+    expect(statSync(tokenFile).mode & 0o077).toBe(0);
     const auth = { authorization: `Bearer ${token}`, 'content-type': 'application/json' };
     const v = await fetch(`${first.base}/api/vessels`, {
       method: 'POST',
@@ -97,7 +102,7 @@ describe('a real server process', () => {
     expect(answered.length).toBeGreaterThanOrEqual(15);
 
     const second = await start();
-    expect(second.out()).not.toContain('keep it safe'); // not a first start
+    expect(second.out()).not.toContain('first start'); // not a first start
     for (const a of answered) {
       const t = await fetch(`${second.base}/api/tests/${a.id}`, { headers: auth });
       expect(t.status).toBe(200);

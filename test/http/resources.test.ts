@@ -128,7 +128,9 @@ describe('session', () => {
     const cookie = setCookie.split(';')[0];
     const me = await t.app.inject({ method: 'GET', url: '/api/session', headers: { cookie } });
     expect(me.json().user.role).toBe('engineer');
-    expect((await t.app.inject({ method: 'DELETE', url: '/api/session', headers: { cookie } })).statusCode).toBe(204);
+    // a cookie-authenticated write must show it comes from the workbench's own origin
+    expect((await t.app.inject({ method: 'DELETE', url: '/api/session', headers: { cookie } })).statusCode).toBe(403);
+    expect((await t.app.inject({ method: 'DELETE', url: '/api/session', headers: { cookie, origin: 'http://localhost' } })).statusCode).toBe(204);
     expect((await t.app.inject({ method: 'GET', url: '/api/session', headers: { cookie } })).statusCode).toBe(401);
   });
 

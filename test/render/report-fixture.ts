@@ -32,12 +32,14 @@ export async function reportFixture(tests: { log: string; testedAt: string }[] =
   let t = Date.parse('2026-04-01T09:00:00Z');
   const store = openStore({ dataDir, now: () => new Date((t += 1000)).toISOString() });
   const engineer = store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer').user;
+  // four eyes: a technician uploads, the engineer approves
+  const technician = store.users.createToken(SYSTEM_ACTOR, 'T. Ashdown (fictional)', 'technician').user;
   const spec = checkVesselFile(JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8')), 'backwash-tank-fb1.vessel.json');
   const vessel = store.vessels.create(SYSTEM_ACTOR, spec);
   const fitIds: number[] = [];
   let logSha256 = '';
   for (const test of tests) {
-    const { fit, test: stored } = await uploadDrainTest(store, async (req) => analyzeDrainTest(req), actorOf(engineer), {
+    const { fit, test: stored } = await uploadDrainTest(store, async (req) => analyzeDrainTest(req), actorOf(technician), {
       vesselId: vessel.id,
       log: { bytes: readFileSync(sample(test.log)), fileName: test.log },
       settings: {},

@@ -9,7 +9,7 @@ import { FIT_RESULT, memoryStore, SYSTEM_ACTOR, VESSEL } from './helpers.js';
 const bytes = new TextEncoder().encode('t,level\n0,2\n1,1.9\n');
 
 function upload(s: Store, vesselId: number, outletId: number, name = 'log.csv') {
-  return s.tests.createPending(SYSTEM_ACTOR, { vesselId, outletId, log: { bytes, fileName: name }, settings: {} });
+  return s.tests.createPending(SYSTEM_ACTOR, { vesselId, outletId, log: { bytes, fileName: name }, settings: {}, allowDuplicate: true }); // the same bytes on purpose: caching, not duplicates, is tested here
 }
 
 function withFit(s: Store) {

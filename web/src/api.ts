@@ -20,8 +20,8 @@ async function parse(res: Response): Promise<unknown> {
   return res.text();
 }
 
-export async function api<T>(method: string, url: string, body?: unknown): Promise<T> {
-  const init: RequestInit = { method, credentials: 'same-origin', headers: { accept: 'application/json, application/problem+json' } };
+export async function api<T>(method: string, url: string, body?: unknown, extraHeaders: Record<string, string> = {}): Promise<T> {
+  const init: RequestInit = { method, credentials: 'same-origin', headers: { accept: 'application/json, application/problem+json', ...extraHeaders } };
   if (body instanceof FormData) init.body = body;
   else if (body !== undefined) {
     init.body = JSON.stringify(body);
@@ -36,6 +36,11 @@ export async function api<T>(method: string, url: string, body?: unknown): Promi
     throw new ApiError(res.status, where && !detail.includes(String(p?.file ?? '\u0000')) ? `${detail} (${where})` : detail, p);
   }
   return data as T;
+}
+
+/** An upload with an Idempotency-Key: a retry with the same key answers the first result. */
+export async function apiUpload<T>(url: string, body: FormData, idempotencyKey: string): Promise<T> {
+  return api<T>('POST', url, body, { 'idempotency-key': idempotencyKey });
 }
 
 /** Whether a route exists (a route another part of the service may add later, e.g. a report). */
@@ -54,6 +59,8 @@ export interface User {
   id: number;
   name: string;
   role: Role;
+  /** The sites this person may see and act on; null = every site. */
+  sites: string[] | null;
 }
 export type { Outlet, Vessel } from '../../server/core/stored-vessel.js';
 export interface DrainTest {
@@ -85,7 +92,8 @@ export interface Fit {
   engineVersion: string;
   status: 'draft' | 'approved' | 'rejected';
   supersededBy: number | null;
-  review: { comment: string | null; by: number | null; at: string | null } | null;
+  /** selfReview: approved by the uploader or refit requester where an admin allowed it (marked). */
+  review: { comment: string | null; by: number | null; at: string | null; selfReview?: boolean } | null;
   createdAt: string;
 }
 export interface Page<T> {

@@ -9,6 +9,7 @@ import { auditPage } from './pages/audit.js';
 import { fitPage } from './pages/fit.js';
 import { fleetPage } from './pages/fleet.js';
 import { newTestPage } from './pages/new-test.js';
+import { peoplePage } from './pages/people.js';
 import { signInPage } from './pages/sign-in.js';
 import { systemsPage } from './pages/systems.js';
 import { vesselPage } from './pages/vessel.js';
@@ -28,6 +29,7 @@ const routes: [RegExp, Page][] = [
   [/^#\/fits\/(\d+)$/, fitPage],
   [/^#\/systems$/, systemsPage],
   [/^#\/audit$/, auditPage],
+  [/^#\/people$/, peoplePage],
 ];
 
 let user: User | null = null;
@@ -46,6 +48,8 @@ function header(): void {
   // the audit log is for auditors and admins; the others are not shown a link they cannot use
   const auditLink = document.querySelector('.bar nav a[href="#/audit"]') as HTMLElement | null;
   if (auditLink) auditLink.hidden = user.role !== 'auditor' && user.role !== 'admin';
+  const peopleLink = document.querySelector('.bar nav a[href="#/people"]') as HTMLElement | null;
+  if (peopleLink) peopleLink.hidden = user.role !== 'admin' || user.sites !== null;
   const out = h('button', { type: 'button', class: 'quiet' }, 'Sign out');
   out.addEventListener('click', async () => {
     await api('DELETE', '/api/session').catch(() => undefined);

@@ -14,6 +14,8 @@ import { chooseDrainWindow, type WindowChoice } from '../window/index.js';
 import { intervalWiderThanValue, positiveInterval } from '../fit/interval.js';
 import { isZip, workbookAsText } from '../ingest/workbook.js';
 import { ENGINE_VERSION } from '../version.js';
+import { budgetForFit } from '../budget/for-fit.js';
+import type { UncertaintyBudget } from '../budget/budget.js';
 import { decimateForDrawing } from './plot-data.js';
 import { parseWindowSetting } from './window-setting.js';
 
@@ -128,10 +130,13 @@ export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks =
     outlet: vessel.outlet,
     now,
   });
-  const json = fitJson(prepared, fit, { timeS, levelM });
+  const t2 = now();
+  const budget = budgetForFit(prepared, fit, { timeS, levelM });
+  const t3 = now();
+  const json = fitJson(prepared, fit, { timeS, levelM }, budget);
   // fitMs: solver and uncertainty (covariance, correction, profile interval); diagnosticsMs: the
-  // model comparison, head bands and warnings
-  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs };
+  // model comparison, head bands and warnings; budgetMs: the uncertainty budget and drift check
+  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs, budgetMs: t3 - t2 };
   return { detected: detectedSummary(prepared), fit: json };
 }
 
@@ -176,7 +181,7 @@ function finite(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }
 
-function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }): FitJson {
+function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }, budget: UncertaintyBudget): FitJson {
   const { vessel, series, choice } = p;
   const w = choice.window;
   const unc = fit.uncertainty;
@@ -199,14 +204,17 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
 
   // Cd·a and Cd are positive: intervals that would reach zero are given on the log scale, and a
   // fit whose interval is wider than its value is flagged first among the warnings.
-  const eaCi = positiveInterval(ea.value, ea.standardUncertainty, ea.coverageFactor, ea.ci95);
-  const cdCi = positiveInterval(cd.value, cd.standardUncertainty, cd.coverageFactor, cd.ci95);
-  const uncertain = intervalWiderThanValue(ea.value, ea.ci95) || intervalWiderThanValue(cd.value, cd.ci95);
+  // (on the whole budget's intervals: the headline carries the full budget, server/core/budget)
+  const bea = budget.effectiveAreaM2;
+  const bcd = budget.dischargeCoefficient;
+  const eaCi = positiveInterval(ea.value, bea.combinedStandardUncertainty, bea.coverageFactor, bea.ci95);
+  const cdCi = positiveInterval(cd.value, bcd.combinedStandardUncertainty, bcd.coverageFactor, bcd.ci95);
+  const uncertain = intervalWiderThanValue(ea.value, bea.ci95) || intervalWiderThanValue(cd.value, bcd.ci95);
   const warnings = [
     ...(uncertain
       ? [{
           code: 'interval-wider-than-value',
-          message: `the 95 % interval of Cd·a (${ea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
+          message: `the 95 % interval of Cd·a (${bea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
             'the fit says little about Cd; do not use it without checking the window, the time column and the clock (--tz)',
           stage: 'fit',
         }]
@@ -214,33 +222,37 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
     ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
     ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
     ...fit.warnings.map((x) => ({ ...x, stage: 'fit' })),
+    ...budget.warnings.map((x) => ({ ...x, stage: 'budget' })),
   ];
   const excluded = w.samples - data.timeS.length;
   // built loosely, then read back through JSON (no NaN) as the one fit-result shape
   const json = {
     engineVersion: ENGINE_VERSION,
     converged: fit.solver.converged,
+    // the headline carries the full budget (server/core/budget); typeA… keeps the fit's own part
     dischargeCoefficient: {
       value: cd.value,
-      standardUncertainty: cd.standardUncertainty,
+      standardUncertainty: bcd.combinedStandardUncertainty,
       ci95: cdCi.ci95,
       ...(cdCi.logScale ? { ci95Scale: 'log' } : {}),
-      coverageFactor: cd.coverageFactor,
-      expandedUncertainty: cd.expandedUncertainty,
-      relativeStandardUncertainty: cd.relativeStandardUncertainty,
-      effectiveDegreesOfFreedom: cd.effectiveDegreesOfFreedom,
+      coverageFactor: bcd.coverageFactor,
+      expandedUncertainty: bcd.expandedUncertainty,
+      relativeStandardUncertainty: bcd.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: bcd.effectiveDegreesOfFreedom,
       fitContribution: cd.fitContribution,
       boreContribution: cd.boreContribution,
+      typeAStandardUncertainty: budget.typeA.standardUncertainty / nominal,
     },
     effectiveAreaM2: {
       value: ea.value,
-      standardUncertainty: ea.standardUncertainty,
+      standardUncertainty: bea.combinedStandardUncertainty,
       ci95: eaCi.ci95,
       ...(eaCi.logScale ? { ci95Scale: 'log' } : {}),
-      coverageFactor: ea.coverageFactor,
-      expandedUncertainty: ea.expandedUncertainty,
-      relativeStandardUncertainty: ea.relativeStandardUncertainty,
-      effectiveDegreesOfFreedom: ea.effectiveDegreesOfFreedom,
+      coverageFactor: bea.coverageFactor,
+      expandedUncertainty: bea.expandedUncertainty,
+      relativeStandardUncertainty: bea.relativeStandardUncertainty,
+      effectiveDegreesOfFreedom: bea.effectiveDegreesOfFreedom,
+      typeAStandardUncertainty: budget.typeA.standardUncertainty,
       profileCi95: ea.profileCi95,
     },
     window: {
@@ -289,6 +301,7 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       boreUncertainty: 'bore tolerance as a rectangular distribution, u(d) = T/√3 (JCGM 100:2008, 4.3.7)',
       profile: ea.profile,
     },
+    budget,
     modelComparison: fit.comparison,
     headBands: fit.headBands.map((b) => ({ ...b, dischargeCoefficient: b.effectiveAreaM2 / nominal, standardUncertainty: b.standardUncertainty / nominal })),
     solver: {

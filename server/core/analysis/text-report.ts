@@ -1,6 +1,7 @@
 import type { FitJson } from '../analysis-contract.js';
 import { correlationLines, pad, parameterLines, SAFETY_LINES, solverLine, warningLines } from '../fit-result/text.js';
 import { sig, toU } from './format.js';
+import { autocorrelationText } from '../budget/table.js';
 
 /**
  * The readable fit report printed by `efflux fit` (and reused by the service): everything a
@@ -43,7 +44,14 @@ export function textReport(fit: FitJson): string {
   lines.push('');
   lines.push(`Residuals  RMSE ${sig(r?.rmseM, 3)} m, max |r| ${sig(r?.maxAbsM, 3)} m, lag-1 autocorrelation ${sig(r?.lag1Autocorrelation, 3)}, Durbin–Watson ${sig(r?.durbinWatson, 3)}`);
   if (um) {
-    lines.push(`Uncertainty  ${um.covariance}; correction: ${um.autocorrelationCorrection} (variance ×${sig(um.varianceInflation, 3)}, ${sig(um.effectiveSamples, 4)} effective of ${um.samples} samples, ν = ${sig(um.degreesOfFreedom, 4)}, t = ${sig(um.coverageFactor, 4)})`);
+    lines.push(`Uncertainty  ${um.covariance}; correction: ${um.autocorrelationCorrection} (${autocorrelationText(um.lag1Autocorrelation, um.varianceInflation)}, ${sig(um.effectiveSamples, 4)} effective of ${um.samples} samples, ν = ${sig(um.degreesOfFreedom, 4)}, t = ${sig(um.coverageFactor, 4)})`);
+  }
+  const budget = f.budget as { table?: { columns: string[]; rows: string[][]; totals: [string, string][] }; notes?: string[] } | undefined;
+  if (budget?.table) {
+    lines.push('');
+    lines.push('Uncertainty budget (JCGM 100:2008)');
+    lines.push(...budgetTableText(budget.table));
+    for (const n of budget.notes ?? []) lines.push(`  · ${n}`);
   }
   const cmp = f.modelComparison;
   if (cmp && cmp.rows?.length) {
@@ -77,9 +85,16 @@ function headline(lines: string[], f: FitJson & Record<string, any>): void {
   if (cd) {
     const u = cd.standardUncertainty;
     lines.push(`Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`);
-    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, the bore tolerance dominates' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
+    lines.push(`                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, stated limits dominate' : sig(cd.effectiveDegreesOfFreedom, 3)})`);
   }
   const ue = ea.standardUncertainty;
   lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
   lines.push(`                       95 % interval ${toU(ea.ci95[0], ue)} … ${toU(ea.ci95[1], ue)} m²` + (ea.profileCi95 ? `   profile: ${toU(ea.profileCi95[0], ue)} … ${toU(ea.profileCi95[1], ue)} m²` : ''));
+}
+
+/** The budget table in fixed-width columns (the strings come from the fit JSON). */
+export function budgetTableText(t: { columns: string[]; rows: string[][]; totals: [string, string][] }): string[] {
+  const widths = t.columns.map((c, j) => Math.max(c.length, ...t.rows.map((r) => r[j].length)));
+  const row = (cells: string[]) => '  ' + cells.map((c, j) => pad(c, widths[j] + 2)).join('').trimEnd();
+  return [row(t.columns), ...t.rows.map(row), ...t.totals.map(([k, v]) => `  ${pad(k, 6)}${v}`)];
 }

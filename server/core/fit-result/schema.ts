@@ -69,6 +69,17 @@ export const gumEstimate = z.looseObject({
   effectiveDegreesOfFreedom: num.optional(),
 });
 
+/**
+ * The uncertainty budget as stored (server/core/budget builds it): the printed table (the same
+ * strings in the CLI, the fit page and the PDF), the lines with their numbers, and the notes.
+ */
+export const budgetJson = z.looseObject({
+  basis: z.string().optional(),
+  lines: z.array(z.looseObject({ key: z.string(), input: z.string(), standardUncertainty: num, contribution: num, share: num })),
+  table: z.looseObject({ columns: z.array(z.string()), rows: z.array(z.array(z.string())), totals: z.array(z.tuple([z.string(), z.string()])) }),
+  notes: z.array(z.string()),
+});
+
 /** The members every fit has. */
 const fitCommon = {
   converged: z.boolean(),
@@ -76,8 +87,8 @@ const fitCommon = {
   correlations,
   solver: solverRecord,
   warnings: z.array(fitWarning),
-  /** The uncertainty budget (another part of the engine fills it in when present). */
-  budget: z.unknown().optional(),
+  /** The uncertainty budget (JCGM 100:2008), absent from fits stored before it existed. */
+  budget: budgetJson.optional(),
 };
 
 const note = z.looseObject({ code: z.string(), message: z.string() });
@@ -100,7 +111,7 @@ export const singleFitResult = z
       trims: z.array(z.looseObject({ what: z.string(), fromS: num, toS: num, reason: z.string() })).optional(),
       notes: z.array(note).optional(),
     }),
-    timing: z.looseObject({ parseMs: z.number(), fitMs: z.number(), diagnosticsMs: z.number().optional() }),
+    timing: z.looseObject({ parseMs: z.number(), fitMs: z.number(), diagnosticsMs: z.number().optional(), budgetMs: z.number().optional() }),
     modelComparison: z
       .looseObject({
         chosen: z.looseObject({ model: z.string(), parameters: z.number().int(), sumSquares: num, aic: num }),

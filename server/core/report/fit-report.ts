@@ -65,8 +65,14 @@ export interface FitReport {
   };
   modelComparison: unknown;
   headBands: { headFromM: number; headToM: number; samples: number; dischargeCoefficient: number; standardUncertainty: number }[];
+  /**
+   * The uncertainty budget table exactly as the fit JSON states it (server/core/budget/table.ts);
+   * absent for fits made before it, so the report of such a fit keeps its content and id.
+   */
+  budget?: { columns: string[]; rows: string[][]; totals: [string, string][]; notes: string[] };
   warnings: { stage: string | null; code: string; message: string }[];
-  review: { decision: string; by: string | null; at: string; comment: string | null } | null;
+  /** selfReview: approved by the uploader or refit requester where the site allows it (four eyes waived). */
+  review: { decision: string; by: string | null; at: string; comment: string | null; selfReview?: true } | null;
   history: { fitId: number; status: string; createdAt: string; createdBy: string | null; supersededBy: number | null; dischargeCoefficient: number | null; effectiveAreaM2: number | null; settings: Record<string, unknown>; thisFit: boolean }[];
   audit: { seq: number; at: string; actor: string; action: string; entity: string; hash: string }[];
   /** Data for drawing: the log, the window with the fitted curve (decimated by the analysis). */
@@ -239,6 +245,7 @@ export function buildFitReport(records: FitReportRecords, software: SoftwareReco
     },
     modelComparison: r.modelComparison ?? null,
     headBands: arr<Json>(r.headBands).map((b) => ({ headFromM: b.headFromM, headToM: b.headToM, samples: b.samples, dischargeCoefficient: b.dischargeCoefficient, standardUncertainty: b.standardUncertainty })),
+    ...(r.budget?.table ? { budget: { columns: arr<string>(r.budget.table.columns), rows: arr<string[]>(r.budget.table.rows), totals: arr<[string, string]>(r.budget.table.totals), notes: arr<string>(r.budget.notes) } } : {}),
     warnings: arr<Json>(r.warnings).map((x) => ({ stage: str(x.stage), code: String(x.code), message: String(x.message) })),
     review: fit.review ? { ...fit.review } : null,
     history: records.history

@@ -15,6 +15,8 @@ export const OUTLET_REPORT_FORMAT = 'efflux-outlet-report';
 export const DEFAULT_ACTION_THRESHOLD_PCT = -10;
 
 export interface OutletReportFit {
+  /** An approval by the uploader or refit requester (four eyes waived for the site); absent otherwise. */
+  selfReview?: true;
   fitId: number;
   testId: number;
   testedAt: string;
@@ -93,6 +95,7 @@ export function buildOutletReport(records: OutletReportRecords, software: Softwa
         effectiveAreaU: r.effectiveAreaM2.standardUncertainty,
         approvedBy: f.review.by,
         approvedAt: f.review.at,
+        ...(f.review.selfReview ? { selfReview: true as const } : {}),
       };
     });
   const trendFits: ApprovedFit[] = fits.map((f) => ({

@@ -42,6 +42,8 @@ export interface ReviewRecord {
   by: string | null;
   at: string;
   comment: string | null;
+  /** Present (true) only for an approval by the uploader or refit requester, where the site allows it. */
+  selfReview?: true;
 }
 
 export interface FitRecord {

@@ -123,6 +123,7 @@ function modelFromFitJson(value: unknown, fileName: string): { spec: SystemSpec;
       free: Int32Array.from(r.data.free),
       covariance: Float64Array.from(r.data.covariance.flat()),
       degreesOfFreedom: r.data.degreesOfFreedom,
+      specs: spec.vessels.map((v) => v.shape),
     },
   };
 }
@@ -141,7 +142,7 @@ function modelFromSystem(spec: SystemSpec, fileName: string): SystemModel {
     theta[i * PER_VESSEL + P.effectiveArea] = v.knownEffectiveAreaM2;
     theta[i * PER_VESSEL + P.sensorZero] = v.sensorZeroM ?? 0;
   });
-  return { network, theta, free: new Int32Array(0), covariance: null, degreesOfFreedom: 1e7 };
+  return { network, theta, free: new Int32Array(0), covariance: null, degreesOfFreedom: 1e7, specs: spec.vessels.map((v) => v.shape) };
 }
 
 /** Either kind of file: a fit-system JSON (has "format") or a system file. */

@@ -14,6 +14,8 @@ export interface SystemModel {
   free: Int32Array;
   covariance: Float64Array | null;
   degreesOfFreedom: number;
+  /** Each vessel's shape as written in its file (for exact drain integrals), when known. */
+  specs?: import('../geometry/spec.js').ShapeSpec[];
 }
 
 /** The effective-area entries of the covariance: which θ index each row is, and Σ restricted to them. */

@@ -3,6 +3,7 @@ import { integrateSystem } from './integrate.js';
 import { propagate } from './matrix.js';
 import { coverageFactor, estimate, operatingTheta, outletCovariance, type Estimate, type SystemModel } from './model.js';
 import { P, PER_VESSEL, type InflowInput } from './network.js';
+import { drainTimeS } from '../budget/drain-time.js';
 
 /**
  * Predictions from a fitted system, with intervals by the delta method: the coupled ODE's own
@@ -48,6 +49,25 @@ export function timeToLevel(model: SystemModel, startM: Float64Array, inflows: r
   const r = free.length;
   const v0 = model.network.vessels[vessel];
   const c = th[vessel * PER_VESSEL + P.effectiveArea];
+  if (toM < v0.outletElevationM) {
+    throw new InputError(`${toM} m is below ${v0.id}'s outlet (centreline at ${v0.outletElevationM} m above its bottom): the level cannot fall below the outlet through it; give a level at or above ${v0.outletElevationM} m`);
+  }
+  // a vessel that nothing feeds drains on its own: the exact integral, finite down to the outlet's
+  // level (the ODE's straight-line zone near zero head only approaches it)
+  const fed = inflows.some((f) => f.vessel === vessel) || model.network.vessels.some((v) => v.receiver === vessel) || th[vessel * PER_VESSEL + P.leak] !== 0;
+  if (!fed && v0.connection === 'free') {
+    const spec = model.specs?.[vessel];
+    if (spec) {
+      const t = drainTimeS({ shape: spec, outletElevationM: v0.outletElevationM, gravity: model.network.gravity, effectiveAreaM2: c, exponent: 0.5 }, startM[vessel], toM);
+      let variance: number | null = null;
+      if (cov) {
+        const a = Array.from(cov.index).indexOf(vessel * PER_VESSEL + P.effectiveArea);
+        // t ∝ 1/Cd·a: ∂t/∂(Cd·a) = −t/Cd·a
+        if (a >= 0) variance = (t / c) ** 2 * cov.sigma[a * cov.index.length + a];
+      }
+      return estimate(t, variance, coverageFactor(model));
+    }
+  }
   // first horizon: the vessel alone, at its starting area, with no inflow
   let horizon = (2 * v0.shape.areaM2(startM[vessel]) * Math.sqrt(Math.max(startM[vessel] - v0.outletElevationM, 1e-6))) / (c * Math.sqrt(2 * model.network.gravity));
   for (; horizon <= maxS; horizon *= 2) {
@@ -75,5 +95,6 @@ export function timeToLevel(model: SystemModel, startM: Float64Array, inflows: r
       return estimate(tStar, variance, coverageFactor(model));
     }
   }
-  throw new InputError(`${v0.id} does not fall to ${toM} m within ${maxS} s (the inflow holds it up)`);
+  const held = inflows.length > 0 || model.network.vessels.some((v) => v.receiver === vessel);
+  throw new InputError(`${v0.id} does not fall to ${toM} m within ${maxS} s${held ? ' (the inflow into it holds it up)' : ''}`);
 }

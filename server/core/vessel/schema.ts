@@ -21,6 +21,8 @@ const outletSchema = z.strictObject({
   boreM: z.number().positive(),
   boreToleranceM: z.number().min(0).optional(),
   elevationM: z.number().min(0),
+  /** ± limits of the outlet centreline's elevation, m. */
+  elevationToleranceM: z.number().min(0).optional(),
   type: z.enum(OUTLET_TYPES).optional(),
   id: z.string().min(1).optional(),
 });
@@ -30,12 +32,26 @@ const sensorSchema = z.strictObject({
   zeroElevationM: z.number().optional(),
   /** Elevation of a top-mounted distance gauge's reference face above the lowest interior point, m. */
   mountElevationM: z.number().positive().optional(),
+  /** ± limits of zeroElevationM (or of mountElevationM for a top-mounted gauge), m. */
+  zeroElevationToleranceM: z.number().min(0).optional(),
+  mountElevationToleranceM: z.number().min(0).optional(),
+  /** ± limits of the scale (span) error as a fraction of the reading (0.001 = 0.1 %). */
+  spanErrorFraction: z.number().min(0).max(0.5).optional(),
+  /** The smallest step of the readings, m (1 mm quantisation: 0.001). */
+  resolutionM: z.number().min(0).optional(),
+  /** ± limits of a barometric series' offset, Pa (absolute-pressure logs). */
+  barometerTolerancePa: z.number().min(0).optional(),
+});
+
+const loggerSchema = z.strictObject({
+  /** ± limits of the logger clock's rate error as a fraction (20 ppm: 0.00002). */
+  clockRateErrorFraction: z.number().min(0).max(0.1).optional(),
 });
 
 // Water temperature bounds are those of waterDensityKgM3.
 const fluidSchema = z.union([
-  z.strictObject({ densityKgM3: z.number().positive() }),
-  z.strictObject({ temperatureC: z.number().min(0).max(100) }),
+  z.strictObject({ densityKgM3: z.number().positive(), densityToleranceKgM3: z.number().min(0).optional() }),
+  z.strictObject({ temperatureC: z.number().min(0).max(100), temperatureToleranceC: z.number().min(0).optional() }),
 ]);
 
 const vesselObject = z.strictObject({
@@ -45,6 +61,7 @@ const vesselObject = z.strictObject({
   outlet: outletSchema,
   sensor: sensorSchema.optional(),
   fluid: fluidSchema.optional(),
+  logger: loggerSchema.optional(),
   gravityMS2: z.number().positive().optional(),
   notes: z.string().optional(),
 });

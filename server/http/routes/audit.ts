@@ -1,7 +1,12 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { AUDITORS } from '../access.js';
+import { verifyRecords } from '../../jobs/verify-records.js';
+import { HttpProblem } from '../problems.js';
 import { protectedErrors } from '../schemas.js';
+import { assertSite, sitesOf } from '../site-scope.js';
+
+const recordDifference = z.object({ table: z.string(), row: z.number().int(), field: z.string(), stored: z.unknown(), expected: z.unknown(), message: z.string() });
 
 const entry = z
   .object({
@@ -23,10 +28,10 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/audit',
     {
-      config: { roles: AUDITORS },
+      config: { roles: AUDITORS, scope: 'listed' },
       schema: {
         tags: ['audit'],
-        summary: 'The audit log, oldest first; page on with afterSeq',
+        summary: 'The audit log, oldest first; page on with afterSeq (a person limited to sites: one vessel of theirs at a time, vesselId)',
         querystring: z.object({
           entityType: z.string().optional(),
           entityId: z.string().optional(),
@@ -42,6 +47,10 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
+      if (sitesOf(request) !== null) {
+        if (request.query.vesselId === undefined) throw new HttpProblem(403, 'site-forbidden', 'a person limited to sites reads the audit log of one vessel at a time: give vesselId');
+        assertSite(request, app.store.sites.siteOf('vessel', request.query.vesselId));
+      }
       const items = app.store.audit.list(request.query);
       return { items, nextAfterSeq: items.length === request.query.limit ? items[items.length - 1].seq : null };
     },
@@ -50,16 +59,27 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/audit/verify',
     {
-      config: { roles: AUDITORS },
+      config: { roles: AUDITORS, scope: 'every-site' },
       schema: {
         tags: ['audit'],
-        summary: 'Walk the hash chain; names the first entry that does not fit',
+        summary: 'Walk the hash chain and check every stored copy (result columns, status cache) against what it was copied from',
         response: {
-          200: z.object({ ok: z.boolean(), count: z.number().int(), head: z.string(), brokenAt: z.number().int().optional(), reason: z.string().optional() }),
+          200: z.object({
+            ok: z.boolean(),
+            count: z.number().int(),
+            head: z.string(),
+            brokenAt: z.number().int().optional(),
+            reason: z.string().optional(),
+            records: z.object({ ok: z.boolean(), fitsChecked: z.number().int(), outletsChecked: z.number().int(), differences: z.array(recordDifference), undatedTests: z.array(z.object({ testId: z.number().int(), reason: z.string() })) }),
+          }),
           ...protectedErrors,
         },
       },
     },
-    async () => app.store.audit.verify(),
+    async () => {
+      const chain = app.store.audit.verify();
+      const records = verifyRecords(app.store);
+      return { ...chain, ok: chain.ok && records.ok, records };
+    },
   );
 };

@@ -11,7 +11,9 @@ import { periodExport } from '../../render/period-export.js';
 import { fitReport, outletReport, renderFitReportPdf, renderOutletReportPdf } from '../../render/report-service.js';
 import { currentSoftware } from '../../render/software.js';
 import { ENGINEERS_AND_AUDITORS, READERS } from '../access.js';
+import { HttpProblem } from '../problems.js';
 import { idParams, problem, protectedErrors } from '../schemas.js';
+import { assertSite, sitesOf } from '../site-scope.js';
 
 const binary = z.any().meta({ description: 'the document' });
 
@@ -51,7 +53,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/api/exports',
     {
-      config: { roles: ENGINEERS_AND_AUDITORS },
+      config: { roles: ENGINEERS_AND_AUDITORS, scope: 'listed' },
       schema: {
         tags: ['reports'],
         summary: 'Approved fits of a site, vessel or period: zip of PDF reports, CSV summary, audit excerpt, SHA-256 manifest',
@@ -60,6 +62,11 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
+      const sites = sitesOf(request);
+      if (sites !== null) {
+        if (request.body.site === undefined) throw new HttpProblem(403, 'site-forbidden', `a person limited to sites exports one site at a time: give site (${sites.join(', ')})`);
+        assertSite(request, request.body.site);
+      }
       const r = await periodExport(app.store, request.body, currentSoftware());
       return reply.type('application/zip').header('content-disposition', 'attachment; filename="efflux-export.zip"').send(r.zip);
     },

@@ -11,7 +11,7 @@ export interface SessionOptions {
   signInPerMinute: number;
 }
 
-const whoami = z.object({ id: z.number().int(), name: z.string(), role: z.string() });
+const whoami = z.object({ id: z.number().int(), name: z.string(), role: z.string(), sites: z.array(z.string()).nullable() });
 
 /** Sign-in for the browser: a token in, an httpOnly SameSite=Strict cookie out. */
 export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, opts) => {
@@ -27,9 +27,9 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
       },
     },
     async (request, reply) => {
-      const user = app.store.users.byToken(request.body.token);
-      if (!user) throw new HttpProblem(401, 'unauthenticated', 'the token is not valid');
-      const { secret, expiresAt } = app.store.users.openSession(user, opts.ttlMs);
+      const signedIn = app.store.users.signIn(request.body.token, opts.ttlMs);
+      if (!signedIn) throw new HttpProblem(401, 'unauthenticated', 'the token is not valid');
+      const { user, secret, expiresAt } = signedIn;
       reply.setCookie(SESSION_COOKIE, secret, {
         httpOnly: true,
         sameSite: 'strict',
@@ -38,19 +38,19 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
         expires: new Date(expiresAt),
       });
       reply.code(201);
-      return { user: { id: user.id, name: user.name, role: user.role }, expiresAt };
+      return { user: { id: user.id, name: user.name, role: user.role, sites: user.sites }, expiresAt };
     },
   );
 
   app.get(
     '/api/session',
-    { config: { roles: READERS }, schema: { tags: ['session'], summary: 'Who is signed in', response: { 200: z.object({ user: whoami }) } } },
-    async (request) => ({ user: { id: request.user!.id, name: request.user!.name, role: request.user!.role } }),
+    { config: { roles: READERS, scope: 'none' }, schema: { tags: ['session'], summary: 'Who is signed in', response: { 200: z.object({ user: whoami }) } } },
+    async (request) => ({ user: { id: request.user!.id, name: request.user!.name, role: request.user!.role, sites: request.user!.sites } }),
   );
 
   app.delete(
     '/api/session',
-    { config: { roles: READERS }, schema: { tags: ['session'], summary: 'Sign out (ends the cookie session)', response: { 204: z.null() } } },
+    { config: { roles: READERS, scope: 'none' }, schema: { tags: ['session'], summary: 'Sign out (ends the cookie session)', response: { 204: z.null() } } },
     async (request, reply) => {
       const secret = request.cookies[SESSION_COOKIE];
       if (secret) app.store.users.closeSession(request.user!, secret);

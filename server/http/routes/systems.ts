@@ -87,7 +87,7 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/api/systems/fit',
     {
-      config: { roles: TECHNICIANS_UP },
+      config: { roles: TECHNICIANS_UP, scope: 'none' },
       schema: {
         tags: ['systems'],
         summary: 'Joint fit of connected vessels from one test’s logs (nothing is stored)',
@@ -135,7 +135,7 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/api/systems/steady',
     {
-      config: { roles: READERS },
+      config: { roles: READERS, scope: 'none' },
       schema: { tags: ['systems'], summary: 'Equilibrium levels at constant inflows, with intervals from a fit', body: operatingBody, response: { 200: steadyAnswer, 422: problem, ...protectedErrors } },
     },
     async (request) => {
@@ -157,7 +157,7 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
     '/api/systems/linearize',
     {
-      config: { roles: READERS },
+      config: { roles: READERS, scope: 'none' },
       schema: {
         tags: ['systems'],
         summary: 'State-space model dx/dt = A x + B u about the equilibrium, time constants, as JSON with a text block and CSV',

@@ -34,10 +34,12 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
         description:
           'Text fields: outletId, operator, loggerId, testedAt, notes, and the AnalysisSettings (timeColumn, levelColumn, unit, quantity, ' +
           'dateOrder, tz, delimiter, decimal, levelTag, baroTag, sheet, window, fitInflow, fitDatum, fitExponent; booleans as "true"/"false"). ' +
-          'The raw bytes are stored before the analysis runs. A refused file is answered 422 and not kept.',
+          'The raw bytes are stored before the analysis runs. A refused file is answered 422 and not kept. testedAt (ISO 8601 with offset) ' +
+          'is the date of the test; without it, the first reading of the fitted window on the log\'s own clock (a log with elapsed time only needs testedAt). ' +
+          'The same bytes as an earlier test of the vessel: 409 naming it, unless allowDuplicate=true. Header Idempotency-Key: a retry with the same key answers the first result (Idempotency-Replayed: true).',
         consumes: ['multipart/form-data'],
         params: idParams,
-        response: { 201: z.object({ test: drainTest, fit }), 413: problem, 415: problem, 422: problem, 503: problem, ...protectedErrors },
+        response: { 201: z.object({ test: drainTest, fit }), 409: problem, 413: problem, 415: problem, 422: problem, 503: problem, ...protectedErrors },
       },
       onSend: async (request, reply, payload) => {
         const t = uploadTimings.get(request);
@@ -64,10 +66,15 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       const up = await readUpload(request);
       const receiveMs = performance.now() - t0;
       const timing: UploadTiming = {};
-      const out = await uploadDrainTest(app.store, app.analyze, actorOf(request.user!), { vesselId: vessel.id, ...up }, timing);
+      const key = request.headers['idempotency-key'];
+      if (key !== undefined && (typeof key !== 'string' || key.length === 0 || key.length > 200)) {
+        throw new HttpProblem(400, 'validation', 'Idempotency-Key: one value of 1 to 200 characters', { errors: [{ path: 'headers.idempotency-key', message: '1 to 200 characters' }] });
+      }
+      const out = await uploadDrainTest(app.store, app.analyze, actorOf(request.user!), { vesselId: vessel.id, ...up, idempotencyKey: key ?? null, nowMs: app.clockMs() }, timing);
       uploadTimings.set(request, { receiveMs, timing, doneAt: performance.now() });
+      if (out.replayed) reply.header('idempotency-replayed', 'true');
       reply.code(201);
-      return out;
+      return { test: out.test, fit: out.fit };
     },
   );
 

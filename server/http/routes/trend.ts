@@ -11,6 +11,7 @@ import { actorOf } from '../../store/users.js';
 import { outletsOf } from '../../store/vessels.js';
 import { ENGINEERS_UP, READERS } from '../access.js';
 import { idParams, outlet, paging, problem, protectedErrors } from '../schemas.js';
+import { assertSite, sitesOf } from '../site-scope.js';
 import { checkVesselFile } from '../vessel-file.js';
 import { asOfQuery, fleetView, statusChange, threshold, trendView } from './trend-schemas.js';
 
@@ -99,10 +100,10 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/fleet',
     {
-      config: { roles: READERS },
+      config: { roles: READERS, scope: 'listed' },
       schema: {
         tags: ['trend'],
-        summary: 'Every outlet with its status and days to threshold, soonest first; filter by site and status (comma-separated)',
+        summary: 'Every outlet (of the sites the person may see) with its status and days to threshold, soonest first; filter by site and status (comma-separated)',
         querystring: paging.extend({
           site: z.string().min(1).optional(),
           status: z.string().min(1).optional(),
@@ -117,7 +118,8 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       for (const w of words ?? []) {
         if (!(STATUS_WORDS as readonly string[]).includes(w)) throw new InputError(`unknown status "${w}"; one of: ${STATUS_WORDS.join(', ')}`, { field: 'status' });
       }
-      const view = fleetStatus(app.store, { site: q.site, status: words as never, includeRetired: q.retired === 'true' }, nowOf(q.asOf));
+      if (q.site !== undefined) assertSite(request, q.site);
+      const view = fleetStatus(app.store, { site: q.site, sites: sitesOf(request), status: words as never, includeRetired: q.retired === 'true' }, nowOf(q.asOf));
       return { ...view, total: view.items.length, limit: q.limit, offset: q.offset, items: view.items.slice(q.offset, q.offset + q.limit) };
     },
   );

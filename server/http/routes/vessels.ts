@@ -3,7 +3,11 @@ import { z } from 'zod';
 import { actorOf } from '../../store/users.js';
 import { ENGINEERS_UP, READERS } from '../access.js';
 import { idParams, pageOf, paging, problem, protectedErrors, vessel } from '../schemas.js';
+import { assertSite, sitesOf } from '../site-scope.js';
 import { checkVesselFile } from '../vessel-file.js';
+
+/** The site a vessel file names ("main" when it names none, as the store reads it). */
+const siteOfSpec = (spec: Record<string, unknown>) => (typeof spec.site === 'string' && spec.site.length > 0 ? spec.site : 'main');
 
 export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
   const body = z.record(z.string(), z.unknown()).meta({ description: 'A vessel in the vessel-file format' });
@@ -11,20 +15,21 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/vessels',
     {
-      config: { roles: READERS },
-      schema: { tags: ['vessels'], summary: 'Vessels with their outlets', querystring: paging, response: { 200: pageOf(vessel), ...protectedErrors } },
+      config: { roles: READERS, scope: 'listed' },
+      schema: { tags: ['vessels'], summary: 'Vessels with their outlets (of the sites the person may see)', querystring: paging, response: { 200: pageOf(vessel), ...protectedErrors } },
     },
-    async (request) => ({ ...app.store.vessels.list(request.query.limit, request.query.offset), ...request.query }),
+    async (request) => ({ ...app.store.vessels.list(request.query.limit, request.query.offset, sitesOf(request)), ...request.query }),
   );
 
   app.post(
     '/api/vessels',
     {
-      config: { roles: ENGINEERS_UP },
+      config: { roles: ENGINEERS_UP, scope: 'listed' },
       schema: { tags: ['vessels'], summary: 'Create a vessel from a vessel file', body, response: { 201: vessel, 409: problem, 422: problem, ...protectedErrors } },
     },
     async (request, reply) => {
       const spec = checkVesselFile(request.body);
+      assertSite(request, siteOfSpec(spec));
       reply.code(201);
       return app.store.vessels.create(actorOf(request.user!), spec);
     },
@@ -48,6 +53,10 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: vessel, 409: problem, 422: problem, ...protectedErrors },
       },
     },
-    async (request) => app.store.vessels.update(actorOf(request.user!), request.params.id, checkVesselFile(request.body)),
+    async (request) => {
+      const spec = checkVesselFile(request.body);
+      assertSite(request, siteOfSpec(spec)); // its own site was checked before; nor may it move to another
+      return app.store.vessels.update(actorOf(request.user!), request.params.id, spec);
+    },
   );
 };

@@ -28,6 +28,11 @@ const ACTION_WORDS: Record<string, string> = {
   'session.open': 'signed in',
   'session.close': 'signed out',
   'user.create': 'person added',
+  'user.update': 'role or sites changed',
+  'user.revoke': 'person revoked (sessions ended)',
+  'token.revoke': 'access token revoked (sessions ended)',
+  'site.settings': 'site setting changed (self-review)',
+  'fit.supersede': 'fit replaced by an approved one',
   'api-token.create': 'access token made',
 };
 

@@ -9,6 +9,7 @@ import { field, h, notice, table } from '../dom.js';
 import { areaMm2, clockAt, inWords, dateTime, decimalsFor, mm, num, paramName, plusMinus, seconds, termName } from '../format.js';
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
+import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/budget/drain-time.js';
 
 /** A parameter's value in the unit a person reads it in. */
 function scaled(unit: string): { factor: number; unit: string } {
@@ -58,7 +59,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
 
   // warnings, in the service's own plain sentences
   main.append(
-    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : 'the fit'}: `) : null, inWords(w.message)))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
+    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : w.stage === 'budget' ? 'the uncertainty budget' : 'the fit'}: `) : null, inWords(w.message)))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
   );
 
   // charts
@@ -80,6 +81,36 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         table(null, ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'], r.headBands.map((b) => [`${num(b.headFromM, 4)} m`, `${num(b.headToM, 4)} m`, String(b.samples), (b.dischargeCoefficient ?? NaN).toFixed(decimalsFor(b.standardUncertainty ?? NaN)), num(b.standardUncertainty, 2)]))),
     );
     headBandChart(box, r.headBands as Parameters<typeof headBandChart>[1]);
+  }
+
+  // the uncertainty budget, then the drain-time calculator from the same budget
+  if (r.budget?.table) {
+    const t = r.budget.table;
+    main.append(
+      h('section', { id: 'budget' }, h('h2', {}, 'Uncertainty budget (JCGM 100:2008)'), h('p', { class: 'hint' }, 'Every input with its standard uncertainty, sensitivity coefficient and contribution to u(Cd); the same numbers as the text and PDF reports.'),
+        table(null, t.columns, t.rows, 'budget'),
+        h('ul', { class: 'budget-totals' }, t.totals.map(([k, v]) => h('li', {}, `${k}: ${v}`))),
+        h('details', {}, h('summary', {}, 'How the budget is made'), h('ul', {}, r.budget.notes.map((n) => h('li', {}, n))))),
+    );
+  }
+  const drainModel = drainVesselFromFit(r);
+  if (drainModel) {
+    const fromIn = h('input', { type: 'number', step: 'any', min: '0', name: 'from', value: '' });
+    const toIn = h('input', { type: 'number', step: 'any', min: '0', name: 'to', value: String(drainModel.vessel.outletElevationM) });
+    const answer = h('p', { 'aria-live': 'polite', id: 'drain-time-answer' });
+    const calc = h('form', { class: 'card drain-calc', id: 'drain-calculator' }, h('h2', {}, 'How long to drain'),
+      h('p', { class: 'hint' }, `Levels in metres above the vessel's lowest point; the outlet is at ${drainModel.vessel.outletElevationM} m. No inflow; 95 % interval from this fit's budget.`),
+      field('From level, m', fromIn), field('To level, m', toIn), h('div', { class: 'actions' }, h('button', { type: 'submit' }, 'Work it out')), answer);
+    calc.addEventListener('submit', (e) => {
+      e.preventDefault();
+      try {
+        const p = drainTimeWithBudget(drainModel.vessel, drainModel.lines, Number(fromIn.value), Number(toIn.value));
+        answer.replaceChildren(`${num(p.value, 6)} s, about ${(p.value / 60).toFixed(1)} min; 95 % interval ${num(p.ci95[0], 6)} s to ${num(p.ci95[1], 6)} s (k = ${num(p.coverageFactor, 3)})`);
+      } catch (err) {
+        answer.replaceChildren(notice('error', err instanceof Error ? err.message : String(err)));
+      }
+    });
+    main.append(calc);
   }
 
   // parameters, correlations, model comparison
@@ -154,7 +185,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     reject.addEventListener('click', decide('reject'));
     main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), field('Comment (kept with the fit)', comment), h('div', { class: 'actions' }, approve, reject), out));
   } else if (fit.review?.at) {
-    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`), fit.review.comment ? h('blockquote', {}, fit.review.comment) : null));
+    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`),
+      fit.review.selfReview ? notice('caution', 'Self-review: approved by the person who uploaded the test or asked for this fit (allowed for this site by an admin; four eyes waived).') : null, fit.review.comment ? h('blockquote', {}, fit.review.comment) : null));
   }
 
   // refit

@@ -3,7 +3,7 @@
  * made of it, check the drain window on the whole log (drag across the chart or type the times),
  * choose the model, and fit. The file is stored only when it is fitted.
  */
-import { api, ApiError, canUpload, type DrainTest, type Fit, type Inspection, type Settings, type Vessel } from '../api.js';
+import { api, ApiError, apiUpload, canUpload, type DrainTest, type Fit, type Inspection, type Settings, type Vessel } from '../api.js';
 import { logChart, type LogChart } from '../charts.js';
 import { clear, field, h, notice, select, table } from '../dom.js';
 import { clockAt, metres, seconds } from '../format.js';
@@ -79,7 +79,7 @@ export async function newTestPage({ user, params, main, go }: PageContext): Prom
   const operator = h('input', { type: 'text', name: 'operator', autocomplete: 'name' });
   const loggerId = h('input', { type: 'text', name: 'loggerId' });
   const notes = h('textarea', { name: 'notes', rows: 2 });
-  const details = h('fieldset', { class: 'details' }, h('legend', {}, 'About the test'), h('div', { class: 'grid' }, outletSel ? field('Outlet tested', outletSel) : null, field('Tested on (local time; blank: the log’s own clock)', testedAt), field('Operator', operator), field('Logger', loggerId), field('Notes', notes)));
+  const details = h('fieldset', { class: 'details' }, h('legend', {}, 'About the test'), h('div', { class: 'grid' }, outletSel ? field('Outlet tested', outletSel) : null, field('Tested on (local time; blank: the first reading of the fitted window on the log’s own clock — a log with elapsed time only needs it)', testedAt), field('Operator', operator), field('Logger', loggerId), field('Notes', notes)));
 
   const reading = readingForm();
   const reread = h('button', { type: 'button' }, 'Read the file again with these settings');
@@ -209,11 +209,31 @@ export async function newTestPage({ user, params, main, go }: PageContext): Prom
     }
     submit.disabled = true;
     status.append(h('p', {}, 'Storing the file and fitting… a long log can take a little while.'));
-    try {
-      const r = await api<{ test: DrainTest; fit: Fit }>('POST', `/api/vessels/${id}/tests`, formData(true));
+    // one key per attempt: a retry after a lost answer gets the first result, not a second test
+    const key = crypto.randomUUID();
+    const send = async (fd: FormData) => {
+      const r = await apiUpload<{ test: DrainTest; fit: Fit }>(`/api/vessels/${id}/tests`, fd, key);
       go(`#/fits/${r.fit.id}`);
+    };
+    try {
+      await send(formData(true));
     } catch (err) {
-      status.replaceChildren(notice('error', `Not fitted: ${err instanceof Error ? err.message : String(err)}`));
+      if (err instanceof ApiError && err.status === 409 && typeof err.problem?.existingTestId === 'number') {
+        const again = h('button', { type: 'button' }, 'Store it again anyway');
+        again.addEventListener('click', async () => {
+          const fd = formData(true);
+          fd.append('allowDuplicate', 'true');
+          again.disabled = true;
+          try {
+            await send(fd);
+          } catch (e2) {
+            status.replaceChildren(notice('error', `Not fitted: ${e2 instanceof Error ? e2.message : String(e2)}`));
+          }
+        });
+        status.replaceChildren(notice('caution', `This file is already stored: `, h('a', { href: `#/vessels/${id}` }, `test ${err.problem.existingTestId}`), '. ', again));
+      } else {
+        status.replaceChildren(notice('error', `Not fitted: ${err instanceof Error ? err.message : String(err)}`));
+      }
       submit.disabled = false;
     }
   });
