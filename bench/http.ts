@@ -2,7 +2,11 @@
  * HTTP throughput on loopback against a real listening server (its own temp data folder):
  * reads of a fit and of a vessel's test list, and 1 MB uploads fitted by the real engine; then
  * reads while uploads run, and one upload's time split into its steps (its Server-Timing header).
- * Run: node --import tsx bench/http.ts [seconds-per-case]   (prints requests/s and latencies)
+ * Then (a second server, with the invented demo loaded) the heavy case: reads of health and of a
+ * fit while a PDF of a fit with the longest fields, an export of every demo fit and the series of
+ * a 1 000 000-row log are being made, over and over, for the case's seconds.
+ * Run: node --import tsx bench/http.ts [seconds-per-case] [all|throughput|heavy]
+ * (prints requests/s and latencies; the throughput cases need the shared bench logs)
  */
 import autocannon from 'autocannon';
 import { spawn } from 'node:child_process';
@@ -13,11 +17,12 @@ import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('../', import.meta.url));
 const seconds = Number(process.argv[2] ?? 8);
+const which = process.argv[3] ?? 'all';
 const shared = process.env.EFFLUX_SHARED ? join(process.env.EFFLUX_SHARED, 'bench') : join(root, '../shared/bench'); // as bench/run.ts
 
-async function startServer() {
+async function startServer(demo = false) {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-bench-'));
-  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, PORT: '0', EFFLUX_DEMO: '0', EFFLUX_LOG: 'silent' };
+  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, PORT: '0', EFFLUX_DEMO: demo ? '1' : '0', EFFLUX_LOG: 'silent' };
   const child = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { env, stdio: ['ignore', 'pipe', 'inherit'] });
   let out = '';
   const base = await new Promise<string>((resolve, reject) => {
@@ -52,6 +57,7 @@ function report(label: string, r: autocannon.Result) {
   );
 }
 
+async function throughput() {
 const { child, base, token } = await startServer();
 try {
   const auth = { authorization: `Bearer ${token}` };
@@ -107,3 +113,111 @@ try {
 } finally {
   child.kill('SIGTERM');
 }
+}
+
+/** An invented drain of a 3.0 m upright cylinder through a 30 mm sharp-edged orifice (Cd 0.61), 100 readings a second, with a little seeded noise. */
+function drainLog(rows: number): Buffer {
+  const c = (0.61 * Math.PI * 0.015 ** 2 * Math.sqrt(2 * 9.80665)) / (2 * Math.PI * 1.5 ** 2);
+  const dt = Math.sqrt(2.0) / c / rows;
+  const parts: string[] = ['elapsed (s),level (m)\n'];
+  let seed = 12345;
+  for (let i = 0; i < rows; i++) {
+    seed = (seed * 1103515245 + 12345) % 2147483648;
+    const root = Math.max(0, Math.sqrt(2.0) - c * i * dt);
+    parts.push(`${(i * dt).toFixed(3)},${(root * root + 0.0005 * (seed / 2147483648 - 0.5)).toFixed(5)}\n`);
+  }
+  return Buffer.from(parts.join(''));
+}
+
+function multipartWith(bytes: Buffer, name: string, fields: Record<string, string>) {
+  const boundary = '----effluxbenchheavy';
+  const texts = Object.entries(fields).map(([k, v]) => Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`));
+  const body = Buffer.concat([...texts, Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="log"; filename="${name}"\r\nContent-Type: text/csv\r\n\r\n`), bytes, Buffer.from(`\r\n--${boundary}--\r\n`)]);
+  return { body, contentType: `multipart/form-data; boundary=${boundary}` };
+}
+
+/** Heavy work in a loop until `until`; each round's ms. */
+async function repeat(until: number, once: () => Promise<void>): Promise<number[]> {
+  const ms: number[] = [];
+  while (performance.now() < until) {
+    const t0 = performance.now();
+    await once();
+    ms.push(performance.now() - t0);
+  }
+  return ms;
+}
+
+async function heavy() {
+  const t0 = performance.now();
+  const { child, base, token } = await startServer(true);
+  try {
+    const auth = { authorization: `Bearer ${token}` };
+    const json = { ...auth, 'content-type': 'application/json' };
+    const startMs = performance.now() - t0;
+    const vessel = await (await fetch(`${base}/api/vessels`, { method: 'POST', headers: json, body: JSON.stringify({ name: 'Bench tank B-1 (invented)', site: 'Kestrel Fen bench (fictional)', shape: { kind: 'vertical-cylinder', diameterM: 3.0 }, outlet: { boreM: 0.03, elevationM: 0, type: 'sharp-edged' }, sensor: { zeroElevationM: 0 } }) })).json();
+    const post = async (bytes: Buffer, name: string, fields: Record<string, string>) => {
+      const m = multipartWith(bytes, name, fields);
+      const r = await fetch(`${base}/api/vessels/${vessel.id}/tests`, { method: 'POST', headers: { ...auth, 'content-type': m.contentType }, body: m.body });
+      if (r.status !== 201) throw new Error(`upload answered ${r.status}: ${await r.text()}`);
+      return (await r.json()) as { test: { id: number }; fit: { id: number } };
+    };
+    // a fit whose report carries the longest fields the service takes (a 10 000-character unbroken note)
+    const long = await post(drainLog(5_000), 'long-fields.csv', { notes: 'n'.repeat(10_000), operator: 'o'.repeat(200), loggerId: 'l'.repeat(200) });
+    const million = drainLog(1_000_000);
+    const big = await post(million, 'million.csv', {});
+    const total = (await (await fetch(`${base}/api/fleet?limit=1`, { headers: auth })).json()).total;
+    const preview = await (await fetch(`${base}/api/exports`, { method: 'POST', headers: json, body: '{}' })).json();
+    // the first export also starts the task thread and fills the read cache
+    for (let job = preview; job.state === 'running'; ) {
+      await new Promise((r) => setTimeout(r, 200));
+      job = await (await fetch(base + job.statusUrl, { headers: auth })).json();
+    }
+    console.log(`heavy case: demo loaded, server up in ${(startMs / 1000).toFixed(1)} s; ${total} outlets; export of every approved fit = ${preview.total} reports; 1 000 000-row log ${(million.length / 1e6).toFixed(1)} MB`);
+
+    // the same reads with nothing heavy running: what the shared machine gives at this moment.
+    // autocannon in a thread of its own (workers: 1), so this process's big downloads below do not delay its clock
+    const idleLoad = loadavg();
+    const [idleHealth, idleFit] = await Promise.all([
+      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
+      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
+    ]);
+    console.log(`load average ${idleLoad.map((x) => x.toFixed(2)).join(' ')} (${availableParallelism()} cores)`);
+    report('GET /api/health, nothing heavy', idleHealth);
+    report('GET /api/fits/:id, nothing heavy', idleFit);
+    const until = performance.now() + seconds * 1000;
+    const counts = { pdfBytes: 0, zipBytes: 0, seriesBytes: 0 };
+    const loadBefore = loadavg();
+    const [health, fitReads, pdfs, exports, series] = await Promise.all([
+      autocannon({ url: `${base}/api/health`, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
+      autocannon({ url: `${base}/api/fits/${long.fit.id}`, headers: auth, connections: 2, overallRate: 100, duration: seconds, workers: 1 }),
+      repeat(until, async () => {
+        counts.pdfBytes = (await (await fetch(`${base}/api/fits/${long.fit.id}/report.pdf`, { headers: auth })).arrayBuffer()).byteLength;
+      }),
+      repeat(until, async () => {
+        let job = await (await fetch(`${base}/api/exports`, { method: 'POST', headers: json, body: '{}' })).json();
+        while (job.state === 'running') {
+          await new Promise((r) => setTimeout(r, 200));
+          job = await (await fetch(base + job.statusUrl, { headers: auth })).json();
+        }
+        if (job.state !== 'done') throw new Error(`export ${job.state}: ${job.error}`);
+        counts.zipBytes = (await (await fetch(base + job.archiveUrl, { headers: auth })).arrayBuffer()).byteLength;
+      }),
+      repeat(until, async () => {
+        counts.seriesBytes = (await (await fetch(`${base}/api/tests/${big.test.id}/series`, { headers: auth })).arrayBuffer()).byteLength;
+      }),
+    ]);
+    const loadAfter = loadavg();
+    const fmt = (xs: number[]) => `${xs.length} made, ${xs.map((x) => (x / 1000).toFixed(1)).join(' / ')} s each`;
+    console.log(`load average before ${loadBefore.map((x) => x.toFixed(2)).join(' ')}, after ${loadAfter.map((x) => x.toFixed(2)).join(' ')} (${availableParallelism()} cores)`);
+    report('GET /api/health during heavy work', health);
+    report('GET /api/fits/:id during heavy work', fitReads);
+    console.log(`  PDF (10 000-character note, ${(counts.pdfBytes / 1024).toFixed(0)} KiB): ${fmt(pdfs)}`);
+    console.log(`  export of every approved fit (${preview.total} reports, ${(counts.zipBytes / 1e6).toFixed(1)} MB zip): ${fmt(exports)}`);
+    console.log(`  series of the 1 000 000-row log (${(counts.seriesBytes / 1e6).toFixed(1)} MB JSON): ${fmt(series)}`);
+  } finally {
+    child.kill('SIGTERM');
+  }
+}
+
+if (which === 'all' || which === 'throughput') await throughput();
+if (which === 'all' || which === 'heavy') await heavy();

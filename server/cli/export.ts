@@ -40,7 +40,7 @@ export async function run(argv: string[]): Promise<number> {
       const t0 = performance.now();
       const r = await periodExport(store, { site: values.site, vessel: values.vessel, from: values.from, to: values.to }, currentSoftware());
       writeFileSync(values.out, r.zip);
-      process.stdout.write(`${basename(values.out)}: ${r.fits} approved fits, ${r.files.length + 2} files, ${r.zip.length} bytes, ${Math.round(performance.now() - t0)} ms\n`);
+      process.stdout.write(`${basename(values.out)}: ${r.fits} approved fits, ${r.fileCount} files, ${r.zip.length} bytes, ${Math.round(performance.now() - t0)} ms\n`);
       return 0;
     } finally {
       store.close();

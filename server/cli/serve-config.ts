@@ -134,6 +134,17 @@ export const SETTINGS = {
     meaning:
       'nice value of the analysis threads on Linux, so reads keep answering while a fit runs',
   },
+  EFFLUX_TASK_TIMEOUT_S: {
+    schema: whole(1),
+    dflt: '',
+    meaning:
+      'time limit of reports, export PDFs, inspect, series and joint fits, seconds; default 60 (joint fit 120)',
+  },
+  EFFLUX_TASK_THREADS: {
+    schema: whole(1, 256),
+    dflt: '',
+    meaning: 'task pool threads (reports, exports, large reads); default: half the cores, at least 1',
+  },
   EFFLUX_WEB_ROOT: {
     schema: z.string().min(1),
     dflt: '',
@@ -240,6 +251,7 @@ export function serveConfig(env = process.env, over: ServeOverrides = {}) {
     );
   }
   const workers = read(env, 'EFFLUX_WORKERS');
+  const taskTimeoutS = read(env, 'EFFLUX_TASK_TIMEOUT_S');
   return {
     dataDir: dataDir(env, { flag: over.dataDir, demo }),
     host: read(env, 'HOST')!,
@@ -250,6 +262,9 @@ export function serveConfig(env = process.env, over: ServeOverrides = {}) {
     requestTimeoutMs: read(env, 'EFFLUX_REQUEST_TIMEOUT_S')! * 1000,
     analysisTimeoutMs: read(env, 'EFFLUX_ANALYSIS_TIMEOUT_S')! * 1000,
     workers,
+    /** Time limit of reports, exports' PDFs, large reads and joint fits (jobs/tasks.ts); unset: the default per kind. */
+    taskTimeoutMs: taskTimeoutS === undefined ? undefined : taskTimeoutS * 1000,
+    taskThreads: read(env, 'EFFLUX_TASK_THREADS'),
     workerNice: read(env, 'EFFLUX_WORKER_NICE')!,
     analyzeModule: read(env, 'EFFLUX_ANALYZE_MODULE'),
     webRoot: read(env, 'EFFLUX_WEB_ROOT') ?? projectPath('dist/web'),

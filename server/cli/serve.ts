@@ -119,6 +119,8 @@ export async function run(argv: string[]): Promise<number> {
     webRoot: cfg.webRoot,
     webhooks: cfg.webhooks,
     allowedOrigins: cfg.allowedOrigins,
+    taskTimeoutMs: cfg.taskTimeoutMs,
+    taskThreads: cfg.taskThreads,
     logger: cfg.log === 'silent' ? false : { level: cfg.log },
   });
   // the first analysis in a fresh worker pays the JIT; let the built-in warm-up drain finish first

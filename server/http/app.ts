@@ -22,6 +22,9 @@ import {
 import { existsSync } from 'node:fs';
 import { z } from 'zod';
 import { createNotifier, type Notifier } from '../jobs/alerts.js';
+import { ExportJobs } from '../jobs/exports.js';
+import { createTaskPool, type TaskKind, type TaskRunner } from '../jobs/tasks.js';
+import { currentSoftware } from '../render/software.js';
 import type { AnalyzeRunner } from '../jobs/pool.js';
 import type { Store } from '../store/index.js';
 import { PUBLIC, scopeFromPath, type Access, type SiteScope } from './access.js';
@@ -78,6 +81,12 @@ export interface AppOptions {
   clockMs?: () => number;
   /** Origins besides the request's own from which cookie-authenticated writes are accepted (EFFLUX_ORIGINS). */
   allowedOrigins?: readonly string[];
+  /** Heavy work off the event loop: a runner the caller owns, or a task pool the app makes (and closes with it). */
+  tasks?: TaskRunner;
+  /** Time limits of the app's own task pool, ms (one for every kind, or per kind); default jobs/tasks.ts. */
+  taskTimeoutMs?: number | Partial<Record<TaskKind, number>>;
+  /** Threads of the app's own task pool; default half the cores, at least one. */
+  taskThreads?: number;
 }
 
 export interface RouteInfo {
@@ -206,6 +215,16 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   app.decorate('notifier', opts.notifier ?? ownNotifier!);
   if (ownNotifier) app.addHook('onClose', async () => ownNotifier.close());
   app.decorate('clockMs', opts.clockMs ?? Date.now);
+  let tasks = opts.tasks;
+  if (!tasks) {
+    const pool = createTaskPool({ timeoutMs: opts.taskTimeoutMs, threads: opts.taskThreads });
+    tasks = pool.run;
+    app.addHook('onClose', async () => pool.close());
+  }
+  app.decorate('tasks', tasks);
+  const exportJobs = new ExportJobs({ store: opts.store, tasks, software: currentSoftware, log: (detail, line) => app.log.error(detail, line) });
+  app.decorate('exports', exportJobs);
+  app.addHook('preClose', async () => exportJobs.close());
 
   // auth and errors (on the root: both are inherited by every route module below)
   installAuth(app, opts.store, (opts.allowedOrigins ?? []).map((o) => o.toLowerCase()));

@@ -6,7 +6,9 @@
 import type { FastifyError, FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { hasZodFastifySchemaValidationErrors, isResponseSerializationError } from 'fastify-type-provider-zod';
 import { isInputError } from '../core/errors.js';
+import { ExportsBusyError } from '../jobs/exports.js';
 import { AnalysisTimeoutError } from '../jobs/pool.js';
+import { TaskQueueFullError, TaskTimeoutError } from '../jobs/tasks.js';
 import { EngineUnavailableError } from '../jobs/worker-reply.js';
 import { ConflictError, DuplicateUploadError, ForbiddenError, isDiskFull, NotFoundError } from '../store/errors.js';
 
@@ -62,21 +64,47 @@ export function sendProblem(reply: FastifyReply, request: FastifyRequest, p: Omi
   return reply.code(p.status).type('application/problem+json').send(body);
 }
 
+interface FieldIssue {
+  path: string;
+  message: string;
+  tooLong: boolean;
+}
+
+/**
+ * Field problems as one answer: 422 `too-long` naming the field when every problem is text past
+ * its limit (server/core/limits.ts: the value is understood, there is just too much of it), else
+ * 400 `validation` with every problem.
+ */
+function fieldsProblem(issues: FieldIssue[]): Omit<Problem, 'instance' | 'title'> & { title?: string } {
+  const errors = issues.map(({ path, message }) => ({ path, message }));
+  const detail = errors.map((e) => `${e.path}: ${e.message}`).join('; ');
+  if (issues.length > 0 && issues.every((i) => i.tooLong)) {
+    return { type: typeOf('too-long'), status: 422, title: 'Input refused', detail, field: issues[0].path, errors };
+  }
+  return { type: typeOf('validation'), status: 400, title: 'Invalid request', detail, errors };
+}
+
+const isTooLongText = (code: string, origin: unknown) => code === 'too_big' && origin === 'string';
+
+/** A refusal of multipart text fields checked with zod outside Fastify's own validation. */
+export function refuseFields(issues: readonly { code: string; path: PropertyKey[]; message: string; origin?: unknown; keys?: string[] }[]): HttpProblem {
+  const p = fieldsProblem(
+    issues.map((i) => ({ path: i.path.length ? i.path.map(String).join('.') : (i.keys?.join(',') ?? ''), message: i.message, tooLong: isTooLongText(i.code, i.origin) })),
+  );
+  return new HttpProblem(p.status, p.type.replace('urn:efflux:problem:', ''), p.detail ?? '', { title: p.title, errors: p.errors, field: p.field });
+}
+
 function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?: string } {
   if (err instanceof HttpProblem) return { type: typeOf(err.slug), status: err.status, detail: err.message, ...err.extra };
   if (hasZodFastifySchemaValidationErrors(err)) {
     const where = (err as { validationContext?: string }).validationContext ?? 'request';
-    const errors = err.validation.map((v) => ({
-      path: [where, ...v.instancePath.split('/').filter(Boolean)].join('.'),
-      message: v.message ?? 'invalid',
-    }));
-    return {
-      type: typeOf('validation'),
-      status: 400,
-      title: 'Invalid request',
-      detail: errors.map((e) => `${e.path}: ${e.message}`).join('; '),
-      errors,
-    };
+    return fieldsProblem(
+      err.validation.map((v) => ({
+        path: [where, ...v.instancePath.split('/').filter(Boolean)].join('.'),
+        message: v.message ?? 'invalid',
+        tooLong: isTooLongText(v.keyword, (v.params as { origin?: unknown } | undefined)?.origin),
+      })),
+    );
   }
   if (isInputError(err)) {
     return {
@@ -99,6 +127,9 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
   if (err instanceof EngineUnavailableError || err instanceof AnalysisTimeoutError) {
     return { type: typeOf('analysis-unavailable'), status: 503, detail: err.message };
   }
+  // heavy work past its time limit, or too much of it waiting: nothing was written, ask again later
+  if (err instanceof TaskTimeoutError) return { type: typeOf('over-time-limit'), status: 503, detail: err.message };
+  if (err instanceof TaskQueueFullError || err instanceof ExportsBusyError) return { type: typeOf('busy'), status: 503, detail: err.message };
   const fe = err as FastifyError;
   if (!isResponseSerializationError(err) && typeof fe.statusCode === 'number' && fe.statusCode >= 400 && fe.statusCode < 500) {
     return { type: 'about:blank', status: fe.statusCode, detail: fe.message };
@@ -134,6 +165,7 @@ export function installProblemHandlers(app: FastifyInstance): void {
     if (p.status === 507) request.log.error({ err }, 'disk full');
     else if (p.status >= 500) request.log.error({ err }, 'request failed');
     if (p.status === 401) reply.header('www-authenticate', 'Bearer');
+    if (p.status === 503) reply.header('retry-after', '30');
     return sendProblem(reply, request, p);
   });
   app.setNotFoundHandler((request, reply) =>

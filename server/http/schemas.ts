@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { singleFitResult } from '../core/fit-result/schema.js';
 import type { Outlet, Vessel } from '../core/stored-vessel.js';
+import { nameText, tagText } from '../core/limits.js';
 
 export const idParams = z.object({ id: z.coerce.number().int().positive() });
 
@@ -110,18 +111,18 @@ export const fit = z
 /** The settings a person can state (AnalysisSettings), as JSON. */
 export const analysisSettings = z
   .object({
-    timeColumn: z.string().min(1),
-    levelColumn: z.string().min(1),
-    unit: z.string().min(1),
+    timeColumn: nameText().min(1),
+    levelColumn: nameText().min(1),
+    unit: tagText().min(1),
     quantity: z.enum(['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top']),
     dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
-    tz: z.string().min(1),
+    tz: tagText().min(1),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
-    levelTag: z.string().min(1),
-    baroTag: z.string().min(1),
-    sheet: z.string().min(1),
-    window: z.string().min(1),
+    levelTag: tagText().min(1),
+    baroTag: tagText().min(1),
+    sheet: tagText().min(1),
+    window: tagText().min(1),
     fitInflow: z.boolean(),
     fitDatum: z.boolean(),
     fitExponent: z.boolean(),

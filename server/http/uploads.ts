@@ -6,32 +6,32 @@
 import type { FastifyRequest } from 'fastify';
 import { z } from 'zod';
 import type { AnalysisSettings } from '../core/analysis-contract.js';
+import { nameText, noteText, tagText } from '../core/limits.js';
 import type { RawInput } from '../store/tests.js';
-import { HttpProblem } from './problems.js';
+import { HttpProblem, refuseFields } from './problems.js';
 
 const bool = z.enum(['true', 'false']).transform((s) => s === 'true');
-const text = z.string().max(10_000);
 
 /** Multipart text fields (all strings on the wire). */
 export const uploadFields = z
   .object({
     outletId: z.coerce.number().int().positive(),
-    operator: text,
-    loggerId: text,
-    testedAt: text,
-    notes: text,
-    timeColumn: text.min(1),
-    levelColumn: text.min(1),
-    unit: text.min(1),
+    operator: nameText(),
+    loggerId: nameText(),
+    testedAt: tagText(),
+    notes: noteText(),
+    timeColumn: nameText().min(1),
+    levelColumn: nameText().min(1),
+    unit: tagText().min(1),
     quantity: z.enum(['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top']),
     dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
-    tz: text.min(1),
+    tz: tagText().min(1),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
-    levelTag: text.min(1),
-    baroTag: text.min(1),
-    sheet: text.min(1),
-    window: text.min(1),
+    levelTag: tagText().min(1),
+    baroTag: tagText().min(1),
+    sheet: tagText().min(1),
+    window: tagText().min(1),
     fitInflow: bool,
     fitDatum: bool,
     fitExponent: bool,
@@ -98,10 +98,7 @@ export async function readUpload(request: FastifyRequest): Promise<ParsedUpload>
   if (!files.log) throw new HttpProblem(400, 'validation', 'the file field "log" is missing', { errors: [{ path: 'log', message: 'required' }] });
   if (files.log.bytes.byteLength === 0) throw new HttpProblem(400, 'validation', 'the log file is empty', { errors: [{ path: 'log', message: 'empty' }] });
   const parsed = uploadFields.safeParse(fields);
-  if (!parsed.success) {
-    const errors = parsed.error.issues.map((i) => ({ path: i.path.length ? i.path.join('.') : (i as { keys?: string[] }).keys?.join(',') ?? '', message: i.message }));
-    throw new HttpProblem(400, 'validation', errors.map((e) => `${e.path}: ${e.message}`).join('; '), { title: 'Invalid request', errors });
-  }
+  if (!parsed.success) throw refuseFields(parsed.error.issues);
   const f = parsed.data;
   const settings: AnalysisSettings = {};
   for (const k of SETTING_KEYS) if (f[k] !== undefined) (settings as Record<string, unknown>)[k] = f[k];

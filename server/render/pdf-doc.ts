@@ -7,6 +7,7 @@
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import PDFDocument from 'pdfkit';
+import { clipLine, withBoundedWrapping } from './pdf-text.js';
 
 const require = createRequire(import.meta.url);
 const FONT_DIR = join(dirname(require.resolve('dejavu-fonts-ttf/package.json')), 'ttf');
@@ -58,6 +59,7 @@ export function createReportDoc(id: DocIdentity): Doc {
       ...id.extra,
     } as PDFKit.DocumentInfo,
   });
+  withBoundedWrapping(doc);
   doc.registerFont('regular', FONTS.regular);
   doc.registerFont('bold', FONTS.bold);
   doc.registerFont('mono', FONTS.mono);
@@ -87,7 +89,7 @@ export function finishReportDoc(doc: Doc, id: DocIdentity): Promise<Buffer> {
     const bottom = doc.page.margins.bottom;
     doc.page.margins.bottom = 0; // writing inside the margin must not start a new page
     doc.save();
-    doc.font('bold').fontSize(8).fillColor('#1f2a36').text(id.title, MARGIN, MARGIN - 18, { width: width - 2 * MARGIN - 150, lineBreak: false, ellipsis: true });
+    doc.font('bold').fontSize(8).fillColor('#1f2a36').text(clipLine(id.title, 110), MARGIN, MARGIN - 18, { width: width - 2 * MARGIN - 150, lineBreak: false, ellipsis: true });
     doc.font('mono').fontSize(8).fillColor('#1f2a36').text(`report ${id.reportId}`, width - MARGIN - 150, MARGIN - 18, { width: 150, align: 'right', lineBreak: false });
     doc.moveTo(MARGIN, MARGIN - 6).lineTo(width - MARGIN, MARGIN - 6).lineWidth(0.5).strokeColor('#8a8f98').stroke();
     doc.moveTo(MARGIN, height - MARGIN + 2).lineTo(width - MARGIN, height - MARGIN + 2).lineWidth(0.5).strokeColor('#8a8f98').stroke();

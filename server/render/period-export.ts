@@ -4,9 +4,8 @@
  * manifest of SHA-256 hashes (manifest.json and SHA256SUMS for `sha256sum -c`). Deterministic:
  * the zip's timestamps are the latest approval time among the fits.
  */
-import { createHash } from 'node:crypto';
 import { InputError } from '../core/errors.js';
-import type { SoftwareRecord } from '../core/report/index.js';
+import type { FitReport, SoftwareRecord } from '../core/report/index.js';
 import type { AuditEntry } from '../store/audit.js';
 import type { Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
@@ -14,8 +13,9 @@ import type { Vessel } from '../store/vessels.js';
 import { renderFitReportPdf } from './fit-report-pdf.js';
 import { allFitsOfVessel, countsInHistory } from './report-records.js';
 import { fitReport } from './report-service.js';
-import { writeZip, type ZipEntry } from './zip.js';
 import { csvText } from '../core/report/csv.js';
+import { assembleExport, type ExportAssembly } from './period-export-assembly.js';
+import type { ZipEntry } from './zip.js';
 
 export interface ExportSelection {
   site?: string;
@@ -84,14 +84,34 @@ const EXPORT_README = [
 ].join('\r\n');
 
 export interface ExportResult {
-  zip: Buffer;
+  zip: Uint8Array;
   fits: number;
-  files: { name: string; size: number; sha256: string }[];
+  /** Entries in the zip (reports, summary, audit excerpt, manifest, SHA256SUMS). */
+  fileCount: number;
 }
 
-export async function periodExport(store: Store, sel: ExportSelection, software: SoftwareRecord): Promise<ExportResult> {
-  const chosen = selectFits(store, sel);
+/**
+ * How the heavy steps run: in process by default (the CLI); the service passes its task pool's
+ * (server/jobs/exports.ts), so only the reads of the database and the small CSV and audit
+ * excerpt stay on its event loop, one fit at a time.
+ */
+export interface ExportSteps {
+  renderPdf?: (report: FitReport) => Promise<Uint8Array>;
+  assemble?: (a: ExportAssembly) => Promise<Uint8Array>;
+  /** After each fit's report: done of total. */
+  onProgress?: (done: number, total: number) => void;
+  /** Checked between fits: an aborted export stops and rejects with the signal's reason. */
+  signal?: AbortSignal;
+  /** The fits already chosen for this selection (selectFits), so they are not read twice. */
+  chosen?: ReturnType<typeof selectFits>;
+}
+
+export async function periodExport(store: Store, sel: ExportSelection, software: SoftwareRecord, steps: ExportSteps = {}): Promise<ExportResult> {
+  const renderPdf = steps.renderPdf ?? renderFitReportPdf;
+  const assemble = steps.assemble ?? (async (a: ExportAssembly) => assembleExport(a));
+  const chosen = steps.chosen ?? selectFits(store, sel);
   if (chosen.length === 0) throw new InputError('no approved fits match the selection');
+  steps.onProgress?.(0, chosen.length);
   const entries: ZipEntry[] = [];
   // numbers as numbers, text neutralised against spreadsheet formulas (core/report/csv.ts)
   const rows: (string | number | null)[][] = [[
@@ -101,10 +121,11 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
   const auditSeqs = new Set<number>();
   const audit: AuditEntry[] = [];
   let latest = '1980-01-01T00:00:00.000Z';
-  for (const { fit, vessel, testedAt } of chosen) {
+  for (const [i, { fit, vessel, testedAt }] of chosen.entries()) {
+    steps.signal?.throwIfAborted();
     const report = fitReport(store, fit.id, software);
     const pdfName = `reports/fit-${fit.id}-${report.reportId}.pdf`;
-    entries.push({ name: pdfName, bytes: await renderFitReportPdf(report) });
+    entries.push({ name: pdfName, bytes: await renderPdf(report) });
     const cd = report.results.dischargeCoefficient;
     const ea = report.results.effectiveArea;
     rows.push([
@@ -119,24 +140,14 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
         if (!auditSeqs.has(e.seq)) auditSeqs.add(e.seq), audit.push(e);
       }
     }
+    steps.onProgress?.(i + 1, chosen.length);
   }
+  steps.signal?.throwIfAborted();
   audit.sort((a, b) => a.seq - b.seq);
   const enc = new TextEncoder();
   entries.push({ name: 'summary.csv', bytes: enc.encode(csvText(rows)) });
   entries.push({ name: 'README.txt', bytes: enc.encode(EXPORT_README) });
   entries.push({ name: 'audit-excerpt.jsonl', bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n') });
-  const files = entries.map((e) => ({ name: e.name, size: e.bytes.length, sha256: createHash('sha256').update(e.bytes).digest('hex') }));
-  const manifest = {
-    format: 'efflux-period-export',
-    version: 1,
-    selection: sel,
-    software,
-    fits: chosen.length,
-    latestApproval: latest,
-    note: 'The audit excerpt keeps each entry whole with its chain hashes; check the full chain with `efflux audit verify`, and each report with `efflux report verify`.',
-    files,
-  };
-  entries.push({ name: 'manifest.json', bytes: enc.encode(JSON.stringify(manifest, null, 2) + '\n') });
-  entries.push({ name: 'SHA256SUMS', bytes: enc.encode(files.map((f) => `${f.sha256}  ${f.name}`).join('\n') + '\n') });
-  return { zip: writeZip(entries, latest), fits: chosen.length, files };
+  const zip = await assemble({ entries, selection: { ...sel }, software, fits: chosen.length, latestApproval: latest });
+  return { zip, fits: chosen.length, fileCount: entries.length + 2 };
 }

@@ -120,7 +120,12 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     await page.getByLabel('Operator').fill('e2e <b>tester</b>');
     await shot('04-new-test');
 
-    // fit
+    // fit (the fit page links its PDF without asking for it: no HEAD or GET of report.pdf)
+    const reportRequests: string[] = [];
+    const onRequest = (r: { url(): string; method(): string }) => {
+      if (r.url().includes('/report.pdf')) reportRequests.push(`${r.method()} ${r.url()}`);
+    };
+    page.on('request', onRequest);
     await page.getByRole('button', { name: 'Fit this test' }).click();
     // the demo already holds this file for the vessel: the service answers 409 naming that test,
     // and the page offers to store it again (allowDuplicate=true, recorded in the audit log)
@@ -137,6 +142,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     const win = await page.evaluate(async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result.window, fitId);
     expect(win.startS).toBeGreaterThanOrEqual(150);
     expect(win.endS).toBeLessThanOrEqual(2000);
+    await expect(page.getByRole('link', { name: 'Download the report (PDF)' }).getAttribute('href')).resolves.toBe(`/api/fits/${fitId}/report.pdf`);
+    page.off('request', onRequest);
+    expect(reportRequests).toEqual([]);
     await shot('05-fit');
 
     // the uncertainty budget: the same strings as the fit JSON (which the CLI and the PDF print)

@@ -52,6 +52,8 @@ const TABLE: Record<string, Rule> = {
   'GET /api/fits/:id/report.json': ALL,
   'GET /api/outlets/:id/report.pdf': ALL,
   'POST /api/exports': ENG_AUD,
+  'GET /api/exports/:id': ENG_AUD,
+  'GET /api/exports/:id/archive.zip': ENG_AUD,
   'POST /api/vessels/:id/inspect': TECH,
   'GET /api/tests/:id/series': ALL,
   'POST /api/systems/fit': TECH,
@@ -108,6 +110,8 @@ const SCOPE: Record<string, SiteScope> = {
   'GET /api/fits/:id/report.json': 'fit',
   'GET /api/outlets/:id/report.pdf': 'outlet',
   'POST /api/exports': 'listed',
+  'GET /api/exports/:id': 'listed', // only whoever started the job (or an admin) sees it; the start checked the site
+  'GET /api/exports/:id/archive.zip': 'listed',
   'POST /api/vessels/:id/inspect': 'vessel',
   'GET /api/tests/:id/series': 'test',
   'POST /api/systems/fit': 'none',

@@ -56,8 +56,19 @@ describe('report routes', () => {
     expect(o.statusCode).toBe(200);
     expect(readReportFile(o.rawPayload, 'o.pdf').kind).toBe('outlet');
     expect((await app.inject({ method: 'POST', url: '/api/exports', headers: auth('technician'), payload: {} })).statusCode).toBe(403);
-    const z = await app.inject({ method: 'POST', url: '/api/exports', headers: auth('auditor'), payload: { from: '2026-03-01', to: '2026-03-31' } });
+    const started = await app.inject({ method: 'POST', url: '/api/exports', headers: auth('auditor'), payload: { from: '2026-03-01', to: '2026-03-31' } });
+    expect(started.statusCode).toBe(202);
+    expect(started.headers.location).toBe(`/api/exports/${started.json().id}`);
+    let job = started.json();
+    while (job.state === 'running') {
+      await new Promise((r) => setTimeout(r, 50));
+      job = (await app.inject({ method: 'GET', url: job.statusUrl, headers: auth('auditor') })).json();
+    }
+    expect(job).toMatchObject({ state: 'done', done: 1, total: 1, error: null });
+    const z = await app.inject({ method: 'GET', url: job.archiveUrl, headers: auth('auditor') });
     expect(z.statusCode).toBe(200);
+    expect(z.headers['content-type']).toBe('application/zip');
+    expect(z.rawPayload.length).toBe(job.bytes);
     expect(readZip(z.rawPayload).map((e) => e.name)).toContain('manifest.json');
     const none = await app.inject({ method: 'POST', url: '/api/exports', headers: auth('auditor'), payload: { from: '2020-01-01', to: '2020-01-02' } });
     expect(none.statusCode).toBe(422);

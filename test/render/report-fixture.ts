@@ -27,7 +27,7 @@ export interface Fixture {
 
 export const SOFTWARE = { name: 'efflux', version: 'test', gitCommit: '0123456789abcdef0123456789abcdef01234567' };
 
-export async function reportFixture(tests: { log: string; testedAt: string }[] = [{ log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' }]): Promise<Fixture & { fitIds: number[] }> {
+export async function reportFixture(tests: { log: string; testedAt: string; operator?: string; loggerId?: string; notes?: string }[] = [{ log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' }]): Promise<Fixture & { fitIds: number[] }> {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-report-'));
   let t = Date.parse('2026-04-01T09:00:00Z');
   const store = openStore({ dataDir, now: () => new Date((t += 1000)).toISOString() });
@@ -43,10 +43,10 @@ export async function reportFixture(tests: { log: string; testedAt: string }[] =
       vesselId: vessel.id,
       log: { bytes: readFileSync(sample(test.log)), fileName: test.log },
       settings: {},
-      operator: 'T. Ashdown (fictional)',
-      loggerId: 'KF-LG-01',
+      operator: test.operator ?? 'T. Ashdown (fictional)',
+      loggerId: test.loggerId ?? 'KF-LG-01',
       testedAt: test.testedAt,
-      notes: 'Routine test (invented demo data).',
+      notes: test.notes ?? 'Routine test (invented demo data).',
     });
     store.fits.review(actorOf(engineer), fit.id, 'approved', 'Window and fit checked; Cd within the usual band.');
     fitIds.push(fit.id);

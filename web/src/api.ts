@@ -43,16 +43,6 @@ export async function apiUpload<T>(url: string, body: FormData, idempotencyKey: 
   return api<T>('POST', url, body, { 'idempotency-key': idempotencyKey });
 }
 
-/** Whether a route exists (a route another part of the service may add later, e.g. a report). */
-export async function routeExists(url: string): Promise<boolean> {
-  try {
-    const res = await fetch(url, { method: 'HEAD', credentials: 'same-origin' });
-    return res.ok;
-  } catch {
-    return false;
-  }
-}
-
 // Shapes as the service sends them (server/http/schemas.ts)
 export type Role = 'technician' | 'engineer' | 'auditor' | 'admin';
 export interface User {

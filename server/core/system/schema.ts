@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { InputError } from '../errors.js';
+import { limitedText, nameText, noteText, tagText } from '../limits.js';
 import { flowFactorToM3s } from '../units/flow.js';
 import { parseFlow } from '../units/parse.js';
 import { describeIssue } from '../vessel/issues.js';
@@ -16,8 +17,8 @@ export type Connection = (typeof CONNECTIONS)[number];
 
 /** The fields a vessel has only inside a system file. */
 const linkSchema = z.object({
-  id: z.string().min(1),
-  dischargesTo: z.string().min(1).nullable(),
+  id: tagText().min(1),
+  dischargesTo: tagText().min(1).nullable(),
   connection: z.enum(CONNECTIONS),
   /** Elevation of the vessel's lowest interior point on a common site datum, m (submerged links need it). */
   baseElevationM: z.number().optional(),
@@ -29,15 +30,15 @@ const linkSchema = z.object({
 const SYSTEM_ONLY = ['id', 'dischargesTo', 'connection', 'baseElevationM', 'effectiveAreaM2', 'dischargeCoefficient'] as const;
 
 const inflowSchema = z.union([
-  z.strictObject({ to: z.string().min(1), constant: z.union([z.number().min(0), z.string().min(1)]) }),
+  z.strictObject({ to: tagText().min(1), constant: z.union([z.number().min(0), tagText().min(1)]) }),
   // a flow log (time and flow columns); its path is relative to the system file; unit if its header gives none
-  z.strictObject({ to: z.string().min(1), log: z.string().min(1), unit: z.string().min(1).optional() }),
+  z.strictObject({ to: tagText().min(1), log: limitedText('path').min(1), unit: tagText().min(1).optional() }),
 ]);
 
 const systemObject = z.strictObject({
-  name: z.string().min(1),
-  site: z.string().optional(),
-  notes: z.string().optional(),
+  name: nameText().min(1),
+  site: nameText().optional(),
+  notes: noteText().optional(),
   vessels: z.array(z.record(z.string(), z.unknown())).min(1).max(50),
   inflows: z.array(inflowSchema).optional(),
 });

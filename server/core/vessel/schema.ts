@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { InputError } from '../errors.js';
+import { nameText, noteText, tagText } from '../limits.js';
 import { waterDensityKgM3 } from '../units/density.js';
 import { shapeSchema } from './shape-schema.js';
 import { describeIssue } from './issues.js';
@@ -24,7 +25,7 @@ const outletSchema = z.strictObject({
   /** ± limits of the outlet centreline's elevation, m. */
   elevationToleranceM: z.number().min(0).optional(),
   type: z.enum(OUTLET_TYPES).optional(),
-  id: z.string().min(1).optional(),
+  id: tagText().min(1).optional(),
 });
 
 const sensorSchema = z.strictObject({
@@ -55,15 +56,15 @@ const fluidSchema = z.union([
 ]);
 
 const vesselObject = z.strictObject({
-  name: z.string().min(1),
-  site: z.string().optional(),
+  name: nameText().min(1),
+  site: nameText().optional(),
   shape: shapeSchema,
   outlet: outletSchema,
   sensor: sensorSchema.optional(),
   fluid: fluidSchema.optional(),
   logger: loggerSchema.optional(),
   gravityMS2: z.number().positive().optional(),
-  notes: z.string().optional(),
+  notes: noteText().optional(),
 });
 
 /** The vessel file, with the cross-field checks (run only once every field is well formed). */

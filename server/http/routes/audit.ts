@@ -1,5 +1,6 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { tagText } from '../../core/limits.js';
 import { AUDITORS } from '../access.js';
 import { verifyRecords } from '../../jobs/verify-records.js';
 import { HttpProblem } from '../problems.js';
@@ -33,13 +34,13 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['audit'],
         summary: 'The audit log, oldest first; page on with afterSeq (a person limited to sites: one vessel of theirs at a time, vesselId)',
         querystring: z.object({
-          entityType: z.string().optional(),
-          entityId: z.string().optional(),
+          entityType: tagText().optional(),
+          entityId: tagText().optional(),
           actorId: z.coerce.number().int().optional(),
-          action: z.string().optional(),
+          action: tagText().optional(),
           vesselId: z.coerce.number().int().positive().optional().meta({ description: 'entries of the vessel and of its outlets, tests, fits and maintenance events' }),
-          since: z.string().optional(),
-          until: z.string().optional(),
+          since: tagText().optional(),
+          until: tagText().optional(),
           afterSeq: z.coerce.number().int().min(0).default(0),
           limit: z.coerce.number().int().min(1).max(1000).default(100),
         }),

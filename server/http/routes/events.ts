@@ -1,5 +1,6 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { noteText } from '../../core/limits.js';
 import { InputError } from '../../core/errors.js';
 import { actorOf } from '../../store/users.js';
 import { ENGINEERS_AND_AUDITORS, ENGINEERS_UP } from '../access.js';
@@ -31,7 +32,7 @@ export const eventRoutes: FastifyPluginAsyncZod = async (app) => {
           outletId: z.number().int().positive().nullable().optional(),
           kind: z.enum(['cleaned', 'replaced', 'modified']),
           occurredAt: z.iso.date().or(z.iso.datetime({ offset: true })),
-          notes: z.string().max(10_000).optional(),
+          notes: noteText().optional(),
         }),
         response: { 201: event, 422: problem, ...protectedErrors },
       },

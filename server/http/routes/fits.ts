@@ -1,5 +1,6 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { noteText } from '../../core/limits.js';
 import { refit } from '../../jobs/ingest.js';
 import { reviewFit } from '../../jobs/review.js';
 import { actorOf } from '../../store/users.js';
@@ -54,7 +55,7 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['fits'],
         summary: 'Approve or reject a draft fit, with a comment',
         params: idParams,
-        body: z.object({ decision: z.enum(['approve', 'reject']), comment: z.string().max(10_000).optional() }),
+        body: z.object({ decision: z.enum(['approve', 'reject']), comment: noteText().optional() }),
         response: { 200: fit, 409: problem, ...protectedErrors },
       },
     },

@@ -4,6 +4,7 @@
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { noteText } from '../../core/limits.js';
 import { retryPending, withdrawPending } from '../../jobs/ingest.js';
 import { actorOf } from '../../store/users.js';
 import { ENGINEERS_UP, TECHNICIANS_UP } from '../access.js';
@@ -50,7 +51,7 @@ export const pendingRoutes: FastifyPluginAsyncZod = async (app) => {
         summary:
           'Withdraw a pending test: its row and unshared raw bytes are deleted; the audit log keeps the upload and the reason',
         params: idParams,
-        body: z.object({ reason: z.string().trim().min(1).max(500) }).strict(),
+        body: z.object({ reason: noteText().trim().min(1, 'must say why') }).strict(),
         response: {
           200: z.object({ withdrawn: z.number().int() }),
           409: problem,

@@ -5,9 +5,8 @@
  * stored: the fit answer is the document `steady` and `linearize` take back (the store has no
  * table for systems yet, so the person keeps the JSON).
  *
- * The joint fit runs on the event loop: on the sample systems (2 × 900 and 3 × 1200 readings) it
- * takes 40–450 ms on this machine, so the answer is capped at MAX_FIT_SAMPLES readings in the
- * common span (about 1.5 s); longer logs are refused with a pointer to the CLI.
+ * The joint fit runs in the task pool (jobs/system-fit.ts), off the event loop, with a time limit
+ * (503 past it); its readings are capped at MAX_FIT_SAMPLES there, measured to stay well inside it.
  * The module's one export is the plugin: `await app.register(systemRoutes)`.
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
@@ -15,36 +14,27 @@ import type { FastifyRequest } from 'fastify';
 import { z } from 'zod';
 import { jointFitResult } from '../../core/fit-result/schema.js';
 import { InputError } from '../../core/errors.js';
-import { alignLogs, type Alignment, type LogForSystem } from '../../core/system/align.js';
-import { fitSystem, type SystemFitResult } from '../../core/system/fit.js';
-import { loadSystemModel, systemFitJson, type InflowLogUse } from '../../core/system/fit-json.js';
-import { readFlowLog } from '../../core/system/flow-log.js';
-import { inflowOnFitClock } from '../../core/system/inflow-log.js';
+import { tagText } from '../../core/limits.js';
+import { loadSystemModel } from '../../core/system/fit-json.js';
 import { linearize } from '../../core/system/linear.js';
 import { linearModelCsv, linearModelText } from '../../core/system/linear-export.js';
-import { buildNetwork, type InflowInput } from '../../core/system/network.js';
-import { parseSystemFile, type SystemSpec } from '../../core/system/schema.js';
+import type { SystemSpec } from '../../core/system/schema.js';
 import { steadyState } from '../../core/system/steady.js';
 import { parseFlow } from '../../core/units/index.js';
-import { readVesselLog } from '../../core/system/read-vessel-log.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
-import { HttpProblem } from '../problems.js';
+import { HttpProblem, refuseFields } from '../problems.js';
 import { problem, protectedErrors } from '../schemas.js';
 
-/** Readings (all logs, inside the common span) one synchronous fit may take. */
-export const MAX_FIT_SAMPLES = 12_000;
-/** Points per vessel in the drawing part of the fit answer. */
-const DRAW_POINTS = 600;
 const MAX_LOGS = 12;
 
 const bool = z.enum(['true', 'false']).transform((s) => s === 'true');
-const fitFields = z
+export const fitFields = z
   .object({
-    window: z.string().regex(/^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/, 'START..END in seconds from the logs’ common start'),
+    window: tagText().regex(/^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/, 'START..END in seconds from the logs’ common start'),
     fitDatum: bool,
     fitInflow: bool,
-    unit: z.string().min(1).max(20),
-    tz: z.string().min(1).max(60),
+    unit: tagText().min(1),
+    tz: tagText().min(1),
     dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
@@ -61,8 +51,8 @@ const fitAnswer = jointFitResult
   .meta({ id: 'SystemFit', description: 'The output of `efflux fit-system --json` (the one fit-result shape), plus `drawing` (each log thinned for charts, with the fitted curve)' });
 
 const inflowItem = z.object({
-  to: z.string().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
-  flow: z.union([z.string().min(1).max(40), z.number().min(0)]).meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
+  to: tagText().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
+  flow: z.union([tagText().min(1), z.number().min(0)]).meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
 });
 const operatingBody = z.object({
   system: z.record(z.string(), z.unknown()).meta({ description: 'a system file, or the answer of POST /api/systems/fit' }),
@@ -99,36 +89,8 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     async (request) => {
       const { system, logs, flows, fields } = await readSystemUpload(request);
-      const spec = parseSystemFile(new TextDecoder().decode(system.bytes), system.fileName);
-      const network = buildNetwork(spec);
-      const ids = new Map(spec.vessels.map((v, i) => [v.id, i]));
-      const read: LogForSystem[] = [];
-      for (const [id, file] of logs) {
-        const vessel = ids.get(id);
-        if (vessel === undefined) throw new InputError(`no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`, { field: `log:${id}` });
-        read.push(readVesselLog(spec, vessel, network.gravity, file, { unit: fields.unit, tz: fields.tz, dateOrder: fields.dateOrder, delimiter: fields.delimiter, decimal: fields.decimal }));
-      }
-      const missing = spec.vessels.filter((_, i) => !read.some((l) => l.vessel === i)).map((v) => v.id);
-      if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: send a file field "log:ID" for every vessel`, { field: `log:${missing[0]}` });
-      const alignment = alignLogs(read, fields.window ? parseWindow(fields.window) : undefined);
-      const samples = alignment.logs.reduce((s, l) => s + l.timeS.length, 0);
-      if (samples > MAX_FIT_SAMPLES) {
-        throw new InputError(`${samples} readings in the common span is more than the service fits at once (${MAX_FIT_SAMPLES}): give a shorter window, or run efflux fit-system`, { field: 'window' });
-      }
-      const inflowLogs: InflowLogUse[] = [];
-      const inflows: InflowInput[] = spec.inflows.map((f) => {
-        const vessel = ids.get(f.to)!;
-        if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
-        // over HTTP the flow log named in the system file arrives as the file field "inflow:ID"
-        const file = flows.get(f.to);
-        if (!file) throw new InputError(`the system file gives a logged inflow for "${f.to}" (${f.log}): send it as the file field "inflow:${f.to}"`, { field: `inflow:${f.to}` });
-        const series = readFlowLog(file.bytes, file.fileName, { unit: f.unit, tz: fields.tz, dateOrder: fields.dateOrder, delimiter: fields.delimiter, decimal: fields.decimal });
-        const placed = inflowOnFitClock(series, vessel, alignment);
-        inflowLogs.push({ to: f.to, file: file.fileName, unit: series.unit, samples: placed.timeS!.length, warnings: series.warnings });
-        return placed;
-      });
-      const fit = fitSystem({ network, logs: alignment.logs, inflows, terms: { datum: !!fields.fitDatum, leak: !!fields.fitInflow } });
-      return { ...systemFitJson(spec, fit, alignment, inflowLogs), drawing: drawing(spec, fit, alignment) };
+      const transfer = [system.bytes, ...[...logs.values(), ...flows.values()].map((f) => f.bytes)];
+      return (await app.tasks('system-fit', { system, logs: [...logs], flows: [...flows], fields }, { transfer })) as z.infer<typeof fitAnswer>;
     },
   );
 
@@ -208,16 +170,8 @@ async function readSystemUpload(request: FastifyRequest): Promise<{ system: File
   }
   if (!system) throw refuse('system', 'required: the system file');
   const parsed = fitFields.safeParse(text);
-  if (!parsed.success) {
-    const errors = parsed.error.issues.map((i) => ({ path: i.path.length ? i.path.join('.') : ((i as { keys?: string[] }).keys?.join(',') ?? ''), message: i.message }));
-    throw new HttpProblem(400, 'validation', errors.map((e) => `${e.path}: ${e.message}`).join('; '), { title: 'Invalid request', errors });
-  }
+  if (!parsed.success) throw refuseFields(parsed.error.issues);
   return { system, logs, flows, fields: parsed.data };
-}
-
-function parseWindow(text: string): { startS: number; endS?: number } {
-  const [a, b] = text.split('..').map((s) => s.trim());
-  return { startS: Number(a), endS: b === '' ? undefined : Number(b) };
 }
 
 /** Inflows as [{to?, flow}]; a flow without `to` goes to the single vessel nothing discharges into. */
@@ -255,21 +209,4 @@ function inflowVector(spec: SystemSpec, items: z.infer<typeof inflowItem>[] | un
     q[vessel] += flow;
   });
   return q;
-}
-
-/** Each aligned log thinned to about DRAW_POINTS readings (every k-th), with the fitted curve = reading − residual. */
-function drawing(spec: SystemSpec, fit: SystemFitResult, alignment: Alignment) {
-  return alignment.logs.map((l) => {
-    const res = fit.residuals[l.vessel];
-    const step = Math.max(1, Math.ceil(l.timeS.length / DRAW_POINTS));
-    const timeS: number[] = [];
-    const levelM: number[] = [];
-    const fittedM: number[] = [];
-    for (let s = 0; s < l.timeS.length; s += step) {
-      timeS.push(l.timeS[s]);
-      levelM.push(l.levelM[s]);
-      fittedM.push(l.levelM[s] - res[s]);
-    }
-    return { id: spec.vessels[l.vessel].id, fileName: l.fileName, timeS, levelM, fittedM };
-  });
 }

@@ -4,6 +4,7 @@
  */
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
+import { nameText } from '../../core/limits.js';
 import { InputError } from '../../core/errors.js';
 import { fleetStatus, historyCsv, outletTrendView, STATUS_WORDS, thresholdOf } from '../../jobs/trend.js';
 import { ConflictError } from '../../store/errors.js';
@@ -105,8 +106,8 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['trend'],
         summary: 'Every outlet (of the sites the person may see) with its status and days to threshold, soonest first; filter by site and status (comma-separated)',
         querystring: paging.extend({
-          site: z.string().min(1).optional(),
-          status: z.string().min(1).optional(),
+          site: nameText().min(1).optional(),
+          status: nameText().min(1).optional(),
           retired: z.enum(['true', 'false']).optional(),
         }).merge(asOfQuery),
         response: { 200: fleetView, ...protectedErrors },

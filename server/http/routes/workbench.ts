@@ -3,22 +3,22 @@
  * is stored (the first lines, what the reader detected, the whole series for the window chart),
  * and the parsed series of a stored test at full resolution (the fit view draws the window on it).
  * Both run the same pure reader as a fit (prepareDrainTest), so what is shown is what is fitted.
- * Reading runs on the event loop: a million-row file takes a few hundred milliseconds.
+ * Reading and writing the answer's JSON run in the task pool (jobs/workbench-read.ts): a
+ * million-row file takes a second or two there, with a time limit (503 past it); this thread
+ * only gathers the bytes and sends the finished JSON.
  * The module's one export is the plugin: `await app.register(workbenchRoutes)`.
  */
+import type { FastifyReply } from 'fastify';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { AnalysisSettings } from '../../core/analysis-contract.js';
-import { detectedSummary, expandWorkbook, prepareDrainTest, type PreparedTest } from '../../core/analyze.js';
-import { decodeHead, detectEncoding, NotUtf8 } from '../../core/ingest/decode.js';
 import { chooseOutlet, vesselForAnalysis } from '../../jobs/ingest.js';
 import type { Vessel } from '../../store/vessels.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
 import { analysisSettings, idParams, problem, protectedErrors } from '../schemas.js';
 import { readUpload } from '../uploads.js';
 
-const HEAD_LINES = 25;
-const HEAD_BYTES = 16 * 1024;
+const json = (reply: FastifyReply, u: Uint8Array) => reply.type('application/json; charset=utf-8').send(Buffer.from(u.buffer, u.byteOffset, u.byteLength));
 
 const series = z.object({
   /** ISO 8601 instant of timeS = 0, or null for elapsed-time logs. */
@@ -37,32 +37,6 @@ const inspection = z
     settings: analysisSettings,
   })
   .meta({ id: 'Inspection' });
-
-/** The first lines of the file as text, for the preview table (never used for reading). */
-function headLines(bytes: Uint8Array, fileName: string): { encoding: string; lines: string[] } {
-  let guess = detectEncoding(bytes);
-  let text: string;
-  try {
-    text = decodeHead(bytes, guess, HEAD_BYTES, fileName);
-  } catch (e) {
-    if (!(e instanceof NotUtf8)) throw e;
-    guess = { encoding: 'windows-1252', bomBytes: 0, reason: 'not valid UTF-8' };
-    text = decodeHead(bytes, guess, HEAD_BYTES, fileName);
-  }
-  const lines = text.replace(/\r\n?/g, '\n').split('\n').slice(0, HEAD_LINES);
-  if (bytes.length > HEAD_BYTES && lines.length === HEAD_LINES) return { encoding: guess.encoding, lines };
-  return { encoding: guess.encoding, lines: lines.filter((l, i) => l !== '' || i < lines.length - 1) };
-}
-
-function seriesOf(p: PreparedTest): z.infer<typeof series> {
-  const s = p.series;
-  return {
-    t0: s.t0EpochMs === null ? null : new Date(s.t0EpochMs).toISOString(),
-    timeS: Array.from(s.timeS),
-    levelM: Array.from(s.levelM),
-    keep: Array.from(p.choice.keep),
-  };
-}
 
 /** The vessel file for the analysis; with several outlets and none named, the first active one (the window hardly depends on it). */
 function vesselFile(v: Vessel, outletId: number | undefined): Record<string, unknown> {
@@ -85,13 +59,11 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: inspection, 413: problem, 415: problem, 422: problem, ...protectedErrors },
       },
     },
-    async (request) => {
+    async (request, reply) => {
       const v = app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
-      const req = await expandWorkbook({ log: up.log, baro: up.baro, vessel: vesselFile(v, up.outletId), vesselFileName: v.name, settings: up.settings });
-      const prepared = prepareDrainTest(req);
-      // a workbook's first lines are those of its sheet as text
-      return { head: headLines(req.log.bytes, up.log.fileName), detected: detectedSummary(prepared), series: seriesOf(prepared), settings: up.settings };
+      const req = { log: up.log, baro: up.baro, vessel: vesselFile(v, up.outletId), vesselFileName: v.name, settings: up.settings };
+      return json(reply, await app.tasks('inspect', req, { transfer: [up.log.bytes, ...(up.baro ? [up.baro.bytes] : [])] }));
     },
   );
 
@@ -107,16 +79,18 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: z.object({ series, detected: z.record(z.string(), z.unknown()) }), 422: problem, ...protectedErrors },
       },
     },
-    async (request) => {
+    async (request, reply) => {
       const t = app.store.tests.get(request.params.id);
       const f = request.query.fit === undefined ? null : app.store.fits.get(request.query.fit);
       const settings = (f && f.testId === t.id ? f.settings : t.settings) as AnalysisSettings;
       const v = app.store.vessels.get(t.vesselId);
-      const log = { bytes: app.store.tests.rawBytes(t.sha256), fileName: t.fileName };
-      const baro = t.baro ? { bytes: app.store.tests.rawBytes(t.baro.sha256), fileName: t.baro.fileName } : undefined;
+      // a file database: the task thread reads the raw bytes itself (tens of MB stay off this thread)
+      const dbPath = app.store.db.memory ? null : app.store.db.name;
+      const raw = (sha256: string, fileName: string) => (dbPath ? { fileName, dbPath, sha256 } : { fileName, bytes: app.store.tests.rawBytes(sha256) });
+      const log = raw(t.sha256, t.fileName);
+      const baro = t.baro ? raw(t.baro.sha256, t.baro.fileName) : undefined;
       const vessel = f && f.testId === t.id ? f.vessel : vesselFile(v, t.outletId ?? undefined);
-      const prepared = prepareDrainTest(await expandWorkbook({ log, baro, vessel, vesselFileName: v.name, settings }));
-      return { series: seriesOf(prepared), detected: detectedSummary(prepared) };
+      return json(reply, await app.tasks('series', { log, baro, vessel, vesselFileName: v.name, settings }, { transfer: [log, baro].flatMap((r) => (r && 'bytes' in r && r.bytes ? [r.bytes] : [])) }));
     },
   );
 };

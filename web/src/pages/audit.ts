@@ -135,6 +135,18 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
   await load(true);
 }
 
+/** An export job as the service reports it (server/jobs/exports.ts). */
+interface ExportJob {
+  id: string;
+  state: 'running' | 'done' | 'failed';
+  done: number;
+  total: number;
+  bytes: number | null;
+  error: string | null;
+  statusUrl: string;
+  archiveUrl: string | null;
+}
+
 function exportForm(vessels: Vessel[]): HTMLElement {
   const sites = [...new Set(vessels.map((v) => v.site))].sort();
   const site = select('site', [['', 'every site'], ...sites.map((s): [string, string] => [s, s])]);
@@ -159,13 +171,21 @@ function exportForm(vessels: Vessel[]): HTMLElement {
     if (from.value) body.from = from.value;
     if (to.value) body.to = to.value;
     try {
-      const res = await fetch('/api/exports', { method: 'POST', credentials: 'same-origin', headers: { 'content-type': 'application/json', accept: 'application/zip, application/problem+json' }, body: JSON.stringify(body) });
-      if (!res.ok) {
-        const p = (await res.json().catch(() => null)) as { detail?: string } | null;
-        throw new Error(p?.detail ?? `the service answered ${res.status}`);
+      // the service makes the export as a job (POST → 202); show its progress until the zip is ready
+      let job = await api<ExportJob>('POST', '/api/exports', body);
+      const bar = h('progress', { max: String(Math.max(1, job.total)), value: '0', id: 'export-progress' });
+      const words = h('span', {}, `0 of ${job.total} reports made`);
+      out.append(h('p', { class: 'export-progress' }, bar, ' ', words));
+      while (job.state === 'running') {
+        await new Promise((r) => setTimeout(r, 500));
+        job = await api<ExportJob>('GET', job.statusUrl);
+        bar.max = Math.max(1, job.total);
+        bar.value = job.done;
+        words.textContent = `${job.done} of ${job.total} reports made`;
       }
-      const blob = await res.blob();
-      const link = h('a', { href: URL.createObjectURL(blob), download: 'efflux-export.zip', class: 'button', id: 'export-link' }, `Save efflux-export.zip (${(blob.size / 1024).toFixed(0)} KiB)`);
+      out.replaceChildren();
+      if (job.state === 'failed' || !job.archiveUrl) throw new Error(job.error ?? 'the export failed');
+      const link = h('a', { href: job.archiveUrl, download: 'efflux-export.zip', class: 'button', id: 'export-link' }, `Save efflux-export.zip (${((job.bytes ?? 0) / 1024).toFixed(0)} KiB, ${job.total} reports)`);
       out.append(notice('info', 'The export is ready. ', link));
       link.click();
     } catch (e) {

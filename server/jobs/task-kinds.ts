@@ -1,0 +1,43 @@
+/**
+ * The tasks the task pool runs (server/jobs/tasks.ts), each a pure function of what it is given:
+ * the input and output types, and `runTask`, which the worker thread calls. Imported for its types
+ * on the HTTP thread, for its code only in the worker.
+ */
+import type { AnalysisRequest } from '../core/analysis-contract.js';
+import type { FitReport, OutletReport } from '../core/report/index.js';
+import { renderFitReportPdf } from '../render/fit-report-pdf.js';
+import { renderOutletReportPdf } from '../render/outlet-report-pdf.js';
+import { assembleExport, type ExportAssembly } from '../render/period-export-assembly.js';
+import { systemFitAnswer, type SystemFitInput } from './system-fit.js';
+import { inspectAnswer, seriesAnswer, type SeriesRequest } from './workbench-read.js';
+
+export interface TaskIo {
+  'fit-report-pdf': { input: FitReport; output: Uint8Array };
+  'outlet-report-pdf': { input: OutletReport; output: Uint8Array };
+  zip: { input: ExportAssembly; output: Uint8Array };
+  inspect: { input: AnalysisRequest; output: Uint8Array };
+  series: { input: SeriesRequest; output: Uint8Array };
+  'system-fit': { input: SystemFitInput; output: Record<string, unknown> };
+}
+
+export type TaskKind = keyof TaskIo;
+export type TaskInput<K extends TaskKind> = TaskIo[K]['input'];
+export type TaskOutput<K extends TaskKind> = TaskIo[K]['output'];
+
+export async function runTask<K extends TaskKind>(kind: K, input: TaskInput<K>): Promise<TaskOutput<K>> {
+  switch (kind) {
+    case 'fit-report-pdf':
+      return (await renderFitReportPdf(input as FitReport)) as TaskOutput<K>;
+    case 'outlet-report-pdf':
+      return (await renderOutletReportPdf(input as OutletReport)) as TaskOutput<K>;
+    case 'zip':
+      return assembleExport(input as ExportAssembly) as TaskOutput<K>;
+    case 'inspect':
+      return (await inspectAnswer(input as AnalysisRequest)) as TaskOutput<K>;
+    case 'series':
+      return (await seriesAnswer(input as SeriesRequest)) as TaskOutput<K>;
+    case 'system-fit':
+      return systemFitAnswer(input as SystemFitInput) as TaskOutput<K>;
+  }
+  throw new Error(`unknown task "${String(kind)}"`);
+}
