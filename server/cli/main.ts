@@ -27,6 +27,9 @@ const COMMANDS: Record<string, Command> = {
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
   report: { summary: 'fit and outlet reports (PDF/JSON) and report verify', load: () => loadModule('report') },
   trend: { summary: "an outlet's Cd·a trend and forecast, or the fleet: trend <outletId> | trend --fleet", load: () => loadModule('trend') },
+  backup: { summary: 'copy the data folder\'s database online and check the copy: backup --out FILE', load: async () => ({ run: (await import('./data-folder.js')).runBackup }) },
+  restore: { summary: 'put a checked backup in place (refused while a server runs): restore FILE', load: async () => ({ run: (await import('./data-folder.js')).runRestore }) },
+  check: { summary: 'check the data folder: integrity, schema version, audit chain', load: async () => ({ run: (await import('./data-folder.js')).runCheck }) },
   export: { summary: 'approved fits of a site, vessel or period as one zip with hashes', load: () => loadModule('export') },
 };
 
@@ -60,7 +63,21 @@ async function main(argv: string[]): Promise<number> {
     process.stderr.write(`efflux: the "${name}" command is not available in this build (${(err as Error).message})\n`);
     return EXIT_INTERNAL;
   }
-  return mod.run(rest);
+  try {
+    return await mod.run(rest);
+  } catch (err) {
+    // the operator's situation, not a bug: one line naming it, exit 2
+    const refusals = ['SettingsError', 'FolderBusyError', 'NewerSchemaError', 'DemoRefusedError', 'NoDatabaseError'];
+    if (err instanceof Error && refusals.includes(err.name)) {
+      process.stderr.write(`efflux: ${err.message}\n`);
+      return EXIT_REFUSED;
+    }
+    if (err instanceof Error && err.name === 'MigrationError') {
+      process.stderr.write(`efflux: ${err.message}\n`);
+      return EXIT_INTERNAL;
+    }
+    throw err;
+  }
 }
 
 main(process.argv.slice(2)).then(

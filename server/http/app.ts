@@ -39,6 +39,7 @@ import { fitRoutes } from './routes/fits.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
+import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
@@ -60,6 +61,12 @@ export interface AppOptions {
   secureCookie?: boolean;
   /** Sign-in attempts per client address per minute. */
   signInPerMinute?: number;
+  /**
+   * Fastify's trustProxy (default false): behind a reverse proxy, true / a hop count / the proxy's
+   * addresses, so request.ip (and the sign-in rate limit) is the client's, from X-Forwarded-For.
+   */
+  trustProxy?: boolean | number | string[];
+
   /** Folder of the built web front end, served at /; skipped when absent. */
   webRoot?: string | null;
   logger?: FastifyServerOptions['logger'];
@@ -133,7 +140,8 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     keepAliveTimeout: 10_000,
     bodyLimit: 1024 * 1024, // JSON bodies (vessel files, reviews); uploads have their own limit
     return503OnClosing: true,
-    trustProxy: false,
+    // a hop count as the function Fastify makes of it (its types take no number)
+    trustProxy: typeof opts.trustProxy === 'number' ? ((hops: number) => (_addr: string, hop: number) => hop < hops)(opts.trustProxy) : (opts.trustProxy ?? false),
     logController: new LogController({ disableRequestLogging: !opts.logRequests }),
   }).withTypeProvider<ZodTypeProvider>();
   if (!opts.logRequests) {
@@ -236,6 +244,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   });
   await app.register(vesselRoutes);
   await app.register(testRoutes);
+  await app.register(pendingRoutes);
   await app.register(fitRoutes);
   await app.register(eventRoutes);
   await app.register(trendRoutes);

@@ -10,7 +10,7 @@ import { ExportsBusyError } from '../jobs/exports.js';
 import { AnalysisTimeoutError } from '../jobs/pool.js';
 import { TaskQueueFullError, TaskTimeoutError } from '../jobs/tasks.js';
 import { EngineUnavailableError } from '../jobs/worker-reply.js';
-import { ConflictError, DuplicateUploadError, ForbiddenError, NotFoundError } from '../store/errors.js';
+import { ConflictError, DuplicateUploadError, ForbiddenError, isDiskFull, NotFoundError } from '../store/errors.js';
 
 export interface Problem {
   type: string;
@@ -40,6 +40,7 @@ const TITLES: Record<number, string> = {
   429: 'Too many requests',
   500: 'Internal error',
   503: 'Unavailable',
+  507: 'Insufficient storage',
 };
 
 /** Problem types are URNs in the project's namespace: stable names, nothing to dereference. */
@@ -116,6 +117,9 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
       errors: [{ path: err.field ?? err.file ?? 'input', message: err.message }],
     };
   }
+  if (isDiskFull(err)) {
+    return { type: typeOf('disk-full'), status: 507, detail: 'The service\'s disk is full: nothing of this request was kept. Tell the administrator; retry once space is freed.' };
+  }
   if (err instanceof NotFoundError) return { type: typeOf('not-found'), status: 404, detail: err.message };
   if (err instanceof DuplicateUploadError) return { type: typeOf('duplicate-upload'), status: 409, detail: err.message, existingTestId: err.existingTestId };
   if (err instanceof ForbiddenError) return { type: typeOf('forbidden'), status: 403, detail: err.message };
@@ -133,10 +137,33 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
   return { type: 'about:blank', status: 500, detail: 'The service could not complete the request; the error was logged.' };
 }
 
+/**
+ * Bodies are read as sent: a compressed body (any Content-Encoding but identity) is refused before
+ * it is read, 415 with Accept-Encoding: identity (RFC 9110 §15.5.16), instead of failing later
+ * inside a parser.
+ */
+function refuseEncodedBodies(app: FastifyInstance): void {
+  app.addHook('onRequest', async (request, reply) => {
+    const enc = request.headers['content-encoding'];
+    if (enc === undefined) return;
+    const codings = String(enc).split(',').map((s) => s.trim().toLowerCase()).filter(Boolean);
+    if (codings.every((c) => c === 'identity')) return;
+    reply.header('accept-encoding', 'identity');
+    await sendProblem(reply, request, {
+      type: typeOf('content-encoding'),
+      status: 415,
+      detail: `Content-Encoding "${String(enc).slice(0, 40)}" is not accepted; send the body uncompressed`,
+    });
+    return reply;
+  });
+}
+
 export function installProblemHandlers(app: FastifyInstance): void {
+  refuseEncodedBodies(app);
   app.setErrorHandler((err, request, reply) => {
     const p = toProblem(err);
-    if (p.status >= 500) request.log.error({ err }, 'request failed');
+    if (p.status === 507) request.log.error({ err }, 'disk full');
+    else if (p.status >= 500) request.log.error({ err }, 'request failed');
     if (p.status === 401) reply.header('www-authenticate', 'Bearer');
     if (p.status === 503) reply.header('retry-after', '30');
     return sendProblem(reply, request, p);

@@ -82,6 +82,9 @@ export const drainTest = z
     notes: z.string().nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),
+    failedAttempts: z.number().int().meta({ description: 'analyses that failed for a reason other than the input (timeout, fault, full disk)' }),
+    lastFailure: z.string().nullable(),
+    stuck: z.boolean().meta({ description: 'pending and failed 3 times: not retried at start; retry or withdraw it' }),
   })
   .meta({ id: 'DrainTest' });
 

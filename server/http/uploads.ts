@@ -60,10 +60,18 @@ function cleanName(name: string | undefined, fallback: string): string {
   return base.slice(0, 255) || fallback;
 }
 
-export async function readUpload(request: FastifyRequest): Promise<ParsedUpload> {
-  if (!request.isMultipart()) throw new HttpProblem(415, 'multipart-required', 'send multipart/form-data with a file field "log"');
-  const files: Record<string, RawInput> = {};
-  const fields: Record<string, string> = {};
+/** Errors of our own (413 size, 400 field) pass; anything the multipart reader throws is the body's fault. */
+function malformed(e: unknown): unknown {
+  if (e instanceof HttpProblem) return e;
+  const fe = e as { statusCode?: number; code?: string; message?: string };
+  if (fe.code === 'FST_REQ_FILE_TOO_LARGE' || fe.code === 'FST_PARTS_LIMIT' || fe.code === 'FST_FILES_LIMIT' || fe.code === 'FST_FIELDS_LIMIT') return e;
+  if (typeof fe.statusCode === 'number' && fe.statusCode >= 400 && fe.statusCode < 500) return e;
+  if (fe.code === 'ECONNRESET' || fe.code === 'ERR_STREAM_PREMATURE_CLOSE') return new HttpProblem(400, 'malformed-multipart', 'the upload was cut off before its end');
+  const why = (fe.message ?? String(e)).replace(/^Multipart: /, '').slice(0, 200);
+  return new HttpProblem(400, 'malformed-multipart', `the multipart body could not be read (${why}); send multipart/form-data with its boundary and closing delimiter`);
+}
+
+async function readParts(request: FastifyRequest, files: Record<string, RawInput>, fields: Record<string, string>): Promise<void> {
   for await (const part of request.parts()) {
     if (part.type === 'file') {
       const bytes = await part.toBuffer(); // throws 413 past the size limit
@@ -75,6 +83,17 @@ export async function readUpload(request: FastifyRequest): Promise<ParsedUpload>
     } else {
       fields[part.fieldname] = String(part.value);
     }
+  }
+}
+
+export async function readUpload(request: FastifyRequest): Promise<ParsedUpload> {
+  if (!request.isMultipart()) throw new HttpProblem(415, 'multipart-required', 'send multipart/form-data with a file field "log"');
+  const files: Record<string, RawInput> = {};
+  const fields: Record<string, string> = {};
+  try {
+    await readParts(request, files, fields);
+  } catch (e) {
+    throw malformed(e);
   }
   if (!files.log) throw new HttpProblem(400, 'validation', 'the file field "log" is missing', { errors: [{ path: 'log', message: 'required' }] });
   if (files.log.bytes.byteLength === 0) throw new HttpProblem(400, 'validation', 'the log file is empty', { errors: [{ path: 'log', message: 'empty' }] });

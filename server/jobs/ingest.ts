@@ -1,9 +1,9 @@
 import type { AnalysisSettings } from '../core/analysis-contract.js';
 import { checkStatedTestDate, logTestDate, undatedTestError } from '../core/analysis/test-date.js';
 import { InputError, isInputError } from '../core/errors.js';
+import { ConflictError, isDiskFull } from '../store/errors.js';
 import type { Actor, Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
-import { ConflictError } from '../store/errors.js';
 import { sha256Hex, type DrainTest, type RawInput } from '../store/tests.js';
 import type { Outlet, Vessel } from '../store/vessels.js';
 import type { AnalyzeRunner, RunTiming } from './pool.js';
@@ -101,8 +101,16 @@ export async function uploadDrainTest(
     idempotencyKey: input.idempotencyKey,
   });
   timing.storeRawMs = performance.now() - t0;
-  const fit = await analyseStored(store, analyze, actor, test, vessel, outlet, { log: input.log, baro: input.baro }, timing);
+  let fit: StoredFit;
+  try {
+    fit = await analyseStored(store, analyze, actor, test, vessel, outlet, { log: input.log, baro: input.baro }, timing, { compensateDiskFull: true });
+  } catch (e) {
+    // the bytes are kept and the test waits: say which one, so the caller can retry or withdraw it
+    if (!isInputError(e) && !isDiskFull(e) && e instanceof Error) e.message += ` (test ${test.id} is kept pending: retry or withdraw it)`;
+    throw e;
+  }
   const t1 = performance.now();
+  store.reserve?.ensure(); // one stat; remakes the reserve once a full disk has room again
   const answer = { test: store.tests.get(test.id), fit };
   timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
   return answer;
@@ -128,9 +136,13 @@ async function analyseStored(
   outlet: Outlet | null,
   received?: { log: RawInput; baro?: RawInput },
   timing: UploadTiming = {},
+  opts: { compensateDiskFull?: boolean } = {},
 ): Promise<StoredFit> {
   const vesselSpec = vesselForAnalysis(vessel, outlet);
   const settings = test.settings as AnalysisSettings;
+  const busy = analysing(store);
+  if (busy.has(test.id)) throw new ConflictError(`test ${test.id} is being analysed already`);
+  busy.add(test.id);
   try {
     const logBytes = received?.log.bytes ?? store.tests.rawBytes(test.sha256);
     const baroBytes = test.baro ? (received?.baro?.bytes ?? store.tests.rawBytes(test.baro.sha256)) : undefined;
@@ -158,7 +170,51 @@ async function analyseStored(
     return fit;
   } catch (e) {
     if (isInputError(e)) store.tests.withdraw(actor, test.id, e.toLine());
+    else if (isDiskFull(e) && opts.compensateDiskFull) keepNothing(store, actor, test.id, e);
+    else noteFailure(store, test.id, e);
     throw e;
+  } finally {
+    busy.delete(test.id);
+  }
+}
+
+/** Tests whose analysis runs now, per store: a retry never runs beside the upload's or the resume's. */
+const inFlight = new WeakMap<Store, Set<number>>();
+function analysing(store: Store): Set<number> {
+  let s = inFlight.get(store);
+  if (!s) inFlight.set(store, (s = new Set()));
+  return s;
+}
+
+/**
+ * The compensating step of an upload whose fit could not be stored for a full disk: the test and
+ * its unshared bytes are withdrawn (deleting frees pages), so the answer 507 leaves no record the
+ * client was not told of. If even that fails, the test stays pending and marked, for a retry.
+ */
+function keepNothing(store: Store, actor: Actor, testId: number, cause: unknown): void {
+  const withdraw = () => store.tests.withdraw(actor, testId, 'not kept: the disk was full when its fit was stored');
+  try {
+    if (store.reserve) store.reserve.spend(withdraw);
+    else withdraw();
+  } catch {
+    noteFailure(store, testId, cause);
+  }
+}
+
+/** The service is stopping: an analysis cut short by that is not the test's failure. */
+export class StoppingError extends Error {
+  constructor() {
+    super('the service is stopping');
+    this.name = 'StoppingError';
+  }
+}
+
+function noteFailure(store: Store, testId: number, cause: unknown): void {
+  if (cause instanceof StoppingError) return;
+  try {
+    store.tests.recordFailure(testId, cause instanceof Error ? cause.message : String(cause));
+  } catch {
+    // the disk may still be full: the test stays pending either way, and the resume tries again
   }
 }
 
@@ -189,20 +245,56 @@ export async function refit(
   });
 }
 
-/** Analyses tests left pending by an earlier run (stopped between storing and fitting). */
-export async function resumePending(store: Store, analyze: AnalyzeRunner, actor: Actor): Promise<{ done: number; refused: number }> {
-  let done = 0;
-  let refused = 0;
+export interface ResumeReport {
+  done: number;
+  refused: number;
+  failed: { testId: number; reason: string }[];
+  /** Left for a person: failed MAX_ANALYSIS_ATTEMPTS times already. */
+  stuck: number;
+}
+
+/**
+ * Analyses tests left pending by an earlier run (stopped between storing and fitting), one at a
+ * time; a test that fails is noted (its failure count rises) and the next one goes on. Tests that
+ * have failed MAX_ANALYSIS_ATTEMPTS times are skipped: a person retries or withdraws them.
+ */
+export async function resumePending(store: Store, analyze: AnalyzeRunner, actor: Actor): Promise<ResumeReport> {
+  const report: ResumeReport = { done: 0, refused: 0, failed: [], stuck: 0 };
   for (const t of store.tests.pending()) {
-    const vessel = store.vessels.get(t.vesselId);
-    const outlet = t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
+    if (t.stuck) {
+      report.stuck++;
+      continue;
+    }
+    if (analysing(store).has(t.id)) continue;
     try {
-      await analyseStored(store, analyze, actor, t, vessel, outlet);
-      done++;
+      const vessel = store.vessels.get(t.vesselId);
+      const outlet = t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
+      await analyseStored(store, analyze, actor, store.tests.get(t.id), vessel, outlet);
+      report.done++;
     } catch (e) {
-      if (!isInputError(e)) throw e;
-      refused++;
+      if (e instanceof StoppingError) break;
+      if (isInputError(e)) report.refused++;
+      else report.failed.push({ testId: t.id, reason: e instanceof Error ? e.message : String(e) });
     }
   }
-  return { done, refused };
+  return report;
+}
+
+/** A person asks for a pending test to be analysed again (after a timeout, a fault or a full disk). */
+export async function retryPending(store: Store, analyze: AnalyzeRunner, actor: Actor, testId: number): Promise<StoredFit> {
+  const t = store.tests.get(testId);
+  if (t.status !== 'pending') throw new ConflictError(`test ${testId} is analysed already; refit its fit instead`);
+  if (analysing(store).has(testId)) throw new ConflictError(`test ${testId} is being analysed already`);
+  store.tests.noteRetry(actor, testId);
+  const vessel = store.vessels.get(t.vesselId);
+  const outlet = t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
+  return analyseStored(store, analyze, actor, store.tests.get(testId), vessel, outlet);
+}
+
+/** A person takes back a pending test (its bytes go unless another test shares them); the audit log keeps the reason. */
+export function withdrawPending(store: Store, actor: Actor, testId: number, reason: string): void {
+  const t = store.tests.get(testId);
+  if (t.status !== 'pending') throw new ConflictError(`test ${testId} is analysed: analysed tests stay in the history`);
+  if (analysing(store).has(testId)) throw new ConflictError(`test ${testId} is being analysed now; withdraw it when that ends`);
+  store.tests.withdraw(actor, testId, reason);
 }

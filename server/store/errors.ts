@@ -13,6 +13,12 @@ export class ConflictError extends Error {
   }
 }
 
+/** SQLite's "database or disk is full" and the file system's ENOSPC/EDQUOT: the request was fine, the disk is not. */
+export function isDiskFull(err: unknown): boolean {
+  const code = (err as { code?: unknown } | null)?.code;
+  return code === 'SQLITE_FULL' || code === 'ENOSPC' || code === 'EDQUOT';
+}
+
 /** A rule of the records refuses the act itself (four eyes, a site outside a person's limits): 403. */
 export class ForbiddenError extends Error {
   constructor(message: string) {

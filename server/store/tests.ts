@@ -48,7 +48,15 @@ export interface DrainTest {
   notes: string | null;
   createdBy: number | null;
   createdAt: string;
+  /** Analyses of this test that failed for a reason other than its input (timeout, worker fault, full disk). */
+  failedAttempts: number;
+  lastFailure: string | null;
+  /** Pending and failed MAX_ANALYSIS_ATTEMPTS times: no longer retried at start; a person retries or withdraws it. */
+  stuck: boolean;
 }
+
+/** Failed analyses after which a pending test is left for a person (retry or withdraw). */
+export const MAX_ANALYSIS_ATTEMPTS = 3;
 
 interface TestRow {
   id: number;
@@ -70,6 +78,8 @@ interface TestRow {
   notes: string | null;
   created_by: number | null;
   created_at: string;
+  failed_attempts: number;
+  last_failure: string | null;
 }
 
 export { sha256Hex };
@@ -93,10 +103,18 @@ function toTest(r: TestRow): DrainTest {
     notes: r.notes,
     createdBy: r.created_by,
     createdAt: r.created_at,
+    failedAttempts: r.failed_attempts,
+    lastFailure: r.last_failure,
+    stuck: isStuck(r),
   };
 }
 
-const SELECT = `SELECT t.*, l.size AS log_size, b.size AS baro_size FROM drain_tests t
+const isStuck = (r: TestRow) => r.status === 'pending' && r.failed_attempts >= MAX_ANALYSIS_ATTEMPTS;
+
+const SELECT = `SELECT t.*, l.size AS log_size, b.size AS baro_size,
+  (SELECT count(*) FROM analysis_failures f WHERE f.test_id = t.id) AS failed_attempts,
+  (SELECT reason FROM analysis_failures f WHERE f.test_id = t.id ORDER BY f.id DESC LIMIT 1) AS last_failure
+  FROM drain_tests t
   JOIN raw_files l ON l.sha256 = t.log_sha256 LEFT JOIN raw_files b ON b.sha256 = t.baro_sha256`;
 
 /** The API's test object as JSON text, spliced from the stored JSON (see fitJson in fits.ts). */
@@ -107,7 +125,8 @@ function testJson(r: TestRow): string {
     `{"id":${r.id},"vesselId":${r.vessel_id},"outletId":${q(r.outlet_id)},"status":${q(r.status)},"sha256":${q(r.log_sha256)},` +
     `"fileName":${q(r.log_name)},"size":${r.log_size},"baro":${baro},"settings":${r.settings},"detected":${r.detected ?? 'null'},` +
     `"operator":${q(r.operator)},"loggerId":${q(r.logger_id)},"testedAt":${q(r.tested_at)},"testedAtSource":${q(r.tested_at_source)},"notes":${q(r.notes)},` +
-    `"createdBy":${q(r.created_by)},"createdAt":${q(r.created_at)}}`
+    `"createdBy":${q(r.created_by)},"createdAt":${q(r.created_at)},"failedAttempts":${r.failed_attempts},` +
+    `"lastFailure":${q(r.last_failure)},"stuck":${isStuck(r)}}`
   );
 }
 
@@ -146,6 +165,7 @@ export class TestRepo {
         tested_at = coalesce(tested_at, @logDate), tested_at_source = coalesce(tested_at_source, CASE WHEN @logDate IS NULL THEN NULL ELSE 'log' END)
         WHERE id = @id AND status = 'pending'`),
       remove: db.prepare(`DELETE FROM drain_tests WHERE id = ? AND status = 'pending'`),
+      failed: db.prepare('INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, ?)'),
     };
   }
 
@@ -217,6 +237,29 @@ export class TestRepo {
           before,
           after: { reason },
         });
+      })
+      .immediate();
+  }
+
+  /**
+   * Notes that an analysis of a pending test failed for a reason other than its input; after
+   * MAX_ANALYSIS_ATTEMPTS the test is `stuck` (shown so, skipped by the resume at start).
+   */
+  recordFailure(id: number, reason: string): void {
+    this.c.db
+      .transaction(() => {
+        this.pages.clear();
+        this.q.failed.run(id, this.c.now(), reason.slice(0, 500));
+      })
+      .immediate();
+  }
+
+  /** The audit entry of a person's request to analyse a pending test again. */
+  noteRetry(actor: Actor, id: number): void {
+    this.c.db
+      .transaction(() => {
+        const t = this.get(id);
+        this.c.audit.append(actor, this.c.now(), { action: 'test.retry', entityType: 'test', entityId: id, after: { failedAttempts: t.failedAttempts, lastFailure: t.lastFailure } });
       })
       .immediate();
   }

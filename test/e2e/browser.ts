@@ -69,7 +69,7 @@ export async function startServer(): Promise<RunningServer> {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
   const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
   await buildWeb(webRoot);
-  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1' };
+  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1', EFFLUX_DEMO: '1' };
   const server = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
   let out = '';
   const base = await new Promise<string>((resolve, reject) => {

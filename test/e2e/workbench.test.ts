@@ -26,7 +26,7 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
   const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
   let profile = '';
-  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1' };
+  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1', EFFLUX_DEMO: '1' };
   let problems: string[] = [];
 
   beforeAll(async () => {
@@ -78,6 +78,7 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     await page.getByRole('button', { name: 'Sign in' }).click();
     await page.getByRole('alert').waitFor();
     await signIn(adminToken);
+    await page.locator('.demo-banner').getByText('Demo data').waitFor(); // the demo's folder says so
 
     // fleet: every demo vessel, and the search narrows it
     await page.locator('table.fleet tbody tr').first().waitFor();

@@ -146,7 +146,7 @@ describe('service', () => {
   it('health without credentials; OpenAPI lists the routes; strict CSP; no CORS', async () => {
     const t = await testApp();
     const h = await t.app.inject({ method: 'GET', url: '/api/health', headers: { origin: 'https://elsewhere.example' } });
-    expect(h.json()).toEqual({ status: 'ok' });
+    expect(h.json()).toEqual({ status: 'ok', demo: false });
     expect(h.headers['access-control-allow-origin']).toBeUndefined();
     const csp = String(h.headers['content-security-policy']);
     expect(csp).toContain("default-src 'self'");

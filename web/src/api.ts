@@ -67,6 +67,9 @@ export interface DrainTest {
   testedAt: string | null;
   notes: string | null;
   createdAt: string;
+  failedAttempts?: number;
+  lastFailure?: string | null;
+  stuck?: boolean;
 }
 export interface Fit {
   id: number;

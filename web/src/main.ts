@@ -123,5 +123,18 @@ function focusHeading(): void {
   }
 }
 
+/** A data folder holding the invented demo says so on every page (GET /api/health → demo). */
+async function demoBanner(): Promise<void> {
+  try {
+    const health = await api<{ demo?: boolean }>('GET', '/api/health');
+    if (!health.demo) return;
+    const banner = h('div', { class: 'demo-banner', role: 'note' }, 'Demo data: every vessel, test and person here is invented (the fictional Kestrel Fen site). Do not use it for a real site.');
+    document.querySelector('header.bar')?.after(banner);
+  } catch {
+    // no banner when the health check cannot be read; the pages say what failed
+  }
+}
+
 window.addEventListener('hashchange', () => void show());
+void demoBanner();
 void show();

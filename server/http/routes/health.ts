@@ -4,15 +4,21 @@ import { PUBLIC } from '../access.js';
 
 export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
   const probe = app.store.db.prepare('SELECT 1');
+  const demo = app.store.meta.isDemo(); // marked before the service is built; never unmarked
   app.get(
     '/api/health',
     {
       config: { roles: PUBLIC },
-      schema: { tags: ['service'], summary: 'Liveness: the service answers and its database reads', response: { 200: z.object({ status: z.literal('ok') }) } },
+      schema: {
+        tags: ['service'],
+        summary:
+          'Liveness: the service answers and its database reads; `demo` when the data folder holds the invented demo scenario',
+        response: { 200: z.object({ status: z.literal('ok'), demo: z.boolean() }) },
+      },
     },
     async () => {
       probe.get();
-      return { status: 'ok' as const };
+      return { status: 'ok' as const, demo };
     },
   );
 };

@@ -7,6 +7,7 @@ import { date, metres, num, outletName, plusMinus, shapeName } from '../format.j
 import { current, vesselHistory } from '../history.js';
 import type { PageContext } from '../main.js';
 import type { FullTrend } from '../trend-chart.js';
+import { pendingSection } from './pending-tests.js';
 import { maintenanceSection, trendSection } from './vessel-trend.js';
 
 const SHAPE_FIELDS: [string, string][] = [
@@ -26,7 +27,7 @@ function geometryRows(shape: Record<string, unknown>): [string, string][] {
   return rows;
 }
 
-export async function vesselPage({ user, params, main }: PageContext): Promise<void> {
+export async function vesselPage({ user, params, main, go }: PageContext): Promise<void> {
   const id = Number(params[0]);
   const v = await api<Vessel>('GET', `/api/vessels/${id}`);
   const [hist, events] = await Promise.all([
@@ -115,6 +116,8 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
     testsSection.append(notice('info', 'No drain test yet.'));
     return;
   }
+  const pending = pendingSection(user, hist.tests, () => go(location.hash));
+  if (pending) testsSection.before(pending);
   const latestFitOf = (testId: number) => hist.fits.filter((f) => f.fit.testId === testId && f.fit.supersededBy === null)[0] ?? hist.fits.find((f) => f.fit.testId === testId);
   testsSection.append(
     table('Tests of this vessel', ['Tested', 'Logger file', 'Outlet', 'Operator', 'Cd ± expanded uncertainty', 'Fit'], hist.tests.map((t) => {
@@ -125,7 +128,7 @@ export async function vesselPage({ user, params, main }: PageContext): Promise<v
         t.fileName,
         v.outlets.find((o) => o.id === t.outletId)?.key ?? '—',
         t.operator ?? '—',
-        cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN)) : t.status === 'pending' ? 'waiting for analysis' : '—',
+        cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN)) : t.status === 'pending' ? (t.stuck ? 'analysis failed: retry or withdraw' : 'waiting for analysis') : '—',
         f ? h('a', { href: `#/fits/${f.fit.id}`, class: `badge badge-${f.fit.status}` }, `${f.fit.status} · open`) : '—',
       ];
     })),
