@@ -47,9 +47,9 @@ node -e '
   console.log(`pack: efflux fit ok, Cd ${cd.toFixed(4)}, engine ${f.engineVersion}`);
 '
 
-# serve on a new, empty data folder (EFFLUX_DEMO=0: no demo here) and ask /api/health
-EFFLUX_DATA_DIR="$work/data" PORT=0 HOST=127.0.0.1 EFFLUX_DEMO=0 EFFLUX_WORKERS=1 \
-  node node_modules/efflux/bin/efflux.js serve > "$work/serve.log" 2>&1 &
+# serve on a new data folder (no demo: a new folder starts empty) and ask /api/health
+PORT=0 HOST=127.0.0.1 EFFLUX_WORKERS=1 \
+  node node_modules/efflux/bin/efflux.js serve --data "$work/data" > "$work/serve.log" 2>&1 &
 server_pid=$!
 base=
 for _ in $(seq 1 120); do
@@ -62,10 +62,16 @@ done
 health=$(node -e 'fetch(process.argv[1] + "/api/health").then(async (r) => { console.log(r.status, await r.text()); process.exit(r.ok ? 0 : 1); }, (e) => { console.log(String(e)); process.exit(1); })' "$base") \
   || fail "GET /api/health: $health"
 echo "pack: efflux serve ok, /api/health: $health"
-# the first start printed an admin token: sign in with it (the session cookie goes through cookie)
-token=$(grep -A1 'keep it safe' "$work/serve.log" | tail -1 | tr -d ' ')
+# the first start wrote an admin token into the data folder (never into the output)
+token=$(tr -d ' \n' < "$work/data/first-admin-token.txt") || fail 'no first-admin-token.txt in the new data folder'
+vessels=$(node -e '
+  fetch(process.argv[1] + "/api/vessels", { headers: { authorization: "Bearer " + process.argv[2] } })
+    .then(async (r) => { const b = await r.json(); console.log(r.status, "total", b.total); process.exit(r.status === 200 && b.total === 0 ? 0 : 1); }, (e) => { console.log(String(e)); process.exit(1); })' "$base" "$token") \
+  || fail "a new data folder must start empty: GET /api/vessels: $vessels"
+echo "pack: the new data folder starts empty: $vessels"
+# sign in with it from the workbench's own origin (the session cookie goes through cookie)
 session=$(node -e '
-  fetch(process.argv[1] + "/api/session", { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ token: process.argv[2] }) })
+  fetch(process.argv[1] + "/api/session", { method: "POST", headers: { "content-type": "application/json", origin: process.argv[1] }, body: JSON.stringify({ token: process.argv[2] }) })
     .then((r) => { const c = r.headers.get("set-cookie") ?? ""; console.log(r.status, c.split(";")[0].replace(/=.*/, "=…")); process.exit(r.status === 201 && c ? 0 : 1); }, (e) => { console.log(String(e)); process.exit(1); })' "$base" "$token") \
   || fail "POST /api/session: $session"
 echo "pack: sign-in ok: $session"

@@ -12,7 +12,9 @@ import { fileURLToPath } from 'node:url';
 const here = dirname(fileURLToPath(import.meta.url));
 const root = resolve(here, existsSync(join(here, '..', 'package.json')) ? '..' : '../..');
 // The shared folder holds the benchmark workloads: EFFLUX_SHARED, else ../shared beside the project.
-const sharedRoot = process.env.EFFLUX_SHARED ? resolve(process.env.EFFLUX_SHARED) : resolve(root, '..', 'shared');
+const sharedRoot = process.env.EFFLUX_SHARED
+  ? resolve(process.env.EFFLUX_SHARED)
+  : resolve(root, '..', 'shared');
 const shared = join(sharedRoot, 'bench');
 const cli = join(root, 'bin', 'efflux.js');
 const runs = Number(process.env.BENCH_RUNS ?? 5);
@@ -32,7 +34,10 @@ interface Row {
 function fitOnce(name: string): Row {
   const csv = join(shared, `${name}.csv`);
   const vessel = join(shared, `${name}.vessel.json`);
-  const out = spawnSync(process.execPath, [cli, 'fit', csv, '--vessel', vessel, '--json'], { encoding: 'utf8', maxBuffer: 64 * 1024 * 1024 });
+  const out = spawnSync(process.execPath, [cli, 'fit', csv, '--vessel', vessel, '--json'], {
+    encoding: 'utf8',
+    maxBuffer: 64 * 1024 * 1024,
+  });
   if (out.status !== 0) throw new Error(`efflux fit ${name} failed: ${out.stderr}`);
   const fit = JSON.parse(out.stdout);
   return {
@@ -59,12 +64,20 @@ if (process.argv.includes('--help') || process.argv.includes('-h')) {
   process.exit(0);
 }
 if (!existsSync(shared)) {
-  const from = process.env.EFFLUX_SHARED ? `EFFLUX_SHARED=${process.env.EFFLUX_SHARED}` : 'the default, ../shared beside the project';
-  console.error(`bench: no benchmark folder at ${shared} (from ${from}); set EFFLUX_SHARED to the shared folder`);
+  const from = process.env.EFFLUX_SHARED
+    ? `EFFLUX_SHARED=${process.env.EFFLUX_SHARED}`
+    : 'the default, ../shared beside the project';
+  console.error(
+    `bench: no benchmark folder at ${shared} (from ${from}); set EFFLUX_SHARED to the shared folder`,
+  );
   process.exit(2);
 }
-console.log(`efflux fit --json on the shared benchmark logs, ${runs} fresh processes each: median (min); a shared machine's load shows in the spread`);
-console.log('file             Cd          parse ms        fit ms          diagnostics ms   peak RSS MB  main-fit evaluations');
+console.log(
+  `efflux fit --json on the shared benchmark logs, ${runs} fresh processes each: median (min); a shared machine's load shows in the spread`,
+);
+console.log(
+  'file             Cd          parse ms        fit ms          diagnostics ms   peak RSS MB  main-fit evaluations',
+);
 for (const name of ['vcyl-86400', 'hcyl-86400']) {
   const rows: Row[] = [];
   for (let i = 0; i < runs; i++) {
@@ -74,7 +87,9 @@ for (const name of ['vcyl-86400', 'hcyl-86400']) {
   const m = (k: keyof Row) => median(rows.map((r) => r[k] as number));
   const lo = (k: keyof Row) => Math.min(...rows.map((r) => r[k] as number));
   const ms = (k: keyof Row) => `${m(k).toFixed(1)} (${lo(k).toFixed(1)})`.padStart(15);
-  console.log(`${name.padEnd(17)}${m('cd').toFixed(6).padEnd(12)}${ms('parseMs')} ${ms('fitMs')} ${ms('diagnosticsMs')} ${m('peakRssMB').toFixed(0).padStart(13)} ${String(m('evaluations')).padStart(21)}`);
+  console.log(
+    `${name.padEnd(17)}${m('cd').toFixed(6).padEnd(12)}${ms('parseMs')} ${ms('fitMs')} ${ms('diagnosticsMs')} ${m('peakRssMB').toFixed(0).padStart(13)} ${String(m('evaluations')).padStart(21)}`,
+  );
 }
 
 for (const [script, label] of [
@@ -92,6 +107,10 @@ for (const [script, label] of [
 // HTTP throughput on loopback (a real server in a temp folder); BENCH_HTTP=0 skips it
 if (process.env.BENCH_HTTP !== '0' && existsSync(join(root, 'bench', 'http.ts'))) {
   console.log('\nHTTP on loopback (autocannon):');
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'bench', 'http.ts'), process.env.BENCH_HTTP_SECONDS ?? '6'], { stdio: 'inherit', cwd: root, env: { ...process.env, EFFLUX_SHARED: sharedRoot } });
+  const r = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', join(root, 'bench', 'http.ts'), process.env.BENCH_HTTP_SECONDS ?? '6'],
+    { stdio: 'inherit', cwd: root, env: { ...process.env, EFFLUX_SHARED: sharedRoot } },
+  );
   if (r.status !== 0) console.log(`  (http.ts exited ${r.status})`);
 }

@@ -13,7 +13,8 @@ import { DAY_MS, simulateFoulingHistory } from '../server/core/trend/index.js';
 import { fleetStatus, outletTrendView } from '../server/jobs/trend.js';
 import { openStore } from '../server/store/index.js';
 
-const OUTLETS = Number(process.env.BENCH_OUTLETS ?? 5000), MONTHS = 120;
+const OUTLETS = Number(process.env.BENCH_OUTLETS ?? 5000),
+  MONTHS = 120;
 const START = Date.UTC(2015, 0, 1);
 const NOW = START + MONTHS * (365.25 / 12) * DAY_MS;
 const iso = (ms: number) => new Date(ms).toISOString();
@@ -26,34 +27,68 @@ function seed() {
   const t0 = performance.now();
   const q = {
     site: db.prepare('INSERT INTO sites (name, created_at) VALUES (?, ?)'),
-    vessel: db.prepare(`INSERT INTO vessels (site_id, name, spec, shape, created_at, updated_at) VALUES (?, ?, ?, '{}', ?, ?)`),
-    outlet: db.prepare(`INSERT INTO outlets (vessel_id, key, bore_m, elevation_m, action_threshold, spec) VALUES (?, 'main', 0.05, 0, ?, '{}')`),
-    raw: db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, 1, x'00', ?)`),
+    vessel: db.prepare(
+      `INSERT INTO vessels (site_id, name, spec, shape, created_at, updated_at) VALUES (?, ?, ?, '{}', ?, ?)`,
+    ),
+    outlet: db.prepare(
+      `INSERT INTO outlets (vessel_id, key, bore_m, elevation_m, action_threshold, spec) VALUES (?, 'main', 0.05, 0, ?, '{}')`,
+    ),
+    raw: db.prepare(
+      `INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, 1, x'00', ?)`,
+    ),
     test: db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, settings, status, tested_at, created_at)
       VALUES (?, ?, ?, 'log.csv', '{}', 'analysed', ?, ?)`),
     fit: db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd, cda_u, cd_u,
       status, reviewed_at, created_at) VALUES (?, ?, ?, '{}', '{}', ?, 'bench', ?, ?, ?, ?, 'approved', ?, ?)`),
-    event: db.prepare(`INSERT INTO maintenance_events (vessel_id, outlet_id, kind, occurred_at, created_at) VALUES (?, ?, 'cleaned', ?, ?)`),
+    event: db.prepare(
+      `INSERT INTO maintenance_events (vessel_id, outlet_id, kind, occurred_at, created_at) VALUES (?, ?, 'cleaned', ?, ?)`,
+    ),
   };
   const sha = 'b'.repeat(64);
   db.transaction(() => {
     const created = iso(START);
     q.raw.run(sha, created);
-    const sites = [1, 2, 3, 4, 5].map((i) => Number(q.site.run(`site-${i}`, created).lastInsertRowid));
+    const sites = [1, 2, 3, 4, 5].map((i) =>
+      Number(q.site.run(`site-${i}`, created).lastInsertRowid),
+    );
     for (let i = 0; i < OUTLETS; i++) {
       const h = simulateFoulingHistory({
-        seed: i + 1, months: MONTHS, startMs: START, baselineAreaM2: 1e-3 * (1 + (i % 7) / 10),
-        driftPctPerYear: -((i % 11) * 0.8), relU: 0.005 + (i % 5) * 0.003, dayJitter: 4,
+        seed: i + 1,
+        months: MONTHS,
+        startMs: START,
+        baselineAreaM2: 1e-3 * (1 + (i % 7) / 10),
+        driftPctPerYear: -((i % 11) * 0.8),
+        relU: 0.005 + (i % 5) * 0.003,
+        dayJitter: 4,
         maintenance: i % 3 === 0 ? [{ month: 40 + (i % 50) }] : [],
         steps: i % 97 === 0 ? [{ month: 110, pct: -8 }] : [],
       });
-      const v = Number(q.vessel.run(sites[i % 5], `V-${i}`, '{}', created, created).lastInsertRowid);
+      const v = Number(
+        q.vessel.run(sites[i % 5], `V-${i}`, '{}', created, created).lastInsertRowid,
+      );
       const o = Number(q.outlet.run(v, i % 4 === 0 ? 0.85 : null).lastInsertRowid);
       for (const f of h.fits) {
         const at = iso(f.testedAtMs);
         const t = Number(q.test.run(v, o, sha, at, at).lastInsertRowid);
-        const result = JSON.stringify({ effectiveAreaM2: { value: f.effectiveAreaM2, standardUncertainty: f.effectiveAreaU }, dischargeCoefficient: { value: f.dischargeCoefficient, standardUncertainty: f.dischargeCoefficientU } });
-        q.fit.run(t, v, o, result, f.effectiveAreaM2, f.dischargeCoefficient, f.effectiveAreaU, f.dischargeCoefficientU, at, at);
+        const result = JSON.stringify({
+          effectiveAreaM2: { value: f.effectiveAreaM2, standardUncertainty: f.effectiveAreaU },
+          dischargeCoefficient: {
+            value: f.dischargeCoefficient,
+            standardUncertainty: f.dischargeCoefficientU,
+          },
+        });
+        q.fit.run(
+          t,
+          v,
+          o,
+          result,
+          f.effectiveAreaM2,
+          f.dischargeCoefficient,
+          f.effectiveAreaU,
+          f.dischargeCoefficientU,
+          at,
+          at,
+        );
       }
       for (const e of h.events) q.event.run(v, o, iso(e.atMs), created);
     }
@@ -70,27 +105,43 @@ function time(label: string, runs: number, f: () => unknown): number {
   }
   ms.sort((a, b) => a - b);
   const med = ms[Math.floor(runs / 2)];
-  console.log(`${label}: median ${med.toFixed(2)} ms, min ${ms[0].toFixed(2)} ms, max ${ms[runs - 1].toFixed(2)} ms over ${runs} runs`);
+  console.log(
+    `${label}: median ${med.toFixed(2)} ms, min ${ms[0].toFixed(2)} ms, max ${ms[runs - 1].toFixed(2)} ms over ${runs} runs`,
+  );
   return med;
 }
 
 try {
-  console.log(`seeding ${OUTLETS} outlets × ${MONTHS} monthly approved fits (${OUTLETS * MONTHS} fits) into ${dir}`);
+  console.log(
+    `seeding ${OUTLETS} outlets × ${MONTHS} monthly approved fits (${OUTLETS * MONTHS} fits) into ${dir}`,
+  );
   console.log(`seeded in ${(seed() / 1000).toFixed(1)} s`);
   const t0 = performance.now();
   const cold = fleetStatus(store, {}, NOW);
-  console.log(`fleet, cold (every outlet stale, all recomputed and cached): ${(performance.now() - t0).toFixed(0)} ms (${cold.recomputed} recomputed)`);
+  console.log(
+    `fleet, cold (every outlet stale, all recomputed and cached): ${(performance.now() - t0).toFixed(0)} ms (${cold.recomputed} recomputed)`,
+  );
   fleetStatus(store, {}, NOW); // warm up
-  const fleetMs = time('fleet status, warm (cache read, days brought to now, ordered)', 9, () => fleetStatus(store, {}, NOW));
-  time('fleet status, one site and one status word', 9, () => fleetStatus(store, { site: 'site-3', status: ['drifting'] }, NOW));
+  const fleetMs = time('fleet status, warm (cache read, days brought to now, ordered)', 9, () =>
+    fleetStatus(store, {}, NOW),
+  );
+  time('fleet status, one site and one status word', 9, () =>
+    fleetStatus(store, { site: 'site-3', status: ['drifting'] }, NOW),
+  );
   let next = NOW;
-  time('fleet status a day later each run (time-overtaken outlets recomputed)', 5, () => fleetStatus(store, {}, (next += DAY_MS)));
+  time('fleet status a day later each run (time-overtaken outlets recomputed)', 5, () =>
+    fleetStatus(store, {}, (next += DAY_MS)),
+  );
   const ids = store.trends.outletIds();
   const one = ids[ids.length - 1];
   outletTrendView(store, one, NOW);
-  const oneMs = time('one outlet trend (SQL read, all epochs, bands, answer shape)', 51, () => outletTrendView(store, one, NOW));
+  const oneMs = time('one outlet trend (SQL read, all epochs, bands, answer shape)', 51, () =>
+    outletTrendView(store, one, NOW),
+  );
   console.log('statuses:', cold.counts);
-  console.log(`goals: fleet < 200 ms ${fleetMs < 200 ? 'met' : 'MISSED'}, one outlet < 20 ms ${oneMs < 20 ? 'met' : 'MISSED'}`);
+  console.log(
+    `goals: fleet < 200 ms ${fleetMs < 200 ? 'met' : 'MISSED'}, one outlet < 20 ms ${oneMs < 20 ? 'met' : 'MISSED'}`,
+  );
 } finally {
   store.close();
   rmSync(dir, { recursive: true, force: true });

@@ -8,7 +8,7 @@ function log(n: number) {
   const open = Math.floor(n * 0.1);
   const k = Math.sqrt(1.45) / (n * 0.6);
   let seed = 12345;
-  const rnd = () => ((seed = (seed * 1103515245 + 12345) >>> 0) / 4294967296);
+  const rnd = () => (seed = (seed * 1103515245 + 12345) >>> 0) / 4294967296;
   for (let i = 0; i < n; i++) {
     timeS[i] = i;
     const r = Math.sqrt(1.45) - k * Math.max(0, i - open);
@@ -37,5 +37,7 @@ for (const n of [86_400, 1_000_000]) {
 {
   const s = log(86_400);
   const r = chooseDrainWindow(s, { outletReadingM: 0.05 });
-  console.log(`86 400-sample log (valve opens at 8640 s): window ${r.window.startS}–${r.window.endS} s, ${r.spikes.length} spikes`);
+  console.log(
+    `86 400-sample log (valve opens at 8640 s): window ${r.window.startS}–${r.window.endS} s, ${r.spikes.length} spikes`,
+  );
 }

@@ -25,7 +25,10 @@ export async function buildWeb(outDir: string): Promise<string[]> {
     logLevel: 'warning',
     legalComments: 'eof',
   });
-  const css = [readFileSync(join(root, 'node_modules/uplot/dist/uPlot.min.css'), 'utf8'), readFileSync(join(here, 'styles.css'), 'utf8')].join('\n');
+  const css = [
+    readFileSync(join(root, 'node_modules/uplot/dist/uPlot.min.css'), 'utf8'),
+    readFileSync(join(here, 'styles.css'), 'utf8'),
+  ].join('\n');
   writeFileSync(join(outDir, 'app.css'), css);
   copyFileSync(join(here, 'index.html'), join(outDir, 'index.html'));
   return ['index.html', 'app.js', 'app.css'];

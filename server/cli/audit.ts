@@ -9,7 +9,9 @@ import { dataDir } from './serve-config.js';
 
 export async function run(argv: string[]): Promise<number> {
   if (argv[0] !== 'verify') {
-    process.stderr.write('usage: efflux audit verify   (checks the audit log and the stored copies in EFFLUX_DATA_DIR)\n');
+    process.stderr.write(
+      'usage: efflux audit verify   (checks the audit log and the stored copies in EFFLUX_DATA_DIR)\n',
+    );
     return 2;
   }
   const store = openStore({ dataDir: dataDir() });
@@ -18,14 +20,23 @@ export async function run(argv: string[]): Promise<number> {
     const records = verifyRecords(store);
     const out: string[] = [];
     if (r.ok) out.push(`audit chain intact: ${r.count} entries; head ${r.head}`);
-    else out.push(`audit chain BROKEN at entry ${r.brokenAt}: ${r.reason}`, `(last good head ${r.head})`);
-    if (records.ok) out.push(`stored copies agree: ${records.fitsChecked} fits, ${records.outletsChecked} cached outlet statuses`);
+    else
+      out.push(
+        `audit chain BROKEN at entry ${r.brokenAt}: ${r.reason}`,
+        `(last good head ${r.head})`,
+      );
+    if (records.ok)
+      out.push(
+        `stored copies agree: ${records.fitsChecked} fits, ${records.outletsChecked} cached outlet statuses`,
+      );
     else {
       out.push(`stored copies DIFFER (${records.differences.length}):`);
       for (const d of records.differences) out.push(`  ${d.message}`);
     }
     if (records.undatedTests.length) {
-      out.push(`note: ${records.undatedTests.length} old test(s) have no date and stay out of the trend:`);
+      out.push(
+        `note: ${records.undatedTests.length} old test(s) have no date and stay out of the trend:`,
+      );
       for (const u of records.undatedTests) out.push(`  test ${u.testId}: ${u.reason}`);
     }
     process.stdout.write(out.join('\n') + '\n');

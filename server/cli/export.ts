@@ -33,14 +33,21 @@ export async function run(argv: string[]): Promise<number> {
       process.stdout.write(USAGE);
       return 0;
     }
-    if (positionals.length) throw new InputError(`unexpected argument "${positionals[0]}" (see --help)`);
+    if (positionals.length)
+      throw new InputError(`unexpected argument "${positionals[0]}" (see --help)`);
     if (!values.out) throw new InputError('say where to write the archive: --out archive.zip');
     const store = openStore({ dataDir: dataDir() });
     try {
       const t0 = performance.now();
-      const r = await periodExport(store, { site: values.site, vessel: values.vessel, from: values.from, to: values.to }, currentSoftware());
+      const r = await periodExport(
+        store,
+        { site: values.site, vessel: values.vessel, from: values.from, to: values.to },
+        currentSoftware(),
+      );
       writeFileSync(values.out, r.zip);
-      process.stdout.write(`${basename(values.out)}: ${r.fits} approved fits, ${r.fileCount} files, ${r.zip.length} bytes, ${Math.round(performance.now() - t0)} ms\n`);
+      process.stdout.write(
+        `${basename(values.out)}: ${r.fits} approved fits, ${r.fileCount} files, ${r.zip.length} bytes, ${Math.round(performance.now() - t0)} ms\n`,
+      );
       return 0;
     } finally {
       store.close();

@@ -44,9 +44,16 @@ export async function runFit(argv: string[]): Promise<number> {
       process.stdout.write(USAGE);
       return EXIT_OK;
     }
-    if (positionals.length === 0) throw new InputError('no log file given (usage: efflux fit <log.csv> --vessel <vessel.json>)');
-    if (!values.vessel) throw new InputError('no vessel file given: add --vessel <vessel.json> (shape, outlet bore and elevation, sensor zero)');
-    if (values.plot && positionals.length > 1) throw new InputError('--plot takes one log at a time');
+    if (positionals.length === 0)
+      throw new InputError(
+        'no log file given (usage: efflux fit <log.csv> --vessel <vessel.json>)',
+      );
+    if (!values.vessel)
+      throw new InputError(
+        'no vessel file given: add --vessel <vessel.json> (shape, outlet bore and elevation, sensor zero)',
+      );
+    if (values.plot && positionals.length > 1)
+      throw new InputError('--plot takes one log at a time');
     const settings = settingsFrom(values);
     const vesselFile = readInputFile(values.vessel, 1024 * 1024);
     const vessel = parseVesselFile(new TextDecoder().decode(vesselFile.bytes), values.vessel);
@@ -65,9 +72,12 @@ export async function runFit(argv: string[]): Promise<number> {
           { now: () => performance.now() },
         );
         outcome.fit.timing.parseMs += readMs;
-        (outcome.fit.timing as Record<string, number>).peakRssMB = process.resourceUsage().maxRSS / 1024;
+        (outcome.fit.timing as Record<string, number>).peakRssMB =
+          process.resourceUsage().maxRSS / 1024;
         if (values.json) {
-          const body = batch ? JSON.stringify({ file: path, ...outcome.fit }) : JSON.stringify(outcome.fit, null, 2);
+          const body = batch
+            ? JSON.stringify({ file: path, ...outcome.fit })
+            : JSON.stringify(outcome.fit, null, 2);
           process.stdout.write(body + '\n');
         } else {
           if (batch) process.stdout.write(`\n== ${path}\n`);
@@ -76,7 +86,9 @@ export async function runFit(argv: string[]): Promise<number> {
         if (values.plot) writeAtomically(values.plot, fitSvg(outcome.fit));
         if (!outcome.fit.converged) {
           unconverged++;
-          process.stderr.write(`efflux: ${path}: the fit did not converge; do not use its numbers\n`);
+          process.stderr.write(
+            `efflux: ${path}: the fit did not converge; do not use its numbers\n`,
+          );
         }
       } catch (err) {
         if (!(err instanceof InputError) || !batch) throw err;
@@ -84,7 +96,10 @@ export async function runFit(argv: string[]): Promise<number> {
         process.stderr.write(`efflux: ${err.toLine()}\n`);
       }
     }
-    if (batch) process.stderr.write(`${positionals.length - refused} fitted (${unconverged} not converged), ${refused} refused\n`);
+    if (batch)
+      process.stderr.write(
+        `${positionals.length - refused} fitted (${unconverged} not converged), ${refused} refused\n`,
+      );
     return refused ? EXIT_REFUSED : unconverged ? EXIT_NOT_CONVERGED : EXIT_OK;
   });
 }

@@ -14,7 +14,10 @@ export const EXIT_INTERNAL = 70;
 export const DEFAULT_MAX_FILE_BYTES = 64 * 1024 * 1024;
 
 /** Read a file a person named, refusing missing, unreadable or oversized ones with an InputError. */
-export function readInputFile(path: string, maxBytes = DEFAULT_MAX_FILE_BYTES): { bytes: Uint8Array; fileName: string } {
+export function readInputFile(
+  path: string,
+  maxBytes = DEFAULT_MAX_FILE_BYTES,
+): { bytes: Uint8Array; fileName: string } {
   const fileName = basename(path);
   let size: number;
   try {
@@ -26,7 +29,10 @@ export function readInputFile(path: string, maxBytes = DEFAULT_MAX_FILE_BYTES): 
     throw new InputError('no such file, or it cannot be read', { file: path });
   }
   if (size > maxBytes) {
-    throw new InputError(`file is ${(size / 1048576).toFixed(1)} MiB, over the ${(maxBytes / 1048576).toFixed(0)} MiB limit`, { file: path });
+    throw new InputError(
+      `file is ${(size / 1048576).toFixed(1)} MiB, over the ${(maxBytes / 1048576).toFixed(0)} MiB limit`,
+      { file: path },
+    );
   }
   try {
     return { bytes: new Uint8Array(readFileSync(path)), fileName };
@@ -45,8 +51,11 @@ export async function guarded(body: () => Promise<number> | number): Promise<num
       return EXIT_REFUSED;
     }
     const message = err instanceof Error ? err.message : String(err);
-    process.stderr.write(`efflux: internal fault: ${message}\n(this is a bug in efflux; set EFFLUX_DEBUG=1 for details)\n`);
-    if (process.env.EFFLUX_DEBUG === '1' && err instanceof Error) process.stderr.write(`${err.stack}\n`);
+    process.stderr.write(
+      `efflux: internal fault: ${message}\n(this is a bug in efflux; set EFFLUX_DEBUG=1 for details)\n`,
+    );
+    if (process.env.EFFLUX_DEBUG === '1' && err instanceof Error)
+      process.stderr.write(`${err.stack}\n`);
     return EXIT_INTERNAL;
   }
 }

@@ -34,12 +34,17 @@ function table(runs: StrdRun[], totalMs: number): string {
     r.converged ? r.stopReason : `${r.stopReason} (not converged)`,
   ]);
   const widths = head.map((h, k) => Math.max(h.length, ...rows.map((row) => row[k].length)));
-  const fmt = (row: string[]): string => row.map((c, k) => (k === 0 || k === 7 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
+  const fmt = (row: string[]): string =>
+    row
+      .map((c, k) => (k === 0 || k === 7 ? c.padEnd(widths[k]) : c.padStart(widths[k])))
+      .join('  ');
   const minEst = Math.min(...runs.map((r) => Math.min(...r.estimateLre)));
   const minSe = Math.min(...runs.map((r) => Math.min(...r.standardErrorLre)));
   const minRss = Math.min(...runs.map((r) => r.rssLre));
   const lines = [fmt(head), ...rows.map(fmt)];
-  lines.push(`total: ${runs.length} runs, ${runs.filter((r) => r.converged).length} converged, min LRE estimates ${minEst.toFixed(1)}, min LRE standard errors ${minSe.toFixed(1)}, min LRE rss ${minRss.toFixed(1)}, ${totalMs.toFixed(0)} ms`);
+  lines.push(
+    `total: ${runs.length} runs, ${runs.filter((r) => r.converged).length} converged, min LRE estimates ${minEst.toFixed(1)}, min LRE standard errors ${minSe.toFixed(1)}, min LRE rss ${minRss.toFixed(1)}, ${totalMs.toFixed(0)} ms`,
+  );
   return lines.join('\n');
 }
 
@@ -69,7 +74,9 @@ export function main(argv: string[]): number {
     }
   }
   if (!existsSync(dir)) {
-    process.stderr.write(`nist: no StRD folder at ${dir} (from ${from}); give --dir PATH to a folder of StRD .dat files\n`);
+    process.stderr.write(
+      `nist: no StRD folder at ${dir} (from ${from}); give --dir PATH to a folder of StRD .dat files\n`,
+    );
     return 2;
   }
   try {

@@ -22,19 +22,26 @@ export const READ_OPTIONS = {
   help: { type: 'boolean', short: 'h' },
 } as const satisfies ParseArgsConfig['options'];
 
-export function parseCommandLine<O extends NonNullable<ParseArgsConfig['options']>>(argv: string[], options: O) {
+export function parseCommandLine<O extends NonNullable<ParseArgsConfig['options']>>(
+  argv: string[],
+  options: O,
+) {
   try {
     return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
   } catch (err) {
     const msg = err instanceof Error ? err.message.split('\n')[0] : String(err);
-    throw new InputError(`${msg.replace(/^Unknown option/, 'unknown option').replace(/\. To specify.*$/, '')} (see --help)`);
+    throw new InputError(
+      `${msg.replace(/^Unknown option/, 'unknown option').replace(/\. To specify.*$/, '')} (see --help)`,
+    );
   }
 }
 
 const QUANTITIES = ['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top'] as const;
 const DATE_ORDERS = ['dmy', 'mdy', 'ymd'] as const;
 
-export function settingsFrom(values: Record<string, string | boolean | undefined>): AnalysisSettings {
+export function settingsFrom(
+  values: Record<string, string | boolean | undefined>,
+): AnalysisSettings {
   const s: AnalysisSettings = {};
   const str = (k: string) => (typeof values[k] === 'string' ? (values[k] as string) : undefined);
   if (str('time-column')) s.timeColumn = str('time-column');
@@ -42,12 +49,14 @@ export function settingsFrom(values: Record<string, string | boolean | undefined
   if (str('unit')) s.unit = str('unit');
   const q = str('quantity');
   if (q) {
-    if (!(QUANTITIES as readonly string[]).includes(q)) throw new InputError(`--quantity must be one of ${QUANTITIES.join(', ')} (got "${q}")`);
+    if (!(QUANTITIES as readonly string[]).includes(q))
+      throw new InputError(`--quantity must be one of ${QUANTITIES.join(', ')} (got "${q}")`);
     s.quantity = q as AnalysisSettings['quantity'];
   }
   const d = str('date-order');
   if (d) {
-    if (!(DATE_ORDERS as readonly string[]).includes(d)) throw new InputError(`--date-order must be dmy, mdy or ymd (got "${d}")`);
+    if (!(DATE_ORDERS as readonly string[]).includes(d))
+      throw new InputError(`--date-order must be dmy, mdy or ymd (got "${d}")`);
     s.dateOrder = d as AnalysisSettings['dateOrder'];
   }
   if (str('tz')) s.tz = str('tz');
@@ -55,7 +64,8 @@ export function settingsFrom(values: Record<string, string | boolean | undefined
   if (str('delimiter')) s.delimiter = str('delimiter');
   const dec = str('decimal');
   if (dec) {
-    if (dec !== '.' && dec !== ',') throw new InputError(`--decimal must be "." or "," (got "${dec}")`);
+    if (dec !== '.' && dec !== ',')
+      throw new InputError(`--decimal must be "." or "," (got "${dec}")`);
     s.decimal = dec;
   }
   if (str('level-tag')) s.levelTag = str('level-tag');

@@ -2,7 +2,15 @@
  * `efflux people add|change|list|revoke` and `efflux site self-review` (admins at the machine):
  * the same store calls as the workbench's People page, recorded in the audit log as the system.
  */
-import { ConflictError, NotFoundError, openStore, ROLES, SYSTEM_ACTOR, type Person, type Role } from '../store/index.js';
+import {
+  ConflictError,
+  NotFoundError,
+  openStore,
+  ROLES,
+  SYSTEM_ACTOR,
+  type Person,
+  type Role,
+} from '../store/index.js';
 import { dataDir } from './serve-config.js';
 
 const USAGE = `usage:
@@ -21,12 +29,18 @@ function option(argv: string[], name: string): string | undefined {
 
 function role(text: string | undefined): Role | undefined {
   if (text === undefined) return undefined;
-  if (!(ROLES as readonly string[]).includes(text)) throw new RangeError(`--role must be one of ${ROLES.join(', ')}, not "${text}"`);
+  if (!(ROLES as readonly string[]).includes(text))
+    throw new RangeError(`--role must be one of ${ROLES.join(', ')}, not "${text}"`);
   return text as Role;
 }
 
-const sitesOpt = (argv: string[]) => option(argv, 'sites')?.split(',').map((s) => s.trim()).filter(Boolean);
-const line = (p: Person) => `${String(p.id).padStart(4)}  ${p.name.padEnd(24)} ${p.role.padEnd(11)} ${(p.sites?.join(',') ?? 'every site').padEnd(24)} ${p.revokedAt ? `revoked ${p.revokedAt}` : 'active'}`;
+const sitesOpt = (argv: string[]) =>
+  option(argv, 'sites')
+    ?.split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
+const line = (p: Person) =>
+  `${String(p.id).padStart(4)}  ${p.name.padEnd(24)} ${p.role.padEnd(11)} ${(p.sites?.join(',') ?? 'every site').padEnd(24)} ${p.revokedAt ? `revoked ${p.revokedAt}` : 'active'}`;
 
 export async function run(argv: string[]): Promise<number> {
   const [sub, name, ...rest] = argv;
@@ -41,7 +55,8 @@ export async function run(argv: string[]): Promise<number> {
         for (const p of store.users.people()) process.stdout.write(`${line(p)}\n`);
         return 0;
       case 'add': {
-        if (!name || name.startsWith('--')) throw new RangeError('name the person: efflux people add NAME --role ROLE');
+        if (!name || name.startsWith('--'))
+          throw new RangeError('name the person: efflux people add NAME --role ROLE');
         const r = role(option(rest, 'role'));
         if (!r) throw new RangeError('--role is required');
         const p = store.users.addPerson(SYSTEM_ACTOR, name, r, sitesOpt(rest) ?? null);
@@ -57,7 +72,10 @@ export async function run(argv: string[]): Promise<number> {
       case 'change': {
         const p = store.users.personByName(name ?? '');
         const sites = rest.includes('--all-sites') ? null : sitesOpt(rest);
-        const changed = store.users.changePerson(SYSTEM_ACTOR, p.id, { role: role(option(rest, 'role')), ...(sites !== undefined ? { sites } : {}) });
+        const changed = store.users.changePerson(SYSTEM_ACTOR, p.id, {
+          role: role(option(rest, 'role')),
+          ...(sites !== undefined ? { sites } : {}),
+        });
         process.stdout.write(`${line(changed)}\n`);
         return 0;
       }
@@ -91,7 +109,9 @@ export async function runSite(argv: string[]): Promise<number> {
   const store = openStore({ dataDir: dataDir() });
   try {
     const s = store.sites.setSelfReview(SYSTEM_ACTOR, site, onOff === 'on');
-    process.stdout.write(`site "${s.name}": self-review ${s.selfReviewAllowed ? 'allowed (each one marked in the audit log and on reports)' : 'not allowed (four eyes)'}\n`);
+    process.stdout.write(
+      `site "${s.name}": self-review ${s.selfReviewAllowed ? 'allowed (each one marked in the audit log and on reports)' : 'not allowed (four eyes)'}\n`,
+    );
     return 0;
   } catch (e) {
     if (e instanceof NotFoundError) {

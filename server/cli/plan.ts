@@ -1,5 +1,11 @@
 import { InputError } from '../core/errors.js';
-import { planDrainTest, planRequestSchema, type PlanResult, type PlannedTest, type PlanRequestInput } from '../core/plan/index.js';
+import {
+  planDrainTest,
+  planRequestSchema,
+  type PlanResult,
+  type PlannedTest,
+  type PlanRequestInput,
+} from '../core/plan/index.js';
 import { describeIssue } from '../core/vessel/issues.js';
 import { parseFlow, parseLength } from '../core/units/index.js';
 import { parseVesselFile } from '../core/vessel/schema.js';
@@ -61,12 +67,15 @@ export async function run(argv: string[]): Promise<number> {
       return EXIT_OK;
     }
     if (!values.vessel) throw new InputError('no vessel file given: add --vessel <vessel.json>');
-    if (!values.noise && !values.resolution) throw new InputError('give the sensor: --noise (e.g. 1.5mm) and/or --resolution (e.g. 1mm)');
+    if (!values.noise && !values.resolution)
+      throw new InputError('give the sensor: --noise (e.g. 1.5mm) and/or --resolution (e.g. 1mm)');
     if (!values.interval) throw new InputError('give the sample interval: --interval (e.g. 1s)');
-    if (values.target && values['target-cd']) throw new InputError('give --target or --target-cd, not both');
+    if (values.target && values['target-cd'])
+      throw new InputError('give --target or --target-cd, not both');
     const vesselFile = readInputFile(values.vessel, 1024 * 1024);
     const vessel = parseVesselFile(new TextDecoder().decode(vesselFile.bytes), values.vessel);
-    const len = (opt: string, v: string | undefined) => (v === undefined ? undefined : named(opt, () => parseLength(v)));
+    const len = (opt: string, v: string | undefined) =>
+      v === undefined ? undefined : named(opt, () => parseLength(v));
     const req: PlanRequestInput = {
       sensor: {
         noiseM: len('--noise', values.noise) ?? 0,
@@ -82,13 +91,28 @@ export async function run(argv: string[]): Promise<number> {
       levelsM: (values.level ?? []).map((v) => named('--level', () => parseLength(v))),
       statedInputs: (values.input ?? []).map((v) => {
         const eq = v.lastIndexOf('=');
-        if (eq <= 0) throw new InputError(`--input "${v}": write NAME=PERCENT, e.g. "plan area=0.3%"`);
-        return { name: v.slice(0, eq).trim(), relativeStandardUncertainty: parseFraction('--input', v.slice(eq + 1)) };
+        if (eq <= 0)
+          throw new InputError(`--input "${v}": write NAME=PERCENT, e.g. "plan area=0.3%"`);
+        return {
+          name: v.slice(0, eq).trim(),
+          relativeStandardUncertainty: parseFraction('--input', v.slice(eq + 1)),
+        };
       }),
-      dischargeLimitLS: values['discharge-limit'] === undefined ? undefined : named('--discharge-limit', () => parseFlow(values['discharge-limit']!) * 1000),
+      dischargeLimitLS:
+        values['discharge-limit'] === undefined
+          ? undefined
+          : named('--discharge-limit', () => parseFlow(values['discharge-limit']!) * 1000),
     };
-    if (values.target) req.target = { quantity: 'effective-area', relativeStandardUncertainty: parseFraction('--target', values.target) };
-    if (values['target-cd']) req.target = { quantity: 'discharge-coefficient', relativeStandardUncertainty: parseFraction('--target-cd', values['target-cd']) };
+    if (values.target)
+      req.target = {
+        quantity: 'effective-area',
+        relativeStandardUncertainty: parseFraction('--target', values.target),
+      };
+    if (values['target-cd'])
+      req.target = {
+        quantity: 'discharge-coefficient',
+        relativeStandardUncertainty: parseFraction('--target-cd', values['target-cd']),
+      };
     const parsed = planRequestSchema.safeParse(req);
     if (!parsed.success) {
       const { field, message } = describeIssue(parsed.error.issues[0], req);
@@ -99,7 +123,10 @@ export async function run(argv: string[]): Promise<number> {
       result = planDrainTest(vessel, parsed.data);
     } catch (e) {
       const option = e instanceof InputError && e.field ? OPTION_OF[e.field] : undefined;
-      if (option) throw new InputError(`${option}: ${e instanceof Error ? e.message : ''}`, { field: option });
+      if (option)
+        throw new InputError(`${option}: ${e instanceof Error ? e.message : ''}`, {
+          field: option,
+        });
       throw e;
     }
     process.stdout.write(values.json ? `${JSON.stringify(result)}\n` : planText(result));
@@ -132,7 +159,8 @@ function named<T>(option: string, f: () => T): T {
 
 function parseNumber(option: string, text: string): number {
   const v = Number(text.trim());
-  if (text.trim() === '' || !Number.isFinite(v)) throw new InputError(`${option}: "${text}" is not a number`, { field: option });
+  if (text.trim() === '' || !Number.isFinite(v))
+    throw new InputError(`${option}: "${text}" is not a number`, { field: option });
   return v;
 }
 
@@ -147,7 +175,10 @@ const DURATION_UNITS: Record<string, number> = { ms: 0.001, s: 1, sec: 1, min: 6
 function parseDuration(option: string, text: string): number {
   const m = /^\s*(\d+(?:\.\d*)?|\.\d+)\s*([a-z]*)\s*$/i.exec(text);
   const unit = m?.[2].toLowerCase() ?? '';
-  if (!m || !(unit in DURATION_UNITS)) throw new InputError(`${option}: cannot read "${text}" as a duration (e.g. 1s, 500ms, 2min)`, { field: option });
+  if (!m || !(unit in DURATION_UNITS))
+    throw new InputError(`${option}: cannot read "${text}" as a duration (e.g. 1s, 500ms, 2min)`, {
+      field: option,
+    });
   return Number(m[1]) * DURATION_UNITS[unit];
 }
 
@@ -174,31 +205,55 @@ function testLines(t: PlannedTest, r: PlanResult): string[] {
     `  u_r(Cd·a)                 ${pct(u.effectiveAreaRelative)}   (fit scatter, type A: ${pct(u.typeARelative)})`,
     `  u_r(Cd)                   ${pct(u.dischargeCoefficientRelative)}   (u(Cd) ${u.dischargeCoefficientStandard.toPrecision(2)})`,
   ];
-  for (const l of u.lines.filter((x) => x.kind === 'B')) lines.push(`    type B: ${l.name} ${pct(l.relative)} on ${l.applies === 'effective-area' ? 'Cd·a and Cd' : 'Cd'}`);
-  for (const x of t.timesToLevels) lines.push(`  to ${m3(x.levelM)}: ${x.timeS === null ? 'not on this drain' : duration(x.timeS)}`);
+  for (const l of u.lines.filter((x) => x.kind === 'B'))
+    lines.push(
+      `    type B: ${l.name} ${pct(l.relative)} on ${l.applies === 'effective-area' ? 'Cd·a and Cd' : 'Cd'}`,
+    );
+  for (const x of t.timesToLevels)
+    lines.push(
+      `  to ${m3(x.levelM)}: ${x.timeS === null ? 'not on this drain' : duration(x.timeS)}`,
+    );
   return lines;
 }
 
 export function planText(r: PlanResult): string {
   const a = r.assumptions;
-  const out: string[] = [`Drain-test plan: ${r.vessel.name}${r.vessel.site ? ` (${r.vessel.site})` : ''}`];
+  const out: string[] = [
+    `Drain-test plan: ${r.vessel.name}${r.vessel.site ? ` (${r.vessel.site})` : ''}`,
+  ];
   out.push(
     `Assumed: Cd ${a.expectedCd} (${a.expectedCdSource}), Cd·a ${a.effectiveAreaM2.toPrecision(4)} m²; readings every ${a.sampleIntervalS} s, noise ${(a.noiseM * 1000).toPrecision(3)} mm, resolution ${(a.resolutionM * 1000).toPrecision(3)} mm, lag-1 ${a.noiseLag1} (variance factor ${a.varianceInflation.toPrecision(3)}); outlet at level ${m3(a.outletLevelM)}, highest fill ${m3(a.maxStartLevelM)}`,
     '',
   );
   if (r.test) {
-    out.push('Planned test:', ...testLines(r.test, r), '', 'Level and outflow after opening:', '     time (s)   level (m)   outflow (L/s)');
+    out.push(
+      'Planned test:',
+      ...testLines(r.test, r),
+      '',
+      'Level and outflow after opening:',
+      '     time (s)   level (m)   outflow (L/s)',
+    );
     const c = r.test.curve;
     const step = Math.max(1, Math.floor((c.timeS.length - 1) / 10));
-    for (let i = 0; i < c.timeS.length; i += step) out.push(`  ${c.timeS[i].toFixed(0).padStart(11)} ${c.levelM[i].toFixed(3).padStart(11)} ${c.outflowLS[i].toFixed(2).padStart(15)}`);
+    for (let i = 0; i < c.timeS.length; i += step)
+      out.push(
+        `  ${c.timeS[i].toFixed(0).padStart(11)} ${c.levelM[i].toFixed(3).padStart(11)} ${c.outflowLS[i].toFixed(2).padStart(15)}`,
+      );
     out.push('');
   }
   if (r.target) {
     const label = r.target.quantity === 'effective-area' ? 'u_r(Cd·a)' : 'u_r(Cd)';
-    out.push(`Target ${label} ≤ ${pct(r.target.relative)}: ${r.target.possible ? (r.target.met === null ? 'possible' : r.target.met ? 'met by the planned test' : 'NOT met by the planned test') : 'CANNOT be met'}`, `  ${r.target.reason}`);
+    out.push(
+      `Target ${label} ≤ ${pct(r.target.relative)}: ${r.target.possible ? (r.target.met === null ? 'possible' : r.target.met ? 'met by the planned test' : 'NOT met by the planned test') : 'CANNOT be met'}`,
+      `  ${r.target.reason}`,
+    );
     const rec = r.recommendation;
     if (rec?.shortest) out.push('Shortest test that meets it:', ...testLines(rec.shortest, r));
-    if (rec?.lowestStart) out.push('Lowest start that meets it (logged to the window\'s end):', ...testLines(rec.lowestStart, r));
+    if (rec?.lowestStart)
+      out.push(
+        "Lowest start that meets it (logged to the window's end):",
+        ...testLines(rec.lowestStart, r),
+      );
     out.push('');
   }
   if (r.discharge.message) out.push(`Discharge: ${r.discharge.message}`, '');

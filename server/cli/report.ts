@@ -8,7 +8,13 @@ import { writeFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { InputError } from '../core/errors.js';
 import { reportJson } from '../core/report/index.js';
-import { fitReport, outletReport, renderFitReportPdf, renderOutletReportPdf, verifyReport } from '../render/report-service.js';
+import {
+  fitReport,
+  outletReport,
+  renderFitReportPdf,
+  renderOutletReportPdf,
+  verifyReport,
+} from '../render/report-service.js';
 import { currentSoftware } from '../render/software.js';
 import { openStore, type Store } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
@@ -24,7 +30,12 @@ const USAGE = `usage:
 The database is the one in EFFLUX_DATA_DIR (default ./data), as for efflux serve.
 `;
 
-const OPTIONS = { out: { type: 'string' }, json: { type: 'boolean' }, 'as-of': { type: 'string' }, help: { type: 'boolean', short: 'h' } } as const;
+const OPTIONS = {
+  out: { type: 'string' },
+  json: { type: 'boolean' },
+  'as-of': { type: 'string' },
+  help: { type: 'boolean', short: 'h' },
+} as const;
 
 function idArg(s: string | undefined, what: string): number {
   if (!s || !/^\d+$/.test(s)) throw new InputError(`give the ${what} id as a whole number`);
@@ -59,18 +70,23 @@ export async function run(argv: string[]): Promise<number> {
       return withStore((store) =>
         notFoundAsRefusal(async () => {
           const v = await verifyReport(store, Buffer.from(file.bytes), file.fileName);
-          process.stdout.write(`${v.kind} report ${v.reportId}: ${v.ok ? 'MATCHES the records' : 'DOES NOT MATCH the records'}\n`);
+          process.stdout.write(
+            `${v.kind} report ${v.reportId}: ${v.ok ? 'MATCHES the records' : 'DOES NOT MATCH the records'}\n`,
+          );
           for (const c of v.checks) {
             process.stdout.write(`  ${c.ok ? 'ok  ' : 'FAIL'} ${c.name}: ${c.detail}\n`);
-            for (const d of (c.ok ? [] : c.differences ?? []).slice(0, 10)) {
-              process.stdout.write(`         ${d.path}: file ${JSON.stringify(d.inFile)} / records ${JSON.stringify(d.inRecords)}\n`);
+            for (const d of (c.ok ? [] : (c.differences ?? [])).slice(0, 10)) {
+              process.stdout.write(
+                `         ${d.path}: file ${JSON.stringify(d.inFile)} / records ${JSON.stringify(d.inRecords)}\n`,
+              );
             }
           }
           return v.ok ? 0 : 1;
         }),
       );
     }
-    if (sub !== 'fit' && sub !== 'outlet') throw new InputError(`unknown report "${sub}" (fit, outlet or verify)`);
+    if (sub !== 'fit' && sub !== 'outlet')
+      throw new InputError(`unknown report "${sub}" (fit, outlet or verify)`);
     const id = idArg(arg, sub);
     if (!values.out) throw new InputError('say where to write the report: --out FILE');
     const out = values.out;
@@ -78,17 +94,21 @@ export async function run(argv: string[]): Promise<number> {
       notFoundAsRefusal(async () => {
         const software = currentSoftware();
         const t0 = performance.now();
-        const report = sub === 'fit' ? fitReport(store, id, software) : outletReport(store, id, software, values['as-of']);
+        const report =
+          sub === 'fit'
+            ? fitReport(store, id, software)
+            : outletReport(store, id, software, values['as-of']);
         const bytes = values.json
           ? Buffer.from(reportJson(report as unknown as Record<string, unknown>))
           : sub === 'fit'
             ? await renderFitReportPdf(report as never)
             : await renderOutletReportPdf(report as never);
         writeFileSync(out, bytes);
-        process.stdout.write(`${basename(out)}: ${sub} report ${report.reportId}, ${bytes.length} bytes, ${Math.round(performance.now() - t0)} ms\n`);
+        process.stdout.write(
+          `${basename(out)}: ${sub} report ${report.reportId}, ${bytes.length} bytes, ${Math.round(performance.now() - t0)} ms\n`,
+        );
         return 0;
       }),
     );
   });
 }
-

@@ -148,7 +148,8 @@ export const SETTINGS = {
   EFFLUX_TASK_THREADS: {
     schema: whole(1, 256),
     dflt: '',
-    meaning: 'task pool threads (reports, exports, large reads); default: half the cores, at least 1',
+    meaning:
+      'task pool threads (reports, exports, large reads); default: half the cores, at least 1',
   },
   EFFLUX_WEB_ROOT: {
     schema: z.string().min(1),

@@ -131,7 +131,9 @@ export async function run(argv: string[]): Promise<number> {
     `efflux listening on ${address} (data in ${cfg.dataDir}${store.meta.isDemo() ? '; DEMO data, invented' : ''})`,
   );
   if (firstTokenFile) {
-    say(`first start: an admin token was written to ${firstTokenFile} (readable by this user only);`);
+    say(
+      `first start: an admin token was written to ${firstTokenFile} (readable by this user only);`,
+    );
     say('  sign in with it, keep it safe, delete the file; make people with efflux people add');
   }
   say(`API docs: ${address}/api/docs`); // last line of the start-up banner (tests wait for it)

@@ -9,14 +9,24 @@ import { levelsAfter, timeToLevel } from '../core/system/predict.js';
 import { readVesselLog } from '../core/system/read-vessel-log.js';
 import { alignLogs, type LogForSystem } from '../core/system/align.js';
 import { fitSystem } from '../core/system/fit.js';
-import { correlationLines, parameterLines, SAFETY_LINES, solverLine, warningLines } from '../core/fit-result/text.js';
+import {
+  correlationLines,
+  parameterLines,
+  SAFETY_LINES,
+  solverLine,
+  warningLines,
+} from '../core/fit-result/text.js';
 import { loadSystemModel, systemFitJson } from '../core/system/fit-json.js';
 import { linearize } from '../core/system/linear.js';
 import { linearModelCsv, linearModelText } from '../core/system/linear-export.js';
 import { buildNetwork } from '../core/system/network.js';
 import { parseJsonText, parseSystemFile, type SystemSpec } from '../core/system/schema.js';
 import { steadyState } from '../core/system/steady.js';
-import { drainTimeWithBudget, drainVesselFromFit, levelAfterWithBudget } from '../core/budget/drain-time.js';
+import {
+  drainTimeWithBudget,
+  drainVesselFromFit,
+  levelAfterWithBudget,
+} from '../core/budget/drain-time.js';
 import { requireOrificeLaw, singleVesselModel } from '../core/budget/single-vessel.js';
 import { openStore } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
@@ -45,14 +55,16 @@ const MODEL_SOURCES = `The model: a system file, the output of fit-system --json
 (one vessel), or the id of a fit stored in the data folder (EFFLUX_DATA_DIR, as for efflux serve).
 `;
 
-const STEADY_USAGE = `usage: efflux steady <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--inflow …] [--json]
+const STEADY_USAGE =
+  `usage: efflux steady <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--inflow …] [--json]
 
 Equilibrium levels at constant inflows (e.g. --inflow 2.5L/s into the top vessel, or
 --inflow T2=1L/s), with intervals when given a fit. A system file
 alone needs each vessel's "effectiveAreaM2" (or "dischargeCoefficient").
 ` + MODEL_SOURCES;
 
-const LINEAR_USAGE = `usage: efflux linearize <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--format json|csv|text]
+const LINEAR_USAGE =
+  `usage: efflux linearize <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--format json|csv|text]
 
 State-space model dx/dt = A x + B u (C = I) about the equilibrium at the given inflows, with
 each vessel's time constant and, from a fit, standard uncertainties.
@@ -103,13 +115,19 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       if (eq <= 0) throw new InputError(`--log takes ID=FILE (got "${item}")`);
       const id = item.slice(0, eq);
       const vessel = ids.get(id);
-      if (vessel === undefined) throw new InputError(`--log ${item}: no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`);
-      if (logs.some((l) => l.vessel === vessel)) throw new InputError(`--log: vessel "${id}" is given twice`);
+      if (vessel === undefined)
+        throw new InputError(
+          `--log ${item}: no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`,
+        );
+      if (logs.some((l) => l.vessel === vessel))
+        throw new InputError(`--log: vessel "${id}" is given twice`);
       const file = readInputFile(item.slice(eq + 1));
       const decimal = values.decimal;
-      if (decimal !== undefined && decimal !== '.' && decimal !== ',') throw new InputError(`--decimal must be "." or "," (got "${decimal}")`);
+      if (decimal !== undefined && decimal !== '.' && decimal !== ',')
+        throw new InputError(`--decimal must be "." or "," (got "${decimal}")`);
       const dateOrder = values['date-order'];
-      if (dateOrder !== undefined && !['dmy', 'mdy', 'ymd'].includes(dateOrder)) throw new InputError(`--date-order must be dmy, mdy or ymd (got "${dateOrder}")`);
+      if (dateOrder !== undefined && !['dmy', 'mdy', 'ymd'].includes(dateOrder))
+        throw new InputError(`--date-order must be dmy, mdy or ymd (got "${dateOrder}")`);
       logs.push(
         readVesselLog(spec, vessel, network.gravity, file, {
           unit: values.unit,
@@ -120,10 +138,21 @@ export async function runFitSystem(argv: string[]): Promise<number> {
         }),
       );
     }
-    const missing = spec.vessels.filter((_, i) => !logs.some((l) => l.vessel === i)).map((v) => v.id);
-    if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: add --log ID=FILE for every vessel`);
+    const missing = spec.vessels
+      .filter((_, i) => !logs.some((l) => l.vessel === i))
+      .map((v) => v.id);
+    if (missing.length)
+      throw new InputError(
+        `no log given for ${missing.join(', ')}: add --log ID=FILE for every vessel`,
+      );
     const alignment = alignLogs(logs, values.window ? parseWindow(values.window) : undefined);
-    const inflowLogs: { to: string; file: string; unit: string; samples: number; warnings: string[] }[] = [];
+    const inflowLogs: {
+      to: string;
+      file: string;
+      unit: string;
+      samples: number;
+      warnings: string[];
+    }[] = [];
     const inflows: InflowInput[] = spec.inflows.map((f) => {
       const vessel = ids.get(f.to)!;
       if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
@@ -138,25 +167,58 @@ export async function runFitSystem(argv: string[]): Promise<number> {
         decimal: values.decimal as '.' | ',' | undefined,
       });
       const placed = inflowOnFitClock(series, vessel, alignment);
-      inflowLogs.push({ to: f.to, file: file.fileName, unit: series.unit, samples: placed.timeS!.length, warnings: series.warnings });
+      inflowLogs.push({
+        to: f.to,
+        file: file.fileName,
+        unit: series.unit,
+        samples: placed.timeS!.length,
+        warnings: series.warnings,
+      });
       return placed;
     });
-    const fit = fitSystem({ network, logs: alignment.logs, inflows, terms: { datum: !!values['fit-datum'], leak: !!values['fit-inflow'] } });
+    const fit = fitSystem({
+      network,
+      logs: alignment.logs,
+      inflows,
+      terms: { datum: !!values['fit-datum'], leak: !!values['fit-inflow'] },
+    });
     const json = systemFitJson(spec, fit, alignment, inflowLogs);
     if (values.json) {
       process.stdout.write(JSON.stringify(json, null, 2) + '\n');
       return EXIT_OK;
     }
-    const lines = [`efflux fit-system: ${spec.name}`, fit.converged ? `converged (${fit.stopReason}, ${fit.iterations} iterations)` : `NOT converged (${fit.stopReason})`, '─'.repeat(72)];
+    const lines = [
+      `efflux fit-system: ${spec.name}`,
+      fit.converged
+        ? `converged (${fit.stopReason}, ${fit.iterations} iterations)`
+        : `NOT converged (${fit.stopReason})`,
+      '─'.repeat(72),
+    ];
     for (const [id, o] of Object.entries(fit.outlets)) {
       const a = o.effectiveAreaM2;
       const cd = o.dischargeCoefficient;
-      lines.push(`  ${id}: Cd·a = ${(a.value * 1e4).toFixed(4)} cm² ± ${(a.standardUncertainty * 1e4).toFixed(4)}  Cd = ${cd.value.toFixed(4)} (95 % ${cd.ci95[0].toFixed(4)} .. ${cd.ci95[1].toFixed(4)})`);
+      lines.push(
+        `  ${id}: Cd·a = ${(a.value * 1e4).toFixed(4)} cm² ± ${(a.standardUncertainty * 1e4).toFixed(4)}  Cd = ${cd.value.toFixed(4)} (95 % ${cd.ci95[0].toFixed(4)} .. ${cd.ci95[1].toFixed(4)})`,
+      );
     }
-    for (const v of fit.vessels) lines.push(`  log ${v.fileName} (${v.id}): ${v.samples} samples, noise ${(v.noiseM * 1000).toFixed(2)} mm, lag-1 ρ ${v.lag1Autocorrelation.toFixed(2)}`);
-    for (const f of inflowLogs) lines.push(`  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`);
+    for (const v of fit.vessels)
+      lines.push(
+        `  log ${v.fileName} (${v.id}): ${v.samples} samples, noise ${(v.noiseM * 1000).toFixed(2)} mm, lag-1 ρ ${v.lag1Autocorrelation.toFixed(2)}`,
+      );
+    for (const f of inflowLogs)
+      lines.push(
+        `  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`,
+      );
     // the sections every fit's report shares (core/fit-result/text.ts)
-    lines.push('', ...parameterLines(json.parameters, 30), ...correlationLines(json.correlations), '', solverLine(json.solver, json.converged), '', ...warningLines(json.warnings));
+    lines.push(
+      '',
+      ...parameterLines(json.parameters, 30),
+      ...correlationLines(json.correlations),
+      '',
+      solverLine(json.solver, json.converged),
+      '',
+      ...warningLines(json.warnings),
+    );
     lines.push('─'.repeat(72), ...SAFETY_LINES);
     process.stdout.write(lines.join('\n') + '\n');
     return EXIT_OK;
@@ -165,7 +227,11 @@ export async function runFitSystem(argv: string[]): Promise<number> {
 
 export async function runSteady(argv: string[]): Promise<number> {
   return guarded(() => {
-    const { values, positionals } = parseCommandLine(argv, { inflow: { type: 'string', multiple: true }, json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' } });
+    const { values, positionals } = parseCommandLine(argv, {
+      inflow: { type: 'string', multiple: true },
+      json: { type: 'boolean' },
+      help: { type: 'boolean', short: 'h' },
+    });
     if (values.help) {
       process.stdout.write(STEADY_USAGE);
       return EXIT_OK;
@@ -178,9 +244,20 @@ export async function runSteady(argv: string[]): Promise<number> {
       const ids = spec.vessels.map((v) => v.id);
       const body = {
         inflowM3S: Object.fromEntries(ids.map((id, i) => [id, q[i]])),
-        vessels: Object.fromEntries(ids.map((id, i) => [id, { levelM: s.levelsM[i], headM: s.headsM[i], outflowM3S: s.flowsM3S[i] }])),
-        covariance: s.covariance ? Array.from({ length: ids.length }, (_, i) => Array.from(s.covariance!.subarray(i * ids.length, (i + 1) * ids.length))) : null,
-        uncertainty: s.covariance ? 'delta method with the exact sensitivities of the equilibrium' : 'none: Cd·a taken from the system file as exact',
+        vessels: Object.fromEntries(
+          ids.map((id, i) => [
+            id,
+            { levelM: s.levelsM[i], headM: s.headsM[i], outflowM3S: s.flowsM3S[i] },
+          ]),
+        ),
+        covariance: s.covariance
+          ? Array.from({ length: ids.length }, (_, i) =>
+              Array.from(s.covariance!.subarray(i * ids.length, (i + 1) * ids.length)),
+            )
+          : null,
+        uncertainty: s.covariance
+          ? 'delta method with the exact sensitivities of the equilibrium'
+          : 'none: Cd·a taken from the system file as exact',
         warnings: s.warnings,
       };
       process.stdout.write(JSON.stringify(body, null, 2) + '\n');
@@ -189,8 +266,13 @@ export async function runSteady(argv: string[]): Promise<number> {
     const lines = [`efflux steady: ${spec.name}`];
     spec.vessels.forEach((v, i) => {
       const e = s.levelsM[i];
-      const u = e.standardUncertainty !== null ? ` ± ${(e.standardUncertainty * 1000).toFixed(1)} mm (95 % ${e.ci95![0].toFixed(4)} .. ${e.ci95![1].toFixed(4)} m)` : '';
-      lines.push(`  ${v.id}: level ${e.value.toFixed(4)} m above its bottom${u}; outflow ${(s.flowsM3S[i] * 1000).toFixed(3)} L/s`);
+      const u =
+        e.standardUncertainty !== null
+          ? ` ± ${(e.standardUncertainty * 1000).toFixed(1)} mm (95 % ${e.ci95![0].toFixed(4)} .. ${e.ci95![1].toFixed(4)} m)`
+          : '';
+      lines.push(
+        `  ${v.id}: level ${e.value.toFixed(4)} m above its bottom${u}; outflow ${(s.flowsM3S[i] * 1000).toFixed(3)} L/s`,
+      );
     });
     for (const w of s.warnings) lines.push(`  warning: ${w}`);
     process.stdout.write(lines.join('\n') + '\n');
@@ -200,18 +282,28 @@ export async function runSteady(argv: string[]): Promise<number> {
 
 export async function runLinearize(argv: string[]): Promise<number> {
   return guarded(() => {
-    const { values, positionals } = parseCommandLine(argv, { inflow: { type: 'string', multiple: true }, format: { type: 'string' }, help: { type: 'boolean', short: 'h' } });
+    const { values, positionals } = parseCommandLine(argv, {
+      inflow: { type: 'string', multiple: true },
+      format: { type: 'string' },
+      help: { type: 'boolean', short: 'h' },
+    });
     if (values.help) {
       process.stdout.write(LINEAR_USAGE);
       return EXIT_OK;
     }
     const format = values.format ?? 'text';
-    if (!['json', 'csv', 'text'].includes(format)) throw new InputError(`--format must be json, csv or text (got "${format}")`);
+    if (!['json', 'csv', 'text'].includes(format))
+      throw new InputError(`--format must be json, csv or text (got "${format}")`);
     const { spec, model, name, single } = readModel(positionals);
     if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const lm = linearize(model, q);
-    const out = format === 'json' ? JSON.stringify(lm, null, 2) + '\n' : format === 'csv' ? linearModelCsv(lm) : linearModelText(lm);
+    const out =
+      format === 'json'
+        ? JSON.stringify(lm, null, 2) + '\n'
+        : format === 'csv'
+          ? linearModelCsv(lm)
+          : linearModelText(lm);
     process.stdout.write(out);
     return EXIT_OK;
   });
@@ -231,33 +323,64 @@ export async function runPredict(argv: string[]): Promise<number> {
       process.stdout.write(PREDICT_USAGE);
       return EXIT_OK;
     }
-    if ((values.after === undefined) === (values.until === undefined)) throw new InputError('give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)');
+    if ((values.after === undefined) === (values.until === undefined))
+      throw new InputError(
+        'give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)',
+      );
     const { spec, model, name, fromFit, single } = readModel(positionals);
     const ids = spec.vessels.map((v) => v.id);
     if (ids.length === 1) {
       // one vessel: ID= may be left out
       values.from = (values.from ?? []).map((x) => (x.includes('=') ? x : `${ids[0]}=${x}`));
-      if (values.until !== undefined && !values.until.includes('=')) values.until = `${ids[0]}=${values.until}`;
+      if (values.until !== undefined && !values.until.includes('='))
+        values.until = `${ids[0]}=${values.until}`;
     }
-    if (single && !(values.inflow ?? []).length) return predictSingle(single, spec.name, ids[0], values.from ?? [], values.after, values.until, !!values.json);
+    if (single && !(values.inflow ?? []).length)
+      return predictSingle(
+        single,
+        spec.name,
+        ids[0],
+        values.from ?? [],
+        values.after,
+        values.until,
+        !!values.json,
+      );
     if (single) requireOrificeLaw(single.vessel, name);
     const start = new Float64Array(ids.length);
     const given = new Set<string>();
     for (const item of values.from ?? []) {
       const { vessel, value } = idValue(item, '--from', ids, parseLength);
-      if (given.has(ids[vessel])) throw new InputError(`--from: vessel "${ids[vessel]}" is given twice`);
+      if (given.has(ids[vessel]))
+        throw new InputError(`--from: vessel "${ids[vessel]}" is given twice`);
       given.add(ids[vessel]);
       start[vessel] = value;
     }
-    if (given.size === 0) throw new InputError('give each vessel\'s start level with --from ID=LEVEL (e.g. --from ' + ids[0] + '=2.1m)');
+    if (given.size === 0)
+      throw new InputError(
+        "give each vessel's start level with --from ID=LEVEL (e.g. --from " + ids[0] + '=2.1m)',
+      );
     const empty = ids.filter((id) => !given.has(id));
     const hasConstant = spec.inflows.some((f) => 'constantM3S' in f);
-    const q = (values.inflow ?? []).length || hasConstant ? inflowsFrom(spec, values.inflow ?? [], name) : new Float64Array(ids.length);
-    const inflows: InflowInput[] = Array.from(q, (x, i) => ({ vessel: i, constantM3S: x })).filter((f) => f.constantM3S > 0);
+    const q =
+      (values.inflow ?? []).length || hasConstant
+        ? inflowsFrom(spec, values.inflow ?? [], name)
+        : new Float64Array(ids.length);
+    const inflows: InflowInput[] = Array.from(q, (x, i) => ({ vessel: i, constantM3S: x })).filter(
+      (f) => f.constantM3S > 0,
+    );
     const notes: string[] = [];
-    if (empty.length) notes.push(`${empty.join(', ')} start${empty.length === 1 ? 's' : ''} empty (no --from given)`);
-    if (spec.inflows.some((f) => 'log' in f)) notes.push('the inflow log in the system file belongs to the test and is not used: give --inflow for a constant inflow');
-    if (!fromFit) notes.push('no intervals: Cd·a taken from the system file as exact (give the output of fit-system --json for intervals)');
+    if (empty.length)
+      notes.push(
+        `${empty.join(', ')} start${empty.length === 1 ? 's' : ''} empty (no --from given)`,
+      );
+    if (spec.inflows.some((f) => 'log' in f))
+      notes.push(
+        'the inflow log in the system file belongs to the test and is not used: give --inflow for a constant inflow',
+      );
+    if (!fromFit)
+      notes.push(
+        'no intervals: Cd·a taken from the system file as exact (give the output of fit-system --json for intervals)',
+      );
     const inflowM3S = Object.fromEntries(ids.map((id, i) => [id, q[i]]));
     const startM = Object.fromEntries(ids.map((id, i) => [id, start[i]]));
     const mm = (x: number | null) => (x === null ? '' : ` ± ${(x * 1000).toPrecision(2)} mm`);
@@ -265,29 +388,63 @@ export async function runPredict(argv: string[]): Promise<number> {
       const tS = parseDuration(values.after);
       const levels = levelsAfter(model, start, inflows, tS);
       if (values.json) {
-        process.stdout.write(JSON.stringify({ startM, inflowM3S, afterS: tS, levelsM: Object.fromEntries(ids.map((id, i) => [id, levels[i]])), coverage: '95 %, delta method from the ODE sensitivities', notes }, null, 2) + '\n');
+        process.stdout.write(
+          JSON.stringify(
+            {
+              startM,
+              inflowM3S,
+              afterS: tS,
+              levelsM: Object.fromEntries(ids.map((id, i) => [id, levels[i]])),
+              coverage: '95 %, delta method from the ODE sensitivities',
+              notes,
+            },
+            null,
+            2,
+          ) + '\n',
+        );
         return EXIT_OK;
       }
       const lines = [`efflux predict: ${spec.name}, levels after ${tS} s`];
       ids.forEach((id, i) => {
         const e = levels[i];
         const ci = e.ci95 ? ` (95 % ${e.ci95[0].toFixed(4)} .. ${e.ci95[1].toFixed(4)} m)` : '';
-        lines.push(`  ${id}: ${start[i].toFixed(4)} m → ${e.value.toFixed(4)} m${mm(e.standardUncertainty)}${ci}`);
+        lines.push(
+          `  ${id}: ${start[i].toFixed(4)} m → ${e.value.toFixed(4)} m${mm(e.standardUncertainty)}${ci}`,
+        );
       });
       for (const n of notes) lines.push(`  note: ${n}`);
       process.stdout.write(lines.join('\n') + '\n');
       return EXIT_OK;
     }
     const { vessel, value: toM } = idValue(values.until!, '--until', ids, parseLength);
-    if (!given.has(ids[vessel])) throw new InputError(`--until ${values.until}: give the start level of ${ids[vessel]} with --from ${ids[vessel]}=LEVEL`);
+    if (!given.has(ids[vessel]))
+      throw new InputError(
+        `--until ${values.until}: give the start level of ${ids[vessel]} with --from ${ids[vessel]}=LEVEL`,
+      );
     const t = timeToLevel(model, start, inflows, vessel, toM);
     if (values.json) {
-      process.stdout.write(JSON.stringify({ startM, inflowM3S, until: { vessel: ids[vessel], levelM: toM }, timeS: t, coverage: '95 %, delta method from the ODE sensitivities', notes }, null, 2) + '\n');
+      process.stdout.write(
+        JSON.stringify(
+          {
+            startM,
+            inflowM3S,
+            until: { vessel: ids[vessel], levelM: toM },
+            timeS: t,
+            coverage: '95 %, delta method from the ODE sensitivities',
+            notes,
+          },
+          null,
+          2,
+        ) + '\n',
+      );
       return EXIT_OK;
     }
     const s = (x: number) => x.toFixed(2);
     const ci = t.ci95 ? ` (95 % ${s(t.ci95[0])} .. ${s(t.ci95[1])} s)` : '';
-    const lines = [`efflux predict: ${spec.name}`, `  ${ids[vessel]} falls from ${start[vessel].toFixed(4)} m to ${toM.toFixed(4)} m in ${s(t.value)} s${t.standardUncertainty === null ? '' : ` ± ${t.standardUncertainty.toPrecision(2)} s`}${ci} = ${(t.value / 60).toFixed(2)} min`];
+    const lines = [
+      `efflux predict: ${spec.name}`,
+      `  ${ids[vessel]} falls from ${start[vessel].toFixed(4)} m to ${toM.toFixed(4)} m in ${s(t.value)} s${t.standardUncertainty === null ? '' : ` ± ${t.standardUncertainty.toPrecision(2)} s`}${ci} = ${(t.value / 60).toFixed(2)} min`,
+    ];
     for (const n of notes) lines.push(`  note: ${n}`);
     process.stdout.write(lines.join('\n') + '\n');
     return EXIT_OK;
@@ -295,11 +452,19 @@ export async function runPredict(argv: string[]): Promise<number> {
 }
 
 /** ID=VALUE with a vessel id from the system, the value read by `parse` (its errors prefixed by the option). */
-function idValue(item: string, option: string, ids: string[], parse: (text: string) => number): { vessel: number; value: number } {
+function idValue(
+  item: string,
+  option: string,
+  ids: string[],
+  parse: (text: string) => number,
+): { vessel: number; value: number } {
   const eq = item.indexOf('=');
   if (eq <= 0) throw new InputError(`${option} takes ID=LEVEL (got "${item}")`);
   const vessel = ids.indexOf(item.slice(0, eq));
-  if (vessel < 0) throw new InputError(`${option} ${item}: no vessel has id "${item.slice(0, eq)}" (the system has ${ids.join(', ')})`);
+  if (vessel < 0)
+    throw new InputError(
+      `${option} ${item}: no vessel has id "${item.slice(0, eq)}" (the system has ${ids.join(', ')})`,
+    );
   try {
     return { vessel, value: parse(item.slice(eq + 1)) };
   } catch (e) {
@@ -312,20 +477,25 @@ function idValue(item: string, option: string, ids: string[], parse: (text: stri
 function parseDuration(text: string): number {
   const m = /^\s*(\d+(?:\.\d*)?|\.\d+)\s*([a-z]*)\s*$/i.exec(text);
   const per = m ? (m[2] === '' ? 1000 : timeUnitMs(m[2])) : null;
-  if (!m || per === null) throw new InputError(`--after takes a duration such as 600s, 10min or 1.5h (got "${text}")`);
+  if (!m || per === null)
+    throw new InputError(`--after takes a duration such as 600s, 10min or 1.5h (got "${text}")`);
   const s = (Number(m[1]) * per) / 1000;
   if (!(s > 0)) throw new InputError(`--after must be a positive duration (got "${text}")`);
   return s;
 }
 
 function readSystem(positionals: string[]): SystemSpec {
-  if (positionals.length !== 1) throw new InputError('give exactly one system file (usage: efflux fit-system <system.json> --log ID=FILE …)');
+  if (positionals.length !== 1)
+    throw new InputError(
+      'give exactly one system file (usage: efflux fit-system <system.json> --log ID=FILE …)',
+    );
   const f = readInputFile(positionals[0], 4 * 1024 * 1024);
   return parseSystemFile(new TextDecoder().decode(f.bytes), positionals[0]);
 }
 
 function readModel(positionals: string[]) {
-  if (positionals.length !== 1) throw new InputError('give exactly one system file, fit JSON or stored fit id');
+  if (positionals.length !== 1)
+    throw new InputError('give exactly one system file, fit JSON or stored fit id');
   const name = positionals[0];
   let value: unknown;
   if (/^\d+$/.test(name) && !existsSync(name)) value = storedFitResult(Number(name));
@@ -344,7 +514,10 @@ function storedFitResult(id: number): unknown {
   try {
     return store.fits.get(id).result;
   } catch (e) {
-    if (e instanceof NotFoundError) throw new InputError(`no fit ${id} in the data folder ${dataDir()} (and no file of that name)`);
+    if (e instanceof NotFoundError)
+      throw new InputError(
+        `no fit ${id} in the data folder ${dataDir()} (and no file of that name)`,
+      );
     throw e;
   } finally {
     store.close();
@@ -352,22 +525,52 @@ function storedFitResult(id: number): unknown {
 }
 
 /** predict from a single-vessel fit with no inflow: exact drain integral, intervals from the full budget. */
-function predictSingle(single: NonNullable<ReturnType<typeof drainVesselFromFit>>, name: string, id: string, from: string[], after: string | undefined, until: string | undefined, json: boolean): number {
-  if (from.length !== 1) throw new InputError(`give the start level with --from LEVEL (e.g. --from 3m)`);
+function predictSingle(
+  single: NonNullable<ReturnType<typeof drainVesselFromFit>>,
+  name: string,
+  id: string,
+  from: string[],
+  after: string | undefined,
+  until: string | undefined,
+  json: boolean,
+): number {
+  if (from.length !== 1)
+    throw new InputError(`give the start level with --from LEVEL (e.g. --from 3m)`);
   const level = (item: string, option: string) => idValue(item, option, [id], parseLength).value;
   const start = level(from[0], '--from');
-  const basis = '95 %, from the fit\'s full uncertainty budget (each input through Cd·a and, for the vessel\'s own dimensions, directly; JCGM 100:2008)';
+  const basis =
+    "95 %, from the fit's full uncertainty budget (each input through Cd·a and, for the vessel's own dimensions, directly; JCGM 100:2008)";
   const s2 = (x: number) => x.toFixed(2);
   if (after !== undefined) {
     const tS = parseDuration(after);
     const r = levelAfterWithBudget(single.vessel, single.lines, start, tS);
     const drained = r.value <= single.vessel.outletElevationM + 1e-9;
     if (json) {
-      process.stdout.write(JSON.stringify({ vessel: name, id, startM: start, afterS: tS, levelM: r, drainedToOutlet: drained, coverage: basis }, null, 2) + '\n');
+      process.stdout.write(
+        JSON.stringify(
+          {
+            vessel: name,
+            id,
+            startM: start,
+            afterS: tS,
+            levelM: r,
+            drainedToOutlet: drained,
+            coverage: basis,
+          },
+          null,
+          2,
+        ) + '\n',
+      );
       return EXIT_OK;
     }
-    const lines = [`efflux predict: ${name}, level after ${tS} s`, `  ${start.toFixed(4)} m → ${r.value.toFixed(4)} m ± ${(r.standardUncertainty * 1000).toPrecision(2)} mm (95 % ${r.ci95[0].toFixed(4)} .. ${r.ci95[1].toFixed(4)} m, k = ${r.coverageFactor.toFixed(2)})`];
-    if (drained) lines.push(`  note: drained to the outlet's level (${single.vessel.outletElevationM} m) within that time`);
+    const lines = [
+      `efflux predict: ${name}, level after ${tS} s`,
+      `  ${start.toFixed(4)} m → ${r.value.toFixed(4)} m ± ${(r.standardUncertainty * 1000).toPrecision(2)} mm (95 % ${r.ci95[0].toFixed(4)} .. ${r.ci95[1].toFixed(4)} m, k = ${r.coverageFactor.toFixed(2)})`,
+    ];
+    if (drained)
+      lines.push(
+        `  note: drained to the outlet's level (${single.vessel.outletElevationM} m) within that time`,
+      );
     lines.push(`  interval: ${basis}`);
     process.stdout.write(lines.join('\n') + '\n');
     return EXIT_OK;
@@ -375,7 +578,13 @@ function predictSingle(single: NonNullable<ReturnType<typeof drainVesselFromFit>
   const toM = level(until!, '--until');
   const r = drainTimeWithBudget(single.vessel, single.lines, start, toM);
   if (json) {
-    process.stdout.write(JSON.stringify({ vessel: name, id, startM: start, until: { levelM: toM }, timeS: r, coverage: basis }, null, 2) + '\n');
+    process.stdout.write(
+      JSON.stringify(
+        { vessel: name, id, startM: start, until: { levelM: toM }, timeS: r, coverage: basis },
+        null,
+        2,
+      ) + '\n',
+    );
     return EXIT_OK;
   }
   const lines = [
@@ -393,7 +602,11 @@ function inflowsFrom(spec: SystemSpec, items: string[], fileName: string): Float
   const ids = new Map(spec.vessels.map((v, i) => [v.id, i]));
   if (items.length === 0) {
     const constant = spec.inflows.filter((f) => 'constantM3S' in f);
-    if (!constant.length) throw new InputError('no inflow given: add --inflow FLOW (e.g. --inflow 2.5L/s) or --inflow ID=FLOW', { file: fileName });
+    if (!constant.length)
+      throw new InputError(
+        'no inflow given: add --inflow FLOW (e.g. --inflow 2.5L/s) or --inflow ID=FLOW',
+        { file: fileName },
+      );
     for (const f of constant) q[ids.get(f.to)!] += (f as { constantM3S: number }).constantM3S;
     return q;
   }
@@ -401,10 +614,16 @@ function inflowsFrom(spec: SystemSpec, items: string[], fileName: string): Float
     const m = /^([^=]+)=(.*)$/.exec(item);
     let vessel: number;
     if (m && ids.has(m[1])) vessel = ids.get(m[1])!;
-    else if (m && !/^\s*[\d.,+-]/.test(m[1])) throw new InputError(`--inflow ${item}: no vessel has id "${m[1]}"`);
+    else if (m && !/^\s*[\d.,+-]/.test(m[1]))
+      throw new InputError(`--inflow ${item}: no vessel has id "${m[1]}"`);
     else {
-      const tops = spec.vessels.map((_, i) => i).filter((i) => !spec.vessels.some((v) => v.dischargesTo === spec.vessels[i].id));
-      if (tops.length !== 1) throw new InputError(`--inflow ${item}: the system has several top vessels (${tops.map((i) => spec.vessels[i].id).join(', ')}); say which, e.g. --inflow ${spec.vessels[tops[0]].id}=${item}`);
+      const tops = spec.vessels
+        .map((_, i) => i)
+        .filter((i) => !spec.vessels.some((v) => v.dischargesTo === spec.vessels[i].id));
+      if (tops.length !== 1)
+        throw new InputError(
+          `--inflow ${item}: the system has several top vessels (${tops.map((i) => spec.vessels[i].id).join(', ')}); say which, e.g. --inflow ${spec.vessels[tops[0]].id}=${item}`,
+        );
       vessel = tops[0];
     }
     const text = m && ids.has(m[1]) ? m[2] : item;
@@ -423,6 +642,9 @@ function inflowsFrom(spec: SystemSpec, items: string[], fileName: string): Float
 
 function parseWindow(text: string): { startS: number; endS?: number } {
   const m = /^\s*([\d.]+)\s*\.\.\s*([\d.]*)\s*$/.exec(text);
-  if (!m) throw new InputError(`--window takes START..END in seconds from the logs' common start (got "${text}")`);
+  if (!m)
+    throw new InputError(
+      `--window takes START..END in seconds from the logs' common start (got "${text}")`,
+    );
   return { startS: Number(m[1]), endS: m[2] === '' ? undefined : Number(m[2]) };
 }

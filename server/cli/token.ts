@@ -3,7 +3,14 @@
  * (creating the person when new); `token list [--name NAME]`; `token revoke ID` (sessions opened
  * with it end at once).
  */
-import { ConflictError, NotFoundError, openStore, ROLES, SYSTEM_ACTOR, type Role } from '../store/index.js';
+import {
+  ConflictError,
+  NotFoundError,
+  openStore,
+  ROLES,
+  SYSTEM_ACTOR,
+  type Role,
+} from '../store/index.js';
 import { dataDir } from './serve-config.js';
 
 function option(argv: string[], name: string): string | undefined {
@@ -32,7 +39,12 @@ export async function run(argv: string[]): Promise<number> {
   }
   const store = openStore({ dataDir: dataDir() });
   try {
-    const { token, user } = store.users.createToken(SYSTEM_ACTOR, name, role as Role, option(rest, 'label') ?? 'cli');
+    const { token, user } = store.users.createToken(
+      SYSTEM_ACTOR,
+      name,
+      role as Role,
+      option(rest, 'label') ?? 'cli',
+    );
     process.stdout.write(`${token}\n`);
     process.stderr.write(`token for ${user.name} (${user.role}); it is shown only now\n`);
     return 0;
@@ -51,7 +63,9 @@ async function manage(sub: 'list' | 'revoke', rest: string[]): Promise<number> {
       const name = option(rest, 'name');
       const userId = name === undefined ? null : store.users.personByName(name).id;
       for (const t of store.users.tokens(userId)) {
-        process.stdout.write(`${String(t.id).padStart(4)}  ${t.userName.padEnd(24)} ${t.name.padEnd(16)} created ${t.createdAt}  ${t.revokedAt ? `revoked ${t.revokedAt}` : 'active'}\n`);
+        process.stdout.write(
+          `${String(t.id).padStart(4)}  ${t.userName.padEnd(24)} ${t.name.padEnd(16)} created ${t.createdAt}  ${t.revokedAt ? `revoked ${t.revokedAt}` : 'active'}\n`,
+        );
       }
       return 0;
     }
@@ -61,7 +75,9 @@ async function manage(sub: 'list' | 'revoke', rest: string[]): Promise<number> {
       return 2;
     }
     const t = store.users.revokeToken(SYSTEM_ACTOR, id);
-    process.stdout.write(`token ${t.id} of ${t.userName} revoked at ${t.revokedAt}; its sessions ended\n`);
+    process.stdout.write(
+      `token ${t.id} of ${t.userName} revoked at ${t.revokedAt}; its sessions ended\n`,
+    );
     return 0;
   } catch (e) {
     if (e instanceof ConflictError || e instanceof NotFoundError) {

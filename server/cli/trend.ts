@@ -4,7 +4,14 @@
  * read from the same data folder (EFFLUX_DATA_DIR).
  */
 import { InputError } from '../core/errors.js';
-import { fleetStatus, historyCsv, outletTrendView, STATUS_WORDS, type FleetView, type TrendView } from '../jobs/trend.js';
+import {
+  fleetStatus,
+  historyCsv,
+  outletTrendView,
+  STATUS_WORDS,
+  type FleetView,
+  type TrendView,
+} from '../jobs/trend.js';
 import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
 import { dataDir } from './serve-config.js';
@@ -18,7 +25,8 @@ function option(argv: string[], name: string): string | undefined {
   const i = argv.indexOf(`--${name}`);
   if (i >= 0) {
     const v = argv[i + 1];
-    if (v === undefined || v.startsWith('--')) throw new InputError(`--${name} needs a value`, { field: name });
+    if (v === undefined || v.startsWith('--'))
+      throw new InputError(`--${name} needs a value`, { field: name });
     return v;
   }
   return argv.find((a) => a.startsWith(`--${name}=`))?.slice(name.length + 3);
@@ -29,17 +37,31 @@ const days = (d: number | null) => (d === null ? '—' : `${Math.round(d)}`);
 
 /** A small picture of the Cd·a change against time: one column per test, threshold as '-'. */
 export function asciiChart(view: TrendView, width = 60, height = 10): string[] {
-  const pts = view.epochs.flatMap((e) => e.series.map((p) => ({ x: p.testedAtMs, y: p.changePct, epoch: e.index })));
+  const pts = view.epochs.flatMap((e) =>
+    e.series.map((p) => ({ x: p.testedAtMs, y: p.changePct, epoch: e.index })),
+  );
   if (pts.length < 2) return [];
   const pct = view.threshold.pct;
   const ys = [...pts.map((p) => p.y), pct, 0];
-  const lo = Math.min(...ys), hi = Math.max(...ys);
-  const x0 = pts[0].x, x1 = pts[pts.length - 1].x;
+  const lo = Math.min(...ys),
+    hi = Math.max(...ys);
+  const x0 = pts[0].x,
+    x1 = pts[pts.length - 1].x;
   const grid = Array.from({ length: height }, () => Array<string>(width).fill(' '));
   const row = (y: number) => Math.round(((hi - y) / (hi - lo || 1)) * (height - 1));
   for (let c = 0; c < width; c++) grid[row(pct)][c] = '-';
-  for (const p of pts) grid[row(p.y)][Math.round(((p.x - x0) / (x1 - x0 || 1)) * (width - 1))] = p.epoch % 2 ? 'o' : '*';
-  const label = (r: number) => (r === row(pct) ? `${pct} %` : r === 0 ? `${hi.toFixed(1)} %` : r === height - 1 ? `${lo.toFixed(1)} %` : '').padStart(9);
+  for (const p of pts)
+    grid[row(p.y)][Math.round(((p.x - x0) / (x1 - x0 || 1)) * (width - 1))] =
+      p.epoch % 2 ? 'o' : '*';
+  const label = (r: number) =>
+    (r === row(pct)
+      ? `${pct} %`
+      : r === 0
+        ? `${hi.toFixed(1)} %`
+        : r === height - 1
+          ? `${lo.toFixed(1)} %`
+          : ''
+    ).padStart(9);
   return [
     ...grid.map((g, r) => `${label(r)} |${g.join('')}`),
     `${' '.repeat(10)}${day(x0)}${' '.repeat(Math.max(1, width - 20))}${day(x1)}`,
@@ -55,28 +77,47 @@ function trendText(v: TrendView): string {
     `threshold: ${v.threshold.pct} % (${v.threshold.source}); days to threshold: ${days(s.daysToThreshold)}`,
   ];
   for (const e of v.epochs) {
-    out.push('', `epoch ${e.index}${e.startedBy ? ` (after ${e.startedBy.kind} on ${day(e.startedBy.atMs)})` : ''}: ${e.series.length} approved test(s)`);
+    out.push(
+      '',
+      `epoch ${e.index}${e.startedBy ? ` (after ${e.startedBy.kind} on ${day(e.startedBy.atMs)})` : ''}: ${e.series.length} approved test(s)`,
+    );
     out.push('  tested       fit   Cd·a (m²)      u(Cd·a)      Cd       u(Cd)    change %');
     for (const p of e.series) {
-      out.push(`  ${p.testedAt.slice(0, 10)} ${String(p.fitId).padStart(5)}   ${p.effectiveAreaM2.toExponential(5)}  ${p.effectiveAreaU.toExponential(2)}  ` +
-        `${p.dischargeCoefficient.toFixed(4)}  ${p.dischargeCoefficientU.toFixed(4)}  ${p.changePct.toFixed(2).padStart(7)}${p.isBaseline ? '  baseline' : ''}`);
+      out.push(
+        `  ${p.testedAt.slice(0, 10)} ${String(p.fitId).padStart(5)}   ${p.effectiveAreaM2.toExponential(5)}  ${p.effectiveAreaU.toExponential(2)}  ` +
+          `${p.dischargeCoefficient.toFixed(4)}  ${p.dischargeCoefficientU.toFixed(4)}  ${p.changePct.toFixed(2).padStart(7)}${p.isBaseline ? '  baseline' : ''}`,
+      );
     }
-    if (e.area) out.push(`  Cd·a line: ${e.area.slopePctPerYear.toFixed(2)} ± ${e.area.slopePctPerYearU.toFixed(2)} %/year (χ²/dof ${e.area.reducedChi2.toFixed(2)})`);
+    if (e.area)
+      out.push(
+        `  Cd·a line: ${e.area.slopePctPerYear.toFixed(2)} ± ${e.area.slopePctPerYearU.toFixed(2)} %/year (χ²/dof ${e.area.reducedChi2.toFixed(2)})`,
+      );
     if (e.forecast) out.push(`  forecast: ${e.forecast.reason}`);
     if (e.step?.flagged) out.push(`  step: ${e.step.reason}`);
   }
-  if (v.skipped.length) out.push('', `left out: ${v.skipped.map((k) => `fit ${k.fitId} (${k.why})`).join('; ')}`);
+  if (v.skipped.length)
+    out.push('', `left out: ${v.skipped.map((k) => `fit ${k.fitId} (${k.why})`).join('; ')}`);
   const chart = asciiChart(v);
   if (chart.length) out.push('', ...chart);
   return out.join('\n') + '\n';
 }
 
 function fleetText(f: FleetView): string {
-  const out = [`fleet as of ${day(f.nowMs)}: ${f.items.length} outlet(s); ` + Object.entries(f.counts).filter(([, n]) => n > 0).map(([w, n]) => `${n} ${w}`).join(', ')];
-  out.push('  outlet  vessel / outlet                      site                 status             days  crossing');
+  const out = [
+    `fleet as of ${day(f.nowMs)}: ${f.items.length} outlet(s); ` +
+      Object.entries(f.counts)
+        .filter(([, n]) => n > 0)
+        .map(([w, n]) => `${n} ${w}`)
+        .join(', '),
+  ];
+  out.push(
+    '  outlet  vessel / outlet                      site                 status             days  crossing',
+  );
   for (const i of f.items) {
-    out.push(`  ${String(i.outletId).padStart(6)}  ${`${i.vesselName} / ${i.outletKey}`.slice(0, 35).padEnd(35)}  ${i.site.slice(0, 19).padEnd(19)}  ` +
-      `${i.status.padEnd(17)}  ${days(i.daysToThreshold).padStart(5)}  ${i.crossingAt ? i.crossingAt.slice(0, 10) : '—'}`);
+    out.push(
+      `  ${String(i.outletId).padStart(6)}  ${`${i.vesselName} / ${i.outletKey}`.slice(0, 35).padEnd(35)}  ${i.site.slice(0, 19).padEnd(19)}  ` +
+        `${i.status.padEnd(17)}  ${days(i.daysToThreshold).padStart(5)}  ${i.crossingAt ? i.crossingAt.slice(0, 10) : '—'}`,
+    );
   }
   return out.join('\n') + '\n';
 }
@@ -102,16 +143,26 @@ export async function run(argv: string[]): Promise<number> {
     const store = openStore({ dataDir: dataDir() });
     try {
       if (argv.includes('--fleet')) {
-        if (csv) throw new InputError('--csv is for one outlet\'s history', { field: 'csv' });
-        const words = option(argv, 'status')?.split(',').map((s) => s.trim()).filter(Boolean);
-        for (const w of words ?? []) if (!(STATUS_WORDS as readonly string[]).includes(w)) throw new InputError(`unknown status "${w}"`, { field: 'status' });
+        if (csv) throw new InputError("--csv is for one outlet's history", { field: 'csv' });
+        const words = option(argv, 'status')
+          ?.split(',')
+          .map((s) => s.trim())
+          .filter(Boolean);
+        for (const w of words ?? [])
+          if (!(STATUS_WORDS as readonly string[]).includes(w))
+            throw new InputError(`unknown status "${w}"`, { field: 'status' });
         const f = fleetStatus(store, { site: option(argv, 'site'), status: words as never }, nowMs);
         process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f));
         return 0;
       }
-      const first = argv.find((a, i) => !a.startsWith('--') && !['--as-of', '--site', '--status'].includes(argv[i - 1]));
+      const first = argv.find(
+        (a, i) => !a.startsWith('--') && !['--as-of', '--site', '--status'].includes(argv[i - 1]),
+      );
       const id = Number(first);
-      if (!Number.isInteger(id) || id <= 0) throw new InputError(`outlet id must be a positive whole number, not "${first ?? ''}"`, { field: 'outletId' });
+      if (!Number.isInteger(id) || id <= 0)
+        throw new InputError(`outlet id must be a positive whole number, not "${first ?? ''}"`, {
+          field: 'outletId',
+        });
       let view: TrendView;
       try {
         view = outletTrendView(store, id, nowMs);
@@ -119,7 +170,9 @@ export async function run(argv: string[]): Promise<number> {
         if (e instanceof NotFoundError) throw new InputError(e.message, { field: 'outletId' });
         throw e;
       }
-      process.stdout.write(json ? JSON.stringify(view, null, 2) + '\n' : csv ? historyCsv(view) : trendText(view));
+      process.stdout.write(
+        json ? JSON.stringify(view, null, 2) + '\n' : csv ? historyCsv(view) : trendText(view),
+      );
       return 0;
     } finally {
       store.close();

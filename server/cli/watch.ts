@@ -27,14 +27,18 @@ exit codes: 0 done (or stopped with Ctrl-C: the test stays open; resume with --l
 
 function seconds(option: string, text: string): number {
   const m = /^\s*(\d+(?:\.\d*)?)\s*(ms|s|min)?\s*$/.exec(text);
-  if (!m) throw new InputError(`${option}: cannot read "${text}" as a duration (e.g. 1s, 500ms, 2min)`, { field: option });
+  if (!m)
+    throw new InputError(`${option}: cannot read "${text}" as a duration (e.g. 1s, 500ms, 2min)`, {
+      field: option,
+    });
   return Number(m[1]) * (m[2] === 'ms' ? 0.001 : m[2] === 'min' ? 60 : 1);
 }
 
 function fraction(option: string, text: string): number {
   const t = text.trim();
   const v = t.endsWith('%') ? Number(t.slice(0, -1)) / 100 : Number(t);
-  if (!Number.isFinite(v) || v <= 0) throw new InputError(`${option}: "${text}" is not a positive percentage`, { field: option });
+  if (!Number.isFinite(v) || v <= 0)
+    throw new InputError(`${option}: "${text}" is not a positive percentage`, { field: option });
   return v;
 }
 
@@ -75,19 +79,33 @@ export async function run(argv: string[]): Promise<number> {
       return EXIT_OK;
     }
     const path = positionals[0];
-    if (!path || positionals.length > 1) throw new InputError('give one log file to watch (usage: efflux watch <file> --vessel ID --to URL)');
-    if (!values.to) throw new InputError('no service given: add --to URL (e.g. http://127.0.0.1:8080)');
+    if (!path || positionals.length > 1)
+      throw new InputError(
+        'give one log file to watch (usage: efflux watch <file> --vessel ID --to URL)',
+      );
+    if (!values.to)
+      throw new InputError('no service given: add --to URL (e.g. http://127.0.0.1:8080)');
     const token = values.token ?? process.env.EFFLUX_TOKEN;
-    if (!token) throw new InputError('no API token: add --token or set EFFLUX_TOKEN (efflux token create --role technician --name NAME)');
-    if (!values.live && !values.vessel) throw new InputError('no vessel given: add --vessel ID (or --live ID to resume)');
+    if (!token)
+      throw new InputError(
+        'no API token: add --token or set EFFLUX_TOKEN (efflux token create --role technician --name NAME)',
+      );
+    if (!values.live && !values.vessel)
+      throw new InputError('no vessel given: add --vessel ID (or --live ID to resume)');
     const base = values.to.replace(/\/+$/, '');
     const pollS = values.poll ? seconds('--poll', values.poll) : 1;
-    const closeAfterS = values['close-after'] ? seconds('--close-after', values['close-after']) : null;
+    const closeAfterS = values['close-after']
+      ? seconds('--close-after', values['close-after'])
+      : null;
     const auth = { authorization: `Bearer ${token}` };
     const say = (line: string) => process.stderr.write(`${line}\n`);
 
     const call = async (method: string, url: string, body?: Buffer | string, type?: string) => {
-      const res = await fetch(`${base}${url}`, { method, headers: { ...auth, ...(type ? { 'content-type': type } : {}) }, body: body as never });
+      const res = await fetch(`${base}${url}`, {
+        method,
+        headers: { ...auth, ...(type ? { 'content-type': type } : {}) },
+        body: body as never,
+      });
       const text = await res.text();
       let json: Record<string, unknown> = {};
       try {
@@ -98,7 +116,9 @@ export async function run(argv: string[]): Promise<number> {
       return { status: res.status, json, headers: res.headers };
     };
     const refuse = (what: string, r: { status: number; json: Record<string, unknown> }) =>
-      new InputError(`${what}: the service answered ${r.status}${r.json.detail ? ` (${String(r.json.detail)})` : ''}`);
+      new InputError(
+        `${what}: the service answered ${r.status}${r.json.detail ? ` (${String(r.json.detail)})` : ''}`,
+      );
 
     let id = values.live;
     let acked = 0;
@@ -112,9 +132,22 @@ export async function run(argv: string[]): Promise<number> {
       const settings = settingsFrom(values);
       if (Object.keys(settings).length) body.settings = settings;
       if (values.outlet) body.outletId = Number(values.outlet);
-      if (values.target) body.target = { quantity: 'effective-area', relativeStandardUncertainty: fraction('--target', values.target) };
-      if (values['target-cd']) body.target = { quantity: 'discharge-coefficient', relativeStandardUncertainty: fraction('--target-cd', values['target-cd']) };
-      const r = await call('POST', `/api/vessels/${encodeURIComponent(values.vessel!)}/live`, JSON.stringify(body), 'application/json');
+      if (values.target)
+        body.target = {
+          quantity: 'effective-area',
+          relativeStandardUncertainty: fraction('--target', values.target),
+        };
+      if (values['target-cd'])
+        body.target = {
+          quantity: 'discharge-coefficient',
+          relativeStandardUncertainty: fraction('--target-cd', values['target-cd']),
+        };
+      const r = await call(
+        'POST',
+        `/api/vessels/${encodeURIComponent(values.vessel!)}/live`,
+        JSON.stringify(body),
+        'application/json',
+      );
       if (r.status !== 201) throw refuse('opening the live test', r);
       id = String(r.json.id);
       say(`live test ${id} opened; to resume: efflux watch ${path} --live ${id} --to ${base}`);
@@ -137,18 +170,28 @@ export async function run(argv: string[]): Promise<number> {
       } catch {
         throw new InputError('cannot be read', { file: path });
       }
-      if (size < acked) throw new InputError(`the file is now ${size} bytes, shorter than the ${acked} already sent: it was replaced, not appended to`, { file: path });
+      if (size < acked)
+        throw new InputError(
+          `the file is now ${size} bytes, shorter than the ${acked} already sent: it was replaced, not appended to`,
+          { file: path },
+        );
       const rows = size > acked ? wholeRows(path, acked, size) : Buffer.alloc(0);
       if (rows.length > 0) {
         try {
-          const r = await call('POST', `/api/live/${id}/rows?offset=${acked}`, rows, 'application/octet-stream');
+          const r = await call(
+            'POST',
+            `/api/live/${id}/rows?offset=${acked}`,
+            rows,
+            'application/octet-stream',
+          );
           if (offline) say('connection back');
           offline = false;
           if (r.status === 200) {
             acked = Number(r.json.receivedBytes);
             lastGrowth = Date.now();
             const latest = r.json.latest as { message?: string } | null;
-            if (latest?.message && latest.message !== lastMessage) say((lastMessage = latest.message));
+            if (latest?.message && latest.message !== lastMessage)
+              say((lastMessage = latest.message));
           } else if (r.status === 409 && r.headers.get('efflux-received-bytes')) {
             acked = Number(r.headers.get('efflux-received-bytes'));
           } else {
@@ -160,7 +203,12 @@ export async function run(argv: string[]): Promise<number> {
           offline = true;
         }
       }
-      if (closeAfterS !== null && acked > 0 && rows.length === 0 && Date.now() - lastGrowth >= closeAfterS * 1000) {
+      if (
+        closeAfterS !== null &&
+        acked > 0 &&
+        rows.length === 0 &&
+        Date.now() - lastGrowth >= closeAfterS * 1000
+      ) {
         const r = await call('POST', `/api/live/${id}/close`);
         if (r.status !== 201) throw refuse('closing the live test', r);
         const test = r.json.test as { id: number; sha256: string };

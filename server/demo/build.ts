@@ -9,7 +9,8 @@ import { HISTORIES, SITE, TESTS, VESSELS, type DemoTest, type DemoVessel } from 
 export function buildSampleData(): Record<string, Uint8Array> {
   const enc = new TextEncoder();
   const files: Record<string, Uint8Array> = {};
-  for (const v of VESSELS) files[v.file] = enc.encode(JSON.stringify(vesselFile(v), null, 2) + '\n');
+  for (const v of VESSELS)
+    files[v.file] = enc.encode(JSON.stringify(vesselFile(v), null, 2) + '\n');
   const manifestTests: Record<string, unknown>[] = [];
   for (const t of TESTS) {
     const v = VESSELS.find((x) => x.name === t.vessel)!;
@@ -30,12 +31,18 @@ export function buildSampleData(): Record<string, Uint8Array> {
       testedAt: t.startIso,
       notes: t.notes,
       layout: t.layout,
-      truth: { dischargeCoefficient: t.cd, effectiveAreaM2: t.cd * nominal, inflowM3S: t.inflowM3S ?? 0, invented: true },
+      truth: {
+        dischargeCoefficient: t.cd,
+        effectiveAreaM2: t.cd * nominal,
+        inflowM3S: t.inflowM3S ?? 0,
+        invented: true,
+      },
     });
   }
   // Months of approved tests on three outlets, for the trend (server/demo/history.ts).
   const history = expandHistories();
-  for (const h of HISTORIES) files[h.vessel.file] = enc.encode(JSON.stringify(vesselFile(h.vessel), null, 2) + '\n');
+  for (const h of HISTORIES)
+    files[h.vessel.file] = enc.encode(JSON.stringify(vesselFile(h.vessel), null, 2) + '\n');
   for (const { history: h, month, test: t } of history.tests) {
     const { timeS, levelM } = simulateTest(t, h.vessel);
     files[t.log] = enc.encode(writeLog(t, h.vessel, timeS, levelM).text);
@@ -53,7 +60,12 @@ export function buildSampleData(): Record<string, Uint8Array> {
       layout: t.layout,
       review: { decision: 'approve', comment: 'Routine monthly test; fit checked (demo).' },
       history: { outlet: h.logPrefix, month },
-      truth: { dischargeCoefficient: t.cd, effectiveAreaM2: t.cd * nominal, inflowM3S: 0, invented: true },
+      truth: {
+        dischargeCoefficient: t.cd,
+        effectiveAreaM2: t.cd * nominal,
+        inflowM3S: 0,
+        invented: true,
+      },
     });
   }
   const manifest = {
@@ -62,7 +74,14 @@ export function buildSampleData(): Record<string, Uint8Array> {
     description: `${SITE}: invented vessels and simulated drain tests for the demo and the tests. Not real data.`,
     vessels: [...VESSELS, ...HISTORIES.map((h) => h.vessel)].map((v) => ({ file: v.file })),
     tests: manifestTests,
-    events: history.events.map((e) => ({ vessel: e.history.vessel.name, site: SITE, outlet: e.history.vessel.outlet.id, kind: e.kind, occurredAt: e.occurredAt, notes: e.notes })),
+    events: history.events.map((e) => ({
+      vessel: e.history.vessel.name,
+      site: SITE,
+      outlet: e.history.vessel.outlet.id,
+      kind: e.kind,
+      occurredAt: e.occurredAt,
+      notes: e.notes,
+    })),
   };
   files['manifest.json'] = enc.encode(JSON.stringify(manifest, null, 2) + '\n');
   return files;
@@ -81,7 +100,11 @@ function vesselFile(v: DemoVessel) {
 }
 
 function simulateTest(t: DemoTest, v: DemoVessel): { timeS: Float64Array; levelM: Float64Array } {
-  const setting = { shape: makeShape(v.shape), outletElevationM: v.outlet.elevationM, gravity: STANDARD_GRAVITY_MS2 };
+  const setting = {
+    shape: makeShape(v.shape),
+    outletElevationM: v.outlet.elevationM,
+    gravity: STANDARD_GRAVITY_MS2,
+  };
   const zero = v.sensor?.zeroElevationM ?? 0;
   const sim = simulateDrainTest({
     setting,

@@ -28,12 +28,19 @@ export function historyTruth(h: DemoHistory) {
     driftPctPerYear: h.driftPctPerYear,
     relU: 0.002, // only its noisy values use this; the logs are made from the truths
     steps: h.steps,
-    maintenance: h.maintenance?.map((m) => ({ month: m.month, kind: m.kind, restorePct: m.restorePct })),
+    maintenance: h.maintenance?.map((m) => ({
+      month: m.month,
+      kind: m.kind,
+      restorePct: m.restorePct,
+    })),
   });
 }
 
 /** Every monthly test and maintenance event of the demo histories, in time order per history. */
-export function expandHistories(histories: readonly DemoHistory[] = HISTORIES): { tests: HistoryTest[]; events: HistoryEvent[] } {
+export function expandHistories(histories: readonly DemoHistory[] = HISTORIES): {
+  tests: HistoryTest[];
+  events: HistoryEvent[];
+} {
   const tests: HistoryTest[] = [];
   const events: HistoryEvent[] = [];
   for (const h of histories) {
@@ -62,7 +69,12 @@ export function expandHistories(histories: readonly DemoHistory[] = HISTORIES): 
       });
     });
     sim.events.forEach((e, i) => {
-      events.push({ history: h, kind: e.kind, occurredAt: new Date(e.atMs).toISOString().slice(0, 10), notes: h.maintenance![i].notes });
+      events.push({
+        history: h,
+        kind: e.kind,
+        occurredAt: new Date(e.atMs).toISOString().slice(0, 10),
+        notes: h.maintenance![i].notes,
+      });
     });
   }
   return { tests, events };

@@ -18,7 +18,14 @@ const comma = (x: number, d: number) => x.toFixed(d).replace('.', ',');
 
 function parts(ms: number, offsetMin = 0) {
   const d = new Date(ms + offsetMin * 60000);
-  return { y: d.getUTCFullYear(), mo: d.getUTCMonth() + 1, d: d.getUTCDate(), h: d.getUTCHours(), mi: d.getUTCMinutes(), s: d.getUTCSeconds() };
+  return {
+    y: d.getUTCFullYear(),
+    mo: d.getUTCMonth() + 1,
+    d: d.getUTCDate(),
+    h: d.getUTCHours(),
+    mi: d.getUTCMinutes(),
+    s: d.getUTCSeconds(),
+  };
 }
 
 /** A barometer that drifts slowly through the morning (invented), kPa. */
@@ -27,7 +34,12 @@ export function baroKpa(ms: number): number {
   return 101.2 + 0.15 * Math.sin((2 * Math.PI * hours) / 12);
 }
 
-export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array, levelM: Float64Array): LogText {
+export function writeLog(
+  test: DemoTest,
+  vessel: DemoVessel,
+  timeS: Float64Array,
+  levelM: Float64Array,
+): LogText {
   const t0 = Date.parse(test.startIso);
   const ms = (i: number) => t0 + timeS[i] * 1000;
   const n = timeS.length;
@@ -38,7 +50,14 @@ export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array
   const g = STANDARD_GRAVITY_MS2;
   switch (layout) {
     case 'preamble-iso-m':
-      rows.push(`Site: ${SITE}`, `Vessel: ${vessel.name}`, `Logger: ${test.loggerId}`, `Operator: ${test.operator}`, 'Record: drain test, level above the drain centreline', '');
+      rows.push(
+        `Site: ${SITE}`,
+        `Vessel: ${vessel.name}`,
+        `Logger: ${test.loggerId}`,
+        `Operator: ${test.operator}`,
+        'Record: drain test, level above the drain centreline',
+        '',
+      );
       rows.push('timestamp,level (m)');
       for (let i = 0; i < n; i++) rows.push(`${isoSecond(ms(i))},${levelM[i].toFixed(4)}`);
       break;
@@ -46,7 +65,9 @@ export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array
       rows.push('Date/time;Level [cm];Status');
       for (let i = 0; i < n; i++) {
         const p = parts(ms(i));
-        rows.push(`${pad2(p.d)}.${pad2(p.mo)}.${p.y} ${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)};${comma(levelM[i] * 100, 1)};OK`);
+        rows.push(
+          `${pad2(p.d)}.${pad2(p.mo)}.${p.y} ${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)};${comma(levelM[i] * 100, 1)};OK`,
+        );
       }
       break;
     case 'mdy-12h-ft':
@@ -54,29 +75,39 @@ export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array
       for (let i = 0; i < n; i++) {
         const p = parts(ms(i));
         const h12 = p.h % 12 === 0 ? 12 : p.h % 12;
-        rows.push(`${pad2(p.mo)}/${pad2(p.d)}/${p.y} ${h12}:${pad2(p.mi)}:${pad2(p.s)} ${p.h < 12 ? 'AM' : 'PM'},${(levelM[i] / 0.3048).toFixed(4)}`);
+        rows.push(
+          `${pad2(p.mo)}/${pad2(p.d)}/${p.y} ${h12}:${pad2(p.mi)}:${pad2(p.s)} ${p.h < 12 ? 'AM' : 'PM'},${(levelM[i] / 0.3048).toFixed(4)}`,
+        );
       }
       break;
     case 'epoch-gauge-kpa-tempf': {
       rows.push('epoch_s,P_gauge (kPa),Water temp (°F)');
       const tempF = tempC * 1.8 + 32;
-      for (let i = 0; i < n; i++) rows.push(`${Math.round(ms(i) / 1000)},${((rho * g * levelM[i]) / 1000).toFixed(3)},${tempF.toFixed(1)}`);
+      for (let i = 0; i < n; i++)
+        rows.push(
+          `${Math.round(ms(i) / 1000)},${((rho * g * levelM[i]) / 1000).toFixed(3)},${tempF.toFixed(1)}`,
+        );
       break;
     }
     case 'elapsed-mm':
       rows.push('Elapsed (s),Level_mm');
-      for (let i = 0; i < n; i++) rows.push(`${timeS[i].toFixed(0)},${(levelM[i] * 1000).toFixed(0)}`);
+      for (let i = 0; i < n; i++)
+        rows.push(`${timeS[i].toFixed(0)},${(levelM[i] * 1000).toFixed(0)}`);
       return { text: rows.join('\r\n') + '\r\n', encoding: 'utf16le' };
     case 'date-time-columns-abs-kpa': {
       rows.push('Date,Time,Pabs (kPa)');
       for (let i = 0; i < n; i++) {
         const p = parts(ms(i));
-        rows.push(`${p.y}-${pad2(p.mo)}-${pad2(p.d)},${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)},${((rho * g * levelM[i]) / 1000 + baroKpa(ms(i))).toFixed(3)}`);
+        rows.push(
+          `${p.y}-${pad2(p.mo)}-${pad2(p.d)},${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)},${((rho * g * levelM[i]) / 1000 + baroKpa(ms(i))).toFixed(3)}`,
+        );
       }
       const baro = ['Date,Time,Baro (kPa)'];
       for (let t = t0 - 600_000; t <= ms(n - 1) + 600_000; t += 60_000) {
         const p = parts(t);
-        baro.push(`${p.y}-${pad2(p.mo)}-${pad2(p.d)},${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)},${baroKpa(t).toFixed(3)}`);
+        baro.push(
+          `${p.y}-${pad2(p.mo)}-${pad2(p.d)},${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)},${baroKpa(t).toFixed(3)}`,
+        );
       }
       return { text: rows.join('\n') + '\n', encoding: 'utf8', baro: baro.join('\n') + '\n' };
     }
@@ -85,7 +116,9 @@ export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array
       const mount = vessel.sensor?.mountElevationM ?? 0;
       for (let i = 0; i < n; i++) {
         const p = parts(ms(i), 60);
-        rows.push(`${p.y}-${pad2(p.mo)}-${pad2(p.d)}T${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)}+01:00,${(mount - levelM[i]).toFixed(3)}`);
+        rows.push(
+          `${p.y}-${pad2(p.mo)}-${pad2(p.d)}T${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)}+01:00,${(mount - levelM[i]).toFixed(3)}`,
+        );
       }
       break;
     }
@@ -94,7 +127,9 @@ export function writeLog(test: DemoTest, vessel: DemoVessel, timeS: Float64Array
       rows.push('Local time\tStage (m)\tPump');
       for (let i = 0; i < n; i++) {
         const p = parts(ms(i), 60);
-        rows.push(`${p.y}-${pad2(p.mo)}-${pad2(p.d)} ${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)}\t${levelM[i].toFixed(3)}\t${i % 600 < 300 ? 'off' : 'off'}`);
+        rows.push(
+          `${p.y}-${pad2(p.mo)}-${pad2(p.d)} ${pad2(p.h)}:${pad2(p.mi)}:${pad2(p.s)}\t${levelM[i].toFixed(3)}\t${i % 600 < 300 ? 'off' : 'off'}`,
+        );
       }
       break;
     case 'serial-days-duplicates': {

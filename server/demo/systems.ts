@@ -35,7 +35,16 @@ interface DemoSystem {
   }>;
   inflowM3S?: { to: string; flow: number };
   /** A cycling transfer pump into one vessel, logged by a flow meter (file, reading interval). */
-  pump?: { to: string; log: string; intervalS: number; onM3S: number; periodS: number; onS: number; rampS: number; phaseS: number };
+  pump?: {
+    to: string;
+    log: string;
+    intervalS: number;
+    onM3S: number;
+    periodS: number;
+    onS: number;
+    rampS: number;
+    phaseS: number;
+  };
 }
 
 /** The pump's true flow at t (s): ramps up, runs, ramps down, rests; repeating. */
@@ -55,8 +64,40 @@ export const DEMO_SYSTEMS: DemoSystem[] = [
     durationS: 900,
     seed: 71,
     vessels: [
-      { id: 'FT1', name: 'Feed tank FT-1', diameterM: 1.4, heightM: 2.6, boreM: 0.05, outletM: 0.1, zeroM: 0.05, baseM: 3.0, to: 'BT2', connection: 'free', cd: 0.611, startSurfaceM: 2.2, log: 'ft1-2026-04-07.csv', intervalS: 1, offsetS: 0 },
-      { id: 'BT2', name: 'Break tank BT-2', diameterM: 1.2, heightM: 2.4, boreM: 0.045, outletM: 0.08, zeroM: 0.04, baseM: 0.5, to: null, connection: 'free', cd: 0.804, startSurfaceM: 0.7, log: 'bt2-2026-04-07.csv', intervalS: 2, offsetS: 0.5 },
+      {
+        id: 'FT1',
+        name: 'Feed tank FT-1',
+        diameterM: 1.4,
+        heightM: 2.6,
+        boreM: 0.05,
+        outletM: 0.1,
+        zeroM: 0.05,
+        baseM: 3.0,
+        to: 'BT2',
+        connection: 'free',
+        cd: 0.611,
+        startSurfaceM: 2.2,
+        log: 'ft1-2026-04-07.csv',
+        intervalS: 1,
+        offsetS: 0,
+      },
+      {
+        id: 'BT2',
+        name: 'Break tank BT-2',
+        diameterM: 1.2,
+        heightM: 2.4,
+        boreM: 0.045,
+        outletM: 0.08,
+        zeroM: 0.04,
+        baseM: 0.5,
+        to: null,
+        connection: 'free',
+        cd: 0.804,
+        startSurfaceM: 0.7,
+        log: 'bt2-2026-04-07.csv',
+        intervalS: 2,
+        offsetS: 0.5,
+      },
     ],
   },
   {
@@ -67,9 +108,57 @@ export const DEMO_SYSTEMS: DemoSystem[] = [
     seed: 72,
     inflowM3S: { to: 'RC1', flow: 0.0005 },
     vessels: [
-      { id: 'RC1', name: 'Rinse cell RC-1', diameterM: 1.0, heightM: 2.5, boreM: 0.04, outletM: 0.1, zeroM: 0.05, baseM: 1.0, to: 'RC2', connection: 'submerged', cd: 0.62, startSurfaceM: 2.2, log: 'rc1-2026-04-08.csv', intervalS: 1, offsetS: 0 },
-      { id: 'RC2', name: 'Rinse cell RC-2', diameterM: 1.1, heightM: 2.5, boreM: 0.05, outletM: 0.1, zeroM: 0.05, baseM: 1.0, to: 'SW3', connection: 'free', cd: 0.605, startSurfaceM: 0.8, log: 'rc2-2026-04-08.csv', intervalS: 1, offsetS: 0.25 },
-      { id: 'SW3', name: 'Sump well SW-3', diameterM: 1.3, heightM: 3.0, boreM: 0.05, outletM: 0.08, zeroM: 0.04, baseM: 0, to: null, connection: 'free', cd: 0.64, startSurfaceM: 1.0, log: 'sw3-2026-04-08.csv', intervalS: 1, offsetS: 0.5 },
+      {
+        id: 'RC1',
+        name: 'Rinse cell RC-1',
+        diameterM: 1.0,
+        heightM: 2.5,
+        boreM: 0.04,
+        outletM: 0.1,
+        zeroM: 0.05,
+        baseM: 1.0,
+        to: 'RC2',
+        connection: 'submerged',
+        cd: 0.62,
+        startSurfaceM: 2.2,
+        log: 'rc1-2026-04-08.csv',
+        intervalS: 1,
+        offsetS: 0,
+      },
+      {
+        id: 'RC2',
+        name: 'Rinse cell RC-2',
+        diameterM: 1.1,
+        heightM: 2.5,
+        boreM: 0.05,
+        outletM: 0.1,
+        zeroM: 0.05,
+        baseM: 1.0,
+        to: 'SW3',
+        connection: 'free',
+        cd: 0.605,
+        startSurfaceM: 0.8,
+        log: 'rc2-2026-04-08.csv',
+        intervalS: 1,
+        offsetS: 0.25,
+      },
+      {
+        id: 'SW3',
+        name: 'Sump well SW-3',
+        diameterM: 1.3,
+        heightM: 3.0,
+        boreM: 0.05,
+        outletM: 0.08,
+        zeroM: 0.04,
+        baseM: 0,
+        to: null,
+        connection: 'free',
+        cd: 0.64,
+        startSurfaceM: 1.0,
+        log: 'sw3-2026-04-08.csv',
+        intervalS: 1,
+        offsetS: 0.5,
+      },
     ],
   },
   {
@@ -78,10 +167,51 @@ export const DEMO_SYSTEMS: DemoSystem[] = [
     startIso: '2026-04-09T07:15:00Z',
     durationS: 900,
     seed: 73,
-    pump: { to: 'WT4', log: 'pump-2026-04-09.csv', intervalS: 2, onM3S: 0.0015, periodS: 240, onS: 100, rampS: 6, phaseS: 37 },
+    pump: {
+      to: 'WT4',
+      log: 'pump-2026-04-09.csv',
+      intervalS: 2,
+      onM3S: 0.0015,
+      periodS: 240,
+      onS: 100,
+      rampS: 6,
+      phaseS: 37,
+    },
     vessels: [
-      { id: 'WT4', name: 'Wash tank WT-4', diameterM: 1.2, heightM: 2.5, boreM: 0.05, outletM: 0.1, zeroM: 0.05, baseM: 2.5, to: 'HT5', connection: 'free', cd: 0.615, startSurfaceM: 1.9, log: 'wt4-2026-04-09.csv', intervalS: 1, offsetS: 0 },
-      { id: 'HT5', name: 'Holding tank HT-5', diameterM: 1.0, heightM: 2.5, boreM: 0.045, outletM: 0.08, zeroM: 0.04, baseM: 0, to: null, connection: 'free', cd: 0.63, startSurfaceM: 0.6, log: 'ht5-2026-04-09.csv', intervalS: 2, offsetS: 0.3 },
+      {
+        id: 'WT4',
+        name: 'Wash tank WT-4',
+        diameterM: 1.2,
+        heightM: 2.5,
+        boreM: 0.05,
+        outletM: 0.1,
+        zeroM: 0.05,
+        baseM: 2.5,
+        to: 'HT5',
+        connection: 'free',
+        cd: 0.615,
+        startSurfaceM: 1.9,
+        log: 'wt4-2026-04-09.csv',
+        intervalS: 1,
+        offsetS: 0,
+      },
+      {
+        id: 'HT5',
+        name: 'Holding tank HT-5',
+        diameterM: 1.0,
+        heightM: 2.5,
+        boreM: 0.045,
+        outletM: 0.08,
+        zeroM: 0.04,
+        baseM: 0,
+        to: null,
+        connection: 'free',
+        cd: 0.63,
+        startSurfaceM: 0.6,
+        log: 'ht5-2026-04-09.csv',
+        intervalS: 2,
+        offsetS: 0.3,
+      },
     ],
   },
 ];
@@ -95,13 +225,20 @@ function systemFile(d: DemoSystem) {
       id: v.id,
       name: v.name,
       shape: { kind: 'vertical-cylinder', diameterM: v.diameterM, heightM: v.heightM },
-      outlet: { boreM: v.boreM, boreToleranceM: 0.0002, elevationM: v.outletM, type: 'sharp-edged' },
+      outlet: {
+        boreM: v.boreM,
+        boreToleranceM: 0.0002,
+        elevationM: v.outletM,
+        type: 'sharp-edged',
+      },
       sensor: { zeroElevationM: v.zeroM },
       dischargesTo: v.to,
       connection: v.connection,
       baseElevationM: v.baseM,
     })),
-    ...(d.inflowM3S ? { inflows: [{ to: d.inflowM3S.to, constant: `${d.inflowM3S.flow * 1000} L/s` }] } : {}),
+    ...(d.inflowM3S
+      ? { inflows: [{ to: d.inflowM3S.to, constant: `${d.inflowM3S.flow * 1000} L/s` }] }
+      : {}),
     ...(d.pump ? { inflows: [{ to: d.pump.to, log: d.pump.log }] } : {}),
   };
 }
@@ -120,16 +257,35 @@ export function buildSystemSampleData(): Record<string, string> {
       theta[i * PER_VESSEL + P.sensorZero] = v.zeroM;
       theta[i * PER_VESSEL + P.initialReading] = v.startSurfaceM - v.zeroM;
     });
-    const inflows: InflowInput[] = d.inflowM3S ? [{ vessel: d.vessels.findIndex((v) => v.id === d.inflowM3S!.to), constantM3S: d.inflowM3S.flow }] : [];
+    const inflows: InflowInput[] = d.inflowM3S
+      ? [
+          {
+            vessel: d.vessels.findIndex((v) => v.id === d.inflowM3S!.to),
+            constantM3S: d.inflowM3S.flow,
+          },
+        ]
+      : [];
     const t0 = Date.parse(d.startIso);
     if (d.pump) {
       const p = d.pump;
       // the truth at 0.5 s (exact for this piecewise-linear cycle); the meter reads every intervalS
       // from a little before the levels to a little after, to 0.001 L/s
       const timeS = Float64Array.from({ length: 2 * d.durationS + 21 }, (_, i) => i * 0.5 - 5);
-      inflows.push({ vessel: d.vessels.findIndex((v) => v.id === p.to), timeS, flowM3S: Float64Array.from(timeS, (t) => pumpFlow(p, t)) });
-      const lines = [`Site: ${SITE}`, 'Meter: transfer pump discharge, invented', '', 'timestamp,inflow (L/s)'];
-      for (let t = -4; t <= d.durationS + 4; t += p.intervalS) lines.push(`${new Date(t0 + t * 1000).toISOString()},${(pumpFlow(p, t) * 1000).toFixed(3)}`);
+      inflows.push({
+        vessel: d.vessels.findIndex((v) => v.id === p.to),
+        timeS,
+        flowM3S: Float64Array.from(timeS, (t) => pumpFlow(p, t)),
+      });
+      const lines = [
+        `Site: ${SITE}`,
+        'Meter: transfer pump discharge, invented',
+        '',
+        'timestamp,inflow (L/s)',
+      ];
+      for (let t = -4; t <= d.durationS + 4; t += p.intervalS)
+        lines.push(
+          `${new Date(t0 + t * 1000).toISOString()},${(pumpFlow(p, t) * 1000).toFixed(3)}`,
+        );
       files[p.log] = lines.join('\n') + '\n';
     }
     const logs = simulateSystemTest({
@@ -146,22 +302,58 @@ export function buildSystemSampleData(): Record<string, string> {
     });
     d.vessels.forEach((v, i) => {
       const l = logs[i];
-      const lines = [`Site: ${SITE}`, `Vessel: ${v.name}`, 'Record: connected-vessel drain test, invented', '', 'timestamp,level (m)'];
-      for (let s = 0; s < l.timeS.length; s++) lines.push(`${new Date(t0 + Math.round(l.timeS[s] * 1000)).toISOString()},${l.levelM[s].toFixed(4)}`);
+      const lines = [
+        `Site: ${SITE}`,
+        `Vessel: ${v.name}`,
+        'Record: connected-vessel drain test, invented',
+        '',
+        'timestamp,level (m)',
+      ];
+      for (let s = 0; s < l.timeS.length; s++)
+        lines.push(
+          `${new Date(t0 + Math.round(l.timeS[s] * 1000)).toISOString()},${l.levelM[s].toFixed(4)}`,
+        );
       files[v.log] = lines.join('\n') + '\n';
     });
     truth.push({
       system: d.file,
       testedAt: d.startIso,
       logs: Object.fromEntries(d.vessels.map((v) => [v.id, v.log])),
-      truth: Object.fromEntries(d.vessels.map((v) => [v.id, { dischargeCoefficient: v.cd, effectiveAreaM2: (v.cd * Math.PI * v.boreM ** 2) / 4, startSurfaceM: v.startSurfaceM }])),
+      truth: Object.fromEntries(
+        d.vessels.map((v) => [
+          v.id,
+          {
+            dischargeCoefficient: v.cd,
+            effectiveAreaM2: (v.cd * Math.PI * v.boreM ** 2) / 4,
+            startSurfaceM: v.startSurfaceM,
+          },
+        ]),
+      ),
       inflowM3S: d.inflowM3S ?? null,
-      ...(d.pump ? { inflowLog: { to: d.pump.to, file: d.pump.log, cycle: { onM3S: d.pump.onM3S, periodS: d.pump.periodS, onS: d.pump.onS, rampS: d.pump.rampS } } } : {}),
+      ...(d.pump
+        ? {
+            inflowLog: {
+              to: d.pump.to,
+              file: d.pump.log,
+              cycle: {
+                onM3S: d.pump.onM3S,
+                periodS: d.pump.periodS,
+                onS: d.pump.onS,
+                rampS: d.pump.rampS,
+              },
+            },
+          }
+        : {}),
       noise: { sdM: 0.0015, lag1: 0.4, quantumM: 0.001 },
       invented: true,
     });
   }
-  files['truth.json'] = JSON.stringify({ format: 'efflux-demo-systems', version: 1, site: SITE, tests: truth }, null, 2) + '\n';
+  files['truth.json'] =
+    JSON.stringify(
+      { format: 'efflux-demo-systems', version: 1, site: SITE, tests: truth },
+      null,
+      2,
+    ) + '\n';
   return files;
 }
 

@@ -141,14 +141,28 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     bodyLimit: 1024 * 1024, // JSON bodies (vessel files, reviews); uploads have their own limit
     return503OnClosing: true,
     // a hop count as the function Fastify makes of it (its types take no number)
-    trustProxy: typeof opts.trustProxy === 'number' ? ((hops: number) => (_addr: string, hop: number) => hop < hops)(opts.trustProxy) : (opts.trustProxy ?? false),
+    trustProxy:
+      typeof opts.trustProxy === 'number'
+        ? (
+            (hops: number) => (_addr: string, hop: number) =>
+              hop < hops
+          )(opts.trustProxy)
+        : (opts.trustProxy ?? false),
     logController: new LogController({ disableRequestLogging: !opts.logRequests }),
   }).withTypeProvider<ZodTypeProvider>();
   if (!opts.logRequests) {
     const debugOn = (level: string) => level === 'debug' || level === 'trace';
     app.addHook('onResponse', (request, reply, done) => {
       if (debugOn(request.log.level)) {
-        request.log.debug({ method: request.method, url: request.url, statusCode: reply.statusCode, ms: Math.round(reply.elapsedTime * 10) / 10 }, 'request');
+        request.log.debug(
+          {
+            method: request.method,
+            url: request.url,
+            statusCode: reply.statusCode,
+            ms: Math.round(reply.elapsedTime * 10) / 10,
+          },
+          'request',
+        );
       }
       done();
     });
@@ -165,35 +179,62 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
         roles = PUBLIC;
         route.config = { ...(route.config ?? {}), roles };
       } else {
-        throw new Error(`route ${String(route.method)} ${route.url} declares no roles (config.roles)`);
+        throw new Error(
+          `route ${String(route.method)} ${route.url} declares no roles (config.roles)`,
+        );
       }
     }
     // and which site its record belongs to (people limited to sites): from the path, else declared
     let scope = route.config?.scope ?? scopeFromPath(route.url);
     if (scope === undefined) {
       if (roles === PUBLIC) scope = 'none';
-      else throw new Error(`route ${String(route.method)} ${route.url} declares no site scope (config.scope)`);
+      else
+        throw new Error(
+          `route ${String(route.method)} ${route.url} declares no site scope (config.scope)`,
+        );
     }
     route.config = { ...(route.config ?? {}), roles, scope };
-    for (const method of [route.method].flat()) app.routeList.push({ method, url: route.url, roles, scope });
+    for (const method of [route.method].flat())
+      app.routeList.push({ method, url: route.url, roles, scope });
   });
 
   // external plugins
   // security headers on every answer, by helmet as a plugin (the strict CSP is ours)
-  await app.register(helmet, { contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP }, crossOriginEmbedderPolicy: false });
+  await app.register(helmet, {
+    contentSecurityPolicy: { useDefaults: false, directives: STRICT_CSP },
+    crossOriginEmbedderPolicy: false,
+  });
   await app.register(rateLimit, {
     global: false,
-    errorResponseBuilder: (_req, ctx) => ({ statusCode: 429, message: `too many sign-in attempts; retry in ${ctx.after}` }),
+    errorResponseBuilder: (_req, ctx) => ({
+      statusCode: 429,
+      message: `too many sign-in attempts; retry in ${ctx.after}`,
+    }),
   });
   await app.register(cookie);
   await app.register(multipart, {
-    limits: { fileSize: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT, files: 2, fields: 40, parts: 50, fieldSize: 64 * 1024 },
+    limits: {
+      fileSize: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT,
+      files: 2,
+      fields: 40,
+      parts: 50,
+      fieldSize: 64 * 1024,
+    },
   });
   await app.register(swagger, {
     openapi: {
       openapi: '3.1.0',
-      info: { title: 'efflux API', version: PACKAGE_VERSION, description: 'Drain tests, fits, history and audit for gravity-draining vessels.' },
-      components: { securitySchemes: { bearer: { type: 'http', scheme: 'bearer' }, session: { type: 'apiKey', in: 'cookie', name: 'efflux_session' } } },
+      info: {
+        title: 'efflux API',
+        version: PACKAGE_VERSION,
+        description: 'Drain tests, fits, history and audit for gravity-draining vessels.',
+      },
+      components: {
+        securitySchemes: {
+          bearer: { type: 'http', scheme: 'bearer' },
+          session: { type: 'apiKey', in: 'cookie', name: 'efflux_session' },
+        },
+      },
       security: [{ bearer: [] }, { session: [] }],
     },
     transform: jsonSchemaTransform,
@@ -210,12 +251,18 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     if (request.url.startsWith(DOCS_PREFIX)) reply.header('content-security-policy', DOCS_CSP);
     if (closing) reply.header('connection', 'close');
   });
-  if (opts.webRoot && existsSync(opts.webRoot)) await app.register(fastifyStatic, { root: opts.webRoot, prefix: '/' });
+  if (opts.webRoot && existsSync(opts.webRoot))
+    await app.register(fastifyStatic, { root: opts.webRoot, prefix: '/' });
 
   // decorators
   app.decorate('store', opts.store);
   app.decorate('analyze', opts.analyze);
-  const ownNotifier = opts.notifier ? null : createNotifier({ urls: opts.webhooks ?? [], log: (line, detail) => app.log.warn(detail ?? {}, line) });
+  const ownNotifier = opts.notifier
+    ? null
+    : createNotifier({
+        urls: opts.webhooks ?? [],
+        log: (line, detail) => app.log.warn(detail ?? {}, line),
+      });
   app.decorate('notifier', opts.notifier ?? ownNotifier!);
   if (ownNotifier) app.addHook('onClose', async () => ownNotifier.close());
   app.decorate('clockMs', opts.clockMs ?? Date.now);
@@ -226,12 +273,21 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     app.addHook('onClose', async () => pool.close());
   }
   app.decorate('tasks', tasks);
-  const exportJobs = new ExportJobs({ store: opts.store, tasks, software: currentSoftware, log: (detail, line) => app.log.error(detail, line) });
+  const exportJobs = new ExportJobs({
+    store: opts.store,
+    tasks,
+    software: currentSoftware,
+    log: (detail, line) => app.log.error(detail, line),
+  });
   app.decorate('exports', exportJobs);
   app.addHook('preClose', async () => exportJobs.close());
 
   // auth and errors (on the root: both are inherited by every route module below)
-  installAuth(app, opts.store, (opts.allowedOrigins ?? []).map((o) => o.toLowerCase()));
+  installAuth(
+    app,
+    opts.store,
+    (opts.allowedOrigins ?? []).map((o) => o.toLowerCase()),
+  );
   installSiteScope(app, opts.store);
   installProblemHandlers(app);
 
@@ -253,11 +309,17 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(workbenchRoutes);
   await app.register(systemRoutes);
   await app.register(planRoutes);
-  await app.register(liveRoutes, { limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT, refitMs: opts.liveRefitMs });
+  await app.register(liveRoutes, {
+    limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT,
+    refitMs: opts.liveRefitMs,
+  });
   await app.register(peopleRoutes);
   app.get(
     '/api/openapi.json',
-    { config: { roles: PUBLIC }, schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } } },
+    {
+      config: { roles: PUBLIC },
+      schema: { hide: true, response: { 200: z.record(z.string(), z.unknown()) } },
+    },
     async () => app.swagger() as unknown as Record<string, unknown>,
   );
   return app;

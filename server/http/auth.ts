@@ -17,7 +17,11 @@ declare module 'fastify' {
   }
 }
 
-export function identify(store: Store, authorization: string | undefined, cookie: string | undefined): User | null | 'bad' {
+export function identify(
+  store: Store,
+  authorization: string | undefined,
+  cookie: string | undefined,
+): User | null | 'bad' {
   if (authorization !== undefined) {
     const m = /^Bearer\s+(\S+)$/i.exec(authorization);
     if (!m) return 'bad';
@@ -27,21 +31,37 @@ export function identify(store: Store, authorization: string | undefined, cookie
   return null;
 }
 
-export function installAuth(app: FastifyInstance, store: Store, extraOrigins: readonly string[] = []): void {
+export function installAuth(
+  app: FastifyInstance,
+  store: Store,
+  extraOrigins: readonly string[] = [],
+): void {
   app.decorateRequest('user', null);
   app.addHook('onRequest', async (request) => {
     const roles = request.routeOptions.config.roles;
     if (roles === undefined || roles === 'public') {
       // sign-in from a foreign page (login CSRF) is refused as well
-      if (request.headers.origin !== undefined && request.routeOptions.url === '/api/session') assertSameOrigin(request, extraOrigins);
+      if (request.headers.origin !== undefined && request.routeOptions.url === '/api/session')
+        assertSameOrigin(request, extraOrigins);
       return; // not-found handler, docs, static files
     }
     const who = identify(store, request.headers.authorization, request.cookies?.[SESSION_COOKIE]);
-    if (who === null) throw new HttpProblem(401, 'unauthenticated', 'credentials required: a Bearer token or a session');
-    if (who === 'bad') throw new HttpProblem(401, 'unauthenticated', 'the token or session is not valid');
+    if (who === null)
+      throw new HttpProblem(
+        401,
+        'unauthenticated',
+        'credentials required: a Bearer token or a session',
+      );
+    if (who === 'bad')
+      throw new HttpProblem(401, 'unauthenticated', 'the token or session is not valid');
     // the cookie is sent by the browser whatever page asks: writes must come from our own origin
     if (request.headers.authorization === undefined) assertSameOrigin(request, extraOrigins);
-    if (!roles.includes(who.role)) throw new HttpProblem(403, 'forbidden', `role ${who.role} may not ${request.method} this resource`);
+    if (!roles.includes(who.role))
+      throw new HttpProblem(
+        403,
+        'forbidden',
+        `role ${who.role} may not ${request.method} this resource`,
+      );
     request.user = who;
   });
 }

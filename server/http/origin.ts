@@ -14,7 +14,10 @@ const SAFE = new Set(['GET', 'HEAD', 'OPTIONS']);
 
 /** scheme://host[:port] in lower case, without the scheme's default port (RFC 6454 serialises it so). */
 function normal(origin: string): string {
-  return origin.toLowerCase().replace(/^(http:\/\/[^/]+):80$/, '$1').replace(/^(https:\/\/[^/]+):443$/, '$1');
+  return origin
+    .toLowerCase()
+    .replace(/^(http:\/\/[^/]+):80$/, '$1')
+    .replace(/^(https:\/\/[^/]+):443$/, '$1');
 }
 
 /** This service's own origin as the browser names it (scheme, host and port of the request). */
@@ -32,8 +35,16 @@ export function assertSameOrigin(request: FastifyRequest, extra: readonly string
   if (origin !== undefined) {
     const o = normal(origin);
     if (o === ownOrigin(request) || extra.some((x) => normal(x) === o)) return;
-    throw new HttpProblem(403, 'foreign-origin', `a request signed in by the session cookie must come from the workbench's own origin, not ${origin}`);
+    throw new HttpProblem(
+      403,
+      'foreign-origin',
+      `a request signed in by the session cookie must come from the workbench's own origin, not ${origin}`,
+    );
   }
   if (request.headers['sec-fetch-site'] === 'same-origin') return;
-  throw new HttpProblem(403, 'foreign-origin', 'a request signed in by the session cookie must come from the workbench (no Origin or Sec-Fetch-Site: same-origin header)');
+  throw new HttpProblem(
+    403,
+    'foreign-origin',
+    'a request signed in by the session cookie must come from the workbench (no Origin or Sec-Fetch-Site: same-origin header)',
+  );
 }

@@ -4,13 +4,22 @@
  * Never a stack trace: unexpected errors are logged and answered with a generic 500.
  */
 import type { FastifyError, FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
-import { hasZodFastifySchemaValidationErrors, isResponseSerializationError } from 'fastify-type-provider-zod';
+import {
+  hasZodFastifySchemaValidationErrors,
+  isResponseSerializationError,
+} from 'fastify-type-provider-zod';
 import { isInputError } from '../core/errors.js';
 import { ExportsBusyError } from '../jobs/exports.js';
 import { AnalysisTimeoutError } from '../jobs/pool.js';
 import { TaskQueueFullError, TaskTimeoutError } from '../jobs/tasks.js';
 import { EngineUnavailableError } from '../jobs/worker-reply.js';
-import { ConflictError, DuplicateUploadError, ForbiddenError, isDiskFull, NotFoundError } from '../store/errors.js';
+import {
+  ConflictError,
+  DuplicateUploadError,
+  ForbiddenError,
+  isDiskFull,
+  NotFoundError,
+} from '../store/errors.js';
 
 export interface Problem {
   type: string;
@@ -59,8 +68,16 @@ export class HttpProblem extends Error {
   }
 }
 
-export function sendProblem(reply: FastifyReply, request: FastifyRequest, p: Omit<Problem, 'instance' | 'title'> & { title?: string }) {
-  const body: Problem = { ...p, title: p.title ?? TITLES[p.status] ?? 'Error', instance: request.url };
+export function sendProblem(
+  reply: FastifyReply,
+  request: FastifyRequest,
+  p: Omit<Problem, 'instance' | 'title'> & { title?: string },
+) {
+  const body: Problem = {
+    ...p,
+    title: p.title ?? TITLES[p.status] ?? 'Error',
+    instance: request.url,
+  };
   return reply.code(p.status).type('application/problem+json').send(body);
 }
 
@@ -75,11 +92,20 @@ interface FieldIssue {
  * its limit (server/core/limits.ts: the value is understood, there is just too much of it), else
  * 400 `validation` with every problem.
  */
-function fieldsProblem(issues: FieldIssue[]): Omit<Problem, 'instance' | 'title'> & { title?: string } {
+function fieldsProblem(
+  issues: FieldIssue[],
+): Omit<Problem, 'instance' | 'title'> & { title?: string } {
   const errors = issues.map(({ path, message }) => ({ path, message }));
   const detail = errors.map((e) => `${e.path}: ${e.message}`).join('; ');
   if (issues.length > 0 && issues.every((i) => i.tooLong)) {
-    return { type: typeOf('too-long'), status: 422, title: 'Input refused', detail, field: issues[0].path, errors };
+    return {
+      type: typeOf('too-long'),
+      status: 422,
+      title: 'Input refused',
+      detail,
+      field: issues[0].path,
+      errors,
+    };
   }
   return { type: typeOf('validation'), status: 400, title: 'Invalid request', detail, errors };
 }
@@ -87,15 +113,32 @@ function fieldsProblem(issues: FieldIssue[]): Omit<Problem, 'instance' | 'title'
 const isTooLongText = (code: string, origin: unknown) => code === 'too_big' && origin === 'string';
 
 /** A refusal of multipart text fields checked with zod outside Fastify's own validation. */
-export function refuseFields(issues: readonly { code: string; path: PropertyKey[]; message: string; origin?: unknown; keys?: string[] }[]): HttpProblem {
+export function refuseFields(
+  issues: readonly {
+    code: string;
+    path: PropertyKey[];
+    message: string;
+    origin?: unknown;
+    keys?: string[];
+  }[],
+): HttpProblem {
   const p = fieldsProblem(
-    issues.map((i) => ({ path: i.path.length ? i.path.map(String).join('.') : (i.keys?.join(',') ?? ''), message: i.message, tooLong: isTooLongText(i.code, i.origin) })),
+    issues.map((i) => ({
+      path: i.path.length ? i.path.map(String).join('.') : (i.keys?.join(',') ?? ''),
+      message: i.message,
+      tooLong: isTooLongText(i.code, i.origin),
+    })),
   );
-  return new HttpProblem(p.status, p.type.replace('urn:efflux:problem:', ''), p.detail ?? '', { title: p.title, errors: p.errors, field: p.field });
+  return new HttpProblem(p.status, p.type.replace('urn:efflux:problem:', ''), p.detail ?? '', {
+    title: p.title,
+    errors: p.errors,
+    field: p.field,
+  });
 }
 
 function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?: string } {
-  if (err instanceof HttpProblem) return { type: typeOf(err.slug), status: err.status, detail: err.message, ...err.extra };
+  if (err instanceof HttpProblem)
+    return { type: typeOf(err.slug), status: err.status, detail: err.message, ...err.extra };
   if (hasZodFastifySchemaValidationErrors(err)) {
     const where = (err as { validationContext?: string }).validationContext ?? 'request';
     return fieldsProblem(
@@ -118,23 +161,48 @@ function toProblem(err: unknown): Omit<Problem, 'instance' | 'title'> & { title?
     };
   }
   if (isDiskFull(err)) {
-    return { type: typeOf('disk-full'), status: 507, detail: 'The service\'s disk is full: nothing of this request was kept. Tell the administrator; retry once space is freed.' };
+    return {
+      type: typeOf('disk-full'),
+      status: 507,
+      detail:
+        "The service's disk is full: nothing of this request was kept. Tell the administrator; retry once space is freed.",
+    };
   }
-  if (err instanceof NotFoundError) return { type: typeOf('not-found'), status: 404, detail: err.message };
-  if (err instanceof DuplicateUploadError) return { type: typeOf('duplicate-upload'), status: 409, detail: err.message, existingTestId: err.existingTestId };
-  if (err instanceof ForbiddenError) return { type: typeOf('forbidden'), status: 403, detail: err.message };
-  if (err instanceof ConflictError) return { type: typeOf('conflict'), status: 409, detail: err.message };
+  if (err instanceof NotFoundError)
+    return { type: typeOf('not-found'), status: 404, detail: err.message };
+  if (err instanceof DuplicateUploadError)
+    return {
+      type: typeOf('duplicate-upload'),
+      status: 409,
+      detail: err.message,
+      existingTestId: err.existingTestId,
+    };
+  if (err instanceof ForbiddenError)
+    return { type: typeOf('forbidden'), status: 403, detail: err.message };
+  if (err instanceof ConflictError)
+    return { type: typeOf('conflict'), status: 409, detail: err.message };
   if (err instanceof EngineUnavailableError || err instanceof AnalysisTimeoutError) {
     return { type: typeOf('analysis-unavailable'), status: 503, detail: err.message };
   }
   // heavy work past its time limit, or too much of it waiting: nothing was written, ask again later
-  if (err instanceof TaskTimeoutError) return { type: typeOf('over-time-limit'), status: 503, detail: err.message };
-  if (err instanceof TaskQueueFullError || err instanceof ExportsBusyError) return { type: typeOf('busy'), status: 503, detail: err.message };
+  if (err instanceof TaskTimeoutError)
+    return { type: typeOf('over-time-limit'), status: 503, detail: err.message };
+  if (err instanceof TaskQueueFullError || err instanceof ExportsBusyError)
+    return { type: typeOf('busy'), status: 503, detail: err.message };
   const fe = err as FastifyError;
-  if (!isResponseSerializationError(err) && typeof fe.statusCode === 'number' && fe.statusCode >= 400 && fe.statusCode < 500) {
+  if (
+    !isResponseSerializationError(err) &&
+    typeof fe.statusCode === 'number' &&
+    fe.statusCode >= 400 &&
+    fe.statusCode < 500
+  ) {
     return { type: 'about:blank', status: fe.statusCode, detail: fe.message };
   }
-  return { type: 'about:blank', status: 500, detail: 'The service could not complete the request; the error was logged.' };
+  return {
+    type: 'about:blank',
+    status: 500,
+    detail: 'The service could not complete the request; the error was logged.',
+  };
 }
 
 /**
@@ -146,7 +214,10 @@ function refuseEncodedBodies(app: FastifyInstance): void {
   app.addHook('onRequest', async (request, reply) => {
     const enc = request.headers['content-encoding'];
     if (enc === undefined) return;
-    const codings = String(enc).split(',').map((s) => s.trim().toLowerCase()).filter(Boolean);
+    const codings = String(enc)
+      .split(',')
+      .map((s) => s.trim().toLowerCase())
+      .filter(Boolean);
     if (codings.every((c) => c === 'identity')) return;
     reply.header('accept-encoding', 'identity');
     await sendProblem(reply, request, {
@@ -169,6 +240,10 @@ export function installProblemHandlers(app: FastifyInstance): void {
     return sendProblem(reply, request, p);
   });
   app.setNotFoundHandler((request, reply) =>
-    sendProblem(reply, request, { type: typeOf('not-found'), status: 404, detail: `no route ${request.method} ${request.url.split('?')[0]}` }),
+    sendProblem(reply, request, {
+      type: typeOf('not-found'),
+      status: 404,
+      detail: `no route ${request.method} ${request.url.split('?')[0]}`,
+    }),
   );
 }

@@ -16,7 +16,11 @@ export function matchesIfNoneMatch(header: string | undefined, etag: string): bo
   return false;
 }
 
-export function sendReadyText(request: FastifyRequest, reply: FastifyReply, text: ReadyText): FastifyReply {
+export function sendReadyText(
+  request: FastifyRequest,
+  reply: FastifyReply,
+  text: ReadyText,
+): FastifyReply {
   const etag = `"${text.digest}"`;
   // private: answers depend on credentials; no-cache: a fit's status can change, so ask each time
   reply.header('etag', etag).header('cache-control', 'private, no-cache');

@@ -15,7 +15,12 @@ export const paging = z.object({
 });
 
 export const pageOf = <T extends z.ZodType>(item: T) =>
-  z.object({ items: z.array(item), total: z.number().int(), limit: z.number().int(), offset: z.number().int() });
+  z.object({
+    items: z.array(item),
+    total: z.number().int(),
+    limit: z.number().int(),
+    offset: z.number().int(),
+  });
 
 const json = z.record(z.string(), z.unknown());
 
@@ -77,14 +82,22 @@ export const drainTest = z
     detected: json.nullable(),
     operator: z.string().nullable(),
     loggerId: z.string().nullable(),
-    testedAt: z.string().nullable().meta({ description: "THE date of the test (UTC ISO 8601): stated, or the fitted window's first reading on the log's clock" }),
+    testedAt: z.string().nullable().meta({
+      description:
+        "THE date of the test (UTC ISO 8601): stated, or the fitted window's first reading on the log's clock",
+    }),
     testedAtSource: z.enum(['stated', 'log']).nullable(),
     notes: z.string().nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),
-    failedAttempts: z.number().int().meta({ description: 'analyses that failed for a reason other than the input (timeout, fault, full disk)' }),
+    failedAttempts: z.number().int().meta({
+      description:
+        'analyses that failed for a reason other than the input (timeout, fault, full disk)',
+    }),
     lastFailure: z.string().nullable(),
-    stuck: z.boolean().meta({ description: 'pending and failed 3 times: not retried at start; retry or withdraw it' }),
+    stuck: z.boolean().meta({
+      description: 'pending and failed 3 times: not retried at start; retry or withdraw it',
+    }),
   })
   .meta({ id: 'DrainTest' });
 
@@ -101,7 +114,14 @@ export const fit = z
     status: z.enum(['draft', 'approved', 'rejected']),
     supersededBy: z.number().int().nullable(),
     review: z
-      .object({ comment: z.string().nullable(), by: z.number().int().nullable(), at: z.string().nullable(), selfReview: z.boolean().meta({ description: 'approved by the uploader or refit requester (site allows self-review)' }) })
+      .object({
+        comment: z.string().nullable(),
+        by: z.number().int().nullable(),
+        at: z.string().nullable(),
+        selfReview: z.boolean().meta({
+          description: 'approved by the uploader or refit requester (site allows self-review)',
+        }),
+      })
       .nullable(),
     createdBy: z.number().int().nullable(),
     createdAt: z.string(),

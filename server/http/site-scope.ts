@@ -12,7 +12,11 @@ export function sitesOf(request: FastifyRequest): string[] | null {
 }
 
 export function outsideSites(site: string, sites: readonly string[]): HttpProblem {
-  return new HttpProblem(403, 'site-forbidden', `this record belongs to site "${site}"; you may act on ${sites.map((s) => `"${s}"`).join(', ')} only`);
+  return new HttpProblem(
+    403,
+    'site-forbidden',
+    `this record belongs to site "${site}"; you may act on ${sites.map((s) => `"${s}"`).join(', ')} only`,
+  );
 }
 
 /** 403 unless the person may act on `site`. */
@@ -24,7 +28,12 @@ export function assertSite(request: FastifyRequest, site: string): void {
 /** 403 for a person limited to sites (people and site management, the whole audit chain). */
 export function assertEverySite(request: FastifyRequest, what: string): void {
   const sites = sitesOf(request);
-  if (sites !== null) throw new HttpProblem(403, 'site-forbidden', `${what} is for people with no site limit; you may act on ${sites.map((s) => `"${s}"`).join(', ')} only`);
+  if (sites !== null)
+    throw new HttpProblem(
+      403,
+      'site-forbidden',
+      `${what} is for people with no site limit; you may act on ${sites.map((s) => `"${s}"`).join(', ')} only`,
+    );
 }
 
 export function installSiteScope(app: FastifyInstance, store: Store): void {
@@ -33,7 +42,8 @@ export function installSiteScope(app: FastifyInstance, store: Store): void {
     const scope = request.routeOptions.config.scope;
     const sites = sitesOf(request);
     if (sites === null || scope === undefined || scope === 'none' || scope === 'listed') return;
-    if (scope === 'every-site') return assertEverySite(request, `${request.method} ${request.routeOptions.url}`);
+    if (scope === 'every-site')
+      return assertEverySite(request, `${request.method} ${request.routeOptions.url}`);
     const id = Number((request.params as { id?: string }).id);
     if (!Number.isInteger(id) || id <= 0) return; // validation answers 400 next
     const site = store.sites.siteOf(scope, id); // 404 when there is no such record

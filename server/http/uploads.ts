@@ -40,7 +40,23 @@ export const uploadFields = z
   .partial()
   .strict();
 
-const SETTING_KEYS = ['timeColumn', 'levelColumn', 'unit', 'quantity', 'dateOrder', 'tz', 'delimiter', 'decimal', 'levelTag', 'baroTag', 'sheet', 'window', 'fitInflow', 'fitDatum', 'fitExponent'] as const;
+const SETTING_KEYS = [
+  'timeColumn',
+  'levelColumn',
+  'unit',
+  'quantity',
+  'dateOrder',
+  'tz',
+  'delimiter',
+  'decimal',
+  'levelTag',
+  'baroTag',
+  'sheet',
+  'window',
+  'fitInflow',
+  'fitDatum',
+  'fitExponent',
+] as const;
 
 export interface ParsedUpload {
   log: RawInput;
@@ -56,7 +72,11 @@ export interface ParsedUpload {
 
 /** The name as the client gave it, stripped of any folder part and control characters. */
 function cleanName(name: string | undefined, fallback: string): string {
-  const base = (name ?? '').split(/[\\/]/).pop()!.replace(/[\u0000-\u001f\u007f"]/g, '').trim();
+  const base = (name ?? '')
+    .split(/[\\/]/)
+    .pop()!
+    .replace(/[\u0000-\u001f\u007f"]/g, '')
+    .trim();
   return base.slice(0, 255) || fallback;
 }
 
@@ -64,22 +84,45 @@ function cleanName(name: string | undefined, fallback: string): string {
 function malformed(e: unknown): unknown {
   if (e instanceof HttpProblem) return e;
   const fe = e as { statusCode?: number; code?: string; message?: string };
-  if (fe.code === 'FST_REQ_FILE_TOO_LARGE' || fe.code === 'FST_PARTS_LIMIT' || fe.code === 'FST_FILES_LIMIT' || fe.code === 'FST_FIELDS_LIMIT') return e;
+  if (
+    fe.code === 'FST_REQ_FILE_TOO_LARGE' ||
+    fe.code === 'FST_PARTS_LIMIT' ||
+    fe.code === 'FST_FILES_LIMIT' ||
+    fe.code === 'FST_FIELDS_LIMIT'
+  )
+    return e;
   if (typeof fe.statusCode === 'number' && fe.statusCode >= 400 && fe.statusCode < 500) return e;
-  if (fe.code === 'ECONNRESET' || fe.code === 'ERR_STREAM_PREMATURE_CLOSE') return new HttpProblem(400, 'malformed-multipart', 'the upload was cut off before its end');
+  if (fe.code === 'ECONNRESET' || fe.code === 'ERR_STREAM_PREMATURE_CLOSE')
+    return new HttpProblem(400, 'malformed-multipart', 'the upload was cut off before its end');
   const why = (fe.message ?? String(e)).replace(/^Multipart: /, '').slice(0, 200);
-  return new HttpProblem(400, 'malformed-multipart', `the multipart body could not be read (${why}); send multipart/form-data with its boundary and closing delimiter`);
+  return new HttpProblem(
+    400,
+    'malformed-multipart',
+    `the multipart body could not be read (${why}); send multipart/form-data with its boundary and closing delimiter`,
+  );
 }
 
-async function readParts(request: FastifyRequest, files: Record<string, RawInput>, fields: Record<string, string>): Promise<void> {
+async function readParts(
+  request: FastifyRequest,
+  files: Record<string, RawInput>,
+  fields: Record<string, string>,
+): Promise<void> {
   for await (const part of request.parts()) {
     if (part.type === 'file') {
       const bytes = await part.toBuffer(); // throws 413 past the size limit
       if (part.fieldname !== 'log' && part.fieldname !== 'baro') {
-        throw new HttpProblem(400, 'validation', `unexpected file field "${part.fieldname}"`, { errors: [{ path: part.fieldname, message: 'unexpected file' }] });
+        throw new HttpProblem(400, 'validation', `unexpected file field "${part.fieldname}"`, {
+          errors: [{ path: part.fieldname, message: 'unexpected file' }],
+        });
       }
-      if (files[part.fieldname]) throw new HttpProblem(400, 'validation', `file "${part.fieldname}" sent twice`, { errors: [{ path: part.fieldname, message: 'sent twice' }] });
-      files[part.fieldname] = { bytes, fileName: cleanName(part.filename, `${part.fieldname}.csv`) };
+      if (files[part.fieldname])
+        throw new HttpProblem(400, 'validation', `file "${part.fieldname}" sent twice`, {
+          errors: [{ path: part.fieldname, message: 'sent twice' }],
+        });
+      files[part.fieldname] = {
+        bytes,
+        fileName: cleanName(part.filename, `${part.fieldname}.csv`),
+      };
     } else {
       fields[part.fieldname] = String(part.value);
     }
@@ -87,7 +130,12 @@ async function readParts(request: FastifyRequest, files: Record<string, RawInput
 }
 
 export async function readUpload(request: FastifyRequest): Promise<ParsedUpload> {
-  if (!request.isMultipart()) throw new HttpProblem(415, 'multipart-required', 'send multipart/form-data with a file field "log"');
+  if (!request.isMultipart())
+    throw new HttpProblem(
+      415,
+      'multipart-required',
+      'send multipart/form-data with a file field "log"',
+    );
   const files: Record<string, RawInput> = {};
   const fields: Record<string, string> = {};
   try {
@@ -95,12 +143,29 @@ export async function readUpload(request: FastifyRequest): Promise<ParsedUpload>
   } catch (e) {
     throw malformed(e);
   }
-  if (!files.log) throw new HttpProblem(400, 'validation', 'the file field "log" is missing', { errors: [{ path: 'log', message: 'required' }] });
-  if (files.log.bytes.byteLength === 0) throw new HttpProblem(400, 'validation', 'the log file is empty', { errors: [{ path: 'log', message: 'empty' }] });
+  if (!files.log)
+    throw new HttpProblem(400, 'validation', 'the file field "log" is missing', {
+      errors: [{ path: 'log', message: 'required' }],
+    });
+  if (files.log.bytes.byteLength === 0)
+    throw new HttpProblem(400, 'validation', 'the log file is empty', {
+      errors: [{ path: 'log', message: 'empty' }],
+    });
   const parsed = uploadFields.safeParse(fields);
   if (!parsed.success) throw refuseFields(parsed.error.issues);
   const f = parsed.data;
   const settings: AnalysisSettings = {};
-  for (const k of SETTING_KEYS) if (f[k] !== undefined) (settings as Record<string, unknown>)[k] = f[k];
-  return { log: files.log, baro: files.baro, settings, outletId: f.outletId, operator: f.operator, loggerId: f.loggerId, testedAt: f.testedAt, notes: f.notes, allowDuplicate: f.allowDuplicate };
+  for (const k of SETTING_KEYS)
+    if (f[k] !== undefined) (settings as Record<string, unknown>)[k] = f[k];
+  return {
+    log: files.log,
+    baro: files.baro,
+    settings,
+    outletId: f.outletId,
+    operator: f.operator,
+    loggerId: f.loggerId,
+    testedAt: f.testedAt,
+    notes: f.notes,
+    allowDuplicate: f.allowDuplicate,
+  };
 }

@@ -20,29 +20,57 @@ export function checkVesselFile(value: unknown, fileName?: string): Record<strin
     list = [rest.outlet];
     prefix = () => 'outlet';
   } else {
-    if (rest.outlet !== undefined) throw new InputError('give either outlet or outlets, not both', { file: fileName, field: 'outlets' });
-    if (!Array.isArray(outlets) || outlets.length === 0) throw new InputError('outlets is a non-empty list', { file: fileName, field: 'outlets' });
+    if (rest.outlet !== undefined)
+      throw new InputError('give either outlet or outlets, not both', {
+        file: fileName,
+        field: 'outlets',
+      });
+    if (!Array.isArray(outlets) || outlets.length === 0)
+      throw new InputError('outlets is a non-empty list', { file: fileName, field: 'outlets' });
     list = outlets;
     prefix = (i) => `outlets[${i}]`;
   }
   const ids = new Set<string>();
   list.forEach((o, i) => {
     const { actionThreshold, ...plain } = (o ?? {}) as Record<string, unknown>;
-    if (actionThreshold !== undefined && !(typeof actionThreshold === 'number' && actionThreshold > 0 && actionThreshold < 2 && actionThreshold !== 1)) {
-      throw new InputError('actionThreshold is the baseline effective area times a factor: below 1 for fouling (e.g. 0.9), above 1 for erosion (e.g. 1.1); 0 < x < 2, not 1', { file: fileName, field: `${prefix(i)}.actionThreshold` });
+    if (
+      actionThreshold !== undefined &&
+      !(
+        typeof actionThreshold === 'number' &&
+        actionThreshold > 0 &&
+        actionThreshold < 2 &&
+        actionThreshold !== 1
+      )
+    ) {
+      throw new InputError(
+        'actionThreshold is the baseline effective area times a factor: below 1 for fouling (e.g. 0.9), above 1 for erosion (e.g. 1.1); 0 < x < 2, not 1',
+        { file: fileName, field: `${prefix(i)}.actionThreshold` },
+      );
     }
     try {
       validateVessel({ ...rest, outlet: o === undefined ? undefined : plain }, fileName);
     } catch (e) {
       if (e instanceof InputError && e.field?.startsWith('outlet')) {
-        throw new InputError(e.message, { file: e.file, line: e.line, field: e.field.replace(/^outlet/, prefix(i)) });
+        throw new InputError(e.message, {
+          file: e.file,
+          line: e.line,
+          field: e.field.replace(/^outlet/, prefix(i)),
+        });
       }
       throw e;
     }
     if (list.length > 1) {
       const id = plain.id;
-      if (typeof id !== 'string') throw new InputError('each of several outlets needs an id', { file: fileName, field: `${prefix(i)}.id` });
-      if (ids.has(id)) throw new InputError(`outlet id "${id}" is used twice`, { file: fileName, field: `${prefix(i)}.id` });
+      if (typeof id !== 'string')
+        throw new InputError('each of several outlets needs an id', {
+          file: fileName,
+          field: `${prefix(i)}.id`,
+        });
+      if (ids.has(id))
+        throw new InputError(`outlet id "${id}" is used twice`, {
+          file: fileName,
+          field: `${prefix(i)}.id`,
+        });
       ids.add(id);
     }
   });

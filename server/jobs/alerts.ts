@@ -47,14 +47,18 @@ export interface Notifier {
 export function parseWebhookList(text: string | undefined): string[] {
   if (!text) return [];
   const out: string[] = [];
-  for (const part of text.split(',').map((s) => s.trim()).filter(Boolean)) {
+  for (const part of text
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean)) {
     let u: URL;
     try {
       u = new URL(part);
     } catch {
       throw new Error(`EFFLUX_WEBHOOKS: "${part}" is not a URL`);
     }
-    if (u.protocol !== 'http:' && u.protocol !== 'https:') throw new Error(`EFFLUX_WEBHOOKS: "${part}" is not an http(s) URL`);
+    if (u.protocol !== 'http:' && u.protocol !== 'https:')
+      throw new Error(`EFFLUX_WEBHOOKS: "${part}" is not an http(s) URL`);
     out.push(u.toString());
   }
   return out;
@@ -62,7 +66,12 @@ export function parseWebhookList(text: string | undefined): string[] {
 
 const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms).unref());
 
-export const NO_NOTIFIER: Notifier = { notify: () => {}, idle: async () => {}, close: async () => {}, urls: [] };
+export const NO_NOTIFIER: Notifier = {
+  notify: () => {},
+  idle: async () => {},
+  close: async () => {},
+  urls: [],
+};
 
 export function createNotifier(o: NotifierOptions): Notifier {
   if (o.urls.length === 0) return NO_NOTIFIER;
@@ -85,12 +94,19 @@ export function createNotifier(o: NotifierOptions): Notifier {
       controllers.add(ac);
       const timer = setTimeout(() => ac.abort(), timeoutMs);
       try {
-        const res = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json' }, body, signal: ac.signal });
+        const res = await fetch(url, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json' },
+          body,
+          signal: ac.signal,
+        });
         await res.arrayBuffer().catch(() => undefined); // let the connection be reused
         if (res.ok) return;
         log(`webhook ${url}: notice ${id} answered ${res.status} (try ${k + 1} of ${attempts})`);
       } catch (e) {
-        log(`webhook ${url}: notice ${id} failed: ${(e as Error).name === 'AbortError' ? `no answer within ${timeoutMs} ms` : (e as Error).message} (try ${k + 1} of ${attempts})`);
+        log(
+          `webhook ${url}: notice ${id} failed: ${(e as Error).name === 'AbortError' ? `no answer within ${timeoutMs} ms` : (e as Error).message} (try ${k + 1} of ${attempts})`,
+        );
       } finally {
         clearTimeout(timer);
         controllers.delete(ac);

@@ -34,14 +34,18 @@ function loadEngine(): Promise<(req: AnalysisRequest) => Promise<AnalysisOutcome
     : import(url);
   return load.then(
     (m: { analyzeDrainTest?: Analyze; expandWorkbook?: Expand }) => {
-      if (typeof m.analyzeDrainTest !== 'function') throw new EngineUnavailableError('the analysis engine exports no analyzeDrainTest');
+      if (typeof m.analyzeDrainTest !== 'function')
+        throw new EngineUnavailableError('the analysis engine exports no analyzeDrainTest');
       const analyze = m.analyzeDrainTest;
       // a workbook (.xlsx) is expanded to its sheet's text first (an engine without it reads text only)
       const expand = m.expandWorkbook;
-      return expand ? async (req: AnalysisRequest) => analyze(await expand(req)) : async (req: AnalysisRequest) => analyze(req);
+      return expand
+        ? async (req: AnalysisRequest) => analyze(await expand(req))
+        : async (req: AnalysisRequest) => analyze(req);
     },
     (e: { code?: string }) => {
-      if (e?.code === 'ERR_MODULE_NOT_FOUND') throw new EngineUnavailableError('the analysis engine is not built yet');
+      if (e?.code === 'ERR_MODULE_NOT_FOUND')
+        throw new EngineUnavailableError('the analysis engine is not built yet');
       throw e;
     },
   );

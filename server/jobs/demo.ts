@@ -28,7 +28,14 @@ export interface DemoManifest {
     notes?: string;
     review?: { decision: 'approve' | 'reject'; comment?: string };
   }[];
-  events?: { vessel: string; site?: string; outlet?: string; kind: 'cleaned' | 'replaced' | 'modified'; occurredAt: string; notes?: string }[];
+  events?: {
+    vessel: string;
+    site?: string;
+    outlet?: string;
+    kind: 'cleaned' | 'replaced' | 'modified';
+    occurredAt: string;
+    notes?: string;
+  }[];
 }
 
 export const DEMO_ACTOR: Actor = { id: null, name: 'demo-loader' };
@@ -42,8 +49,19 @@ export interface DemoReport {
   skipped: string[];
 }
 
-export async function loadDemo(store: Store, analyze: AnalyzeRunner, manifestPath: string): Promise<DemoReport> {
-  const report: DemoReport = { loaded: false, note: '', vessels: 0, tests: 0, events: 0, skipped: [] };
+export async function loadDemo(
+  store: Store,
+  analyze: AnalyzeRunner,
+  manifestPath: string,
+): Promise<DemoReport> {
+  const report: DemoReport = {
+    loaded: false,
+    note: '',
+    vessels: 0,
+    tests: 0,
+    events: 0,
+    skipped: [],
+  };
   if (!existsSync(manifestPath)) {
     report.note = `no demo scenario (${manifestPath} not found); starting empty`;
     return report;
@@ -57,7 +75,8 @@ export async function loadDemo(store: Store, analyze: AnalyzeRunner, manifestPat
   const skip = (what: string, e: unknown) => {
     report.skipped.push(`${what}: ${isInputError(e) ? e.toLine() : (e as Error).message}`);
   };
-  const vesselId = (site: string | undefined, name: string) => store.vessels.findId(site ?? 'main', name);
+  const vesselId = (site: string | undefined, name: string) =>
+    store.vessels.findId(site ?? 'main', name);
   for (const v of manifest.vessels ?? []) {
     try {
       const spec = checkVesselFile(JSON.parse(readFileSync(join(dir, v.file), 'utf8')), v.file);
@@ -74,7 +93,10 @@ export async function loadDemo(store: Store, analyze: AnalyzeRunner, manifestPat
       const vessel = store.vessels.get(id);
       const outlet = t.outlet ? vessel.outlets.find((o) => o.key === t.outlet) : undefined;
       if (t.outlet && !outlet) throw new Error(`vessel "${t.vessel}" has no outlet "${t.outlet}"`);
-      const read = (p: string) => ({ bytes: readFileSync(join(dir, p)), fileName: p.split('/').pop()! });
+      const read = (p: string) => ({
+        bytes: readFileSync(join(dir, p)),
+        fileName: p.split('/').pop()!,
+      });
       const { fit } = await uploadDrainTest(store, analyze, DEMO_ACTOR, {
         vesselId: id,
         outletId: outlet?.id,
@@ -86,7 +108,13 @@ export async function loadDemo(store: Store, analyze: AnalyzeRunner, manifestPat
         testedAt: t.testedAt,
         notes: t.notes,
       });
-      if (t.review) store.fits.review(DEMO_ACTOR, fit.id, t.review.decision === 'approve' ? 'approved' : 'rejected', t.review.comment ?? null);
+      if (t.review)
+        store.fits.review(
+          DEMO_ACTOR,
+          fit.id,
+          t.review.decision === 'approve' ? 'approved' : 'rejected',
+          t.review.comment ?? null,
+        );
       report.tests++;
     } catch (e) {
       skip(t.log, e);
@@ -96,8 +124,16 @@ export async function loadDemo(store: Store, analyze: AnalyzeRunner, manifestPat
     try {
       const id = vesselId(ev.site, ev.vessel);
       if (id === null) throw new Error(`vessel "${ev.vessel}" is not in the manifest`);
-      const outlet = ev.outlet ? store.vessels.get(id).outlets.find((o) => o.key === ev.outlet) : undefined;
-      store.events.create(DEMO_ACTOR, { vesselId: id, outletId: outlet?.id ?? null, kind: ev.kind, occurredAt: ev.occurredAt, notes: ev.notes });
+      const outlet = ev.outlet
+        ? store.vessels.get(id).outlets.find((o) => o.key === ev.outlet)
+        : undefined;
+      store.events.create(DEMO_ACTOR, {
+        vesselId: id,
+        outletId: outlet?.id ?? null,
+        kind: ev.kind,
+        occurredAt: ev.occurredAt,
+        notes: ev.notes,
+      });
       report.events++;
     } catch (e) {
       skip(`event ${ev.vessel} ${ev.occurredAt}`, e);

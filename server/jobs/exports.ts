@@ -71,7 +71,8 @@ export class ExportJobs {
   /** Checks the selection (InputError → 422 at once), then starts the job. */
   start(ownerId: number, selection: ExportSelection): ExportJobView {
     this.prune();
-    if ([...this.jobs.values()].filter((j) => j.state === 'running').length >= RUNNING_MAX) throw new ExportsBusyError();
+    if ([...this.jobs.values()].filter((j) => j.state === 'running').length >= RUNNING_MAX)
+      throw new ExportsBusyError();
     const chosen = selectFits(this.o.store, selection);
     const total = chosen.length;
     if (total === 0) throw new InputError('no approved fits match the selection');
@@ -101,7 +102,8 @@ export class ExportJobs {
     try {
       const r = await periodExport(this.o.store, job.selection, this.o.software(), {
         renderPdf: (report) => this.o.tasks('fit-report-pdf', report, { signal }),
-        assemble: (a) => this.o.tasks('zip', a, { signal, transfer: a.entries.map((e) => e.bytes) }),
+        assemble: (a) =>
+          this.o.tasks('zip', a, { signal, transfer: a.entries.map((e) => e.bytes) }),
         onProgress: (done, total) => {
           job.done = done;
           job.total = total;
@@ -119,7 +121,8 @@ export class ExportJobs {
         : e instanceof TaskTimeoutError || (e as Error)?.name === 'InputError'
           ? (e as Error).message
           : 'the export could not be made; the error was logged';
-      if (!(e instanceof TaskTimeoutError) && (e as Error)?.name !== 'InputError') this.o.log?.({ err: serialiseError(e), job: job.id }, 'export failed');
+      if (!(e instanceof TaskTimeoutError) && (e as Error)?.name !== 'InputError')
+        this.o.log?.({ err: serialiseError(e), job: job.id }, 'export failed');
     } finally {
       job.finishedMs = this.now();
       job.finishedAt = new Date(job.finishedMs).toISOString();
@@ -141,12 +144,15 @@ export class ExportJobs {
 
   /** Stops every running job (the service is closing). */
   close(): void {
-    for (const j of this.jobs.values()) if (j.state === 'running') j.abort.abort(new Error('the service is stopping'));
+    for (const j of this.jobs.values())
+      if (j.state === 'running') j.abort.abort(new Error('the service is stopping'));
   }
 
   private prune(): void {
     const now = this.now();
-    const finished = [...this.jobs.values()].filter((j) => j.finishedMs !== null).sort((a, b) => a.finishedMs! - b.finishedMs!);
+    const finished = [...this.jobs.values()]
+      .filter((j) => j.finishedMs !== null)
+      .sort((a, b) => a.finishedMs! - b.finishedMs!);
     for (const [i, j] of finished.entries()) {
       if (now - j.finishedMs! > KEEP_MS || finished.length - i > KEEP_MAX) this.jobs.delete(j.id);
     }
@@ -154,5 +160,15 @@ export class ExportJobs {
 }
 
 function view(j: Job): ExportJobView {
-  return { id: j.id, state: j.state, done: j.done, total: j.total, selection: j.selection, createdAt: j.createdAt, finishedAt: j.finishedAt, bytes: j.bytes, error: j.error };
+  return {
+    id: j.id,
+    state: j.state,
+    done: j.done,
+    total: j.total,
+    selection: j.selection,
+    createdAt: j.createdAt,
+    finishedAt: j.finishedAt,
+    bytes: j.bytes,
+    error: j.error,
+  };
 }

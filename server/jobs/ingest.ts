@@ -31,11 +31,17 @@ export function chooseOutlet(vessel: Vessel, outletId: number | null | undefined
   const active = vessel.outlets.filter((o) => o.retiredAt === null);
   if (outletId !== undefined && outletId !== null) {
     const o = active.find((x) => x.id === outletId);
-    if (!o) throw new InputError(`vessel ${vessel.id} has no active outlet ${outletId}`, { field: 'outletId' });
+    if (!o)
+      throw new InputError(`vessel ${vessel.id} has no active outlet ${outletId}`, {
+        field: 'outletId',
+      });
     return o;
   }
   if (active.length > 1) {
-    throw new InputError(`vessel ${vessel.id} has ${active.length} outlets; say which one was tested`, { field: 'outletId' });
+    throw new InputError(
+      `vessel ${vessel.id} has ${active.length} outlets; say which one was tested`,
+      { field: 'outletId' },
+    );
   }
   return active[0] ?? null;
 }
@@ -85,7 +91,9 @@ export async function uploadDrainTest(
     if (prior) return replay(store, prior, input);
   }
   const outlet = chooseOutlet(vessel, input.outletId);
-  const testedAt = input.testedAt ? checkStatedTestDate(input.testedAt, input.nowMs ?? Date.now()) : null;
+  const testedAt = input.testedAt
+    ? checkStatedTestDate(input.testedAt, input.nowMs ?? Date.now())
+    : null;
   const t0 = performance.now();
   const test = store.tests.createPending(actor, {
     vesselId: vessel.id,
@@ -103,10 +111,21 @@ export async function uploadDrainTest(
   timing.storeRawMs = performance.now() - t0;
   let fit: StoredFit;
   try {
-    fit = await analyseStored(store, analyze, actor, test, vessel, outlet, { log: input.log, baro: input.baro }, timing, { compensateDiskFull: true });
+    fit = await analyseStored(
+      store,
+      analyze,
+      actor,
+      test,
+      vessel,
+      outlet,
+      { log: input.log, baro: input.baro },
+      timing,
+      { compensateDiskFull: true },
+    );
   } catch (e) {
     // the bytes are kept and the test waits: say which one, so the caller can retry or withdraw it
-    if (!isInputError(e) && !isDiskFull(e) && e instanceof Error) e.message += ` (test ${test.id} is kept pending: retry or withdraw it)`;
+    if (!isInputError(e) && !isDiskFull(e) && e instanceof Error)
+      e.message += ` (test ${test.id} is kept pending: retry or withdraw it)`;
     throw e;
   }
   const t1 = performance.now();
@@ -117,13 +136,23 @@ export async function uploadDrainTest(
 }
 
 /** A retry with a key already used: the first upload's test and first fit, nothing stored. */
-function replay(store: Store, prior: { testId: number; sha256: string }, input: UploadInput): { test: DrainTest; fit: StoredFit; replayed: true } {
+function replay(
+  store: Store,
+  prior: { testId: number; sha256: string },
+  input: UploadInput,
+): { test: DrainTest; fit: StoredFit; replayed: true } {
   if (prior.sha256 !== sha256Hex(input.log.bytes)) {
-    throw new InputError(`this Idempotency-Key was used for test ${prior.testId} with another log file; use a new key for a new upload`, { field: 'Idempotency-Key' });
+    throw new InputError(
+      `this Idempotency-Key was used for test ${prior.testId} with another log file; use a new key for a new upload`,
+      { field: 'Idempotency-Key' },
+    );
   }
   const test = store.tests.get(prior.testId);
   const first = store.fits.listByTest(test.id)[0];
-  if (!first) throw new ConflictError(`the upload with this Idempotency-Key (test ${test.id}) is still being analysed; retry shortly`);
+  if (!first)
+    throw new ConflictError(
+      `the upload with this Idempotency-Key (test ${test.id}) is still being analysed; retry shortly`,
+    );
   return { test, fit: first, replayed: true };
 }
 
@@ -145,7 +174,9 @@ async function analyseStored(
   busy.add(test.id);
   try {
     const logBytes = received?.log.bytes ?? store.tests.rawBytes(test.sha256);
-    const baroBytes = test.baro ? (received?.baro?.bytes ?? store.tests.rawBytes(test.baro.sha256)) : undefined;
+    const baroBytes = test.baro
+      ? (received?.baro?.bytes ?? store.tests.rawBytes(test.baro.sha256))
+      : undefined;
     const outcome = await analyze(
       {
         log: { bytes: logBytes, fileName: test.fileName },
@@ -163,7 +194,11 @@ async function analyseStored(
       actor,
       test.id,
       outcome.detected,
-      { settings: settings as Record<string, unknown>, vessel: vesselSpec, result: outcome.fit as Record<string, unknown> },
+      {
+        settings: settings as Record<string, unknown>,
+        vessel: vesselSpec,
+        result: outcome.fit as Record<string, unknown>,
+      },
       logDate,
     );
     timing.storeFitMs = performance.now() - t0;
@@ -192,7 +227,8 @@ function analysing(store: Store): Set<number> {
  * client was not told of. If even that fails, the test stays pending and marked, for a retry.
  */
 function keepNothing(store: Store, actor: Actor, testId: number, cause: unknown): void {
-  const withdraw = () => store.tests.withdraw(actor, testId, 'not kept: the disk was full when its fit was stored');
+  const withdraw = () =>
+    store.tests.withdraw(actor, testId, 'not kept: the disk was full when its fit was stored');
   try {
     if (store.reserve) store.reserve.spend(withdraw);
     else withdraw();
@@ -229,12 +265,15 @@ export async function refit(
   const old = store.fits.get(fitId);
   const test = store.tests.get(old.testId);
   const vessel = store.vessels.get(test.vesselId);
-  const outlet = test.outletId === null ? null : (vessel.outlets.find((o) => o.id === test.outletId) ?? null);
+  const outlet =
+    test.outletId === null ? null : (vessel.outlets.find((o) => o.id === test.outletId) ?? null);
   const settings = { ...(old.settings as AnalysisSettings), ...changes };
   const vesselSpec = vesselForAnalysis(vessel, outlet);
   const outcome = await analyze({
     log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
-    baro: test.baro ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName } : undefined,
+    baro: test.baro
+      ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName }
+      : undefined,
     vessel: vesselSpec,
     settings,
   });
@@ -258,7 +297,11 @@ export interface ResumeReport {
  * time; a test that fails is noted (its failure count rises) and the next one goes on. Tests that
  * have failed MAX_ANALYSIS_ATTEMPTS times are skipped: a person retries or withdraws them.
  */
-export async function resumePending(store: Store, analyze: AnalyzeRunner, actor: Actor): Promise<ResumeReport> {
+export async function resumePending(
+  store: Store,
+  analyze: AnalyzeRunner,
+  actor: Actor,
+): Promise<ResumeReport> {
   const report: ResumeReport = { done: 0, refused: 0, failed: [], stuck: 0 };
   for (const t of store.tests.pending()) {
     if (t.stuck) {
@@ -268,7 +311,8 @@ export async function resumePending(store: Store, analyze: AnalyzeRunner, actor:
     if (analysing(store).has(t.id)) continue;
     try {
       const vessel = store.vessels.get(t.vesselId);
-      const outlet = t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
+      const outlet =
+        t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
       await analyseStored(store, analyze, actor, store.tests.get(t.id), vessel, outlet);
       report.done++;
     } catch (e) {
@@ -281,20 +325,30 @@ export async function resumePending(store: Store, analyze: AnalyzeRunner, actor:
 }
 
 /** A person asks for a pending test to be analysed again (after a timeout, a fault or a full disk). */
-export async function retryPending(store: Store, analyze: AnalyzeRunner, actor: Actor, testId: number): Promise<StoredFit> {
+export async function retryPending(
+  store: Store,
+  analyze: AnalyzeRunner,
+  actor: Actor,
+  testId: number,
+): Promise<StoredFit> {
   const t = store.tests.get(testId);
-  if (t.status !== 'pending') throw new ConflictError(`test ${testId} is analysed already; refit its fit instead`);
-  if (analysing(store).has(testId)) throw new ConflictError(`test ${testId} is being analysed already`);
+  if (t.status !== 'pending')
+    throw new ConflictError(`test ${testId} is analysed already; refit its fit instead`);
+  if (analysing(store).has(testId))
+    throw new ConflictError(`test ${testId} is being analysed already`);
   store.tests.noteRetry(actor, testId);
   const vessel = store.vessels.get(t.vesselId);
-  const outlet = t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
+  const outlet =
+    t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
   return analyseStored(store, analyze, actor, store.tests.get(testId), vessel, outlet);
 }
 
 /** A person takes back a pending test (its bytes go unless another test shares them); the audit log keeps the reason. */
 export function withdrawPending(store: Store, actor: Actor, testId: number, reason: string): void {
   const t = store.tests.get(testId);
-  if (t.status !== 'pending') throw new ConflictError(`test ${testId} is analysed: analysed tests stay in the history`);
-  if (analysing(store).has(testId)) throw new ConflictError(`test ${testId} is being analysed now; withdraw it when that ends`);
+  if (t.status !== 'pending')
+    throw new ConflictError(`test ${testId} is analysed: analysed tests stay in the history`);
+  if (analysing(store).has(testId))
+    throw new ConflictError(`test ${testId} is being analysed now; withdraw it when that ends`);
   store.tests.withdraw(actor, testId, reason);
 }

@@ -42,8 +42,18 @@ export interface LiveFit {
   converged: boolean | null;
   openingS: number | null;
   window: { startS: number; endS: number; samples: number } | null;
-  cd: { value: number; standardUncertainty: number; expandedUncertainty: number; relativeStandardUncertainty: number } | null;
-  effectiveArea: { value: number; standardUncertainty: number; expandedUncertainty: number; relativeStandardUncertainty: number } | null;
+  cd: {
+    value: number;
+    standardUncertainty: number;
+    expandedUncertainty: number;
+    relativeStandardUncertainty: number;
+  } | null;
+  effectiveArea: {
+    value: number;
+    standardUncertainty: number;
+    expandedUncertainty: number;
+    relativeStandardUncertainty: number;
+  } | null;
   /** u_r of the target's quantity. */
   targetRelative: number | null;
   enough: boolean;
@@ -66,7 +76,13 @@ export interface LiveState {
   fitId: number | null;
   latest: LiveFit | null;
   /** After each refit: the target's quantity (Cd or Cd·a) with its expanded uncertainty U and u_r. */
-  history: { elapsedS: number; rows: number; value: number | null; expandedUncertainty: number | null; relative: number | null }[];
+  history: {
+    elapsedS: number;
+    rows: number;
+    value: number | null;
+    expandedUncertainty: number | null;
+    relative: number | null;
+  }[];
   enoughSince: string | null;
 }
 
@@ -82,7 +98,12 @@ export interface LiveOpen {
 }
 
 export type LiveEvent =
-  | { type: 'rows'; receivedBytes: number; rows: number; readings: { fromIndex: number; timeS: number[]; levelM: number[] } | null }
+  | {
+      type: 'rows';
+      receivedBytes: number;
+      rows: number;
+      readings: { fromIndex: number; timeS: number[]; levelM: number[] } | null;
+    }
   | { type: 'fit'; fit: LiveFit }
   | { type: 'closed'; testId: number; fitId: number }
   | { type: 'abandoned' };
@@ -129,7 +150,12 @@ export class LiveTests {
     for (const row of opts.store.live.listOpen()) {
       const req = row.request as Omit<LiveOpen, 'vesselId' | 'fileName'>;
       const bytes = opts.store.live.bytes(row.id);
-      const s = this.session_(row.id, row.openedBy, { ...req, vesselId: row.vesselId, outletId: row.outletId, fileName: row.fileName }, row.openedAt);
+      const s = this.session_(
+        row.id,
+        row.openedBy,
+        { ...req, vesselId: row.vesselId, outletId: row.outletId, fileName: row.fileName },
+        row.openedAt,
+      );
       if (bytes.length) s.chunks.push(bytes);
       s.state.receivedBytes = bytes.length;
       for (const b of bytes) if (b === 0x0a) s.state.rows++;
@@ -156,8 +182,20 @@ export class LiveTests {
       enoughSince: null,
     };
     const s: Session = {
-      state, input, actor, chunks: [], openedMs: this.now(), listeners: new Set(),
-      refitting: false, refitTimer: null, lastRefitMs: 0, fittedRows: 0, readTimer: null, lastReadMs: 0, lastReadCostMs: 0, sentReadings: 0,
+      state,
+      input,
+      actor,
+      chunks: [],
+      openedMs: this.now(),
+      listeners: new Set(),
+      refitting: false,
+      refitTimer: null,
+      lastRefitMs: 0,
+      fittedRows: 0,
+      readTimer: null,
+      lastReadMs: 0,
+      lastReadCostMs: 0,
+      sentReadings: 0,
     };
     this.sessions.set(id, s);
     return s;
@@ -168,8 +206,20 @@ export class LiveTests {
     const outlet = chooseOutlet(vessel, input.outletId);
     const id = randomUUID();
     const { vesselId: _v, fileName, outletId: _o, ...request } = input;
-    const row = this.opts.store.live.open({ id, vesselId: vessel.id, outletId: outlet?.id ?? null, fileName, request: request as Record<string, unknown>, openedBy: actor });
-    return this.session_(id, actor, { ...input, vesselId: vessel.id, outletId: outlet?.id ?? null }, row.openedAt).state;
+    const row = this.opts.store.live.open({
+      id,
+      vesselId: vessel.id,
+      outletId: outlet?.id ?? null,
+      fileName,
+      request: request as Record<string, unknown>,
+      openedBy: actor,
+    });
+    return this.session_(
+      id,
+      actor,
+      { ...input, vesselId: vessel.id, outletId: outlet?.id ?? null },
+      row.openedAt,
+    ).state;
   }
 
   get(id: string): LiveState {
@@ -179,15 +229,32 @@ export class LiveTests {
     const row = this.opts.store.live.get(id);
     if (!row) return this.session(id).state; // 404
     return {
-      id, vesselId: row.vesselId, outletId: row.outletId, fileName: row.fileName, openedAt: row.openedAt, openedBy: row.openedBy.name,
-      target: (row.request as { target: LiveTarget }).target, receivedBytes: row.receivedBytes, rows: 0, status: row.status,
-      testId: row.testId, fitId: null, latest: null, history: [], enoughSince: null,
+      id,
+      vesselId: row.vesselId,
+      outletId: row.outletId,
+      fileName: row.fileName,
+      openedAt: row.openedAt,
+      openedBy: row.openedBy.name,
+      target: (row.request as { target: LiveTarget }).target,
+      receivedBytes: row.receivedBytes,
+      rows: 0,
+      status: row.status,
+      testId: row.testId,
+      fitId: null,
+      latest: null,
+      history: [],
+      enoughSince: null,
     };
   }
 
   private session(id: string): Session {
     const s = this.sessions.get(id);
-    if (!s) throw new LiveProblem(404, 'not-found', `no live test "${id}" (it may have ended with a service restart: open a new one and send the file from the start)`);
+    if (!s)
+      throw new LiveProblem(
+        404,
+        'not-found',
+        `no live test "${id}" (it may have ended with a service restart: open a new one and send the file from the start)`,
+      );
     return s;
   }
 
@@ -202,16 +269,38 @@ export class LiveTests {
    */
   append(id: string, offset: number | undefined, body: Buffer): LiveState {
     const s = this.session(id);
-    if (s.state.status !== 'open') throw new LiveProblem(409, 'live-closed', `live test ${id} is ${s.state.status}`);
+    if (s.state.status !== 'open')
+      throw new LiveProblem(409, 'live-closed', `live test ${id} is ${s.state.status}`);
     const held = s.state.receivedBytes;
     const from = offset ?? held;
-    if (from > held) throw new LiveProblem(409, 'live-gap', `the service holds ${held} bytes of this test; send from byte ${held}`, { receivedBytes: held });
+    if (from > held)
+      throw new LiveProblem(
+        409,
+        'live-gap',
+        `the service holds ${held} bytes of this test; send from byte ${held}`,
+        { receivedBytes: held },
+      );
     const overlap = Math.min(held - from, body.length);
-    if (overlap > 0 && !this.bytes(s).subarray(from, from + overlap).equals(body.subarray(0, overlap))) {
-      throw new LiveProblem(409, 'live-mismatch', `bytes ${from}–${from + overlap} differ from those already received: the file changed behind the sender`, { receivedBytes: held });
+    if (
+      overlap > 0 &&
+      !this.bytes(s)
+        .subarray(from, from + overlap)
+        .equals(body.subarray(0, overlap))
+    ) {
+      throw new LiveProblem(
+        409,
+        'live-mismatch',
+        `bytes ${from}–${from + overlap} differ from those already received: the file changed behind the sender`,
+        { receivedBytes: held },
+      );
     }
     const fresh = body.subarray(overlap);
-    if (held + fresh.length > this.opts.limitBytes) throw new LiveProblem(413, 'too-large', `a live test may hold at most ${this.opts.limitBytes} bytes`);
+    if (held + fresh.length > this.opts.limitBytes)
+      throw new LiveProblem(
+        413,
+        'too-large',
+        `a live test may hold at most ${this.opts.limitBytes} bytes`,
+      );
     if (fresh.length > 0) {
       // committed before it is acknowledged
       s.state.receivedBytes = this.opts.store.live.append(id, held, fresh);
@@ -245,8 +334,15 @@ export class LiveTests {
     if (s.state.receivedBytes === 0) return null;
     try {
       const vessel = this.opts.store.vessels.get(s.state.vesselId);
-      const outlet = s.state.outletId === null ? null : vessel.outlets.find((o) => o.id === s.state.outletId) ?? null;
-      const { series } = readTestSeries({ vessel: vesselForAnalysis(vessel, outlet), log: { bytes: new Uint8Array(this.bytes(s)), fileName: s.state.fileName }, settings: s.input.settings ?? {} });
+      const outlet =
+        s.state.outletId === null
+          ? null
+          : (vessel.outlets.find((o) => o.id === s.state.outletId) ?? null);
+      const { series } = readTestSeries({
+        vessel: vesselForAnalysis(vessel, outlet),
+        log: { bytes: new Uint8Array(this.bytes(s)), fileName: s.state.fileName },
+        settings: s.input.settings ?? {},
+      });
       return { timeS: Array.from(series.timeS), levelM: Array.from(series.levelM) };
     } catch {
       return null; // a header alone, or a half-written first row: nothing to draw yet
@@ -256,7 +352,10 @@ export class LiveTests {
   private scheduleRead(s: Session): void {
     if (s.readTimer || s.listeners.size === 0) return;
     // the read runs on the event loop: a long log is read less often (at most ~5 % of the time)
-    const wait = Math.max(0, s.lastReadMs + Math.max(this.readMs, 20 * s.lastReadCostMs) - this.now());
+    const wait = Math.max(
+      0,
+      s.lastReadMs + Math.max(this.readMs, 20 * s.lastReadCostMs) - this.now(),
+    );
     s.readTimer = setTimeout(() => {
       s.readTimer = null;
       const t0 = performance.now();
@@ -264,9 +363,16 @@ export class LiveTests {
       s.lastReadCostMs = performance.now() - t0;
       s.lastReadMs = this.now();
       const from = all ? Math.min(s.sentReadings, all.timeS.length) : 0;
-      const readings = all ? { fromIndex: from, timeS: all.timeS.slice(from), levelM: all.levelM.slice(from) } : null;
+      const readings = all
+        ? { fromIndex: from, timeS: all.timeS.slice(from), levelM: all.levelM.slice(from) }
+        : null;
       if (all) s.sentReadings = all.timeS.length;
-      this.emit(s, { type: 'rows', receivedBytes: s.state.receivedBytes, rows: s.state.rows, readings });
+      this.emit(s, {
+        type: 'rows',
+        receivedBytes: s.state.receivedBytes,
+        rows: s.state.rows,
+        readings,
+      });
     }, wait);
   }
 
@@ -285,15 +391,28 @@ export class LiveTests {
     s.lastRefitMs = this.now();
     const rows = s.state.rows;
     const vessel = this.opts.store.vessels.get(s.state.vesselId);
-    const outlet = s.state.outletId === null ? null : vessel.outlets.find((o) => o.id === s.state.outletId) ?? null;
+    const outlet =
+      s.state.outletId === null
+        ? null
+        : (vessel.outlets.find((o) => o.id === s.state.outletId) ?? null);
     const elapsedS = (this.now() - s.openedMs) / 1000;
     let fit: LiveFit;
     try {
       // a copy: the pool moves the bytes it is given to its thread
-      const outcome = await this.opts.analyze({ vessel: vesselForAnalysis(vessel, outlet), log: { bytes: new Uint8Array(this.bytes(s)), fileName: s.state.fileName }, settings: s.input.settings ?? {} });
+      const outcome = await this.opts.analyze({
+        vessel: vesselForAnalysis(vessel, outlet),
+        log: { bytes: new Uint8Array(this.bytes(s)), fileName: s.state.fileName },
+        settings: s.input.settings ?? {},
+      });
       fit = summarise(outcome.fit, s.state.target, rows, elapsedS);
     } catch (e) {
-      fit = waiting(isInputError(e) ? e.message : 'the fit could not be run just now; it is tried again with the next rows', rows, elapsedS);
+      fit = waiting(
+        isInputError(e)
+          ? e.message
+          : 'the fit could not be run just now; it is tried again with the next rows',
+        rows,
+        elapsedS,
+      );
     } finally {
       s.refitting = false;
       s.fittedRows = rows;
@@ -302,7 +421,13 @@ export class LiveTests {
     fit.at = new Date(this.now()).toISOString();
     s.state.latest = fit;
     const q = s.state.target.quantity === 'discharge-coefficient' ? fit.cd : fit.effectiveArea;
-    s.state.history.push({ elapsedS, rows, value: q?.value ?? null, expandedUncertainty: q?.expandedUncertainty ?? null, relative: q?.relativeStandardUncertainty ?? null });
+    s.state.history.push({
+      elapsedS,
+      rows,
+      value: q?.value ?? null,
+      expandedUncertainty: q?.expandedUncertainty ?? null,
+      relative: q?.relativeStandardUncertainty ?? null,
+    });
     if (fit.enough && !s.state.enoughSince) s.state.enoughSince = fit.at;
     this.emit(s, { type: 'fit', fit });
     if (s.state.rows !== s.fittedRows) this.scheduleRefit(s);
@@ -310,10 +435,16 @@ export class LiveTests {
 
   /** Store the received bytes as an ordinary upload; the live test ends. */
   /** `allowDuplicate`: store it even when an earlier test of the vessel has the same bytes (else 409, as for an upload). */
-  async close(id: string, actor: Actor, opts: { allowDuplicate?: boolean } = {}): Promise<{ test: DrainTest; fit: StoredFit }> {
+  async close(
+    id: string,
+    actor: Actor,
+    opts: { allowDuplicate?: boolean } = {},
+  ): Promise<{ test: DrainTest; fit: StoredFit }> {
     const s = this.session(id);
-    if (s.state.status !== 'open') throw new LiveProblem(409, 'live-closed', `live test ${id} is ${s.state.status}`);
-    if (s.state.receivedBytes === 0) throw new InputError('no rows have been received: nothing to store', { field: 'rows' });
+    if (s.state.status !== 'open')
+      throw new LiveProblem(409, 'live-closed', `live test ${id} is ${s.state.status}`);
+    if (s.state.receivedBytes === 0)
+      throw new InputError('no rows have been received: nothing to store', { field: 'rows' });
     s.state.status = 'closed';
     this.stopTimers(s);
     try {
@@ -370,10 +501,29 @@ export class LiveProblem extends Error {
 }
 
 function waiting(message: string, rows: number, elapsedS: number): LiveFit {
-  return { at: '', elapsedS, rows, status: 'waiting', message, converged: null, openingS: null, window: null, cd: null, effectiveArea: null, targetRelative: null, enough: false, fittedCurve: null };
+  return {
+    at: '',
+    elapsedS,
+    rows,
+    status: 'waiting',
+    message,
+    converged: null,
+    openingS: null,
+    window: null,
+    cd: null,
+    effectiveArea: null,
+    targetRelative: null,
+    enough: false,
+    fittedCurve: null,
+  };
 }
 
-type Quantity = { value: number; standardUncertainty: number; expandedUncertainty?: number; relativeStandardUncertainty?: number };
+type Quantity = {
+  value: number;
+  standardUncertainty: number;
+  expandedUncertainty?: number;
+  relativeStandardUncertainty?: number;
+};
 
 function quantity(q: Quantity | null): LiveFit['cd'] {
   if (!q) return null;
@@ -381,19 +531,27 @@ function quantity(q: Quantity | null): LiveFit['cd'] {
     value: q.value,
     standardUncertainty: q.standardUncertainty,
     expandedUncertainty: q.expandedUncertainty ?? 2 * q.standardUncertainty,
-    relativeStandardUncertainty: q.relativeStandardUncertainty ?? q.standardUncertainty / Math.abs(q.value),
+    relativeStandardUncertainty:
+      q.relativeStandardUncertainty ?? q.standardUncertainty / Math.abs(q.value),
   };
 }
 
 /** The fit's answer cut down to what the live page shows, and the "enough data" verdict. */
-export function summarise(fit: FitJson, target: LiveTarget, rows: number, elapsedS: number): LiveFit {
+export function summarise(
+  fit: FitJson,
+  target: LiveTarget,
+  rows: number,
+  elapsedS: number,
+): LiveFit {
   const trims = (fit.window.trims ?? []) as { what: string; fromS: number; toS: number }[];
   const opening = trims.find((t) => t.what === 'valve-opening');
   const notes = (fit.window.notes ?? []) as { code: string; message: string }[];
-  const openingFound = !!opening && notes.some((n) => n.code === 'valve-opened' && !/already falling/.test(n.message));
+  const openingFound =
+    !!opening && notes.some((n) => n.code === 'valve-opened' && !/already falling/.test(n.message));
   const cd = quantity(fit.dischargeCoefficient as Quantity | null);
   const area = quantity(fit.effectiveAreaM2 as Quantity);
-  const targetRelative = (target.quantity === 'discharge-coefficient' ? cd : area)?.relativeStandardUncertainty ?? null;
+  const targetRelative =
+    (target.quantity === 'discharge-coefficient' ? cd : area)?.relativeStandardUncertainty ?? null;
   const span = fit.window.endS - fit.window.startS;
   const longEnough = span >= ENOUGH_WINDOW_S && fit.window.samples >= ENOUGH_WINDOW_SAMPLES;
   const met = targetRelative !== null && targetRelative <= target.relativeStandardUncertainty;
@@ -407,13 +565,19 @@ export function summarise(fit: FitJson, target: LiveTarget, rows: number, elapse
         : !met
           ? `u_r ${pct(targetRelative)} is above the target ${pct(target.relativeStandardUncertainty)}`
           : `u_r ${pct(targetRelative)} meets the target ${pct(target.relativeStandardUncertainty)} over ${span.toFixed(0)} s past the opening`;
-  const plot = (fit as unknown as { plot?: { window?: { offsetS: number; timeS: number[]; fittedM: number[] } } }).plot?.window;
+  const plot = (
+    fit as unknown as {
+      plot?: { window?: { offsetS: number; timeS: number[]; fittedM: number[] } };
+    }
+  ).plot?.window;
   return {
     at: '',
     elapsedS,
     rows,
     status: 'fitted',
-    message: enough ? `Enough data: ${why}. The valve may be closed (follow the site's procedure).` : `Not enough yet: ${why}.`,
+    message: enough
+      ? `Enough data: ${why}. The valve may be closed (follow the site's procedure).`
+      : `Not enough yet: ${why}.`,
     converged: fit.converged,
     openingS: opening ? opening.fromS : null,
     window: { startS: fit.window.startS, endS: fit.window.endS, samples: fit.window.samples },
@@ -421,7 +585,9 @@ export function summarise(fit: FitJson, target: LiveTarget, rows: number, elapse
     effectiveArea: area,
     targetRelative,
     enough,
-    fittedCurve: plot ? { timeS: plot.timeS.map((t) => t + plot.offsetS), levelM: plot.fittedM } : null,
+    fittedCurve: plot
+      ? { timeS: plot.timeS.map((t) => t + plot.offsetS), levelM: plot.fittedM }
+      : null,
   };
 }
 

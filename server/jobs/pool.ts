@@ -41,7 +41,13 @@ export interface PoolOptions {
 
 /** A view that owns its whole buffer can be transferred; a slice of a shared pool must not be. */
 function ownsBuffer(b: Uint8Array | undefined): b is Uint8Array {
-  return !!b && b.buffer instanceof ArrayBuffer && b.byteOffset === 0 && b.byteLength === b.buffer.byteLength && b.byteLength > 0;
+  return (
+    !!b &&
+    b.buffer instanceof ArrayBuffer &&
+    b.byteOffset === 0 &&
+    b.byteLength === b.buffer.byteLength &&
+    b.byteLength > 0
+  );
 }
 
 export class AnalysisTimeoutError extends Error {
@@ -62,16 +68,25 @@ export function createAnalysisPool(opts: PoolOptions = {}): AnalysisPool {
     minThreads: 1,
     maxThreads: threads,
     idleTimeout: 60_000,
-    workerData: { analyzeModule: opts.analyzeModule, niceness: opts.niceness ?? Number(process.env.EFFLUX_WORKER_NICE ?? 5) },
+    workerData: {
+      analyzeModule: opts.analyzeModule,
+      niceness: opts.niceness ?? Number(process.env.EFFLUX_WORKER_NICE ?? 5),
+    },
   });
   const run: AnalyzeRunner = async (req, timing) => {
     const t0 = performance.now();
-    const transferList = [req.log.bytes, req.baro?.bytes].filter(ownsBuffer).map((b) => b.buffer as ArrayBuffer);
+    const transferList = [req.log.bytes, req.baro?.bytes]
+      .filter(ownsBuffer)
+      .map((b) => b.buffer as ArrayBuffer);
     let reply: WorkerReply;
     try {
-      reply = (await pool.run(req, { signal: AbortSignal.timeout(timeoutMs), transferList })) as WorkerReply;
+      reply = (await pool.run(req, {
+        signal: AbortSignal.timeout(timeoutMs),
+        transferList,
+      })) as WorkerReply;
     } catch (e) {
-      if ((e as Error)?.name === 'AbortError' || (e as Error)?.name === 'TimeoutError') throw new AnalysisTimeoutError(timeoutMs);
+      if ((e as Error)?.name === 'AbortError' || (e as Error)?.name === 'TimeoutError')
+        throw new AnalysisTimeoutError(timeoutMs);
       throw e;
     }
     if (timing) {

@@ -63,15 +63,34 @@ export function systemFitAnswer(input: SystemFitInput): Record<string, unknown> 
   const read: LogForSystem[] = [];
   for (const [id, file] of input.logs) {
     const vessel = ids.get(id);
-    if (vessel === undefined) throw new InputError(`no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`, { field: `log:${id}` });
-    read.push(readVesselLog(spec, vessel, network.gravity, file, { unit: fields.unit, tz: fields.tz, dateOrder: fields.dateOrder, delimiter: fields.delimiter, decimal: fields.decimal }));
+    if (vessel === undefined)
+      throw new InputError(
+        `no vessel has id "${id}" (the system has ${[...ids.keys()].join(', ')})`,
+        { field: `log:${id}` },
+      );
+    read.push(
+      readVesselLog(spec, vessel, network.gravity, file, {
+        unit: fields.unit,
+        tz: fields.tz,
+        dateOrder: fields.dateOrder,
+        delimiter: fields.delimiter,
+        decimal: fields.decimal,
+      }),
+    );
   }
   const missing = spec.vessels.filter((_, i) => !read.some((l) => l.vessel === i)).map((v) => v.id);
-  if (missing.length) throw new InputError(`no log given for ${missing.join(', ')}: send a file field "log:ID" for every vessel`, { field: `log:${missing[0]}` });
+  if (missing.length)
+    throw new InputError(
+      `no log given for ${missing.join(', ')}: send a file field "log:ID" for every vessel`,
+      { field: `log:${missing[0]}` },
+    );
   const alignment = alignLogs(read, fields.window ? parseWindow(fields.window) : undefined);
   const samples = alignment.logs.reduce((s, l) => s + l.timeS.length, 0);
   if (samples > MAX_FIT_SAMPLES) {
-    throw new InputError(`${samples} readings in the common span is more than the service fits at once (${MAX_FIT_SAMPLES}): give a shorter window, or run efflux fit-system`, { field: 'window' });
+    throw new InputError(
+      `${samples} readings in the common span is more than the service fits at once (${MAX_FIT_SAMPLES}): give a shorter window, or run efflux fit-system`,
+      { field: 'window' },
+    );
   }
   const inflowLogs: InflowLogUse[] = [];
   const inflows: InflowInput[] = spec.inflows.map((f) => {
@@ -79,14 +98,38 @@ export function systemFitAnswer(input: SystemFitInput): Record<string, unknown> 
     if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
     // over HTTP the flow log named in the system file arrives as the file field "inflow:ID"
     const file = flows.get(f.to);
-    if (!file) throw new InputError(`the system file gives a logged inflow for "${f.to}" (${f.log}): send it as the file field "inflow:${f.to}"`, { field: `inflow:${f.to}` });
-    const series = readFlowLog(file.bytes, file.fileName, { unit: f.unit, tz: fields.tz, dateOrder: fields.dateOrder, delimiter: fields.delimiter, decimal: fields.decimal });
+    if (!file)
+      throw new InputError(
+        `the system file gives a logged inflow for "${f.to}" (${f.log}): send it as the file field "inflow:${f.to}"`,
+        { field: `inflow:${f.to}` },
+      );
+    const series = readFlowLog(file.bytes, file.fileName, {
+      unit: f.unit,
+      tz: fields.tz,
+      dateOrder: fields.dateOrder,
+      delimiter: fields.delimiter,
+      decimal: fields.decimal,
+    });
     const placed = inflowOnFitClock(series, vessel, alignment);
-    inflowLogs.push({ to: f.to, file: file.fileName, unit: series.unit, samples: placed.timeS!.length, warnings: series.warnings });
+    inflowLogs.push({
+      to: f.to,
+      file: file.fileName,
+      unit: series.unit,
+      samples: placed.timeS!.length,
+      warnings: series.warnings,
+    });
     return placed;
   });
-  const fit = fitSystem({ network, logs: alignment.logs, inflows, terms: { datum: !!fields.fitDatum, leak: !!fields.fitInflow } });
-  return { ...systemFitJson(spec, fit, alignment, inflowLogs), drawing: drawing(spec, fit, alignment) };
+  const fit = fitSystem({
+    network,
+    logs: alignment.logs,
+    inflows,
+    terms: { datum: !!fields.fitDatum, leak: !!fields.fitInflow },
+  });
+  return {
+    ...systemFitJson(spec, fit, alignment, inflowLogs),
+    drawing: drawing(spec, fit, alignment),
+  };
 }
 
 /** Each aligned log thinned to about DRAW_POINTS readings (every k-th), with the fitted curve = reading − residual. */

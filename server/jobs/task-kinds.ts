@@ -24,7 +24,10 @@ export type TaskKind = keyof TaskIo;
 export type TaskInput<K extends TaskKind> = TaskIo[K]['input'];
 export type TaskOutput<K extends TaskKind> = TaskIo[K]['output'];
 
-export async function runTask<K extends TaskKind>(kind: K, input: TaskInput<K>): Promise<TaskOutput<K>> {
+export async function runTask<K extends TaskKind>(
+  kind: K,
+  input: TaskInput<K>,
+): Promise<TaskOutput<K>> {
   switch (kind) {
     case 'fit-report-pdf':
       return (await renderFitReportPdf(input as FitReport)) as TaskOutput<K>;

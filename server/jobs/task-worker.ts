@@ -24,7 +24,12 @@ export default async function run(task: { kind: TaskKind; input: never }): Promi
   try {
     const out = await runTask(task.kind, task.input);
     // a view that owns its whole buffer moves as is; a slice of a shared pool is copied first
-    if (out instanceof Uint8Array) return Piscina.move(out.byteOffset === 0 && out.byteLength === out.buffer.byteLength ? out : new Uint8Array(out));
+    if (out instanceof Uint8Array)
+      return Piscina.move(
+        out.byteOffset === 0 && out.byteLength === out.buffer.byteLength
+          ? out
+          : new Uint8Array(out),
+      );
     return { value: out };
   } catch (e) {
     return { error: serialiseError(e) };

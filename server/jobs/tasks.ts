@@ -21,7 +21,9 @@ export class TaskTimeoutError extends Error {
     readonly kind: TaskKind,
     readonly ms: number,
   ) {
-    super(`the ${KIND_WORDS[kind]} did not finish within ${ms / 1000} s; try again later or ask for less`);
+    super(
+      `the ${KIND_WORDS[kind]} did not finish within ${ms / 1000} s; try again later or ask for less`,
+    );
     this.name = 'TaskTimeoutError';
   }
 }
@@ -29,7 +31,9 @@ export class TaskTimeoutError extends Error {
 /** More tasks waiting than the queue holds: the service is busy with heavy work. */
 export class TaskQueueFullError extends Error {
   constructor(readonly kind: TaskKind) {
-    super(`the service is busy with other reports and reads; try the ${KIND_WORDS[kind]} again in a minute`);
+    super(
+      `the service is busy with other reports and reads; try the ${KIND_WORDS[kind]} again in a minute`,
+    );
     this.name = 'TaskQueueFullError';
   }
 }
@@ -60,7 +64,11 @@ export interface TaskRunOptions {
   signal?: AbortSignal;
 }
 
-export type TaskRunner = <K extends TaskKind>(kind: K, input: TaskInput<K>, opts?: TaskRunOptions) => Promise<TaskOutput<K>>;
+export type TaskRunner = <K extends TaskKind>(
+  kind: K,
+  input: TaskInput<K>,
+  opts?: TaskRunOptions,
+) => Promise<TaskOutput<K>>;
 
 export interface TaskPool {
   run: TaskRunner;
@@ -80,13 +88,19 @@ export interface TaskPoolOptions {
 
 /** A view that owns its whole buffer can be transferred; a slice of a shared pool must not be. */
 function ownsBuffer(b: Uint8Array): boolean {
-  return b.buffer instanceof ArrayBuffer && b.byteOffset === 0 && b.byteLength === b.buffer.byteLength && b.byteLength > 0;
+  return (
+    b.buffer instanceof ArrayBuffer &&
+    b.byteOffset === 0 &&
+    b.byteLength === b.buffer.byteLength &&
+    b.byteLength > 0
+  );
 }
 
 export function createTaskPool(opts: TaskPoolOptions = {}): TaskPool {
   const fromSource = import.meta.url.endsWith('.ts');
   const limits: Record<TaskKind, number> = { ...DEFAULT_TASK_TIMEOUT_MS };
-  if (typeof opts.timeoutMs === 'number') for (const k of Object.keys(limits) as TaskKind[]) limits[k] = opts.timeoutMs;
+  if (typeof opts.timeoutMs === 'number')
+    for (const k of Object.keys(limits) as TaskKind[]) limits[k] = opts.timeoutMs;
   else Object.assign(limits, opts.timeoutMs ?? {});
   const pool = new Piscina({
     filename: new URL(`./task-worker${fromSource ? '.ts' : '.js'}`, import.meta.url).href,
@@ -108,8 +122,10 @@ export function createTaskPool(opts: TaskPoolOptions = {}): TaskPool {
       reply = await pool.run({ kind, input }, { signal, transferList });
     } catch (e) {
       const name = (e as Error)?.name;
-      if ((name === 'AbortError' || name === 'TimeoutError') && timeout.aborted) throw new TaskTimeoutError(kind, limit);
-      if (/queue is at limit|no task queue available/i.test((e as Error)?.message ?? '')) throw new TaskQueueFullError(kind);
+      if ((name === 'AbortError' || name === 'TimeoutError') && timeout.aborted)
+        throw new TaskTimeoutError(kind, limit);
+      if (/queue is at limit|no task queue available/i.test((e as Error)?.message ?? ''))
+        throw new TaskQueueFullError(kind);
       throw e;
     }
     if (reply instanceof Uint8Array) return reply as TaskOutput<typeof kind>;

@@ -5,7 +5,14 @@
  */
 import { z } from 'zod';
 
-const STATUS = z.enum(['past threshold', 'sudden change', 'action due soon', 'drifting', 'not enough tests', 'steady']);
+const STATUS = z.enum([
+  'past threshold',
+  'sudden change',
+  'action due soon',
+  'drifting',
+  'not enough tests',
+  'steady',
+]);
 const FORECAST_STATUS = z.enum(['forecast', 'crossed', 'not-significant', 'away-from-threshold']);
 const n = z.number();
 const nn = z.number().nullable();
@@ -13,11 +20,19 @@ const sn = z.string().nullable();
 
 export const statusWord = STATUS;
 
-export const outletRef = z.object({ id: z.number().int(), key: z.string(), vesselId: z.number().int(), vesselName: z.string(), site: z.string(), retired: z.boolean() });
+export const outletRef = z.object({
+  id: z.number().int(),
+  key: z.string(),
+  vesselId: z.number().int(),
+  vesselName: z.string(),
+  site: z.string(),
+  retired: z.boolean(),
+});
 
-export const threshold = z
-  .object({ pct: n, fraction: nn, source: z.string() })
-  .meta({ id: 'ActionThreshold', description: 'Act when Cd·a has moved pct % from the epoch baseline (fraction = 1 + pct/100)' });
+export const threshold = z.object({ pct: n, fraction: nn, source: z.string() }).meta({
+  id: 'ActionThreshold',
+  description: 'Act when Cd·a has moved pct % from the epoch baseline (fraction = 1 + pct/100)',
+});
 
 const statusFields = {
   status: STATUS,

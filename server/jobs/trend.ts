@@ -25,16 +25,48 @@ import {
 import type { Store } from '../store/index.js';
 import type { CachedStatus, SkippedFit, TrendFitRow } from '../store/trends.js';
 import type { Outlet } from '../store/vessels.js';
-import type { EpochView, FleetItem, FleetView, ForecastView, LineView, OutletRef, PointView, StatusView, StepView, ThresholdChoice, TrendView } from './trend-views.js';
+import type {
+  EpochView,
+  FleetItem,
+  FleetView,
+  ForecastView,
+  LineView,
+  OutletRef,
+  PointView,
+  StatusView,
+  StepView,
+  ThresholdChoice,
+  TrendView,
+} from './trend-views.js';
 
-export type { EpochView, FleetItem, FleetView, ForecastView, LineView, OutletRef, PointView, StatusView, StepView, ThresholdChoice, TrendView };
+export type {
+  EpochView,
+  FleetItem,
+  FleetView,
+  ForecastView,
+  LineView,
+  OutletRef,
+  PointView,
+  StatusView,
+  StepView,
+  ThresholdChoice,
+  TrendView,
+};
 import { csvText } from '../core/report/csv.js';
 
-export const STATUS_WORDS: readonly StatusWord[] = ['past threshold', 'sudden change', 'action due soon', 'drifting', 'not enough tests', 'steady'];
+export const STATUS_WORDS: readonly StatusWord[] = [
+  'past threshold',
+  'sudden change',
+  'action due soon',
+  'drifting',
+  'not enough tests',
+  'steady',
+];
 
-const iso = (ms: number | null) => (ms === null || !Number.isFinite(ms) ? null : new Date(ms).toISOString());
-const fin = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? null : x);
-
+const iso = (ms: number | null) =>
+  ms === null || !Number.isFinite(ms) ? null : new Date(ms).toISOString();
+const fin = (x: number | null | undefined) =>
+  x === null || x === undefined || !Number.isFinite(x) ? null : x;
 
 /** The outlet's threshold as a percentage; the project's default (−10 %) when it has none. */
 export function thresholdOf(o: Pick<Outlet, 'actionThreshold'>): ThresholdChoice {
@@ -42,26 +74,36 @@ export function thresholdOf(o: Pick<Outlet, 'actionThreshold'>): ThresholdChoice
   if (f !== null && f > 0 && f < 2 && f !== 1) {
     // below 1: fouling (a loss of Cd·a); above 1: erosion (a gain)
     // rounded so 0.9 reads as −10 %, not −9.999999999999998 %
-    return { pct: Math.round((f - 1) * 100 * 1e9) / 1e9, fraction: f, source: `the outlet's action threshold: ${f} of the baseline Cd·a` };
+    return {
+      pct: Math.round((f - 1) * 100 * 1e9) / 1e9,
+      fraction: f,
+      source: `the outlet's action threshold: ${f} of the baseline Cd·a`,
+    };
   }
-  return { pct: DEFAULT_ACTION_THRESHOLD_PCT, fraction: null, source: `no threshold set on the outlet: the default, ${DEFAULT_ACTION_THRESHOLD_PCT} % of the baseline Cd·a` };
+  return {
+    pct: DEFAULT_ACTION_THRESHOLD_PCT,
+    fraction: null,
+    source: `no threshold set on the outlet: the default, ${DEFAULT_ACTION_THRESHOLD_PCT} % of the baseline Cd·a`,
+  };
 }
-
 
 function outletRef(store: Store, outletId: number): { ref: OutletRef; outlet: Outlet } {
   const o = store.vessels.outlet(outletId);
   const v = store.vessels.get(o.vesselId);
-  return { ref: { id: o.id, key: o.key, vesselId: v.id, vesselName: v.name, site: v.site, retired: o.retiredAt !== null }, outlet: o };
+  return {
+    ref: {
+      id: o.id,
+      key: o.key,
+      vesselId: v.id,
+      vesselName: v.name,
+      site: v.site,
+      retired: o.retiredAt !== null,
+    },
+    outlet: o,
+  };
 }
 
 // ---- shapes of the answer (documented in server/http/README.md) ----
-
-
-
-
-
-
-
 
 function statusView(s: OutletStatus): StatusView {
   return {
@@ -126,7 +168,8 @@ const stepView = (s: StepCheck | null): StepView | null =>
     reason: s.reason,
   };
 
-const bandView = (b: BandPoint[]) => b.filter((p) => Number.isFinite(p.value) && Number.isFinite(p.lower) && Number.isFinite(p.upper));
+const bandView = (b: BandPoint[]) =>
+  b.filter((p) => Number.isFinite(p.value) && Number.isFinite(p.lower) && Number.isFinite(p.upper));
 
 /** One outlet's whole trend as the API serves it. */
 export function outletTrendView(store: Store, outletId: number, nowMs: number): TrendView {
@@ -143,12 +186,18 @@ export function outletTrendView(store: Store, outletId: number, nowMs: number): 
   const last = trend.epochs.length - 1;
   const out: EpochView[] = trend.epochs.map((ep, i) => {
     let step = ep.step;
-    if (i !== last && epochs[i].fits.length > 0) step = detectStep(epochs[i].fits, epochLine(epochs[i], 'effectiveArea')?.fit ?? null);
+    if (i !== last && epochs[i].fits.length > 0)
+      step = detectStep(epochs[i].fits, epochLine(epochs[i], 'effectiveArea')?.fit ?? null);
     const baseline = epochs[i].baseline;
     return {
       index: ep.index,
       current: i === last,
-      startedBy: ep.startedBy && { kind: ep.startedBy.kind, at: iso(ep.startedBy.atMs)!, atMs: ep.startedBy.atMs, note: ep.startedBy.note ?? null },
+      startedBy: ep.startedBy && {
+        kind: ep.startedBy.kind,
+        at: iso(ep.startedBy.atMs)!,
+        atMs: ep.startedBy.atMs,
+        note: ep.startedBy.note ?? null,
+      },
       startAt: iso(ep.startMs),
       startMs: fin(ep.startMs),
       baselineFitId: ep.baselineFitId === null ? null : Number(ep.baselineFitId),
@@ -180,11 +229,18 @@ export function outletTrendView(store: Store, outletId: number, nowMs: number): 
       step: stepView(step),
     };
   });
-  return { outlet: ref, asOf: iso(nowMs)!, nowMs, threshold, status: statusView(trend.status), epochs: out, skipped };
+  return {
+    outlet: ref,
+    asOf: iso(nowMs)!,
+    nowMs,
+    threshold,
+    status: statusView(trend.status),
+    epochs: out,
+    skipped,
+  };
 }
 
 // ---- status, cached per outlet ----
-
 
 interface Computed {
   status: StatusView;
@@ -231,7 +287,10 @@ export function refreshStatus(store: Store, outletId: number, nowMs: number): Co
 function aged(row: CachedStatus, nowMs: number): FleetItem {
   const b = row.body as unknown as StatusView & { forecastStatus: ForecastStatus | null };
   const fixedZero = b.status === 'past threshold' && b.forecastStatus !== 'crossed';
-  const days = b.crossingMs !== null && b.daysToThreshold !== null && !fixedZero ? (b.crossingMs - nowMs) / DAY_MS : b.daysToThreshold;
+  const days =
+    b.crossingMs !== null && b.daysToThreshold !== null && !fixedZero
+      ? (b.crossingMs - nowMs) / DAY_MS
+      : b.daysToThreshold;
   return {
     outletId: row.outletId,
     outletKey: row.outletKey,
@@ -247,7 +306,8 @@ function aged(row: CachedStatus, nowMs: number): FleetItem {
 /** Recomputes stale outlets and those whose cached status time has overtaken; returns how many. */
 export function refreshStale(store: Store, nowMs: number): number {
   const stale = new Set(store.trends.staleOutlets());
-  for (const r of store.trends.cachedStatuses()) if (nowMs >= r.validUntilMs || nowMs < r.computedAtMs) stale.add(r.outletId);
+  for (const r of store.trends.cachedStatuses())
+    if (nowMs >= r.validUntilMs || nowMs < r.computedAtMs) stale.add(r.outletId);
   if (stale.size === 0) return 0;
   store.trends.write(() => {
     for (const id of stale) refreshStatus(store, id, nowMs);
@@ -263,7 +323,6 @@ export interface FleetQuery {
   includeRetired?: boolean;
 }
 
-
 /** Every outlet's status, in the order to act on them (soonest threshold first). */
 export function fleetStatus(store: Store, q: FleetQuery, nowMs: number): FleetView {
   const recomputed = refreshStale(store, nowMs);
@@ -275,16 +334,31 @@ export function fleetStatus(store: Store, q: FleetQuery, nowMs: number): FleetVi
   for (const w of STATUS_WORDS) counts[w] = 0;
   for (const i of items) counts[i.status]++;
   if (q.status?.length) items = items.filter((i) => q.status!.includes(i.status));
-  return { asOf: iso(nowMs)!, nowMs, recomputed, counts, items: fleetOrder(items as unknown as OutletStatus[]) as unknown as FleetItem[] }; // fleetOrder reads status and daysToThreshold only
+  return {
+    asOf: iso(nowMs)!,
+    nowMs,
+    recomputed,
+    counts,
+    items: fleetOrder(items as unknown as OutletStatus[]) as unknown as FleetItem[],
+  }; // fleetOrder reads status and daysToThreshold only
 }
 
 // ---- history for a spreadsheet ----
 
 const CSV_HEADER = [
-  'fit_id', 'test_id', 'tested_at', 'approved_at', 'epoch', 'epoch_started_by', 'is_baseline',
-  'effective_area_m2', 'u_effective_area_m2', 'discharge_coefficient', 'u_discharge_coefficient', 'change_from_baseline_pct',
+  'fit_id',
+  'test_id',
+  'tested_at',
+  'approved_at',
+  'epoch',
+  'epoch_started_by',
+  'is_baseline',
+  'effective_area_m2',
+  'u_effective_area_m2',
+  'discharge_coefficient',
+  'u_discharge_coefficient',
+  'change_from_baseline_pct',
 ];
-
 
 /** An outlet's approved fits with their standard uncertainties and epoch, one row each (RFC 4180, CRLF). */
 export function historyCsv(view: TrendView): string {
@@ -292,8 +366,18 @@ export function historyCsv(view: TrendView): string {
   for (const ep of view.epochs) {
     for (const p of ep.series) {
       rows.push([
-        p.fitId, p.testId, p.testedAt, p.approvedAt, ep.index, ep.startedBy?.kind ?? 'first tests', p.isBaseline,
-        p.effectiveAreaM2, p.effectiveAreaU, p.dischargeCoefficient, p.dischargeCoefficientU, Number(p.changePct.toFixed(6)),
+        p.fitId,
+        p.testId,
+        p.testedAt,
+        p.approvedAt,
+        ep.index,
+        ep.startedBy?.kind ?? 'first tests',
+        p.isBaseline,
+        p.effectiveAreaM2,
+        p.effectiveAreaU,
+        p.dischargeCoefficient,
+        p.dischargeCoefficientU,
+        Number(p.changePct.toFixed(6)),
       ]);
     }
   }

@@ -43,7 +43,11 @@ interface FitCopyRow {
 }
 
 /** The same rule as the store's insert: a finite number at result[key][field], else null. */
-function numberAt(result: Record<string, unknown>, key: string, field: 'value' | 'standardUncertainty'): number | null {
+function numberAt(
+  result: Record<string, unknown>,
+  key: string,
+  field: 'value' | 'standardUncertainty',
+): number | null {
   const v = (result[key] as Record<string, unknown> | null | undefined)?.[field];
   return typeof v === 'number' && Number.isFinite(v) ? v : null;
 }
@@ -60,13 +64,31 @@ const sha256 = (text: string) => createHash('sha256').update(text).digest('hex')
 export function verifyRecords(store: Store): RecordsReport {
   const db = store.db;
   const differences: RecordDifference[] = [];
-  const differ = (table: string, row: number, field: string, stored: unknown, expected: unknown, why: string) =>
-    differences.push({ table, row, field, stored, expected, message: `${table} row ${row}: ${field} is ${JSON.stringify(stored)} but ${why} says ${JSON.stringify(expected)}` });
+  const differ = (
+    table: string,
+    row: number,
+    field: string,
+    stored: unknown,
+    expected: unknown,
+    why: string,
+  ) =>
+    differences.push({
+      table,
+      row,
+      field,
+      stored,
+      expected,
+      message: `${table} row ${row}: ${field} is ${JSON.stringify(stored)} but ${why} says ${JSON.stringify(expected)}`,
+    });
 
   // the last audit entry of each fit and each test (the chain itself is checked by audit.verify)
   const lastFitEntry = new Map<string, Record<string, unknown>>();
   const uploadEntry = new Map<string, Record<string, unknown>>();
-  for (const e of db.prepare(`SELECT entity_type, entity_id, action, after FROM audit_log WHERE entity_type IN ('fit', 'test') ORDER BY seq`).iterate() as Iterable<{
+  for (const e of db
+    .prepare(
+      `SELECT entity_type, entity_id, action, after FROM audit_log WHERE entity_type IN ('fit', 'test') ORDER BY seq`,
+    )
+    .iterate() as Iterable<{
     entity_type: string;
     entity_id: string;
     action: string;
@@ -79,27 +101,64 @@ export function verifyRecords(store: Store): RecordsReport {
 
   let fitsChecked = 0;
   const firstWindow = new Map<number, { startS: number; startTime?: unknown }>();
-  for (const r of db.prepare('SELECT id, test_id, result, status, superseded_by, cda_m2, cd, cda_u, cd_u FROM fits ORDER BY id').iterate() as Iterable<FitCopyRow>) {
+  for (const r of db
+    .prepare(
+      'SELECT id, test_id, result, status, superseded_by, cda_m2, cd, cda_u, cd_u FROM fits ORDER BY id',
+    )
+    .iterate() as Iterable<FitCopyRow>) {
     fitsChecked++;
     const result = JSON.parse(r.result) as Record<string, unknown>;
-    if (!firstWindow.has(r.test_id)) firstWindow.set(r.test_id, (result.window ?? { startS: NaN }) as { startS: number; startTime?: unknown });
+    if (!firstWindow.has(r.test_id))
+      firstWindow.set(
+        r.test_id,
+        (result.window ?? { startS: NaN }) as { startS: number; startTime?: unknown },
+      );
     for (const [column, key, field] of COPIES) {
       const expected = numberAt(result, key, field);
-      if (r[column] !== expected) differ('fits', r.id, column, r[column], expected, `its stored result (${key}.${field})`);
+      if (r[column] !== expected)
+        differ('fits', r.id, column, r[column], expected, `its stored result (${key}.${field})`);
     }
     const entry = lastFitEntry.get(String(r.id));
     if (!entry) {
-      differ('fits', r.id, 'audit', null, 'an entry', 'the audit log has no entry for it and the store');
+      differ(
+        'fits',
+        r.id,
+        'audit',
+        null,
+        'an entry',
+        'the audit log has no entry for it and the store',
+      );
       continue;
     }
     const hash = sha256(canonicalJson(result));
-    if (entry.resultSha256 !== hash) differ('fits', r.id, 'result', `sha256 ${hash}`, `sha256 ${String(entry.resultSha256)}`, 'its last audit entry');
-    if (entry.status !== r.status) differ('fits', r.id, 'status', r.status, entry.status, 'its last audit entry');
-    if ((entry.supersededBy ?? null) !== r.superseded_by) differ('fits', r.id, 'superseded_by', r.superseded_by, entry.supersededBy ?? null, 'its last audit entry');
+    if (entry.resultSha256 !== hash)
+      differ(
+        'fits',
+        r.id,
+        'result',
+        `sha256 ${hash}`,
+        `sha256 ${String(entry.resultSha256)}`,
+        'its last audit entry',
+      );
+    if (entry.status !== r.status)
+      differ('fits', r.id, 'status', r.status, entry.status, 'its last audit entry');
+    if ((entry.supersededBy ?? null) !== r.superseded_by)
+      differ(
+        'fits',
+        r.id,
+        'superseded_by',
+        r.superseded_by,
+        entry.supersededBy ?? null,
+        'its last audit entry',
+      );
   }
 
   // each analysed test's one date against where it came from
-  for (const t of db.prepare(`SELECT id, tested_at, tested_at_source, detected FROM drain_tests WHERE status = 'analysed' ORDER BY id`).iterate() as Iterable<{
+  for (const t of db
+    .prepare(
+      `SELECT id, tested_at, tested_at_source, detected FROM drain_tests WHERE status = 'analysed' ORDER BY id`,
+    )
+    .iterate() as Iterable<{
     id: number;
     tested_at: string | null;
     tested_at_source: string | null;
@@ -107,11 +166,32 @@ export function verifyRecords(store: Store): RecordsReport {
   }>) {
     if (t.tested_at_source === 'stated') {
       const up = uploadEntry.get(String(t.id));
-      if (up && up.testedAt !== t.tested_at) differ('drain_tests', t.id, 'tested_at', t.tested_at, up.testedAt, 'its upload audit entry');
+      if (up && up.testedAt !== t.tested_at)
+        differ(
+          'drain_tests',
+          t.id,
+          'tested_at',
+          t.tested_at,
+          up.testedAt,
+          'its upload audit entry',
+        );
     } else if (t.tested_at_source === 'log') {
       const w = firstWindow.get(t.id);
-      const fromLog = w ? logTestDate(w, t.detected ? (JSON.parse(t.detected) as { metadata?: unknown }).metadata : null) : null;
-      if (fromLog !== t.tested_at) differ('drain_tests', t.id, 'tested_at', t.tested_at, fromLog, "its first fit's window start (the log's own clock)");
+      const fromLog = w
+        ? logTestDate(
+            w,
+            t.detected ? (JSON.parse(t.detected) as { metadata?: unknown }).metadata : null,
+          )
+        : null;
+      if (fromLog !== t.tested_at)
+        differ(
+          'drain_tests',
+          t.id,
+          'tested_at',
+          t.tested_at,
+          fromLog,
+          "its first fit's window start (the log's own clock)",
+        );
     } else if (t.tested_at !== null) {
       differ('drain_tests', t.id, 'tested_at_source', null, 'stated or log', 'a dated test');
     }
@@ -120,7 +200,11 @@ export function verifyRecords(store: Store): RecordsReport {
   // the status cache against a recomputation at the moment it was computed (stale rows are recomputed on the next read)
   let outletsChecked = 0;
   const stale = new Set(store.trends.staleOutlets());
-  for (const c of db.prepare('SELECT outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body FROM outlet_trend_status ORDER BY outlet_id').all() as {
+  for (const c of db
+    .prepare(
+      'SELECT outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body FROM outlet_trend_status ORDER BY outlet_id',
+    )
+    .all() as {
     outlet_id: number;
     status: string;
     days_to_threshold: number | null;
@@ -133,12 +217,36 @@ export function verifyRecords(store: Store): RecordsReport {
     const again = computeStatus(store, c.outlet_id, c.computed_at_ms);
     const body = { ...again.status, forecastStatus: again.forecastStatus };
     const why = `a recomputation at ${new Date(c.computed_at_ms).toISOString()}`;
-    if (c.status !== again.status.status) differ('outlet_trend_status', c.outlet_id, 'status', c.status, again.status.status, why);
-    if (c.days_to_threshold !== again.status.daysToThreshold) differ('outlet_trend_status', c.outlet_id, 'days_to_threshold', c.days_to_threshold, again.status.daysToThreshold, why);
+    if (c.status !== again.status.status)
+      differ('outlet_trend_status', c.outlet_id, 'status', c.status, again.status.status, why);
+    if (c.days_to_threshold !== again.status.daysToThreshold)
+      differ(
+        'outlet_trend_status',
+        c.outlet_id,
+        'days_to_threshold',
+        c.days_to_threshold,
+        again.status.daysToThreshold,
+        why,
+      );
     const validUntil = Number.isFinite(again.validUntilMs) ? again.validUntilMs : 8.64e15;
-    if (c.valid_until_ms !== validUntil) differ('outlet_trend_status', c.outlet_id, 'valid_until_ms', c.valid_until_ms, validUntil, why);
-    if (canonicalJson(JSON.parse(c.body)) !== canonicalJson(JSON.parse(JSON.stringify(body)))) differ('outlet_trend_status', c.outlet_id, 'body', JSON.parse(c.body), body, why);
+    if (c.valid_until_ms !== validUntil)
+      differ(
+        'outlet_trend_status',
+        c.outlet_id,
+        'valid_until_ms',
+        c.valid_until_ms,
+        validUntil,
+        why,
+      );
+    if (canonicalJson(JSON.parse(c.body)) !== canonicalJson(JSON.parse(JSON.stringify(body))))
+      differ('outlet_trend_status', c.outlet_id, 'body', JSON.parse(c.body), body, why);
   }
 
-  return { ok: differences.length === 0, fitsChecked, outletsChecked, differences, undatedTests: store.tests.undated() };
+  return {
+    ok: differences.length === 0,
+    fitsChecked,
+    outletsChecked,
+    differences,
+    undatedTests: store.tests.undated(),
+  };
 }

@@ -4,7 +4,12 @@
  * here as bytes, so the HTTP thread neither parses a million-row log nor serialises its series.
  */
 import type { AnalysisRequest, RawFile } from '../core/analysis-contract.js';
-import { detectedSummary, expandWorkbook, prepareDrainTest, type PreparedTest } from '../core/analyze.js';
+import {
+  detectedSummary,
+  expandWorkbook,
+  prepareDrainTest,
+  type PreparedTest,
+} from '../core/analyze.js';
 import { decodeHead, detectEncoding, NotUtf8 } from '../core/ingest/decode.js';
 import { readStoredRaw } from '../store/raw-reader.js';
 
@@ -12,7 +17,10 @@ const HEAD_LINES = 25;
 const HEAD_BYTES = 16 * 1024;
 
 /** The first lines of the file as text, for the preview table (never used for reading). */
-export function headLines(bytes: Uint8Array, fileName: string): { encoding: string; lines: string[] } {
+export function headLines(
+  bytes: Uint8Array,
+  fileName: string,
+): { encoding: string; lines: string[] } {
   let guess = detectEncoding(bytes);
   let text: string;
   try {
@@ -23,8 +31,12 @@ export function headLines(bytes: Uint8Array, fileName: string): { encoding: stri
     text = decodeHead(bytes, guess, HEAD_BYTES, fileName);
   }
   const lines = text.replace(/\r\n?/g, '\n').split('\n').slice(0, HEAD_LINES);
-  if (bytes.length > HEAD_BYTES && lines.length === HEAD_LINES) return { encoding: guess.encoding, lines };
-  return { encoding: guess.encoding, lines: lines.filter((l, i) => l !== '' || i < lines.length - 1) };
+  if (bytes.length > HEAD_BYTES && lines.length === HEAD_LINES)
+    return { encoding: guess.encoding, lines };
+  return {
+    encoding: guess.encoding,
+    lines: lines.filter((l, i) => l !== '' || i < lines.length - 1),
+  };
 }
 
 /** A Float64Array as a JSON array (non-finite values as null, as JSON.stringify would). */
@@ -48,7 +60,9 @@ export async function inspectAnswer(request: AnalysisRequest): Promise<Uint8Arra
   const req = await expandWorkbook(request);
   const head = headLines(req.log.bytes, req.log.fileName);
   const p = prepareDrainTest(req);
-  return utf8(`{"head":${JSON.stringify(head)},"detected":${JSON.stringify(detectedSummary(p))},"series":${seriesJson(p)},"settings":${JSON.stringify(req.settings ?? {})}}`);
+  return utf8(
+    `{"head":${JSON.stringify(head)},"detected":${JSON.stringify(detectedSummary(p))},"series":${seriesJson(p)},"settings":${JSON.stringify(req.settings ?? {})}}`,
+  );
 }
 
 /** A raw file given as bytes, or by its hash in the database file (read in this thread). */
@@ -59,10 +73,17 @@ export interface SeriesRequest extends Omit<AnalysisRequest, 'log' | 'baro'> {
   baro?: RawSource;
 }
 
-const bytesOf = (r: RawSource): RawFile => ('bytes' in r ? r : { bytes: readStoredRaw(r.dbPath, r.sha256), fileName: r.fileName });
+const bytesOf = (r: RawSource): RawFile =>
+  'bytes' in r ? r : { bytes: readStoredRaw(r.dbPath, r.sha256), fileName: r.fileName };
 
 /** GET /api/tests/:id/series: the stored log's series at full resolution and what was detected. */
 export async function seriesAnswer(req: SeriesRequest): Promise<Uint8Array> {
-  const p = prepareDrainTest(await expandWorkbook({ ...req, log: bytesOf(req.log), baro: req.baro ? bytesOf(req.baro) : undefined }));
+  const p = prepareDrainTest(
+    await expandWorkbook({
+      ...req,
+      log: bytesOf(req.log),
+      baro: req.baro ? bytesOf(req.baro) : undefined,
+    }),
+  );
   return utf8(`{"series":${seriesJson(p)},"detected":${JSON.stringify(detectedSummary(p))}}`);
 }

@@ -38,7 +38,8 @@ export class EngineUnavailableError extends Error {
 }
 
 export function reviveError(s: SerialisedError): Error {
-  if (s.name === 'InputError') return new InputError(s.message, { file: s.file, line: s.line, field: s.field });
+  if (s.name === 'InputError')
+    return new InputError(s.message, { file: s.file, line: s.line, field: s.field });
   if (s.name === 'EngineUnavailableError') return new EngineUnavailableError(s.message);
   const e = new Error(s.message);
   e.name = s.name;

@@ -31,19 +31,47 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
   const id = outletReportIdentity(r);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Outlet history report', MARGIN, doc.y);
-  doc.font('regular').fontSize(10).text(`${r.vessel.name} · ${r.vessel.site} · outlet ${r.outlet.key}`);
+  doc
+    .font('regular')
+    .fontSize(10)
+    .text(`${r.vessel.name} · ${r.vessel.site} · outlet ${r.outlet.key}`);
   doc.moveDown(0.4);
-  fields(doc, [['report id', r.reportId], ['content SHA-256', r.contentSha256], ['as of', dateText(r.asOf)]], 130, { monoValues: true });
+  fields(
+    doc,
+    [
+      ['report id', r.reportId],
+      ['content SHA-256', r.contentSha256],
+      ['as of', dateText(r.asOf)],
+    ],
+    130,
+    { monoValues: true },
+  );
   const st = r.trend.status;
   heading(doc, 'Status');
   fields(doc, [
     ['status', st.status],
     ['why', st.reason],
-    ['action threshold', `${sig(r.actionThresholdPct, 3)} % of the baseline Cd·a (${r.thresholdSource})`],
-    ['latest change', st.latestChangePct === null ? '—' : `${sig(st.latestChangePct, 3)} % against the epoch baseline`],
+    [
+      'action threshold',
+      `${sig(r.actionThresholdPct, 3)} % of the baseline Cd·a (${r.thresholdSource})`,
+    ],
+    [
+      'latest change',
+      st.latestChangePct === null
+        ? '—'
+        : `${sig(st.latestChangePct, 3)} % against the epoch baseline`,
+    ],
     ['drift', st.slopePctPerYear === null ? '—' : `${sig(st.slopePctPerYear, 3)} % per year`],
-    ['threshold forecast', st.crossingMs === null ? 'none' : `${day(st.crossingMs)} (${sig(st.daysToThreshold, 4)} days from the as-of date)`],
-    ['outlet', `${r.outlet.type ?? 'type not stated'}, bore ${sig(r.outlet.boreM)} m ± ${sig(r.outlet.boreToleranceM, 2)} m, elevation ${sig(r.outlet.elevationM)} m`],
+    [
+      'threshold forecast',
+      st.crossingMs === null
+        ? 'none'
+        : `${day(st.crossingMs)} (${sig(st.daysToThreshold, 4)} days from the as-of date)`,
+    ],
+    [
+      'outlet',
+      `${r.outlet.type ?? 'type not stated'}, bore ${sig(r.outlet.boreM)} m ± ${sig(r.outlet.boreToleranceM, 2)} m, elevation ${sig(r.outlet.elevationM)} m`,
+    ],
   ]);
 
   heading(doc, 'Effective area Cd·a over time');
@@ -53,61 +81,154 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
   for (const ep of r.trend.epochs) {
     const b = ep.areaBand;
     if (b.length > 1) {
-      layers.push({ kind: 'band', xs: b.map((p) => p.atMs), lower: b.map((p) => p.lower), upper: b.map((p) => p.upper), color: BLUE });
-      layers.push({ kind: 'line', xs: b.map((p) => p.atMs), ys: b.map((p) => p.value), color: BLUE, width: 0.9 });
+      layers.push({
+        kind: 'band',
+        xs: b.map((p) => p.atMs),
+        lower: b.map((p) => p.lower),
+        upper: b.map((p) => p.upper),
+        color: BLUE,
+      });
+      layers.push({
+        kind: 'line',
+        xs: b.map((p) => p.atMs),
+        ys: b.map((p) => p.value),
+        color: BLUE,
+        width: 0.9,
+      });
       allX.push(b[0].atMs, b[b.length - 1].atMs);
       allY.push(...b.map((p) => p.lower), ...b.map((p) => p.upper));
     }
     const xs = ep.series.map((p) => p.testedAtMs);
     const ys = ep.series.map((p) => p.effectiveAreaM2);
-    layers.push({ kind: 'points', xs, ys, errors: ep.series.map((p) => 2 * p.effectiveAreaU), color: '#1f2a36', radius: 2 });
+    layers.push({
+      kind: 'points',
+      xs,
+      ys,
+      errors: ep.series.map((p) => 2 * p.effectiveAreaU),
+      color: '#1f2a36',
+      radius: 2,
+    });
     allX.push(...xs);
     allY.push(...ys);
     if (ep.thresholdM2 !== null) {
       const x1 = b.length ? b[b.length - 1].atMs : xs[xs.length - 1];
-      layers.push({ kind: 'hline', y: ep.thresholdM2, x0: ep.series[0]?.testedAtMs ?? ep.startMs, x1, color: RED, dash: 3, label: `action threshold ${sig(ep.thresholdM2, 4)} m²` });
+      layers.push({
+        kind: 'hline',
+        y: ep.thresholdM2,
+        x0: ep.series[0]?.testedAtMs ?? ep.startMs,
+        x1,
+        color: RED,
+        dash: 3,
+        label: `action threshold ${sig(ep.thresholdM2, 4)} m²`,
+      });
       allY.push(ep.thresholdM2);
     }
-    if (ep.startedBy) layers.push({ kind: 'vline', x: ep.startedBy.atMs, color: '#5b6670', dash: 2, label: ep.startedBy.kind });
+    if (ep.startedBy)
+      layers.push({
+        kind: 'vline',
+        x: ep.startedBy.atMs,
+        color: '#5b6670',
+        dash: 2,
+        label: ep.startedBy.kind,
+      });
   }
   const xd = domainOf(allX);
-  const ticks = [0, 0.25, 0.5, 0.75, 1].map((f) => xd[0] + f * (xd[1] - xd[0])).map((v) => ({ value: v, label: day(v) }));
+  const ticks = [0, 0.25, 0.5, 0.75, 1]
+    .map((f) => xd[0] + f * (xd[1] - xd[0]))
+    .map((v) => ({ value: v, label: day(v) }));
   const y0 = doc.y + 4;
-  drawChart(doc, { x: MARGIN + 56, y: y0, width: contentWidth(doc) - 60, height: 170 }, {
-    xDomain: xd,
-    yDomain: domainOf(allY),
-    xLabel: 'date of the drain test',
-    yLabel: 'Cd·a, m²',
-    xTicks: ticks,
-    yFormat: (v) => v.toExponential(3),
-    layers,
-    legend: [{ label: 'approved fits ±2u', color: '#1f2a36' }, { label: 'trend line, 95 % band', color: BLUE }, { label: 'action threshold', color: RED }],
-  });
+  drawChart(
+    doc,
+    { x: MARGIN + 56, y: y0, width: contentWidth(doc) - 60, height: 170 },
+    {
+      xDomain: xd,
+      yDomain: domainOf(allY),
+      xLabel: 'date of the drain test',
+      yLabel: 'Cd·a, m²',
+      xTicks: ticks,
+      yFormat: (v) => v.toExponential(3),
+      layers,
+      legend: [
+        { label: 'approved fits ±2u', color: '#1f2a36' },
+        { label: 'trend line, 95 % band', color: BLUE },
+        { label: 'action threshold', color: RED },
+      ],
+    },
+  );
   doc.y = y0 + 196;
   doc.x = MARGIN;
-  paragraph(doc, 'Bars: ±2 standard uncertainties (k = 2). Band: 95 % interval of the weighted trend line of the epoch (weights from each fit’s uncertainty). A maintenance event starts a new epoch with a new baseline.', { size: 7.5, muted: true });
+  paragraph(
+    doc,
+    'Bars: ±2 standard uncertainties (k = 2). Band: 95 % interval of the weighted trend line of the epoch (weights from each fit’s uncertainty). A maintenance event starts a new epoch with a new baseline.',
+    { size: 7.5, muted: true },
+  );
 
   heading(doc, 'Approved fits');
-  table(doc, [
-    { title: 'fit', width: 30 }, { title: 'tested', width: 70 }, { title: 'Cd', width: 55, align: 'right' }, { title: 'u(Cd)', width: 45, align: 'right' },
-    { title: 'U(Cd), k', width: 65, align: 'right' }, { title: 'Cd·a, m²', width: 70, align: 'right' }, { title: 'approved', width: 90 }, { title: 'raw file SHA-256 (first 16)', width: 95, mono: true },
-  ], r.fits.map((f) => [
-    String(f.fitId), dateText(f.testedAt).slice(0, 10), toU(f.dischargeCoefficient, f.dischargeCoefficientU), sig(f.dischargeCoefficientU, 2),
-    `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`, toU(f.effectiveAreaM2, f.effectiveAreaU), `${f.approvedBy ?? '—'}${f.selfReview ? ' (self-review)' : ''}, ${dateText(f.approvedAt).slice(0, 10)}`, f.logSha256.slice(0, 16),
-  ]));
+  table(
+    doc,
+    [
+      { title: 'fit', width: 30 },
+      { title: 'tested', width: 70 },
+      { title: 'Cd', width: 55, align: 'right' },
+      { title: 'u(Cd)', width: 45, align: 'right' },
+      { title: 'U(Cd), k', width: 65, align: 'right' },
+      { title: 'Cd·a, m²', width: 70, align: 'right' },
+      { title: 'approved', width: 90 },
+      { title: 'raw file SHA-256 (first 16)', width: 95, mono: true },
+    ],
+    r.fits.map((f) => [
+      String(f.fitId),
+      dateText(f.testedAt).slice(0, 10),
+      toU(f.dischargeCoefficient, f.dischargeCoefficientU),
+      sig(f.dischargeCoefficientU, 2),
+      `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`,
+      toU(f.effectiveAreaM2, f.effectiveAreaU),
+      `${f.approvedBy ?? '—'}${f.selfReview ? ' (self-review)' : ''}, ${dateText(f.approvedAt).slice(0, 10)}`,
+      f.logSha256.slice(0, 16),
+    ]),
+  );
   heading(doc, 'Epochs');
-  table(doc, [{ title: 'epoch', width: 40 }, { title: 'started by', width: 120 }, { title: 'fits', width: 35, align: 'right' }, { title: 'slope, %/year', width: 90, align: 'right' }, { title: 'threshold, m²', width: 80, align: 'right' }, { title: 'forecast', width: 140 }],
+  table(
+    doc,
+    [
+      { title: 'epoch', width: 40 },
+      { title: 'started by', width: 120 },
+      { title: 'fits', width: 35, align: 'right' },
+      { title: 'slope, %/year', width: 90, align: 'right' },
+      { title: 'threshold, m²', width: 80, align: 'right' },
+      { title: 'forecast', width: 140 },
+    ],
     r.trend.epochs.map((ep) => [
-      String(ep.index), ep.startedBy ? `${ep.startedBy.kind} ${day(ep.startedBy.atMs)}` : 'first tests', String(ep.series.length),
-      ep.area ? `${sig(ep.area.slopePctPerYear, 3)} ± ${sig(ep.area.slopePctPerYearU, 2)}` : '—', sig(ep.thresholdM2, 4), ep.forecast ? ep.forecast.reason : '—',
-    ]));
+      String(ep.index),
+      ep.startedBy ? `${ep.startedBy.kind} ${day(ep.startedBy.atMs)}` : 'first tests',
+      String(ep.series.length),
+      ep.area ? `${sig(ep.area.slopePctPerYear, 3)} ± ${sig(ep.area.slopePctPerYearU, 2)}` : '—',
+      sig(ep.thresholdM2, 4),
+      ep.forecast ? ep.forecast.reason : '—',
+    ]),
+  );
   if (r.events.length) {
     heading(doc, 'Maintenance events');
-    table(doc, [{ title: 'when', width: 110 }, { title: 'kind', width: 70 }, { title: 'notes', width: 300 }], r.events.map((e) => [dateText(e.occurredAt), e.kind, e.notes ?? '']));
+    table(
+      doc,
+      [
+        { title: 'when', width: 110 },
+        { title: 'kind', width: 70 },
+        { title: 'notes', width: 300 },
+      ],
+      r.events.map((e) => [dateText(e.occurredAt), e.kind, e.notes ?? '']),
+    );
   }
   heading(doc, 'Software and scope');
-  fields(doc, [['software', `${r.software.name} ${r.software.version}, commit ${r.software.gitCommit}`], ['report format', `${r.format} v${r.formatVersion}`]]);
+  fields(doc, [
+    ['software', `${r.software.name} ${r.software.version}, commit ${r.software.gitCommit}`],
+    ['report format', `${r.format} v${r.formatVersion}`],
+  ]);
   for (const line of r.statement) paragraph(doc, line, { size: 8 });
-  paragraph(doc, 'Each fit has its own report (efflux report fit <fitId>); check this document against the records with efflux report verify <this file>.', { size: 7.5, muted: true });
+  paragraph(
+    doc,
+    'Each fit has its own report (efflux report fit <fitId>); check this document against the records with efflux report verify <this file>.',
+    { size: 7.5, muted: true },
+  );
   return finishReportDoc(doc, id);
 }

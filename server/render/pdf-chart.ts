@@ -13,10 +13,39 @@ export interface ChartFrame {
 }
 
 export type Layer =
-  | { kind: 'line'; xs: ArrayLike<number>; ys: ArrayLike<number>; color: string; width?: number; dash?: number }
-  | { kind: 'points'; xs: ArrayLike<number>; ys: ArrayLike<number>; color: string; radius?: number; errors?: ArrayLike<number> }
-  | { kind: 'band'; xs: ArrayLike<number>; lower: ArrayLike<number>; upper: ArrayLike<number>; color: string; opacity?: number }
-  | { kind: 'hline'; y: number; x0?: number; x1?: number; color: string; dash?: number; label?: string }
+  | {
+      kind: 'line';
+      xs: ArrayLike<number>;
+      ys: ArrayLike<number>;
+      color: string;
+      width?: number;
+      dash?: number;
+    }
+  | {
+      kind: 'points';
+      xs: ArrayLike<number>;
+      ys: ArrayLike<number>;
+      color: string;
+      radius?: number;
+      errors?: ArrayLike<number>;
+    }
+  | {
+      kind: 'band';
+      xs: ArrayLike<number>;
+      lower: ArrayLike<number>;
+      upper: ArrayLike<number>;
+      color: string;
+      opacity?: number;
+    }
+  | {
+      kind: 'hline';
+      y: number;
+      x0?: number;
+      x1?: number;
+      color: string;
+      dash?: number;
+      label?: string;
+    }
   | { kind: 'vline'; x: number; color: string; dash?: number; label?: string };
 
 export interface ChartSpec {
@@ -45,15 +74,31 @@ export function drawChart(doc: Doc, f: ChartFrame, spec: ChartSpec): void {
   for (const t of niceTicks(y0, yTop, 5)) {
     const py = sy(t);
     if (py < f.y - 0.5 || py > f.y + f.height + 0.5) continue;
-    doc.moveTo(f.x, py).lineTo(f.x + f.width, py).lineWidth(0.25).strokeColor('#dde0e5').stroke();
+    doc
+      .moveTo(f.x, py)
+      .lineTo(f.x + f.width, py)
+      .lineWidth(0.25)
+      .strokeColor('#dde0e5')
+      .stroke();
     doc.text(yFmt(t), f.x - 44, py - 3, { width: 41, align: 'right', lineBreak: false });
   }
-  const xTicks = spec.xTicks ?? niceTicks(spec.xDomain[0], spec.xDomain[1], 6).map((v) => ({ value: v, label: fmt(v) }));
+  const xTicks =
+    spec.xTicks ??
+    niceTicks(spec.xDomain[0], spec.xDomain[1], 6).map((v) => ({ value: v, label: fmt(v) }));
   for (const t of xTicks) {
     const px = sx(t.value);
     if (px < f.x - 0.5 || px > f.x + f.width + 0.5) continue;
-    doc.moveTo(px, f.y).lineTo(px, f.y + f.height).lineWidth(0.25).strokeColor('#dde0e5').stroke();
-    doc.text(t.label, px - 30, f.y + f.height + 3, { width: 60, align: 'center', lineBreak: false });
+    doc
+      .moveTo(px, f.y)
+      .lineTo(px, f.y + f.height)
+      .lineWidth(0.25)
+      .strokeColor('#dde0e5')
+      .stroke();
+    doc.text(t.label, px - 30, f.y + f.height + 3, {
+      width: 60,
+      align: 'center',
+      lineBreak: false,
+    });
   }
   doc.rect(f.x, f.y, f.width, f.height).clip();
   for (const layer of spec.layers) drawLayer(doc, layer, sx, sy, f);
@@ -61,9 +106,17 @@ export function drawChart(doc: Doc, f: ChartFrame, spec: ChartSpec): void {
   doc.save();
   doc.rect(f.x, f.y, f.width, f.height).lineWidth(0.6).strokeColor('#8a8f98').stroke();
   doc.font('regular').fontSize(7).fillColor('#1f2a36');
-  doc.text(spec.xLabel, f.x, f.y + f.height + 12, { width: f.width, align: 'center', lineBreak: false });
+  doc.text(spec.xLabel, f.x, f.y + f.height + 12, {
+    width: f.width,
+    align: 'center',
+    lineBreak: false,
+  });
   doc.rotate(-90, { origin: [f.x - 48, f.y + f.height / 2] });
-  doc.text(spec.yLabel, f.x - 48 - f.height / 2, f.y + f.height / 2 - 4, { width: f.height, align: 'center', lineBreak: false });
+  doc.text(spec.yLabel, f.x - 48 - f.height / 2, f.y + f.height / 2 - 4, {
+    width: f.height,
+    align: 'center',
+    lineBreak: false,
+  });
   doc.restore();
   if (spec.legend?.length) {
     let lx = f.x + 6;
@@ -103,7 +156,12 @@ function drawLayer(doc: Doc, l: Layer, sx: Scale, sy: Scale, f: ChartFrame): voi
         const py = sy(l.ys[i]);
         const e = l.errors?.[i];
         if (e !== undefined && Number.isFinite(e)) {
-          doc.moveTo(px, sy(l.ys[i] - e)).lineTo(px, sy(l.ys[i] + e)).lineWidth(0.6).strokeColor(l.color).stroke();
+          doc
+            .moveTo(px, sy(l.ys[i] - e))
+            .lineTo(px, sy(l.ys[i] + e))
+            .lineWidth(0.6)
+            .strokeColor(l.color)
+            .stroke();
         }
         doc.circle(px, py, l.radius ?? 1.6).fill(l.color);
       }
@@ -115,7 +173,11 @@ function drawLayer(doc: Doc, l: Layer, sx: Scale, sy: Scale, f: ChartFrame): voi
       doc.moveTo(sx(l.xs[0]), sy(l.upper[0]));
       for (let i = 1; i < n; i++) doc.lineTo(sx(l.xs[i]), sy(l.upper[i]));
       for (let i = n - 1; i >= 0; i--) doc.lineTo(sx(l.xs[i]), sy(l.lower[i]));
-      doc.closePath().fillOpacity(l.opacity ?? 0.22).fill(l.color).fillOpacity(1);
+      doc
+        .closePath()
+        .fillOpacity(l.opacity ?? 0.22)
+        .fill(l.color)
+        .fillOpacity(1);
       return;
     }
     case 'hline': {
@@ -124,14 +186,28 @@ function drawLayer(doc: Doc, l: Layer, sx: Scale, sy: Scale, f: ChartFrame): voi
       doc.moveTo(x0, sy(l.y)).lineTo(x1, sy(l.y)).lineWidth(0.8).strokeColor(l.color);
       if (l.dash) doc.dash(l.dash, { space: l.dash });
       doc.stroke().undash();
-      if (l.label) doc.font('regular').fontSize(6.5).fillColor(l.color).text(l.label, x0 + 3, sy(l.y) - 9, { lineBreak: false });
+      if (l.label)
+        doc
+          .font('regular')
+          .fontSize(6.5)
+          .fillColor(l.color)
+          .text(l.label, x0 + 3, sy(l.y) - 9, { lineBreak: false });
       return;
     }
     case 'vline': {
-      doc.moveTo(sx(l.x), f.y).lineTo(sx(l.x), f.y + f.height).lineWidth(0.7).strokeColor(l.color);
+      doc
+        .moveTo(sx(l.x), f.y)
+        .lineTo(sx(l.x), f.y + f.height)
+        .lineWidth(0.7)
+        .strokeColor(l.color);
       if (l.dash) doc.dash(l.dash, { space: l.dash });
       doc.stroke().undash();
-      if (l.label) doc.font('regular').fontSize(6.5).fillColor(l.color).text(l.label, sx(l.x) + 2, f.y + 14, { lineBreak: false });
+      if (l.label)
+        doc
+          .font('regular')
+          .fontSize(6.5)
+          .fillColor(l.color)
+          .text(l.label, sx(l.x) + 2, f.y + 14, { lineBreak: false });
       return;
     }
   }
@@ -141,7 +217,9 @@ function drawLayer(doc: Doc, l: Layer, sx: Scale, sy: Scale, f: ChartFrame): voi
 export function domainOf(...arrays: ArrayLike<number>[]): [number, number] {
   let lo = Infinity;
   let hi = -Infinity;
-  for (const a of arrays) for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i])) (lo = Math.min(lo, a[i])), (hi = Math.max(hi, a[i]));
+  for (const a of arrays)
+    for (let i = 0; i < a.length; i++)
+      if (Number.isFinite(a[i])) (lo = Math.min(lo, a[i])), (hi = Math.max(hi, a[i]));
   if (lo === Infinity) return [0, 1];
   if (lo === hi) return [lo - Math.abs(lo || 1) * 0.05, hi + Math.abs(hi || 1) * 0.05];
   const pad = (hi - lo) * 0.04;

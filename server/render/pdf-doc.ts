@@ -37,7 +37,8 @@ export const MARGIN = 50;
 
 export function createReportDoc(id: DocIdentity): Doc {
   const date = new Date(id.dateIso);
-  if (!Number.isFinite(date.getTime())) throw new Error(`report date "${id.dateIso}" is not a time`);
+  if (!Number.isFinite(date.getTime()))
+    throw new Error(`report date "${id.dateIso}" is not a time`);
   const doc = new PDFDocument({
     size: 'A4',
     margins: { top: MARGIN + 14, bottom: MARGIN + 10, left: MARGIN, right: MARGIN },
@@ -89,12 +90,56 @@ export function finishReportDoc(doc: Doc, id: DocIdentity): Promise<Buffer> {
     const bottom = doc.page.margins.bottom;
     doc.page.margins.bottom = 0; // writing inside the margin must not start a new page
     doc.save();
-    doc.font('bold').fontSize(8).fillColor('#1f2a36').text(clipLine(id.title, 110), MARGIN, MARGIN - 18, { width: width - 2 * MARGIN - 150, lineBreak: false, ellipsis: true });
-    doc.font('mono').fontSize(8).fillColor('#1f2a36').text(`report ${id.reportId}`, width - MARGIN - 150, MARGIN - 18, { width: 150, align: 'right', lineBreak: false });
-    doc.moveTo(MARGIN, MARGIN - 6).lineTo(width - MARGIN, MARGIN - 6).lineWidth(0.5).strokeColor('#8a8f98').stroke();
-    doc.moveTo(MARGIN, height - MARGIN + 2).lineTo(width - MARGIN, height - MARGIN + 2).lineWidth(0.5).strokeColor('#8a8f98').stroke();
-    doc.font('mono').fontSize(6.5).fillColor('#46505c').text(`report ${id.reportId} · content SHA-256 ${id.contentSha256}`, MARGIN, height - MARGIN + 7, { width: width - 2 * MARGIN - 70, lineBreak: false });
-    doc.font('regular').fontSize(7.5).fillColor('#46505c').text(`page ${i - range.start + 1} of ${range.count}`, width - MARGIN - 70, height - MARGIN + 6, { width: 70, align: 'right', lineBreak: false });
+    doc
+      .font('bold')
+      .fontSize(8)
+      .fillColor('#1f2a36')
+      .text(clipLine(id.title, 110), MARGIN, MARGIN - 18, {
+        width: width - 2 * MARGIN - 150,
+        lineBreak: false,
+        ellipsis: true,
+      });
+    doc
+      .font('mono')
+      .fontSize(8)
+      .fillColor('#1f2a36')
+      .text(`report ${id.reportId}`, width - MARGIN - 150, MARGIN - 18, {
+        width: 150,
+        align: 'right',
+        lineBreak: false,
+      });
+    doc
+      .moveTo(MARGIN, MARGIN - 6)
+      .lineTo(width - MARGIN, MARGIN - 6)
+      .lineWidth(0.5)
+      .strokeColor('#8a8f98')
+      .stroke();
+    doc
+      .moveTo(MARGIN, height - MARGIN + 2)
+      .lineTo(width - MARGIN, height - MARGIN + 2)
+      .lineWidth(0.5)
+      .strokeColor('#8a8f98')
+      .stroke();
+    doc
+      .font('mono')
+      .fontSize(6.5)
+      .fillColor('#46505c')
+      .text(
+        `report ${id.reportId} · content SHA-256 ${id.contentSha256}`,
+        MARGIN,
+        height - MARGIN + 7,
+        { width: width - 2 * MARGIN - 70, lineBreak: false },
+      );
+    doc
+      .font('regular')
+      .fontSize(7.5)
+      .fillColor('#46505c')
+      .text(
+        `page ${i - range.start + 1} of ${range.count}`,
+        width - MARGIN - 70,
+        height - MARGIN + 6,
+        { width: 70, align: 'right', lineBreak: false },
+      );
     doc.restore();
     doc.page.margins.bottom = bottom;
   }

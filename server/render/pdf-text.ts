@@ -18,7 +18,8 @@ export function breakLongRuns(text: string): string {
   return text.replace(LONG_RUN, (run) => {
     const chars = Array.from(run);
     const lines: string[] = [];
-    for (let i = 0; i < chars.length; i += LONGEST_RUN) lines.push(chars.slice(i, i + LONGEST_RUN).join(''));
+    for (let i = 0; i < chars.length; i += LONGEST_RUN)
+      lines.push(chars.slice(i, i + LONGEST_RUN).join(''));
     return lines.join('\n');
   });
 }
@@ -35,7 +36,9 @@ type Wrapping = { text: (...a: any[]) => any; heightOfString: (...a: any[]) => n
 export function withBoundedWrapping<D extends Wrapping>(doc: D): D {
   const text = doc.text.bind(doc);
   const heightOfString = doc.heightOfString.bind(doc);
-  doc.text = (s: unknown, ...rest: unknown[]) => text(typeof s === 'string' ? breakLongRuns(s) : s, ...rest);
-  doc.heightOfString = (s: unknown, ...rest: unknown[]) => heightOfString(typeof s === 'string' ? breakLongRuns(s) : s, ...rest);
+  doc.text = (s: unknown, ...rest: unknown[]) =>
+    text(typeof s === 'string' ? breakLongRuns(s) : s, ...rest);
+  doc.heightOfString = (s: unknown, ...rest: unknown[]) =>
+    heightOfString(typeof s === 'string' ? breakLongRuns(s) : s, ...rest);
   return doc;
 }

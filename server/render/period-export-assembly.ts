@@ -40,11 +40,18 @@ export function assembleExport(a: ExportAssembly): Uint8Array {
   const all: ZipEntry[] = [
     ...a.entries,
     { name: 'manifest.json', bytes: enc.encode(JSON.stringify(manifest, null, 2) + '\n') },
-    { name: 'SHA256SUMS', bytes: enc.encode(files.map((f) => `${f.sha256}  ${f.name}`).join('\n') + '\n') },
+    {
+      name: 'SHA256SUMS',
+      bytes: enc.encode(files.map((f) => `${f.sha256}  ${f.name}`).join('\n') + '\n'),
+    },
   ];
   return writeZip(all, a.latestApproval);
 }
 
 export function exportFiles(entries: ZipEntry[]): ExportFile[] {
-  return entries.map((e) => ({ name: e.name, size: e.bytes.length, sha256: createHash('sha256').update(e.bytes).digest('hex') }));
+  return entries.map((e) => ({
+    name: e.name,
+    size: e.bytes.length,
+    sha256: createHash('sha256').update(e.bytes).digest('hex'),
+  }));
 }

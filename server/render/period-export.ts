@@ -33,7 +33,8 @@ function bound(s: string | undefined, field: string, endOfDay: boolean): number 
   if (s === undefined) return null;
   const dateOnly = /^\d{4}-\d{2}-\d{2}$/.test(s);
   const ms = Date.parse(dateOnly ? `${s}T00:00:00Z` : s);
-  if (!Number.isFinite(ms)) throw new InputError(`"${s}" is not a date (YYYY-MM-DD or ISO time)`, { field });
+  if (!Number.isFinite(ms))
+    throw new InputError(`"${s}" is not a date (YYYY-MM-DD or ISO time)`, { field });
   return dateOnly && endOfDay ? ms + DAY : ms;
 }
 
@@ -46,12 +47,23 @@ function allVessels(store: Store): Vessel[] {
   }
 }
 
-export function selectFits(store: Store, sel: ExportSelection): { fit: StoredFit; vessel: Vessel; testedAt: string }[] {
+export function selectFits(
+  store: Store,
+  sel: ExportSelection,
+): { fit: StoredFit; vessel: Vessel; testedAt: string }[] {
   const from = bound(sel.from, 'from', false);
   const to = bound(sel.to, 'to', true);
-  if (from !== null && to !== null && to <= from) throw new InputError('--to is before --from', { field: 'to' });
-  const vessels = allVessels(store).filter((v) => (sel.site === undefined || v.site === sel.site) && (sel.vessel === undefined || String(v.id) === sel.vessel || v.name === sel.vessel));
-  if (sel.vessel !== undefined && vessels.length === 0) throw new InputError(`no vessel "${sel.vessel}"${sel.site ? ` at site "${sel.site}"` : ''}`, { field: 'vessel' });
+  if (from !== null && to !== null && to <= from)
+    throw new InputError('--to is before --from', { field: 'to' });
+  const vessels = allVessels(store).filter(
+    (v) =>
+      (sel.site === undefined || v.site === sel.site) &&
+      (sel.vessel === undefined || String(v.id) === sel.vessel || v.name === sel.vessel),
+  );
+  if (sel.vessel !== undefined && vessels.length === 0)
+    throw new InputError(`no vessel "${sel.vessel}"${sel.site ? ` at site "${sel.site}"` : ''}`, {
+      field: 'vessel',
+    });
   const out: { fit: StoredFit; vessel: Vessel; testedAt: string }[] = [];
   for (const v of vessels) {
     for (const f of allFitsOfVessel(store, v.id).filter(countsInHistory)) {
@@ -66,18 +78,17 @@ export function selectFits(store: Store, sel: ExportSelection): { fit: StoredFit
   return out.sort((a, b) => a.fit.id - b.fit.id);
 }
 
-
 /** What the archive holds and how to open it safely (written into every export). */
 const EXPORT_README = [
   'efflux period export',
   '',
   'reports/            one PDF fit report per approved fit (each carries its report.json; check with efflux report verify)',
-  'summary.csv         one row per fit (RFC 4180, UTF-8, CRLF); tested_at is the test\'s one date, UTC',
+  "summary.csv         one row per fit (RFC 4180, UTF-8, CRLF); tested_at is the test's one date, UTC",
   'audit-excerpt.jsonl the audit entries of these tests and fits, whole, with their chain hashes',
   'manifest.json       the selection, the software, every file with its SHA-256; SHA256SUMS the same for sha256sum -c',
   '',
   'Opening summary.csv in a spreadsheet: text cells that begin with =, +, -, @, a tab or a carriage return',
-  'are written with a leading apostrophe (\') inside quotes, as the OWASP guidance on CSV injection',
+  "are written with a leading apostrophe (') inside quotes, as the OWASP guidance on CSV injection",
   'recommends, so no cell is run as a formula; remove the apostrophe only if you trust the text.',
   'Numbers (including negative ones) are written as plain numbers.',
   '',
@@ -106,7 +117,12 @@ export interface ExportSteps {
   chosen?: ReturnType<typeof selectFits>;
 }
 
-export async function periodExport(store: Store, sel: ExportSelection, software: SoftwareRecord, steps: ExportSteps = {}): Promise<ExportResult> {
+export async function periodExport(
+  store: Store,
+  sel: ExportSelection,
+  software: SoftwareRecord,
+  steps: ExportSteps = {},
+): Promise<ExportResult> {
   const renderPdf = steps.renderPdf ?? renderFitReportPdf;
   const assemble = steps.assemble ?? (async (a: ExportAssembly) => assembleExport(a));
   const chosen = steps.chosen ?? selectFits(store, sel);
@@ -114,10 +130,28 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
   steps.onProgress?.(0, chosen.length);
   const entries: ZipEntry[] = [];
   // numbers as numbers, text neutralised against spreadsheet formulas (core/report/csv.ts)
-  const rows: (string | number | null)[][] = [[
-    'fit_id', 'report_id', 'site', 'vessel', 'outlet', 'tested_at', 'cd', 'cd_standard_uncertainty', 'cd_coverage_factor', 'cd_expanded_uncertainty',
-    'cda_m2', 'cda_standard_uncertainty_m2', 'warnings', 'approved_by', 'approved_at', 'raw_file', 'raw_sha256', 'report_file',
-  ]];
+  const rows: (string | number | null)[][] = [
+    [
+      'fit_id',
+      'report_id',
+      'site',
+      'vessel',
+      'outlet',
+      'tested_at',
+      'cd',
+      'cd_standard_uncertainty',
+      'cd_coverage_factor',
+      'cd_expanded_uncertainty',
+      'cda_m2',
+      'cda_standard_uncertainty_m2',
+      'warnings',
+      'approved_by',
+      'approved_at',
+      'raw_file',
+      'raw_sha256',
+      'report_file',
+    ],
+  ];
   const auditSeqs = new Set<number>();
   const audit: AuditEntry[] = [];
   let latest = '1980-01-01T00:00:00.000Z';
@@ -129,13 +163,31 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
     const cd = report.results.dischargeCoefficient;
     const ea = report.results.effectiveArea;
     rows.push([
-      fit.id, report.reportId, vessel.site, vessel.name, report.outlet.key ?? '', testedAt,
-      cd?.value ?? null, cd?.standardUncertainty ?? null, cd?.coverageFactor ?? null, cd?.expandedUncertainty ?? null,
-      ea.value, ea.standardUncertainty ?? null, report.warnings.length, report.review?.by ?? '', report.review?.at ?? '',
-      report.rawFiles[0].fileName, report.rawFiles[0].sha256, pdfName,
+      fit.id,
+      report.reportId,
+      vessel.site,
+      vessel.name,
+      report.outlet.key ?? '',
+      testedAt,
+      cd?.value ?? null,
+      cd?.standardUncertainty ?? null,
+      cd?.coverageFactor ?? null,
+      cd?.expandedUncertainty ?? null,
+      ea.value,
+      ea.standardUncertainty ?? null,
+      report.warnings.length,
+      report.review?.by ?? '',
+      report.review?.at ?? '',
+      report.rawFiles[0].fileName,
+      report.rawFiles[0].sha256,
+      pdfName,
     ]);
-    if (report.review && Date.parse(report.review.at) > Date.parse(latest)) latest = report.review.at;
-    for (const [type, id] of [['test', fit.testId], ['fit', fit.id]] as const) {
+    if (report.review && Date.parse(report.review.at) > Date.parse(latest))
+      latest = report.review.at;
+    for (const [type, id] of [
+      ['test', fit.testId],
+      ['fit', fit.id],
+    ] as const) {
       for (const e of store.audit.list({ entityType: type, entityId: String(id), limit: 1000 })) {
         if (!auditSeqs.has(e.seq)) auditSeqs.add(e.seq), audit.push(e);
       }
@@ -147,7 +199,16 @@ export async function periodExport(store: Store, sel: ExportSelection, software:
   const enc = new TextEncoder();
   entries.push({ name: 'summary.csv', bytes: enc.encode(csvText(rows)) });
   entries.push({ name: 'README.txt', bytes: enc.encode(EXPORT_README) });
-  entries.push({ name: 'audit-excerpt.jsonl', bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n') });
-  const zip = await assemble({ entries, selection: { ...sel }, software, fits: chosen.length, latestApproval: latest });
+  entries.push({
+    name: 'audit-excerpt.jsonl',
+    bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n'),
+  });
+  const zip = await assemble({
+    entries,
+    selection: { ...sel },
+    software,
+    fits: chosen.length,
+    latestApproval: latest,
+  });
   return { zip, fits: chosen.length, fileCount: entries.length + 2 };
 }

@@ -18,7 +18,16 @@ export interface ReportFile {
 /** PDF literal string → text (ASCII values; our writer puts nothing else in the Efflux* entries). */
 function pdfString(s: string): string {
   return s.replace(/\\([nrtbf()\\]|[0-7]{1,3})/g, (_m, c: string) => {
-    const map: Record<string, string> = { n: '\n', r: '\r', t: '\t', b: '\b', f: '\f', '(': '(', ')': ')', '\\': '\\' };
+    const map: Record<string, string> = {
+      n: '\n',
+      r: '\r',
+      t: '\t',
+      b: '\b',
+      f: '\f',
+      '(': '(',
+      ')': ')',
+      '\\': '\\',
+    };
     return map[c] ?? String.fromCharCode(parseInt(c, 8));
   });
 }
@@ -28,7 +37,9 @@ const LITERAL = String.raw`\(((?:\\.|[^\\)])*)\)`;
 /** Info entries are written directly or (pdfkit) as references to string objects: read both. */
 function infoOf(text: string): Record<string, string> {
   const info: Record<string, string> = {};
-  for (const m of text.matchAll(new RegExp(String.raw`/(Efflux[A-Za-z0-9]+|Keywords|Title)\s*(?:${LITERAL}|(\d+) 0 R)`, 'g'))) {
+  for (const m of text.matchAll(
+    new RegExp(String.raw`/(Efflux[A-Za-z0-9]+|Keywords|Title)\s*(?:${LITERAL}|(\d+) 0 R)`, 'g'),
+  )) {
     if (m[2] !== undefined) info[m[1]] = pdfString(m[2]);
     else {
       const obj = new RegExp(String.raw`(?:^|\s)${m[3]} 0 obj\s*${LITERAL}\s*endobj`).exec(text);
@@ -60,8 +71,14 @@ export function readReportFile(bytes: Buffer, fileName: string): ReportFile {
   if (head === '%PDF-') {
     const text = bytes.toString('latin1');
     const info = infoOf(text);
-    if (!info.EffluxReportId || !info.EffluxContentSha256 || (info.EffluxReportKind !== 'fit' && info.EffluxReportKind !== 'outlet')) {
-      throw new InputError('not an efflux report: the PDF carries no report id and content hash', { file: fileName });
+    if (
+      !info.EffluxReportId ||
+      !info.EffluxContentSha256 ||
+      (info.EffluxReportKind !== 'fit' && info.EffluxReportKind !== 'outlet')
+    ) {
+      throw new InputError('not an efflux report: the PDF carries no report id and content hash', {
+        file: fileName,
+      });
     }
     const json = attachment(bytes, text);
     let report: Record<string, any> | null = null;
@@ -70,7 +87,14 @@ export function readReportFile(bytes: Buffer, fileName: string): ReportFile {
     } catch {
       report = null;
     }
-    return { type: 'pdf', kind: info.EffluxReportKind, reportId: info.EffluxReportId, contentSha256: info.EffluxContentSha256, report, info };
+    return {
+      type: 'pdf',
+      kind: info.EffluxReportKind,
+      reportId: info.EffluxReportId,
+      contentSha256: info.EffluxContentSha256,
+      report,
+      info,
+    };
   }
   let report: Record<string, any>;
   try {
@@ -78,9 +102,23 @@ export function readReportFile(bytes: Buffer, fileName: string): ReportFile {
   } catch {
     throw new InputError('neither a PDF nor JSON', { file: fileName });
   }
-  const kind = report?.format === 'efflux-fit-report' ? 'fit' : report?.format === 'efflux-outlet-report' ? 'outlet' : null;
+  const kind =
+    report?.format === 'efflux-fit-report'
+      ? 'fit'
+      : report?.format === 'efflux-outlet-report'
+        ? 'outlet'
+        : null;
   if (!kind || typeof report.reportId !== 'string' || typeof report.contentSha256 !== 'string') {
-    throw new InputError('not an efflux report (format, reportId or contentSha256 missing)', { file: fileName });
+    throw new InputError('not an efflux report (format, reportId or contentSha256 missing)', {
+      file: fileName,
+    });
   }
-  return { type: 'json', kind, reportId: report.reportId, contentSha256: report.contentSha256, report, info: {} };
+  return {
+    type: 'json',
+    kind,
+    reportId: report.reportId,
+    contentSha256: report.contentSha256,
+    report,
+    info: {},
+  };
 }

@@ -3,7 +3,14 @@
  * hashes, the vessel and outlet, the other fits of the same test, the audit entries, user names.
  */
 import type { FitJson } from '../core/analysis-contract.js';
-import type { ApprovedFitRecord, AuditRecord, FitReportRecords, OutletRecord, OutletReportRecords, VesselRecord } from '../core/report/index.js';
+import type {
+  ApprovedFitRecord,
+  AuditRecord,
+  FitReportRecords,
+  OutletRecord,
+  OutletReportRecords,
+  VesselRecord,
+} from '../core/report/index.js';
 import type { Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
 import type { Outlet, Vessel } from '../store/vessels.js';
@@ -18,8 +25,18 @@ function userName(store: Store, id: number | null): string | null {
   }
 }
 
-const vesselRecord = (v: Vessel): VesselRecord => ({ id: v.id, site: v.site, name: v.name, revision: v.revision, spec: v.spec });
-const outletRecord = ({ spec: _spec, vesselId: _vessel, ...o }: Outlet & { vesselId?: number }): OutletRecord => o;
+const vesselRecord = (v: Vessel): VesselRecord => ({
+  id: v.id,
+  site: v.site,
+  name: v.name,
+  revision: v.revision,
+  spec: v.spec,
+});
+const outletRecord = ({
+  spec: _spec,
+  vesselId: _vessel,
+  ...o
+}: Outlet & { vesselId?: number }): OutletRecord => o;
 
 const numberAt = (r: Record<string, unknown>, key: string) => {
   const v = (r[key] as { value?: unknown } | null)?.value;
@@ -30,8 +47,22 @@ function auditFor(store: Store, entityType: string, entityId: number): AuditReco
   const out: AuditRecord[] = [];
   let afterSeq = 0;
   for (;;) {
-    const page = store.audit.list({ entityType, entityId: String(entityId), afterSeq, limit: 1000 });
-    for (const e of page) out.push({ seq: e.seq, at: e.at, actor: e.actorName, action: e.action, entityType: e.entityType, entityId: e.entityId, hash: e.hash });
+    const page = store.audit.list({
+      entityType,
+      entityId: String(entityId),
+      afterSeq,
+      limit: 1000,
+    });
+    for (const e of page)
+      out.push({
+        seq: e.seq,
+        at: e.at,
+        actor: e.actorName,
+        action: e.action,
+        entityType: e.entityType,
+        entityId: e.entityId,
+        hash: e.hash,
+      });
     if (page.length < 1000) return out;
     afterSeq = page[page.length - 1].seq;
   }
@@ -42,11 +73,22 @@ export function reviewOf(store: Store, f: StoredFit) {
   // selfReview only when the approval was recorded as one (approvals made before the four-eyes rule
   // are not marked), so reports issued before it existed still rebuild to the same content
   const self = f.review.selfReview && approvalRecordedAsSelfReview(store, f.id);
-  return { decision: f.status as 'approved' | 'rejected', by: userName(store, f.review.by), at: f.review.at!, comment: f.review.comment, ...(self ? { selfReview: true as const } : {}) };
+  return {
+    decision: f.status as 'approved' | 'rejected',
+    by: userName(store, f.review.by),
+    at: f.review.at!,
+    comment: f.review.comment,
+    ...(self ? { selfReview: true as const } : {}),
+  };
 }
 
 function approvalRecordedAsSelfReview(store: Store, fitId: number): boolean {
-  const entries = store.audit.list({ entityType: 'fit', entityId: String(fitId), action: 'fit.approve', limit: 10 });
+  const entries = store.audit.list({
+    entityType: 'fit',
+    entityId: String(fitId),
+    action: 'fit.approve',
+    limit: 10,
+  });
   return entries.some((e) => (e.after as { selfReview?: unknown } | null)?.selfReview === true);
 }
 
@@ -54,9 +96,13 @@ export function fitReportRecords(store: Store, fitId: number): FitReportRecords 
   const fit = store.fits.get(fitId);
   const test = store.tests.get(fit.testId);
   const vessel = store.vessels.get(fit.vesselId);
-  const outlet = fit.outletId === null ? null : (vessel.outlets.find((o) => o.id === fit.outletId) ?? null);
+  const outlet =
+    fit.outletId === null ? null : (vessel.outlets.find((o) => o.id === fit.outletId) ?? null);
   const siblings = store.fits.listByTest(fit.testId);
-  const audit = [...auditFor(store, 'test', test.id), ...siblings.flatMap((s) => auditFor(store, 'fit', s.id))];
+  const audit = [
+    ...auditFor(store, 'test', test.id),
+    ...siblings.flatMap((s) => auditFor(store, 'fit', s.id)),
+  ];
   return {
     vessel: vesselRecord(vessel),
     outlet: outlet ? outletRecord(outlet) : null,
@@ -141,6 +187,12 @@ export function outletReportRecords(store: Store, outletId: number): OutletRepor
     // an event with no outlet applies to the whole vessel
     events: events
       .filter((e) => e.outletId === null || e.outletId === outletId)
-      .map((e) => ({ id: e.id, kind: e.kind, occurredAt: e.occurredAt, notes: e.notes, outletId: e.outletId })),
+      .map((e) => ({
+        id: e.id,
+        kind: e.kind,
+        occurredAt: e.occurredAt,
+        notes: e.notes,
+        outletId: e.outletId,
+      })),
   };
 }

@@ -30,7 +30,12 @@ export function fitReport(store: Store, fitId: number, software: SoftwareRecord)
   return buildFitReport(fitReportRecords(store, fitId), software, sha256Hex);
 }
 
-export function outletReport(store: Store, outletId: number, software: SoftwareRecord, asOf?: string): OutletReport {
+export function outletReport(
+  store: Store,
+  outletId: number,
+  software: SoftwareRecord,
+  asOf?: string,
+): OutletReport {
   return buildOutletReport(outletReportRecords(store, outletId), software, sha256Hex, asOf);
 }
 
@@ -59,7 +64,9 @@ function storedRequest(store: Store, fitId: number): { request: AnalysisRequest;
   return {
     request: {
       log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
-      baro: test.baro ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName } : undefined,
+      baro: test.baro
+        ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName }
+        : undefined,
       vessel: fit.vessel,
       settings: fit.settings,
     },
@@ -80,7 +87,9 @@ const withoutTiming = (r: Record<string, unknown>) => {
 export const ENGINE_CHANGE_TOLERANCE = 0.05;
 
 /** The headline results of a fit JSON: Cd·a and Cd, each with its standard uncertainty. */
-function headlines(r: FitJson): { name: string; unit: string; value: number | null; u: number | null }[] {
+function headlines(
+  r: FitJson,
+): { name: string; unit: string; value: number | null; u: number | null }[] {
   const pick = (e: { value?: unknown; standardUncertainty?: unknown } | null | undefined) => ({
     value: typeof e?.value === 'number' ? e.value : null,
     u: typeof e?.standardUncertainty === 'number' ? e.standardUncertainty : null,
@@ -107,7 +116,10 @@ export function engineChange(stored: FitJson, again: FitJson): { ok: boolean; te
     if (!(share <= ENGINE_CHANGE_TOLERANCE)) ok = false;
     return `${s.name} ${s.value.toPrecision(7)}${s.unit} → ${a.value.toPrecision(7)}${s.unit}, difference ${diff.toPrecision(2)}${s.unit} = ${(share * 100).toPrecision(2)} % of its standard uncertainty`;
   });
-  return { ok, text: `${parts.join('; ')} (tolerance ${ENGINE_CHANGE_TOLERANCE * 100} % of the stored standard uncertainty)` };
+  return {
+    ok,
+    text: `${parts.join('; ')} (tolerance ${ENGINE_CHANGE_TOLERANCE * 100} % of the stored standard uncertainty)`,
+  };
 }
 
 /**
@@ -119,31 +131,53 @@ export async function reproduceFit(store: Store, fitId: number): Promise<Check> 
   const { request, result } = storedRequest(store, fitId);
   const raw = sha256(request.log.bytes);
   const test = store.tests.get(store.fits.get(fitId).testId);
-  if (raw !== test.sha256) return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored raw bytes hash to ${raw}, not the recorded ${test.sha256}` };
+  if (raw !== test.sha256)
+    return {
+      name: `reproduce fit ${fitId}`,
+      ok: false,
+      detail: `the stored raw bytes hash to ${raw}, not the recorded ${test.sha256}`,
+    };
   let again: FitJson;
   try {
     again = analyzeDrainTest(await expandWorkbook(request)).fit;
   } catch (e) {
-    return { name: `reproduce fit ${fitId}`, ok: false, detail: `the stored input no longer analyses: ${(e as Error).message}` };
+    return {
+      name: `reproduce fit ${fitId}`,
+      ok: false,
+      detail: `the stored input no longer analyses: ${(e as Error).message}`,
+    };
   }
   const name = `reproduce fit ${fitId}`;
   const storedEngine = typeof result.engineVersion === 'string' ? result.engineVersion : 'unknown';
   if (storedEngine !== again.engineVersion) {
     const change = engineChange(result, again);
-    const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
+    const differences = compareReports(
+      withoutTiming(result),
+      withoutTiming(again as Record<string, unknown>),
+      10,
+    );
     return {
       name,
       // a newer engine may choose another window or step: a difference is reported, not taken for tampering
       // (the stored result's hash and the audit chain are checked separately)
       ok: true,
-      detail: `the engine changed since this fit was stored (stored by ${storedEngine}, recomputed by ${again.engineVersion}), so the numbers are compared, not the bits; the stored result is kept as it was: ${change.ok ? 'within' : 'BEYOND'} the tolerance: ${change.text}${change.ok ? '' : '; a refit would adopt the new engine\'s result'}`,
+      detail: `the engine changed since this fit was stored (stored by ${storedEngine}, recomputed by ${again.engineVersion}), so the numbers are compared, not the bits; the stored result is kept as it was: ${change.ok ? 'within' : 'BEYOND'} the tolerance: ${change.text}${change.ok ? '' : "; a refit would adopt the new engine's result"}`,
       differences,
     };
   }
   const a = canonicalJson(withoutTiming(result));
   const b = canonicalJson(withoutTiming(again as Record<string, unknown>));
-  if (a === b) return { name, ok: true, detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)' };
-  const differences = compareReports(withoutTiming(result), withoutTiming(again as Record<string, unknown>), 10);
+  if (a === b)
+    return {
+      name,
+      ok: true,
+      detail: 'recomputed from the stored raw bytes and settings: identical numbers (timing aside)',
+    };
+  const differences = compareReports(
+    withoutTiming(result),
+    withoutTiming(again as Record<string, unknown>),
+    10,
+  );
   return {
     name,
     ok: false,
@@ -156,30 +190,65 @@ export async function reproduceFit(store: Store, fitId: number): Promise<Check> 
 function auditedResult(store: Store, fitId: number): Check {
   const fit = store.fits.get(fitId);
   const entries = store.audit.list({ entityType: 'fit', entityId: String(fitId), limit: 1000 });
-  const last = [...entries].reverse().find((e) => (e.after as { resultSha256?: string } | null)?.resultSha256);
+  const last = [...entries]
+    .reverse()
+    .find((e) => (e.after as { resultSha256?: string } | null)?.resultSha256);
   const recorded = (last?.after as { resultSha256?: string } | undefined)?.resultSha256;
   const now = sha256(canonicalJson(fit.result));
-  if (!recorded) return { name: `audit record of fit ${fitId}`, ok: false, detail: 'the audit log holds no hash of this fit' };
-  if (recorded !== now) return { name: `audit record of fit ${fitId}`, ok: false, detail: `the stored fit result was changed after audit entry ${last!.seq} recorded it (hash ${now.slice(0, 16)}…, recorded ${recorded.slice(0, 16)}…)` };
-  return { name: `audit record of fit ${fitId}`, ok: true, detail: `stored result matches the hash in audit entry ${last!.seq}` };
+  if (!recorded)
+    return {
+      name: `audit record of fit ${fitId}`,
+      ok: false,
+      detail: 'the audit log holds no hash of this fit',
+    };
+  if (recorded !== now)
+    return {
+      name: `audit record of fit ${fitId}`,
+      ok: false,
+      detail: `the stored fit result was changed after audit entry ${last!.seq} recorded it (hash ${now.slice(0, 16)}…, recorded ${recorded.slice(0, 16)}…)`,
+    };
+  return {
+    name: `audit record of fit ${fitId}`,
+    ok: true,
+    detail: `stored result matches the hash in audit entry ${last!.seq}`,
+  };
 }
 
 function softwareOf(file: ReportFile): SoftwareRecord {
   if (file.report?.software) return file.report.software as SoftwareRecord;
-  const [name, version, gitCommit] = (file.info.EffluxSoftware ?? 'efflux unknown unknown').split(' ');
+  const [name, version, gitCommit] = (file.info.EffluxSoftware ?? 'efflux unknown unknown').split(
+    ' ',
+  );
   return { name, version, gitCommit };
 }
 
-export async function verifyReport(store: Store, bytes: Buffer, fileName: string): Promise<VerifyOutcome> {
+export async function verifyReport(
+  store: Store,
+  bytes: Buffer,
+  fileName: string,
+): Promise<VerifyOutcome> {
   const file = readReportFile(bytes, fileName);
   const checks: Check[] = [];
   // 1. the file agrees with itself
   if (file.report) {
     const h = contentHash(file.report, sha256Hex);
-    const ok = h === file.contentSha256 && reportIdOf(h) === file.reportId && file.report.contentSha256 === file.contentSha256;
-    checks.push({ name: 'file content hash', ok, detail: ok ? `the report's content hashes to ${h}` : `the report's content hashes to ${h}, but the file states ${file.contentSha256} (id ${file.reportId}): edited after it was written` });
+    const ok =
+      h === file.contentSha256 &&
+      reportIdOf(h) === file.reportId &&
+      file.report.contentSha256 === file.contentSha256;
+    checks.push({
+      name: 'file content hash',
+      ok,
+      detail: ok
+        ? `the report's content hashes to ${h}`
+        : `the report's content hashes to ${h}, but the file states ${file.contentSha256} (id ${file.reportId}): edited after it was written`,
+    });
   } else {
-    checks.push({ name: 'file content hash', ok: false, detail: 'the PDF has no attached report.json; only the bytes can be compared' });
+    checks.push({
+      name: 'file content hash',
+      ok: false,
+      detail: 'the PDF has no attached report.json; only the bytes can be compared',
+    });
   }
   // 2. rebuilt from the records
   const software = softwareOf(file);
@@ -196,21 +265,35 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
     fitIds.push(...rebuilt.fits.map((f) => f.fitId));
   }
   const same = rebuilt.contentSha256 === file.contentSha256;
-  const differences = same || !file.report ? [] : compareReports(file.report, rebuilt, 20, ['reportId', 'contentSha256']);
+  const differences =
+    same || !file.report
+      ? []
+      : compareReports(file.report, rebuilt, 20, ['reportId', 'contentSha256']);
   checks.push({
     name: 'records',
     ok: same,
     detail: same
       ? `rebuilt from the database: same content (report ${rebuilt.reportId})`
-      : `rebuilt from the database the report is ${rebuilt.reportId}, not ${file.reportId}` + (differences.length ? `; differs at ${differences.map((d) => d.path).join(', ')}` : ''),
+      : `rebuilt from the database the report is ${rebuilt.reportId}, not ${file.reportId}` +
+        (differences.length ? `; differs at ${differences.map((d) => d.path).join(', ')}` : ''),
     differences,
   });
   // 3. the PDF's bytes
   if (file.type === 'pdf') {
-    const pdf = file.kind === 'fit' ? await renderFitReportPdf(rebuilt as FitReport) : await renderOutletReportPdf(rebuilt as OutletReport);
+    const pdf =
+      file.kind === 'fit'
+        ? await renderFitReportPdf(rebuilt as FitReport)
+        : await renderOutletReportPdf(rebuilt as OutletReport);
     const a = sha256(bytes);
     const b = sha256(pdf);
-    checks.push({ name: 'PDF bytes', ok: a === b, detail: a === b ? `re-rendered PDF is byte-identical (SHA-256 ${a})` : `re-rendered PDF has SHA-256 ${b}, the file ${a}` });
+    checks.push({
+      name: 'PDF bytes',
+      ok: a === b,
+      detail:
+        a === b
+          ? `re-rendered PDF is byte-identical (SHA-256 ${a})`
+          : `re-rendered PDF has SHA-256 ${b}, the file ${a}`,
+    });
   }
   // 4. every fit reproduces from the stored raw bytes, and matches what the audit log recorded
   for (const id of fitIds) {
@@ -219,7 +302,13 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
   }
   // 5. the audit chain
   const chain = store.audit.verify();
-  checks.push({ name: 'audit chain', ok: chain.ok, detail: chain.ok ? `intact, ${chain.count} entries, head ${chain.head}` : `broken at entry ${chain.brokenAt}: ${chain.reason}` });
+  checks.push({
+    name: 'audit chain',
+    ok: chain.ok,
+    detail: chain.ok
+      ? `intact, ${chain.count} entries, head ${chain.head}`
+      : `broken at entry ${chain.brokenAt}: ${chain.reason}`,
+  });
   // 6. every stored copy (result columns, test dates, status cache) against what it was copied from
   const records = verifyRecords(store);
   checks.push({
@@ -227,7 +316,10 @@ export async function verifyReport(store: Store, bytes: Buffer, fileName: string
     ok: records.ok,
     detail: records.ok
       ? `${records.fitsChecked} fits and ${records.outletsChecked} cached outlet statuses agree with their sources`
-      : records.differences.slice(0, 20).map((d) => d.message).join('; '),
+      : records.differences
+          .slice(0, 20)
+          .map((d) => d.message)
+          .join('; '),
   });
   return { ok: checks.every((c) => c.ok), kind: file.kind, reportId: file.reportId, checks };
 }

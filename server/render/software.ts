@@ -12,7 +12,12 @@ export function gitCommit(env = process.env): string {
   if (env.EFFLUX_GIT_COMMIT) return env.EFFLUX_GIT_COMMIT;
   if (cached !== null) return cached;
   try {
-    cached = execFileSync('git', ['rev-parse', 'HEAD'], { cwd: dirname(fileURLToPath(import.meta.url)), encoding: 'utf8', stdio: ['ignore', 'pipe', 'ignore'] }).trim() || 'unknown';
+    cached =
+      execFileSync('git', ['rev-parse', 'HEAD'], {
+        cwd: dirname(fileURLToPath(import.meta.url)),
+        encoding: 'utf8',
+        stdio: ['ignore', 'pipe', 'ignore'],
+      }).trim() || 'unknown';
   } catch {
     cached = 'unknown';
   }

@@ -16,7 +16,14 @@ export interface ZipEntry {
 function entryTime(iso: string): Date {
   const d = new Date(iso);
   if (!Number.isFinite(d.getTime()) || d.getUTCFullYear() < 1980) return new Date(1980, 0, 1);
-  return new Date(d.getUTCFullYear(), d.getUTCMonth(), d.getUTCDate(), d.getUTCHours(), d.getUTCMinutes(), d.getUTCSeconds());
+  return new Date(
+    d.getUTCFullYear(),
+    d.getUTCMonth(),
+    d.getUTCDate(),
+    d.getUTCHours(),
+    d.getUTCMinutes(),
+    d.getUTCSeconds(),
+  );
 }
 
 export function writeZip(entries: ZipEntry[], modifiedIso: string): Buffer {
@@ -28,12 +35,16 @@ export function writeZip(entries: ZipEntry[], modifiedIso: string): Buffer {
   }
   // fflate lists entries in the object's key order, which puts integer-like names first
   const names = Object.keys(files);
-  if (names.some((n, i) => n !== entries[i].name)) throw new Error('zip entry names must not be bare integers');
+  if (names.some((n, i) => n !== entries[i].name))
+    throw new Error('zip entry names must not be bare integers');
   const out = zipSync(files);
   return Buffer.from(out.buffer, out.byteOffset, out.byteLength);
 }
 
 /** Reads an archive back (for checks and tests), entries in their stored order. */
 export function readZip(buf: Uint8Array): { name: string; bytes: Buffer }[] {
-  return Object.entries(unzipSync(buf)).map(([name, bytes]) => ({ name, bytes: Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength) }));
+  return Object.entries(unzipSync(buf)).map(([name, bytes]) => ({
+    name,
+    bytes: Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength),
+  }));
 }

@@ -181,14 +181,32 @@ export class AuditLog {
       count++;
       const e = toEntry(row);
       if (e.seq !== expectedSeq) {
-        return { ok: false, count, head: prevHash, brokenAt: e.seq, reason: `entry ${expectedSeq} is missing (next is ${e.seq})` };
+        return {
+          ok: false,
+          count,
+          head: prevHash,
+          brokenAt: e.seq,
+          reason: `entry ${expectedSeq} is missing (next is ${e.seq})`,
+        };
       }
       if (e.prevHash !== prevHash) {
-        return { ok: false, count, head: prevHash, brokenAt: e.seq, reason: `entry ${e.seq} does not point at the hash of entry ${e.seq - 1}` };
+        return {
+          ok: false,
+          count,
+          head: prevHash,
+          brokenAt: e.seq,
+          reason: `entry ${e.seq} does not point at the hash of entry ${e.seq - 1}`,
+        };
       }
       const { hash, prevHash: _p, ...rest } = e;
       if (entryHash(prevHash, rest) !== hash) {
-        return { ok: false, count, head: prevHash, brokenAt: e.seq, reason: `entry ${e.seq} was changed after it was written (its hash does not match its content)` };
+        return {
+          ok: false,
+          count,
+          head: prevHash,
+          brokenAt: e.seq,
+          reason: `entry ${e.seq} was changed after it was written (its hash does not match its content)`,
+        };
       }
       prevHash = hash;
       expectedSeq++;

@@ -1,6 +1,9 @@
 /** What the store refuses; the HTTP layer maps these to 404 and 409 problem+json. */
 export class NotFoundError extends Error {
-  constructor(readonly entity: string, readonly id: string | number) {
+  constructor(
+    readonly entity: string,
+    readonly id: string | number,
+  ) {
     super(`${entity} ${id} not found`);
     this.name = 'NotFoundError';
   }
@@ -29,7 +32,10 @@ export class ForbiddenError extends Error {
 
 /** A second upload of the same bytes for the same vessel: 409 naming the first test. */
 export class DuplicateUploadError extends ConflictError {
-  constructor(readonly existingTestId: number, message: string) {
+  constructor(
+    readonly existingTestId: number,
+    message: string,
+  ) {
     super(message);
     this.name = 'DuplicateUploadError';
   }

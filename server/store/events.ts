@@ -43,10 +43,13 @@ export class EventRepo {
 
   constructor(private readonly c: StoreContext) {
     this.q = {
-      insert: c.db.prepare(`INSERT INTO maintenance_events (vessel_id, outlet_id, kind, occurred_at, notes, created_by, created_at)
+      insert:
+        c.db.prepare(`INSERT INTO maintenance_events (vessel_id, outlet_id, kind, occurred_at, notes, created_by, created_at)
         VALUES (@vesselId, @outletId, @kind, @occurredAt, @notes, @createdBy, @now)`),
       get: c.db.prepare('SELECT * FROM maintenance_events WHERE id = ?'),
-      list: c.db.prepare('SELECT * FROM maintenance_events WHERE vessel_id = ? ORDER BY occurred_at, id LIMIT ? OFFSET ?'),
+      list: c.db.prepare(
+        'SELECT * FROM maintenance_events WHERE vessel_id = ? ORDER BY occurred_at, id LIMIT ? OFFSET ?',
+      ),
       count: c.db.prepare('SELECT count(*) FROM maintenance_events WHERE vessel_id = ?').pluck(),
     };
   }
@@ -59,20 +62,38 @@ export class EventRepo {
 
   create(
     actor: Actor,
-    e: { vesselId: number; outletId: number | null; kind: MaintenanceKind; occurredAt: string; notes?: string | null },
+    e: {
+      vesselId: number;
+      outletId: number | null;
+      kind: MaintenanceKind;
+      occurredAt: string;
+      notes?: string | null;
+    },
   ): MaintenanceEvent {
     return this.c.db
       .transaction(() => {
         const now = this.c.now();
-        const id = Number(this.q.insert.run({ ...e, notes: e.notes ?? null, createdBy: actor.id, now }).lastInsertRowid);
+        const id = Number(
+          this.q.insert.run({ ...e, notes: e.notes ?? null, createdBy: actor.id, now })
+            .lastInsertRowid,
+        );
         const event = this.get(id);
-        this.c.audit.append(actor, now, { action: 'event.create', entityType: 'maintenance-event', entityId: id, after: event });
+        this.c.audit.append(actor, now, {
+          action: 'event.create',
+          entityType: 'maintenance-event',
+          entityId: id,
+          after: event,
+        });
         return event;
       })
       .immediate();
   }
 
-  listByVessel(vesselId: number, limit: number, offset: number): { items: MaintenanceEvent[]; total: number } {
+  listByVessel(
+    vesselId: number,
+    limit: number,
+    offset: number,
+  ): { items: MaintenanceEvent[]; total: number } {
     return {
       items: (this.q.list.all(vesselId, limit, offset) as EventRow[]).map(toEvent),
       total: this.q.count.get(vesselId) as number,

@@ -23,7 +23,8 @@ function fitJson(r: FitRow): string {
   );
 }
 
-const SELECT = 'SELECT f.*, t.created_by AS test_created_by FROM fits f JOIN drain_tests t ON t.id = f.test_id';
+const SELECT =
+  'SELECT f.*, t.created_by AS test_created_by FROM fits f JOIN drain_tests t ON t.id = f.test_id';
 
 /** Room for about a thousand fits of 40 KiB; answers beyond it are read again from SQLite. */
 const FIT_CACHE_BYTES = 48 * 1024 * 1024;
@@ -42,7 +43,12 @@ export interface StoredFit {
   status: FitStatus;
   supersededBy: number | null;
   /** selfReview: approved by the person who uploaded the test or asked for this fit (derived on read). */
-  review: { comment: string | null; by: number | null; at: string | null; selfReview: boolean } | null;
+  review: {
+    comment: string | null;
+    by: number | null;
+    at: string | null;
+    selfReview: boolean;
+  } | null;
   createdBy: number | null;
   createdAt: string;
 }
@@ -69,11 +75,21 @@ interface FitRow {
 
 /** Four eyes: the reviewer is the uploader of the test or the requester of this fit. */
 function isSelfReview(r: Pick<FitRow, 'reviewed_by' | 'created_by' | 'test_created_by'>): boolean {
-  return r.reviewed_by !== null && (r.reviewed_by === r.created_by || r.reviewed_by === r.test_created_by);
+  return (
+    r.reviewed_by !== null &&
+    (r.reviewed_by === r.created_by || r.reviewed_by === r.test_created_by)
+  );
 }
 
 function reviewOf(r: FitRow): StoredFit['review'] {
-  return r.reviewed_at ? { comment: r.review_comment, by: r.reviewed_by, at: r.reviewed_at, selfReview: r.status === 'approved' && isSelfReview(r) } : null;
+  return r.reviewed_at
+    ? {
+        comment: r.review_comment,
+        by: r.reviewed_by,
+        at: r.reviewed_at,
+        selfReview: r.status === 'approved' && isSelfReview(r),
+      }
+    : null;
 }
 
 function toFit(r: FitRow): StoredFit {
@@ -108,7 +124,11 @@ function auditView(f: StoredFit) {
   };
 }
 
-function numberAt(obj: Record<string, unknown>, key: string, field: 'value' | 'standardUncertainty' = 'value'): number | null {
+function numberAt(
+  obj: Record<string, unknown>,
+  key: string,
+  field: 'value' | 'standardUncertainty' = 'value',
+): number | null {
   const v = (obj[key] as Record<string, unknown> | null | undefined)?.[field];
   return typeof v === 'number' && Number.isFinite(v) ? v : null;
 }
@@ -135,18 +155,30 @@ export class FitRepo {
     private readonly sites: SiteRepo,
   ) {
     const db = c.db;
-    this.texts = new ReadCache<ReadyText>(c.foreign, FIT_CACHE_BYTES, (t) => t.body.byteLength + 64);
+    this.texts = new ReadCache<ReadyText>(
+      c.foreign,
+      FIT_CACHE_BYTES,
+      (t) => t.body.byteLength + 64,
+    );
     this.q = {
-      insert: db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
+      insert:
+        db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
         cda_u, cd_u, status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
         @cda, @cd, @cdaU, @cdU, 'draft', @createdBy, @now)`),
       get: db.prepare(`${SELECT} WHERE f.id = ?`),
       byVessel: db.prepare(`${SELECT} WHERE f.vessel_id = ? ORDER BY f.id DESC LIMIT ? OFFSET ?`),
       countVessel: db.prepare('SELECT count(*) FROM fits WHERE vessel_id = ?').pluck(),
       byTest: db.prepare(`${SELECT} WHERE f.test_id = ? ORDER BY f.id`),
-      inForceOfTest: db.prepare(`SELECT id FROM fits WHERE test_id = ? AND id <> ? AND superseded_by IS NULL ORDER BY id`).pluck(),
-      supersede: db.prepare('UPDATE fits SET superseded_by = ? WHERE id = ? AND superseded_by IS NULL'),
-      review: db.prepare(`UPDATE fits SET status = @status, review_comment = @comment, reviewed_by = @by,
+      inForceOfTest: db
+        .prepare(
+          `SELECT id FROM fits WHERE test_id = ? AND id <> ? AND superseded_by IS NULL ORDER BY id`,
+        )
+        .pluck(),
+      supersede: db.prepare(
+        'UPDATE fits SET superseded_by = ? WHERE id = ? AND superseded_by IS NULL',
+      ),
+      review:
+        db.prepare(`UPDATE fits SET status = @status, review_comment = @comment, reviewed_by = @by,
         reviewed_at = @now WHERE id = @id AND status = 'draft'`),
     };
   }
@@ -173,7 +205,11 @@ export class FitRepo {
     return text;
   }
 
-  listByVessel(vesselId: number, limit: number, offset: number): { items: StoredFit[]; total: number } {
+  listByVessel(
+    vesselId: number,
+    limit: number,
+    offset: number,
+  ): { items: StoredFit[]; total: number } {
     return {
       items: (this.q.byVessel.all(vesselId, limit, offset) as FitRow[]).map(toFit),
       total: this.q.countVessel.get(vesselId) as number,
@@ -188,7 +224,13 @@ export class FitRepo {
    * The first fit of a pending test; marks the test analysed in the same transaction, dated from
    * `logDate` (the fitted window's first reading) when no date was stated.
    */
-  storeFirst(actor: Actor, testId: number, detected: Record<string, unknown>, fit: NewFit, logDate: string | null = null): StoredFit {
+  storeFirst(
+    actor: Actor,
+    testId: number,
+    detected: Record<string, unknown>,
+    fit: NewFit,
+    logDate: string | null = null,
+  ): StoredFit {
     return this.c.db
       .transaction(() => {
         this.tests.markAnalysed(testId, detected, logDate);
@@ -205,7 +247,8 @@ export class FitRepo {
     return this.c.db
       .transaction(() => {
         const old = this.get(oldId);
-        if (old.supersededBy !== null) throw new ConflictError(`fit ${oldId} is already superseded by fit ${old.supersededBy}`);
+        if (old.supersededBy !== null)
+          throw new ConflictError(`fit ${oldId} is already superseded by fit ${old.supersededBy}`);
         const created = this.insert(actor, old.testId, fit, 'fit.refit');
         if (old.status !== 'approved') this.supersede(actor, oldId, created.id);
         return created;
@@ -232,17 +275,35 @@ export class FitRepo {
    * supersedes, in the same transaction, every other fit of the test still standing (the approved
    * one it replaces, other drafts); rejecting changes nothing else.
    */
-  review(actor: Actor, id: number, decision: 'approved' | 'rejected', comment: string | null): StoredFit {
+  review(
+    actor: Actor,
+    id: number,
+    decision: 'approved' | 'rejected',
+    comment: string | null,
+  ): StoredFit {
     return this.c.db
       .transaction(() => {
         const before = this.get(id);
-        if (before.status !== 'draft') throw new ConflictError(`fit ${id} was already ${before.status}`);
-        if (before.supersededBy !== null) throw new ConflictError(`fit ${id} is superseded by fit ${before.supersededBy}; review that one`);
+        if (before.status !== 'draft')
+          throw new ConflictError(`fit ${id} was already ${before.status}`);
+        if (before.supersededBy !== null)
+          throw new ConflictError(
+            `fit ${id} is superseded by fit ${before.supersededBy}; review that one`,
+          );
         const test = this.tests.get(before.testId);
-        const self = decision === 'approved' && isSelfReview({ reviewed_by: actor.id, created_by: before.createdBy, test_created_by: test.createdBy });
+        const self =
+          decision === 'approved' &&
+          isSelfReview({
+            reviewed_by: actor.id,
+            created_by: before.createdBy,
+            test_created_by: test.createdBy,
+          });
         if (self && !this.sites.selfReviewAllowedForVessel(before.vesselId)) {
-          const what = actor.id === test.createdBy ? `uploaded test ${test.id}` : `asked for fit ${id}`;
-          throw new ForbiddenError(`four eyes: ${actor.name} ${what} and may not approve it; another engineer must (an admin may allow self-review for the site)`);
+          const what =
+            actor.id === test.createdBy ? `uploaded test ${test.id}` : `asked for fit ${id}`;
+          throw new ForbiddenError(
+            `four eyes: ${actor.name} ${what} and may not approve it; another engineer must (an admin may allow self-review for the site)`,
+          );
         }
         const now = this.c.now();
         this.q.review.run({ status: decision, comment, by: actor.id, now, id });
@@ -256,7 +317,8 @@ export class FitRepo {
           after: self ? { ...auditView(after), selfReview: true } : auditView(after),
         });
         if (decision === 'approved') {
-          for (const other of this.q.inForceOfTest.all(before.testId, id) as number[]) this.supersede(actor, other, id);
+          for (const other of this.q.inForceOfTest.all(before.testId, id) as number[])
+            this.supersede(actor, other, id);
         }
         return this.get(id);
       })
@@ -266,7 +328,8 @@ export class FitRepo {
   private insert(actor: Actor, testId: number, fit: NewFit, action: string): StoredFit {
     const test = this.tests.get(testId);
     const now = this.c.now();
-    const engineVersion = typeof fit.result.engineVersion === 'string' ? fit.result.engineVersion : 'unknown';
+    const engineVersion =
+      typeof fit.result.engineVersion === 'string' ? fit.result.engineVersion : 'unknown';
     const id = Number(
       this.q.insert.run({
         testId,
@@ -285,7 +348,12 @@ export class FitRepo {
       }).lastInsertRowid,
     );
     const stored = this.get(id);
-    this.c.audit.append(actor, now, { action, entityType: 'fit', entityId: id, after: auditView(stored) });
+    this.c.audit.append(actor, now, {
+      action,
+      entityType: 'fit',
+      entityId: id,
+      after: auditView(stored),
+    });
     return stored;
   }
 }

@@ -54,7 +54,19 @@ export function openStore(opts: StoreOptions = {}): Store {
     migrate(db, opts.migrationsDir, {
       // VACUUM INTO: a consistent copy, synchronous (the backup API is asynchronous and opening is not)
       beforeFirst: opts.dataDir
-        ? (from, to) => db.prepare('VACUUM INTO ?').run(join(opts.dataDir!, preMigrationBackupName(from, to, (opts.now ?? (() => new Date().toISOString()))())))
+        ? (from, to) =>
+            db
+              .prepare('VACUUM INTO ?')
+              .run(
+                join(
+                  opts.dataDir!,
+                  preMigrationBackupName(
+                    from,
+                    to,
+                    (opts.now ?? (() => new Date().toISOString()))(),
+                  ),
+                ),
+              )
         : undefined,
     });
   } catch (e) {
@@ -64,7 +76,12 @@ export function openStore(opts: StoreOptions = {}): Store {
   const reserve = opts.dataDir ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
   reserve?.ensure(); // false on a full disk: made again after the next compensating step
   const audit = new AuditLog(db);
-  const c: StoreContext = { db, audit, now: opts.now ?? (() => new Date().toISOString()), foreign: new ForeignWrites(db) };
+  const c: StoreContext = {
+    db,
+    audit,
+    now: opts.now ?? (() => new Date().toISOString()),
+    foreign: new ForeignWrites(db),
+  };
   const tests = new TestRepo(c);
   const sites = new SiteRepo(c);
   return {

@@ -33,7 +33,9 @@ export function readMigrations(dir: string): MigrationFile[] {
   out.sort((a, b) => a.version - b.version);
   for (let i = 1; i < out.length; i++) {
     if (out[i].version === out[i - 1].version) {
-      throw new Error(`two migrations share version ${out[i].version}: ${out[i - 1].name}, ${out[i].name}`);
+      throw new Error(
+        `two migrations share version ${out[i].version}: ${out[i - 1].name}, ${out[i].name}`,
+      );
     }
   }
   return out;
@@ -60,16 +62,22 @@ export class MigrationError extends Error {
     readonly statement: string | null,
     reason: string,
   ) {
-    super(`migration ${file} failed${statement ? ` at ${statement}` : ''}: ${reason}; the database was left at the previous version`);
+    super(
+      `migration ${file} failed${statement ? ` at ${statement}` : ''}: ${reason}; the database was left at the previous version`,
+    );
     this.name = 'MigrationError';
   }
 }
 
 /** The highest migration applied to this database (0 for a new one). */
 export function schemaVersion(db: Db): number {
-  const has = db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'schema_migrations'").get();
+  const has = db
+    .prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'schema_migrations'")
+    .get();
   if (!has) return 0;
-  return (db.prepare('SELECT max(version) FROM schema_migrations').pluck().get() as number | null) ?? 0;
+  return (
+    (db.prepare('SELECT max(version) FROM schema_migrations').pluck().get() as number | null) ?? 0
+  );
 }
 
 /** The highest migration this build carries. */
@@ -160,11 +168,15 @@ export function migrate(db: Db, dir = defaultMigrationsDir(), opts: MigrateOptio
   db.exec(`CREATE TABLE IF NOT EXISTS schema_migrations (
     version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL)`);
   const done = new Set(
-    (db.prepare('SELECT version FROM schema_migrations').all() as { version: number }[]).map((r) => r.version),
+    (db.prepare('SELECT version FROM schema_migrations').all() as { version: number }[]).map(
+      (r) => r.version,
+    ),
   );
   const todo = files.filter((m) => !done.has(m.version));
   if (todo.length && current > 0) opts.beforeFirst?.(current, buildVersion);
-  const record = db.prepare('INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)');
+  const record = db.prepare(
+    'INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)',
+  );
   const applied: string[] = [];
   for (const m of todo) {
     try {

@@ -16,7 +16,9 @@ export function readStoredRaw(dbPath: string, sha256: string): Buffer {
     db.pragma('busy_timeout = 5000');
     connections.set(dbPath, db);
   }
-  const b = db.prepare('SELECT bytes FROM raw_files WHERE sha256 = ?').pluck().get(sha256) as Buffer | undefined;
+  const b = db.prepare('SELECT bytes FROM raw_files WHERE sha256 = ?').pluck().get(sha256) as
+    | Buffer
+    | undefined;
   if (!b) throw new NotFoundError('raw file', sha256);
   return b;
 }

@@ -10,7 +10,10 @@ export interface ReadyText {
 /** The digest is the first 128 bits of the SHA-256 in base64url: enough to tell versions apart. */
 export function readyText(json: string): ReadyText {
   const body = Buffer.from(json);
-  return { body, digest: createHash('sha256').update(body).digest().subarray(0, 16).toString('base64url') };
+  return {
+    body,
+    digest: createHash('sha256').update(body).digest().subarray(0, 16).toString('base64url'),
+  };
 }
 
 /**

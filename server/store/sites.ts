@@ -16,7 +16,12 @@ interface SiteRow {
   self_review_allowed: number;
   created_at: string;
 }
-const toSite = (r: SiteRow): Site => ({ id: r.id, name: r.name, selfReviewAllowed: r.self_review_allowed === 1, createdAt: r.created_at });
+const toSite = (r: SiteRow): Site => ({
+  id: r.id,
+  name: r.name,
+  selfReviewAllowed: r.self_review_allowed === 1,
+  createdAt: r.created_at,
+});
 
 /** What a record belongs to, for site limits: the site of a vessel, test, fit or outlet. */
 export type SiteOwner = 'vessel' | 'test' | 'fit' | 'outlet';
@@ -32,11 +37,29 @@ export class SiteRepo {
       byName: db.prepare('SELECT * FROM sites WHERE name = ?'),
       add: db.prepare('INSERT INTO sites (name, created_at) VALUES (?, ?)'),
       setSelfReview: db.prepare('UPDATE sites SET self_review_allowed = ? WHERE id = ?'),
-      vessel: db.prepare('SELECT s.name FROM vessels v JOIN sites s ON s.id = v.site_id WHERE v.id = ?').pluck(),
-      test: db.prepare('SELECT s.name FROM drain_tests t JOIN vessels v ON v.id = t.vessel_id JOIN sites s ON s.id = v.site_id WHERE t.id = ?').pluck(),
-      fit: db.prepare('SELECT s.name FROM fits f JOIN vessels v ON v.id = f.vessel_id JOIN sites s ON s.id = v.site_id WHERE f.id = ?').pluck(),
-      outlet: db.prepare('SELECT s.name FROM outlets o JOIN vessels v ON v.id = o.vessel_id JOIN sites s ON s.id = v.site_id WHERE o.id = ?').pluck(),
-      selfReviewOfVessel: db.prepare('SELECT s.self_review_allowed FROM vessels v JOIN sites s ON s.id = v.site_id WHERE v.id = ?').pluck(),
+      vessel: db
+        .prepare('SELECT s.name FROM vessels v JOIN sites s ON s.id = v.site_id WHERE v.id = ?')
+        .pluck(),
+      test: db
+        .prepare(
+          'SELECT s.name FROM drain_tests t JOIN vessels v ON v.id = t.vessel_id JOIN sites s ON s.id = v.site_id WHERE t.id = ?',
+        )
+        .pluck(),
+      fit: db
+        .prepare(
+          'SELECT s.name FROM fits f JOIN vessels v ON v.id = f.vessel_id JOIN sites s ON s.id = v.site_id WHERE f.id = ?',
+        )
+        .pluck(),
+      outlet: db
+        .prepare(
+          'SELECT s.name FROM outlets o JOIN vessels v ON v.id = o.vessel_id JOIN sites s ON s.id = v.site_id WHERE o.id = ?',
+        )
+        .pluck(),
+      selfReviewOfVessel: db
+        .prepare(
+          'SELECT s.self_review_allowed FROM vessels v JOIN sites s ON s.id = v.site_id WHERE v.id = ?',
+        )
+        .pluck(),
     };
   }
 
@@ -73,7 +96,13 @@ export class SiteRepo {
         const before = this.get(name);
         this.q.setSelfReview.run(allowed ? 1 : 0, before.id);
         const after = this.get(name);
-        this.c.audit.append(actor, this.c.now(), { action: 'site.settings', entityType: 'site', entityId: before.id, before, after });
+        this.c.audit.append(actor, this.c.now(), {
+          action: 'site.settings',
+          entityType: 'site',
+          entityId: before.id,
+          before,
+          after,
+        });
         return after;
       })
       .immediate();

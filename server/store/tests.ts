@@ -93,7 +93,9 @@ function toTest(r: TestRow): DrainTest {
     sha256: r.log_sha256,
     fileName: r.log_name,
     size: r.log_size,
-    baro: r.baro_sha256 ? { sha256: r.baro_sha256, fileName: r.baro_name!, size: r.baro_size! } : null,
+    baro: r.baro_sha256
+      ? { sha256: r.baro_sha256, fileName: r.baro_name!, size: r.baro_size! }
+      : null,
     settings: parse(r.settings)!,
     detected: parse(r.detected),
     operator: r.operator,
@@ -109,7 +111,8 @@ function toTest(r: TestRow): DrainTest {
   };
 }
 
-const isStuck = (r: TestRow) => r.status === 'pending' && r.failed_attempts >= MAX_ANALYSIS_ATTEMPTS;
+const isStuck = (r: TestRow) =>
+  r.status === 'pending' && r.failed_attempts >= MAX_ANALYSIS_ATTEMPTS;
 
 const SELECT = `SELECT t.*, l.size AS log_size, b.size AS baro_size,
   (SELECT count(*) FROM analysis_failures f WHERE f.test_id = t.id) AS failed_attempts,
@@ -120,7 +123,9 @@ const SELECT = `SELECT t.*, l.size AS log_size, b.size AS baro_size,
 /** The API's test object as JSON text, spliced from the stored JSON (see fitJson in fits.ts). */
 function testJson(r: TestRow): string {
   const q = JSON.stringify;
-  const baro = r.baro_sha256 ? q({ sha256: r.baro_sha256, fileName: r.baro_name, size: r.baro_size }) : 'null';
+  const baro = r.baro_sha256
+    ? q({ sha256: r.baro_sha256, fileName: r.baro_name, size: r.baro_size })
+    : 'null';
   return (
     `{"id":${r.id},"vesselId":${r.vessel_id},"outletId":${q(r.outlet_id)},"status":${q(r.status)},"sha256":${q(r.log_sha256)},` +
     `"fileName":${q(r.log_name)},"size":${r.log_size},"baro":${baro},"settings":${r.settings},"detected":${r.detected ?? 'null'},` +
@@ -141,20 +146,34 @@ export class TestRepo {
 
   constructor(private readonly c: StoreContext) {
     const db = c.db;
-    this.pages = new ReadCache<ReadyText>(c.foreign, 16 * 1024 * 1024, (t) => t.body.byteLength + 64);
+    this.pages = new ReadCache<ReadyText>(
+      c.foreign,
+      16 * 1024 * 1024,
+      (t) => t.body.byteLength + 64,
+    );
     this.q = {
-      putRaw: db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
+      putRaw:
+        db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
         ON CONFLICT (sha256) DO NOTHING`),
       raw: db.prepare('SELECT bytes FROM raw_files WHERE sha256 = ?').pluck(),
       dropRaw: db.prepare(`DELETE FROM raw_files WHERE sha256 = @sha AND NOT EXISTS
         (SELECT 1 FROM drain_tests WHERE log_sha256 = @sha OR baro_sha256 = @sha)`),
-      insert: db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
+      insert:
+        db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
         settings, status, operator, logger_id, tested_at, tested_at_source, notes, created_by, created_at)
         VALUES (@vesselId, @outletId, @logSha, @logName, @baroSha, @baroName, @settings, 'pending', @operator,
         @loggerId, @testedAt, @testedAtSource, @notes, @createdBy, @now)`),
-      sameBytes: db.prepare('SELECT id FROM drain_tests WHERE vessel_id = ? AND log_sha256 = ? ORDER BY id LIMIT 1').pluck(),
-      byKey: db.prepare('SELECT test_id, log_sha256 FROM upload_keys WHERE user_id = ? AND key = ?'),
-      putKey: db.prepare('INSERT INTO upload_keys (user_id, key, test_id, log_sha256, created_at) VALUES (?, ?, ?, ?, ?)'),
+      sameBytes: db
+        .prepare(
+          'SELECT id FROM drain_tests WHERE vessel_id = ? AND log_sha256 = ? ORDER BY id LIMIT 1',
+        )
+        .pluck(),
+      byKey: db.prepare(
+        'SELECT test_id, log_sha256 FROM upload_keys WHERE user_id = ? AND key = ?',
+      ),
+      putKey: db.prepare(
+        'INSERT INTO upload_keys (user_id, key, test_id, log_sha256, created_at) VALUES (?, ?, ?, ?, ?)',
+      ),
       undated: db.prepare('SELECT test_id, reason FROM undated_tests ORDER BY test_id'),
       get: db.prepare(`${SELECT} WHERE t.id = ?`),
       list: db.prepare(`${SELECT} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?`),
@@ -165,7 +184,9 @@ export class TestRepo {
         tested_at = coalesce(tested_at, @logDate), tested_at_source = coalesce(tested_at_source, CASE WHEN @logDate IS NULL THEN NULL ELSE 'log' END)
         WHERE id = @id AND status = 'pending'`),
       remove: db.prepare(`DELETE FROM drain_tests WHERE id = ? AND status = 'pending'`),
-      failed: db.prepare('INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, ?)'),
+      failed: db.prepare(
+        'INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, ?)',
+      ),
     };
   }
 
@@ -182,15 +203,34 @@ export class TestRepo {
         const now = this.c.now();
         const keyOwner = actor.id ?? 0;
         if (t.idempotencyKey) {
-          const prior = this.q.byKey.get(keyOwner, t.idempotencyKey) as { test_id: number } | undefined;
-          if (prior) throw new ConflictError(`an upload with this Idempotency-Key is still being analysed (test ${prior.test_id}); retry shortly`);
+          const prior = this.q.byKey.get(keyOwner, t.idempotencyKey) as
+            | { test_id: number }
+            | undefined;
+          if (prior)
+            throw new ConflictError(
+              `an upload with this Idempotency-Key is still being analysed (test ${prior.test_id}); retry shortly`,
+            );
         }
         const same = this.q.sameBytes.get(t.vesselId, logSha) as number | undefined;
         if (same !== undefined && !t.allowDuplicate) {
-          throw new DuplicateUploadError(same, `test ${same} of this vessel has the same log file (SHA-256 ${logSha}); send allowDuplicate=true to store it again`);
+          throw new DuplicateUploadError(
+            same,
+            `test ${same} of this vessel has the same log file (SHA-256 ${logSha}); send allowDuplicate=true to store it again`,
+          );
         }
-        this.q.putRaw.run(logSha, t.log.bytes.byteLength, Buffer.from(t.log.bytes.buffer, t.log.bytes.byteOffset, t.log.bytes.byteLength), now);
-        if (t.baro) this.q.putRaw.run(baroSha, t.baro.bytes.byteLength, Buffer.from(t.baro.bytes.buffer, t.baro.bytes.byteOffset, t.baro.bytes.byteLength), now);
+        this.q.putRaw.run(
+          logSha,
+          t.log.bytes.byteLength,
+          Buffer.from(t.log.bytes.buffer, t.log.bytes.byteOffset, t.log.bytes.byteLength),
+          now,
+        );
+        if (t.baro)
+          this.q.putRaw.run(
+            baroSha,
+            t.baro.bytes.byteLength,
+            Buffer.from(t.baro.bytes.buffer, t.baro.bytes.byteOffset, t.baro.bytes.byteLength),
+            now,
+          );
         const id = Number(
           this.q.insert.run({
             vesselId: t.vesselId,
@@ -212,7 +252,12 @@ export class TestRepo {
         if (t.idempotencyKey) this.q.putKey.run(keyOwner, t.idempotencyKey, id, logSha, now);
         const test = this.get(id);
         const marks = same !== undefined ? { duplicateOf: same, allowDuplicate: true } : {};
-        this.c.audit.append(actor, now, { action: 'test.upload', entityType: 'test', entityId: id, after: { ...test, ...marks } });
+        this.c.audit.append(actor, now, {
+          action: 'test.upload',
+          entityType: 'test',
+          entityId: id,
+          after: { ...test, ...marks },
+        });
         return test;
       })
       .immediate();
@@ -259,7 +304,12 @@ export class TestRepo {
     this.c.db
       .transaction(() => {
         const t = this.get(id);
-        this.c.audit.append(actor, this.c.now(), { action: 'test.retry', entityType: 'test', entityId: id, after: { failedAttempts: t.failedAttempts, lastFailure: t.lastFailure } });
+        this.c.audit.append(actor, this.c.now(), {
+          action: 'test.retry',
+          entityType: 'test',
+          entityId: id,
+          after: { failedAttempts: t.failedAttempts, lastFailure: t.lastFailure },
+        });
       })
       .immediate();
   }
@@ -270,18 +320,24 @@ export class TestRepo {
    */
   markAnalysed(id: number, detected: Record<string, unknown>, logDate: string | null = null): void {
     this.pages.clear();
-    if (this.q.analysed.run({ detected: JSON.stringify(detected), logDate, id }).changes !== 1) throw new Error(`test ${id} is not pending`);
+    if (this.q.analysed.run({ detected: JSON.stringify(detected), logDate, id }).changes !== 1)
+      throw new Error(`test ${id} is not pending`);
   }
 
   /** The test an earlier upload with this Idempotency-Key made, with the SHA-256 of its log. */
   byIdempotencyKey(actorId: number | null, key: string): { testId: number; sha256: string } | null {
-    const r = this.q.byKey.get(actorId ?? 0, key) as { test_id: number; log_sha256: string } | undefined;
+    const r = this.q.byKey.get(actorId ?? 0, key) as
+      | { test_id: number; log_sha256: string }
+      | undefined;
     return r ? { testId: r.test_id, sha256: r.log_sha256 } : null;
   }
 
   /** Tests migration 003 could not date (no stated date, and a log with only elapsed time). */
   undated(): { testId: number; reason: string }[] {
-    return (this.q.undated.all() as { test_id: number; reason: string }[]).map((r) => ({ testId: r.test_id, reason: r.reason }));
+    return (this.q.undated.all() as { test_id: number; reason: string }[]).map((r) => ({
+      testId: r.test_id,
+      reason: r.reason,
+    }));
   }
 
   get(id: number): DrainTest {
@@ -290,7 +346,11 @@ export class TestRepo {
     return toTest(row);
   }
 
-  listByVessel(vesselId: number, limit: number, offset: number): { items: DrainTest[]; total: number } {
+  listByVessel(
+    vesselId: number,
+    limit: number,
+    offset: number,
+  ): { items: DrainTest[]; total: number } {
     return {
       items: (this.q.list.all(vesselId, limit, offset) as TestRow[]).map(toTest),
       total: this.q.count.get(vesselId) as number,
@@ -298,9 +358,16 @@ export class TestRepo {
   }
 
   /** The items of listByVessel as a JSON array text (the hot read path). */
-  listByVesselJson(vesselId: number, limit: number, offset: number): { itemsJson: string; total: number } {
+  listByVesselJson(
+    vesselId: number,
+    limit: number,
+    offset: number,
+  ): { itemsJson: string; total: number } {
     const rows = this.q.list.all(vesselId, limit, offset) as TestRow[];
-    return { itemsJson: `[${rows.map(testJson).join(',')}]`, total: this.q.count.get(vesselId) as number };
+    return {
+      itemsJson: `[${rows.map(testJson).join(',')}]`,
+      total: this.q.count.get(vesselId) as number,
+    };
   }
 
   /** The API's page `{items, total, limit, offset}` of listByVesselJson as UTF-8 bytes, from memory when already read. */
@@ -309,7 +376,9 @@ export class TestRepo {
     const hit = this.pages.get(key);
     if (hit) return hit;
     const { itemsJson, total } = this.listByVesselJson(vesselId, limit, offset);
-    const text = readyText(`{"items":${itemsJson},"total":${total},"limit":${limit},"offset":${offset}}`);
+    const text = readyText(
+      `{"items":${itemsJson},"total":${total},"limit":${limit},"offset":${offset}}`,
+    );
     this.pages.set(key, text);
     return text;
   }

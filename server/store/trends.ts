@@ -110,7 +110,8 @@ export class TrendRepo {
       fits: db.prepare(`SELECT f.id, f.test_id, t.tested_at, t.created_at, f.reviewed_at, f.cda_m2, f.cda_u, f.cd, f.cd_u
         FROM fits f JOIN drain_tests t ON t.id = f.test_id
         WHERE f.outlet_id = ? AND f.status = 'approved' AND f.superseded_by IS NULL ORDER BY f.id`),
-      events: db.prepare(`SELECT e.kind, e.occurred_at, e.notes FROM maintenance_events e JOIN outlets o ON o.vessel_id = e.vessel_id
+      events:
+        db.prepare(`SELECT e.kind, e.occurred_at, e.notes FROM maintenance_events e JOIN outlets o ON o.vessel_id = e.vessel_id
         WHERE o.id = ? AND (e.outlet_id IS NULL OR e.outlet_id = o.id) ORDER BY e.occurred_at, e.id`),
       allOutlets: db.prepare('SELECT id FROM outlets ORDER BY id').pluck(),
       stale: db.prepare('SELECT outlet_id FROM outlet_trend_stale ORDER BY outlet_id').pluck(),
@@ -122,7 +123,8 @@ export class TrendRepo {
         computed_at_ms = excluded.computed_at_ms, valid_until_ms = excluded.valid_until_ms, body = excluded.body`),
       cached: db.prepare(`SELECT ${statusCols} ORDER BY s.outlet_id`),
       cachedOne: db.prepare(`SELECT ${statusCols} WHERE s.outlet_id = ?`),
-      insertChange: db.prepare(`INSERT INTO outlet_status_changes (outlet_id, fit_id, from_status, to_status, reason, days_to_threshold, at)
+      insertChange:
+        db.prepare(`INSERT INTO outlet_status_changes (outlet_id, fit_id, from_status, to_status, reason, days_to_threshold, at)
         VALUES (@outletId, @fitId, @fromStatus, @toStatus, @reason, @daysToThreshold, @at)`),
       change: db.prepare('SELECT * FROM outlet_status_changes WHERE id = ?'),
       changes: db.prepare('SELECT * FROM outlet_status_changes WHERE outlet_id = ? ORDER BY id'),
@@ -135,12 +137,18 @@ export class TrendRepo {
     const skipped: SkippedFit[] = [];
     for (const r of this.q.fits.all(outletId) as FitRow[]) {
       if (r.cda_m2 === null || r.cda_u === null || r.cd === null || r.cd_u === null) {
-        skipped.push({ fitId: r.id, why: 'its result has no Cd·a or Cd with a standard uncertainty' });
+        skipped.push({
+          fitId: r.id,
+          why: 'its result has no Cd·a or Cd with a standard uncertainty',
+        });
         continue;
       }
       const t = testedAtOf(r);
       if (t === null) {
-        skipped.push({ fitId: r.id, why: `its test ${r.test_id} has no date (no date was stated and its log has only elapsed time)` });
+        skipped.push({
+          fitId: r.id,
+          why: `its test ${r.test_id} has no date (no date was stated and its log has only elapsed time)`,
+        });
         continue;
       }
       fits.push({
@@ -162,7 +170,13 @@ export class TrendRepo {
 
   /** The outlet's maintenance events and its vessel's (an event with no outlet applies to all). */
   events(outletId: number): TrendEvent[] {
-    return (this.q.events.all(outletId) as { kind: TrendEvent['kind']; occurred_at: string; notes: string | null }[]).map((e) => ({
+    return (
+      this.q.events.all(outletId) as {
+        kind: TrendEvent['kind'];
+        occurred_at: string;
+        notes: string | null;
+      }[]
+    ).map((e) => ({
       atMs: Date.parse(e.occurred_at),
       kind: e.kind,
       ...(e.notes ? { note: e.notes } : {}),
@@ -182,7 +196,16 @@ export class TrendRepo {
   }
 
   /** Stores an outlet's freshly computed status and clears its stale mark (call inside a transaction with the read). */
-  saveStatus(outletId: number, s: { status: string; daysToThreshold: number | null; computedAtMs: number; validUntilMs: number; body: unknown }): void {
+  saveStatus(
+    outletId: number,
+    s: {
+      status: string;
+      daysToThreshold: number | null;
+      computedAtMs: number;
+      validUntilMs: number;
+      body: unknown;
+    },
+  ): void {
     this.q.save.run({
       outletId,
       status: s.status,
@@ -209,7 +232,12 @@ export class TrendRepo {
       const at = this.c.now();
       const id = Number(this.q.insertChange.run({ ...c, at }).lastInsertRowid);
       const change = toChange(this.q.change.get(id) as ChangeRow);
-      this.c.audit.append(actor, at, { action: 'outlet.status-change', entityType: 'outlet', entityId: c.outletId, after: change });
+      this.c.audit.append(actor, at, {
+        action: 'outlet.status-change',
+        entityType: 'outlet',
+        entityId: c.outletId,
+        after: change,
+      });
       return change;
     })();
   }

@@ -47,7 +47,14 @@ interface TokenRow {
   created_at: string;
   revoked_at: string | null;
 }
-const toToken = (r: TokenRow): TokenInfo => ({ id: r.id, userId: r.user_id, userName: r.user_name, name: r.name, createdAt: r.created_at, revokedAt: r.revoked_at });
+const toToken = (r: TokenRow): TokenInfo => ({
+  id: r.id,
+  userId: r.user_id,
+  userName: r.user_name,
+  name: r.name,
+  createdAt: r.created_at,
+  revokedAt: r.revoked_at,
+});
 
 /** What a person may be changed to. */
 export interface PersonChange {
@@ -85,30 +92,47 @@ export class UserRepo {
     const db = c.db;
     this.known = new ReadCache(c.foreign, 10_000, () => 1);
     this.q = {
-      sitesOf: db.prepare('SELECT s.name FROM user_sites us JOIN sites s ON s.id = us.site_id WHERE us.user_id = ? ORDER BY s.name').pluck(),
+      sitesOf: db
+        .prepare(
+          'SELECT s.name FROM user_sites us JOIN sites s ON s.id = us.site_id WHERE us.user_id = ? ORDER BY s.name',
+        )
+        .pluck(),
       clearSites: db.prepare('DELETE FROM user_sites WHERE user_id = ?'),
       addSite: db.prepare('INSERT OR IGNORE INTO user_sites (user_id, site_id) VALUES (?, ?)'),
       list: db.prepare('SELECT * FROM users ORDER BY name'),
       setRole: db.prepare('UPDATE users SET role = ? WHERE id = ?'),
       disable: db.prepare('UPDATE users SET disabled_at = ? WHERE id = ? AND disabled_at IS NULL'),
-      tokenId: db.prepare('SELECT id FROM api_tokens WHERE token_hash = ? AND revoked_at IS NULL').pluck(),
-      tokens: db.prepare(`SELECT t.id, t.user_id, u.name AS user_name, t.name, t.created_at, t.revoked_at FROM api_tokens t
+      tokenId: db
+        .prepare('SELECT id FROM api_tokens WHERE token_hash = ? AND revoked_at IS NULL')
+        .pluck(),
+      tokens:
+        db.prepare(`SELECT t.id, t.user_id, u.name AS user_name, t.name, t.created_at, t.revoked_at FROM api_tokens t
         JOIN users u ON u.id = t.user_id WHERE (@userId IS NULL OR t.user_id = @userId) ORDER BY t.id`),
-      token: db.prepare(`SELECT t.id, t.user_id, u.name AS user_name, t.name, t.created_at, t.revoked_at FROM api_tokens t
+      token:
+        db.prepare(`SELECT t.id, t.user_id, u.name AS user_name, t.name, t.created_at, t.revoked_at FROM api_tokens t
         JOIN users u ON u.id = t.user_id WHERE t.id = ?`),
-      revokeToken: db.prepare('UPDATE api_tokens SET revoked_at = ? WHERE id = ? AND revoked_at IS NULL'),
-      revokeTokensOf: db.prepare('UPDATE api_tokens SET revoked_at = ? WHERE user_id = ? AND revoked_at IS NULL'),
+      revokeToken: db.prepare(
+        'UPDATE api_tokens SET revoked_at = ? WHERE id = ? AND revoked_at IS NULL',
+      ),
+      revokeTokensOf: db.prepare(
+        'UPDATE api_tokens SET revoked_at = ? WHERE user_id = ? AND revoked_at IS NULL',
+      ),
       dropSessionsOfToken: db.prepare('DELETE FROM sessions WHERE token_id = ?'),
       dropSessionsOf: db.prepare('DELETE FROM sessions WHERE user_id = ?'),
       insertUser: db.prepare('INSERT INTO users (name, role, created_at) VALUES (?, ?, ?)'),
       get: db.prepare('SELECT * FROM users WHERE id = ?'),
       byName: db.prepare('SELECT * FROM users WHERE name = ?'),
       count: db.prepare('SELECT count(*) FROM users').pluck(),
-      insertToken: db.prepare('INSERT INTO api_tokens (user_id, name, token_hash, created_at) VALUES (?, ?, ?, ?)'),
+      insertToken: db.prepare(
+        'INSERT INTO api_tokens (user_id, name, token_hash, created_at) VALUES (?, ?, ?, ?)',
+      ),
       byToken: db.prepare(`SELECT u.* FROM api_tokens t JOIN users u ON u.id = t.user_id
         WHERE t.token_hash = ? AND t.revoked_at IS NULL AND u.disabled_at IS NULL`),
-      insertSession: db.prepare('INSERT INTO sessions (id_hash, user_id, created_at, expires_at, token_id) VALUES (?, ?, ?, ?, ?)'),
-      bySession: db.prepare(`SELECT u.*, s.expires_at FROM sessions s JOIN users u ON u.id = s.user_id
+      insertSession: db.prepare(
+        'INSERT INTO sessions (id_hash, user_id, created_at, expires_at, token_id) VALUES (?, ?, ?, ?, ?)',
+      ),
+      bySession:
+        db.prepare(`SELECT u.*, s.expires_at FROM sessions s JOIN users u ON u.id = s.user_id
         WHERE s.id_hash = ? AND s.expires_at > ? AND u.disabled_at IS NULL`),
       dropSession: db.prepare('DELETE FROM sessions WHERE id_hash = ?'),
     };
@@ -120,7 +144,13 @@ export class UserRepo {
 
   private toUser(r: UserRow): User {
     const sites = this.q.sitesOf.all(r.id) as string[];
-    return { id: r.id, name: r.name, role: r.role, createdAt: r.created_at, sites: sites.length ? sites : null };
+    return {
+      id: r.id,
+      name: r.name,
+      role: r.role,
+      createdAt: r.created_at,
+      sites: sites.length ? sites : null,
+    };
   }
 
   private toPerson(r: UserRow): Person {
@@ -158,12 +188,18 @@ export class UserRepo {
   addPerson(actor: Actor, name: string, role: Role, sites: string[] | null = null): Person {
     return this.c.db
       .transaction(() => {
-        if (this.q.byName.get(name)) throw new ConflictError(`a person named "${name}" already exists`);
+        if (this.q.byName.get(name))
+          throw new ConflictError(`a person named "${name}" already exists`);
         const now = this.c.now();
         const id = Number(this.q.insertUser.run(name, role, now).lastInsertRowid);
         this.setSites(id, sites);
         const after = this.person(id);
-        this.c.audit.append(actor, now, { action: 'user.create', entityType: 'user', entityId: id, after });
+        this.c.audit.append(actor, now, {
+          action: 'user.create',
+          entityType: 'user',
+          entityId: id,
+          after,
+        });
         return after;
       })
       .immediate();
@@ -174,12 +210,19 @@ export class UserRepo {
     return this.c.db
       .transaction(() => {
         const before = this.person(id);
-        if (before.revokedAt !== null) throw new ConflictError(`person ${id} was revoked on ${before.revokedAt}`);
+        if (before.revokedAt !== null)
+          throw new ConflictError(`person ${id} was revoked on ${before.revokedAt}`);
         if (change.role !== undefined) this.q.setRole.run(change.role, id);
         if (change.sites !== undefined) this.setSites(id, change.sites);
         this.known.clear();
         const after = this.person(id);
-        this.c.audit.append(actor, this.c.now(), { action: 'user.update', entityType: 'user', entityId: id, before, after });
+        this.c.audit.append(actor, this.c.now(), {
+          action: 'user.update',
+          entityType: 'user',
+          entityId: id,
+          before,
+          after,
+        });
         return after;
       })
       .immediate();
@@ -190,29 +233,48 @@ export class UserRepo {
     return this.c.db
       .transaction(() => {
         const before = this.person(id);
-        if (before.revokedAt !== null) throw new ConflictError(`person ${id} was already revoked on ${before.revokedAt}`);
+        if (before.revokedAt !== null)
+          throw new ConflictError(`person ${id} was already revoked on ${before.revokedAt}`);
         const now = this.c.now();
         this.q.disable.run(now, id);
         this.q.revokeTokensOf.run(now, id);
         const ended = this.q.dropSessionsOf.run(id).changes;
         this.known.clear();
         const after = this.person(id);
-        this.c.audit.append(actor, now, { action: 'user.revoke', entityType: 'user', entityId: id, before, after: { ...after, sessionsEnded: ended } });
+        this.c.audit.append(actor, now, {
+          action: 'user.revoke',
+          entityType: 'user',
+          entityId: id,
+          before,
+          after: { ...after, sessionsEnded: ended },
+        });
         return after;
       })
       .immediate();
   }
 
   /** A new API token for an existing, not revoked person; the token in clear is returned this once. */
-  createTokenFor(actor: Actor, userId: number, tokenName = 'default'): { user: User; token: string; tokenId: number } {
+  createTokenFor(
+    actor: Actor,
+    userId: number,
+    tokenName = 'default',
+  ): { user: User; token: string; tokenId: number } {
     return this.c.db
       .transaction(() => {
         const p = this.person(userId);
-        if (p.revokedAt !== null) throw new ConflictError(`person ${userId} was revoked on ${p.revokedAt}`);
+        if (p.revokedAt !== null)
+          throw new ConflictError(`person ${userId} was revoked on ${p.revokedAt}`);
         const now = this.c.now();
         const token = newSecret('efx');
-        const tokenId = Number(this.q.insertToken.run(userId, tokenName, secretHash(token), now).lastInsertRowid);
-        this.c.audit.append(actor, now, { action: 'token.create', entityType: 'api-token', entityId: tokenId, after: { userId, name: tokenName, role: p.role } });
+        const tokenId = Number(
+          this.q.insertToken.run(userId, tokenName, secretHash(token), now).lastInsertRowid,
+        );
+        this.c.audit.append(actor, now, {
+          action: 'token.create',
+          entityType: 'api-token',
+          entityId: tokenId,
+          after: { userId, name: tokenName, role: p.role },
+        });
         return { user: this.get(userId), token, tokenId };
       })
       .immediate();
@@ -233,13 +295,20 @@ export class UserRepo {
     return this.c.db
       .transaction(() => {
         const before = this.token(tokenId);
-        if (before.revokedAt !== null) throw new ConflictError(`token ${tokenId} was already revoked on ${before.revokedAt}`);
+        if (before.revokedAt !== null)
+          throw new ConflictError(`token ${tokenId} was already revoked on ${before.revokedAt}`);
         const now = this.c.now();
         this.q.revokeToken.run(now, tokenId);
         const ended = this.q.dropSessionsOfToken.run(tokenId).changes;
         this.known.clear();
         const after = this.token(tokenId);
-        this.c.audit.append(actor, now, { action: 'token.revoke', entityType: 'api-token', entityId: tokenId, before, after: { ...after, sessionsEnded: ended } });
+        this.c.audit.append(actor, now, {
+          action: 'token.revoke',
+          entityType: 'api-token',
+          entityId: tokenId,
+          before,
+          after: { ...after, sessionsEnded: ended },
+        });
         return after;
       })
       .immediate();
@@ -249,19 +318,32 @@ export class UserRepo {
    * Creates a user (or reuses one of that name and role) and a new API token for it.
    * Returns the token in clear: this is the only time it exists outside the holder's hands.
    */
-  createToken(actor: Actor, userName: string, role: Role, tokenName = 'default'): { user: User; token: string; tokenId: number } {
+  createToken(
+    actor: Actor,
+    userName: string,
+    role: Role,
+    tokenName = 'default',
+  ): { user: User; token: string; tokenId: number } {
     return this.c.db
       .transaction(() => {
         const now = this.c.now();
         let row = this.q.byName.get(userName) as UserRow | undefined;
-        if (row && row.role !== role) throw new ConflictError(`user "${userName}" exists with role ${row.role}`);
+        if (row && row.role !== role)
+          throw new ConflictError(`user "${userName}" exists with role ${row.role}`);
         if (!row) {
           const id = Number(this.q.insertUser.run(userName, role, now).lastInsertRowid);
           row = this.q.get.get(id) as UserRow;
-          this.c.audit.append(actor, now, { action: 'user.create', entityType: 'user', entityId: id, after: this.toUser(row) });
+          this.c.audit.append(actor, now, {
+            action: 'user.create',
+            entityType: 'user',
+            entityId: id,
+            after: this.toUser(row),
+          });
         }
         const token = newSecret('efx');
-        const tokenId = Number(this.q.insertToken.run(row.id, tokenName, secretHash(token), now).lastInsertRowid);
+        const tokenId = Number(
+          this.q.insertToken.run(row.id, tokenName, secretHash(token), now).lastInsertRowid,
+        );
         this.c.audit.append(actor, now, {
           action: 'token.create',
           entityType: 'api-token',
@@ -293,14 +375,23 @@ export class UserRepo {
     return { user, ...this.openSession(user, ttlMs, tokenId) };
   }
 
-  openSession(user: User, ttlMs: number, tokenId: number | null = null): { secret: string; expiresAt: string } {
+  openSession(
+    user: User,
+    ttlMs: number,
+    tokenId: number | null = null,
+  ): { secret: string; expiresAt: string } {
     return this.c.db
       .transaction(() => {
         const now = this.c.now();
         const secret = newSecret('efs');
         const expiresAt = new Date(Date.parse(now) + ttlMs).toISOString();
         this.q.insertSession.run(secretHash(secret), user.id, now, expiresAt, tokenId);
-        this.c.audit.append(actorOf(user), now, { action: 'session.open', entityType: 'user', entityId: user.id, after: { expiresAt } });
+        this.c.audit.append(actorOf(user), now, {
+          action: 'session.open',
+          entityType: 'user',
+          entityId: user.id,
+          after: { expiresAt },
+        });
         return { secret, expiresAt };
       })
       .immediate();
@@ -327,7 +418,11 @@ export class UserRepo {
       .transaction(() => {
         this.known.delete(`s:${secretHash(secret)}`);
         if (this.q.dropSession.run(secretHash(secret)).changes > 0) {
-          this.c.audit.append(actorOf(user), this.c.now(), { action: 'session.close', entityType: 'user', entityId: user.id });
+          this.c.audit.append(actorOf(user), this.c.now(), {
+            action: 'session.close',
+            entityType: 'user',
+            entityId: user.id,
+          });
         }
       })
       .immediate();

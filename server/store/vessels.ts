@@ -24,7 +24,11 @@ function str(v: unknown): string | null {
  * `id`, its key here. A single outlet without an id gets the key "main".
  */
 export function outletsOf(spec: Record<string, unknown>): OutletInput[] {
-  const list: unknown[] = Array.isArray(spec.outlets) ? spec.outlets : spec.outlet ? [spec.outlet] : [];
+  const list: unknown[] = Array.isArray(spec.outlets)
+    ? spec.outlets
+    : spec.outlet
+      ? [spec.outlet]
+      : [];
   return list.map((raw, i) => {
     const o = (raw ?? {}) as Record<string, unknown>;
     const key = str(o.id) ?? str(o.name) ?? (list.length === 1 ? 'main' : `outlet-${i + 1}`);
@@ -86,24 +90,36 @@ export class VesselRepo {
       addSite: db.prepare('INSERT INTO sites (name, created_at) VALUES (?, ?)'),
       get: db.prepare(`SELECT v.id, s.name AS site, v.name, v.revision, v.spec, v.created_at, v.updated_at
         FROM vessels v JOIN sites s ON s.id = v.site_id WHERE v.id = ?`),
-      byName: db.prepare(`SELECT v.id FROM vessels v JOIN sites s ON s.id = v.site_id
-        WHERE s.name = ? AND v.name = ?`).pluck(),
+      byName: db
+        .prepare(`SELECT v.id FROM vessels v JOIN sites s ON s.id = v.site_id
+        WHERE s.name = ? AND v.name = ?`)
+        .pluck(),
       list: db.prepare(`SELECT v.id, s.name AS site, v.name, v.revision, v.spec, v.created_at, v.updated_at
         FROM vessels v JOIN sites s ON s.id = v.site_id WHERE ${IN_SITES} ORDER BY v.id LIMIT @limit OFFSET @offset`),
-      countIn: db.prepare(`SELECT count(*) FROM vessels v JOIN sites s ON s.id = v.site_id WHERE ${IN_SITES}`).pluck(),
+      countIn: db
+        .prepare(
+          `SELECT count(*) FROM vessels v JOIN sites s ON s.id = v.site_id WHERE ${IN_SITES}`,
+        )
+        .pluck(),
       count: db.prepare('SELECT count(*) FROM vessels').pluck(),
       exists: db.prepare('SELECT 1 FROM vessels WHERE id = ?').pluck(),
       outlets: db.prepare('SELECT * FROM outlets WHERE vessel_id = ? ORDER BY id'),
       outlet: db.prepare('SELECT * FROM outlets WHERE id = ?'),
-      insert: db.prepare(`INSERT INTO vessels (site_id, name, spec, shape, fluid, sensor, created_at, updated_at)
+      insert:
+        db.prepare(`INSERT INTO vessels (site_id, name, spec, shape, fluid, sensor, created_at, updated_at)
         VALUES (@siteId, @name, @spec, @shape, @fluid, @sensor, @now, @now)`),
-      update: db.prepare(`UPDATE vessels SET site_id = @siteId, name = @name, spec = @spec, shape = @shape,
+      update:
+        db.prepare(`UPDATE vessels SET site_id = @siteId, name = @name, spec = @spec, shape = @shape,
         fluid = @fluid, sensor = @sensor, revision = revision + 1, updated_at = @now WHERE id = @id`),
-      insertOutlet: db.prepare(`INSERT INTO outlets (vessel_id, key, type, bore_m, bore_tolerance_m, elevation_m,
+      insertOutlet:
+        db.prepare(`INSERT INTO outlets (vessel_id, key, type, bore_m, bore_tolerance_m, elevation_m,
         action_threshold, spec) VALUES (@vesselId, @key, @type, @boreM, @boreToleranceM, @elevationM, @actionThreshold, @spec)`),
-      updateOutlet: db.prepare(`UPDATE outlets SET type = @type, bore_m = @boreM, bore_tolerance_m = @boreToleranceM,
+      updateOutlet:
+        db.prepare(`UPDATE outlets SET type = @type, bore_m = @boreM, bore_tolerance_m = @boreToleranceM,
         elevation_m = @elevationM, action_threshold = @actionThreshold, spec = @spec, retired_at = NULL WHERE id = @id`),
-      retireOutlet: db.prepare('UPDATE outlets SET retired_at = ? WHERE id = ? AND retired_at IS NULL'),
+      retireOutlet: db.prepare(
+        'UPDATE outlets SET retired_at = ? WHERE id = ? AND retired_at IS NULL',
+      ),
     };
   }
 
@@ -123,10 +139,17 @@ export class VesselRepo {
   }
 
   /** A page of vessels, of the given sites only when `sites` is not null (a person limited to sites). */
-  list(limit: number, offset: number, sites: readonly string[] | null = null): { items: Vessel[]; total: number } {
+  list(
+    limit: number,
+    offset: number,
+    sites: readonly string[] | null = null,
+  ): { items: Vessel[]; total: number } {
     const within = sites === null ? null : JSON.stringify(sites);
     const rows = this.q.list.all({ sites: within, limit, offset }) as VesselRow[];
-    return { items: rows.map((r) => this.hydrate(r)), total: this.q.countIn.get({ sites: within }) as number };
+    return {
+      items: rows.map((r) => this.hydrate(r)),
+      total: this.q.countIn.get({ sites: within }) as number,
+    };
   }
 
   count(): number {
@@ -146,12 +169,20 @@ export class VesselRepo {
         const now = this.c.now();
         const params = this.columns(spec, now);
         if (this.findId(params.site, params.name) !== null) {
-          throw new ConflictError(`a vessel named "${params.name}" already exists at site "${params.site}"`);
+          throw new ConflictError(
+            `a vessel named "${params.name}" already exists at site "${params.site}"`,
+          );
         }
         const id = Number(this.q.insert.run(params).lastInsertRowid);
-        for (const o of outletsOf(spec)) this.q.insertOutlet.run({ ...o, spec: JSON.stringify(o.spec), vesselId: id });
+        for (const o of outletsOf(spec))
+          this.q.insertOutlet.run({ ...o, spec: JSON.stringify(o.spec), vesselId: id });
         const vessel = this.get(id);
-        this.c.audit.append(actor, now, { action: 'vessel.create', entityType: 'vessel', entityId: id, after: vessel });
+        this.c.audit.append(actor, now, {
+          action: 'vessel.create',
+          entityType: 'vessel',
+          entityId: id,
+          after: vessel,
+        });
         return vessel;
       })
       .immediate();
@@ -169,7 +200,9 @@ export class VesselRepo {
         const params = this.columns(spec, now);
         const clash = this.findId(params.site, params.name);
         if (clash !== null && clash !== id) {
-          throw new ConflictError(`a vessel named "${params.name}" already exists at site "${params.site}"`);
+          throw new ConflictError(
+            `a vessel named "${params.name}" already exists at site "${params.site}"`,
+          );
         }
         this.q.update.run({ ...params, id });
         const existing = new Map(before.outlets.map((o) => [o.key, o]));
@@ -183,7 +216,13 @@ export class VesselRepo {
         }
         for (const o of before.outlets) if (!seen.has(o.key)) this.q.retireOutlet.run(now, o.id);
         const after = this.get(id);
-        this.c.audit.append(actor, now, { action: 'vessel.update', entityType: 'vessel', entityId: id, before, after });
+        this.c.audit.append(actor, now, {
+          action: 'vessel.update',
+          entityType: 'vessel',
+          entityId: id,
+          before,
+          after,
+        });
         return after;
       })
       .immediate();

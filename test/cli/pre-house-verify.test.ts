@@ -29,7 +29,9 @@ describe('a database made before issue 13', () => {
     expect(JSON.parse(before).engineVersion).toBe('0.1.0');
     expect(ENGINE_VERSION).not.toBe('0.1.0');
 
-    const r = efflux(['report', 'verify', join(dir, 'fit-1.json')], { env: { EFFLUX_DATA_DIR: dir } });
+    const r = efflux(['report', 'verify', join(dir, 'fit-1.json')], {
+      env: { EFFLUX_DATA_DIR: dir },
+    });
     expect(r.code, r.stdout + r.stderr).toBe(0);
     expect(r.stdout).toMatch(/fit report ec4c1ee77d2a67b2: MATCHES the records/);
     expect(r.stdout).toMatch(/ok {3}file content hash/);
@@ -38,8 +40,12 @@ describe('a database made before issue 13', () => {
     expect(r.stdout).toMatch(/ok {3}audit chain: intact/);
     const line = r.stdout.split('\n').find((l) => l.includes('reproduce fit 1'))!;
     expect(line).toMatch(/^\s*ok /);
-    expect(line).toContain(`the engine changed since this fit was stored (stored by 0.1.0, recomputed by ${ENGINE_VERSION})`);
-    expect(line).toMatch(/Cd·a [\d.e-]+ m² → [\d.e-]+ m², difference [-\d.e]+ m² = [\d.e-]+ % of its standard uncertainty/);
+    expect(line).toContain(
+      `the engine changed since this fit was stored (stored by 0.1.0, recomputed by ${ENGINE_VERSION})`,
+    );
+    expect(line).toMatch(
+      /Cd·a [\d.e-]+ m² → [\d.e-]+ m², difference [-\d.e]+ m² = [\d.e-]+ % of its standard uncertainty/,
+    );
     expect(line).toContain('tolerance 5 % of the stored standard uncertainty');
     expect(line).not.toMatch(/identical/);
     expect(line).toMatch(/(within|BEYOND) the tolerance/);
@@ -50,7 +56,10 @@ describe('a database made before issue 13', () => {
 
 describe('engineChange', () => {
   const fit = (area: number, cd: number) =>
-    ({ effectiveAreaM2: { value: area, standardUncertainty: 1e-6 }, dischargeCoefficient: { value: cd, standardUncertainty: 0.002 } }) as unknown as FitJson;
+    ({
+      effectiveAreaM2: { value: area, standardUncertainty: 1e-6 },
+      dischargeCoefficient: { value: cd, standardUncertainty: 0.002 },
+    }) as unknown as FitJson;
 
   it('accepts differences within 5 % of the stored standard uncertainty and refuses larger ones', () => {
     const within = engineChange(fit(1e-3, 0.61), fit(1e-3 + 4e-8, 0.61 + 0.00008));
@@ -62,7 +71,10 @@ describe('engineChange', () => {
   });
 
   it('cannot compare a result without an uncertainty', () => {
-    const noU = { effectiveAreaM2: { value: 1e-3 }, dischargeCoefficient: null } as unknown as FitJson;
+    const noU = {
+      effectiveAreaM2: { value: 1e-3 },
+      dischargeCoefficient: null,
+    } as unknown as FitJson;
     expect(engineChange(noU, fit(1e-3, 0.61)).ok).toBe(false);
   });
 });

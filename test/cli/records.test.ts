@@ -21,11 +21,20 @@ import { reportFixture, SOFTWARE } from '../render/report-fixture.js';
 import { root } from './run-cli.js';
 
 function efflux(dataDir: string, args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args], {
-    cwd: root,
-    encoding: 'utf8',
-    env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir, EFFLUX_GIT_COMMIT: 'test-commit' },
-  });
+  const r = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args],
+    {
+      cwd: root,
+      encoding: 'utf8',
+      env: {
+        ...process.env,
+        NO_COLOR: '1',
+        EFFLUX_DATA_DIR: dataDir,
+        EFFLUX_GIT_COMMIT: 'test-commit',
+      },
+    },
+  );
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
@@ -62,7 +71,9 @@ describe('verification covers every stored copy', () => {
     expect(r.code, r.stdout + r.stderr).toBe(0);
     expect(r.stdout).toMatch(/stored copies agree: 2 fits, 1 cached outlet statuses/);
     report = join(dataDir, 'before.json');
-    expect(efflux(dataDir, ['report', 'fit', String(fitId), '--out', report, '--json']).code).toBe(0);
+    expect(efflux(dataDir, ['report', 'fit', String(fitId), '--out', report, '--json']).code).toBe(
+      0,
+    );
     expect(efflux(dataDir, ['report', 'verify', report]).code).toBe(0);
   }, 90_000);
 
@@ -82,16 +93,32 @@ describe('verification covers every stored copy', () => {
     expect(efflux(dataDir, ['audit', 'verify']).code).toBe(0);
   }, 90_000);
 
-  it("an edited status-cache row or test date fails audit verify, naming the row and the field", () => {
-    tamper((db) => db.prepare(`UPDATE outlet_trend_status SET status = 'steady', body = json_set(body, '$.status', 'steady') WHERE outlet_id = ?`).run(outletId));
+  it('an edited status-cache row or test date fails audit verify, naming the row and the field', () => {
+    tamper((db) =>
+      db
+        .prepare(
+          `UPDATE outlet_trend_status SET status = 'steady', body = json_set(body, '$.status', 'steady') WHERE outlet_id = ?`,
+        )
+        .run(outletId),
+    );
     const before = efflux(dataDir, ['audit', 'verify']);
     // the cached word may already have been "steady"; the edited body or word must show either way
-    tamper((db) => db.prepare(`UPDATE outlet_trend_status SET days_to_threshold = 12345 WHERE outlet_id = ?`).run(outletId));
+    tamper((db) =>
+      db
+        .prepare(`UPDATE outlet_trend_status SET days_to_threshold = 12345 WHERE outlet_id = ?`)
+        .run(outletId),
+    );
     const r = efflux(dataDir, ['audit', 'verify']);
     expect(r.code).toBe(1);
     expect(r.stdout).toContain(`outlet_trend_status row ${outletId}: days_to_threshold is 12345`);
-    expect(before.stdout + r.stdout).toMatch(/outlet_trend_status row \d+: (status|body|days_to_threshold)/);
-    tamper((db) => db.prepare('UPDATE drain_tests SET tested_at = ? WHERE id = ?').run('2026-01-01T00:00:00Z', testId));
+    expect(before.stdout + r.stdout).toMatch(
+      /outlet_trend_status row \d+: (status|body|days_to_threshold)/,
+    );
+    tamper((db) =>
+      db
+        .prepare('UPDATE drain_tests SET tested_at = ? WHERE id = ?')
+        .run('2026-01-01T00:00:00Z', testId),
+    );
     const d = efflux(dataDir, ['audit', 'verify']);
     expect(d.stdout).toContain(`drain_tests row ${testId}: tested_at is "2026-01-01T00:00:00Z"`);
   }, 90_000);
@@ -102,10 +129,16 @@ describe('exports safe to open', () => {
     const fx = await reportFixture();
     const store = fx.store;
     const v = store.vessels.get(fx.vesselId);
-    const spec = checkVesselFile({ ...v.spec, name: '=HYPERLINK("http://example.invalid","open")', site: '+SUM(A1:A9)' });
+    const spec = checkVesselFile({
+      ...v.spec,
+      name: '=HYPERLINK("http://example.invalid","open")',
+      site: '+SUM(A1:A9)',
+    });
     store.vessels.update(SYSTEM_ACTOR, v.id, spec);
     const out = await periodExport(store, {}, SOFTWARE);
-    const csv = readZip(out.zip).find((e) => e.name === 'summary.csv')!.bytes.toString('utf8');
+    const csv = readZip(out.zip)
+      .find((e) => e.name === 'summary.csv')!
+      .bytes.toString('utf8');
     const rows = Papa.parse<string[]>(csv, { skipEmptyLines: true }).data;
     const cells = rows.flat();
     expect(cells).toContain('\'=HYPERLINK("http://example.invalid","open")');
@@ -121,11 +154,30 @@ describe('exports safe to open', () => {
 describe('efflux people, token and site', () => {
   it('adds a person limited to a site with a first token, changes, lists and revokes them; the token stops working', () => {
     const dir = mkdtempSync(join(tmpdir(), 'efflux-people-'));
-    const add = efflux(dir, ['people', 'add', 'A. Fenwick (fictional)', '--role', 'technician', '--sites', 'north,south', '--token', 'tablet']);
+    const add = efflux(dir, [
+      'people',
+      'add',
+      'A. Fenwick (fictional)',
+      '--role',
+      'technician',
+      '--sites',
+      'north,south',
+      '--token',
+      'tablet',
+    ]);
     expect(add.code, add.stderr).toBe(0);
     const token = add.stdout.trim().split('\n').pop()!;
     expect(token).toMatch(/^efx_/);
-    expect(efflux(dir, ['people', 'change', 'A. Fenwick (fictional)', '--role', 'engineer', '--all-sites']).stdout).toMatch(/engineer\s+every site/);
+    expect(
+      efflux(dir, [
+        'people',
+        'change',
+        'A. Fenwick (fictional)',
+        '--role',
+        'engineer',
+        '--all-sites',
+      ]).stdout,
+    ).toMatch(/engineer\s+every site/);
     expect(efflux(dir, ['people', 'add', 'x', '--role', 'boss']).code).toBe(2);
     const listed = efflux(dir, ['token', 'list', '--name', 'A. Fenwick (fictional)']);
     expect(listed.stdout).toMatch(/tablet/);
@@ -135,6 +187,8 @@ describe('efflux people, token and site', () => {
     expect(store.users.byToken(token)).toBeNull();
     expect(store.sites.list().map((s) => s.name)).toEqual(['north', 'south']);
     store.close();
-    expect(efflux(dir, ['site', 'self-review', 'north', 'on']).stdout).toMatch(/self-review allowed/);
+    expect(efflux(dir, ['site', 'self-review', 'north', 'on']).stdout).toMatch(
+      /self-review allowed/,
+    );
   }, 120_000);
 });

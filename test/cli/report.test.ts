@@ -10,11 +10,20 @@ import { root } from './run-cli.js';
 
 /** The CLI from source with EFFLUX_DATA_DIR pointing at the fixture's folder. */
 function efflux(dataDir: string, args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args], {
-    cwd: root,
-    encoding: 'utf8',
-    env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir, EFFLUX_GIT_COMMIT: 'test-commit' },
-  });
+  const r = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args],
+    {
+      cwd: root,
+      encoding: 'utf8',
+      env: {
+        ...process.env,
+        NO_COLOR: '1',
+        EFFLUX_DATA_DIR: dataDir,
+        EFFLUX_GIT_COMMIT: 'test-commit',
+      },
+    },
+  );
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
@@ -83,14 +92,18 @@ describe('efflux report', () => {
       expect(r.stdout).toMatch(/DOES NOT MATCH/);
       expect(r.stdout).toMatch(/FAIL records: .*results\.dischargeCoefficient\.value/);
       expect(r.stdout).toMatch(/FAIL reproduce fit \d+: .*dischargeCoefficient\.value/);
-      expect(r.stdout).toMatch(/FAIL audit record of fit \d+: the stored fit result was changed after audit entry/);
+      expect(r.stdout).toMatch(
+        /FAIL audit record of fit \d+: the stored fit result was changed after audit entry/,
+      );
     }
     // restore, then change an audit entry instead
     const db2 = new Database(join(dataDir, 'efflux.sqlite'));
     db2.prepare('UPDATE fits SET result = ? WHERE id = ?').run(row.result, fitId);
     expect(efflux(dataDir, ['report', 'verify', pdf]).code).toBe(0);
     db2.exec('DROP TRIGGER audit_log_no_update');
-    db2.prepare("UPDATE audit_log SET actor_name = 'someone else' WHERE action = 'fit.approve'").run();
+    db2
+      .prepare("UPDATE audit_log SET actor_name = 'someone else' WHERE action = 'fit.approve'")
+      .run();
     db2.close();
     const r = efflux(dataDir, ['report', 'verify', pdf]);
     expect(r.code).toBe(1);
@@ -102,7 +115,15 @@ describe('efflux report', () => {
 describe('efflux export', () => {
   it('writes a zip whose manifest hashes match its files', () => {
     const zipFile = join(dataDir, 'period.zip');
-    const r = efflux(dataDir, ['export', '--from', '2026-03-01', '--to', '2026-03-31', '--out', zipFile]);
+    const r = efflux(dataDir, [
+      'export',
+      '--from',
+      '2026-03-01',
+      '--to',
+      '2026-03-31',
+      '--out',
+      zipFile,
+    ]);
     expect(r.code, r.stderr).toBe(0);
     const zip = readFileSync(zipFile);
     const entries = readZip(zip);
@@ -110,14 +131,25 @@ describe('efflux export', () => {
     expect(names).toContain('summary.csv');
     expect(names).toContain('audit-excerpt.jsonl');
     expect(names.filter((n) => n.endsWith('.pdf'))).toHaveLength(2);
-    const manifest = JSON.parse(entries.find((e) => e.name === 'manifest.json')!.bytes.toString('utf8'));
+    const manifest = JSON.parse(
+      entries.find((e) => e.name === 'manifest.json')!.bytes.toString('utf8'),
+    );
     for (const f of manifest.files) {
       const e = entries.find((x) => x.name === f.name)!;
       expect(createHash('sha256').update(e.bytes).digest('hex')).toBe(f.sha256);
     }
-    expect(entries.find((e) => e.name === 'summary.csv')!.bytes.toString('utf8').split('\r\n')[0]).toMatch(/^fit_id,report_id/);
-    if (spawnSync('unzip', ['-v']).status === 0) expect(spawnSync('unzip', ['-t', zipFile]).status).toBe(0);
+    expect(
+      entries
+        .find((e) => e.name === 'summary.csv')!
+        .bytes.toString('utf8')
+        .split('\r\n')[0],
+    ).toMatch(/^fit_id,report_id/);
+    if (spawnSync('unzip', ['-v']).status === 0)
+      expect(spawnSync('unzip', ['-t', zipFile]).status).toBe(0);
     // a period with no tests is refused
-    expect(efflux(dataDir, ['export', '--from', '2025-01-01', '--to', '2025-01-31', '--out', zipFile]).code).toBe(2);
+    expect(
+      efflux(dataDir, ['export', '--from', '2025-01-01', '--to', '2025-01-31', '--out', zipFile])
+        .code,
+    ).toBe(2);
   }, 60_000);
 });

@@ -6,11 +6,15 @@ export const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 
 /** Runs the CLI from source (through tsx), as `efflux …` would, and captures everything. */
 export function efflux(args: string[], opts: { cwd?: string; env?: Record<string, string> } = {}) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', resolve(root, 'server/cli/main.ts'), ...args], {
-    cwd: opts.cwd ?? root,
-    encoding: 'utf8',
-    env: { ...process.env, NO_COLOR: '1', ...opts.env },
-    maxBuffer: 64 * 1024 * 1024,
-  });
+  const r = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', resolve(root, 'server/cli/main.ts'), ...args],
+    {
+      cwd: opts.cwd ?? root,
+      encoding: 'utf8',
+      env: { ...process.env, NO_COLOR: '1', ...opts.env },
+      maxBuffer: 64 * 1024 * 1024,
+    },
+  );
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }

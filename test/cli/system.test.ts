@@ -16,13 +16,20 @@ writeFileSync(KNOWN, JSON.stringify(known));
 describe('efflux fit-system, steady, linearize', () => {
   for (const t of truth.tests) {
     it(`${t.system}: fit-system recovers the recorded Cd of every outlet within 0.5 %, inside the 95 % interval`, () => {
-      const args = ['fit-system', t.system, ...Object.entries(t.logs).flatMap(([id, f]) => ['--log', `${id}=${f}`]), '--json'];
+      const args = [
+        'fit-system',
+        t.system,
+        ...Object.entries(t.logs).flatMap(([id, f]) => ['--log', `${id}=${f}`]),
+        '--json',
+      ];
       const r = efflux(args, { cwd: dir });
       expect(r.stderr).toBe('');
       expect(r.code).toBe(0);
       const out = JSON.parse(r.stdout);
       expect(out.converged).toBe(true);
-      for (const [id, v] of Object.entries(t.truth as Record<string, { dischargeCoefficient: number; effectiveAreaM2: number }>)) {
+      for (const [id, v] of Object.entries(
+        t.truth as Record<string, { dischargeCoefficient: number; effectiveAreaM2: number }>,
+      )) {
         const cd = out.outlets[id].dischargeCoefficient;
         expect(Math.abs(cd.value / v.dischargeCoefficient - 1)).toBeLessThan(0.005);
         const a = out.outlets[id].effectiveAreaM2;
@@ -33,7 +40,9 @@ describe('efflux fit-system, steady, linearize', () => {
       // the one fit-result shape (core/fit-result/schema.ts), as for a single vessel
       const parsed = jointFitResult.safeParse(out);
       expect(parsed.success, JSON.stringify(parsed.error?.issues.slice(0, 3))).toBe(true);
-      const area = out.parameters.find((p: { name: string }) => p.name.endsWith('.effectiveAreaM2'));
+      const area = out.parameters.find((p: { name: string }) =>
+        p.name.endsWith('.effectiveAreaM2'),
+      );
       expect(area).toMatchObject({ unit: 'm²', free: true, bounds: { lower: 0, upper: null } });
       expect(area.start).toBeGreaterThan(0);
       expect(out.solver.converged).toBe(true);
@@ -50,7 +59,15 @@ describe('efflux fit-system, steady, linearize', () => {
 
   it('steady and linearize take the fit JSON; text, csv and json formats', () => {
     const t = truth.tests[1];
-    const fit = efflux(['fit-system', t.system, ...Object.entries(t.logs).flatMap(([id, f]) => ['--log', `${id}=${f}`]), '--json'], { cwd: dir });
+    const fit = efflux(
+      [
+        'fit-system',
+        t.system,
+        ...Object.entries(t.logs).flatMap(([id, f]) => ['--log', `${id}=${f}`]),
+        '--json',
+      ],
+      { cwd: dir },
+    );
     const tmp = join(root, 'node_modules/.cache/efflux-system-fit.json');
     mkdirSync(join(root, 'node_modules/.cache'), { recursive: true });
     writeFileSync(tmp, fit.stdout);
@@ -59,13 +76,22 @@ describe('efflux fit-system, steady, linearize', () => {
     const body = JSON.parse(s.stdout);
     expect(body.vessels.RC1.outflowM3S).toBeCloseTo(0.0025, 9);
     expect(body.vessels.RC1.levelM.standardUncertainty).toBeGreaterThan(0);
-    for (const f of ['text', 'csv', 'json']) expect(efflux(['linearize', tmp, '--inflow', '1L/s', '--format', f]).code).toBe(0);
-    expect(efflux(['linearize', tmp, '--inflow', '1L/s', '--format', 'text']).stdout).toMatch(/^A = \[/m);
+    for (const f of ['text', 'csv', 'json'])
+      expect(efflux(['linearize', tmp, '--inflow', '1L/s', '--format', f]).code).toBe(0);
+    expect(efflux(['linearize', tmp, '--inflow', '1L/s', '--format', 'text']).stdout).toMatch(
+      /^A = \[/m,
+    );
   }, 60_000);
 
   it.each([
-    [['fit-system', 'filter-chain.system.json', '--log', 'FT1=ft1-2026-04-07.csv'], /no log given for BT2/],
-    [['fit-system', 'filter-chain.system.json', '--log', 'XX=ft1-2026-04-07.csv'], /no vessel has id "XX"/],
+    [
+      ['fit-system', 'filter-chain.system.json', '--log', 'FT1=ft1-2026-04-07.csv'],
+      /no log given for BT2/,
+    ],
+    [
+      ['fit-system', 'filter-chain.system.json', '--log', 'XX=ft1-2026-04-07.csv'],
+      /no vessel has id "XX"/,
+    ],
     [['steady', 'filter-chain.system.json', '--inflow', '1L/s'], /vessels\.0\.effectiveAreaM2/],
     [['steady', KNOWN, '--inflow', 'lots'], /--inflow/],
     [['steady', KNOWN, '--inflow', 'ZZ=1L/s'], /no vessel has id "ZZ"/],

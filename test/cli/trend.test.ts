@@ -17,11 +17,15 @@ import { root } from './run-cli.js';
 const AS_OF = '2025-09-01';
 
 function efflux(dataDir: string, args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args], {
-    cwd: root,
-    encoding: 'utf8',
-    env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir },
-  });
+  const r = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args],
+    {
+      cwd: root,
+      encoding: 'utf8',
+      env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir },
+    },
+  );
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
@@ -36,18 +40,61 @@ beforeAll(async () => {
   const token = store.users.createToken(SYSTEM_ACTOR, 'eng', 'engineer').token;
   const auth = { authorization: `Bearer ${token}` };
   // four eyes: a technician uploads, the engineer approves
-  const tech = { authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'tech', 'technician').token}` };
+  const tech = {
+    authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'tech', 'technician').token}`,
+  };
   const app = await buildApp({ store, analyze: trendAnalyze, clockMs: () => Date.parse(AS_OF) });
-  const v = (await app.inject({ method: 'POST', url: '/api/vessels', headers: auth, payload: { name: 'CLI tank', site: 'east', shape: { kind: 'vertical-cylinder', diameterM: 2 }, outlet: { boreM: 0.03, elevationM: 0, actionThreshold: 0.9 }, sensor: { zeroElevationM: 0 } } })).json();
+  const v = (
+    await app.inject({
+      method: 'POST',
+      url: '/api/vessels',
+      headers: auth,
+      payload: {
+        name: 'CLI tank',
+        site: 'east',
+        shape: { kind: 'vertical-cylinder', diameterM: 2 },
+        outlet: { boreM: 0.03, elevationM: 0, actionThreshold: 0.9 },
+        sensor: { zeroElevationM: 0 },
+      },
+    })
+  ).json();
   outletId = v.outlets[0].id;
-  const h = simulateFoulingHistory({ seed: 3, months: 16, startMs: Date.UTC(2024, 3, 1), baselineAreaM2: 4e-4, driftPctPerYear: -5, relU: 0.004 });
+  const h = simulateFoulingHistory({
+    seed: 3,
+    months: 16,
+    startMs: Date.UTC(2024, 3, 1),
+    baselineAreaM2: 4e-4,
+    driftPctPerYear: -5,
+    relU: 0.004,
+  });
   for (const f of h.fits) {
-    const m = multipart([{ field: 'log', name: 'l.csv', bytes: logFor(f.effectiveAreaM2, f.effectiveAreaU) }], { testedAt: new Date(f.testedAtMs).toISOString() });
-    const up = await app.inject({ method: 'POST', url: `/api/vessels/${v.id}/tests`, headers: { ...tech, ...m.headers }, payload: m.payload });
-    await app.inject({ method: 'POST', url: `/api/fits/${up.json().fit.id}/review`, headers: auth, payload: { decision: 'approve' } });
+    const m = multipart(
+      [{ field: 'log', name: 'l.csv', bytes: logFor(f.effectiveAreaM2, f.effectiveAreaU) }],
+      { testedAt: new Date(f.testedAtMs).toISOString() },
+    );
+    const up = await app.inject({
+      method: 'POST',
+      url: `/api/vessels/${v.id}/tests`,
+      headers: { ...tech, ...m.headers },
+      payload: m.payload,
+    });
+    await app.inject({
+      method: 'POST',
+      url: `/api/fits/${up.json().fit.id}/review`,
+      headers: auth,
+      payload: { decision: 'approve' },
+    });
   }
-  apiTrend = (await app.inject({ method: 'GET', url: `/api/outlets/${outletId}/trend?asOf=${AS_OF}`, headers: auth })).json();
-  apiFleet = (await app.inject({ method: 'GET', url: `/api/fleet?asOf=${AS_OF}`, headers: auth })).json();
+  apiTrend = (
+    await app.inject({
+      method: 'GET',
+      url: `/api/outlets/${outletId}/trend?asOf=${AS_OF}`,
+      headers: auth,
+    })
+  ).json();
+  apiFleet = (
+    await app.inject({ method: 'GET', url: `/api/fleet?asOf=${AS_OF}`, headers: auth })
+  ).json();
   await app.close();
   store.close();
 }, 60_000);

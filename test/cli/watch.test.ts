@@ -9,7 +9,9 @@ import { testApp, type TestApp } from '../http/helpers.js';
 import { root } from './run-cli.js';
 
 const logBytes = readFileSync(resolve(root, 'sample-data/fb1-2026-03-10-preamble.csv'));
-const fb1 = JSON.parse(readFileSync(resolve(root, 'sample-data/backwash-tank-fb1.vessel.json'), 'utf8'));
+const fb1 = JSON.parse(
+  readFileSync(resolve(root, 'sample-data/backwash-tank-fb1.vessel.json'), 'utf8'),
+);
 const engine: AnalyzeRunner = async (req) => analyzeDrainTest(req);
 
 let t: TestApp;
@@ -18,21 +20,42 @@ let vesselId: number;
 beforeAll(async () => {
   t = await testApp({ analyze: engine, liveRefitMs: 500 });
   base = await t.app.listen({ host: '127.0.0.1', port: 0 });
-  vesselId = (await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('engineer'), payload: fb1 })).json().id;
+  vesselId = (
+    await t.app.inject({
+      method: 'POST',
+      url: '/api/vessels',
+      headers: t.auth('engineer'),
+      payload: fb1,
+    })
+  ).json().id;
 });
 afterAll(() => t.app.close());
 
-function watch(args: string[]): { child: ChildProcess; out: () => string; err: () => string; exited: Promise<number | null> } {
-  const child = spawn(process.execPath, ['--import', 'tsx', resolve(root, 'server/cli/main.ts'), 'watch', ...args], {
-    cwd: root,
-    env: { ...process.env, NO_COLOR: '1', EFFLUX_TOKEN: t.tokens.technician },
-    stdio: ['ignore', 'pipe', 'pipe'],
-  });
+function watch(args: string[]): {
+  child: ChildProcess;
+  out: () => string;
+  err: () => string;
+  exited: Promise<number | null>;
+} {
+  const child = spawn(
+    process.execPath,
+    ['--import', 'tsx', resolve(root, 'server/cli/main.ts'), 'watch', ...args],
+    {
+      cwd: root,
+      env: { ...process.env, NO_COLOR: '1', EFFLUX_TOKEN: t.tokens.technician },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    },
+  );
   let out = '';
   let err = '';
   child.stdout!.on('data', (d) => (out += d));
   child.stderr!.on('data', (d) => (err += d));
-  return { child, out: () => out, err: () => err, exited: new Promise((r) => child.on('exit', (code) => r(code))) };
+  return {
+    child,
+    out: () => out,
+    err: () => err,
+    exited: new Promise((r) => child.on('exit', (code) => r(code))),
+  };
 }
 
 const until = async (what: string, f: () => Promise<boolean> | boolean, ms = 60_000) => {
@@ -59,7 +82,10 @@ describe('efflux watch', () => {
     const first = watch([file, '--vessel', String(vesselId), '--to', base, '--poll', '200ms']);
     await until('the live id', () => /^[0-9a-f-]{36}\n/.test(first.out()));
     const id = first.out().trim();
-    const held = async () => (await t.app.inject({ method: 'GET', url: `/api/live/${id}`, headers: t.auth('auditor') })).json().receivedBytes as number;
+    const held = async () =>
+      (
+        await t.app.inject({ method: 'GET', url: `/api/live/${id}`, headers: t.auth('auditor') })
+      ).json().receivedBytes as number;
     await until('the first rows', async () => (await held()) === afterLine(400));
     // a half-written row is not sent until its line feed arrives
     appendFileSync(file, logBytes.subarray(afterLine(400), afterLine(400) + 10));
@@ -71,14 +97,28 @@ describe('efflux watch', () => {
     await first.exited;
     appendFileSync(file, logBytes.subarray(afterLine(1200), afterLine(1800)));
 
-    const second = watch([file, '--live', id, '--to', base, '--poll', '200ms', '--close-after', '2s']);
+    const second = watch([
+      file,
+      '--live',
+      id,
+      '--to',
+      base,
+      '--poll',
+      '200ms',
+      '--close-after',
+      '2s',
+    ]);
     await until('the resumed sender', () => /resuming live test/.test(second.err()));
     appendFileSync(file, logBytes.subarray(afterLine(1800)));
     const code = await second.exited;
     expect(code, second.err()).toBe(0);
     const m = /stored as test (\d+)/.exec(second.err());
     expect(m, second.err()).not.toBeNull();
-    const raw = await t.app.inject({ method: 'GET', url: `/api/tests/${m![1]}/raw`, headers: t.auth('auditor') });
+    const raw = await t.app.inject({
+      method: 'GET',
+      url: `/api/tests/${m![1]}/raw`,
+      headers: t.auth('auditor'),
+    });
     expect(raw.rawPayload.length).toBe(logBytes.length);
     expect(Buffer.compare(raw.rawPayload, logBytes)).toBe(0);
   }, 120_000);

@@ -17,9 +17,11 @@ describe('server/core', () => {
   it('declares no top-level let or var', () => {
     const found: string[] = [];
     for (const file of tsFiles(coreDir)) {
-      readFileSync(file, 'utf8').split('\n').forEach((line, i) => {
-        if (/^(export\s+)?(let|var)\s/.test(line)) found.push(`${file}:${i + 1}: ${line.trim()}`);
-      });
+      readFileSync(file, 'utf8')
+        .split('\n')
+        .forEach((line, i) => {
+          if (/^(export\s+)?(let|var)\s/.test(line)) found.push(`${file}:${i + 1}: ${line.trim()}`);
+        });
     }
     expect(found).toEqual([]);
   });

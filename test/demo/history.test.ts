@@ -30,11 +30,21 @@ async function get(url: string) {
 
 beforeAll(async () => {
   store = openStore();
-  const report = await loadDemo(store, async (req) => analyzeDrainTest(req), join(root, 'sample-data/manifest.json'));
+  const report = await loadDemo(
+    store,
+    async (req) => analyzeDrainTest(req),
+    join(root, 'sample-data/manifest.json'),
+  );
   expect(report.skipped).toEqual([]);
   expect(report.events).toBe(1);
-  auth = { authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'reader', 'auditor').token}` };
-  app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req), clockMs: () => NOW });
+  auth = {
+    authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'reader', 'auditor').token}`,
+  };
+  app = await buildApp({
+    store,
+    analyze: async (req) => analyzeDrainTest(req),
+    clockMs: () => NOW,
+  });
   for (const h of HISTORIES) {
     const id = store.vessels.findId('Kestrel Fen works (fictional)', h.vessel.name)!;
     outletOf[h.logPrefix] = store.vessels.get(id).outlets[0].id;
@@ -90,13 +100,20 @@ describe('demo histories through the trend API', () => {
     expect(after.series[0].changePct).toBe(0);
     expect(after.current).toBe(true);
     expect(b.status.epochIndex).toBe(1);
-    const csv = (await get(`/api/outlets/${outletOf.fd3}/history.csv`)).body.trimEnd().split('\r\n');
-    expect(csv.slice(1).map((l) => l.split(',')[4])).toEqual([...Array(13).fill('0'), ...Array(5).fill('1')]);
+    const csv = (await get(`/api/outlets/${outletOf.fd3}/history.csv`)).body
+      .trimEnd()
+      .split('\r\n');
+    expect(csv.slice(1).map((l) => l.split(',')[4])).toEqual([
+      ...Array(13).fill('0'),
+      ...Array(5).fill('1'),
+    ]);
   });
 
   it('the fleet puts the fouling outlet first (the only one with a date)', async () => {
     const f = (await get('/api/fleet')).json();
     expect(f.items[0].outletId).toBe(outletOf.fd2);
-    expect(f.items.find((i: { outletId: number }) => i.outletId === outletOf.fd1).status).toBe('steady');
+    expect(f.items.find((i: { outletId: number }) => i.outletId === outletOf.fd1).status).toBe(
+      'steady',
+    );
   });
 });

@@ -21,16 +21,32 @@ export function guardBrowser(suite: string): void {
       });
     });
   } else {
-    process.stderr.write(`\n*** e2e SKIPPED (${suite}): no browser at ${CHROMIUM}. Install Debian's chromium or set EFFLUX_CHROMIUM; in CI this fails. ***\n\n`);
+    process.stderr.write(
+      `\n*** e2e SKIPPED (${suite}): no browser at ${CHROMIUM}. Install Debian's chromium or set EFFLUX_CHROMIUM; in CI this fails. ***\n\n`,
+    );
   }
 }
 
-export async function launch(): Promise<{ context: BrowserContext; page: Page; profile: string; problems: string[] }> {
+export async function launch(): Promise<{
+  context: BrowserContext;
+  page: Page;
+  profile: string;
+  problems: string[];
+}> {
   const profile = mkdtempSync(join(tmpdir(), 'efflux-e2e-profile-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: CHROMIUM,
     headless: true,
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--no-first-run',
+      '--disable-quic',
+    ],
     viewport: { width: 1280, height: 800 },
   });
   const page = context.pages()[0] ?? (await context.newPage());
@@ -43,9 +59,17 @@ export async function launch(): Promise<{ context: BrowserContext; page: Page; p
 }
 
 /** Console errors that are not the expected answers of absent optional routes (404) or refused tokens (401). */
-export const unexpected = (problems: string[]) => problems.filter((p) => !/Failed to load resource: the server responded with a status of (401|404)/.test(p));
+export const unexpected = (problems: string[]) =>
+  problems.filter(
+    (p) => !/Failed to load resource: the server responded with a status of (401|404)/.test(p),
+  );
 
-export async function dragAcross(page: Page, selector: string, from: number, to: number): Promise<void> {
+export async function dragAcross(
+  page: Page,
+  selector: string,
+  from: number,
+  to: number,
+): Promise<void> {
   await page.locator(selector).scrollIntoViewIfNeeded();
   const box = (await page.locator(selector).boundingBox())!;
   await page.mouse.move(box.x + box.width * from, box.y + box.height / 2);
@@ -69,8 +93,21 @@ export async function startServer(): Promise<RunningServer> {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
   const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
   await buildWeb(webRoot);
-  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1', EFFLUX_DEMO: '1' };
-  const server = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+  const env = {
+    ...process.env,
+    EFFLUX_DATA_DIR: dataDir,
+    EFFLUX_WEB_ROOT: webRoot,
+    PORT: '0',
+    HOST: '127.0.0.1',
+    EFFLUX_LOG: 'warn',
+    EFFLUX_WORKERS: '1',
+    EFFLUX_DEMO: '1',
+  };
+  const server = spawn(
+    process.execPath,
+    ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'],
+    { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] },
+  );
   let out = '';
   const base = await new Promise<string>((resolve, reject) => {
     server.stdout!.on('data', (d) => {
@@ -79,7 +116,9 @@ export async function startServer(): Promise<RunningServer> {
       if (m && /\/api\/docs\n/.test(out)) resolve(m[1]);
     });
     server.stderr!.on('data', (d) => (out += d));
-    server.once('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
+    server.once('exit', (code) =>
+      reject(new Error(`server exited ${code} before listening:\n${out}`)),
+    );
   });
   const adminToken = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
   return {

@@ -12,7 +12,16 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { guardBrowser, haveBrowser, launch, root, shots, startServer, unexpected, type RunningServer } from './browser.js';
+import {
+  guardBrowser,
+  haveBrowser,
+  launch,
+  root,
+  shots,
+  startServer,
+  unexpected,
+  type RunningServer,
+} from './browser.js';
 
 guardBrowser('plan and live test');
 const LOG = readFileSync(join(root, 'sample-data/fb1-2026-03-10-preamble.csv'));
@@ -33,7 +42,11 @@ describe.skipIf(!haveBrowser)('plan and live test pages in a browser', () => {
     process.env.EFFLUX_LIVE_REFIT_S = '1';
     srv = await startServer();
     ({ context, page, profile, problems } = await launch());
-    const vessels = await (await fetch(`${srv.base}/api/vessels?limit=100`, { headers: { authorization: `Bearer ${srv.adminToken}` } })).json();
+    const vessels = await (
+      await fetch(`${srv.base}/api/vessels?limit=100`, {
+        headers: { authorization: `Bearer ${srv.adminToken}` },
+      })
+    ).json();
     fb1 = vessels.items.find((v: { name: string }) => v.name === 'Backwash tank FB-1').id;
   }, 240_000);
 
@@ -44,15 +57,23 @@ describe.skipIf(!haveBrowser)('plan and live test pages in a browser', () => {
     if (profile) spawnSync('rm', ['-rf', profile]);
   });
 
-  const shot = (name: string) => page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
-  const api = async (path: string) => (await fetch(`${srv.base}${path}`, { headers: { authorization: `Bearer ${srv.adminToken}` } })).json();
+  const shot = (name: string) =>
+    page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
+  const api = async (path: string) =>
+    (
+      await fetch(`${srv.base}${path}`, { headers: { authorization: `Bearer ${srv.adminToken}` } })
+    ).json();
 
   function sender(args: string[]): { child: ChildProcess; err: () => string } {
-    const child = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'watch', ...args], {
-      cwd: root,
-      env: { ...process.env, EFFLUX_TOKEN: srv.adminToken, NO_COLOR: '1' },
-      stdio: ['ignore', 'pipe', 'pipe'],
-    });
+    const child = spawn(
+      process.execPath,
+      ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'watch', ...args],
+      {
+        cwd: root,
+        env: { ...process.env, EFFLUX_TOKEN: srv.adminToken, NO_COLOR: '1' },
+        stdio: ['ignore', 'pipe', 'pipe'],
+      },
+    );
     senders.push(child);
     let err = '';
     child.stderr!.on('data', (d) => (err += d));
@@ -99,7 +120,10 @@ describe.skipIf(!haveBrowser)('plan and live test pages in a browser', () => {
     let written = 60; // the preamble and the first readings of the hold
     writeFileSync(file, LOG.subarray(0, lineEnds[written - 1]));
     let s = sender([file, '--live', id, '--to', srv.base, '--poll', '200ms']);
-    await until('the first rows on the service', async () => (await held()) === lineEnds[written - 1]);
+    await until(
+      'the first rows on the service',
+      async () => (await held()) === lineEnds[written - 1],
+    );
 
     let enoughAt: number | null = null;
     let killed = false;
@@ -108,7 +132,8 @@ describe.skipIf(!haveBrowser)('plan and live test pages in a browser', () => {
       appendFileSync(file, LOG.subarray(lineEnds[written - 1], lineEnds[next - 1]));
       written = next;
       await new Promise((r) => setTimeout(r, 120));
-      if (enoughAt === null && (await page.locator('.live-enough .notice').isVisible())) enoughAt = written;
+      if (enoughAt === null && (await page.locator('.live-enough .notice').isVisible()))
+        enoughAt = written;
       if (!killed && written >= 1100) {
         // the sender dies midway (no goodbye); rows keep arriving in the file meanwhile
         await until('rows past 1000 on the service', async () => (await held()) >= lineEnds[999]);
@@ -120,25 +145,44 @@ describe.skipIf(!haveBrowser)('plan and live test pages in a browser', () => {
     }
     expect(enoughAt, 'the enough-data notice came before the log ended').not.toBeNull();
     expect(enoughAt!).toBeLessThan(lineEnds.length);
-    console.info(`browser: the enough-data notice was up with ${enoughAt} of ${lineEnds.length} lines written`);
+    console.info(
+      `browser: the enough-data notice was up with ${enoughAt} of ${lineEnds.length} lines written`,
+    );
     expect(await page.locator('.live-headline').innerText()).toMatch(/^Cd = 0\.6\d+ ± 0\.0\d+/);
     await until('every byte on the service', async () => (await held()) === LOG.length);
     s.child.kill('SIGTERM');
     expect(s.err()).toMatch(/resuming live test/);
-    await until('the last rows drawn', async () => (await page.locator('.live-rows').innerText()) === `${lineEnds.length} rows received`, 20_000);
+    await until(
+      'the last rows drawn',
+      async () =>
+        (await page.locator('.live-rows').innerText()) === `${lineEnds.length} rows received`,
+      20_000,
+    );
 
     await page.getByRole('button', { name: 'Close and store the test' }).click();
     // the demo already holds this file for FB-1: the service answers 409 naming that test, as for an
     // upload, and the page offers to store it again (allowDuplicate=true)
     const again = page.getByRole('button', { name: 'Store it again anyway' });
     await again.waitFor({ timeout: 60_000 });
-    await expect(page.locator('.notice-caution').last().textContent()).resolves.toMatch(/already stored: test \d+/);
+    await expect(page.locator('.notice-caution').last().textContent()).resolves.toMatch(
+      /already stored: test \d+/,
+    );
     await again.click();
     const link = page.getByRole('link', { name: 'Open its fit for review' });
     await link.waitFor({ timeout: 60_000 });
     await shot('22-live-closed');
-    const testId = Number(/Stored as test (\d+)/.exec(await page.locator('.notice', { hasText: 'Stored as test' }).first().innerText())![1]);
-    const raw = Buffer.from(await (await fetch(`${srv.base}/api/tests/${testId}/raw`, { headers: { authorization: `Bearer ${srv.adminToken}` } })).arrayBuffer());
+    const testId = Number(
+      /Stored as test (\d+)/.exec(
+        await page.locator('.notice', { hasText: 'Stored as test' }).first().innerText(),
+      )![1],
+    );
+    const raw = Buffer.from(
+      await (
+        await fetch(`${srv.base}/api/tests/${testId}/raw`, {
+          headers: { authorization: `Bearer ${srv.adminToken}` },
+        })
+      ).arrayBuffer(),
+    );
     expect(raw.length).toBe(LOG.length);
     expect(Buffer.compare(raw, LOG)).toBe(0);
     await link.click();

@@ -8,7 +8,16 @@ import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { guardBrowser, haveBrowser, launch, root, shots, startServer, unexpected, type RunningServer } from './browser.js';
+import {
+  guardBrowser,
+  haveBrowser,
+  launch,
+  root,
+  shots,
+  startServer,
+  unexpected,
+  type RunningServer,
+} from './browser.js';
 
 const SYSTEMS = join(root, 'sample-data/systems');
 guardBrowser('connected vessels, trend, audit');
@@ -32,7 +41,8 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     if (profile) spawnSync('rm', ['-rf', profile]);
   });
 
-  const shot = (name: string) => page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
+  const shot = (name: string) =>
+    page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
 
   async function signIn(token: string) {
     await page.goto(`${srv.base}/`);
@@ -55,8 +65,12 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     await page.locator('svg.system-schematic').waitFor();
     expect(await page.locator('svg.system-schematic rect.sch-vessel').count()).toBe(2);
     expect(await page.locator('svg.system-schematic .sch-free').count()).toBe(1);
-    await page.getByLabel('Level log of Feed tank FT-1 (FT1)').setInputFiles(join(SYSTEMS, 'ft1-2026-04-07.csv'));
-    await page.getByLabel('Level log of Break tank BT-2 (BT2)').setInputFiles(join(SYSTEMS, 'bt2-2026-04-07.csv'));
+    await page
+      .getByLabel('Level log of Feed tank FT-1 (FT1)')
+      .setInputFiles(join(SYSTEMS, 'ft1-2026-04-07.csv'));
+    await page
+      .getByLabel('Level log of Break tank BT-2 (BT2)')
+      .setInputFiles(join(SYSTEMS, 'bt2-2026-04-07.csv'));
     await page.getByRole('button', { name: 'Fit all outlets together' }).click();
     await page.getByRole('heading', { name: 'Joint fit' }).waitFor({ timeout: 60_000 });
     await page.locator('#system-fit-FT1 canvas').waitFor();
@@ -88,8 +102,14 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     // an inflow too large for the top vessel is an overflow warning, not a silent number
     await page.getByLabel('Inflow into FT1').fill('20 L/s');
     await page.getByRole('button', { name: 'Work out the operating point' }).click();
-    await page.locator('.system-operating .notice-error').filter({ hasText: /overflow/ }).first().waitFor({ timeout: 30_000 });
-    await page.locator('.system-operating').screenshot({ path: join(shots, '12-systems-overflow.png') });
+    await page
+      .locator('.system-operating .notice-error')
+      .filter({ hasText: /overflow/ })
+      .first()
+      .waitFor({ timeout: 30_000 });
+    await page
+      .locator('.system-operating')
+      .screenshot({ path: join(shots, '12-systems-overflow.png') });
   }, 180_000);
 
   it('vessel page: the trend of an outlet with a monthly history, and the maintenance form', async () => {
@@ -99,7 +119,11 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
       const counts: { outletId: number; vesselId: number; n: number }[] = [];
       for (const item of fleet.items ?? []) {
         const t = await (await fetch(`/api/outlets/${item.outletId}/trend`)).json();
-        counts.push({ outletId: item.outletId, vesselId: item.vesselId, n: t.epochs.reduce((s: number, e: { series: unknown[] }) => s + e.series.length, 0) });
+        counts.push({
+          outletId: item.outletId,
+          vesselId: item.vesselId,
+          n: t.epochs.reduce((s: number, e: { series: unknown[] }) => s + e.series.length, 0),
+        });
       }
       counts.sort((a, b) => b.n - a.n);
       return counts[0] ?? null;
@@ -110,7 +134,11 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
         const fits = await (await fetch(`/api/vessels/${vesselId}/fits?limit=500`)).json();
         for (const f of fits.items) {
           if (f.status !== 'draft' || f.supersededBy !== null) continue;
-          await fetch(`/api/fits/${f.id}/review`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ decision: 'approve', comment: 'approved for the e2e trend' }) });
+          await fetch(`/api/fits/${f.id}/review`, {
+            method: 'POST',
+            headers: { 'content-type': 'application/json' },
+            body: JSON.stringify({ decision: 'approve', comment: 'approved for the e2e trend' }),
+          });
         }
       }, pick!.vesselId);
     }
@@ -120,9 +148,14 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     await chart.locator('canvas').waitFor();
     expect(Number(await chart.getAttribute('data-points'))).toBeGreaterThanOrEqual(2);
     // the status sentence, with the forecast crossing date (or why there is none)
-    await expect(page.locator('.trend-status').first().textContent()).resolves.toMatch(/\d{4}-\d{2}-\d{2}|forecast/i);
+    await expect(page.locator('.trend-status').first().textContent()).resolves.toMatch(
+      /\d{4}-\d{2}-\d{2}|forecast/i,
+    );
     const csv = page.getByRole('link', { name: 'History as CSV' }).first();
-    const csvText = await page.evaluate(async (href) => (await fetch(href)).text(), (await csv.getAttribute('href'))!);
+    const csvText = await page.evaluate(
+      async (href) => (await fetch(href)).text(),
+      (await csv.getAttribute('href'))!,
+    );
     expect(csvText.split('\n').length).toBeGreaterThan(2);
     await page.locator('section.trend').screenshot({ path: join(shots, '13-vessel-trend.png') });
 
@@ -131,18 +164,42 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     await page.getByLabel('What was done').selectOption('cleaned');
     await page.getByLabel('Notes').fill('descaled, e2e');
     await page.getByRole('button', { name: 'Record maintenance' }).click();
-    await page.waitForFunction((n) => Number(document.querySelector('.trend-chart')?.getAttribute('data-epochs') ?? 0) > n || document.querySelector('.maintenance table')?.textContent?.includes('descaled, e2e'), epochs, { timeout: 30_000 });
-    await expect(page.locator('.maintenance table').textContent()).resolves.toContain('descaled, e2e');
+    await page.waitForFunction(
+      (n) =>
+        Number(document.querySelector('.trend-chart')?.getAttribute('data-epochs') ?? 0) > n ||
+        document.querySelector('.maintenance table')?.textContent?.includes('descaled, e2e'),
+      epochs,
+      { timeout: 30_000 },
+    );
+    await expect(page.locator('.maintenance table').textContent()).resolves.toContain(
+      'descaled, e2e',
+    );
     await shot('14-vessel-page');
 
     // the fleet's drift column, soonest threshold first
     await page.goto(`${srv.base}/#/`);
     await page.locator('table.fleet tbody tr').first().waitFor();
-    await expect(page.locator('table.fleet thead').textContent()).resolves.toContain('Drift status');
+    await expect(page.locator('table.fleet thead').textContent()).resolves.toContain(
+      'Drift status',
+    );
   }, 180_000);
 
   it('auditor: the log filtered by vessel, user and date; the chain check; report links; export', async () => {
-    const made = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'token', 'create', '--role', 'auditor', '--name', 'e2e-auditor-2'], { cwd: root, env: srv.env, encoding: 'utf8' });
+    const made = spawnSync(
+      process.execPath,
+      [
+        '--import',
+        'tsx',
+        join(root, 'server/cli/main.ts'),
+        'token',
+        'create',
+        '--role',
+        'auditor',
+        '--name',
+        'e2e-auditor-2',
+      ],
+      { cwd: root, env: srv.env, encoding: 'utf8' },
+    );
     expect(made.status).toBe(0);
     await signIn(made.stdout.trim());
     await page.getByRole('link', { name: 'Audit log' }).click();
@@ -155,8 +212,16 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     await page.getByText('The chain is intact.').waitFor();
 
     // by vessel: only that vessel's trail, with fit report links
-    const vesselOption = (await page.locator('form.audit-filters').getByLabel('Vessel').locator('option').nth(1).textContent())!;
-    await page.locator('form.audit-filters').getByLabel('Vessel').selectOption({ label: vesselOption });
+    const vesselOption = (await page
+      .locator('form.audit-filters')
+      .getByLabel('Vessel')
+      .locator('option')
+      .nth(1)
+      .textContent())!;
+    await page
+      .locator('form.audit-filters')
+      .getByLabel('Vessel')
+      .selectOption({ label: vesselOption });
     await page.getByRole('button', { name: 'Show entries' }).click();
     await page.waitForFunction(() => document.querySelector('.outlet-reports a') !== null);
     const byVessel = await page.locator('table.audit tbody tr').count();
@@ -166,7 +231,10 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     expect(ons.every((t) => /^(vessel|outlet|test|fit|maintenance event) \d+$/.test(t))).toBe(true);
     const pdf = page.locator('table.audit a[href$="/report.pdf"]').first();
     if (await pdf.count()) {
-      const status = await page.evaluate(async (href) => (await fetch(href)).status, (await pdf.getAttribute('href'))!);
+      const status = await page.evaluate(
+        async (href) => (await fetch(href)).status,
+        (await pdf.getAttribute('href'))!,
+      );
       expect(status).toBe(200);
     }
     await shot('15-audit-vessel');
@@ -180,14 +248,21 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     expect(people.length).toBeGreaterThanOrEqual(2);
     await page.getByLabel('Person').selectOption({ index: 1 });
     await page.getByRole('button', { name: 'Show entries' }).click();
-    await page.waitForFunction(() => /entr(y|ies) shown/.test(document.querySelector('.count')?.textContent ?? ''));
+    await page.waitForFunction(() =>
+      /entr(y|ies) shown/.test(document.querySelector('.count')?.textContent ?? ''),
+    );
     const who = new Set(await page.locator('table.audit tbody td:nth-child(3)').allTextContents());
     expect(who.size).toBeLessThanOrEqual(1);
 
     // export: the zip arrives
     await page.getByRole('button', { name: 'Make the export' }).click();
-    await page.locator('#export-link').or(page.locator('.export-form .notice-error')).waitFor({ timeout: 60_000 });
-    await page.locator('section:has(.export-form)').screenshot({ path: join(shots, '16-audit-export.png') });
+    await page
+      .locator('#export-link')
+      .or(page.locator('.export-form .notice-error'))
+      .waitFor({ timeout: 60_000 });
+    await page
+      .locator('section:has(.export-form)')
+      .screenshot({ path: join(shots, '16-audit-export.png') });
     expect(await page.locator('#export-link').count()).toBe(1);
 
     expect(problems.filter((p) => /Content Security Policy|Refused/.test(p))).toEqual([]);

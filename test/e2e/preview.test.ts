@@ -16,7 +16,15 @@ import { buildApp } from '../../server/http/app.js';
 import { workbenchRoutes } from '../../server/http/routes/workbench.js';
 import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { buildWeb } from '../../web/build.js';
-import { dragAcross, guardBrowser, haveBrowser, launch, root, shots, unexpected } from './browser.js';
+import {
+  dragAcross,
+  guardBrowser,
+  haveBrowser,
+  launch,
+  root,
+  shots,
+  unexpected,
+} from './browser.js';
 
 guardBrowser('preview');
 
@@ -39,10 +47,17 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
     token = store.users.createToken(SYSTEM_ACTOR, 'tech-e2e', 'technician').token;
     const engineer = store.users.createToken(SYSTEM_ACTOR, 'eng-e2e', 'engineer').token;
     app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req), webRoot });
-    if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' })) await app.register(workbenchRoutes);
+    if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' }))
+      await app.register(workbenchRoutes);
     base = await app.listen({ host: '127.0.0.1', port: 0 });
-    const vessel = JSON.parse(readFileSync(join(root, 'sample-data/process-vessel-p4.vessel.json'), 'utf8'));
-    const r = await fetch(`${base}/api/vessels`, { method: 'POST', headers: { authorization: `Bearer ${engineer}`, 'content-type': 'application/json' }, body: JSON.stringify(vessel) });
+    const vessel = JSON.parse(
+      readFileSync(join(root, 'sample-data/process-vessel-p4.vessel.json'), 'utf8'),
+    );
+    const r = await fetch(`${base}/api/vessels`, {
+      method: 'POST',
+      headers: { authorization: `Bearer ${engineer}`, 'content-type': 'application/json' },
+      body: JSON.stringify(vessel),
+    });
     expect(r.status).toBe(201);
     vesselId = (await r.json()).id;
     ({ context, page, profile, problems } = await launch());
@@ -62,9 +77,13 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
     await page.getByRole('heading', { level: 1, name: 'Fleet' }).waitFor();
     await page.goto(`${base}/#/vessels/${vesselId}/new-test`);
     // an absolute-pressure log needs its barometric log: first alone (refused, in words), then with it
-    await page.getByLabel('Logger file').setInputFiles(join(root, 'sample-data/p4-2026-03-16-absolute.csv'));
+    await page
+      .getByLabel('Logger file')
+      .setInputFiles(join(root, 'sample-data/p4-2026-03-16-absolute.csv'));
     await page.locator('.preview .notice-error').waitFor();
-    await page.getByLabel(/Barometric log/).setInputFiles(join(root, 'sample-data/p4-2026-03-16-baro.csv'));
+    await page
+      .getByLabel(/Barometric log/)
+      .setInputFiles(join(root, 'sample-data/p4-2026-03-16-baro.csv'));
     const cols = page.getByRole('table', { name: 'Columns found' });
     await cols.waitFor();
     await expect(cols.textContent()).resolves.toMatch(/absolute pressure/);
@@ -83,7 +102,14 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
     await page.waitForURL(/#\/fits\/\d+$/, { timeout: 120_000 });
     await page.locator('#window-chart canvas').waitFor();
     const fitId = Number(/#\/fits\/(\d+)$/.exec(page.url())![1]);
-    const f = await page.evaluate(async (id) => (await (await fetch(`/api/fits/${id}`)).json()) as { settings: { window?: string }; result: { window: { startS: number; endS: number } } }, fitId);
+    const f = await page.evaluate(
+      async (id) =>
+        (await (await fetch(`/api/fits/${id}`)).json()) as {
+          settings: { window?: string };
+          result: { window: { startS: number; endS: number } };
+        },
+      fitId,
+    );
     expect(f.settings.window).toBe(`${start}..${end}`);
     expect(f.result.window.startS).toBeGreaterThanOrEqual(start);
     expect(f.result.window.endS).toBeLessThanOrEqual(end);
@@ -98,7 +124,8 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
   it('draws a 100 000-reading log (decimated for drawing) and still takes a dragged window', async () => {
     // invented for this test: a hold, then an orifice drain of an upright cylinder, 0.2 s readings, ±1 mm noise
     let seed = 12345;
-    const noise = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648 - 0.5) * 0.002;
+    const noise = () =>
+      ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648 - 0.5) * 0.002;
     const rows = ['elapsed_s,level_m'];
     for (let i = 0; i < 100_000; i++) {
       const t = i * 0.2;
@@ -111,7 +138,9 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
     await page.goto(`${base}/#/vessels/${vesselId}/new-test`);
     await page.getByLabel('Logger file').setInputFiles(file);
     await page.getByRole('table', { name: 'The log' }).waitFor();
-    await expect(page.getByRole('table', { name: 'The log' }).textContent()).resolves.toContain('100000');
+    await expect(page.getByRole('table', { name: 'The log' }).textContent()).resolves.toContain(
+      '100000',
+    );
     await page.locator('#log-chart canvas').waitFor();
     await dragAcross(page, '#log-chart .u-over', 0.2, 0.6);
     const start = Number(await page.locator('#win-start').inputValue());

@@ -12,7 +12,15 @@ import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildWeb } from '../../web/build.js';
-import { dragAcross, guardBrowser, haveBrowser, launch, root, shots, unexpected } from './browser.js';
+import {
+  dragAcross,
+  guardBrowser,
+  haveBrowser,
+  launch,
+  root,
+  shots,
+  unexpected,
+} from './browser.js';
 
 const SAMPLE = join(root, 'sample-data/fb1-2026-03-26-leaking-inlet.csv');
 guardBrowser('workbench flow');
@@ -26,13 +34,26 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-e2e-data-'));
   const webRoot = mkdtempSync(join(tmpdir(), 'efflux-e2e-web-'));
   let profile = '';
-  const env = { ...process.env, EFFLUX_DATA_DIR: dataDir, EFFLUX_WEB_ROOT: webRoot, PORT: '0', HOST: '127.0.0.1', EFFLUX_LOG: 'warn', EFFLUX_WORKERS: '1', EFFLUX_DEMO: '1' };
+  const env = {
+    ...process.env,
+    EFFLUX_DATA_DIR: dataDir,
+    EFFLUX_WEB_ROOT: webRoot,
+    PORT: '0',
+    HOST: '127.0.0.1',
+    EFFLUX_LOG: 'warn',
+    EFFLUX_WORKERS: '1',
+    EFFLUX_DEMO: '1',
+  };
   let problems: string[] = [];
 
   beforeAll(async () => {
     mkdirSync(shots, { recursive: true });
     await buildWeb(webRoot);
-    server = spawn(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+    server = spawn(
+      process.execPath,
+      ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'serve'],
+      { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] },
+    );
     let out = '';
     await new Promise<void>((resolve, reject) => {
       server.stdout!.on('data', (d) => {
@@ -44,7 +65,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
         }
       });
       server.stderr!.on('data', (d) => (out += d));
-      server.once('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
+      server.once('exit', (code) =>
+        reject(new Error(`server exited ${code} before listening:\n${out}`)),
+      );
     });
     adminToken = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
     ({ context, page, profile, problems } = await launch());
@@ -60,7 +83,8 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     for (const d of [dataDir, webRoot, profile]) rmSync(d, { recursive: true, force: true });
   });
 
-  const shot = (name: string) => page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
+  const shot = (name: string) =>
+    page.screenshot({ path: join(shots, `${name}.png`), fullPage: true });
 
   async function signIn(token: string) {
     await page.goto(`${base}/`);
@@ -97,7 +121,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
 
     // new test: the caution, the file, the preview
     await page.getByRole('link', { name: 'New drain test' }).click();
-    await expect(page.locator('.notice-caution').textContent()).resolves.toContain('not a certification');
+    await expect(page.locator('.notice-caution').textContent()).resolves.toContain(
+      'not a certification',
+    );
     await page.getByLabel('Logger file').setInputFiles(SAMPLE);
     const detected = page.getByRole('table', { name: 'Columns found' });
     const fallback = page.getByText('does not offer a preview');
@@ -110,7 +136,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
       await dragAcross(page, '#log-chart .u-over', 0.12, 0.8);
       const after = Number(await page.locator('#win-start').inputValue());
       expect(after).not.toBe(before);
-      await expect(page.locator('.window-fields .hint').textContent()).resolves.toContain('Your window');
+      await expect(page.locator('.window-fields .hint').textContent()).resolves.toContain(
+        'Your window',
+      );
     }
     await page.locator('#win-start').fill('150');
     await page.locator('#win-start').dispatchEvent('change');
@@ -131,25 +159,41 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     // and the page offers to store it again (allowDuplicate=true, recorded in the audit log)
     const again = page.getByRole('button', { name: 'Store it again anyway' });
     await again.waitFor({ timeout: 120_000 });
-    await expect(page.locator('.notice-caution').last().textContent()).resolves.toMatch(/already stored: test \d+/);
+    await expect(page.locator('.notice-caution').last().textContent()).resolves.toMatch(
+      /already stored: test \d+/,
+    );
     await again.click();
     await page.waitForURL(/#\/fits\/\d+$/, { timeout: 120_000 });
     await page.getByRole('heading', { name: 'Readings and the fitted drain curve' }).waitFor();
     await page.locator('#fit-chart canvas').waitFor();
     await page.locator('#residual-chart canvas').waitFor();
-    await expect(page.locator('.headline').textContent()).resolves.toContain('chosen by the person (150..2000 s)');
+    await expect(page.locator('.headline').textContent()).resolves.toContain(
+      'chosen by the person (150..2000 s)',
+    );
     const fitId = Number(/#\/fits\/(\d+)$/.exec(page.url())![1]);
-    const win = await page.evaluate(async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result.window, fitId);
+    const win = await page.evaluate(
+      async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result.window,
+      fitId,
+    );
     expect(win.startS).toBeGreaterThanOrEqual(150);
     expect(win.endS).toBeLessThanOrEqual(2000);
-    await expect(page.getByRole('link', { name: 'Download the report (PDF)' }).getAttribute('href')).resolves.toBe(`/api/fits/${fitId}/report.pdf`);
+    await expect(
+      page.getByRole('link', { name: 'Download the report (PDF)' }).getAttribute('href'),
+    ).resolves.toBe(`/api/fits/${fitId}/report.pdf`);
     page.off('request', onRequest);
     expect(reportRequests).toEqual([]);
     await shot('05-fit');
 
     // the uncertainty budget: the same strings as the fit JSON (which the CLI and the PDF print)
-    const result = await page.evaluate(async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result, fitId);
-    const cells = await page.locator('table.budget tbody tr').evaluateAll((rows) => rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent)));
+    const result = await page.evaluate(
+      async (id) => (await (await fetch(`/api/fits/${id}`)).json()).result,
+      fitId,
+    );
+    const cells = await page
+      .locator('table.budget tbody tr')
+      .evaluateAll((rows) =>
+        rows.map((r) => Array.from(r.querySelectorAll('td'), (td) => td.textContent)),
+      );
     expect(cells).toEqual(result.budget.table.rows);
     // the drain-time calculator: 3 m → 1 m against 2A(√H0 − √H1)/(Cd·a·√(2g)) (Torricelli, constant area)
     await page.getByLabel('From level, m').fill('3');
@@ -158,7 +202,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     const answer = await page.locator('#drain-time-answer').textContent();
     const seconds = Number(/^([\d.]+) s, about/.exec(answer ?? '')![1]);
     const A = (Math.PI * 3.2 ** 2) / 4;
-    const exact = ((2 * A) / (result.effectiveAreaM2.value * Math.sqrt(2 * 9.80665))) * (Math.sqrt(2.9) - Math.sqrt(0.9));
+    const exact =
+      ((2 * A) / (result.effectiveAreaM2.value * Math.sqrt(2 * 9.80665))) *
+      (Math.sqrt(2.9) - Math.sqrt(0.9));
     expect(Math.abs(seconds - exact) / exact).toBeLessThan(1e-3);
     expect(answer).toMatch(/95 % interval [\d.]+ s to [\d.]+ s/);
 
@@ -169,24 +215,37 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     const allowed = await page.evaluate(async (id) => {
       const f = await (await fetch(`/api/fits/${id}`)).json();
       const v = await (await fetch(`/api/vessels/${f.vesselId}`)).json();
-      const r = await fetch(`/api/sites/${encodeURIComponent(v.site)}/settings`, { method: 'PUT', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ selfReviewAllowed: true }) });
+      const r = await fetch(`/api/sites/${encodeURIComponent(v.site)}/settings`, {
+        method: 'PUT',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify({ selfReviewAllowed: true }),
+      });
       return r.status;
     }, fitId);
     expect(allowed).toBe(200);
     // approve with a comment (markup typed in a comment stays text)
-    await page.getByLabel('Comment (kept with the fit)').fill('Window checked by eye <script>x</script>');
+    await page
+      .getByLabel('Comment (kept with the fit)')
+      .fill('Window checked by eye <script>x</script>');
     await page.getByRole('button', { name: 'Approve' }).click();
     await page.locator('.title-row .badge-approved').waitFor();
     await page.getByText('Self-review: approved by the person who uploaded').waitFor();
-    await expect(page.locator('.review blockquote').textContent()).resolves.toBe('Window checked by eye <script>x</script>');
+    await expect(page.locator('.review blockquote').textContent()).resolves.toBe(
+      'Window checked by eye <script>x</script>',
+    );
     await shot('06-fit-approved');
 
     // the vessel's chart has the new point
-    await page.getByRole('navigation', { name: 'Where you are' }).getByRole('link', { name: 'Backwash tank FB-1' }).click();
+    await page
+      .getByRole('navigation', { name: 'Where you are' })
+      .getByRole('link', { name: 'Backwash tank FB-1' })
+      .click();
     const history2 = page.locator('.chart[id^="history-"]').first();
     await history2.locator('canvas').waitFor();
     expect(Number(await history2.getAttribute('data-approved'))).toBe(approvedBefore + 1);
-    await expect(page.locator('main table').last().textContent()).resolves.toContain('e2e <b>tester</b>');
+    await expect(page.locator('main table').last().textContent()).resolves.toContain(
+      'e2e <b>tester</b>',
+    );
     await shot('07-vessel-after');
 
     expect(problems.filter((p) => /Content Security Policy|Refused/.test(p))).toEqual([]);
@@ -197,7 +256,21 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
   }, 240_000);
 
   it('an auditor sees the same pages with no edit controls', async () => {
-    const made = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'token', 'create', '--role', 'auditor', '--name', 'e2e-auditor'], { cwd: root, env, encoding: 'utf8' });
+    const made = spawnSync(
+      process.execPath,
+      [
+        '--import',
+        'tsx',
+        join(root, 'server/cli/main.ts'),
+        'token',
+        'create',
+        '--role',
+        'auditor',
+        '--name',
+        'e2e-auditor',
+      ],
+      { cwd: root, env, encoding: 'utf8' },
+    );
     expect(made.status).toBe(0);
     await page.goto(`${base}/#/`);
     const out = page.getByRole('button', { name: 'Sign out' });
@@ -230,7 +303,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
       expect(await drawing.locator('polygon').count()).toBe(1);
       await expect(drawing.textContent()).resolves.toMatch(/outlet/);
       await expect(drawing.textContent()).resolves.toMatch(/sensor zero|gauge face/);
-      await page.locator('figure.drawing').screenshot({ path: join(shots, 'drawings', `${name.replace(/[^A-Za-z0-9-]+/g, '_')}.png`) });
+      await page.locator('figure.drawing').screenshot({
+        path: join(shots, 'drawings', `${name.replace(/[^A-Za-z0-9-]+/g, '_')}.png`),
+      });
     }
   }, 120_000);
 });

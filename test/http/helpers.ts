@@ -24,14 +24,21 @@ afterAll(async () => {
   }
 });
 
-export async function testApp(over: Partial<AppOptions> & { analyze?: AnalyzeRunner } = {}): Promise<TestApp> {
+export async function testApp(
+  over: Partial<AppOptions> & { analyze?: AnalyzeRunner } = {},
+): Promise<TestApp> {
   const store = openStore();
   const tokens = {} as Record<Role, string>;
   for (const role of ['technician', 'engineer', 'auditor', 'admin'] as Role[]) {
     tokens[role] = store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role).token;
   }
   const app = await buildApp({ store, analyze: fakeAnalyze, ...over });
-  const t: TestApp = { app, store, tokens, auth: (role) => ({ authorization: `Bearer ${tokens[role]}` }) };
+  const t: TestApp = {
+    app,
+    store,
+    tokens,
+    auth: (role) => ({ authorization: `Bearer ${tokens[role]}` }),
+  };
   opened.push(t);
   await app.ready();
   return t;
@@ -45,19 +52,31 @@ export const VESSEL_FILE = {
 };
 
 /** A multipart body built by hand (no client library needed for inject). */
-export function multipart(files: { field: string; name: string; bytes: Uint8Array }[], fields: Record<string, string> = {}) {
+export function multipart(
+  files: { field: string; name: string; bytes: Uint8Array }[],
+  fields: Record<string, string> = {},
+) {
   const boundary = `----efflux${Math.random().toString(16).slice(2)}`;
   const parts: Buffer[] = [];
   for (const [k, v] of Object.entries(fields)) {
-    parts.push(Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`));
+    parts.push(
+      Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="${k}"\r\n\r\n${v}\r\n`),
+    );
   }
   for (const f of files) {
-    parts.push(Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="${f.field}"; filename="${f.name}"\r\nContent-Type: text/csv\r\n\r\n`));
+    parts.push(
+      Buffer.from(
+        `--${boundary}\r\nContent-Disposition: form-data; name="${f.field}"; filename="${f.name}"\r\nContent-Type: text/csv\r\n\r\n`,
+      ),
+    );
     parts.push(Buffer.from(f.bytes));
     parts.push(Buffer.from('\r\n'));
   }
   parts.push(Buffer.from(`--${boundary}--\r\n`));
-  return { payload: Buffer.concat(parts), headers: { 'content-type': `multipart/form-data; boundary=${boundary}` } };
+  return {
+    payload: Buffer.concat(parts),
+    headers: { 'content-type': `multipart/form-data; boundary=${boundary}` },
+  };
 }
 
 export const GOOD_LOG = Buffer.from('t,level\n0,2.00\n1,1.98\n2,1.96\n3,1.94\n');

@@ -25,9 +25,19 @@ function unbounded(s: unknown, path: string, defs: Record<string, unknown> = {})
   }
   const out: string[] = [];
   const types = [o.type].flat();
-  if (types.includes('string') && o.maxLength === undefined && o.enum === undefined && o.const === undefined && o.format === undefined) out.push(path);
-  for (const [k, v] of Object.entries((o.properties as Record<string, unknown>) ?? {})) out.push(...unbounded(v, `${path}.${k}`, defs));
-  for (const key of ['anyOf', 'oneOf', 'allOf'] as const) for (const [i, v] of ((o[key] as unknown[]) ?? []).entries()) out.push(...unbounded(v, `${path}|${i}`, defs));
+  if (
+    types.includes('string') &&
+    o.maxLength === undefined &&
+    o.enum === undefined &&
+    o.const === undefined &&
+    o.format === undefined
+  )
+    out.push(path);
+  for (const [k, v] of Object.entries((o.properties as Record<string, unknown>) ?? {}))
+    out.push(...unbounded(v, `${path}.${k}`, defs));
+  for (const key of ['anyOf', 'oneOf', 'allOf'] as const)
+    for (const [i, v] of ((o[key] as unknown[]) ?? []).entries())
+      out.push(...unbounded(v, `${path}|${i}`, defs));
   if (o.items) out.push(...unbounded(o.items, `${path}[]`, defs));
   return out;
 }
@@ -42,7 +52,10 @@ afterAll(async () => {
 
 describe('every request string has a maximum length', () => {
   it('in the OpenAPI document of every route (JSON bodies, query strings, path parameters)', async () => {
-    const doc = (await t.app.inject({ method: 'GET', url: '/api/openapi.json' })).json() as { paths: Record<string, Record<string, any>>; components?: { schemas?: Record<string, unknown> } };
+    const doc = (await t.app.inject({ method: 'GET', url: '/api/openapi.json' })).json() as {
+      paths: Record<string, Record<string, any>>;
+      components?: { schemas?: Record<string, unknown> };
+    };
     const defs = doc.components?.schemas ?? {};
     const found: string[] = [];
     let walked = 0;
@@ -50,7 +63,9 @@ describe('every request string has a maximum length', () => {
       for (const [method, op] of Object.entries(ops)) {
         for (const p of op.parameters ?? []) {
           walked++;
-          found.push(...unbounded(p.schema, `${method.toUpperCase()} ${url} ${p.in}.${p.name}`, defs));
+          found.push(
+            ...unbounded(p.schema, `${method.toUpperCase()} ${url} ${p.in}.${p.name}`, defs),
+          );
         }
         const body = op.requestBody?.content?.['application/json']?.schema;
         if (body) {
@@ -64,9 +79,15 @@ describe('every request string has a maximum length', () => {
   });
 
   it('in the vessel file, the upload fields and the system fit fields', () => {
-    for (const [name, schema] of [['vessel file', vesselSchema], ['upload fields', uploadFields], ['system fit fields', fitFields]] as const) {
+    for (const [name, schema] of [
+      ['vessel file', vesselSchema],
+      ['upload fields', uploadFields],
+      ['system fit fields', fitFields],
+    ] as const) {
       const json = z.toJSONSchema(schema, { io: 'input', unrepresentable: 'any' });
-      expect(unbounded(json, name, (json as { $defs?: Record<string, unknown> }).$defs)).toEqual([]);
+      expect(unbounded(json, name, (json as { $defs?: Record<string, unknown> }).$defs)).toEqual(
+        [],
+      );
     }
   });
 });
@@ -81,7 +102,12 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
       ['notes', { ...VESSEL_FILE, notes: long('note') }],
       ['outlet.id', { ...VESSEL_FILE, outlet: { ...VESSEL_FILE.outlet, id: long('tag') } }],
     ] as const) {
-      const res = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('engineer'), payload: body });
+      const res = await t.app.inject({
+        method: 'POST',
+        url: '/api/vessels',
+        headers: t.auth('engineer'),
+        payload: body,
+      });
       expect(res.statusCode, field).toBe(422);
       expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
       expect(res.json().field).toBe(field);
@@ -89,15 +115,32 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
     }
     expect(t.store.vessels.list(10, 0).total).toBe(0);
     // at the limit it is accepted
-    const ok = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('engineer'), payload: { ...VESSEL_FILE, name: 'n'.repeat(TEXT_LIMITS.name) } });
+    const ok = await t.app.inject({
+      method: 'POST',
+      url: '/api/vessels',
+      headers: t.auth('engineer'),
+      payload: { ...VESSEL_FILE, name: 'n'.repeat(TEXT_LIMITS.name) },
+    });
     expect(ok.statusCode).toBe(201);
   });
 
   it('upload text fields: notes, operator, loggerId, unit', async () => {
     const v = t.store.vessels.list(10, 0).items[0];
-    for (const [field, value] of [['notes', long('note')], ['operator', long('name')], ['loggerId', long('name')], ['unit', long('tag')]] as const) {
-      const body = multipart([{ field: 'log', name: 'a.csv', bytes: GOOD_LOG }], { [field]: value });
-      const res = await t.app.inject({ method: 'POST', url: `/api/vessels/${v.id}/tests`, headers: { ...t.auth('technician'), ...body.headers }, payload: body.payload });
+    for (const [field, value] of [
+      ['notes', long('note')],
+      ['operator', long('name')],
+      ['loggerId', long('name')],
+      ['unit', long('tag')],
+    ] as const) {
+      const body = multipart([{ field: 'log', name: 'a.csv', bytes: GOOD_LOG }], {
+        [field]: value,
+      });
+      const res = await t.app.inject({
+        method: 'POST',
+        url: `/api/vessels/${v.id}/tests`,
+        headers: { ...t.auth('technician'), ...body.headers },
+        payload: body.payload,
+      });
       expect(res.statusCode, field).toBe(422);
       expect(res.json().type).toBe('urn:efflux:problem:too-long');
       expect(res.json().field).toBe(field);
@@ -107,26 +150,55 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
 
   it('review comment, maintenance notes, export selection, audit filter', async () => {
     const v = t.store.vessels.list(10, 0).items[0];
-    const review = await t.app.inject({ method: 'POST', url: '/api/fits/1/review', headers: t.auth('engineer'), payload: { decision: 'approve', comment: long('note') } });
+    const review = await t.app.inject({
+      method: 'POST',
+      url: '/api/fits/1/review',
+      headers: t.auth('engineer'),
+      payload: { decision: 'approve', comment: long('note') },
+    });
     expect(review.statusCode).toBe(422);
     expect(review.json().field).toBe('body.comment');
-    const event = await t.app.inject({ method: 'POST', url: `/api/vessels/${v.id}/events`, headers: t.auth('engineer'), payload: { kind: 'cleaned', occurredAt: '2026-05-01', notes: long('note') } });
+    const event = await t.app.inject({
+      method: 'POST',
+      url: `/api/vessels/${v.id}/events`,
+      headers: t.auth('engineer'),
+      payload: { kind: 'cleaned', occurredAt: '2026-05-01', notes: long('note') },
+    });
     expect(event.statusCode).toBe(422);
     expect(event.json().field).toBe('body.notes');
-    const exp = await t.app.inject({ method: 'POST', url: '/api/exports', headers: t.auth('auditor'), payload: { site: long('name') } });
+    const exp = await t.app.inject({
+      method: 'POST',
+      url: '/api/exports',
+      headers: t.auth('auditor'),
+      payload: { site: long('name') },
+    });
     expect(exp.statusCode).toBe(422);
     expect(exp.json().field).toBe('body.site');
-    const audit = await t.app.inject({ method: 'GET', url: `/api/audit?action=${long('tag')}`, headers: t.auth('auditor') });
+    const audit = await t.app.inject({
+      method: 'GET',
+      url: `/api/audit?action=${long('tag')}`,
+      headers: t.auth('auditor'),
+    });
     expect(audit.statusCode).toBe(422);
     expect(audit.json().field).toBe('querystring.action');
     // a structural error and a long one together stay a 400 listing both
-    const both = await t.app.inject({ method: 'POST', url: '/api/fits/1/review', headers: t.auth('engineer'), payload: { decision: 'maybe', comment: long('note') } });
+    const both = await t.app.inject({
+      method: 'POST',
+      url: '/api/fits/1/review',
+      headers: t.auth('engineer'),
+      payload: { decision: 'maybe', comment: long('note') },
+    });
     expect(both.statusCode).toBe(400);
     expect(both.json().errors).toHaveLength(2);
   });
 
   it('system file: name, notes, vessel id (steady), and the system fit fields (multipart)', async () => {
-    const system = JSON.parse(readFileSync(new URL('../../sample-data/systems/filter-chain.system.json', import.meta.url), 'utf8'));
+    const system = JSON.parse(
+      readFileSync(
+        new URL('../../sample-data/systems/filter-chain.system.json', import.meta.url),
+        'utf8',
+      ),
+    );
     system.vessels.forEach((v: Record<string, unknown>) => (v.effectiveAreaM2 = 0.001));
     for (const [field, edit] of [
       ['name', (s: any) => (s.name = long('name'))],
@@ -136,12 +208,25 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
     ] as const) {
       const s = structuredClone(system);
       edit(s);
-      const res = await t.app.inject({ method: 'POST', url: '/api/systems/steady', headers: t.auth('engineer'), payload: { system: s, inflows: [{ flow: '1L/s' }] } });
+      const res = await t.app.inject({
+        method: 'POST',
+        url: '/api/systems/steady',
+        headers: t.auth('engineer'),
+        payload: { system: s, inflows: [{ flow: '1L/s' }] },
+      });
       expect(res.statusCode, field).toBe(422);
       expect(res.json().field).toBe(field);
     }
-    const body = multipart([{ field: 'system', name: 's.json', bytes: Buffer.from(JSON.stringify(system)) }], { tz: long('tag') });
-    const res = await t.app.inject({ method: 'POST', url: '/api/systems/fit', headers: { ...t.auth('technician'), ...body.headers }, payload: body.payload });
+    const body = multipart(
+      [{ field: 'system', name: 's.json', bytes: Buffer.from(JSON.stringify(system)) }],
+      { tz: long('tag') },
+    );
+    const res = await t.app.inject({
+      method: 'POST',
+      url: '/api/systems/fit',
+      headers: { ...t.auth('technician'), ...body.headers },
+      payload: body.payload,
+    });
     expect(res.statusCode).toBe(422);
     expect(res.json().field).toBe('tz');
   });

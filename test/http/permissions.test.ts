@@ -173,23 +173,64 @@ const limited = {} as Record<Role, string>;
 
 /** A route's path with its parameters filled in from the given records. */
 function pathFor(url: string, r: Records, extra: { person: number; token: number }): string {
-  const id = url.startsWith('/api/tests') ? r.test : url.startsWith('/api/fits') ? r.fit : url.startsWith('/api/outlets') ? r.outlet
-    : url.startsWith('/api/people') ? extra.person : url.startsWith('/api/tokens') ? extra.token : r.vessel;
+  const id = url.startsWith('/api/tests')
+    ? r.test
+    : url.startsWith('/api/fits')
+      ? r.fit
+      : url.startsWith('/api/outlets')
+        ? r.outlet
+        : url.startsWith('/api/people')
+          ? extra.person
+          : url.startsWith('/api/tokens')
+            ? extra.token
+            : r.vessel;
   return url.replace(':id', String(id)).replace(':name', 'main').replace('*', 'index.css');
 }
 
 beforeAll(async () => {
   t = await testApp();
-  const v = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('admin'), payload: VESSEL_FILE });
+  const v = await t.app.inject({
+    method: 'POST',
+    url: '/api/vessels',
+    headers: t.auth('admin'),
+    payload: VESSEL_FILE,
+  });
   const m = multipart([{ field: 'log', name: 'log.csv', bytes: GOOD_LOG }]);
-  const up = await t.app.inject({ method: 'POST', url: `/api/vessels/${v.json().id}/tests`, headers: { ...t.auth('admin'), ...m.headers }, payload: m.payload });
+  const up = await t.app.inject({
+    method: 'POST',
+    url: `/api/vessels/${v.json().id}/tests`,
+    headers: { ...t.auth('admin'), ...m.headers },
+    payload: m.payload,
+  });
   // a throwaway person and token for the people routes (revoking them must not lock the walk out)
   const spare = t.store.users.createToken(SYSTEM_ACTOR, 'spare (fictional)', 'technician');
-  ids = { vessel: v.json().id, test: up.json().test.id, fit: up.json().fit.id, outlet: v.json().outlets[0].id, person: spare.user.id, token: spare.tokenId };
-  const nv = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('admin'), payload: { ...VESSEL_FILE, name: 'N-1', site: 'north' } });
+  ids = {
+    vessel: v.json().id,
+    test: up.json().test.id,
+    fit: up.json().fit.id,
+    outlet: v.json().outlets[0].id,
+    person: spare.user.id,
+    token: spare.tokenId,
+  };
+  const nv = await t.app.inject({
+    method: 'POST',
+    url: '/api/vessels',
+    headers: t.auth('admin'),
+    payload: { ...VESSEL_FILE, name: 'N-1', site: 'north' },
+  });
   const nm = multipart([{ field: 'log', name: 'log.csv', bytes: GOOD_LOG }]);
-  const nup = await t.app.inject({ method: 'POST', url: `/api/vessels/${nv.json().id}/tests`, headers: { ...t.auth('admin'), ...nm.headers }, payload: nm.payload });
-  north = { vessel: nv.json().id, test: nup.json().test.id, fit: nup.json().fit.id, outlet: nv.json().outlets[0].id };
+  const nup = await t.app.inject({
+    method: 'POST',
+    url: `/api/vessels/${nv.json().id}/tests`,
+    headers: { ...t.auth('admin'), ...nm.headers },
+    payload: nm.payload,
+  });
+  north = {
+    vessel: nv.json().id,
+    test: nup.json().test.id,
+    fit: nup.json().fit.id,
+    outlet: nv.json().outlets[0].id,
+  };
   for (const role of ALL) {
     const p = t.store.users.addPerson(SYSTEM_ACTOR, `${role} at main (fictional)`, role, ['main']);
     limited[role] = t.store.users.createTokenFor(SYSTEM_ACTOR, p.id).token;
@@ -198,11 +239,17 @@ beforeAll(async () => {
 
 describe('permission table', () => {
   it('has a rule for every registered route, and no rule without a route', () => {
-    const missing = t.app.routeList.filter((r) => ruleFor(r.method, r.url) === undefined).map((r) => `${r.method} ${r.url}`);
+    const missing = t.app.routeList
+      .filter((r) => ruleFor(r.method, r.url) === undefined)
+      .map((r) => `${r.method} ${r.url}`);
     expect(missing).toEqual([]);
     for (const key of Object.keys(TABLE)) {
       const [method, url] = key.split(' ');
-      const found = t.app.routeList.some((r) => r.method === method && (url.endsWith('*') ? r.url.startsWith(url.slice(0, -1)) : r.url === url));
+      const found = t.app.routeList.some(
+        (r) =>
+          r.method === method &&
+          (url.endsWith('*') ? r.url.startsWith(url.slice(0, -1)) : r.url === url),
+      );
       expect(found, key).toBe(true);
     }
   });
@@ -210,7 +257,9 @@ describe('permission table', () => {
   it('each route declares exactly the roles of its row', () => {
     for (const r of t.app.routeList) {
       const rule = ruleFor(r.method, r.url)!;
-      expect(r.roles === 'public' ? 'public' : [...r.roles].sort(), `${r.method} ${r.url}`).toEqual(rule === 'public' ? 'public' : [...rule].sort());
+      expect(r.roles === 'public' ? 'public' : [...r.roles].sort(), `${r.method} ${r.url}`).toEqual(
+        rule === 'public' ? 'public' : [...rule].sort(),
+      );
     }
   });
 
@@ -220,7 +269,11 @@ describe('permission table', () => {
       const rule = ruleFor(r.method, r.url)!;
       const url = pathFor(r.url, ids, ids);
       for (const who of [null, ...ALL] as (Role | null)[]) {
-        const res = await t.app.inject({ method: r.method as 'GET', url, headers: who ? t.auth(who) : {} });
+        const res = await t.app.inject({
+          method: r.method as 'GET',
+          url,
+          headers: who ? t.auth(who) : {},
+        });
         const label = `${r.method} ${r.url} as ${who ?? 'nobody'} → ${res.statusCode}`;
         if (rule === 'public' || (who !== null && rule.includes(who))) {
           expect([401, 403], label).not.toContain(res.statusCode);
@@ -235,9 +288,12 @@ describe('permission table', () => {
   });
 
   it('each route declares exactly the site scope of its row', () => {
-    const missing = t.app.routeList.filter((r) => SCOPE[keyOf(r.method, r.url)] === undefined).map((r) => `${r.method} ${r.url}`);
+    const missing = t.app.routeList
+      .filter((r) => SCOPE[keyOf(r.method, r.url)] === undefined)
+      .map((r) => `${r.method} ${r.url}`);
     expect(missing).toEqual([]);
-    for (const r of t.app.routeList) expect(r.scope, `${r.method} ${r.url}`).toBe(SCOPE[keyOf(r.method, r.url)]);
+    for (const r of t.app.routeList)
+      expect(r.scope, `${r.method} ${r.url}`).toBe(SCOPE[keyOf(r.method, r.url)]);
   });
 
   it('walks every route against site limits: a person limited to "main" is refused "north" records and routes for everyone', async () => {
@@ -249,16 +305,33 @@ describe('permission table', () => {
       for (const role of ALL) {
         if (rule !== 'public' && !rule.includes(role)) continue; // the role walk covers these
         const label = `${r.method} ${r.url} as ${role} limited to main`;
-        const other = await t.app.inject({ method: r.method as 'GET', url: pathFor(r.url, north, ids), headers: as(role) });
-        if (scope === 'vessel' || scope === 'test' || scope === 'fit' || scope === 'outlet' || scope === 'every-site') {
+        const other = await t.app.inject({
+          method: r.method as 'GET',
+          url: pathFor(r.url, north, ids),
+          headers: as(role),
+        });
+        if (
+          scope === 'vessel' ||
+          scope === 'test' ||
+          scope === 'fit' ||
+          scope === 'outlet' ||
+          scope === 'every-site'
+        ) {
           expect(other.statusCode, label).toBe(403);
-          if (r.method !== 'HEAD') expect(problemType(other.body), label).toBe('urn:efflux:problem:site-forbidden'); // HEAD has no body
+          if (r.method !== 'HEAD')
+            expect(problemType(other.body), label).toBe('urn:efflux:problem:site-forbidden'); // HEAD has no body
         } else if (scope === 'none') {
           expect(problemType(other.body), label).not.toBe('urn:efflux:problem:site-forbidden');
         } // 'listed': the next test checks what each one shows and takes
         if (scope !== 'every-site' && scope !== 'listed') {
-          const own = await t.app.inject({ method: r.method as 'GET', url: pathFor(r.url, ids, ids), headers: as(role) });
-          expect([401, 403], `${label}, own site → ${own.statusCode}`).not.toContain(own.statusCode);
+          const own = await t.app.inject({
+            method: r.method as 'GET',
+            url: pathFor(r.url, ids, ids),
+            headers: as(role),
+          });
+          expect([401, 403], `${label}, own site → ${own.statusCode}`).not.toContain(
+            own.statusCode,
+          );
         }
         walked++;
       }
@@ -272,33 +345,112 @@ describe('permission table', () => {
     expect(vessels.json().items.map((v: { site: string }) => v.site)).toEqual(['main']);
     expect(vessels.json().total).toBe(1);
     const fleet = await t.app.inject({ method: 'GET', url: '/api/fleet', headers: as });
-    expect(new Set(fleet.json().items.map((i: { site: string }) => i.site))).toEqual(new Set(['main']));
-    expect((await t.app.inject({ method: 'GET', url: '/api/fleet?site=north', headers: as })).statusCode).toBe(403);
-    expect((await t.app.inject({ method: 'GET', url: '/api/audit', headers: as })).statusCode).toBe(403);
-    expect((await t.app.inject({ method: 'GET', url: `/api/audit?vesselId=${north.vessel}`, headers: as })).statusCode).toBe(403);
-    expect((await t.app.inject({ method: 'GET', url: `/api/audit?vesselId=${ids.vessel}`, headers: as })).statusCode).toBe(200);
-    expect((await t.app.inject({ method: 'POST', url: '/api/exports', headers: as, payload: { site: 'north' } })).statusCode).toBe(403);
-    expect((await t.app.inject({ method: 'POST', url: '/api/exports', headers: as, payload: {} })).statusCode).toBe(403);
-    expect((await t.app.inject({ method: 'POST', url: '/api/vessels', headers: as, payload: { ...VESSEL_FILE, name: 'N-2', site: 'north' } })).statusCode).toBe(403);
+    expect(new Set(fleet.json().items.map((i: { site: string }) => i.site))).toEqual(
+      new Set(['main']),
+    );
+    expect(
+      (await t.app.inject({ method: 'GET', url: '/api/fleet?site=north', headers: as })).statusCode,
+    ).toBe(403);
+    expect((await t.app.inject({ method: 'GET', url: '/api/audit', headers: as })).statusCode).toBe(
+      403,
+    );
+    expect(
+      (
+        await t.app.inject({
+          method: 'GET',
+          url: `/api/audit?vesselId=${north.vessel}`,
+          headers: as,
+        })
+      ).statusCode,
+    ).toBe(403);
+    expect(
+      (await t.app.inject({ method: 'GET', url: `/api/audit?vesselId=${ids.vessel}`, headers: as }))
+        .statusCode,
+    ).toBe(200);
+    expect(
+      (
+        await t.app.inject({
+          method: 'POST',
+          url: '/api/exports',
+          headers: as,
+          payload: { site: 'north' },
+        })
+      ).statusCode,
+    ).toBe(403);
+    expect(
+      (await t.app.inject({ method: 'POST', url: '/api/exports', headers: as, payload: {} }))
+        .statusCode,
+    ).toBe(403);
+    expect(
+      (
+        await t.app.inject({
+          method: 'POST',
+          url: '/api/vessels',
+          headers: as,
+          payload: { ...VESSEL_FILE, name: 'N-2', site: 'north' },
+        })
+      ).statusCode,
+    ).toBe(403);
     // nor may a vessel of theirs be moved to another site
-    const moved = await t.app.inject({ method: 'PUT', url: `/api/vessels/${ids.vessel}`, headers: as, payload: { ...VESSEL_FILE, site: 'north' } });
+    const moved = await t.app.inject({
+      method: 'PUT',
+      url: `/api/vessels/${ids.vessel}`,
+      headers: as,
+      payload: { ...VESSEL_FILE, site: 'north' },
+    });
     expect(moved.statusCode).toBe(403);
     // a live test belongs to its vessel's site: reading, feeding, closing or abandoning one at "north" is refused
-    const liveNorth = await t.app.inject({ method: 'POST', url: `/api/vessels/${north.vessel}/live`, headers: t.auth('admin'), payload: { fileName: 'n.csv' } });
-    const liveMain = await t.app.inject({ method: 'POST', url: `/api/vessels/${ids.vessel}/live`, headers: t.auth('admin'), payload: { fileName: 'm.csv' } });
-    for (const [method, suffix] of [['GET', ''], ['GET', '/events'], ['POST', '/rows?offset=0'], ['POST', '/close'], ['DELETE', '']] as const) {
-      const res = await t.app.inject({ method, url: `/api/live/${liveNorth.json().id}${suffix}`, headers: { ...as, 'content-type': 'application/octet-stream' }, payload: method === 'POST' ? 'x' : undefined });
+    const liveNorth = await t.app.inject({
+      method: 'POST',
+      url: `/api/vessels/${north.vessel}/live`,
+      headers: t.auth('admin'),
+      payload: { fileName: 'n.csv' },
+    });
+    const liveMain = await t.app.inject({
+      method: 'POST',
+      url: `/api/vessels/${ids.vessel}/live`,
+      headers: t.auth('admin'),
+      payload: { fileName: 'm.csv' },
+    });
+    for (const [method, suffix] of [
+      ['GET', ''],
+      ['GET', '/events'],
+      ['POST', '/rows?offset=0'],
+      ['POST', '/close'],
+      ['DELETE', ''],
+    ] as const) {
+      const res = await t.app.inject({
+        method,
+        url: `/api/live/${liveNorth.json().id}${suffix}`,
+        headers: { ...as, 'content-type': 'application/octet-stream' },
+        payload: method === 'POST' ? 'x' : undefined,
+      });
       expect(res.statusCode, `${method} live${suffix}`).toBe(403);
       expect(problemType(res.body)).toBe('urn:efflux:problem:site-forbidden');
     }
-    expect((await t.app.inject({ method: 'GET', url: `/api/live/${liveMain.json().id}`, headers: as })).statusCode).toBe(200);
-    for (const l of [liveNorth, liveMain]) await t.app.inject({ method: 'DELETE', url: `/api/live/${l.json().id}`, headers: t.auth('admin') });
+    expect(
+      (await t.app.inject({ method: 'GET', url: `/api/live/${liveMain.json().id}`, headers: as }))
+        .statusCode,
+    ).toBe(200);
+    for (const l of [liveNorth, liveMain])
+      await t.app.inject({
+        method: 'DELETE',
+        url: `/api/live/${l.json().id}`,
+        headers: t.auth('admin'),
+      });
     // the unlimited admin sees both
-    expect((await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('admin') })).json().total).toBe(2);
+    expect(
+      (await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('admin') })).json()
+        .total,
+    ).toBe(2);
   });
 
   it('a bad token is 401, not 403', async () => {
-    const res = await t.app.inject({ method: 'GET', url: '/api/vessels', headers: { authorization: 'Bearer nope' } });
+    const res = await t.app.inject({
+      method: 'GET',
+      url: '/api/vessels',
+      headers: { authorization: 'Bearer nope' },
+    });
     expect(res.statusCode).toBe(401);
     expect(res.headers['www-authenticate']).toBe('Bearer');
   });

@@ -28,8 +28,17 @@ const env = {
 const children: ChildProcess[] = [];
 afterAll(() => children.forEach((c) => c.exitCode === null && c.kill('SIGKILL')));
 
-function start(): Promise<{ child: ChildProcess; base: string; out: () => string; exited: Promise<number | null> }> {
-  const child = spawn(process.execPath, ['--import', 'tsx', main, 'serve'], { cwd: root, env, stdio: ['ignore', 'pipe', 'pipe'] });
+function start(): Promise<{
+  child: ChildProcess;
+  base: string;
+  out: () => string;
+  exited: Promise<number | null>;
+}> {
+  const child = spawn(process.execPath, ['--import', 'tsx', main, 'serve'], {
+    cwd: root,
+    env,
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
   children.push(child);
   // attached at once: the exit may come before anyone awaits it
   const exited = new Promise<number | null>((r) => child.once('exit', (code) => r(code)));
@@ -41,19 +50,31 @@ function start(): Promise<{ child: ChildProcess; base: string; out: () => string
       if (m && /\/api\/docs\n/.test(out)) resolve({ child, base: m[1], out: () => out, exited });
     });
     child.stderr!.on('data', (d) => (out += d));
-    child.on('exit', (code) => reject(new Error(`server exited ${code} before listening:\n${out}`)));
+    child.on('exit', (code) =>
+      reject(new Error(`server exited ${code} before listening:\n${out}`)),
+    );
   });
 }
 
 const sha = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
 async function upload(base: string, token: string, vesselId: number, i: number) {
-  const body = Buffer.from(`t,level\n0,2.0\n1,1.9\n2,1.${String(i).padStart(4, '0')}\n` + '3,1.7\n'.repeat(2000));
+  const body = Buffer.from(
+    `t,level\n0,2.0\n1,1.9\n2,1.${String(i).padStart(4, '0')}\n` + '3,1.7\n'.repeat(2000),
+  );
   const form = new FormData();
   form.append('log', new Blob([body]), `run-${i}.csv`);
   form.append('operator', 'crash-test');
-  const res = await fetch(`${base}/api/vessels/${vesselId}/tests`, { method: 'POST', headers: { authorization: `Bearer ${token}` }, body: form });
-  return { status: res.status, json: res.status === 201 ? await res.json() : null, sha256: sha(body) };
+  const res = await fetch(`${base}/api/vessels/${vesselId}/tests`, {
+    method: 'POST',
+    headers: { authorization: `Bearer ${token}` },
+    body: form,
+  });
+  return {
+    status: res.status,
+    json: res.status === 201 ? await res.json() : null,
+    sha256: sha(body),
+  };
 }
 
 describe('a real server process', () => {
@@ -69,7 +90,11 @@ describe('a real server process', () => {
     const v = await fetch(`${first.base}/api/vessels`, {
       method: 'POST',
       headers: auth,
-      body: JSON.stringify({ name: 'K-1', shape: { kind: 'vertical-cylinder', diameterM: 2 }, outlet: { boreM: 0.02, elevationM: 0 } }),
+      body: JSON.stringify({
+        name: 'K-1',
+        shape: { kind: 'vertical-cylinder', diameterM: 2 },
+        outlet: { boreM: 0.02, elevationM: 0 },
+      }),
     });
     expect(v.status).toBe(201);
     const vesselId = (await v.json()).id;
@@ -114,7 +139,13 @@ describe('a real server process', () => {
     expect(chain.ok).toBe(true);
 
     // graceful stop: uploads in flight when SIGTERM arrives either finish (201, stored) or are refused
-    const inFlight = [0, 1, 2].map((k) => upload(second.base, token, vesselId, 10_000 + k).catch(() => ({ status: 0, json: null, sha256: '' })));
+    const inFlight = [0, 1, 2].map((k) =>
+      upload(second.base, token, vesselId, 10_000 + k).catch(() => ({
+        status: 0,
+        json: null,
+        sha256: '',
+      })),
+    );
     await new Promise((r) => setTimeout(r, 20));
     second.child.kill('SIGTERM');
     const late = await Promise.all(inFlight);
@@ -122,20 +153,31 @@ describe('a real server process', () => {
     expect(code).toBe(0);
     for (const r of late) expect([0, 201, 503]).toContain(r.status);
 
-    const cli = spawnSync(process.execPath, ['--import', 'tsx', main, 'audit', 'verify'], { cwd: root, env, encoding: 'utf8' });
+    const cli = spawnSync(process.execPath, ['--import', 'tsx', main, 'audit', 'verify'], {
+      cwd: root,
+      env,
+      encoding: 'utf8',
+    });
     expect(cli.stdout).toMatch(/audit chain intact/);
     expect(cli.status).toBe(0);
     const stored = late.filter((r) => r.status === 201);
     if (stored.length) {
       const Database = (await import('better-sqlite3')).default;
       const db = new Database(join(dataDir, 'efflux.sqlite'), { readonly: true });
-      for (const r of stored) expect(db.prepare('SELECT count(*) FROM drain_tests WHERE log_sha256 = ?').pluck().get(r.sha256)).toBe(1);
+      for (const r of stored)
+        expect(
+          db.prepare('SELECT count(*) FROM drain_tests WHERE log_sha256 = ?').pluck().get(r.sha256),
+        ).toBe(1);
       db.close();
     }
   });
 
   it('efflux token create prints a working token; audit verify names a tampered entry', async () => {
-    const tok = spawnSync(process.execPath, ['--import', 'tsx', main, 'token', 'create', '--role', 'auditor', '--name', 'ines'], { cwd: root, env, encoding: 'utf8' });
+    const tok = spawnSync(
+      process.execPath,
+      ['--import', 'tsx', main, 'token', 'create', '--role', 'auditor', '--name', 'ines'],
+      { cwd: root, env, encoding: 'utf8' },
+    );
     expect(tok.status).toBe(0);
     expect(tok.stdout.trim()).toMatch(/^efx_[\w-]{43}$/);
     const Database = (await import('better-sqlite3')).default;
@@ -143,7 +185,11 @@ describe('a real server process', () => {
     db.exec('DROP TRIGGER audit_log_no_update');
     db.prepare(`UPDATE audit_log SET actor_name = 'someone else' WHERE seq = 3`).run();
     db.close();
-    const cli = spawnSync(process.execPath, ['--import', 'tsx', main, 'audit', 'verify'], { cwd: root, env, encoding: 'utf8' });
+    const cli = spawnSync(process.execPath, ['--import', 'tsx', main, 'audit', 'verify'], {
+      cwd: root,
+      env,
+      encoding: 'utf8',
+    });
     expect(cli.status).toBe(1);
     expect(cli.stdout).toMatch(/BROKEN at entry 3/);
   });

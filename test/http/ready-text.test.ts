@@ -4,9 +4,23 @@ import { GOOD_LOG, multipart, testApp, VESSEL_FILE } from './helpers.js';
 
 async function withFit() {
   const t = await testApp();
-  const v = (await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('engineer'), payload: VESSEL_FILE })).json();
+  const v = (
+    await t.app.inject({
+      method: 'POST',
+      url: '/api/vessels',
+      headers: t.auth('engineer'),
+      payload: VESSEL_FILE,
+    })
+  ).json();
   const m = multipart([{ field: 'log', name: 'a.csv', bytes: GOOD_LOG }], { window: '0..3' });
-  const up = (await t.app.inject({ method: 'POST', url: `/api/vessels/${v.id}/tests`, headers: { ...t.auth('technician'), ...m.headers }, payload: m.payload })).json();
+  const up = (
+    await t.app.inject({
+      method: 'POST',
+      url: `/api/vessels/${v.id}/tests`,
+      headers: { ...t.auth('technician'), ...m.headers },
+      payload: m.payload,
+    })
+  ).json();
   return { ...t, v, fit: up.fit };
 }
 
@@ -20,12 +34,25 @@ describe('ETag and If-None-Match on the hot reads', () => {
     expect(a.json()).toEqual(t.store.fits.get(t.fit.id));
     const etag = String(a.headers.etag);
     expect(etag).toMatch(/^"[\w-]{22}"$/);
-    const same = await t.app.inject({ method: 'GET', url, headers: { ...t.auth('auditor'), 'if-none-match': etag } });
+    const same = await t.app.inject({
+      method: 'GET',
+      url,
+      headers: { ...t.auth('auditor'), 'if-none-match': etag },
+    });
     expect(same.statusCode).toBe(304);
     expect(same.body).toBe('');
     expect(same.headers.etag).toBe(etag);
-    await t.app.inject({ method: 'POST', url: `${url}/review`, headers: t.auth('engineer'), payload: { decision: 'approve' } });
-    const after = await t.app.inject({ method: 'GET', url, headers: { ...t.auth('auditor'), 'if-none-match': etag } });
+    await t.app.inject({
+      method: 'POST',
+      url: `${url}/review`,
+      headers: t.auth('engineer'),
+      payload: { decision: 'approve' },
+    });
+    const after = await t.app.inject({
+      method: 'GET',
+      url,
+      headers: { ...t.auth('auditor'), 'if-none-match': etag },
+    });
     expect(after.statusCode).toBe(200);
     expect(after.json().status).toBe('approved');
     expect(after.headers.etag).not.toBe(etag);
@@ -36,12 +63,24 @@ describe('ETag and If-None-Match on the hot reads', () => {
     const url = `/api/vessels/${t.v.id}/tests?limit=5`;
     const a = await t.app.inject({ method: 'GET', url, headers: t.auth('technician') });
     expect(a.json()).toMatchObject({ total: 1, limit: 5, offset: 0 });
-    const same = await t.app.inject({ method: 'GET', url, headers: { ...t.auth('technician'), 'if-none-match': `W/${a.headers.etag}` } });
+    const same = await t.app.inject({
+      method: 'GET',
+      url,
+      headers: { ...t.auth('technician'), 'if-none-match': `W/${a.headers.etag}` },
+    });
     expect(same.statusCode).toBe(304);
-    const anon = await t.app.inject({ method: 'GET', url, headers: { 'if-none-match': String(a.headers.etag) } });
+    const anon = await t.app.inject({
+      method: 'GET',
+      url,
+      headers: { 'if-none-match': String(a.headers.etag) },
+    });
     expect(anon.statusCode).toBe(401);
     expect(anon.headers['content-security-policy']).toContain("default-src 'self'");
-    const missing = await t.app.inject({ method: 'GET', url: '/api/vessels/999/tests', headers: t.auth('technician') });
+    const missing = await t.app.inject({
+      method: 'GET',
+      url: '/api/vessels/999/tests',
+      headers: t.auth('technician'),
+    });
     expect(missing.statusCode).toBe(404);
     expect(missing.headers['content-type']).toContain('application/problem+json');
   });

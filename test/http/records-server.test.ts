@@ -31,7 +31,11 @@ beforeAll(async () => {
   await app.listen({ host: '127.0.0.1', port: 0 });
   port = (app.server.address() as AddressInfo).port;
   base = `http://127.0.0.1:${port}`;
-  const v = await fetch(`${base}/api/vessels`, { method: 'POST', headers: { authorization: `Bearer ${adminToken}`, 'content-type': 'application/json' }, body: JSON.stringify(VESSEL_FILE) });
+  const v = await fetch(`${base}/api/vessels`, {
+    method: 'POST',
+    headers: { authorization: `Bearer ${adminToken}`, 'content-type': 'application/json' },
+    body: JSON.stringify(VESSEL_FILE),
+  });
   vesselId = (await v.json()).id;
 });
 
@@ -41,20 +45,37 @@ afterAll(async () => {
 });
 
 async function signIn(token: string, origin = base): Promise<string> {
-  const r = await fetch(`${base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', origin }, body: JSON.stringify({ token }) });
+  const r = await fetch(`${base}/api/session`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', origin },
+    body: JSON.stringify({ token }),
+  });
   expect(r.status).toBe(201);
   return r.headers.get('set-cookie')!.split(';')[0];
 }
 
 function uploadWith(headers: Record<string, string>) {
-  const m = multipart([{ field: 'log', name: 'log.csv', bytes: Buffer.from(`t,level\n0,${2 + ++n / 1000}\n1,1.9\n2,1.8\n`) }]);
-  return fetch(`${base}/api/vessels/${vesselId}/tests`, { method: 'POST', headers: { ...m.headers, ...headers }, body: m.payload });
+  const m = multipart([
+    {
+      field: 'log',
+      name: 'log.csv',
+      bytes: Buffer.from(`t,level\n0,${2 + ++n / 1000}\n1,1.9\n2,1.8\n`),
+    },
+  ]);
+  return fetch(`${base}/api/vessels/${vesselId}/tests`, {
+    method: 'POST',
+    headers: { ...m.headers, ...headers },
+    body: m.payload,
+  });
 }
 
 describe('cookie-authenticated writes only from the workbench origin (real server)', () => {
   it('an upload with the cookie from another port of the same host is 403; from our own origin it is 201', async () => {
     const cookie = await signIn(techToken);
-    const foreign = await uploadWith({ cookie, origin: `http://127.0.0.1:${port === 65535 ? port - 1 : port + 1}` });
+    const foreign = await uploadWith({
+      cookie,
+      origin: `http://127.0.0.1:${port === 65535 ? port - 1 : port + 1}`,
+    });
     expect(foreign.status).toBe(403);
     expect(foreign.headers.get('content-type')).toMatch(/problem\+json/);
     expect((await foreign.json()).type).toBe('urn:efflux:problem:foreign-origin');
@@ -69,19 +90,29 @@ describe('cookie-authenticated writes only from the workbench origin (real serve
   });
 
   it('bearer-token requests are unaffected by the origin', async () => {
-    const r = await uploadWith({ authorization: `Bearer ${techToken}`, origin: 'http://evil.example' });
+    const r = await uploadWith({
+      authorization: `Bearer ${techToken}`,
+      origin: 'http://evil.example',
+    });
     expect(r.status).toBe(201);
   });
 
   it('sign-in from a foreign page is refused', async () => {
-    const r = await fetch(`${base}/api/session`, { method: 'POST', headers: { 'content-type': 'application/json', origin: `http://localhost:${port}` }, body: JSON.stringify({ token: techToken }) });
+    const r = await fetch(`${base}/api/session`, {
+      method: 'POST',
+      headers: { 'content-type': 'application/json', origin: `http://localhost:${port}` },
+      body: JSON.stringify({ token: techToken }),
+    });
     expect(r.status).toBe(403);
   });
 
-  it("revoking the token a session was opened with makes the open session answer 401 at once", async () => {
+  it('revoking the token a session was opened with makes the open session answer 401 at once', async () => {
     const cookie = await signIn(techToken);
     expect((await fetch(`${base}/api/session`, { headers: { cookie } })).status).toBe(200);
-    const revoke = await fetch(`${base}/api/tokens/${techTokenId}`, { method: 'DELETE', headers: { authorization: `Bearer ${adminToken}` } });
+    const revoke = await fetch(`${base}/api/tokens/${techTokenId}`, {
+      method: 'DELETE',
+      headers: { authorization: `Bearer ${adminToken}` },
+    });
     expect(revoke.status).toBe(200);
     const after = await fetch(`${base}/api/session`, { headers: { cookie } });
     expect(after.status).toBe(401);

@@ -11,28 +11,57 @@ import { GOOD_LOG, multipart, testApp, VESSEL_FILE, type TestApp } from './helpe
 
 async function withVessel() {
   const t = await testApp();
-  const v = await t.app.inject({ method: 'POST', url: '/api/vessels', headers: t.auth('engineer'), payload: VESSEL_FILE });
+  const v = await t.app.inject({
+    method: 'POST',
+    url: '/api/vessels',
+    headers: t.auth('engineer'),
+    payload: VESSEL_FILE,
+  });
   expect(v.statusCode).toBe(201);
   return { ...t, vesselId: v.json().id as number, outletId: v.json().outlets[0].id as number };
 }
 
-function upload(t: TestApp, vesselId: number, bytes: Uint8Array, fields: Record<string, string> = {}, as: Role = 'technician', headers: Record<string, string> = {}) {
+function upload(
+  t: TestApp,
+  vesselId: number,
+  bytes: Uint8Array,
+  fields: Record<string, string> = {},
+  as: Role = 'technician',
+  headers: Record<string, string> = {},
+) {
   const m = multipart([{ field: 'log', name: 'log.csv', bytes }], fields);
-  return t.app.inject({ method: 'POST', url: `/api/vessels/${vesselId}/tests`, headers: { ...t.auth(as), ...m.headers, ...headers }, payload: m.payload });
+  return t.app.inject({
+    method: 'POST',
+    url: `/api/vessels/${vesselId}/tests`,
+    headers: { ...t.auth(as), ...m.headers, ...headers },
+    payload: m.payload,
+  });
 }
 
 const review = (t: TestApp, fitId: number, decision: 'approve' | 'reject', as: Role = 'engineer') =>
-  t.app.inject({ method: 'POST', url: `/api/fits/${fitId}/review`, headers: t.auth(as), payload: { decision } });
+  t.app.inject({
+    method: 'POST',
+    url: `/api/fits/${fitId}/review`,
+    headers: t.auth(as),
+    payload: { decision },
+  });
 
-const count = (t: TestApp, table: string) => t.store.db.prepare(`SELECT count(*) FROM ${table}`).pluck().get() as number;
+const count = (t: TestApp, table: string) =>
+  t.store.db.prepare(`SELECT count(*) FROM ${table}`).pluck().get() as number;
 
 /** A log with its own bytes (n decides the levels), so uploads are not duplicates of each other. */
 const logN = (n: number) => Buffer.from(`t,level\n0,${2 + n / 1000}\n1,1.98\n2,1.96\n3,1.94\n`);
 
 async function trendFitIds(t: TestApp, outletId: number): Promise<number[]> {
-  const res = await t.app.inject({ method: 'GET', url: `/api/outlets/${outletId}/trend`, headers: t.auth('auditor') });
+  const res = await t.app.inject({
+    method: 'GET',
+    url: `/api/outlets/${outletId}/trend`,
+    headers: t.auth('auditor'),
+  });
   expect(res.statusCode).toBe(200);
-  return res.json().epochs.flatMap((e: { series: { fitId: number }[] }) => e.series.map((p) => p.fitId));
+  return res
+    .json()
+    .epochs.flatMap((e: { series: { fitId: number }[] }) => e.series.map((p) => p.fitId));
 }
 
 describe('one test date', () => {
@@ -42,9 +71,17 @@ describe('one test date', () => {
     expect(up.statusCode).toBe(201);
     expect(up.json().test).toMatchObject({ testedAt: FAKE_LOG_START, testedAtSource: 'log' });
     expect((await review(t, up.json().fit.id, 'approve')).statusCode).toBe(200);
-    const trend = await t.app.inject({ method: 'GET', url: `/api/outlets/${t.outletId}/trend`, headers: t.auth('auditor') });
+    const trend = await t.app.inject({
+      method: 'GET',
+      url: `/api/outlets/${t.outletId}/trend`,
+      headers: t.auth('auditor'),
+    });
     expect(trend.json().epochs[0].series[0].testedAt).toBe(FAKE_LOG_START);
-    const test = await t.app.inject({ method: 'GET', url: `/api/tests/${up.json().test.id}`, headers: t.auth('auditor') });
+    const test = await t.app.inject({
+      method: 'GET',
+      url: `/api/tests/${up.json().test.id}`,
+      headers: t.auth('auditor'),
+    });
     expect(test.json().testedAt).toBe(FAKE_LOG_START);
   });
 
@@ -57,15 +94,27 @@ describe('one test date', () => {
     expect(res.json().detail).toMatch(/testedAt/);
     expect({ tests: count(t, 'drain_tests'), raw: count(t, 'raw_files') }).toEqual(before);
     // with a stated date the same file is taken
-    const ok = await upload(t, t.vesselId, Buffer.from('elapsed_s,level\n0,2\n1,1.9\n2,1.8\n'), { testedAt: '2025-06-02T10:30:00+02:00' });
+    const ok = await upload(t, t.vesselId, Buffer.from('elapsed_s,level\n0,2\n1,1.9\n2,1.8\n'), {
+      testedAt: '2025-06-02T10:30:00+02:00',
+    });
     expect(ok.statusCode).toBe(201);
-    expect(ok.json().test).toMatchObject({ testedAt: '2025-06-02T08:30:00.000Z', testedAtSource: 'stated' });
+    expect(ok.json().test).toMatchObject({
+      testedAt: '2025-06-02T08:30:00.000Z',
+      testedAtSource: 'stated',
+    });
   });
 
   it('a stated testedAt that is not ISO 8601, has no offset, is in the future or before 1990 is 422 naming the field', async () => {
     const t = await withVessel();
     let n = 10;
-    for (const bad of ['yesterday', '14/01/2025 09:00', '2025-01-14T09:00', '2025-02-30', '2099-01-01T00:00:00Z', '1985-05-01T00:00:00Z']) {
+    for (const bad of [
+      'yesterday',
+      '14/01/2025 09:00',
+      '2025-01-14T09:00',
+      '2025-02-30',
+      '2099-01-01T00:00:00Z',
+      '1985-05-01T00:00:00Z',
+    ]) {
       const res = await upload(t, t.vesselId, logN(n++), { testedAt: bad });
       expect(res.statusCode, bad).toBe(422);
       expect(res.json().field, bad).toBe('testedAt');
@@ -82,10 +131,20 @@ describe('an approved fit stays in force until its replacement is approved', () 
     expect((await review(t, first, 'approve')).statusCode).toBe(200);
     expect(await trendFitIds(t, t.outletId)).toEqual([first]);
 
-    const refit = async () => t.app.inject({ method: 'POST', url: `/api/fits/${first}/refit`, headers: t.auth('technician'), payload: { settings: { window: '1..3' } } });
+    const refit = async () =>
+      t.app.inject({
+        method: 'POST',
+        url: `/api/fits/${first}/refit`,
+        headers: t.auth('technician'),
+        payload: { settings: { window: '1..3' } },
+      });
     const draft = await refit();
     expect(draft.statusCode).toBe(201);
-    const old = await t.app.inject({ method: 'GET', url: `/api/fits/${first}`, headers: t.auth('auditor') });
+    const old = await t.app.inject({
+      method: 'GET',
+      url: `/api/fits/${first}`,
+      headers: t.auth('auditor'),
+    });
     expect(old.json()).toMatchObject({ status: 'approved', supersededBy: null });
     expect(await trendFitIds(t, t.outletId)).toEqual([first]);
 
@@ -95,10 +154,18 @@ describe('an approved fit stays in force until its replacement is approved', () 
     const second = await refit();
     expect((await review(t, second.json().id, 'approve')).statusCode).toBe(200);
     expect(await trendFitIds(t, t.outletId)).toEqual([second.json().id]);
-    const replaced = await t.app.inject({ method: 'GET', url: `/api/fits/${first}`, headers: t.auth('auditor') });
+    const replaced = await t.app.inject({
+      method: 'GET',
+      url: `/api/fits/${first}`,
+      headers: t.auth('auditor'),
+    });
     expect(replaced.json()).toMatchObject({ status: 'approved', supersededBy: second.json().id });
     // the supersession is in the audit log, in the approval's transaction
-    const audit = await t.app.inject({ method: 'GET', url: `/api/audit?entityType=fit&entityId=${first}&action=fit.supersede`, headers: t.auth('auditor') });
+    const audit = await t.app.inject({
+      method: 'GET',
+      url: `/api/audit?entityType=fit&entityId=${first}&action=fit.supersede`,
+      headers: t.auth('auditor'),
+    });
     expect(audit.json().items).toHaveLength(1);
     expect(audit.json().items[0].actorName).toBe('engineer-1');
   });
@@ -114,20 +181,38 @@ describe('four eyes', () => {
     expect(refused.headers['content-type']).toMatch(/problem\+json/);
     expect(refused.json().detail).toMatch(/four eyes/);
     // an engineer may not allow it; an admin may
-    const setting = { method: 'PUT' as const, url: '/api/sites/main/settings', payload: { selfReviewAllowed: true } };
+    const setting = {
+      method: 'PUT' as const,
+      url: '/api/sites/main/settings',
+      payload: { selfReviewAllowed: true },
+    };
     expect((await t.app.inject({ ...setting, headers: t.auth('engineer') })).statusCode).toBe(403);
-    expect((await t.app.inject({ ...setting, headers: t.auth('admin') })).json()).toMatchObject({ name: 'main', selfReviewAllowed: true });
+    expect((await t.app.inject({ ...setting, headers: t.auth('admin') })).json()).toMatchObject({
+      name: 'main',
+      selfReviewAllowed: true,
+    });
     const ok = await review(t, fitId, 'approve', 'engineer');
     expect(ok.statusCode).toBe(200);
     expect(ok.json().review.selfReview).toBe(true);
-    const entry = (await t.app.inject({ method: 'GET', url: `/api/audit?entityType=fit&entityId=${fitId}&action=fit.approve`, headers: t.auth('auditor') })).json().items[0];
+    const entry = (
+      await t.app.inject({
+        method: 'GET',
+        url: `/api/audit?entityType=fit&entityId=${fitId}&action=fit.approve`,
+        headers: t.auth('auditor'),
+      })
+    ).json().items[0];
     expect(entry.after.selfReview).toBe(true);
   });
 
   it('whoever asked for a refit may not approve it; another engineer or admin may', async () => {
     const t = await withVessel();
     const up = await upload(t, t.vesselId, logN(4));
-    const draft = await t.app.inject({ method: 'POST', url: `/api/fits/${up.json().fit.id}/refit`, headers: t.auth('engineer'), payload: { settings: {} } });
+    const draft = await t.app.inject({
+      method: 'POST',
+      url: `/api/fits/${up.json().fit.id}/refit`,
+      headers: t.auth('engineer'),
+      payload: { settings: {} },
+    });
     expect((await review(t, draft.json().id, 'approve', 'engineer')).statusCode).toBe(403);
     const ok = await review(t, draft.json().id, 'approve', 'admin');
     expect(ok.statusCode).toBe(200);
@@ -146,7 +231,13 @@ describe('duplicates and retries', () => {
     expect(count(t, 'drain_tests')).toBe(1);
     const allowed = await upload(t, t.vesselId, GOOD_LOG, { allowDuplicate: 'true' });
     expect(allowed.statusCode).toBe(201);
-    const entry = (await t.app.inject({ method: 'GET', url: `/api/audit?entityType=test&entityId=${allowed.json().test.id}&action=test.upload`, headers: t.auth('auditor') })).json().items[0];
+    const entry = (
+      await t.app.inject({
+        method: 'GET',
+        url: `/api/audit?entityType=test&entityId=${allowed.json().test.id}&action=test.upload`,
+        headers: t.auth('auditor'),
+      })
+    ).json().items[0];
     expect(entry.after).toMatchObject({ allowDuplicate: true, duplicateOf: first.json().test.id });
   });
 
@@ -176,26 +267,61 @@ describe('people, tokens and revocation', () => {
     expect(s.statusCode).toBe(201);
     return String(s.headers['set-cookie']).split(';')[0];
   }
-  const whoami = (t: TestApp, cookie: string) => t.app.inject({ method: 'GET', url: '/api/session', headers: { cookie } });
+  const whoami = (t: TestApp, cookie: string) =>
+    t.app.inject({ method: 'GET', url: '/api/session', headers: { cookie } });
 
   it('an admin adds a person limited to a site, gives a token, changes the role; revoking the token ends the session at once', async () => {
     const t = await testApp();
-    const p = await t.app.inject({ method: 'POST', url: '/api/people', headers: t.auth('admin'), payload: { name: 'J. Carrow (fictional)', role: 'technician', sites: ['north'] } });
+    const p = await t.app.inject({
+      method: 'POST',
+      url: '/api/people',
+      headers: t.auth('admin'),
+      payload: { name: 'J. Carrow (fictional)', role: 'technician', sites: ['north'] },
+    });
     expect(p.statusCode).toBe(201);
     expect(p.json()).toMatchObject({ role: 'technician', sites: ['north'], revokedAt: null });
-    const tok = await t.app.inject({ method: 'POST', url: `/api/people/${p.json().id}/tokens`, headers: t.auth('admin'), payload: { label: 'tablet' } });
+    const tok = await t.app.inject({
+      method: 'POST',
+      url: `/api/people/${p.json().id}/tokens`,
+      headers: t.auth('admin'),
+      payload: { label: 'tablet' },
+    });
     expect(tok.statusCode).toBe(201);
     const cookie = await signIn(t, tok.json().token);
-    expect((await whoami(t, cookie)).json().user).toMatchObject({ role: 'technician', sites: ['north'] });
-    await t.app.inject({ method: 'PATCH', url: `/api/people/${p.json().id}`, headers: t.auth('admin'), payload: { role: 'engineer' } });
+    expect((await whoami(t, cookie)).json().user).toMatchObject({
+      role: 'technician',
+      sites: ['north'],
+    });
+    await t.app.inject({
+      method: 'PATCH',
+      url: `/api/people/${p.json().id}`,
+      headers: t.auth('admin'),
+      payload: { role: 'engineer' },
+    });
     expect((await whoami(t, cookie)).json().user.role).toBe('engineer'); // at once, same session
-    const list = await t.app.inject({ method: 'GET', url: `/api/tokens?personId=${p.json().id}`, headers: t.auth('admin') });
+    const list = await t.app.inject({
+      method: 'GET',
+      url: `/api/tokens?personId=${p.json().id}`,
+      headers: t.auth('admin'),
+    });
     expect(list.json().items).toHaveLength(1);
     expect(JSON.stringify(list.json())).not.toContain(tok.json().token);
-    const revoked = await t.app.inject({ method: 'DELETE', url: `/api/tokens/${tok.json().tokenId}`, headers: t.auth('admin') });
+    const revoked = await t.app.inject({
+      method: 'DELETE',
+      url: `/api/tokens/${tok.json().tokenId}`,
+      headers: t.auth('admin'),
+    });
     expect(revoked.statusCode).toBe(200);
     expect((await whoami(t, cookie)).statusCode).toBe(401);
-    expect((await t.app.inject({ method: 'GET', url: '/api/vessels', headers: { authorization: `Bearer ${tok.json().token}` } })).statusCode).toBe(401);
+    expect(
+      (
+        await t.app.inject({
+          method: 'GET',
+          url: '/api/vessels',
+          headers: { authorization: `Bearer ${tok.json().token}` },
+        })
+      ).statusCode,
+    ).toBe(401);
   });
 
   it('revoking a person ends every open session and token at once; the last unlimited admin cannot be revoked', async () => {
@@ -203,25 +329,54 @@ describe('people, tokens and revocation', () => {
     const eng = t.store.users.personByName('engineer-1');
     const cookie = await signIn(t, t.tokens.engineer);
     expect((await whoami(t, cookie)).statusCode).toBe(200);
-    const r = await t.app.inject({ method: 'POST', url: `/api/people/${eng.id}/revoke`, headers: t.auth('admin') });
+    const r = await t.app.inject({
+      method: 'POST',
+      url: `/api/people/${eng.id}/revoke`,
+      headers: t.auth('admin'),
+    });
     expect(r.statusCode).toBe(200);
     expect(r.json().revokedAt).not.toBeNull();
     expect((await whoami(t, cookie)).statusCode).toBe(401);
-    expect((await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('engineer') })).statusCode).toBe(401);
+    expect(
+      (await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('engineer') }))
+        .statusCode,
+    ).toBe(401);
     const admin = t.store.users.personByName('admin-1');
-    const last = await t.app.inject({ method: 'POST', url: `/api/people/${admin.id}/revoke`, headers: t.auth('admin') });
+    const last = await t.app.inject({
+      method: 'POST',
+      url: `/api/people/${admin.id}/revoke`,
+      headers: t.auth('admin'),
+    });
     expect(last.statusCode).toBe(409);
-    const audit = (await t.app.inject({ method: 'GET', url: '/api/audit?action=user.revoke', headers: t.auth('auditor') })).json().items;
+    const audit = (
+      await t.app.inject({
+        method: 'GET',
+        url: '/api/audit?action=user.revoke',
+        headers: t.auth('auditor'),
+      })
+    ).json().items;
     expect(audit[0].after.sessionsEnded).toBe(1);
   });
 
   it('people management is for admins with no site limit', async () => {
     const t = await testApp();
-    const limited = t.store.users.addPerson({ id: null, name: 'system' }, 'K. Moss (fictional)', 'admin', ['north']);
+    const limited = t.store.users.addPerson(
+      { id: null, name: 'system' },
+      'K. Moss (fictional)',
+      'admin',
+      ['north'],
+    );
     const token = t.store.users.createTokenFor({ id: null, name: 'system' }, limited.id).token;
-    const res = await t.app.inject({ method: 'GET', url: '/api/people', headers: { authorization: `Bearer ${token}` } });
+    const res = await t.app.inject({
+      method: 'GET',
+      url: '/api/people',
+      headers: { authorization: `Bearer ${token}` },
+    });
     expect(res.statusCode).toBe(403);
     expect(res.json().detail).toMatch(/no site limit/);
-    expect((await t.app.inject({ method: 'GET', url: '/api/people', headers: t.auth('engineer') })).statusCode).toBe(403);
+    expect(
+      (await t.app.inject({ method: 'GET', url: '/api/people', headers: t.auth('engineer') }))
+        .statusCode,
+    ).toBe(403);
   });
 });

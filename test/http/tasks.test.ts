@@ -25,13 +25,25 @@ let pool: TaskPool;
 const auth = (t = token) => ({ authorization: `Bearer ${t}` });
 
 /** Rows a request could have written. */
-const counts = () => Object.fromEntries(['drain_tests', 'fits', 'audit_log', 'vessels', 'raw_files'].map((t) => [t, (store.db.prepare(`SELECT count(*) AS n FROM ${t}`).get() as { n: number }).n]));
+const counts = () =>
+  Object.fromEntries(
+    ['drain_tests', 'fits', 'audit_log', 'vessels', 'raw_files'].map((t) => [
+      t,
+      (store.db.prepare(`SELECT count(*) AS n FROM ${t}`).get() as { n: number }).n,
+    ]),
+  );
 
 beforeAll(async () => {
   // the demo's invented backwash tank (sample-data/, fictional); the first test with the longest
   // fields a stored record may hold, and a 10 000-character unbroken word in its notes
   const fx = await reportFixture([
-    { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z', operator: 'o'.repeat(TEXT_LIMITS.name), loggerId: 'l'.repeat(TEXT_LIMITS.name), notes: 'n'.repeat(TEXT_LIMITS.note) },
+    {
+      log: 'fb1-2026-03-10-preamble.csv',
+      testedAt: '2026-03-10T08:15:00Z',
+      operator: 'o'.repeat(TEXT_LIMITS.name),
+      loggerId: 'l'.repeat(TEXT_LIMITS.name),
+      notes: 'n'.repeat(TEXT_LIMITS.note),
+    },
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T09:00:00Z' },
   ]);
   ({ store, fitIds } = fx);
@@ -60,11 +72,20 @@ describe('over its time limit', () => {
       }
       const dir = `${root}/sample-data/systems/`;
       const body = multipart([
-        { field: 'system', name: 'filter-chain.system.json', bytes: readFileSync(dir + 'filter-chain.system.json') },
+        {
+          field: 'system',
+          name: 'filter-chain.system.json',
+          bytes: readFileSync(dir + 'filter-chain.system.json'),
+        },
         { field: 'log:FT1', name: 'ft1.csv', bytes: readFileSync(dir + 'ft1-2026-04-07.csv') },
         { field: 'log:BT2', name: 'bt2.csv', bytes: readFileSync(dir + 'bt2-2026-04-07.csv') },
       ]);
-      const fit = await app.inject({ method: 'POST', url: '/api/systems/fit', headers: { ...auth(otherToken), ...body.headers }, payload: body.payload });
+      const fit = await app.inject({
+        method: 'POST',
+        url: '/api/systems/fit',
+        headers: { ...auth(otherToken), ...body.headers },
+        payload: body.payload,
+      });
       expect(fit.statusCode).toBe(503);
       expect(fit.json().type).toBe('urn:efflux:problem:over-time-limit');
       expect(counts()).toEqual(before);
@@ -76,7 +97,9 @@ describe('over its time limit', () => {
   it('an export whose reports run past their limit fails, keeps no zip, and says why', async () => {
     const app = await buildApp({ store, analyze: fakeAnalyze, taskTimeoutMs: 1 });
     try {
-      const started = (await app.inject({ method: 'POST', url: '/api/exports', headers: auth(), payload: {} })).json();
+      const started = (
+        await app.inject({ method: 'POST', url: '/api/exports', headers: auth(), payload: {} })
+      ).json();
       let job = started;
       while (job.state === 'running') {
         await new Promise((r) => setTimeout(r, 20));
@@ -85,7 +108,11 @@ describe('over its time limit', () => {
       expect(job.state).toBe('failed');
       expect(job.error).toMatch(/fit report did not finish within/);
       expect(job.archiveUrl).toBeNull();
-      const zip = await app.inject({ method: 'GET', url: `${started.statusUrl}/archive.zip`, headers: auth() });
+      const zip = await app.inject({
+        method: 'GET',
+        url: `${started.statusUrl}/archive.zip`,
+        headers: auth(),
+      });
       expect(zip.statusCode).toBe(409);
       expect(zip.json().detail).toMatch(/the export failed/);
     } finally {
@@ -107,15 +134,27 @@ describe('a period export as a job', () => {
     };
     const app = await buildApp({ store, analyze: fakeAnalyze, tasks });
     try {
-      const res = await app.inject({ method: 'POST', url: '/api/exports', headers: auth(), payload: { site: store.vessels.list(1, 0).items[0].site } });
+      const res = await app.inject({
+        method: 'POST',
+        url: '/api/exports',
+        headers: auth(),
+        payload: { site: store.vessels.list(1, 0).items[0].site },
+      });
       expect(res.statusCode).toBe(202);
       const job = res.json();
       expect(job).toMatchObject({ state: 'running', done: 0, total: 2, archiveUrl: null });
-      const early = await app.inject({ method: 'GET', url: `/api/exports/${job.id}/archive.zip`, headers: auth() });
+      const early = await app.inject({
+        method: 'GET',
+        url: `/api/exports/${job.id}/archive.zip`,
+        headers: auth(),
+      });
       expect(early.statusCode).toBe(409);
       expect(early.json().detail).toBe('the export is not ready: 0 of 2 reports made');
       // another person's job is not found, not forbidden
-      expect((await app.inject({ method: 'GET', url: job.statusUrl, headers: auth(otherToken) })).statusCode).toBe(404);
+      expect(
+        (await app.inject({ method: 'GET', url: job.statusUrl, headers: auth(otherToken) }))
+          .statusCode,
+      ).toBe(404);
       release();
       const progress: number[] = [];
       let now = job;
@@ -124,17 +163,38 @@ describe('a period export as a job', () => {
         now = (await app.inject({ method: 'GET', url: job.statusUrl, headers: auth() })).json();
         progress.push(now.done);
       }
-      expect(now).toMatchObject({ state: 'done', done: 2, total: 2, error: null, archiveUrl: `/api/exports/${job.id}/archive.zip` });
+      expect(now).toMatchObject({
+        state: 'done',
+        done: 2,
+        total: 2,
+        error: null,
+        archiveUrl: `/api/exports/${job.id}/archive.zip`,
+      });
       expect(progress).toEqual([...progress].sort((a, b) => a - b)); // never goes back
       expect(seen).toEqual(['fit-report-pdf', 'fit-report-pdf', 'zip']);
       const zip = await app.inject({ method: 'GET', url: now.archiveUrl, headers: auth() });
       expect(zip.statusCode).toBe(200);
       const names = readZip(zip.rawPayload).map((e) => e.name);
       expect(names.filter((n) => n.startsWith('reports/'))).toHaveLength(2);
-      expect(names).toEqual(expect.arrayContaining(['summary.csv', 'audit-excerpt.jsonl', 'manifest.json', 'SHA256SUMS']));
-      expect((await app.inject({ method: 'GET', url: now.archiveUrl, headers: auth(otherToken) })).statusCode).toBe(404);
+      expect(names).toEqual(
+        expect.arrayContaining([
+          'summary.csv',
+          'audit-excerpt.jsonl',
+          'manifest.json',
+          'SHA256SUMS',
+        ]),
+      );
+      expect(
+        (await app.inject({ method: 'GET', url: now.archiveUrl, headers: auth(otherToken) }))
+          .statusCode,
+      ).toBe(404);
       // nothing matching: refused at once, no job
-      const none = await app.inject({ method: 'POST', url: '/api/exports', headers: auth(), payload: { from: '2020-01-01', to: '2020-01-02' } });
+      const none = await app.inject({
+        method: 'POST',
+        url: '/api/exports',
+        headers: auth(),
+        payload: { from: '2020-01-01', to: '2020-01-02' },
+      });
       expect(none.statusCode).toBe(422);
     } finally {
       await app.close();
@@ -146,13 +206,26 @@ describe('series of a stored log', () => {
   it('is read in the task thread from the database file, the same as from the bytes', async () => {
     const app = await buildApp({ store, analyze: fakeAnalyze, tasks: pool.run });
     try {
-      const res = await app.inject({ method: 'GET', url: `/api/tests/${testId}/series`, headers: auth() });
+      const res = await app.inject({
+        method: 'GET',
+        url: `/api/tests/${testId}/series`,
+        headers: auth(),
+      });
       expect(res.statusCode).toBe(200);
       const { series, detected } = res.json();
       const { seriesAnswer } = await import('../../server/jobs/workbench-read.js');
       const t = store.tests.get(testId);
       const fit = store.fits.get(fitIds[0]);
-      const fromBytes = JSON.parse(new TextDecoder().decode(await seriesAnswer({ log: { bytes: store.tests.rawBytes(t.sha256), fileName: t.fileName }, vessel: fit.vessel, vesselFileName: 'v', settings: t.settings })));
+      const fromBytes = JSON.parse(
+        new TextDecoder().decode(
+          await seriesAnswer({
+            log: { bytes: store.tests.rawBytes(t.sha256), fileName: t.fileName },
+            vessel: fit.vessel,
+            vesselFileName: 'v',
+            settings: t.settings,
+          }),
+        ),
+      );
       expect(series.timeS.length).toBeGreaterThan(100);
       expect(series).toEqual(fromBytes.series);
       expect(detected).toEqual(fromBytes.detected);
@@ -175,11 +248,13 @@ describe('with a real listening server', () => {
     try {
       const base = `http://127.0.0.1:${(app.server.address() as AddressInfo).port}`;
       const order: string[] = [];
-      const pdf = fetch(`${base}/api/fits/${fitIds[0]}/report.pdf`, { headers: auth() }).then(async (r) => {
-        const bytes = Buffer.from(await r.arrayBuffer());
-        order.push('pdf');
-        return { status: r.status, bytes };
-      });
+      const pdf = fetch(`${base}/api/fits/${fitIds[0]}/report.pdf`, { headers: auth() }).then(
+        async (r) => {
+          const bytes = Buffer.from(await r.arrayBuffer());
+          order.push('pdf');
+          return { status: r.status, bytes };
+        },
+      );
       await pdfStarted;
       const health = await fetch(`${base}/api/health`).then((r) => {
         order.push('health');

@@ -41,34 +41,81 @@ afterAll(async () => {
 
 describe('a history log uploaded without testedAt', () => {
   it('is dated from its own file everywhere the date is shown', async () => {
-    const vesselFile = JSON.parse(readFileSync(join(root, 'sample-data/filter-drain-fd1.vessel.json'), 'utf8'));
-    const v = await app.inject({ method: 'POST', url: '/api/vessels', headers: auth(eng), payload: vesselFile });
+    const vesselFile = JSON.parse(
+      readFileSync(join(root, 'sample-data/filter-drain-fd1.vessel.json'), 'utf8'),
+    );
+    const v = await app.inject({
+      method: 'POST',
+      url: '/api/vessels',
+      headers: auth(eng),
+      payload: vesselFile,
+    });
     expect(v.statusCode).toBe(201);
-    const m = multipart([{ field: 'log', name: 'fd1-2024-10-07.csv', bytes: readFileSync(join(root, FILE)) }]);
-    const up = await app.inject({ method: 'POST', url: `/api/vessels/${v.json().id}/tests`, headers: { ...auth(tech), ...m.headers }, payload: m.payload });
+    const m = multipart([
+      { field: 'log', name: 'fd1-2024-10-07.csv', bytes: readFileSync(join(root, FILE)) },
+    ]);
+    const up = await app.inject({
+      method: 'POST',
+      url: `/api/vessels/${v.json().id}/tests`,
+      headers: { ...auth(tech), ...m.headers },
+      payload: m.payload,
+    });
     expect(up.statusCode, up.body).toBe(201);
     const { test, fit } = up.json();
     // the file says "Started: 2024-10-07T08:00:00Z"; the fitted window starts windowStartS later
-    const expected = new Date(Date.parse('2024-10-07T08:00:00Z') + fit.result.window.startS * 1000).toISOString();
+    const expected = new Date(
+      Date.parse('2024-10-07T08:00:00Z') + fit.result.window.startS * 1000,
+    ).toISOString();
     expect(test).toMatchObject({ testedAt: expected, testedAtSource: 'log' });
     expect(expected.slice(0, 10)).toBe('2024-10-07');
-    expect((await app.inject({ method: 'POST', url: `/api/fits/${fit.id}/review`, headers: auth(eng), payload: { decision: 'approve' } })).statusCode).toBe(200);
+    expect(
+      (
+        await app.inject({
+          method: 'POST',
+          url: `/api/fits/${fit.id}/review`,
+          headers: auth(eng),
+          payload: { decision: 'approve' },
+        })
+      ).statusCode,
+    ).toBe(200);
 
     const outletId = v.json().outlets[0].id;
-    const trend = await app.inject({ method: 'GET', url: `/api/outlets/${outletId}/trend`, headers: auth(tech) });
-    expect(trend.json().epochs[0].series[0].testedAt).toBe(expected);
-    const list = await app.inject({ method: 'GET', url: `/api/vessels/${v.json().id}/tests`, headers: auth(tech) });
-    expect(list.json().items[0].testedAt).toBe(expected); // what the vessel page shows
-    const fitPdf = await app.inject({ method: 'GET', url: `/api/fits/${fit.id}/report.pdf`, headers: auth(tech) });
-    expect(readReportFile(fitPdf.rawPayload, 'fit.pdf').report?.test.testedAt).toBe(expected);
-    const outletPdf = await app.inject({ method: 'GET', url: `/api/outlets/${outletId}/report.pdf`, headers: auth(tech) });
-    expect(readReportFile(outletPdf.rawPayload, 'outlet.pdf').report?.fits[0].testedAt).toBe(expected);
-
-    const cli = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'trend', String(outletId), '--json'], {
-      cwd: root,
-      encoding: 'utf8',
-      env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir },
+    const trend = await app.inject({
+      method: 'GET',
+      url: `/api/outlets/${outletId}/trend`,
+      headers: auth(tech),
     });
+    expect(trend.json().epochs[0].series[0].testedAt).toBe(expected);
+    const list = await app.inject({
+      method: 'GET',
+      url: `/api/vessels/${v.json().id}/tests`,
+      headers: auth(tech),
+    });
+    expect(list.json().items[0].testedAt).toBe(expected); // what the vessel page shows
+    const fitPdf = await app.inject({
+      method: 'GET',
+      url: `/api/fits/${fit.id}/report.pdf`,
+      headers: auth(tech),
+    });
+    expect(readReportFile(fitPdf.rawPayload, 'fit.pdf').report?.test.testedAt).toBe(expected);
+    const outletPdf = await app.inject({
+      method: 'GET',
+      url: `/api/outlets/${outletId}/report.pdf`,
+      headers: auth(tech),
+    });
+    expect(readReportFile(outletPdf.rawPayload, 'outlet.pdf').report?.fits[0].testedAt).toBe(
+      expected,
+    );
+
+    const cli = spawnSync(
+      process.execPath,
+      ['--import', 'tsx', join(root, 'server/cli/main.ts'), 'trend', String(outletId), '--json'],
+      {
+        cwd: root,
+        encoding: 'utf8',
+        env: { ...process.env, NO_COLOR: '1', EFFLUX_DATA_DIR: dataDir },
+      },
+    );
     expect(cli.status, cli.stderr).toBe(0);
     expect(JSON.parse(cli.stdout).epochs[0].series[0].testedAt).toBe(expected);
   }, 90_000);

@@ -13,13 +13,18 @@ export function logFor(cda: number, u: number): Buffer {
 
 export async function trendAnalyze(req: AnalysisRequest): Promise<AnalysisOutcome> {
   const m = /^cda=([^,]+),u=([^\n]+)/.exec(new TextDecoder().decode(req.log.bytes))!;
-  const cda = Number(m[1]), u = Number(m[2]);
+  const cda = Number(m[1]),
+    u = Number(m[2]);
   return {
     detected: {},
     fit: {
       engineVersion: 'trend-fake-1',
       converged: true,
-      dischargeCoefficient: { value: cda / NOMINAL, standardUncertainty: Math.hypot(u / cda, 0.004) * (cda / NOMINAL), ci95: [0, 1] },
+      dischargeCoefficient: {
+        value: cda / NOMINAL,
+        standardUncertainty: Math.hypot(u / cda, 0.004) * (cda / NOMINAL),
+        ci95: [0, 1],
+      },
       effectiveAreaM2: { value: cda, standardUncertainty: u, ci95: [cda - 2 * u, cda + 2 * u] },
       window: { startS: 0, endS: 1, samples: 2 },
       warnings: [],

@@ -13,7 +13,8 @@ import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js
 import type { FastifyInstance } from 'fastify';
 import { multipart } from './helpers.js';
 
-const sample = (name: string) => fileURLToPath(new URL(`../../sample-data/${name}`, import.meta.url));
+const sample = (name: string) =>
+  fileURLToPath(new URL(`../../sample-data/${name}`, import.meta.url));
 const LOG = readFileSync(sample('fb1-2026-03-10-preamble.csv'));
 const VESSEL = JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8'));
 
@@ -24,12 +25,15 @@ const auth: Record<string, { authorization: string }> = {};
 beforeAll(async () => {
   store = openStore();
   for (const role of ['technician', 'engineer', 'auditor'] as const) {
-    auth[role] = { authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role).token}` };
+    auth[role] = {
+      authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role).token}`,
+    };
   }
   // the real engine in-process: the stored test must be one the engine accepts
   app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req) });
   // app.ts may already register the module; add it when it does not
-  if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' })) await app.register(workbenchRoutes);
+  if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' }))
+    await app.register(workbenchRoutes);
   await app.ready();
 });
 afterAll(async () => {
@@ -39,14 +43,24 @@ afterAll(async () => {
 
 let made = 0;
 async function vesselId(): Promise<number> {
-  const r = await app.inject({ method: 'POST', url: '/api/vessels', headers: auth.engineer, payload: { ...VESSEL, name: `${VESSEL.name} #${++made}` } });
+  const r = await app.inject({
+    method: 'POST',
+    url: '/api/vessels',
+    headers: auth.engineer,
+    payload: { ...VESSEL, name: `${VESSEL.name} #${++made}` },
+  });
   expect(r.statusCode).toBe(201);
   return r.json().id;
 }
 
 function inspect(id: number, fields: Record<string, string> = {}, who = 'technician') {
   const m = multipart([{ field: 'log', name: 'fb1.csv', bytes: LOG }], fields);
-  return app.inject({ method: 'POST', url: `/api/vessels/${id}/inspect`, headers: { ...auth[who], ...m.headers }, payload: m.payload });
+  return app.inject({
+    method: 'POST',
+    url: `/api/vessels/${id}/inspect`,
+    headers: { ...auth[who], ...m.headers },
+    payload: m.payload,
+  });
 }
 
 describe('POST /api/vessels/:id/inspect', () => {
@@ -56,7 +70,11 @@ describe('POST /api/vessels/:id/inspect', () => {
     const r = await inspect(id);
     expect(r.statusCode).toBe(200);
     const body = r.json();
-    const outcome = analyzeDrainTest({ log: { bytes: LOG, fileName: 'fb1.csv' }, vessel: VESSEL, settings: {} });
+    const outcome = analyzeDrainTest({
+      log: { bytes: LOG, fileName: 'fb1.csv' },
+      vessel: VESSEL,
+      settings: {},
+    });
     expect(body.detected.window.startS).toBe(outcome.fit.window.startS);
     expect(body.detected.window.endS).toBe(outcome.fit.window.endS);
     expect(body.series.timeS.length).toBe((outcome.fit.read as { samples: number }).samples);
@@ -89,10 +107,19 @@ describe('GET /api/tests/:id/series', () => {
   it('reads the stored bytes again at full resolution', async () => {
     const id = await vesselId();
     const m = multipart([{ field: 'log', name: 'fb1.csv', bytes: LOG }]);
-    const up = await app.inject({ method: 'POST', url: `/api/vessels/${id}/tests`, headers: { ...auth.technician, ...m.headers }, payload: m.payload });
+    const up = await app.inject({
+      method: 'POST',
+      url: `/api/vessels/${id}/tests`,
+      headers: { ...auth.technician, ...m.headers },
+      payload: m.payload,
+    });
     expect(up.statusCode).toBe(201);
     const testId = up.json().test.id;
-    const r = await app.inject({ method: 'GET', url: `/api/tests/${testId}/series`, headers: auth.auditor });
+    const r = await app.inject({
+      method: 'GET',
+      url: `/api/tests/${testId}/series`,
+      headers: auth.auditor,
+    });
     expect(r.statusCode).toBe(200);
     const direct = await inspect(id);
     expect(r.json().series.timeS).toEqual(direct.json().series.timeS);

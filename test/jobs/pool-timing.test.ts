@@ -10,7 +10,10 @@ describe('analysis pool: hand-over and timing', () => {
   it('moves bytes that own their buffer to the worker, copies a slice of a larger buffer, and reports its times', async () => {
     const own = new TextEncoder().encode('t,level\n0,1\n1,0.9\n');
     const timing: RunTiming = {};
-    const out = await pool.run({ log: { bytes: own, fileName: 'a.csv' }, vessel: { name: 'x' }, settings: {} }, timing);
+    const out = await pool.run(
+      { log: { bytes: own, fileName: 'a.csv' }, vessel: { name: 'x' }, settings: {} },
+      timing,
+    );
     expect(out.fit.engineVersion).toBe('fake-1');
     expect(own.byteLength).toBe(0); // transferred, not copied
     expect(timing.engineMs).toBeGreaterThanOrEqual(0);
@@ -18,7 +21,11 @@ describe('analysis pool: hand-over and timing', () => {
     const big = new TextEncoder().encode('xxt,level\n0,1\n1,0.9\n');
     const before = big.byteLength;
     const slice = big.subarray(2);
-    await pool.run({ log: { bytes: slice, fileName: 'b.csv' }, vessel: { name: 'x' }, settings: {} });
+    await pool.run({
+      log: { bytes: slice, fileName: 'b.csv' },
+      vessel: { name: 'x' },
+      settings: {},
+    });
     expect(big.byteLength).toBe(before); // a view into a buffer it does not fill is left alone
   });
 

@@ -3,7 +3,12 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { InputError } from '../../server/core/errors.js';
 import { createTaskPool, TaskTimeoutError } from '../../server/jobs/tasks.js';
 
-const badSystem = { system: { bytes: new TextEncoder().encode('{ not json'), fileName: 'broken.system.json' }, logs: [], flows: [], fields: {} };
+const badSystem = {
+  system: { bytes: new TextEncoder().encode('{ not json'), fileName: 'broken.system.json' },
+  logs: [],
+  flows: [],
+  fields: {},
+};
 const pools: { close(): Promise<void> }[] = [];
 afterAll(async () => {
   await Promise.all(pools.map((p) => p.close()));
@@ -24,6 +29,8 @@ describe('task pool', () => {
     pools.push(pool);
     const e = await pool.run('system-fit', badSystem).catch((x) => x);
     expect(e).toBeInstanceOf(TaskTimeoutError);
-    expect(e.message).toBe('the joint fit of the connected vessels did not finish within 0.001 s; try again later or ask for less');
+    expect(e.message).toBe(
+      'the joint fit of the connected vessels did not finish within 0.001 s; try again later or ask for less',
+    );
   }, 60_000);
 });

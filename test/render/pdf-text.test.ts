@@ -3,18 +3,37 @@ import { createReportDoc, finishReportDoc, type DocIdentity } from '../../server
 import { fields, paragraph, table } from '../../server/render/pdf-layout.js';
 import { breakLongRuns, clipLine, LONGEST_RUN } from '../../server/render/pdf-text.js';
 
-const id: DocIdentity = { title: 'wrap test', subject: 'test', kind: 'fit', reportId: '0'.repeat(16), contentSha256: '0'.repeat(64), dateIso: '2026-01-01T00:00:00Z', extra: {}, json: '{}' };
+const id: DocIdentity = {
+  title: 'wrap test',
+  subject: 'test',
+  kind: 'fit',
+  reportId: '0'.repeat(16),
+  contentSha256: '0'.repeat(64),
+  dateIso: '2026-01-01T00:00:00Z',
+  extra: {},
+  json: '{}',
+};
 
 /** Lays out one unbroken word of n characters three ways; returns how many characters pdfkit measured, and the pages. */
 async function measure(n: number) {
   const doc = createReportDoc(id);
   let measured = 0;
   const width = doc.widthOfString.bind(doc);
-  (doc as unknown as { widthOfString: typeof width }).widthOfString = (s: string, o?: PDFKit.Mixins.TextOptions) => ((measured += s.length), width(s, o));
+  (doc as unknown as { widthOfString: typeof width }).widthOfString = (
+    s: string,
+    o?: PDFKit.Mixins.TextOptions,
+  ) => ((measured += s.length), width(s, o));
   const word = 'w'.repeat(n);
   paragraph(doc, word);
   fields(doc, [['notes', word]]);
-  table(doc, [{ title: 'a', width: 60 }, { title: 'b', width: 300 }], [['x', word]]);
+  table(
+    doc,
+    [
+      { title: 'a', width: 60 },
+      { title: 'b', width: 300 },
+    ],
+    [['x', word]],
+  );
   const pages = doc.bufferedPageRange().count;
   const pdf = await finishReportDoc(doc, id);
   return { measured, pages, pdf };

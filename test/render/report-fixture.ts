@@ -25,32 +25,73 @@ export interface Fixture {
   logSha256: string;
 }
 
-export const SOFTWARE = { name: 'efflux', version: 'test', gitCommit: '0123456789abcdef0123456789abcdef01234567' };
+export const SOFTWARE = {
+  name: 'efflux',
+  version: 'test',
+  gitCommit: '0123456789abcdef0123456789abcdef01234567',
+};
 
-export async function reportFixture(tests: { log: string; testedAt: string; operator?: string; loggerId?: string; notes?: string }[] = [{ log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' }]): Promise<Fixture & { fitIds: number[] }> {
+export async function reportFixture(
+  tests: {
+    log: string;
+    testedAt: string;
+    operator?: string;
+    loggerId?: string;
+    notes?: string;
+  }[] = [{ log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' }],
+): Promise<Fixture & { fitIds: number[] }> {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-report-'));
   let t = Date.parse('2026-04-01T09:00:00Z');
   const store = openStore({ dataDir, now: () => new Date((t += 1000)).toISOString() });
-  const engineer = store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer').user;
+  const engineer = store.users.createToken(
+    SYSTEM_ACTOR,
+    'R. Penhallow (fictional)',
+    'engineer',
+  ).user;
   // four eyes: a technician uploads, the engineer approves
-  const technician = store.users.createToken(SYSTEM_ACTOR, 'T. Ashdown (fictional)', 'technician').user;
-  const spec = checkVesselFile(JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8')), 'backwash-tank-fb1.vessel.json');
+  const technician = store.users.createToken(
+    SYSTEM_ACTOR,
+    'T. Ashdown (fictional)',
+    'technician',
+  ).user;
+  const spec = checkVesselFile(
+    JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8')),
+    'backwash-tank-fb1.vessel.json',
+  );
   const vessel = store.vessels.create(SYSTEM_ACTOR, spec);
   const fitIds: number[] = [];
   let logSha256 = '';
   for (const test of tests) {
-    const { fit, test: stored } = await uploadDrainTest(store, async (req) => analyzeDrainTest(req), actorOf(technician), {
-      vesselId: vessel.id,
-      log: { bytes: readFileSync(sample(test.log)), fileName: test.log },
-      settings: {},
-      operator: test.operator ?? 'T. Ashdown (fictional)',
-      loggerId: test.loggerId ?? 'KF-LG-01',
-      testedAt: test.testedAt,
-      notes: test.notes ?? 'Routine test (invented demo data).',
-    });
-    store.fits.review(actorOf(engineer), fit.id, 'approved', 'Window and fit checked; Cd within the usual band.');
+    const { fit, test: stored } = await uploadDrainTest(
+      store,
+      async (req) => analyzeDrainTest(req),
+      actorOf(technician),
+      {
+        vesselId: vessel.id,
+        log: { bytes: readFileSync(sample(test.log)), fileName: test.log },
+        settings: {},
+        operator: test.operator ?? 'T. Ashdown (fictional)',
+        loggerId: test.loggerId ?? 'KF-LG-01',
+        testedAt: test.testedAt,
+        notes: test.notes ?? 'Routine test (invented demo data).',
+      },
+    );
+    store.fits.review(
+      actorOf(engineer),
+      fit.id,
+      'approved',
+      'Window and fit checked; Cd within the usual band.',
+    );
     fitIds.push(fit.id);
     logSha256 ||= stored.sha256;
   }
-  return { dataDir, store, fitId: fitIds[0], fitIds, outletId: vessel.outlets[0].id, vesselId: vessel.id, logSha256 };
+  return {
+    dataDir,
+    store,
+    fitId: fitIds[0],
+    fitIds,
+    outletId: vessel.outlets[0].id,
+    vesselId: vessel.id,
+    logSha256,
+  };
 }

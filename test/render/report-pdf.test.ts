@@ -4,7 +4,12 @@ import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sha256Hex } from '../../server/sha256.js';
-import { buildFitReport, buildOutletReport, reportJson, type FitReport } from '../../server/core/report/index.js';
+import {
+  buildFitReport,
+  buildOutletReport,
+  reportJson,
+  type FitReport,
+} from '../../server/core/report/index.js';
 import { renderFitReportPdf } from '../../server/render/fit-report-pdf.js';
 import { renderOutletReportPdf } from '../../server/render/outlet-report-pdf.js';
 import { readReportFile } from '../../server/render/report-file.js';
@@ -36,13 +41,17 @@ describe('fit report model', () => {
   it('carries the stored numbers, the raw file hash and the review', () => {
     const stored = fx.store.fits.get(fx.fitId).result as any;
     expect(report.results.dischargeCoefficient!.value).toBe(stored.dischargeCoefficient.value);
-    expect(report.results.dischargeCoefficient!.expandedUncertainty).toBe(stored.dischargeCoefficient.expandedUncertainty);
+    expect(report.results.dischargeCoefficient!.expandedUncertainty).toBe(
+      stored.dischargeCoefficient.expandedUncertainty,
+    );
     expect(report.rawFiles[0].sha256).toBe(fx.logSha256);
     expect(report.review?.by).toBe('R. Penhallow (fictional)');
     expect(report.audit.some((a) => a.action === 'fit.approve')).toBe(true);
     expect(report.issuedAt).toBe(report.review!.at);
     // the same records give the same id
-    expect(buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex).reportId).toBe(report.reportId);
+    expect(buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex).reportId).toBe(
+      report.reportId,
+    );
   });
 });
 
@@ -52,7 +61,11 @@ describe('fit report PDF', () => {
       expect(sha(again)).toBe(sha(pdf));
       const json = join(out, 'report-child.json');
       writeFileSync(json, reportJson(report as any));
-      const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'test/render/render-child.ts'), json], { encoding: 'utf8', cwd: root });
+      const r = spawnSync(
+        process.execPath,
+        ['--import', 'tsx', join(root, 'test/render/render-child.ts'), json],
+        { encoding: 'utf8', cwd: root },
+      );
       expect(r.status, r.stderr).toBe(0);
       expect(r.stdout.trim()).toBe(sha(pdf));
     });
@@ -66,26 +79,39 @@ describe('fit report PDF', () => {
     expect(f.report).toEqual(JSON.parse(reportJson(report as any)));
   });
 
-  it.skipIf(!poppler)('holds Cd, its expanded uncertainty, the raw SHA-256 and the report id as text', () => {
-    const file = join(out, 'fit-report.pdf');
-    writeFileSync(file, pdf);
-    const text = pdfText(file);
-    const cd = report.results.dischargeCoefficient!;
-    // shown to the resolution of u (two significant digits of u)
-    const digits = 1 - Math.floor(Math.log10(cd.standardUncertainty!));
-    expect(text).toContain(`discharge coefficient, Cd`);
-    expect(text).toContain(cd.value.toFixed(digits));
-    expect(text).toContain(String(+cd.expandedUncertainty!.toPrecision(2)));
-    expect(text).toContain(fx.logSha256);
-    expect(text).toContain(report.reportId);
-    expect(text).toContain('ν_eff'); // glyphs outside WinAnsi come through the embedded font
-    expect(text).toContain('m²');
-    expect(text).toMatch(/page 1 of \d/);
-    // an image of the first page for people to look at (test-output/ is git-ignored)
-    const r = spawnSync('pdftoppm', ['-r', '80', '-png', '-f', '1', '-l', '1', file, join(out, 'fit-report-page')]);
-    expect(r.status).toBe(0);
-    expect(existsSync(join(out, 'fit-report-page-1.png'))).toBe(true);
-  });
+  it.skipIf(!poppler)(
+    'holds Cd, its expanded uncertainty, the raw SHA-256 and the report id as text',
+    () => {
+      const file = join(out, 'fit-report.pdf');
+      writeFileSync(file, pdf);
+      const text = pdfText(file);
+      const cd = report.results.dischargeCoefficient!;
+      // shown to the resolution of u (two significant digits of u)
+      const digits = 1 - Math.floor(Math.log10(cd.standardUncertainty!));
+      expect(text).toContain(`discharge coefficient, Cd`);
+      expect(text).toContain(cd.value.toFixed(digits));
+      expect(text).toContain(String(+cd.expandedUncertainty!.toPrecision(2)));
+      expect(text).toContain(fx.logSha256);
+      expect(text).toContain(report.reportId);
+      expect(text).toContain('ν_eff'); // glyphs outside WinAnsi come through the embedded font
+      expect(text).toContain('m²');
+      expect(text).toMatch(/page 1 of \d/);
+      // an image of the first page for people to look at (test-output/ is git-ignored)
+      const r = spawnSync('pdftoppm', [
+        '-r',
+        '80',
+        '-png',
+        '-f',
+        '1',
+        '-l',
+        '1',
+        file,
+        join(out, 'fit-report-page'),
+      ]);
+      expect(r.status).toBe(0);
+      expect(existsSync(join(out, 'fit-report-page-1.png'))).toBe(true);
+    },
+  );
 });
 
 describe('outlet history report', () => {
@@ -93,11 +119,15 @@ describe('outlet history report', () => {
     const records = outletReportRecords(fx.store, fx.outletId);
     expect(records.fits.map((f) => f.fitId)).toEqual(fx.fitIds);
     const r = buildOutletReport(records, SOFTWARE, sha256Hex);
-    expect(r.asOf).toBe(new Date(Math.max(...records.fits.map((f) => Date.parse(f.review.at)))).toISOString());
+    expect(r.asOf).toBe(
+      new Date(Math.max(...records.fits.map((f) => Date.parse(f.review.at)))).toISOString(),
+    );
     expect(r.trend.epochs[0].series.map((p) => p.fitId)).toEqual(fx.fitIds.map(String));
     expect(r.actionThresholdPct).toBe(-10); // the demo vessel names no threshold: the default
     const a = await renderOutletReportPdf(r);
-    const b = await renderOutletReportPdf(buildOutletReport(outletReportRecords(fx.store, fx.outletId), SOFTWARE, sha256Hex));
+    const b = await renderOutletReportPdf(
+      buildOutletReport(outletReportRecords(fx.store, fx.outletId), SOFTWARE, sha256Hex),
+    );
     expect(sha(b)).toBe(sha(a));
     const file = join(out, 'outlet-report.pdf');
     writeFileSync(file, a);
@@ -105,7 +135,17 @@ describe('outlet history report', () => {
       const text = pdfText(file);
       expect(text).toContain(r.reportId);
       expect(text).toContain(r.trend.status.status);
-      spawnSync('pdftoppm', ['-r', '80', '-png', '-f', '1', '-l', '1', file, join(out, 'outlet-report-page')]);
+      spawnSync('pdftoppm', [
+        '-r',
+        '80',
+        '-png',
+        '-f',
+        '1',
+        '-l',
+        '1',
+        file,
+        join(out, 'outlet-report-page'),
+      ]);
     }
   }, 30_000);
 });

@@ -8,7 +8,10 @@ import { readZip, writeZip } from '../../server/render/zip.js';
 // Info-ZIP's unzip (Debian package unzip): in CI (CI=true) a missing unzip fails the check; elsewhere it is skipped loudly.
 const hasUnzip = spawnSync('unzip', ['-v']).status === 0;
 const inCi = process.env.CI === 'true';
-if (!hasUnzip && !inCi) console.warn('SKIPPING unzip -t check: unzip is not installed — apt-get install -y unzip; in CI this fails');
+if (!hasUnzip && !inCi)
+  console.warn(
+    'SKIPPING unzip -t check: unzip is not installed — apt-get install -y unzip; in CI this fails',
+  );
 
 describe('writeZip', () => {
   const entries = [
@@ -28,7 +31,8 @@ describe('writeZip', () => {
   });
 
   it.skipIf(!hasUnzip && !inCi)('passes unzip -t (Info-ZIP)', () => {
-    if (!hasUnzip) expect.fail('unzip missing in CI: .ci/run should install it (apt-get install -y unzip)');
+    if (!hasUnzip)
+      expect.fail('unzip missing in CI: .ci/run should install it (apt-get install -y unzip)');
     const dir = mkdtempSync(join(tmpdir(), 'efflux-zip-'));
     const file = join(dir, 't.zip');
     writeFileSync(file, writeZip(entries, '2026-04-01T09:00:05Z'));

@@ -4,7 +4,9 @@ import { memoryStore, SYSTEM_ACTOR, VESSEL } from './helpers.js';
 
 describe('canonical JSON', () => {
   it('sorts keys at every depth and drops undefined members', () => {
-    expect(canonicalJson({ b: 1, a: { d: [1, { z: 1, y: 2 }], c: undefined } })).toBe('{"a":{"d":[1,{"y":2,"z":1}]},"b":1}');
+    expect(canonicalJson({ b: 1, a: { d: [1, { z: 1, y: 2 }], c: undefined } })).toBe(
+      '{"a":{"d":[1,{"y":2,"z":1}]},"b":1}',
+    );
   });
 });
 
@@ -20,7 +22,12 @@ describe('audit chain', () => {
   it('links every entry to the one before and verifies', () => {
     const s = storeWithHistory();
     const entries = s.audit.list();
-    expect(entries.map((e) => e.action)).toEqual(['vessel.create', 'vessel.update', 'user.create', 'token.create']);
+    expect(entries.map((e) => e.action)).toEqual([
+      'vessel.create',
+      'vessel.update',
+      'user.create',
+      'token.create',
+    ]);
     for (let i = 1; i < entries.length; i++) expect(entries[i].prevHash).toBe(entries[i - 1].hash);
     const report = s.audit.verify();
     expect(report).toMatchObject({ ok: true, count: 4, head: entries[3].hash });
@@ -28,14 +35,18 @@ describe('audit chain', () => {
 
   it('refuses UPDATE and DELETE through the triggers', () => {
     const s = storeWithHistory();
-    expect(() => s.db.prepare(`UPDATE audit_log SET actor_name = 'x' WHERE seq = 2`).run()).toThrow(/append-only/);
+    expect(() => s.db.prepare(`UPDATE audit_log SET actor_name = 'x' WHERE seq = 2`).run()).toThrow(
+      /append-only/,
+    );
     expect(() => s.db.prepare('DELETE FROM audit_log WHERE seq = 2').run()).toThrow(/append-only/);
   });
 
   it('detects an edited entry (triggers dropped by someone with raw access) and names it', () => {
     const s = storeWithHistory();
     s.db.exec('DROP TRIGGER audit_log_no_update');
-    s.db.prepare(`UPDATE audit_log SET after = json_set(after, '$.name', 'T-9') WHERE seq = 2`).run();
+    s.db
+      .prepare(`UPDATE audit_log SET after = json_set(after, '$.name', 'T-9') WHERE seq = 2`)
+      .run();
     const r = s.audit.verify();
     expect(r.ok).toBe(false);
     expect(r.brokenAt).toBe(2);

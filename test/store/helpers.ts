@@ -10,7 +10,14 @@ export const VESSEL = {
   name: 'T-1',
   shape: { kind: 'vertical-cylinder', diameterM: 3.0 },
   outlets: [
-    { id: 'drain', boreM: 0.03, boreToleranceM: 0.0002, elevationM: 0, type: 'sharp-orifice', actionThreshold: 0.8 },
+    {
+      id: 'drain',
+      boreM: 0.03,
+      boreToleranceM: 0.0002,
+      elevationM: 0,
+      type: 'sharp-orifice',
+      actionThreshold: 0.8,
+    },
     { id: 'overflow', boreM: 0.05, elevationM: 2.5 },
   ],
   sensor: { zeroElevationM: 0 },

@@ -13,17 +13,49 @@ describe('migrations', () => {
     expect(files.length).toBeGreaterThan(0);
     const applied = migrate(db);
     expect(applied).toEqual(files.map((f) => f.name));
-    const recorded = db.prepare('SELECT version, name FROM schema_migrations ORDER BY version').all();
+    const recorded = db
+      .prepare('SELECT version, name FROM schema_migrations ORDER BY version')
+      .all();
     expect(recorded).toEqual(files.map((f) => ({ version: f.version, name: f.name })));
-    const tables = db.prepare(`SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name`).pluck().all();
-    for (const t of ['sites', 'vessels', 'outlets', 'raw_files', 'drain_tests', 'fits', 'maintenance_events',
-      'users', 'api_tokens', 'sessions', 'audit_log', 'schema_migrations']) {
+    const tables = db
+      .prepare(`SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name`)
+      .pluck()
+      .all();
+    for (const t of [
+      'sites',
+      'vessels',
+      'outlets',
+      'raw_files',
+      'drain_tests',
+      'fits',
+      'maintenance_events',
+      'users',
+      'api_tokens',
+      'sessions',
+      'audit_log',
+      'schema_migrations',
+    ]) {
       expect(tables).toContain(t);
     }
-    const triggers = db.prepare(`SELECT name FROM sqlite_master WHERE type = 'trigger'`).pluck().all();
-    expect(triggers).toEqual(expect.arrayContaining(['fits_no_delete', 'fits_immutable', 'audit_log_no_update', 'audit_log_no_delete']));
-    const fitCols = db.prepare('PRAGMA table_info(fits)').all().map((c: any) => c.name);
-    expect(fitCols).toEqual(expect.arrayContaining(['settings', 'result', 'engine_version', 'status', 'superseded_by']));
+    const triggers = db
+      .prepare(`SELECT name FROM sqlite_master WHERE type = 'trigger'`)
+      .pluck()
+      .all();
+    expect(triggers).toEqual(
+      expect.arrayContaining([
+        'fits_no_delete',
+        'fits_immutable',
+        'audit_log_no_update',
+        'audit_log_no_delete',
+      ]),
+    );
+    const fitCols = db
+      .prepare('PRAGMA table_info(fits)')
+      .all()
+      .map((c: any) => c.name);
+    expect(fitCols).toEqual(
+      expect.arrayContaining(['settings', 'result', 'engine_version', 'status', 'superseded_by']),
+    );
     // a second run applies nothing
     expect(migrate(db)).toEqual([]);
   });
@@ -40,10 +72,15 @@ describe('migrations', () => {
   it('rolls back a failing migration whole and leaves it unrecorded', () => {
     const dir = mkdtempSync(join(tmpdir(), 'efflux-mig-'));
     copyFileSync(join(defaultMigrationsDir(), '001_initial.sql'), join(dir, '001_initial.sql'));
-    writeFileSync(join(dir, '002_broken.sql'), 'CREATE TABLE half_done (x INTEGER);\nTHIS IS NOT SQL;');
+    writeFileSync(
+      join(dir, '002_broken.sql'),
+      'CREATE TABLE half_done (x INTEGER);\nTHIS IS NOT SQL;',
+    );
     const db = new Database(':memory:');
     expect(() => migrate(db, dir)).toThrow();
     expect(db.prepare('SELECT max(version) FROM schema_migrations').pluck().get()).toBe(1);
-    expect(db.prepare(`SELECT count(*) FROM sqlite_master WHERE name = 'half_done'`).pluck().get()).toBe(0);
+    expect(
+      db.prepare(`SELECT count(*) FROM sqlite_master WHERE name = 'half_done'`).pluck().get(),
+    ).toBe(0);
   });
 });

@@ -9,13 +9,24 @@ import { FIT_RESULT, memoryStore, SYSTEM_ACTOR, VESSEL } from './helpers.js';
 const bytes = new TextEncoder().encode('t,level\n0,2\n1,1.9\n');
 
 function upload(s: Store, vesselId: number, outletId: number, name = 'log.csv') {
-  return s.tests.createPending(SYSTEM_ACTOR, { vesselId, outletId, log: { bytes, fileName: name }, settings: {}, allowDuplicate: true }); // the same bytes on purpose: caching, not duplicates, is tested here
+  return s.tests.createPending(SYSTEM_ACTOR, {
+    vesselId,
+    outletId,
+    log: { bytes, fileName: name },
+    settings: {},
+    allowDuplicate: true,
+  }); // the same bytes on purpose: caching, not duplicates, is tested here
 }
 
 function withFit(s: Store) {
   const v = s.vessels.create(SYSTEM_ACTOR, VESSEL);
   const t = upload(s, v.id, v.outlets[0].id);
-  const f = s.fits.storeFirst(SYSTEM_ACTOR, t.id, { rows: 3 }, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
+  const f = s.fits.storeFirst(
+    SYSTEM_ACTOR,
+    t.id,
+    { rows: 3 },
+    { settings: {}, result: FIT_RESULT, vessel: VESSEL },
+  );
   return { v, t, f };
 }
 
@@ -32,9 +43,18 @@ describe('ready answers kept in memory', () => {
     const reviewed = s.fits.getText(f.id);
     expect(read(reviewed.body)).toMatchObject({ status: 'rejected', review: { comment: 'noisy' } });
     expect(reviewed.digest).not.toBe(first.digest);
-    const g = s.fits.storeFirst(SYSTEM_ACTOR, upload(s, f.vesselId, f.outletId!, 'b.csv').id, {}, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
+    const g = s.fits.storeFirst(
+      SYSTEM_ACTOR,
+      upload(s, f.vesselId, f.outletId!, 'b.csv').id,
+      {},
+      { settings: {}, result: FIT_RESULT, vessel: VESSEL },
+    );
     s.fits.getText(g.id);
-    const h = s.fits.refit(SYSTEM_ACTOR, g.id, { settings: { window: '1..2' }, result: FIT_RESULT, vessel: VESSEL });
+    const h = s.fits.refit(SYSTEM_ACTOR, g.id, {
+      settings: { window: '1..2' },
+      result: FIT_RESULT,
+      vessel: VESSEL,
+    });
     expect(read(s.fits.getText(g.id).body).supersededBy).toBe(h.id);
   });
 
@@ -46,7 +66,12 @@ describe('ready answers kept in memory', () => {
     const t2 = upload(s, v.id, v.outlets[0].id, 'c.csv');
     expect(page().items.map((x: { id: number }) => x.id)).toEqual([t2.id, t.id]);
     expect(page().items[0].status).toBe('pending');
-    s.fits.storeFirst(SYSTEM_ACTOR, t2.id, { rows: 2 }, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
+    s.fits.storeFirst(
+      SYSTEM_ACTOR,
+      t2.id,
+      { rows: 2 },
+      { settings: {}, result: FIT_RESULT, vessel: VESSEL },
+    );
     expect(page().items[0]).toMatchObject({ status: 'analysed', detected: { rows: 2 } });
     const t3 = upload(s, v.id, v.outlets[0].id, 'd.csv');
     expect(page().total).toBe(3);

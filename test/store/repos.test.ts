@@ -22,9 +22,15 @@ describe('vessels', () => {
   it('stores the file whole with one row per outlet, and retires a dropped outlet on update', () => {
     const s = memoryStore();
     const v = s.vessels.create(SYSTEM_ACTOR, VESSEL);
-    expect(v.outlets.map((o) => [o.key, o.boreM, o.actionThreshold])).toEqual([['drain', 0.03, 0.8], ['overflow', 0.05, null]]);
+    expect(v.outlets.map((o) => [o.key, o.boreM, o.actionThreshold])).toEqual([
+      ['drain', 0.03, 0.8],
+      ['overflow', 0.05, null],
+    ]);
     expect(v.spec).toEqual(VESSEL);
-    const u = s.vessels.update(SYSTEM_ACTOR, v.id, { ...VESSEL, outlets: [{ id: 'drain', boreM: 0.031 }] });
+    const u = s.vessels.update(SYSTEM_ACTOR, v.id, {
+      ...VESSEL,
+      outlets: [{ id: 'drain', boreM: 0.031 }],
+    });
     expect(u.revision).toBe(2);
     expect(u.outlets.find((o) => o.key === 'drain')!.boreM).toBe(0.031);
     expect(u.outlets.find((o) => o.key === 'overflow')!.retiredAt).not.toBeNull();
@@ -57,12 +63,28 @@ describe('drain tests and fits', () => {
 
   it('stores a first fit as draft, refits (old superseded, kept), reviews once', () => {
     const { s, t } = withTest();
-    const f1 = s.fits.storeFirst(SYSTEM_ACTOR, t.id, { columns: [] }, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
-    expect(f1).toMatchObject({ status: 'draft', engineVersion: 'test-0', supersededBy: null, testId: t.id });
+    const f1 = s.fits.storeFirst(
+      SYSTEM_ACTOR,
+      t.id,
+      { columns: [] },
+      { settings: {}, result: FIT_RESULT, vessel: VESSEL },
+    );
+    expect(f1).toMatchObject({
+      status: 'draft',
+      engineVersion: 'test-0',
+      supersededBy: null,
+      testId: t.id,
+    });
     expect(s.tests.get(t.id).status).toBe('analysed');
-    const f2 = s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: { window: '20..800' }, result: FIT_RESULT, vessel: VESSEL });
+    const f2 = s.fits.refit(SYSTEM_ACTOR, f1.id, {
+      settings: { window: '20..800' },
+      result: FIT_RESULT,
+      vessel: VESSEL,
+    });
     expect(s.fits.get(f1.id).supersededBy).toBe(f2.id);
-    expect(() => s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: {}, result: FIT_RESULT, vessel: VESSEL })).toThrow(ConflictError);
+    expect(() =>
+      s.fits.refit(SYSTEM_ACTOR, f1.id, { settings: {}, result: FIT_RESULT, vessel: VESSEL }),
+    ).toThrow(ConflictError);
     expect(() => s.fits.review(SYSTEM_ACTOR, f1.id, 'approved', null)).toThrow(ConflictError);
     const ok = s.fits.review(SYSTEM_ACTOR, f2.id, 'approved', 'window checked');
     expect(ok.status).toBe('approved');
@@ -74,14 +96,27 @@ describe('drain tests and fits', () => {
 
   it('triggers refuse rewriting or deleting fits and analysed tests, even through raw SQL', () => {
     const { s, t } = withTest();
-    const f = s.fits.storeFirst(SYSTEM_ACTOR, t.id, {}, { settings: {}, result: FIT_RESULT, vessel: VESSEL });
+    const f = s.fits.storeFirst(
+      SYSTEM_ACTOR,
+      t.id,
+      {},
+      { settings: {}, result: FIT_RESULT, vessel: VESSEL },
+    );
     const db = s.db;
     expect(() => db.prepare('DELETE FROM fits WHERE id = ?').run(f.id)).toThrow(/never deleted/);
-    expect(() => db.prepare(`UPDATE fits SET result = '{}' WHERE id = ?`).run(f.id)).toThrow(/never overwritten/);
+    expect(() => db.prepare(`UPDATE fits SET result = '{}' WHERE id = ?`).run(f.id)).toThrow(
+      /never overwritten/,
+    );
     db.prepare(`UPDATE fits SET status = 'approved', reviewed_at = 'x' WHERE id = ?`).run(f.id);
-    expect(() => db.prepare(`UPDATE fits SET status = 'rejected' WHERE id = ?`).run(f.id)).toThrow(/never overwritten/);
-    expect(() => db.prepare('DELETE FROM drain_tests WHERE id = ?').run(t.id)).toThrow(/cannot be deleted/);
-    expect(() => db.prepare(`UPDATE drain_tests SET log_name = 'x' WHERE id = ?`).run(t.id)).toThrow(/immutable/);
+    expect(() => db.prepare(`UPDATE fits SET status = 'rejected' WHERE id = ?`).run(f.id)).toThrow(
+      /never overwritten/,
+    );
+    expect(() => db.prepare('DELETE FROM drain_tests WHERE id = ?').run(t.id)).toThrow(
+      /cannot be deleted/,
+    );
+    expect(() =>
+      db.prepare(`UPDATE drain_tests SET log_name = 'x' WHERE id = ?`).run(t.id),
+    ).toThrow(/immutable/);
     expect(() => db.prepare(`UPDATE raw_files SET size = 0`).run()).toThrow(/immutable/);
   });
 });
@@ -103,7 +138,12 @@ describe('users', () => {
   it('events are append-only', () => {
     const s = memoryStore();
     const v = s.vessels.create(SYSTEM_ACTOR, VESSEL);
-    const e = s.events.create(SYSTEM_ACTOR, { vesselId: v.id, outletId: v.outlets[0].id, kind: 'cleaned', occurredAt: '2026-02-01' });
+    const e = s.events.create(SYSTEM_ACTOR, {
+      vesselId: v.id,
+      outletId: v.outlets[0].id,
+      kind: 'cleaned',
+      occurredAt: '2026-02-01',
+    });
     expect(s.events.listByVessel(v.id, 10, 0).items).toEqual([e]);
     expect(() => s.db.prepare('DELETE FROM maintenance_events').run()).toThrow(/append-only/);
   });
@@ -119,7 +159,12 @@ describe('JSON rendered by SQLite for the hot reads', () => {
       baro: { bytes: new TextEncoder().encode('p\n101.3\n'), fileName: 'baro.csv' },
       settings: {},
     });
-    const f = s.fits.storeFirst(SYSTEM_ACTOR, t.id, { a: [1, 2.5e-7, null], s: 'é' }, { settings: { window: '1..2' }, result: FIT_RESULT, vessel: VESSEL });
+    const f = s.fits.storeFirst(
+      SYSTEM_ACTOR,
+      t.id,
+      { a: [1, 2.5e-7, null], s: 'é' },
+      { settings: { window: '1..2' }, result: FIT_RESULT, vessel: VESSEL },
+    );
     expect(JSON.parse(s.fits.getJson(f.id))).toEqual(s.fits.get(f.id));
     s.fits.review(SYSTEM_ACTOR, f.id, 'rejected', 'noisy');
     expect(JSON.parse(s.fits.getJson(f.id))).toEqual(s.fits.get(f.id));

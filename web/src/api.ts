@@ -20,8 +20,17 @@ async function parse(res: Response): Promise<unknown> {
   return res.text();
 }
 
-export async function api<T>(method: string, url: string, body?: unknown, extraHeaders: Record<string, string> = {}): Promise<T> {
-  const init: RequestInit = { method, credentials: 'same-origin', headers: { accept: 'application/json, application/problem+json', ...extraHeaders } };
+export async function api<T>(
+  method: string,
+  url: string,
+  body?: unknown,
+  extraHeaders: Record<string, string> = {},
+): Promise<T> {
+  const init: RequestInit = {
+    method,
+    credentials: 'same-origin',
+    headers: { accept: 'application/json, application/problem+json', ...extraHeaders },
+  };
   if (body instanceof FormData) init.body = body;
   else if (body !== undefined) {
     init.body = JSON.stringify(body);
@@ -31,15 +40,32 @@ export async function api<T>(method: string, url: string, body?: unknown, extraH
   const data = await parse(res);
   if (!res.ok) {
     const p = data && typeof data === 'object' ? (data as Record<string, unknown>) : null;
-    const where = p ? [p.file, p.line !== undefined ? `line ${p.line}` : null, p.field ? `field ${p.field}` : null].filter(Boolean).join(', ') : '';
-    const detail = (p?.detail as string) ?? (p?.title as string) ?? `the service answered ${res.status}`;
-    throw new ApiError(res.status, where && !detail.includes(String(p?.file ?? '\u0000')) ? `${detail} (${where})` : detail, p);
+    const where = p
+      ? [
+          p.file,
+          p.line !== undefined ? `line ${p.line}` : null,
+          p.field ? `field ${p.field}` : null,
+        ]
+          .filter(Boolean)
+          .join(', ')
+      : '';
+    const detail =
+      (p?.detail as string) ?? (p?.title as string) ?? `the service answered ${res.status}`;
+    throw new ApiError(
+      res.status,
+      where && !detail.includes(String(p?.file ?? '\u0000')) ? `${detail} (${where})` : detail,
+      p,
+    );
   }
   return data as T;
 }
 
 /** An upload with an Idempotency-Key: a retry with the same key answers the first result. */
-export async function apiUpload<T>(url: string, body: FormData, idempotencyKey: string): Promise<T> {
+export async function apiUpload<T>(
+  url: string,
+  body: FormData,
+  idempotencyKey: string,
+): Promise<T> {
   return api<T>('POST', url, body, { 'idempotency-key': idempotencyKey });
 }
 
@@ -83,7 +109,12 @@ export interface Fit {
   status: 'draft' | 'approved' | 'rejected';
   supersededBy: number | null;
   /** selfReview: approved by the uploader or refit requester where an admin allowed it (marked). */
-  review: { comment: string | null; by: number | null; at: string | null; selfReview?: boolean } | null;
+  review: {
+    comment: string | null;
+    by: number | null;
+    at: string | null;
+    selfReview?: boolean;
+  } | null;
   createdAt: string;
 }
 export interface Page<T> {
@@ -108,7 +139,10 @@ export interface Settings {
   fitExponent?: boolean;
 }
 // The fit result: the one shape (server/core/fit-result/schema.ts), type-only
-export type { SingleFitResult as FitResult, FitParameter } from '../../server/core/fit-result/schema.js';
+export type {
+  SingleFitResult as FitResult,
+  FitParameter,
+} from '../../server/core/fit-result/schema.js';
 import type { SingleFitResult as FitResult } from '../../server/core/fit-result/schema.js';
 export type Estimate = FitResult['effectiveAreaM2'];
 export type Note = FitResult['warnings'][number];
@@ -131,12 +165,16 @@ export interface MaintenanceEvent {
   notes: string | null;
 }
 
-export const canUpload = (u: User) => u.role === 'technician' || u.role === 'engineer' || u.role === 'admin';
+export const canUpload = (u: User) =>
+  u.role === 'technician' || u.role === 'engineer' || u.role === 'admin';
 export const canReview = (u: User) => u.role === 'engineer' || u.role === 'admin';
 export const seesMaintenance = (u: User) => u.role !== 'technician';
 
 /** The trend answers (server/jobs/trend-views.ts, type-only). */
-export type { FleetItem as FleetStatusItem, TrendView as OutletTrend } from '../../server/jobs/trend-views.js';
+export type {
+  FleetItem as FleetStatusItem,
+  TrendView as OutletTrend,
+} from '../../server/jobs/trend-views.js';
 
 /** GET that answers null when the route is absent (404 from the router, not from a missing record). */
 export async function optional<T>(url: string): Promise<T | null> {

@@ -34,7 +34,10 @@ const axis = (label: string, extra: Partial<uPlot.Axis> = {}): uPlot.Axis => ({
 
 const minutes = (_u: uPlot, ticks: number[]) => ticks.map((t) => `${+(t / 60).toFixed(2)}`);
 /** Tick steps in seconds that read as whole minutes (or round fractions of one) on a minute axis. */
-const MINUTE_STEPS = [6, 15, 30, 60, 120, 300, 600, 900, 1200, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800, 604800];
+const MINUTE_STEPS = [
+  6, 15, 30, 60, 120, 300, 600, 900, 1200, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800,
+  604800,
+];
 
 /** Follow the container's width (the page may be resized). */
 function fit(u: uPlot, el: HTMLElement, height: number): void {
@@ -58,7 +61,13 @@ export interface LogChart {
  * The whole log, level against time from its start, with the drain window shaded. With
  * `onDrag`, dragging across the chart proposes a new window (the form fields follow).
  */
-export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: ArrayLike<number>, win: { startS: number; endS: number } | null, onDrag?: (startS: number, endS: number) => void): LogChart {
+export function logChart(
+  el: HTMLElement,
+  timeS: ArrayLike<number>,
+  levelM: ArrayLike<number>,
+  win: { startS: number; endS: number } | null,
+  onDrag?: (startS: number, endS: number) => void,
+): LogChart {
   const drawn = decimate(timeS, levelM, Math.max(1200, widthOf(el) * 2));
   let current = win;
   const height = 300;
@@ -68,8 +77,19 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
     scales: { x: { time: false } },
     legend: { show: true },
     cursor: { drag: { x: false, y: false, setScale: false } },
-    axes: [axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }), axis('level above the sensor zero (m)')],
-    series: [{ label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) }, { label: 'level (m)', stroke: COLOURS.level, width: 1.5, value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) }],
+    axes: [
+      axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }),
+      axis('level above the sensor zero (m)'),
+    ],
+    series: [
+      { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+      {
+        label: 'level (m)',
+        stroke: COLOURS.level,
+        width: 1.5,
+        value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`),
+      },
+    ],
     hooks: {
       drawClear: [
         (u) => {
@@ -96,10 +116,16 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
   };
   const u = new uPlot(opts, [drawn.x, drawn.y] as uPlot.AlignedData, el);
   fit(u, el, height);
-  if (onDrag) dragWindow(u, () => current, (w) => {
-    current = w;
-    u.redraw(false, false);
-  }, (w) => onDrag(Math.max(w.startS, timeS[0]), Math.min(w.endS, timeS[timeS.length - 1])));
+  if (onDrag)
+    dragWindow(
+      u,
+      () => current,
+      (w) => {
+        current = w;
+        u.redraw(false, false);
+      },
+      (w) => onDrag(Math.max(w.startS, timeS[0]), Math.min(w.endS, timeS[timeS.length - 1])),
+    );
   return {
     setWindow(startS, endS) {
       current = { startS, endS };
@@ -113,7 +139,12 @@ export function logChart(el: HTMLElement, timeS: ArrayLike<number>, levelM: Arra
  * Dragging on the plot: near an edge of the window moves that edge, elsewhere draws a new window.
  * Pointer events of our own (not uPlot's select), so edges can be grabbed and touch works too.
  */
-function dragWindow(u: uPlot, get: () => { startS: number; endS: number } | null, live: (w: { startS: number; endS: number }) => void, done: (w: { startS: number; endS: number }) => void): void {
+function dragWindow(
+  u: uPlot,
+  get: () => { startS: number; endS: number } | null,
+  live: (w: { startS: number; endS: number }) => void,
+  done: (w: { startS: number; endS: number }) => void,
+): void {
   const over = u.over;
   let mode: 'start' | 'end' | 'new' | null = null;
   let anchor = 0;
@@ -164,18 +195,37 @@ export interface WindowPlot {
 }
 
 /** Readings and the fitted curve over the window, against time from the log's start. */
-export function fitChart(el: HTMLElement, w: WindowPlot, xLabel = 'time from the start of the log (min)'): uPlot {
+export function fitChart(
+  el: HTMLElement,
+  w: WindowPlot,
+  xLabel = 'time from the start of the log (min)',
+): uPlot {
   const x = w.timeS.map((t) => t + w.offsetS);
   const u = new uPlot(
     {
       width: widthOf(el),
       height: 320,
       scales: { x: { time: false } },
-      axes: [axis(xLabel, { values: minutes, incrs: MINUTE_STEPS }), axis('level above the sensor zero (m)')],
+      axes: [
+        axis(xLabel, { values: minutes, incrs: MINUTE_STEPS }),
+        axis('level above the sensor zero (m)'),
+      ],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
-        { label: 'readings (m)', stroke: COLOURS.level, width: 0, points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`) },
-        { label: 'fitted drain curve (m)', stroke: COLOURS.fitted, width: 2.5, points: { show: false }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`) },
+        {
+          label: 'readings (m)',
+          stroke: COLOURS.level,
+          width: 0,
+          points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
+        },
+        {
+          label: 'fitted drain curve (m)',
+          stroke: COLOURS.fitted,
+          width: 2.5,
+          points: { show: false },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
+        },
       ],
     },
     [x, w.observedM, w.fittedM] as uPlot.AlignedData,
@@ -198,13 +248,34 @@ export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | nu
       width: widthOf(el),
       height: 220,
       scales: { x: { time: false } },
-      axes: [axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }), axis('reading − fitted (mm)')],
+      axes: [
+        axis('time from the start of the log (min)', { values: minutes, incrs: MINUTE_STEPS }),
+        axis('reading − fitted (mm)'),
+      ],
       bands: [{ series: [2, 3], fill: COLOURS.band }],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
-        { label: 'residual (mm)', stroke: COLOURS.residual, width: 0, points: { show: true, size: 3, stroke: COLOURS.residual, fill: COLOURS.residual }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`) },
-        { label: '+2 × RMS (mm)', stroke: 'rgba(93,74,140,0.35)', width: 1, points: { show: false }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`) },
-        { label: '−2 × RMS (mm)', stroke: 'rgba(93,74,140,0.35)', width: 1, points: { show: false }, value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`) },
+        {
+          label: 'residual (mm)',
+          stroke: COLOURS.residual,
+          width: 0,
+          points: { show: true, size: 3, stroke: COLOURS.residual, fill: COLOURS.residual },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`),
+        },
+        {
+          label: '+2 × RMS (mm)',
+          stroke: 'rgba(93,74,140,0.35)',
+          width: 1,
+          points: { show: false },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`),
+        },
+        {
+          label: '−2 × RMS (mm)',
+          stroke: 'rgba(93,74,140,0.35)',
+          width: 1,
+          points: { show: false },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} mm`),
+        },
         { label: 'zero', stroke: COLOURS.axis, width: 1, points: { show: false } },
       ],
     },
@@ -216,7 +287,11 @@ export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | nu
 }
 
 /** Vertical whiskers from lo[i] to hi[i] at each x, drawn over the series of index `si`. */
-function whiskers(lo: (number | null)[], hi: (number | null)[], colourOf: (i: number) => string): uPlot.Plugin {
+function whiskers(
+  lo: (number | null)[],
+  hi: (number | null)[],
+  colourOf: (i: number) => string,
+): uPlot.Plugin {
   return {
     hooks: {
       draw: [
@@ -226,7 +301,8 @@ function whiskers(lo: (number | null)[], hi: (number | null)[], colourOf: (i: nu
           ctx.save();
           ctx.lineWidth = 1.5;
           for (let i = 0; i < xs.length; i++) {
-            const a = lo[i], b = hi[i];
+            const a = lo[i],
+              b = hi[i];
             if (a === null || b === null) continue;
             const x = u.valToPos(xs[i], 'x', true);
             const y0 = u.valToPos(a, 'y', true);
@@ -249,8 +325,22 @@ function whiskers(lo: (number | null)[], hi: (number | null)[], colourOf: (i: nu
 }
 
 /** Cd per head band: does the coefficient change with head? Bars are ±2 standard uncertainties. */
-export function headBandChart(el: HTMLElement, bands: { headFromM: number; headToM: number; dischargeCoefficient: number; standardUncertainty: number }[]): uPlot {
-  const rows = bands.map((b) => ({ h: (b.headFromM + b.headToM) / 2, cd: b.dischargeCoefficient, u: b.standardUncertainty })).sort((a, b) => a.h - b.h);
+export function headBandChart(
+  el: HTMLElement,
+  bands: {
+    headFromM: number;
+    headToM: number;
+    dischargeCoefficient: number;
+    standardUncertainty: number;
+  }[],
+): uPlot {
+  const rows = bands
+    .map((b) => ({
+      h: (b.headFromM + b.headToM) / 2,
+      cd: b.dischargeCoefficient,
+      u: b.standardUncertainty,
+    }))
+    .sort((a, b) => a.h - b.h);
   const x = rows.map((r) => r.h);
   const cd = rows.map((r) => r.cd);
   const lo = rows.map((r) => r.cd - 2 * r.u);
@@ -262,11 +352,23 @@ export function headBandChart(el: HTMLElement, bands: { headFromM: number; headT
     {
       width: widthOf(el),
       height: 240,
-      scales: { x: { time: false, range: [x[0] - xpad, x[x.length - 1] + xpad] }, y: { range: [Math.min(...all) - pad, Math.max(...all) + pad] } },
-      axes: [axis('head over the outlet, middle of the band (m)'), axis('discharge coefficient Cd (–)')],
+      scales: {
+        x: { time: false, range: [x[0] - xpad, x[x.length - 1] + xpad] },
+        y: { range: [Math.min(...all) - pad, Math.max(...all) + pad] },
+      },
+      axes: [
+        axis('head over the outlet, middle of the band (m)'),
+        axis('discharge coefficient Cd (–)'),
+      ],
       series: [
         { label: 'head (m)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) },
-        { label: 'Cd in the band', stroke: COLOURS.fitted, width: 0, points: { show: true, size: 8, stroke: COLOURS.fitted, fill: COLOURS.fitted }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+        {
+          label: 'Cd in the band',
+          stroke: COLOURS.fitted,
+          width: 0,
+          points: { show: true, size: 8, stroke: COLOURS.fitted, fill: COLOURS.fitted },
+          value: (_u, v) => (v === null ? '—' : v.toFixed(4)),
+        },
       ],
       plugins: [whiskers(lo, hi, () => COLOURS.fitted)],
     },
@@ -289,18 +391,29 @@ export interface HistoryPoint {
  * and draft fits in their own series; maintenance as vertical marks; the action threshold and a
  * baseline as horizontal lines when the service gives them.
  */
-export function historyChart(el: HTMLElement, points: HistoryPoint[], events: { atS: number; kind: string }[], lines: { threshold: number | null; baseline: number | null }): uPlot {
+export function historyChart(
+  el: HTMLElement,
+  points: HistoryPoint[],
+  events: { atS: number; kind: string }[],
+  lines: { threshold: number | null; baseline: number | null },
+): uPlot {
   const pts = [...points].sort((a, b) => a.atS - b.atS);
   const x = pts.map((p) => p.atS);
   const approved = pts.map((p) => (p.status === 'approved' ? p.cd : null));
   const draft = pts.map((p) => (p.status === 'draft' ? p.cd : null));
   const lo = pts.map((p) => (p.status === 'rejected' ? null : p.cd - p.expanded));
   const hi = pts.map((p) => (p.status === 'rejected' ? null : p.cd + p.expanded));
-  const ys = [...lo, ...hi, lines.threshold, lines.baseline].filter((v): v is number => v !== null && Number.isFinite(v));
-  const ymin = Math.min(...ys), ymax = Math.max(...ys);
+  const ys = [...lo, ...hi, lines.threshold, lines.baseline].filter(
+    (v): v is number => v !== null && Number.isFinite(v),
+  );
+  const ymin = Math.min(...ys),
+    ymax = Math.max(...ys);
   const pad = (ymax - ymin) * 0.15 || 0.02;
   const span = x.length > 1 ? x[x.length - 1] - x[0] : 86400 * 30;
-  const xr: [number, number] = [Math.min(x[0], ...events.map((e) => e.atS)) - span * 0.08, Math.max(x[x.length - 1], ...events.map((e) => e.atS)) + span * 0.08];
+  const xr: [number, number] = [
+    Math.min(x[0], ...events.map((e) => e.atS)) - span * 0.08,
+    Math.max(x[x.length - 1], ...events.map((e) => e.atS)) + span * 0.08,
+  ];
   const overlay: uPlot.Plugin = {
     hooks: {
       drawClear: [
@@ -321,7 +434,10 @@ export function historyChart(el: HTMLElement, points: HistoryPoint[], events: { 
             ctx.font = `${11 * devicePixelRatio}px system-ui, sans-serif`;
             ctx.fillText(e.kind, px + 4, top + 14 * devicePixelRatio);
           }
-          for (const [v, colour, label] of [[lines.threshold, COLOURS.threshold, 'action threshold'], [lines.baseline, COLOURS.approved, 'baseline']] as const) {
+          for (const [v, colour, label] of [
+            [lines.threshold, COLOURS.threshold, 'action threshold'],
+            [lines.baseline, COLOURS.approved, 'baseline'],
+          ] as const) {
             if (v === null) continue;
             const py = u.valToPos(v, 'y', true);
             ctx.strokeStyle = colour;
@@ -346,10 +462,25 @@ export function historyChart(el: HTMLElement, points: HistoryPoint[], events: { 
       axes: [axis('date of the test'), axis('discharge coefficient Cd (–)')],
       series: [
         { label: 'date' },
-        { label: 'draft (not yet reviewed)', stroke: COLOURS.draft, width: 0, points: { show: true, size: 9, stroke: COLOURS.draft, fill: '#fff' }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
-        { label: 'approved', stroke: COLOURS.approved, width: 0, points: { show: true, size: 9, stroke: COLOURS.approved, fill: COLOURS.approved }, value: (_u, v) => (v === null ? '—' : v.toFixed(4)) },
+        {
+          label: 'draft (not yet reviewed)',
+          stroke: COLOURS.draft,
+          width: 0,
+          points: { show: true, size: 9, stroke: COLOURS.draft, fill: '#fff' },
+          value: (_u, v) => (v === null ? '—' : v.toFixed(4)),
+        },
+        {
+          label: 'approved',
+          stroke: COLOURS.approved,
+          width: 0,
+          points: { show: true, size: 9, stroke: COLOURS.approved, fill: COLOURS.approved },
+          value: (_u, v) => (v === null ? '—' : v.toFixed(4)),
+        },
       ],
-      plugins: [overlay, whiskers(lo, hi, (i) => (pts[i].status === 'approved' ? COLOURS.approved : COLOURS.draft))],
+      plugins: [
+        overlay,
+        whiskers(lo, hi, (i) => (pts[i].status === 'approved' ? COLOURS.approved : COLOURS.draft)),
+      ],
     },
     // drafts first, so an approved point on the same day is drawn on top
     [x, draft, approved] as uPlot.AlignedData,

@@ -43,12 +43,14 @@ export function decimate(t: ArrayLike<number>, y: ArrayLike<number>, maxPoints: 
       for (let k = 0; k < buckets; k++) {
         const lo = a + Math.floor((k * len) / buckets);
         const hi = a + Math.floor(((k + 1) * len) / buckets);
-        let iMin = lo, iMax = lo;
+        let iMin = lo,
+          iMax = lo;
         for (let i = lo; i < hi; i++) {
           if (y[i] < y[iMin]) iMin = i;
           if (y[i] > y[iMax]) iMax = i;
         }
-        const first = Math.min(iMin, iMax), second = Math.max(iMin, iMax);
+        const first = Math.min(iMin, iMax),
+          second = Math.max(iMin, iMax);
         out.x.push(t[first]);
         out.y.push(y[first]);
         if (second !== first) {

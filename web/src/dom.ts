@@ -5,7 +5,11 @@
 type Child = Node | string | number | null | undefined | false;
 type Attrs = Record<string, string | number | boolean | null | undefined | ((e: Event) => void)>;
 
-export function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = {}, ...children: (Child | Child[])[]): HTMLElementTagNameMap[K] {
+export function h<K extends keyof HTMLElementTagNameMap>(
+  tag: K,
+  attrs: Attrs = {},
+  ...children: (Child | Child[])[]
+): HTMLElementTagNameMap[K] {
   const el = document.createElement(tag);
   for (const [k, v] of Object.entries(attrs)) {
     if (v === null || v === undefined || v === false) continue;
@@ -21,12 +25,18 @@ export function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = 
 export function append(el: Node, children: (Child | Child[])[]): void {
   for (const c of children.flat()) {
     if (c === null || c === undefined || c === false) continue;
-    el.appendChild(typeof c === 'string' || typeof c === 'number' ? document.createTextNode(String(c)) : c);
+    el.appendChild(
+      typeof c === 'string' || typeof c === 'number' ? document.createTextNode(String(c)) : c,
+    );
   }
 }
 
 const SVG_NS = 'http://www.w3.org/2000/svg';
-export function svg(tag: string, attrs: Record<string, string | number> = {}, ...children: (SVGElement | string)[]): SVGElement {
+export function svg(
+  tag: string,
+  attrs: Record<string, string | number> = {},
+  ...children: (SVGElement | string)[]
+): SVGElement {
   const el = document.createElementNS(SVG_NS, tag);
   for (const [k, v] of Object.entries(attrs)) el.setAttribute(k, String(v));
   for (const c of children) el.appendChild(typeof c === 'string' ? document.createTextNode(c) : c);
@@ -38,19 +48,46 @@ export function clear(el: Element): void {
 }
 
 /** A table from a header row and rows of cells. */
-export function table(caption: string | null, head: string[], rows: Child[][], cls = ''): HTMLTableElement {
+export function table(
+  caption: string | null,
+  head: string[],
+  rows: Child[][],
+  cls = '',
+): HTMLTableElement {
   return h(
     'table',
     { class: cls },
     caption ? h('caption', {}, caption) : null,
-    h('thead', {}, h('tr', {}, head.map((t) => h('th', { scope: 'col' }, t)))),
-    h('tbody', {}, rows.map((r) => h('tr', {}, r.map((c) => h('td', {}, c))))),
+    h(
+      'thead',
+      {},
+      h(
+        'tr',
+        {},
+        head.map((t) => h('th', { scope: 'col' }, t)),
+      ),
+    ),
+    h(
+      'tbody',
+      {},
+      rows.map((r) =>
+        h(
+          'tr',
+          {},
+          r.map((c) => h('td', {}, c)),
+        ),
+      ),
+    ),
   );
 }
 
 /** A labelled form control: the label is tied to the control by id (screen readers, clicks). */
 let seq = 0;
-export function field(label: string, control: HTMLInputElement | HTMLSelectElement | HTMLTextAreaElement, hint?: string): HTMLElement {
+export function field(
+  label: string,
+  control: HTMLInputElement | HTMLSelectElement | HTMLTextAreaElement,
+  hint?: string,
+): HTMLElement {
   if (!control.id) control.id = `f${++seq}`;
   const hintEl = hint ? h('span', { class: 'hint', id: `${control.id}-hint` }, hint) : null;
   if (hintEl) control.setAttribute('aria-describedby', hintEl.id);
@@ -59,11 +96,16 @@ export function field(label: string, control: HTMLInputElement | HTMLSelectEleme
 
 export function select(name: string, options: [string, string][], value = ''): HTMLSelectElement {
   const s = h('select', { name });
-  for (const [v, text] of options) s.appendChild(h('option', { value: v, selected: v === value }, text));
+  for (const [v, text] of options)
+    s.appendChild(h('option', { value: v, selected: v === value }, text));
   s.value = value;
   return s;
 }
 
 export function notice(kind: 'error' | 'info' | 'caution', ...children: Child[]): HTMLElement {
-  return h('div', { class: `notice notice-${kind}`, role: kind === 'error' ? 'alert' : 'note' }, ...children);
+  return h(
+    'div',
+    { class: `notice notice-${kind}`, role: kind === 'error' ? 'alert' : 'note' },
+    ...children,
+  );
 }

@@ -5,10 +5,29 @@ export function num(x: number | null | undefined, digits = 3): string {
   const a = Math.abs(x);
   if (a !== 0 && (a < 1e-3 || a >= 1e6)) {
     const [m, e] = x.toExponential(digits - 1).split('e');
-    const sup: Record<string, string> = { '-': '⁻', '0': '⁰', '1': '¹', '2': '²', '3': '³', '4': '⁴', '5': '⁵', '6': '⁶', '7': '⁷', '8': '⁸', '9': '⁹' };
-    return `${m} × 10${e.replace('+', '').split('').map((c) => sup[c] ?? c).join('')}`;
+    const sup: Record<string, string> = {
+      '-': '⁻',
+      '0': '⁰',
+      '1': '¹',
+      '2': '²',
+      '3': '³',
+      '4': '⁴',
+      '5': '⁵',
+      '6': '⁶',
+      '7': '⁷',
+      '8': '⁸',
+      '9': '⁹',
+    };
+    return `${m} × 10${e
+      .replace('+', '')
+      .split('')
+      .map((c) => sup[c] ?? c)
+      .join('')}`;
   }
-  return x.toLocaleString('en-GB', { maximumSignificantDigits: Math.max(digits, 1), useGrouping: false });
+  return x.toLocaleString('en-GB', {
+    maximumSignificantDigits: Math.max(digits, 1),
+    useGrouping: false,
+  });
 }
 
 /** Digits after the point so the uncertainty shows two significant figures. */
@@ -18,9 +37,14 @@ export function decimalsFor(u: number): number {
 }
 
 /** "0.6120 ± 0.0055" with the value rounded to the uncertainty's last digit. */
-export function plusMinus(value: number | null | undefined, u: number | null | undefined, unit = ''): string {
+export function plusMinus(
+  value: number | null | undefined,
+  u: number | null | undefined,
+  unit = '',
+): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '—';
-  if (u === null || u === undefined || !Number.isFinite(u)) return `${num(value, 4)}${unit ? ' ' + unit : ''}`;
+  if (u === null || u === undefined || !Number.isFinite(u))
+    return `${num(value, 4)}${unit ? ' ' + unit : ''}`;
   const d = decimalsFor(u);
   return `${value.toFixed(d)} ± ${u.toFixed(d)}${unit ? ' ' + unit : ''}`;
 }
@@ -28,7 +52,9 @@ export function plusMinus(value: number | null | undefined, u: number | null | u
 /** Areas are small: m² in scientific form reads badly, so mm². */
 export function areaMm2(m2: number | null | undefined, u?: number | null): string {
   if (m2 === null || m2 === undefined) return '—';
-  return u === undefined ? `${num(m2 * 1e6, 5)} mm²` : plusMinus(m2 * 1e6, u === null ? null : u * 1e6, 'mm²');
+  return u === undefined
+    ? `${num(m2 * 1e6, 5)} mm²`
+    : plusMinus(m2 * 1e6, u === null ? null : u * 1e6, 'mm²');
 }
 
 export function metres(m: number | null | undefined, digits = 3): string {
@@ -76,9 +102,17 @@ const PARAM_WORDS: Record<string, string> = {
 export const paramName = (n: string) => PARAM_WORDS[n] ?? n;
 
 /** The engine's sentences sometimes name parameters by their keys: put the words in. */
-export const inWords = (message: string) => message.replace(/\b(effectiveAreaM2|initialReadingM|sensorZeroElevationM|inflowM3S|headExponent)\b/g, (k) => PARAM_WORDS[k].replace(/^./, (c) => c.toLowerCase()));
+export const inWords = (message: string) =>
+  message.replace(
+    /\b(effectiveAreaM2|initialReadingM|sensorZeroElevationM|inflowM3S|headExponent)\b/g,
+    (k) => PARAM_WORDS[k].replace(/^./, (c) => c.toLowerCase()),
+  );
 
-const TERM_WORDS: Record<string, string> = { inflow: 'steady inflow', datum: 'sensor zero', exponent: 'head exponent' };
+const TERM_WORDS: Record<string, string> = {
+  inflow: 'steady inflow',
+  datum: 'sensor zero',
+  exponent: 'head exponent',
+};
 export const termName = (t: string) => TERM_WORDS[t] ?? t;
 
 const SHAPE_WORDS: Record<string, string> = {
@@ -100,4 +134,5 @@ const OUTLET_WORDS: Record<string, string> = {
   valve: 'valve',
   other: 'other',
 };
-export const outletName = (k: string | null | undefined) => (k ? OUTLET_WORDS[k] ?? k : 'not stated');
+export const outletName = (k: string | null | undefined) =>
+  k ? (OUTLET_WORDS[k] ?? k) : 'not stated';

@@ -62,7 +62,11 @@ function header(): void {
     header();
     void show();
   });
-  who.append(h('span', { class: 'who-name' }, user.name), h('span', { class: `role role-${user.role}` }, user.role), out);
+  who.append(
+    h('span', { class: 'who-name' }, user.name),
+    h('span', { class: `role role-${user.role}` }, user.role),
+    out,
+  );
 }
 
 async function show(): Promise<void> {
@@ -100,7 +104,10 @@ async function show(): Promise<void> {
         return;
       }
     }
-    holder.append(h('h1', { tabindex: -1 }, 'Page not found'), h('p', {}, h('a', { href: '#/' }, 'Back to the fleet')));
+    holder.append(
+      h('h1', { tabindex: -1 }, 'Page not found'),
+      h('p', {}, h('a', { href: '#/' }, 'Back to the fleet')),
+    );
   } catch (e) {
     if (!current()) return;
     if (e instanceof ApiError && e.status === 401) {
@@ -128,7 +135,11 @@ async function demoBanner(): Promise<void> {
   try {
     const health = await api<{ demo?: boolean }>('GET', '/api/health');
     if (!health.demo) return;
-    const banner = h('div', { class: 'demo-banner', role: 'note' }, 'Demo data: every vessel, test and person here is invented (the fictional Kestrel Fen site). Do not use it for a real site.');
+    const banner = h(
+      'div',
+      { class: 'demo-banner', role: 'note' },
+      'Demo data: every vessel, test and person here is invented (the fictional Kestrel Fen site). Do not use it for a real site.',
+    );
     document.querySelector('header.bar')?.after(banner);
   } catch {
     // no banner when the health check cannot be read; the pages say what failed

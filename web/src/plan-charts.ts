@@ -50,18 +50,38 @@ function marker(getX: () => number | null, colour: string, label: string): (u: u
   };
 }
 
-export function planChart(el: HTMLElement, curve: { timeS: number[]; levelM: number[]; outflowLS: number[] }): uPlot {
+export function planChart(
+  el: HTMLElement,
+  curve: { timeS: number[]; levelM: number[]; outflowLS: number[] },
+): uPlot {
   const height = 300;
   const u = new uPlot(
     {
       width: widthOf(el),
       height,
       scales: { x: { time: false }, m: {}, ls: {} },
-      axes: [axis('time after the valve opens (min)', { values: minutes }), axis('level (m)', { scale: 'm' }), axis('outflow (L/s)', { scale: 'ls', side: 1, grid: { show: false } })],
+      axes: [
+        axis('time after the valve opens (min)', { values: minutes }),
+        axis('level (m)', { scale: 'm' }),
+        axis('outflow (L/s)', { scale: 'ls', side: 1, grid: { show: false } }),
+      ],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
-        { label: 'predicted level (m)', scale: 'm', stroke: COLOURS.level, width: 2, value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) },
-        { label: 'predicted outflow (L/s)', scale: 'ls', stroke: COLOURS.fitted, width: 2, dash: [8, 4], value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} L/s`) },
+        {
+          label: 'predicted level (m)',
+          scale: 'm',
+          stroke: COLOURS.level,
+          width: 2,
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`),
+        },
+        {
+          label: 'predicted outflow (L/s)',
+          scale: 'ls',
+          stroke: COLOURS.fitted,
+          width: 2,
+          dash: [8, 4],
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(2)} L/s`),
+        },
       ],
     },
     [curve.timeS, curve.levelM, curve.outflowLS],
@@ -72,7 +92,11 @@ export function planChart(el: HTMLElement, curve: { timeS: number[]; levelM: num
 }
 
 export interface LiveChart {
-  update(readings: { timeS: number[]; levelM: number[] }, fitted: { timeS: number[]; levelM: number[] } | null, openingS: number | null): void;
+  update(
+    readings: { timeS: number[]; levelM: number[] },
+    fitted: { timeS: number[]; levelM: number[] } | null,
+    openingS: number | null,
+  ): void;
 }
 
 export function liveChart(el: HTMLElement): LiveChart {
@@ -83,7 +107,10 @@ export function liveChart(el: HTMLElement): LiveChart {
       width: widthOf(el),
       height,
       scales: { x: { time: false } },
-      axes: [axis('time from the start of the log (min)', { values: minutes }), axis('level above the sensor zero (m)')],
+      axes: [
+        axis('time from the start of the log (min)', { values: minutes }),
+        axis('level above the sensor zero (m)'),
+      ],
       series: [
         { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
         { label: 'readings (m)', stroke: COLOURS.level, width: 1.5, spanGaps: true },
@@ -101,9 +128,15 @@ export function liveChart(el: HTMLElement): LiveChart {
       const r = decimate(readings.timeS, readings.levelM, Math.max(1200, widthOf(el) * 2));
       // one x for both series: the readings' times and the fitted curve's, each with nulls where the other has points
       const points: [number, number | null, number | null][] = r.x.map((t, i) => [t, r.y[i], null]);
-      if (fitted) for (let i = 0; i < fitted.timeS.length; i++) points.push([fitted.timeS[i], null, fitted.levelM[i]]);
+      if (fitted)
+        for (let i = 0; i < fitted.timeS.length; i++)
+          points.push([fitted.timeS[i], null, fitted.levelM[i]]);
       points.sort((a, b) => a[0] - b[0]);
-      u.setData([points.map((p) => p[0]), points.map((p) => p[1]), points.map((p) => p[2])] as uPlot.AlignedData);
+      u.setData([
+        points.map((p) => p[0]),
+        points.map((p) => p[1]),
+        points.map((p) => p[2]),
+      ] as uPlot.AlignedData);
     },
   };
 }
@@ -115,7 +148,10 @@ export interface NarrowingPoint {
 }
 
 export interface NarrowingChart {
-  update(points: NarrowingPoint[], target: { relative: number; coverageFactor: number } | null): void;
+  update(
+    points: NarrowingPoint[],
+    target: { relative: number; coverageFactor: number } | null,
+  ): void;
 }
 
 /**
@@ -130,7 +166,10 @@ export function narrowingChart(el: HTMLElement, label: string, digits: number): 
       width: widthOf(el),
       height,
       scales: { x: { time: false } },
-      axes: [axis('time since the live test was opened (s)'), axis(label, { size: 70, values: (_u, t) => t.map((v) => v.toPrecision(digits)) })],
+      axes: [
+        axis('time since the live test was opened (s)'),
+        axis(label, { size: 70, values: (_u, t) => t.map((v) => v.toPrecision(digits)) }),
+      ],
       series: [
         { label: 'since opening (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
         { label, stroke: COLOURS.fitted, width: 2, points: { show: true, size: 5 }, value: fmt },
@@ -148,13 +187,23 @@ export function narrowingChart(el: HTMLElement, label: string, digits: number): 
   return {
     update(points, target) {
       const last = [...points].reverse().find((p) => p.value !== null);
-      const hi = last && target ? last.value! * (1 + target.coverageFactor * target.relative) : null;
-      const lo = last && target ? last.value! * (1 - target.coverageFactor * target.relative) : null;
+      const hi =
+        last && target ? last.value! * (1 + target.coverageFactor * target.relative) : null;
+      const lo =
+        last && target ? last.value! * (1 - target.coverageFactor * target.relative) : null;
       u.setData([
         points.map((p) => p.elapsedS),
         points.map((p) => p.value),
-        points.map((p) => (p.value === null || p.expandedUncertainty === null ? null : p.value + p.expandedUncertainty)),
-        points.map((p) => (p.value === null || p.expandedUncertainty === null ? null : p.value - p.expandedUncertainty)),
+        points.map((p) =>
+          p.value === null || p.expandedUncertainty === null
+            ? null
+            : p.value + p.expandedUncertainty,
+        ),
+        points.map((p) =>
+          p.value === null || p.expandedUncertainty === null
+            ? null
+            : p.value - p.expandedUncertainty,
+        ),
         points.map(() => hi),
         points.map(() => lo),
       ] as uPlot.AlignedData);

@@ -13,13 +13,68 @@ const UNITS = ['m', 'cm', 'mm', 'ft', 'in', 'kPa', 'Pa', 'bar', 'mbar', 'psi', '
 export function readingForm(initial: Settings = {}): ReadingForm {
   const timeColumn = select('timeColumn', [['', 'as detected']], initial.timeColumn ?? '');
   const levelColumn = select('levelColumn', [['', 'as detected']], initial.levelColumn ?? '');
-  const unit = h('input', { type: 'text', name: 'unit', list: 'unit-list', value: initial.unit ?? '', placeholder: 'as detected', autocomplete: 'off', size: 8 });
-  const units = h('datalist', { id: 'unit-list' }, UNITS.map((u) => h('option', { value: u })));
-  const quantity = select('quantity', [['', 'as detected'], ['level', 'level'], ['gauge-pressure', 'gauge pressure (vented sensor)'], ['absolute-pressure', 'absolute pressure (needs a barometric log)'], ['distance-from-top', 'distance from the top (radar, ultrasonic)']], initial.quantity ?? '');
-  const dateOrder = select('dateOrder', [['', 'as detected'], ['dmy', 'day / month / year'], ['mdy', 'month / day / year'], ['ymd', 'year / month / day']], initial.dateOrder ?? '');
-  const tz = h('input', { type: 'text', name: 'tz', value: initial.tz ?? '', placeholder: 'UTC unless stated, e.g. Europe/Lisbon', autocomplete: 'off' });
-  const delimiter = select('delimiter', [['', 'as detected'], [',', 'comma ,'], [';', 'semicolon ;'], ['tab', 'tab'], ['|', 'pipe |']], initial.delimiter ?? '');
-  const decimal = select('decimal', [['', 'as detected'], ['.', 'point 1.5'], [',', 'comma 1,5']], initial.decimal ?? '');
+  const unit = h('input', {
+    type: 'text',
+    name: 'unit',
+    list: 'unit-list',
+    value: initial.unit ?? '',
+    placeholder: 'as detected',
+    autocomplete: 'off',
+    size: 8,
+  });
+  const units = h(
+    'datalist',
+    { id: 'unit-list' },
+    UNITS.map((u) => h('option', { value: u })),
+  );
+  const quantity = select(
+    'quantity',
+    [
+      ['', 'as detected'],
+      ['level', 'level'],
+      ['gauge-pressure', 'gauge pressure (vented sensor)'],
+      ['absolute-pressure', 'absolute pressure (needs a barometric log)'],
+      ['distance-from-top', 'distance from the top (radar, ultrasonic)'],
+    ],
+    initial.quantity ?? '',
+  );
+  const dateOrder = select(
+    'dateOrder',
+    [
+      ['', 'as detected'],
+      ['dmy', 'day / month / year'],
+      ['mdy', 'month / day / year'],
+      ['ymd', 'year / month / day'],
+    ],
+    initial.dateOrder ?? '',
+  );
+  const tz = h('input', {
+    type: 'text',
+    name: 'tz',
+    value: initial.tz ?? '',
+    placeholder: 'UTC unless stated, e.g. Europe/Lisbon',
+    autocomplete: 'off',
+  });
+  const delimiter = select(
+    'delimiter',
+    [
+      ['', 'as detected'],
+      [',', 'comma ,'],
+      [';', 'semicolon ;'],
+      ['tab', 'tab'],
+      ['|', 'pipe |'],
+    ],
+    initial.delimiter ?? '',
+  );
+  const decimal = select(
+    'decimal',
+    [
+      ['', 'as detected'],
+      ['.', 'point 1.5'],
+      [',', 'comma 1,5'],
+    ],
+    initial.decimal ?? '',
+  );
   const text = (name: string, value: string | undefined, placeholder: string) =>
     h('input', { type: 'text', name, value: value ?? '', placeholder, autocomplete: 'off' });
   const levelTag = text('levelTag', initial.levelTag, 'files with one row per time, tag and value');
@@ -29,7 +84,10 @@ export function readingForm(initial: Settings = {}): ReadingForm {
   const setColumns = (headers: string[]) => {
     for (const s of [timeColumn, levelColumn]) {
       const keep = s.value;
-      s.replaceChildren(h('option', { value: '' }, 'as detected'), ...headers.map((x) => h('option', { value: x }, x)));
+      s.replaceChildren(
+        h('option', { value: '' }, 'as detected'),
+        ...headers.map((x) => h('option', { value: x }, x)),
+      );
       if (keep && !headers.includes(keep)) s.appendChild(h('option', { value: keep }, keep));
       s.value = keep;
     }
@@ -40,7 +98,11 @@ export function readingForm(initial: Settings = {}): ReadingForm {
     'fieldset',
     { class: 'reading' },
     h('legend', {}, 'How to read the file'),
-    h('p', { class: 'hint' }, 'Leave a setting "as detected" unless the preview shows it was read wrongly.'),
+    h(
+      'p',
+      { class: 'hint' },
+      'Leave a setting "as detected" unless the preview shows it was read wrongly.',
+    ),
     h(
       'div',
       { class: 'grid' },
@@ -88,14 +150,52 @@ export function modelForm(initial: Settings = {}, datumRequired = false): ModelF
   const box = (name: string, label: string, hint: string, checked: boolean, locked = false) => {
     const input = h('input', { type: 'checkbox', name, checked, disabled: locked });
     input.id = `opt-${name}`;
-    return { input, el: h('div', { class: 'check' }, input, h('label', { for: input.id }, label), h('span', { class: 'hint' }, hint)) };
+    return {
+      input,
+      el: h(
+        'div',
+        { class: 'check' },
+        input,
+        h('label', { for: input.id }, label),
+        h('span', { class: 'hint' }, hint),
+      ),
+    };
   };
-  const inflow = box('fitInflow', 'Fit a steady inflow', 'a passing inlet valve or a second leak', !!initial.fitInflow);
-  const datum = box('fitDatum', 'Fit the sensor zero', datumRequired ? 'required: the vessel file gives no sensor zero' : 'when the sensor height is not known well', datumRequired || !!initial.fitDatum, datumRequired);
-  const exponent = box('fitExponent', 'Fit the head exponent n', '0.5 for an orifice; free it to test the outflow law', !!initial.fitExponent);
+  const inflow = box(
+    'fitInflow',
+    'Fit a steady inflow',
+    'a passing inlet valve or a second leak',
+    !!initial.fitInflow,
+  );
+  const datum = box(
+    'fitDatum',
+    'Fit the sensor zero',
+    datumRequired
+      ? 'required: the vessel file gives no sensor zero'
+      : 'when the sensor height is not known well',
+    datumRequired || !!initial.fitDatum,
+    datumRequired,
+  );
+  const exponent = box(
+    'fitExponent',
+    'Fit the head exponent n',
+    '0.5 for an orifice; free it to test the outflow law',
+    !!initial.fitExponent,
+  );
   return {
-    el: h('fieldset', { class: 'model' }, h('legend', {}, 'Model'), inflow.el, datum.el, exponent.el),
-    values: () => ({ fitInflow: inflow.input.checked, fitDatum: datum.input.checked, fitExponent: exponent.input.checked }),
+    el: h(
+      'fieldset',
+      { class: 'model' },
+      h('legend', {}, 'Model'),
+      inflow.el,
+      datum.el,
+      exponent.el,
+    ),
+    values: () => ({
+      fitInflow: inflow.input.checked,
+      fitDatum: datum.input.checked,
+      fitExponent: exponent.input.checked,
+    }),
   };
 }
 
@@ -110,27 +210,52 @@ export interface WindowForm {
   detected(yes: boolean): void;
 }
 
-export function windowForm(clock: (s: number) => string | null, autoLabel = 'Detected window'): WindowForm {
-  const start = h('input', { type: 'number', name: 'windowStart', step: 'any', min: 0, inputmode: 'decimal' });
-  const end = h('input', { type: 'number', name: 'windowEnd', step: 'any', min: 0, inputmode: 'decimal' });
+export function windowForm(
+  clock: (s: number) => string | null,
+  autoLabel = 'Detected window',
+): WindowForm {
+  const start = h('input', {
+    type: 'number',
+    name: 'windowStart',
+    step: 'any',
+    min: 0,
+    inputmode: 'decimal',
+  });
+  const end = h('input', {
+    type: 'number',
+    name: 'windowEnd',
+    step: 'any',
+    min: 0,
+    inputmode: 'decimal',
+  });
   const said = h('p', { class: 'hint', 'aria-live': 'polite' });
   let byPerson = false;
   let auto: [number, number] | null = null;
   const listeners: ((a: number, b: number) => void)[] = [];
-  const reset = h('button', { type: 'button', class: 'quiet' }, autoLabel === 'Detected window' ? 'Use the detected window' : 'Back to this fit’s window');
+  const reset = h(
+    'button',
+    { type: 'button', class: 'quiet' },
+    autoLabel === 'Detected window' ? 'Use the detected window' : 'Back to this fit’s window',
+  );
   const describe = () => {
-    const a = Number(start.value), b = Number(end.value);
+    const a = Number(start.value),
+      b = Number(end.value);
     if (start.value === '' || end.value === '' || !(b > a)) {
-      said.textContent = start.value === '' && end.value === '' ? 'No window stated: the service chooses it.' : 'Give a start and a later end.';
+      said.textContent =
+        start.value === '' && end.value === ''
+          ? 'No window stated: the service chooses it.'
+          : 'Give a start and a later end.';
       return;
     }
-    const ca = clock(a), cb = clock(b);
+    const ca = clock(a),
+      cb = clock(b);
     said.textContent = `${byPerson ? 'Your window' : autoLabel}: ${a.toFixed(1)} s to ${b.toFixed(1)} s from the first reading (${(b - a).toFixed(1)} s long)${ca && cb ? `, ${ca} to ${cb}` : ''}.`;
   };
   const changed = () => {
     byPerson = true;
     describe();
-    const a = Number(start.value), b = Number(end.value);
+    const a = Number(start.value),
+      b = Number(end.value);
     if (Number.isFinite(a) && Number.isFinite(b) && b > a) listeners.forEach((f) => f(a, b));
   };
   start.addEventListener('change', changed);
@@ -141,7 +266,24 @@ export function windowForm(clock: (s: number) => string | null, autoLabel = 'Det
     listeners.forEach((f) => f(auto![0], auto![1]));
   });
   const api: WindowForm = {
-    el: h('div', { class: 'window-fields' }, h('div', { class: 'field' }, h('label', { for: 'win-start' }, 'Window start (s from the first reading)'), start), h('div', { class: 'field' }, h('label', { for: 'win-end' }, 'Window end (s from the first reading)'), end), reset, said),
+    el: h(
+      'div',
+      { class: 'window-fields' },
+      h(
+        'div',
+        { class: 'field' },
+        h('label', { for: 'win-start' }, 'Window start (s from the first reading)'),
+        start,
+      ),
+      h(
+        'div',
+        { class: 'field' },
+        h('label', { for: 'win-end' }, 'Window end (s from the first reading)'),
+        end,
+      ),
+      reset,
+      said,
+    ),
     set(a, b, person) {
       if (!person) auto = [a, b];
       byPerson = person;
@@ -149,7 +291,10 @@ export function windowForm(clock: (s: number) => string | null, autoLabel = 'Det
       end.value = b.toFixed(1);
       describe();
     },
-    value: () => (byPerson && Number(end.value) > Number(start.value) ? `${Number(start.value)}..${Number(end.value)}` : undefined),
+    value: () =>
+      byPerson && Number(end.value) > Number(start.value)
+        ? `${Number(start.value)}..${Number(end.value)}`
+        : undefined,
     onChange: (cb) => listeners.push(cb),
     detected(yes) {
       reset.hidden = !yes;

@@ -9,8 +9,17 @@ import uPlot from 'uplot';
 import { COLOURS } from './charts.js';
 
 // The API's shapes, defined once in server/jobs/trend-views.ts (type-only: erased by the bundler)
-export type { PointView as TrendPoint, LineView as TrendLine, EpochView as TrendEpoch, TrendView as FullTrend } from '../../server/jobs/trend-views.js';
-import type { PointView as TrendPoint, EpochView as TrendEpoch, TrendView as FullTrend } from '../../server/jobs/trend-views.js';
+export type {
+  PointView as TrendPoint,
+  LineView as TrendLine,
+  EpochView as TrendEpoch,
+  TrendView as FullTrend,
+} from '../../server/jobs/trend-views.js';
+import type {
+  PointView as TrendPoint,
+  EpochView as TrendEpoch,
+  TrendView as FullTrend,
+} from '../../server/jobs/trend-views.js';
 
 export type TrendQuantity = 'area' | 'cd';
 
@@ -30,7 +39,13 @@ function pick(q: TrendQuantity) {
   return {
     value: (p: TrendPoint) => (q === 'area' ? p.effectiveAreaM2 : p.dischargeCoefficient) * k,
     u: (p: TrendPoint) => (q === 'area' ? p.effectiveAreaU : p.dischargeCoefficientU) * k,
-    band: (e: TrendEpoch) => (q === 'area' ? e.areaBand : e.cdBand).map((b) => ({ x: b.atMs / 1000, v: b.value * k, lo: b.lower * k, hi: b.upper * k })),
+    band: (e: TrendEpoch) =>
+      (q === 'area' ? e.areaBand : e.cdBand).map((b) => ({
+        x: b.atMs / 1000,
+        v: b.value * k,
+        lo: b.lower * k,
+        hi: b.upper * k,
+      })),
     line: (e: TrendEpoch) => (q === 'area' ? e.area : e.cd),
     threshold: (e: TrendEpoch) => (q === 'area' ? e.thresholdM2 : e.thresholdCd),
     scale: k,
@@ -41,13 +56,19 @@ function pick(q: TrendQuantity) {
 
 export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPlot {
   const P = pick(q);
-  const pts = t.epochs.flatMap((e) => e.series.map((p) => ({ p, e }))).sort((a, b) => a.p.testedAtMs - b.p.testedAtMs);
+  const pts = t.epochs
+    .flatMap((e) => e.series.map((p) => ({ p, e })))
+    .sort((a, b) => a.p.testedAtMs - b.p.testedAtMs);
   const x = pts.map(({ p }) => p.testedAtMs / 1000);
   const y = pts.map(({ p }) => P.value(p));
   const lo = pts.map(({ p }) => P.value(p) - 2 * P.u(p));
   const hi = pts.map(({ p }) => P.value(p) + 2 * P.u(p));
-  const steps = new Set(t.epochs.filter((e) => e.step?.flagged && e.step.fitId !== null).map((e) => e.step!.fitId!));
-  const starts = t.epochs.filter((e) => e.startedBy).map((e) => ({ x: e.startedBy!.atMs / 1000, kind: e.startedBy!.kind }));
+  const steps = new Set(
+    t.epochs.filter((e) => e.step?.flagged && e.step.fitId !== null).map((e) => e.step!.fitId!),
+  );
+  const starts = t.epochs
+    .filter((e) => e.startedBy)
+    .map((e) => ({ x: e.startedBy!.atMs / 1000, kind: e.startedBy!.kind }));
   const cur = t.epochs.find((e) => e.current) ?? null;
   const fc = cur?.forecast ?? null;
   const lastX = x.length ? x[x.length - 1] : t.nowMs / 1000;
@@ -55,7 +76,12 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
   const horizon = lastX + 5 * 365.25 * 86400;
   const fcX = fc?.crossingMs && fc.crossingMs / 1000 < horizon ? fc.crossingMs / 1000 : null;
   const fcHi = fc?.upperMs ? Math.min(fc.upperMs / 1000, horizon) : fcX;
-  const xsAll = [...x, ...starts.map((s) => s.x), t.nowMs / 1000, ...(fcX ? [fcX, fcHi ?? fcX] : [])];
+  const xsAll = [
+    ...x,
+    ...starts.map((s) => s.x),
+    t.nowMs / 1000,
+    ...(fcX ? [fcX, fcHi ?? fcX] : []),
+  ];
   const x0 = Math.min(...xsAll);
   const x1 = Math.max(...xsAll);
   const pad = (x1 - x0) * 0.05 || 86400 * 30;
@@ -101,24 +127,32 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
             const label = `forecast crossing ${new Date(fcX * 1000).toISOString().slice(0, 10)}`;
             const tw = ctx.measureText(label).width;
             // left of the line when there is no room to its right; low in the plot, clear of the baseline
-            const lx = px(fcX) + 6 * dpr + tw > left + width ? px(fcX) - 6 * dpr - tw : px(fcX) + 6 * dpr;
+            const lx =
+              px(fcX) + 6 * dpr + tw > left + width ? px(fcX) - 6 * dpr - tw : px(fcX) + 6 * dpr;
             ctx.fillText(label, lx, top + height - 10 * dpr);
           }
           t.epochs.forEach((e, i) => {
             const band = P.band(e);
-            const endX = i + 1 < t.epochs.length && t.epochs[i + 1].startMs ? t.epochs[i + 1].startMs! / 1000 : fcX ?? Math.max(lastX, t.nowMs / 1000);
+            const endX =
+              i + 1 < t.epochs.length && t.epochs[i + 1].startMs
+                ? t.epochs[i + 1].startMs! / 1000
+                : (fcX ?? Math.max(lastX, t.nowMs / 1000));
             const startX = e.startMs ? e.startMs / 1000 : (e.series[0]?.testedAtMs ?? 0) / 1000;
             if (band.length > 1) {
               ctx.fillStyle = TREND.band;
               ctx.beginPath();
-              band.forEach((b, k) => (k ? ctx.lineTo(px(b.x), py(b.hi)) : ctx.moveTo(px(b.x), py(b.hi))));
+              band.forEach((b, k) =>
+                k ? ctx.lineTo(px(b.x), py(b.hi)) : ctx.moveTo(px(b.x), py(b.hi)),
+              );
               for (let k = band.length - 1; k >= 0; k--) ctx.lineTo(px(band[k].x), py(band[k].lo));
               ctx.closePath();
               ctx.fill();
               ctx.strokeStyle = TREND.line;
               ctx.lineWidth = 2 * dpr;
               ctx.beginPath();
-              band.forEach((b, k) => (k ? ctx.lineTo(px(b.x), py(b.v)) : ctx.moveTo(px(b.x), py(b.v))));
+              band.forEach((b, k) =>
+                k ? ctx.lineTo(px(b.x), py(b.v)) : ctx.moveTo(px(b.x), py(b.v)),
+              );
               ctx.stroke();
             }
             const line = P.line(e);
@@ -139,7 +173,11 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
               ctx.setLineDash([]);
               if (e.current) {
                 ctx.fillStyle = colour;
-                ctx.fillText(`${label} ${P.fmt(v)}`, Math.max(px(startX), left) + 6 * dpr, py(v) + (label === 'baseline' ? -5 : 14) * dpr);
+                ctx.fillText(
+                  `${label} ${P.fmt(v)}`,
+                  Math.max(px(startX), left) + 6 * dpr,
+                  py(v) + (label === 'baseline' ? -5 : 14) * dpr,
+                );
               }
             }
           });
@@ -199,14 +237,38 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
     {
       width,
       height: 300,
-      scales: { x: { time: true, range: [x0 - pad, x1 + pad] }, y: { range: [ymin - ypad, ymax + ypad] } },
+      scales: {
+        x: { time: true, range: [x0 - pad, x1 + pad] },
+        y: { range: [ymin - ypad, ymax + ypad] },
+      },
       axes: [
-        { label: 'date of the test', stroke: COLOURS.axis, grid: { stroke: COLOURS.grid, width: 1 }, ticks: { stroke: COLOURS.grid, width: 1 }, font: '12px system-ui, sans-serif', labelFont: '12px system-ui, sans-serif' },
-        { label: P.label, stroke: COLOURS.axis, grid: { stroke: COLOURS.grid, width: 1 }, ticks: { stroke: COLOURS.grid, width: 1 }, font: '12px system-ui, sans-serif', labelFont: '12px system-ui, sans-serif', size: 64 },
+        {
+          label: 'date of the test',
+          stroke: COLOURS.axis,
+          grid: { stroke: COLOURS.grid, width: 1 },
+          ticks: { stroke: COLOURS.grid, width: 1 },
+          font: '12px system-ui, sans-serif',
+          labelFont: '12px system-ui, sans-serif',
+        },
+        {
+          label: P.label,
+          stroke: COLOURS.axis,
+          grid: { stroke: COLOURS.grid, width: 1 },
+          ticks: { stroke: COLOURS.grid, width: 1 },
+          font: '12px system-ui, sans-serif',
+          labelFont: '12px system-ui, sans-serif',
+          size: 64,
+        },
       ],
       series: [
         { label: 'date' },
-        { label: P.label, stroke: TREND.point, width: 0, points: { show: true, size: 8, stroke: TREND.point, fill: '#fff' }, value: (_u, v) => (v === null ? '—' : P.fmt(v)) },
+        {
+          label: P.label,
+          stroke: TREND.point,
+          width: 0,
+          points: { show: true, size: 8, stroke: TREND.point, fill: '#fff' },
+          value: (_u, v) => (v === null ? '—' : P.fmt(v)),
+        },
       ],
       plugins: [overlay],
     },

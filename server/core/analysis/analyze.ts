@@ -45,7 +45,9 @@ export interface PreparedTest {
 export async function expandWorkbook(request: AnalysisRequest): Promise<AnalysisRequest> {
   const sheet = request.settings?.sheet;
   const expand = async (f: RawFile | undefined): Promise<RawFile | undefined> =>
-    f && isZip(f.bytes) ? { bytes: (await workbookAsText(f.bytes, f.fileName, sheet)).bytes, fileName: f.fileName } : f;
+    f && isZip(f.bytes)
+      ? { bytes: (await workbookAsText(f.bytes, f.fileName, sheet)).bytes, fileName: f.fileName }
+      : f;
   if (!isZip(request.log.bytes) && !(request.baro && isZip(request.baro.bytes))) return request;
   const log = (await expand(request.log))!;
   const baro = await expand(request.baro);
@@ -53,7 +55,12 @@ export async function expandWorkbook(request: AnalysisRequest): Promise<Analysis
 }
 
 /** Read the log into SI with the vessel's sensor and fluid (no window yet): the live page draws this as rows arrive. */
-export function readTestSeries(request: AnalysisRequest): { vessel: VesselSpec; series: LevelSeries; density: { value: number; source: string }; gravity: number } {
+export function readTestSeries(request: AnalysisRequest): {
+  vessel: VesselSpec;
+  series: LevelSeries;
+  density: { value: number; source: string };
+  gravity: number;
+} {
   const vesselFile = request.vesselFileName ?? 'vessel';
   const vessel = validateVessel(request.vessel, vesselFile);
   const settings = request.settings ?? {};
@@ -74,7 +81,10 @@ export function readTestSeries(request: AnalysisRequest): { vessel: VesselSpec; 
     baro: request.baro,
     fluidDensityKgM3: 'densityKgM3' in (vessel.fluid ?? {}) ? density.value : undefined,
     // a fluid temperature in the vessel file stands in when the log has no temperature column
-    fallbackDensity: vessel.fluid && 'temperatureC' in vessel.fluid ? { valueKgM3: density.value, source: density.source } : undefined,
+    fallbackDensity:
+      vessel.fluid && 'temperatureC' in vessel.fluid
+        ? { valueKgM3: density.value, source: density.source }
+        : undefined,
     mountElevationM: vessel.sensor?.mountElevationM,
     zeroElevationM: vessel.sensor?.zeroElevationM,
     gravityMS2: gravity,
@@ -88,13 +98,23 @@ export function prepareDrainTest(request: AnalysisRequest): PreparedTest {
   const settings = request.settings ?? {};
   const fromTop = series.columns.some((c) => c.role === 'distance-from-top');
   const knownSensorZeroM = vessel.sensor?.zeroElevationM ?? (fromTop ? 0 : null);
-  const setting: DrainSetting = { shape: makeShape(vessel.shape), outletElevationM: vessel.outlet.elevationM, gravity };
-  const window = settings.window ? parseWindowSetting(settings.window, series.t0EpochMs, settings.tz) : undefined;
+  const setting: DrainSetting = {
+    shape: makeShape(vessel.shape),
+    outletElevationM: vessel.outlet.elevationM,
+    gravity,
+  };
+  const window = settings.window
+    ? parseWindowSetting(settings.window, series.t0EpochMs, settings.tz)
+    : undefined;
   const choice = withFile(request.log.fileName, () =>
     chooseDrainWindow(series, {
-      outletReadingM: knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
+      outletReadingM:
+        knownSensorZeroM === null ? undefined : vessel.outlet.elevationM - knownSensorZeroM,
       // the plan area at a reading (sensor frame), for the still-opening rule's head model
-      areaAtReadingM2: knownSensorZeroM === null ? undefined : (y: number) => setting.shape.areaM2(y + knownSensorZeroM),
+      areaAtReadingM2:
+        knownSensorZeroM === null
+          ? undefined
+          : (y: number) => setting.shape.areaM2(y + knownSensorZeroM),
       window,
     }),
   );
@@ -108,13 +128,20 @@ function withFile<T>(file: string, body: () => T): T {
   } catch (e) {
     if (e instanceof InputError && !e.file) {
       const internal = e.field === 'levelM' || e.field === 'timeS';
-      throw new InputError(e.message, { file, line: e.line, field: internal ? undefined : e.field });
+      throw new InputError(e.message, {
+        file,
+        line: e.line,
+        field: internal ? undefined : e.field,
+      });
     }
     throw e;
   }
 }
 
-export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks = {}): AnalysisOutcome {
+export function analyzeDrainTest(
+  request: AnalysisRequest,
+  hooks: AnalyzeHooks = {},
+): AnalysisOutcome {
   const now = hooks.now ?? (() => 0);
   const t0 = now();
   const prepared = prepareDrainTest(request);
@@ -133,7 +160,11 @@ export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks =
     timeS,
     levelM,
     knownSensorZeroM,
-    terms: { inflow: !!settings.fitInflow, datum: !!settings.fitDatum, exponent: !!settings.fitExponent },
+    terms: {
+      inflow: !!settings.fitInflow,
+      datum: !!settings.fitDatum,
+      exponent: !!settings.fitExponent,
+    },
     outlet: vessel.outlet,
     now,
   });
@@ -143,12 +174,20 @@ export function analyzeDrainTest(request: AnalysisRequest, hooks: AnalyzeHooks =
   const json = fitJson(prepared, fit, { timeS, levelM }, budget);
   // fitMs: solver and uncertainty (covariance, correction, profile interval); diagnosticsMs: the
   // model comparison, head bands and warnings; budgetMs: the uncertainty budget and drift check
-  json.timing = { parseMs: t1 - t0, fitMs: fit.timing.fitMs, diagnosticsMs: fit.timing.diagnosticsMs, budgetMs: t3 - t2 };
+  json.timing = {
+    parseMs: t1 - t0,
+    fitMs: fit.timing.fitMs,
+    diagnosticsMs: fit.timing.diagnosticsMs,
+    budgetMs: t3 - t2,
+  };
   return { detected: detectedSummary(prepared), fit: json };
 }
 
 /** The samples that take part, on the window's clock (t = 0 at the window's start). */
-export function windowSamples(series: LevelSeries, choice: WindowChoice): { timeS: Float64Array; levelM: Float64Array; lines: Int32Array } {
+export function windowSamples(
+  series: LevelSeries,
+  choice: WindowChoice,
+): { timeS: Float64Array; levelM: Float64Array; lines: Int32Array } {
   const { startIndex, endIndex, startS } = choice.window;
   let count = 0;
   for (let i = startIndex; i <= endIndex; i++) count += choice.keep[i];
@@ -181,14 +220,20 @@ export function detectedSummary(p: PreparedTest): Record<string, unknown> {
   };
 }
 
-const iso = (t0: number | null, s: number) => (t0 === null ? null : new Date(t0 + s * 1000).toISOString());
+const iso = (t0: number | null, s: number) =>
+  t0 === null ? null : new Date(t0 + s * 1000).toISOString();
 
 /** JSON cannot hold NaN or ±Infinity: write null. */
 function finite(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }
 
-function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }, budget: UncertaintyBudget): FitJson {
+function fitJson(
+  p: PreparedTest,
+  fit: DrainFitResult,
+  data: { timeS: Float64Array; levelM: Float64Array },
+  budget: UncertaintyBudget,
+): FitJson {
   const { vessel, series, choice } = p;
   const w = choice.window;
   const unc = fit.uncertainty;
@@ -207,24 +252,46 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
   const logPlot = decimateForDrawing(series.timeS, series.levelM, 600);
   const winPlot = decimateForDrawing(data.timeS, data.levelM, 600);
   const fitted = new Float64Array(winPlot.timeS.length);
-  predictReadings(p.setting, fit.variant.solution, fit.variant.theta, Float64Array.from(winPlot.timeS), fitted, null, new Int32Array(0));
+  predictReadings(
+    p.setting,
+    fit.variant.solution,
+    fit.variant.theta,
+    Float64Array.from(winPlot.timeS),
+    fitted,
+    null,
+    new Int32Array(0),
+  );
 
   // Cd·a and Cd are positive: intervals that would reach zero are given on the log scale, and a
   // fit whose interval is wider than its value is flagged first among the warnings.
   // (on the whole budget's intervals: the headline carries the full budget, server/core/budget)
   const bea = budget.effectiveAreaM2;
   const bcd = budget.dischargeCoefficient;
-  const eaCi = positiveInterval(ea.value, bea.combinedStandardUncertainty, bea.coverageFactor, bea.ci95);
-  const cdCi = positiveInterval(cd.value, bcd.combinedStandardUncertainty, bcd.coverageFactor, bcd.ci95);
-  const uncertain = intervalWiderThanValue(ea.value, bea.ci95) || intervalWiderThanValue(cd.value, bcd.ci95);
+  const eaCi = positiveInterval(
+    ea.value,
+    bea.combinedStandardUncertainty,
+    bea.coverageFactor,
+    bea.ci95,
+  );
+  const cdCi = positiveInterval(
+    cd.value,
+    bcd.combinedStandardUncertainty,
+    bcd.coverageFactor,
+    bcd.ci95,
+  );
+  const uncertain =
+    intervalWiderThanValue(ea.value, bea.ci95) || intervalWiderThanValue(cd.value, bcd.ci95);
   const warnings = [
     ...(uncertain
-      ? [{
-          code: 'interval-wider-than-value',
-          message: `the 95 % interval of Cd·a (${bea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
-            'the fit says little about Cd; do not use it without checking the window, the time column and the clock (--tz)',
-          stage: 'fit',
-        }]
+      ? [
+          {
+            code: 'interval-wider-than-value',
+            message:
+              `the 95 % interval of Cd·a (${bea.ci95.map((x) => x.toPrecision(3)).join(' to ')} m² symmetric) is wider than the value itself: ` +
+              'the fit says little about Cd; do not use it without checking the window, the time column and the clock (--tz)',
+            stage: 'fit',
+          },
+        ]
       : []),
     ...series.warnings.map((x) => ({ ...x, stage: 'reading' })),
     ...choice.warnings.map((x) => ({ ...x, stage: 'window' })),
@@ -270,28 +337,48 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       excludedSamples: excluded,
       startTime: iso(series.t0EpochMs, w.startS),
       endTime: iso(series.t0EpochMs, w.endS),
-      chosenBy: p.choice.notes.some((n) => n.code === 'window-chosen-by-user') ? 'by the person' : 'automatically',
+      chosenBy: p.choice.notes.some((n) => n.code === 'window-chosen-by-user')
+        ? 'by the person'
+        : 'automatically',
       trims: choice.trims,
       notes: choice.notes,
     },
     warnings,
     timing: { parseMs: 0, fitMs: 0 },
-    vessel: { name: vessel.name, site: vessel.site ?? null, shape: vessel.shape, fluidDensityKgM3: p.density.value, fluidDensitySource: p.density.source, gravityMS2: p.setting.gravity },
+    vessel: {
+      name: vessel.name,
+      site: vessel.site ?? null,
+      shape: vessel.shape,
+      fluidDensityKgM3: p.density.value,
+      fluidDensitySource: p.density.source,
+      gravityMS2: p.setting.gravity,
+    },
     outlet: { ...vessel.outlet, nominalAreaM2: nominal },
     model: {
       equation: 'A(h)·dh/dt = Q_in − Cd·a·(2·g·H)^n,  H = h + z_sensor − z_outlet',
       description: describeFree(fit),
       terms: fit.variant.terms,
-      solution: fit.variant.solution === 'closed-form' ? 'closed form (constant plan area)' : 'ODE with sensitivity equations (RK4, Hermite output)',
+      solution:
+        fit.variant.solution === 'closed-form'
+          ? 'closed form (constant plan area)'
+          : 'ODE with sensitivity equations (RK4, Hermite output)',
     },
     parameters: fit.parameters.map((q, j) => {
       const col = freeIndex.indexOf(j);
-      const bounds = col >= 0 ? { lower: bound(solverBounds.lower[col]), upper: bound(solverBounds.upper[col]) } : { lower: q.value, upper: q.value };
+      const bounds =
+        col >= 0
+          ? { lower: bound(solverBounds.lower[col]), upper: bound(solverBounds.upper[col]) }
+          : { lower: q.value, upper: q.value };
       return {
         ...q,
         standardUncertainty: q.free ? q.standardUncertainty : null,
         bounds,
-        ...(q.name === 'effectiveAreaM2' && q.ci95 ? { ci95: positiveInterval(q.value, q.standardUncertainty, ea.coverageFactor, q.ci95).ci95 } : {}),
+        ...(q.name === 'effectiveAreaM2' && q.ci95
+          ? {
+              ci95: positiveInterval(q.value, q.standardUncertainty, ea.coverageFactor, q.ci95)
+                .ci95,
+            }
+          : {}),
       };
     }),
     correlations: { parameters: free, matrix },
@@ -305,14 +392,20 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       effectiveSamples: unc.effectiveSamples,
       degreesOfFreedom: unc.degreesOfFreedom,
       coverageFactor: unc.coverageFactor,
-      boreUncertainty: 'bore tolerance as a rectangular distribution, u(d) = T/√3 (JCGM 100:2008, 4.3.7)',
+      boreUncertainty:
+        'bore tolerance as a rectangular distribution, u(d) = T/√3 (JCGM 100:2008, 4.3.7)',
       profile: ea.profile,
     },
     budget,
     modelComparison: fit.comparison,
-    headBands: fit.headBands.map((b) => ({ ...b, dischargeCoefficient: b.effectiveAreaM2 / nominal, standardUncertainty: b.standardUncertainty / nominal })),
+    headBands: fit.headBands.map((b) => ({
+      ...b,
+      dischargeCoefficient: b.effectiveAreaM2 / nominal,
+      standardUncertainty: b.standardUncertainty / nominal,
+    })),
     solver: {
-      method: 'trust-region Levenberg–Marquardt (Moré scaling, QR with column pivoting), exact Jacobian',
+      method:
+        'trust-region Levenberg–Marquardt (Moré scaling, QR with column pivoting), exact Jacobian',
       iterations: fit.solver.iterations,
       evaluations: fit.solver.evaluations,
       jacobianEvaluations: fit.solver.jacobianEvaluations,
@@ -322,17 +415,33 @@ function fitJson(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Arr
       singularValues: Array.from(fit.solver.singularValues),
       sumSquares: fit.solver.sumSquares,
     },
-    read: { columns: series.columns, notes: series.notes, t0: iso(series.t0EpochMs, 0), samples: series.timeS.length },
+    read: {
+      columns: series.columns,
+      notes: series.notes,
+      t0: iso(series.t0EpochMs, 0),
+      samples: series.timeS.length,
+    },
     plot: {
       log: { timeS: logPlot.timeS, levelM: logPlot.values },
-      window: { offsetS: w.startS, timeS: winPlot.timeS, observedM: winPlot.values, fittedM: Array.from(fitted) },
+      window: {
+        offsetS: w.startS,
+        timeS: winPlot.timeS,
+        observedM: winPlot.values,
+        fittedM: Array.from(fitted),
+      },
     },
   };
-  return JSON.parse(JSON.stringify(json, (_k, v) => (typeof v === 'number' ? finite(v) : v))) as FitJson;
+  return JSON.parse(
+    JSON.stringify(json, (_k, v) => (typeof v === 'number' ? finite(v) : v)),
+  ) as FitJson;
 }
 
 function describeFree(fit: DrainFitResult): string {
   const t = fit.variant.terms;
-  const extras = [t.datum && 'sensor datum', t.inflow && 'constant inflow', t.exponent && 'head exponent'].filter(Boolean);
+  const extras = [
+    t.datum && 'sensor datum',
+    t.inflow && 'constant inflow',
+    t.exponent && 'head exponent',
+  ].filter(Boolean);
   return `Cd·a and the initial level${extras.length ? ', ' + extras.join(', ') : ''}; n = ${t.exponent ? 'fitted' : fit.variant.theta[THETA.exponent]}`;
 }

@@ -24,7 +24,10 @@ export const toU = (x: number | null | undefined, u: number | null | undefined):
   if (!u || !Number.isFinite(u) || u <= 0) return sig(x, 6);
   const a = Math.abs(x);
   if (a !== 0 && (a < 1e-3 || a >= 1e5)) {
-    const digits = Math.max(2, Math.min(12, Math.floor(Math.log10(a)) - Math.floor(Math.log10(u)) + 2));
+    const digits = Math.max(
+      2,
+      Math.min(12, Math.floor(Math.log10(a)) - Math.floor(Math.log10(u)) + 2),
+    );
     return x.toExponential(digits - 1);
   }
   return x.toFixed(Math.max(0, Math.min(12, 1 - Math.floor(Math.log10(u)))));

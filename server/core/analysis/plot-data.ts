@@ -2,7 +2,11 @@
  * Points for drawing only (never for fitting): at most `max` points, keeping each bucket's
  * lowest and highest reading so spikes and the window's edges stay visible.
  */
-export function decimateForDrawing(timeS: ArrayLike<number>, values: ArrayLike<number>, max: number): { timeS: number[]; values: number[] } {
+export function decimateForDrawing(
+  timeS: ArrayLike<number>,
+  values: ArrayLike<number>,
+  max: number,
+): { timeS: number[]; values: number[] } {
   const n = timeS.length;
   if (n <= max) return { timeS: Array.from(timeS), values: Array.from(values) };
   const buckets = Math.max(1, Math.floor(max / 2));

@@ -2,7 +2,12 @@ import { tQuantile } from '../stats/index.js';
 import type { HeadBand } from '../fit/head-bands.js';
 import { driftCheck, type DriftCheck } from './drift.js';
 import { budgetInputs, type InputContext, type Source } from './inputs.js';
-import { linearise, parameterSensitivity, type FittedModel, type Linearisation } from './sensitivity.js';
+import {
+  linearise,
+  parameterSensitivity,
+  type FittedModel,
+  type Linearisation,
+} from './sensitivity.js';
 import { budgetTable, type BudgetTable } from './table.js';
 
 /**
@@ -52,7 +57,12 @@ export interface UncertaintyBudget {
   lines: BudgetLine[];
   effectiveAreaM2: CombinedQuantity;
   dischargeCoefficient: CombinedQuantity;
-  typeA: { standardUncertainty: number; ar1StandardUncertainty: number; degreesOfFreedom: number; drift: DriftCheck };
+  typeA: {
+    standardUncertainty: number;
+    ar1StandardUncertainty: number;
+    degreesOfFreedom: number;
+    drift: DriftCheck;
+  };
   notes: string[];
   warnings: { code: string; message: string }[];
   /** The table as printed (same strings in the CLI report, the fit page and the PDF). */
@@ -84,7 +94,16 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
   const cd = cdA / nominal;
   const drift: DriftCheck = lin
     ? driftCheck(lin, req.typeAStandardUncertainty ** 2, req.headBands)
-    : { blocks: 0, jackknifeRatio: null, jackknifeLimit: null, headBandRatio: null, headBandLimit: null, varianceFactor: 1, degreesOfFreedom: null, reason: null };
+    : {
+        blocks: 0,
+        jackknifeRatio: null,
+        jackknifeLimit: null,
+        headBandRatio: null,
+        headBandLimit: null,
+        varianceFactor: 1,
+        degreesOfFreedom: null,
+        reason: null,
+      };
   const uA = req.typeAStandardUncertainty * Math.sqrt(drift.varianceFactor);
   const nuA = drift.degreesOfFreedom ?? req.typeADegreesOfFreedom;
   const lines: BudgetLine[] = [];
@@ -98,7 +117,9 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
     distribution: `Student-t, ν = ${Number(nuA.toPrecision(4))}`,
     degreesOfFreedom: nuA,
     source: 'fit',
-    note: drift.reason ? 'AR(1)-corrected and widened for slow systematic effects (see the warning)' : 'AR(1)-corrected',
+    note: drift.reason
+      ? 'AR(1)-corrected and widened for slow systematic effects (see the warning)'
+      : 'AR(1)-corrected',
     sensitivityEffectiveArea: 1,
     sensitivity: 1 / nominal,
     contribution: uA / nominal,
@@ -116,13 +137,18 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
     } else if (!lin) {
       cA = NaN;
       cCd = NaN;
-      note = 'sensitivity could not be computed: the fitted parameters are outside the model (the fit did not converge)';
+      note =
+        'sensitivity could not be computed: the fitted parameters are outside the model (the fit did not converge)';
     } else if (input.effect.kind === 'per-reading') {
       // independent per-reading errors: the effect on Cd·a is √((JᵀJ)⁻¹_aa) per unit u; inside type A
-      cA = lin.areaColumn >= 0 ? Math.sqrt(lin.inverseNormal[lin.areaColumn * lin.k + lin.areaColumn]) : 0;
+      cA =
+        lin.areaColumn >= 0
+          ? Math.sqrt(lin.inverseNormal[lin.areaColumn * lin.k + lin.areaColumn])
+          : 0;
       cCd = cA / nominal;
       counted = false;
-      note = note ?? 'independent per reading: already inside the fit scatter, shown, not added again';
+      note =
+        note ?? 'independent per reading: already inside the fit scatter, shown, not added again';
     } else {
       try {
         const d = parameterSensitivity(model, lin, input);
@@ -149,13 +175,22 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
       sensitivityEffectiveArea: cA,
       sensitivity: cCd,
       contribution: input.standardUncertainty > 0 ? Math.abs(cCd) * input.standardUncertainty : 0,
-      contributionEffectiveArea: input.standardUncertainty > 0 ? Math.abs(cA) * input.standardUncertainty : 0,
+      contributionEffectiveArea:
+        input.standardUncertainty > 0 ? Math.abs(cA) * input.standardUncertainty : 0,
       share: 0,
       counted,
     });
   }
-  const effectiveAreaM2 = combine(cdA, lines.filter((l) => l.counted && l.key !== 'outlet.boreM').map((l) => [l.contributionEffectiveArea, l.degreesOfFreedom]));
-  const dischargeCoefficient = combine(cd, lines.filter((l) => l.counted).map((l) => [l.contribution, l.degreesOfFreedom]));
+  const effectiveAreaM2 = combine(
+    cdA,
+    lines
+      .filter((l) => l.counted && l.key !== 'outlet.boreM')
+      .map((l) => [l.contributionEffectiveArea, l.degreesOfFreedom]),
+  );
+  const dischargeCoefficient = combine(
+    cd,
+    lines.filter((l) => l.counted).map((l) => [l.contribution, l.degreesOfFreedom]),
+  );
   const uc2 = dischargeCoefficient.combinedStandardUncertainty ** 2;
   for (const l of lines) l.share = l.counted && uc2 > 0 ? l.contribution ** 2 / uc2 : 0;
   const notes = [
@@ -164,10 +199,26 @@ export function uncertaintyBudget(req: BudgetRequest): UncertaintyBudget {
     'u_c² = Σ contributions² (independent inputs); ν_eff by Welch–Satterthwaite with ν = ∞ for stated limits; k = t_97.5 %(ν_eff)',
   ];
   const unstated = lines.filter((l) => l.source === 'not stated').map((l) => l.field);
-  if (unstated.length) notes.push(`not stated in the vessel file, counted as 0: ${[...new Set(unstated)].join(', ')}`);
-  if (req.datumFitted) notes.push('the sensor zero is fitted: its uncertainty is inside the type-A line');
+  if (unstated.length)
+    notes.push(`not stated in the vessel file, counted as 0: ${[...new Set(unstated)].join(', ')}`);
+  if (req.datumFitted)
+    notes.push('the sensor zero is fitted: its uncertainty is inside the type-A line');
   const warnings = drift.reason ? [{ code: 'systematic-drift', message: drift.reason }] : [];
-  return { basis: 'JCGM 100:2008 (GUM), law of propagation of uncertainty with independent inputs', lines, effectiveAreaM2, dischargeCoefficient, typeA: { standardUncertainty: uA, ar1StandardUncertainty: req.typeAStandardUncertainty, degreesOfFreedom: nuA, drift }, notes, warnings, table: budgetTable(lines, dischargeCoefficient, effectiveAreaM2) };
+  return {
+    basis: 'JCGM 100:2008 (GUM), law of propagation of uncertainty with independent inputs',
+    lines,
+    effectiveAreaM2,
+    dischargeCoefficient,
+    typeA: {
+      standardUncertainty: uA,
+      ar1StandardUncertainty: req.typeAStandardUncertainty,
+      degreesOfFreedom: nuA,
+      drift,
+    },
+    notes,
+    warnings,
+    table: budgetTable(lines, dischargeCoefficient, effectiveAreaM2),
+  };
 }
 
 function combine(value: number, parts: Array<[number, number | null]>): CombinedQuantity {

@@ -38,12 +38,30 @@ export interface DriftCheck {
  * variance has fewer effective degrees of freedom than B − 1, and at the 95 % point white noise
  * tripped the check in 14 of 100 simulated drains (head bands: 10 of 100).
  */
-const CHI2_99_OVER_NU = [NaN, 6.635, 4.605, 3.782, 3.319, 3.017, 2.802, 2.639, 2.511, 2.407, 2.321, 2.248, 2.185];
+const CHI2_99_OVER_NU = [
+  NaN,
+  6.635,
+  4.605,
+  3.782,
+  3.319,
+  3.017,
+  2.802,
+  2.639,
+  2.511,
+  2.407,
+  2.321,
+  2.248,
+  2.185,
+];
 
 export const DRIFT_BLOCKS = 10;
 const MIN_BLOCK_SAMPLES = 20;
 
-export function driftCheck(lin: Linearisation, arVariance: number, bands: readonly HeadBand[]): DriftCheck {
+export function driftCheck(
+  lin: Linearisation,
+  arVariance: number,
+  bands: readonly HeadBand[],
+): DriftCheck {
   const { m, k, jacobian, residuals, areaColumn } = lin;
   const B = Math.min(DRIFT_BLOCKS, Math.floor(m / MIN_BLOCK_SAMPLES));
   let jackknifeRatio: number | null = null;
@@ -77,7 +95,9 @@ export function driftCheck(lin: Linearisation, arVariance: number, bands: readon
   }
   let headBandRatio: number | null = null;
   let headBandLimit: number | null = null;
-  const usable = bands.filter((b) => b.standardUncertainty > 0 && Number.isFinite(b.effectiveAreaM2));
+  const usable = bands.filter(
+    (b) => b.standardUncertainty > 0 && Number.isFinite(b.effectiveAreaM2),
+  );
   if (usable.length >= 3) {
     let sw = 0;
     let swx = 0;
@@ -108,10 +128,26 @@ export function driftCheck(lin: Linearisation, arVariance: number, bands: readon
       reason = `Cd·a differs between head bands more than their uncertainties allow (χ²/ν = ${hbOver.toFixed(2)}, limit ${headBandLimit!.toFixed(2)}): the coefficient changes over the drain or a slow systematic effect is present. The fit's own (type A) uncertainty was widened by √${hbOver.toFixed(2)} = ${Math.sqrt(hbOver).toFixed(2)} with ${usable.length - 1} degrees of freedom.`;
     }
   }
-  return { blocks: B, jackknifeRatio, jackknifeLimit, headBandRatio, headBandLimit, varianceFactor, degreesOfFreedom, reason };
+  return {
+    blocks: B,
+    jackknifeRatio,
+    jackknifeLimit,
+    headBandRatio,
+    headBandLimit,
+    varianceFactor,
+    degreesOfFreedom,
+    reason,
+  };
 }
 
-function addOuter(target: Float64Array, jacobian: Float64Array, i: number, k: number, sign: number): void {
+function addOuter(
+  target: Float64Array,
+  jacobian: Float64Array,
+  i: number,
+  k: number,
+  sign: number,
+): void {
   const row = i * k;
-  for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) target[a * k + b] += sign * jacobian[row + a] * jacobian[row + b];
+  for (let a = 0; a < k; a++)
+    for (let b = 0; b < k; b++) target[a * k + b] += sign * jacobian[row + a] * jacobian[row + b];
 }

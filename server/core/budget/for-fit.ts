@@ -5,7 +5,11 @@ import { uncertaintyBudget, type UncertaintyBudget } from './budget.js';
 import type { InputContext } from './inputs.js';
 
 /** The budget of one analysed drain test (what analyzeDrainTest adds to the fit JSON as `budget`). */
-export function budgetForFit(p: PreparedTest, fit: DrainFitResult, data: { timeS: Float64Array; levelM: Float64Array }): UncertaintyBudget {
+export function budgetForFit(
+  p: PreparedTest,
+  fit: DrainFitResult,
+  data: { timeS: Float64Array; levelM: Float64Array },
+): UncertaintyBudget {
   const roles = p.series.columns.map((c) => c.role);
   const quantity: InputContext['quantity'] = roles.includes('absolute-pressure')
     ? 'absolute-pressure'

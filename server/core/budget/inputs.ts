@@ -91,18 +91,36 @@ function line(
 /** The dimension lines of each shape kind (paths into the vessel file). */
 function shapeInputs(shape: ShapeSpec): BudgetInput[] {
   const dim = (name: string, label: string, value: number, tol: number | undefined) =>
-    line(`shape.${name}`, label, `shape.${name.replace(/M$/, 'ToleranceM')}`, value, 'm', tol, { kind: 'vessel-field', path: `shape.${name}` }, value * 1e-5);
+    line(
+      `shape.${name}`,
+      label,
+      `shape.${name.replace(/M$/, 'ToleranceM')}`,
+      value,
+      'm',
+      tol,
+      { kind: 'vessel-field', path: `shape.${name}` },
+      value * 1e-5,
+    );
   switch (shape.kind) {
     case 'vertical-cylinder':
     case 'sphere':
     case 'elliptical-head-cylinder':
       return [dim('diameterM', 'vessel diameter', shape.diameterM, shape.diameterToleranceM)];
     case 'rectangular':
-      return [dim('lengthM', 'vessel length', shape.lengthM, shape.lengthToleranceM), dim('widthM', 'vessel width', shape.widthM, shape.widthToleranceM)];
+      return [
+        dim('lengthM', 'vessel length', shape.lengthM, shape.lengthToleranceM),
+        dim('widthM', 'vessel width', shape.widthM, shape.widthToleranceM),
+      ];
     case 'horizontal-cylinder':
-      return [dim('diameterM', 'vessel diameter', shape.diameterM, shape.diameterToleranceM), dim('lengthM', 'vessel length', shape.lengthM, shape.lengthToleranceM)];
+      return [
+        dim('diameterM', 'vessel diameter', shape.diameterM, shape.diameterToleranceM),
+        dim('lengthM', 'vessel length', shape.lengthM, shape.lengthToleranceM),
+      ];
     case 'cone-bottom':
-      return [dim('diameterM', 'vessel diameter', shape.diameterM, shape.diameterToleranceM), dim('coneHeightM', 'cone height', shape.coneHeightM, shape.coneHeightToleranceM)];
+      return [
+        dim('diameterM', 'vessel diameter', shape.diameterM, shape.diameterToleranceM),
+        dim('coneHeightM', 'cone height', shape.coneHeightM, shape.coneHeightToleranceM),
+      ];
     case 'table': {
       const tol = shape.pointTolerances;
       const out: BudgetInput[] = [];
@@ -110,8 +128,30 @@ function shapeInputs(shape: ShapeSpec): BudgetInput[] {
         const th = tol?.[i]?.[0];
         const ta = tol?.[i]?.[1];
         const field = `shape.pointTolerances.${i}`;
-        out.push(line(`shape.points.${i}.1`, `stage–area point ${i + 1}: area at ${h} m`, field, a, 'm²', ta, { kind: 'vessel-field', path: `shape.points.${i}.1` }, a * 1e-5));
-        out.push(line(`shape.points.${i}.0`, `stage–area point ${i + 1}: height`, field, h, 'm', th, { kind: 'vessel-field', path: `shape.points.${i}.0` }, 1e-5));
+        out.push(
+          line(
+            `shape.points.${i}.1`,
+            `stage–area point ${i + 1}: area at ${h} m`,
+            field,
+            a,
+            'm²',
+            ta,
+            { kind: 'vessel-field', path: `shape.points.${i}.1` },
+            a * 1e-5,
+          ),
+        );
+        out.push(
+          line(
+            `shape.points.${i}.0`,
+            `stage–area point ${i + 1}: height`,
+            field,
+            h,
+            'm',
+            th,
+            { kind: 'vessel-field', path: `shape.points.${i}.0` },
+            1e-5,
+          ),
+        );
       });
       return out;
     }
@@ -122,24 +162,112 @@ export function budgetInputs(ctx: InputContext): BudgetInput[] {
   const { vessel, quantity } = ctx;
   const s = vessel.sensor ?? {};
   const out: BudgetInput[] = [...shapeInputs(vessel.shape)];
-  out.push(line('outlet.elevationM', 'outlet centreline elevation', 'outlet.elevationToleranceM', vessel.outlet.elevationM, 'm', vessel.outlet.elevationToleranceM, { kind: 'vessel-field', path: 'outlet.elevationM' }, 1e-5));
+  out.push(
+    line(
+      'outlet.elevationM',
+      'outlet centreline elevation',
+      'outlet.elevationToleranceM',
+      vessel.outlet.elevationM,
+      'm',
+      vessel.outlet.elevationToleranceM,
+      { kind: 'vessel-field', path: 'outlet.elevationM' },
+      1e-5,
+    ),
+  );
   if (!ctx.datumFitted) {
     if (quantity === 'distance-from-top' && s.mountElevationM !== undefined) {
-      out.push(line('sensor.mountElevationM', 'gauge mount elevation', 'sensor.mountElevationToleranceM', s.mountElevationM, 'm', s.mountElevationToleranceM, { kind: 'reading-offset', perUnit: 1 }, 1e-5));
+      out.push(
+        line(
+          'sensor.mountElevationM',
+          'gauge mount elevation',
+          'sensor.mountElevationToleranceM',
+          s.mountElevationM,
+          'm',
+          s.mountElevationToleranceM,
+          { kind: 'reading-offset', perUnit: 1 },
+          1e-5,
+        ),
+      );
     } else {
-      out.push(line('sensor.zeroElevationM', 'sensor zero elevation', 'sensor.zeroElevationToleranceM', s.zeroElevationM ?? 0, 'm', s.zeroElevationToleranceM, { kind: 'sensor-zero' }, 1e-5));
+      out.push(
+        line(
+          'sensor.zeroElevationM',
+          'sensor zero elevation',
+          'sensor.zeroElevationToleranceM',
+          s.zeroElevationM ?? 0,
+          'm',
+          s.zeroElevationToleranceM,
+          { kind: 'sensor-zero' },
+          1e-5,
+        ),
+      );
     }
   }
-  out.push(line('sensor.spanError', 'sensor scale (span) error', 'sensor.spanErrorFraction', 0, '1', s.spanErrorFraction, { kind: 'reading-scale', perUnit: 1 }, 1e-5));
-  out.push(line('sensor.resolution', 'sensor resolution (per reading)', 'sensor.resolutionM', s.resolutionM ?? 0, 'm', s.resolutionM === undefined ? undefined : s.resolutionM / 2, { kind: 'per-reading' }, 1));
+  out.push(
+    line(
+      'sensor.spanError',
+      'sensor scale (span) error',
+      'sensor.spanErrorFraction',
+      0,
+      '1',
+      s.spanErrorFraction,
+      { kind: 'reading-scale', perUnit: 1 },
+      1e-5,
+    ),
+  );
+  out.push(
+    line(
+      'sensor.resolution',
+      'sensor resolution (per reading)',
+      'sensor.resolutionM',
+      s.resolutionM ?? 0,
+      'm',
+      s.resolutionM === undefined ? undefined : s.resolutionM / 2,
+      { kind: 'per-reading' },
+      1,
+    ),
+  );
   const pressure = quantity === 'gauge-pressure' || quantity === 'absolute-pressure';
   if (pressure) out.push(densityInput(ctx));
   if (quantity === 'absolute-pressure') {
     const perPa = 1 / (ctx.densityKgM3 * ctx.gravity);
-    out.push(line('sensor.barometer', 'barometric series offset', 'sensor.barometerTolerancePa', 0, 'Pa', s.barometerTolerancePa, { kind: 'reading-offset', perUnit: perPa }, 1));
+    out.push(
+      line(
+        'sensor.barometer',
+        'barometric series offset',
+        'sensor.barometerTolerancePa',
+        0,
+        'Pa',
+        s.barometerTolerancePa,
+        { kind: 'reading-offset', perUnit: perPa },
+        1,
+      ),
+    );
   }
-  out.push(line('logger.clockRate', 'logger clock rate error', 'logger.clockRateErrorFraction', 0, '1', vessel.logger?.clockRateErrorFraction, { kind: 'clock-rate' }, 1e-5));
-  out.push(line('outlet.boreM', 'outlet bore (Cd only)', 'outlet.boreToleranceM', vessel.outlet.boreM, 'm', vessel.outlet.boreToleranceM, { kind: 'bore' }, vessel.outlet.boreM * 1e-5));
+  out.push(
+    line(
+      'logger.clockRate',
+      'logger clock rate error',
+      'logger.clockRateErrorFraction',
+      0,
+      '1',
+      vessel.logger?.clockRateErrorFraction,
+      { kind: 'clock-rate' },
+      1e-5,
+    ),
+  );
+  out.push(
+    line(
+      'outlet.boreM',
+      'outlet bore (Cd only)',
+      'outlet.boreToleranceM',
+      vessel.outlet.boreM,
+      'm',
+      vessel.outlet.boreToleranceM,
+      { kind: 'bore' },
+      vessel.outlet.boreM * 1e-5,
+    ),
+  );
   return out;
 }
 
@@ -148,20 +276,60 @@ function densityInput(ctx: InputContext): BudgetInput {
   const rho = ctx.densityKgM3;
   const fluid = ctx.vessel.fluid;
   if (fluid && 'densityKgM3' in fluid) {
-    return line('fluid.density', 'liquid density', 'fluid.densityToleranceKgM3', rho, 'kg/m³', fluid.densityToleranceKgM3, { kind: 'reading-scale', perUnit: 1 / rho }, rho * 1e-5);
+    return line(
+      'fluid.density',
+      'liquid density',
+      'fluid.densityToleranceKgM3',
+      rho,
+      'kg/m³',
+      fluid.densityToleranceKgM3,
+      { kind: 'reading-scale', perUnit: 1 / rho },
+      rho * 1e-5,
+    );
   }
   // temperature → density: the chain factor dρ/dT (central difference of the water table)
-  const temperatureInput = (t: number, half: number | undefined, source: Source, note?: string): BudgetInput => {
-    const dRhoDt = (waterDensityKgM3(Math.min(t + 0.01, 100)) - waterDensityKgM3(Math.max(t - 0.01, 0))) / (Math.min(t + 0.01, 100) - Math.max(t - 0.01, 0));
-    const base = line('fluid.temperature', 'liquid temperature (→ density)', 'fluid.temperatureToleranceC', t, '°C', half, { kind: 'reading-scale', perUnit: 1 / rho }, 1e-3);
+  const temperatureInput = (
+    t: number,
+    half: number | undefined,
+    source: Source,
+    note?: string,
+  ): BudgetInput => {
+    const dRhoDt =
+      (waterDensityKgM3(Math.min(t + 0.01, 100)) - waterDensityKgM3(Math.max(t - 0.01, 0))) /
+      (Math.min(t + 0.01, 100) - Math.max(t - 0.01, 0));
+    const base = line(
+      'fluid.temperature',
+      'liquid temperature (→ density)',
+      'fluid.temperatureToleranceC',
+      t,
+      '°C',
+      half,
+      { kind: 'reading-scale', perUnit: 1 / rho },
+      1e-3,
+    );
     return { ...base, source, note: note ?? base.note, chain: dRhoDt };
   };
   if (fluid && 'temperatureC' in fluid) {
-    if (/measured during the test/.test(ctx.densitySource)) return temperatureInput(fluid.temperatureC, undefined, 'not stated', 'density from the log\'s temperature column; its uncertainty is not stated: counted as 0');
-    return temperatureInput(fluid.temperatureC, fluid.temperatureToleranceC, fluid.temperatureToleranceC === undefined ? 'not stated' : 'stated');
+    if (/measured during the test/.test(ctx.densitySource))
+      return temperatureInput(
+        fluid.temperatureC,
+        undefined,
+        'not stated',
+        "density from the log's temperature column; its uncertainty is not stated: counted as 0",
+      );
+    return temperatureInput(
+      fluid.temperatureC,
+      fluid.temperatureToleranceC,
+      fluid.temperatureToleranceC === undefined ? 'not stated' : 'stated',
+    );
   }
   if (/measured during the test/.test(ctx.densitySource)) {
-    return temperatureInput(ASSUMED_TEMPERATURE_C, undefined, 'not stated', 'density from the log\'s temperature column; its uncertainty is not stated: counted as 0');
+    return temperatureInput(
+      ASSUMED_TEMPERATURE_C,
+      undefined,
+      'not stated',
+      "density from the log's temperature column; its uncertainty is not stated: counted as 0",
+    );
   }
   return temperatureInput(
     ASSUMED_TEMPERATURE_C,

@@ -43,16 +43,35 @@ export function linearise(model: FittedModel): Linearisation {
   const k = model.free.length;
   const jacobian = new Float64Array(m * k);
   const f = new Float64Array(m);
-  if (!predictReadings(model.setting, model.solution, model.theta, model.timeS, f, jacobian, model.free)) throw new RangeError('fitted θ outside the model domain');
+  if (
+    !predictReadings(
+      model.setting,
+      model.solution,
+      model.theta,
+      model.timeS,
+      f,
+      jacobian,
+      model.free,
+    )
+  )
+    throw new RangeError('fitted θ outside the model domain');
   const residuals = new Float64Array(m);
   for (let i = 0; i < m; i++) residuals[i] = model.levelM[i] - f[i];
   const normal = new Float64Array(k * k);
   for (let i = 0; i < m; i++) {
     const row = i * k;
-    for (let a = 0; a < k; a++) for (let b = a; b < k; b++) normal[a * k + b] += jacobian[row + a] * jacobian[row + b];
+    for (let a = 0; a < k; a++)
+      for (let b = a; b < k; b++) normal[a * k + b] += jacobian[row + a] * jacobian[row + b];
   }
   for (let a = 0; a < k; a++) for (let b = 0; b < a; b++) normal[a * k + b] = normal[b * k + a];
-  return { m, k, jacobian, residuals, inverseNormal: invertSymmetric(normal, k), areaColumn: Array.from(model.free).indexOf(THETA.effectiveArea) };
+  return {
+    m,
+    k,
+    jacobian,
+    residuals,
+    inverseNormal: invertSymmetric(normal, k),
+    areaColumn: Array.from(model.free).indexOf(THETA.effectiveArea),
+  };
 }
 
 /** Gauss–Jordan inverse with partial pivoting of a small k×k matrix (k ≤ 5 here). */
@@ -88,7 +107,12 @@ export function invertSymmetric(a: Float64Array, k: number): Float64Array {
 }
 
 /** y − f at θ̂ with the input moved by delta (its own unit). */
-function residualsWith(model: FittedModel, input: BudgetInput, delta: number, out: Float64Array): void {
+function residualsWith(
+  model: FittedModel,
+  input: BudgetInput,
+  delta: number,
+  out: Float64Array,
+): void {
   const { timeS, levelM } = model;
   const m = timeS.length;
   let setting = model.setting;
@@ -103,7 +127,8 @@ function residualsWith(model: FittedModel, input: BudgetInput, delta: number, ou
       if (e.path.startsWith('shape.')) {
         const spec = withFieldChanged({ shape: model.shapeSpec }, e.path, delta).shape;
         setting = { ...setting, shape: makeShape(spec) };
-      } else if (e.path === 'outlet.elevationM') setting = { ...setting, outletElevationM: setting.outletElevationM + delta };
+      } else if (e.path === 'outlet.elevationM')
+        setting = { ...setting, outletElevationM: setting.outletElevationM + delta };
       else throw new RangeError(`no model effect for ${e.path}`);
       break;
     }
@@ -125,12 +150,17 @@ function residualsWith(model: FittedModel, input: BudgetInput, delta: number, ou
     default:
       throw new RangeError(`${e.kind} has no model derivative`);
   }
-  if (!predictReadings(setting, model.solution, theta, times, out, null, model.free)) throw new RangeError(`the model left its domain when ${input.key} moved by ${delta}`);
+  if (!predictReadings(setting, model.solution, theta, times, out, null, model.free))
+    throw new RangeError(`the model left its domain when ${input.key} moved by ${delta}`);
   for (let i = 0; i < m; i++) out[i] = levelM[i] * scale + offset - out[i];
 }
 
 /** dθ_free/dx for one input (length k), by the linear response of the least-squares optimum. */
-export function parameterSensitivity(model: FittedModel, lin: Linearisation, input: BudgetInput): Float64Array {
+export function parameterSensitivity(
+  model: FittedModel,
+  lin: Linearisation,
+  input: BudgetInput,
+): Float64Array {
   const { m, k, jacobian, inverseNormal } = lin;
   const plus = new Float64Array(m);
   const minus = new Float64Array(m);

@@ -9,11 +9,17 @@ import type { DrainVessel } from './drain-time.js';
  * `steady`, `linearize` and `predict` with an inflow can use it. Cd·a carries the budget's
  * combined standard uncertainty and ν_eff (a one-vessel system has no other outlet to correlate).
  */
-export function singleVesselModel(value: unknown, single: { vessel: DrainVessel; name: string; id: string }, fileName: string): { spec: SystemSpec; model: SystemModel } {
+export function singleVesselModel(
+  value: unknown,
+  single: { vessel: DrainVessel; name: string; id: string },
+  fileName: string,
+): { spec: SystemSpec; model: SystemModel } {
   const f = value as Record<string, any>;
   const { nominalAreaM2: _nominal, ...outlet } = f.outlet as Record<string, unknown>;
   void _nominal;
-  const zero = (f.parameters as any[] | undefined)?.find((p) => p.name === 'sensorZeroElevationM')?.value;
+  const zero = (f.parameters as any[] | undefined)?.find(
+    (p) => p.name === 'sensorZeroElevationM',
+  )?.value;
   const spec = validateSystem(
     {
       name: single.name,
@@ -38,14 +44,31 @@ export function singleVesselModel(value: unknown, single: { vessel: DrainVessel;
   theta[P.effectiveArea] = single.vessel.effectiveAreaM2;
   theta[P.sensorZero] = typeof zero === 'number' ? zero : 0;
   const u = f.effectiveAreaM2?.standardUncertainty;
-  if (!(typeof u === 'number' && u >= 0)) throw new InputError('the fit has no standard uncertainty of Cd·a', { file: fileName, field: 'effectiveAreaM2.standardUncertainty' });
+  if (!(typeof u === 'number' && u >= 0))
+    throw new InputError('the fit has no standard uncertainty of Cd·a', {
+      file: fileName,
+      field: 'effectiveAreaM2.standardUncertainty',
+    });
   const nu = f.effectiveAreaM2?.effectiveDegreesOfFreedom ?? 1e7;
-  return { spec, model: { network, theta, free: Int32Array.of(P.effectiveArea), covariance: Float64Array.of(u * u), degreesOfFreedom: nu, specs: [spec.vessels[0].shape] } };
+  return {
+    spec,
+    model: {
+      network,
+      theta,
+      free: Int32Array.of(P.effectiveArea),
+      covariance: Float64Array.of(u * u),
+      degreesOfFreedom: nu,
+      specs: [spec.vessels[0].shape],
+    },
+  };
 }
 
 /** Steady states, linear models and predictions with an inflow use the orifice law: refuse a fit with another exponent. */
 export function requireOrificeLaw(vessel: DrainVessel, fileName: string): void {
   if (Math.abs(vessel.exponent - 0.5) > 1e-12) {
-    throw new InputError(`the fit's head exponent is n = ${vessel.exponent}; steady states, linear models and predictions with an inflow use the orifice law (n = 0.5): refit without --fit-exponent, or predict with no inflow`, { file: fileName, field: 'parameters.headExponent' });
+    throw new InputError(
+      `the fit's head exponent is n = ${vessel.exponent}; steady states, linear models and predictions with an inflow use the orifice law (n = 0.5): refit without --fit-exponent, or predict with no inflow`,
+      { file: fileName, field: 'parameters.headExponent' },
+    );
   }
 }

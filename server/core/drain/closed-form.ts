@@ -54,7 +54,9 @@ export function closedFormReadings(
   const mLen = timeS.length;
 
   // a column of a free parameter the closed form does not have (inflow) is 0
-  const other = jac !== null && k > (cArea >= 0 ? 1 : 0) + (cReading >= 0 ? 1 : 0) + (cZero >= 0 ? 1 : 0) + (cExp >= 0 ? 1 : 0);
+  const other =
+    jac !== null &&
+    k > (cArea >= 0 ? 1 : 0) + (cReading >= 0 ? 1 : 0) + (cZero >= 0 ? 1 : 0) + (cExp >= 0 ? 1 : 0);
   if (isHalf && !other) {
     // n = ½ (the orifice): u = sqrt(H0) − c·t/2, H = u², u^(m−1) = u; one pass, no pow
     const halfC = 0.5 * c;
@@ -116,12 +118,26 @@ export function closedFormReadings(
  * Used by the model comparison's score test for the inflow term, so a constant-area fit needs no
  * ODE. Returns false outside the closed form's domain, for n ≠ ½, or for Cd·a = 0.
  */
-export function closedFormInflowSensitivity(setting: DrainSetting, theta: Float64Array, timeS: Float64Array, out: Float64Array, stride = 1, offset = 0): boolean {
+export function closedFormInflowSensitivity(
+  setting: DrainSetting,
+  theta: Float64Array,
+  timeS: Float64Array,
+  out: Float64Array,
+  stride = 1,
+  offset = 0,
+): boolean {
   const area = setting.shape.areaM2(0);
   const cdA = theta[THETA.effectiveArea];
   const zs = theta[THETA.sensorZero];
   const h0 = theta[THETA.initialReading] - (setting.outletElevationM - zs);
-  if (!(h0 > 0) || !(cdA > 0) || theta[THETA.exponent] !== 0.5 || !(area > 0) || theta[THETA.inflow] !== 0) return false;
+  if (
+    !(h0 > 0) ||
+    !(cdA > 0) ||
+    theta[THETA.exponent] !== 0.5 ||
+    !(area > 0) ||
+    theta[THETA.inflow] !== 0
+  )
+    return false;
   const c = (cdA * Math.sqrt(2 * setting.gravity)) / area;
   const u0 = Math.sqrt(h0);
   const factor = 2 / (area * c);

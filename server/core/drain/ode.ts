@@ -24,7 +24,8 @@ export function odeReadings(
   const cdA = theta[THETA.effectiveArea];
   const n = theta[THETA.exponent];
   const eta0 = theta[THETA.initialReading] + theta[THETA.sensorZero];
-  if (!(cdA >= 0) || !(n > 0) || !Number.isFinite(eta0) || !Number.isFinite(theta[THETA.inflow])) return false;
+  if (!(cdA >= 0) || !(n > 0) || !Number.isFinite(eta0) || !Number.isFinite(theta[THETA.inflow]))
+    return false;
   if (eta0 <= setting.outletElevationM || eta0 <= 0 || eta0 > setting.shape.heightM) return false;
   if (timeS.length === 0) return true;
   const problem = new SingleVesselDrain(setting, theta, out, jac, jac ? free : new Int32Array(0));

@@ -18,7 +18,13 @@ export const THETA = {
 
 export const THETA_SIZE = 5;
 
-export const THETA_NAMES = ['effectiveAreaM2', 'initialReadingM', 'sensorZeroElevationM', 'inflowM3S', 'headExponent'] as const;
+export const THETA_NAMES = [
+  'effectiveAreaM2',
+  'initialReadingM',
+  'sensorZeroElevationM',
+  'inflowM3S',
+  'headExponent',
+] as const;
 
 export type ThetaName = (typeof THETA_NAMES)[number];
 

@@ -91,7 +91,8 @@ export function simulateDrainTest(sim: DrainSimulation): SimulatedLog {
     if (i > 0) e = rho * e + innovation * rng.normal();
     let v = clean[i] + e;
     const since = timeS[i] - holdBefore;
-    if (slosh > 0 && since >= 0 && since < 30) v += slosh * Math.exp(-since / 4) * Math.sin(2 * Math.PI * since / 3);
+    if (slosh > 0 && since >= 0 && since < 30)
+      v += slosh * Math.exp(-since / 4) * Math.sin((2 * Math.PI * since) / 3);
     if (quantum > 0) v = Math.round(v / quantum) * quantum;
     levelM[i] = v;
   }

@@ -33,7 +33,10 @@ export const fitParameter = z.looseObject({
 });
 
 /** Correlation matrix of the free parameters, rows and columns in the order of `parameters`. */
-export const correlations = z.object({ parameters: z.array(z.string()), matrix: z.array(z.array(num)) });
+export const correlations = z.object({
+  parameters: z.array(z.string()),
+  matrix: z.array(z.array(num)),
+});
 
 /** What the least-squares solver did. */
 export const solverRecord = z.looseObject({
@@ -56,7 +59,11 @@ export const residualDiagnostics = z.looseObject({
   durbinWatson: num,
 });
 
-export const fitWarning = z.looseObject({ code: z.string(), message: z.string(), stage: z.string().optional() });
+export const fitWarning = z.looseObject({
+  code: z.string(),
+  message: z.string(),
+  stage: z.string().optional(),
+});
 
 /** A result in GUM terms (JCGM 100:2008): value, standard uncertainty, coverage, interval. */
 export const gumEstimate = z.looseObject({
@@ -75,8 +82,20 @@ export const gumEstimate = z.looseObject({
  */
 export const budgetJson = z.looseObject({
   basis: z.string().optional(),
-  lines: z.array(z.looseObject({ key: z.string(), input: z.string(), standardUncertainty: num, contribution: num, share: num })),
-  table: z.looseObject({ columns: z.array(z.string()), rows: z.array(z.array(z.string())), totals: z.array(z.tuple([z.string(), z.string()])) }),
+  lines: z.array(
+    z.looseObject({
+      key: z.string(),
+      input: z.string(),
+      standardUncertainty: num,
+      contribution: num,
+      share: num,
+    }),
+  ),
+  table: z.looseObject({
+    columns: z.array(z.string()),
+    rows: z.array(z.array(z.string())),
+    totals: z.array(z.tuple([z.string(), z.string()])),
+  }),
   notes: z.array(z.string()),
 });
 
@@ -108,13 +127,25 @@ export const singleFitResult = z
       startTime: z.string().nullable().optional(),
       endTime: z.string().nullable().optional(),
       chosenBy: z.string().optional(),
-      trims: z.array(z.looseObject({ what: z.string(), fromS: num, toS: num, reason: z.string() })).optional(),
+      trims: z
+        .array(z.looseObject({ what: z.string(), fromS: num, toS: num, reason: z.string() }))
+        .optional(),
       notes: z.array(note).optional(),
     }),
-    timing: z.looseObject({ parseMs: z.number(), fitMs: z.number(), diagnosticsMs: z.number().optional(), budgetMs: z.number().optional() }),
+    timing: z.looseObject({
+      parseMs: z.number(),
+      fitMs: z.number(),
+      diagnosticsMs: z.number().optional(),
+      budgetMs: z.number().optional(),
+    }),
     modelComparison: z
       .looseObject({
-        chosen: z.looseObject({ model: z.string(), parameters: z.number().int(), sumSquares: num, aic: num }),
+        chosen: z.looseObject({
+          model: z.string(),
+          parameters: z.number().int(),
+          sumSquares: num,
+          aic: num,
+        }),
         rows: z.array(
           z.looseObject({
             term: z.string(),
@@ -131,18 +162,44 @@ export const singleFitResult = z
       .nullable()
       .optional(),
     headBands: z
-      .array(z.looseObject({ headFromM: z.number(), headToM: z.number(), samples: z.number().int(), dischargeCoefficient: num, standardUncertainty: num }))
+      .array(
+        z.looseObject({
+          headFromM: z.number(),
+          headToM: z.number(),
+          samples: z.number().int(),
+          dischargeCoefficient: num,
+          standardUncertainty: num,
+        }),
+      )
       .optional(),
-    read: z.looseObject({ t0: z.string().nullable(), samples: z.number().int(), columns: z.array(z.unknown()).optional(), notes: z.array(note).optional() }).optional(),
-    model: z.looseObject({ description: z.string().optional(), equation: z.string().optional() }).optional(),
+    read: z
+      .looseObject({
+        t0: z.string().nullable(),
+        samples: z.number().int(),
+        columns: z.array(z.unknown()).optional(),
+        notes: z.array(note).optional(),
+      })
+      .optional(),
+    model: z
+      .looseObject({ description: z.string().optional(), equation: z.string().optional() })
+      .optional(),
     plot: z
       .object({
         log: z.object({ timeS: z.array(z.number()), levelM: z.array(num) }),
-        window: z.object({ offsetS: z.number(), timeS: z.array(z.number()), observedM: z.array(num), fittedM: z.array(num) }),
+        window: z.object({
+          offsetS: z.number(),
+          timeS: z.array(z.number()),
+          observedM: z.array(num),
+          fittedM: z.array(num),
+        }),
       })
       .optional(),
   })
-  .meta({ id: 'FitResult', description: 'A single-vessel fit (one drain test), as stored and as `efflux fit --json` prints it' });
+  .meta({
+    id: 'FitResult',
+    description:
+      'A single-vessel fit (one drain test), as stored and as `efflux fit --json` prints it',
+  });
 
 /** The joint fit of connected vessels (`efflux fit-system --json`). */
 export const jointFitResult = z
@@ -151,7 +208,10 @@ export const jointFitResult = z
     version: z.number().int(),
     engineVersion: z.string(),
     ...fitCommon,
-    outlets: z.record(z.string(), z.looseObject({ effectiveAreaM2: gumEstimate, dischargeCoefficient: gumEstimate.nullable() })),
+    outlets: z.record(
+      z.string(),
+      z.looseObject({ effectiveAreaM2: gumEstimate, dischargeCoefficient: gumEstimate.nullable() }),
+    ),
     /** Per log: its samples, noise, AR(1) factor. */
     residuals: z.array(residualDiagnostics.extend({ id: z.string(), fileName: z.string() })),
     covariance: z.array(z.array(num)),

@@ -11,11 +11,16 @@ export const pad = (s: string, w: number) => (s.length >= w ? s : s + ' '.repeat
 const n = (x: number | null | undefined) => (typeof x === 'number' ? x : NaN);
 
 export function parameterLines(parameters: readonly FitParameter[], nameWidth = 22): string[] {
-  const lines = ['Parameters', `  ${pad('name', nameWidth)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 30)}unit`];
+  const lines = [
+    'Parameters',
+    `  ${pad('name', nameWidth)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 30)}unit`,
+  ];
   for (const p of parameters) {
     const u = n(p.standardUncertainty);
     const ci = p.ci95 ? `${toU(n(p.ci95[0]), u)} … ${toU(n(p.ci95[1]), u)}` : 'fixed';
-    lines.push(`  ${pad(p.name, nameWidth)}${pad(p.free ? toU(n(p.value), u) : sig(n(p.value), 6), 14)}${pad(p.free ? sig(u, 2) : '—', 12)}${pad(ci, 30)}${p.unit}${p.atBound ? '  (at bound)' : ''}`);
+    lines.push(
+      `  ${pad(p.name, nameWidth)}${pad(p.free ? toU(n(p.value), u) : sig(n(p.value), 6), 14)}${pad(p.free ? sig(u, 2) : '—', 12)}${pad(ci, 30)}${p.unit}${p.atBound ? '  (at bound)' : ''}`,
+    );
   }
   return lines;
 }
@@ -26,7 +31,9 @@ export function correlationLines(corr: FitCorrelations | undefined): string[] {
   for (let i = 0; i < corr.parameters.length; i++) {
     for (let j = i + 1; j < corr.parameters.length; j++) {
       const c = corr.matrix[i][j];
-      lines.push(`  ${pad(`${corr.parameters[i]} ~ ${corr.parameters[j]}`, 46)}${c === null ? '—' : c.toFixed(4)}`);
+      lines.push(
+        `  ${pad(`${corr.parameters[i]} ~ ${corr.parameters[j]}`, 46)}${c === null ? '—' : c.toFixed(4)}`,
+      );
     }
   }
   return lines;

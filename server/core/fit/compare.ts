@@ -20,7 +20,8 @@ import { fitVariant, type FittedVariant, type VariantInput } from './variant.js'
  * so every row that could raise a warning carries the refitted numbers. A term that is in the
  * chosen model is always judged by refitting without it. Each row says which method it used.
  */
-export const SCORE_TEST_METHOD = 'score test: one Gauss–Newton step of the extended model from the chosen fit, no refit';
+export const SCORE_TEST_METHOD =
+  'score test: one Gauss–Newton step of the extended model from the chosen fit, no refit';
 export const REFIT_METHOD = 'refit of the other model';
 
 /** A score test at or below this p-value (or with ΔAIC < 0) is confirmed by a full refit. */
@@ -50,7 +51,11 @@ export interface ModelComparison {
 }
 
 const TERMS: (keyof ModelTerms)[] = ['inflow', 'datum', 'exponent'];
-const TERM_INDEX: Record<keyof ModelTerms, number> = { inflow: THETA.inflow, datum: THETA.sensorZero, exponent: THETA.exponent };
+const TERM_INDEX: Record<keyof ModelTerms, number> = {
+  inflow: THETA.inflow,
+  datum: THETA.sensorZero,
+  exponent: THETA.exponent,
+};
 
 /** Gaussian AIC with the log-likelihood counted over the effective samples: nEff·ln(SSR/m) + 2k. */
 function aicAt(sumSquares: number, m: number, nEff: number, k: number): number {
@@ -67,17 +72,37 @@ export function compareModels(
   const m = best.solve.residuals.length;
   const nEff = Math.max(unc.effectiveSamples, best.k + 2);
   const chosenAic = aicAt(best.solve.sumSquares, m, nEff, best.k);
-  const rowFor = (term: keyof ModelTerms, terms: ModelTerms, k: number, sumSquares: number, converged: boolean, method: string): ModelComparisonRow => {
+  const rowFor = (
+    term: keyof ModelTerms,
+    terms: ModelTerms,
+    k: number,
+    sumSquares: number,
+    converged: boolean,
+    method: string,
+  ): ModelComparisonRow => {
     const withTerm = terms[term];
     const small = withTerm ? best.solve.sumSquares : sumSquares;
     const large = withTerm ? sumSquares : best.solve.sumSquares;
     const kLarge = withTerm ? k : best.k;
     const dof1 = Math.abs(k - best.k);
     const dof2 = Math.max(nEff - kLarge, 1);
-    const f = ((small - large) / dof1 / (large / Math.max(m - kLarge, 1))) / unc.varianceInflation;
-    const fTest = Number.isFinite(f) ? { f: Math.max(f, 0), dof1, dof2, pValue: 1 - fCdf(Math.max(f, 0), dof1, dof2) } : null;
+    const f = (small - large) / dof1 / (large / Math.max(m - kLarge, 1)) / unc.varianceInflation;
+    const fTest = Number.isFinite(f)
+      ? { f: Math.max(f, 0), dof1, dof2, pValue: 1 - fCdf(Math.max(f, 0), dof1, dof2) }
+      : null;
     const aic = aicAt(sumSquares, m, nEff, k);
-    return { term, change: withTerm ? 'with' : 'without', model: describeTerms(terms), parameters: k, sumSquares, aic, deltaAic: aic - chosenAic, fTest, converged, method };
+    return {
+      term,
+      change: withTerm ? 'with' : 'without',
+      model: describeTerms(terms),
+      parameters: k,
+      sumSquares,
+      aic,
+      deltaAic: aic - chosenAic,
+      fTest,
+      converged,
+      method,
+    };
   };
   const refit = (term: keyof ModelTerms, terms: ModelTerms): ModelComparisonRow | null => {
     const start = Float64Array.from(best.theta);
@@ -101,14 +126,26 @@ export function compareModels(
     const fall = falls?.get(term);
     let row: ModelComparisonRow | null = null;
     if (fall !== undefined && Number.isFinite(fall)) {
-      const score = rowFor(term, terms, best.k + 1, best.solve.sumSquares - fall, best.solve.converged, SCORE_TEST_METHOD);
+      const score = rowFor(
+        term,
+        terms,
+        best.k + 1,
+        best.solve.sumSquares - fall,
+        best.solve.converged,
+        SCORE_TEST_METHOD,
+      );
       const mayBeEarned = !score.fTest || score.fTest.pValue <= CONFIRM_P || score.deltaAic < 0;
       row = mayBeEarned ? refit(term, terms) : score;
     } else row = refit(term, terms);
     if (row) rows.push(row);
   }
   return {
-    chosen: { model: describeTerms(best.terms), parameters: best.k, sumSquares: best.solve.sumSquares, aic: chosenAic },
+    chosen: {
+      model: describeTerms(best.terms),
+      parameters: best.k,
+      sumSquares: best.solve.sumSquares,
+      aic: chosenAic,
+    },
     rows,
     basis: `F-test of nested pairs and AIC, both at the effective sample size ${nEff.toFixed(0)} of ${m}`,
   };
@@ -122,7 +159,11 @@ export function compareModels(
  * ‖P_k·r‖² + (g⊥ᵀr)²/‖g⊥‖², without forming a normal matrix. Missing when the extension cannot be
  * evaluated (the caller then refits).
  */
-function scoreFalls(input: VariantInput, best: FittedVariant, added: (keyof ModelTerms)[]): Map<keyof ModelTerms, number> {
+function scoreFalls(
+  input: VariantInput,
+  best: FittedVariant,
+  added: (keyof ModelTerms)[],
+): Map<keyof ModelTerms, number> {
   const { setting, timeS } = input;
   const m = timeS.length;
   const k = best.k;
@@ -138,17 +179,35 @@ function scoreFalls(input: VariantInput, best: FittedVariant, added: (keyof Mode
   // A constant-area orifice fit keeps its closed form: the inflow column then comes from the
   // closed-form sensitivity (the closed form itself leaves it 0), not from integrating the ODE.
   const inflowCol = extra.indexOf(THETA.inflow);
-  const closed = best.solution === 'closed-form' && best.theta[THETA.exponent] === 0.5 && best.theta[THETA.inflow] === 0;
+  const closed =
+    best.solution === 'closed-form' &&
+    best.theta[THETA.exponent] === 0.5 &&
+    best.theta[THETA.inflow] === 0;
   let ok: boolean;
   if (closed) {
     ok = predictReadings(setting, 'closed-form', best.theta, timeS, model, J, free);
-    if (ok && inflowCol >= 0) ok = closedFormInflowSensitivity(setting, best.theta, timeS, J, w, k + inflowCol);
+    if (ok && inflowCol >= 0)
+      ok = closedFormInflowSensitivity(setting, best.theta, timeS, J, w, k + inflowCol);
   } else ok = false;
-  if (!ok) ok = predictReadings(setting, solutionFor(setting, all.inflow), best.theta, timeS, model, J, free);
+  if (!ok)
+    ok = predictReadings(
+      setting,
+      solutionFor(setting, all.inflow),
+      best.theta,
+      timeS,
+      model,
+      J,
+      free,
+    );
   if (!ok) return out;
   const a = new Float64Array(m * k);
   gatherColumns(J, m, w, null, k, a);
-  const qr = { ipvt: new Int32Array(k), rdiag: new Float64Array(k), acnorm: new Float64Array(k), wa: new Float64Array(k) };
+  const qr = {
+    ipvt: new Int32Array(k),
+    rdiag: new Float64Array(k),
+    acnorm: new Float64Array(k),
+    wa: new Float64Array(k),
+  };
   householderQr(a, m, k, true, qr);
   const qtr = new Float64Array(m);
   const head = new Float64Array(k);

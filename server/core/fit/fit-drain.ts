@@ -2,7 +2,12 @@ import { residualDiagnostics } from '../stats/index.js';
 import { createSolveWorkspace } from '../lsq/index.js';
 import { THETA, THETA_NAMES, type DrainSetting } from '../drain/parameters.js';
 import type { SolveResult } from '../lsq/types.js';
-import { dischargeCoefficientQuantity, effectiveAreaQuantity, nominalAreaM2, type GumQuantity } from './coefficient.js';
+import {
+  dischargeCoefficientQuantity,
+  effectiveAreaQuantity,
+  nominalAreaM2,
+  type GumQuantity,
+} from './coefficient.js';
 import { compareModels, type ModelComparison } from './compare.js';
 import { headBands, type HeadBand } from './head-bands.js';
 import { profileIntervalEffectiveArea, type ProfileInterval } from './profile.js';
@@ -50,10 +55,19 @@ export interface DrainFitResult {
   solver: SolveResult;
   uncertainty: UncertaintyModel;
   parameters: ParameterEstimate[];
-  effectiveArea: GumQuantity & { profileCi95: [number, number] | null; profile: ProfileInterval | null };
+  effectiveArea: GumQuantity & {
+    profileCi95: [number, number] | null;
+    profile: ProfileInterval | null;
+  };
   dischargeCoefficient: ReturnType<typeof dischargeCoefficientQuantity>;
   nominalAreaM2: number;
-  residuals: { samples: number; rmseM: number; maxAbsM: number; lag1Autocorrelation: number; durbinWatson: number };
+  residuals: {
+    samples: number;
+    rmseM: number;
+    maxAbsM: number;
+    lag1Autocorrelation: number;
+    durbinWatson: number;
+  };
   comparison: ModelComparison | null;
   headBands: HeadBand[];
   warnings: FitWarning[];
@@ -111,7 +125,13 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
     profileCi95: profile ? ([profile.lower, profile.upper] as [number, number]) : null,
     profile,
   };
-  const dischargeCoefficient = dischargeCoefficientQuantity(cdA, uCdA, unc.degreesOfFreedom, input.outlet.boreM, input.outlet.boreToleranceM ?? 0);
+  const dischargeCoefficient = dischargeCoefficientQuantity(
+    cdA,
+    uCdA,
+    unc.degreesOfFreedom,
+    input.outlet.boreM,
+    input.outlet.boreToleranceM ?? 0,
+  );
 
   const t1 = now();
   const maxAbs = maxAbsolute(solve.residuals);
@@ -122,9 +142,19 @@ export function fitDrain(input: DrainFitInput): DrainFitResult {
     lag1Autocorrelation: diag.lag1Autocorrelation,
     durbinWatson: diag.durbinWatson,
   };
-  const comparison = input.essentialsOnly ? null : compareModels(data, best, unc, datumRequired, work);
+  const comparison = input.essentialsOnly
+    ? null
+    : compareModels(data, best, unc, datumRequired, work);
   const bands = input.essentialsOnly ? [] : headBands(data, best, unc.varianceInflation, 4, work);
-  const warnings = fitWarnings({ input, best, unc, dischargeCoefficient: dischargeCoefficient.value, comparison, bands, parameters });
+  const warnings = fitWarnings({
+    input,
+    best,
+    unc,
+    dischargeCoefficient: dischargeCoefficient.value,
+    comparison,
+    bands,
+    parameters,
+  });
   const t2 = now();
   return {
     variant: best,

@@ -30,7 +30,13 @@ export interface HeadBand {
  * seeds) the bands' spread over their stated u was 1.11–1.47 with their own factor and 0.98–1.13
  * with the whole window's (test/core/fit/head-bands.test.ts checks the latter).
  */
-export function headBands(input: VariantInput, best: FittedVariant, varianceInflation: number, bands = 4, work: SolveWorkspace = createSolveWorkspace()): HeadBand[] {
+export function headBands(
+  input: VariantInput,
+  best: FittedVariant,
+  varianceInflation: number,
+  bands = 4,
+  work: SolveWorkspace = createSolveWorkspace(),
+): HeadBand[] {
   const { timeS, levelM, setting } = input;
   const m = timeS.length;
   const zs = best.theta[THETA.sensorZero];
@@ -43,7 +49,8 @@ export function headBands(input: VariantInput, best: FittedVariant, varianceInfl
   let from = 0;
   for (let b = 0; b < bands; b++) {
     const limit = hStart - ((b + 1) * (hStart - hEnd)) / bands;
-    const to = b === bands - 1 ? m : firstHeadAtOrBelow(levelM, from, zs, setting.outletElevationM, limit);
+    const to =
+      b === bands - 1 ? m : firstHeadAtOrBelow(levelM, from, zs, setting.outletElevationM, limit);
     const count = to - from;
     if (count >= 20) {
       const t0 = timeS[from];
@@ -53,7 +60,13 @@ export function headBands(input: VariantInput, best: FittedVariant, varianceInfl
       at[0] = t0;
       const ok = predictReadings(setting, best.solution, best.theta, at, reading, null, best.free);
       start[THETA.initialReading] = ok && Number.isFinite(reading[0]) ? reading[0] : y[0];
-      const v = fitVariant({ setting, timeS: t, levelM: y }, { inflow: false, datum: false, exponent: false }, start, undefined, { work });
+      const v = fitVariant(
+        { setting, timeS: t, levelM: y },
+        { inflow: false, datum: false, exponent: false },
+        start,
+        undefined,
+        { work },
+      );
       const s2 = v.solve.sumSquares / Math.max(count - v.k, 1);
       const col = v.free.indexOf(THETA.effectiveArea);
       out.push({
@@ -61,7 +74,9 @@ export function headBands(input: VariantInput, best: FittedVariant, varianceInfl
         headToM: head(to - 1),
         samples: count,
         effectiveAreaM2: v.theta[THETA.effectiveArea],
-        standardUncertainty: Math.sqrt(Math.max(v.solve.unscaledCovariance[col * v.k + col] * s2 * varianceInflation, 0)),
+        standardUncertainty: Math.sqrt(
+          Math.max(v.solve.unscaledCovariance[col * v.k + col] * s2 * varianceInflation, 0),
+        ),
       });
     }
     from = to;
@@ -70,7 +85,13 @@ export function headBands(input: VariantInput, best: FittedVariant, varianceInfl
 }
 
 /** First index ≥ from whose head y + z_s − z_o is not above `limit` (levelM.length if none). */
-function firstHeadAtOrBelow(levelM: Float64Array, from: number, zs: number, zo: number, limit: number): number {
+function firstHeadAtOrBelow(
+  levelM: Float64Array,
+  from: number,
+  zs: number,
+  zo: number,
+  limit: number,
+): number {
   let i = from;
   while (i < levelM.length && levelM[i] + zs - zo > limit) i++;
   return i;

@@ -6,7 +6,12 @@
  * positive; the usual treatment of a positive quantity, from memory). The profile interval,
  * where it was computed, is reported beside it.
  */
-export function positiveInterval(value: number, u: number, k: number, symmetric: [number, number]): { ci95: [number, number]; logScale: boolean } {
+export function positiveInterval(
+  value: number,
+  u: number,
+  k: number,
+  symmetric: [number, number],
+): { ci95: [number, number]; logScale: boolean } {
   if (!(symmetric[0] <= 0)) return { ci95: symmetric, logScale: false };
   // a value at (or below) zero has no log scale: the interval is cut at zero
   if (!(value > 0) || !(u > 0)) return { ci95: [0, Math.max(0, symmetric[1])], logScale: false };

@@ -44,9 +44,16 @@ export function profileIntervalEffectiveArea(
     start.set(best.theta);
     const cc = unc.covariance[col * k + col];
     for (let j = 0; j < k; j++) {
-      if (j !== col && cc > 0) start[best.free[j]] += (unc.covariance[j * k + col] / cc) * (c - centre);
+      if (j !== col && cc > 0)
+        start[best.free[j]] += (unc.covariance[j * k + col] / cc) * (c - centre);
     }
-    const v = fitVariant(input, best.terms, start, { index: THETA.effectiveArea, value: c }, { work, sumSquaresOnly: true });
+    const v = fitVariant(
+      input,
+      best.terms,
+      start,
+      { index: THETA.effectiveArea, value: c },
+      { work, sumSquaresOnly: true },
+    );
     const rise = Math.max(v.solve.sumSquares - best.solve.sumSquares, 0);
     return Math.sign(c - centre) * Math.sqrt(rise / scale);
   };
@@ -71,7 +78,8 @@ export function profileIntervalEffectiveArea(
     return centre + direction * t * u;
   };
 
-  if (!(u > 0) || !Number.isFinite(u)) return { lower: centre, upper: centre, refits: 0, found: false };
+  if (!(u > 0) || !Number.isFinite(u))
+    return { lower: centre, upper: centre, refits: 0, found: false };
   const lower = side(-1);
   const upper = side(1);
   return { lower, upper, refits, found };

@@ -26,7 +26,8 @@ export function startTheta(
   const tB = mean(timeS, m - tenth, m);
   const etaA = yA + sensorZeroM;
   const etaB = yB + sensorZeroM;
-  const volumeRate = (setting.shape.volumeM3(etaA) - setting.shape.volumeM3(etaB)) / Math.max(tB - tA, 1e-9);
+  const volumeRate =
+    (setting.shape.volumeM3(etaA) - setting.shape.volumeM3(etaB)) / Math.max(tB - tA, 1e-9);
   let flow = volumeRate;
   if (!Number.isFinite(flow) || flow <= 0) {
     // shapes without a volume function, or a barely falling window: use the area at mid-level
@@ -56,7 +57,11 @@ const QUICK_FIT_SAMPLES = 2000;
  * the same), used only as the start of the full fit: the full fit then needs a step or two on all
  * m samples instead of the whole approach. A quick fit that fails leaves the start as it was.
  */
-export function refineStartOnSubsample(input: VariantInput, terms: ModelTerms, start: Float64Array): Float64Array {
+export function refineStartOnSubsample(
+  input: VariantInput,
+  terms: ModelTerms,
+  start: Float64Array,
+): Float64Array {
   const m = input.timeS.length;
   const stride = Math.floor(m / QUICK_FIT_SAMPLES);
   if (stride < 4) return start;

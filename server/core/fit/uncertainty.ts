@@ -30,7 +30,10 @@ export interface UncertaintyModel {
 }
 
 /** `diagnostics`: residualDiagnostics of the variant's residuals when the caller already has them. */
-export function uncertaintyFor(variant: FittedVariant, diagnostics?: ResidualDiagnostics): UncertaintyModel {
+export function uncertaintyFor(
+  variant: FittedVariant,
+  diagnostics?: ResidualDiagnostics,
+): UncertaintyModel {
   const { solve, k } = variant;
   const m = solve.residuals.length;
   const diag = diagnostics ?? residualDiagnostics(solve.residuals);

@@ -43,8 +43,22 @@ export function fitVariant(
   }
   const solution = solutionFor(input.setting, terms.inflow);
   const { lower, upper } = boundsFor(free);
-  const problem = drainProblem({ setting: input.setting, solution, timeS: input.timeS, levelM: input.levelM, theta: base, free, lower, upper });
+  const problem = drainProblem({
+    setting: input.setting,
+    solution,
+    timeS: input.timeS,
+    levelM: input.levelM,
+    theta: base,
+    free,
+    lower,
+    upper,
+  });
   const p0 = Float64Array.from(free, (j) => base[j]);
-  const solve = solveLeastSquares(problem, p0, { maxIterations: 200, ftol: 1e-12, xtol: 1e-12, skipCovariance: refit.sumSquaresOnly }, refit.work);
+  const solve = solveLeastSquares(
+    problem,
+    p0,
+    { maxIterations: 200, ftol: 1e-12, xtol: 1e-12, skipCovariance: refit.sumSquaresOnly },
+    refit.work,
+  );
   return { terms, solution, free, theta: expandTheta(base, free, solve.p), solve, k: free.length };
 }

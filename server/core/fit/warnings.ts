@@ -36,10 +36,16 @@ export function fitWarnings(ctx: WarningContext): FitWarning[] {
   const m = input.timeS.length;
 
   if (!solve.converged) {
-    w.push({ code: 'not-converged', message: `The solver stopped without converging (${solve.stopReason} after ${solve.iterations} iterations): do not use these numbers.` });
+    w.push({
+      code: 'not-converged',
+      message: `The solver stopped without converging (${solve.stopReason} after ${solve.iterations} iterations): do not use these numbers.`,
+    });
   }
   if (solve.rank < best.k) {
-    w.push({ code: 'rank-deficient', message: `The data cannot tell the parameters apart (Jacobian rank ${solve.rank} of ${best.k}): drop an optional term or use a longer window.` });
+    w.push({
+      code: 'rank-deficient',
+      message: `The data cannot tell the parameters apart (Jacobian rank ${solve.rank} of ${best.k}): drop an optional term or use a longer window.`,
+    });
   }
   const type = input.outlet.type ?? 'other';
   const band = USUAL_CD_BAND[type] ?? USUAL_CD_BAND.other;
@@ -51,7 +57,10 @@ export function fitWarnings(ctx: WarningContext): FitWarning[] {
     });
   }
   if (m < MIN_SAMPLES) {
-    w.push({ code: 'short-window', message: `Only ${m} samples in the fitted window; at least ${MIN_SAMPLES} are advisable.` });
+    w.push({
+      code: 'short-window',
+      message: `Only ${m} samples in the fitted window; at least ${MIN_SAMPLES} are advisable.`,
+    });
   }
   const zs = best.theta[THETA.sensorZero];
   const head0 = input.levelM[0] + zs - input.setting.outletElevationM;
@@ -65,7 +74,10 @@ export function fitWarnings(ctx: WarningContext): FitWarning[] {
   if (best.terms.exponent) {
     const n = best.theta[THETA.exponent];
     if (Math.abs(n - 0.5) > EXPONENT_TOLERANCE) {
-      w.push({ code: 'exponent-far-from-half', message: `Fitted head exponent n = ${fmt(n)}, far from 0.5 for an orifice: the outlet may be laminar, weir-like or partly blocked.` });
+      w.push({
+        code: 'exponent-far-from-half',
+        message: `Fitted head exponent n = ${fmt(n)}, far from 0.5 for an orifice: the outlet may be laminar, weir-like or partly blocked.`,
+      });
     }
   }
   const k = best.k;
@@ -74,12 +86,16 @@ export function fitWarnings(ctx: WarningContext): FitWarning[] {
     for (let j = i + 1; j < k; j++) {
       const r = unc.correlations[i * k + j];
       if (Math.abs(r) > CORRELATION_LIMIT) {
-        w.push({ code: 'high-correlation', message: `${names[i]} and ${names[j]} are correlated at ${fmt(r)}: their separate values are poorly determined.` });
+        w.push({
+          code: 'high-correlation',
+          message: `${names[i]} and ${names[j]} are correlated at ${fmt(r)}: their separate values are poorly determined.`,
+        });
       }
     }
   }
   for (const p of ctx.parameters) {
-    if (p.atBound) w.push({ code: 'at-bound', message: `${p.name} ended at its bound (${p.value}).` });
+    if (p.atBound)
+      w.push({ code: 'at-bound', message: `${p.name} ended at its bound (${p.value}).` });
   }
   if (unc.lag1Autocorrelation > 0.5) {
     w.push({
@@ -89,17 +105,26 @@ export function fitWarnings(ctx: WarningContext): FitWarning[] {
   }
   for (const row of ctx.comparison?.rows ?? []) {
     if (row.change === 'with' && row.fTest && row.fTest.pValue < 0.001 && row.deltaAic < -10) {
-      w.push({ code: 'term-suggested', message: `Adding the ${row.term} term improves the fit markedly (F-test p = ${row.fTest.pValue.toExponential(1)}, ΔAIC = ${fmt(row.deltaAic, 1)}): consider fitting it.` });
+      w.push({
+        code: 'term-suggested',
+        message: `Adding the ${row.term} term improves the fit markedly (F-test p = ${row.fTest.pValue.toExponential(1)}, ΔAIC = ${fmt(row.deltaAic, 1)}): consider fitting it.`,
+      });
     }
     if (row.change === 'without' && row.fTest && row.fTest.pValue > 0.05) {
-      w.push({ code: 'term-not-supported', message: `The ${row.term} term is not supported by the data (F-test p = ${fmt(row.fTest.pValue, 2)}); the simpler model is as good.` });
+      w.push({
+        code: 'term-not-supported',
+        message: `The ${row.term} term is not supported by the data (F-test p = ${fmt(row.fTest.pValue, 2)}); the simpler model is as good.`,
+      });
     }
   }
   if (ctx.bands.length >= 2) {
     const values = ctx.bands.map((b) => b.effectiveAreaM2);
     const spread = (Math.max(...values) - Math.min(...values)) / best.theta[THETA.effectiveArea];
     if (spread > 0.05) {
-      w.push({ code: 'cd-varies-with-head', message: `Cd·a varies by ${fmt(100 * spread, 1)} % across head bands: look at the low-head end (vortex, Reynolds effects) or the geometry.` });
+      w.push({
+        code: 'cd-varies-with-head',
+        message: `Cd·a varies by ${fmt(100 * spread, 1)} % across head bands: look at the low-head end (vortex, Reynolds effects) or the geometry.`,
+      });
     }
   }
   return w;

@@ -3,7 +3,9 @@ import { InputError } from '../errors.js';
 /** A dimension must be a finite positive number; the field path names it for the person. */
 export function positive(value: number, field: string): number {
   if (typeof value !== 'number' || !Number.isFinite(value) || value <= 0) {
-    throw new InputError(`must be a positive number (got ${String(value)})`, { field: `shape.${field}` });
+    throw new InputError(`must be a positive number (got ${String(value)})`, {
+      field: `shape.${field}`,
+    });
   }
   return value;
 }
@@ -13,7 +15,9 @@ export function heightOrOpen(value: number | undefined, atLeast: number, what: s
   if (value === undefined) return Number.POSITIVE_INFINITY;
   positive(value, 'heightM');
   if (value < atLeast) {
-    throw new InputError(`must be at least ${what} (${atLeast} m) (got ${value})`, { field: 'shape.heightM' });
+    throw new InputError(`must be at least ${what} (${atLeast} m) (got ${value})`, {
+      field: 'shape.heightM',
+    });
   }
   return value;
 }

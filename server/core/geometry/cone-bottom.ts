@@ -6,7 +6,11 @@ import { clampHeight, heightOrOpen, positive } from './check.js';
  * radius above it. In the cone the radius grows linearly, r = R·y/hc, so A = π·(R·y/hc)² and
  * V = π·R²·y³/(3·hc²); above it the cylinder adds π·R² per metre.
  */
-export function coneBottom(spec: { diameterM: number; coneHeightM: number; heightM?: number }): VesselShape {
+export function coneBottom(spec: {
+  diameterM: number;
+  coneHeightM: number;
+  heightM?: number;
+}): VesselShape {
   const d = positive(spec.diameterM, 'diameterM');
   const hc = positive(spec.coneHeightM, 'coneHeightM');
   const heightM = heightOrOpen(spec.heightM, hc, 'the cone height');

@@ -16,7 +16,7 @@ function thetaMinusSin(x: number): number {
   // x³/3! − x⁵/5! + x⁷/7! − …, truncated where the next term is below 1e-18 of the first.
   const x2 = x * x;
   return (
-    (x * x2 / 6) *
+    ((x * x2) / 6) *
     (1 - (x2 / 20) * (1 - (x2 / 42) * (1 - (x2 / 72) * (1 - (x2 / 110) * (1 - x2 / 156)))))
   );
 }
@@ -26,7 +26,8 @@ export function horizontalCylinder(spec: { diameterM: number; lengthM: number })
   const l = positive(spec.lengthM, 'lengthM');
   const r = d / 2;
   const full = Math.PI * r * r * l;
-  const lowerSegment = (h: number) => 0.5 * l * r * r * thetaMinusSin(4 * Math.asin(Math.sqrt(h / d)));
+  const lowerSegment = (h: number) =>
+    0.5 * l * r * r * thetaMinusSin(4 * Math.asin(Math.sqrt(h / d)));
   return {
     kind: 'horizontal-cylinder',
     heightM: d,

@@ -17,7 +17,11 @@ export function verticalCylinder(spec: { diameterM: number; heightM?: number }):
   return prism('vertical-cylinder', (Math.PI * d * d) / 4, heightOrOpen(spec.heightM, 0, 'zero'));
 }
 
-export function rectangular(spec: { lengthM: number; widthM: number; heightM?: number }): VesselShape {
+export function rectangular(spec: {
+  lengthM: number;
+  widthM: number;
+  heightM?: number;
+}): VesselShape {
   const l = positive(spec.lengthM, 'lengthM');
   const w = positive(spec.widthM, 'widthM');
   return prism('rectangular', l * w, heightOrOpen(spec.heightM, 0, 'zero'));

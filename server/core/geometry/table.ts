@@ -26,13 +26,19 @@ export function stageAreaTable(spec: { points: Array<[number, number]> }): Vesse
     }
     const [h, a] = p;
     if (typeof h !== 'number' || !Number.isFinite(h) || h < 0) {
-      throw new InputError(`height must be a number ≥ 0 (got ${String(h)})`, { field: `${field}.0` });
+      throw new InputError(`height must be a number ≥ 0 (got ${String(h)})`, {
+        field: `${field}.0`,
+      });
     }
     if (typeof a !== 'number' || !Number.isFinite(a) || a <= 0) {
-      throw new InputError(`area must be a positive number (got ${String(a)})`, { field: `${field}.1` });
+      throw new InputError(`area must be a positive number (got ${String(a)})`, {
+        field: `${field}.1`,
+      });
     }
     if (i > 0 && h <= hs[i - 1]) {
-      throw new InputError(`heights must increase strictly (got ${h} after ${hs[i - 1]})`, { field: `${field}.0` });
+      throw new InputError(`heights must increase strictly (got ${h} after ${hs[i - 1]})`, {
+        field: `${field}.0`,
+      });
     }
     hs[i] = h;
     as[i] = a;

@@ -24,18 +24,23 @@ export function scanBasicIso(s: string, a: number, b: number, p: DateTimeParts):
   while (b > a && (s.charCodeAt(b - 1) === 32 || s.charCodeAt(b - 1) === 9)) b--;
   // YYYYMMDDThhmm at the least
   if (b - a < 13 || (s.charCodeAt(a + 8) !== 84 && s.charCodeAt(a + 8) !== 116)) return false; // T or t
-  const y = digits(s, a, 4), mo = digits(s, a + 4, 2), d = digits(s, a + 6, 2);
-  const h = digits(s, a + 9, 2), mi = digits(s, a + 11, 2);
+  const y = digits(s, a, 4),
+    mo = digits(s, a + 4, 2),
+    d = digits(s, a + 6, 2);
+  const h = digits(s, a + 9, 2),
+    mi = digits(s, a + 11, 2);
   if (y < 0 || mo < 0 || d < 0 || h < 0 || mi < 0) return false;
   let i = a + 13;
-  let sec = 0, ms = 0;
+  let sec = 0,
+    ms = 0;
   if (i + 2 <= b && digits(s, i, 2) >= 0) {
     sec = digits(s, i, 2);
     i += 2;
     if (i < b && (s.charCodeAt(i) === 46 || s.charCodeAt(i) === 44)) {
       // decimal fraction of the second
       i++;
-      let scale = 100, any = false;
+      let scale = 100,
+        any = false;
       while (i < b && s.charCodeAt(i) >= D0 && s.charCodeAt(i) <= D0 + 9) {
         ms += (s.charCodeAt(i) - D0) * scale;
         scale /= 10;
@@ -48,7 +53,8 @@ export function scanBasicIso(s: string, a: number, b: number, p: DateTimeParts):
   let offset = NaN;
   if (i < b) {
     const c = s.charCodeAt(i);
-    if ((c === 90 || c === 122) && i + 1 === b) offset = 0; // Z
+    if ((c === 90 || c === 122) && i + 1 === b)
+      offset = 0; // Z
     else if (c === 43 || c === 45) {
       const len = b - i - 1;
       const oh = len >= 2 ? digits(s, i + 1, 2) : -1;

@@ -30,7 +30,10 @@ export function sortByTime(c: Columns): void {
 
 /** Drops rows whose time equals the previous row's; counts exact copies and conflicts apart. */
 export function dropRepeats(c: Columns): { copies: number; conflicts: number; firstLine: number } {
-  let w = 0, copies = 0, conflicts = 0, firstLine = 0;
+  let w = 0,
+    copies = 0,
+    conflicts = 0,
+    firstLine = 0;
   for (let i = 0; i < c.n; i++) {
     if (w > 0 && c.timeMs[i] === c.timeMs[w - 1]) {
       if (c.value[i] === c.value[w - 1]) copies++;
@@ -52,16 +55,21 @@ export function dropRepeats(c: Columns): { copies: number; conflicts: number; fi
 
 /** k-th smallest of a (modified in place), Hoare quickselect. */
 function select(a: Float64Array, k: number): number {
-  let lo = 0, hi = a.length - 1;
+  let lo = 0,
+    hi = a.length - 1;
   while (lo < hi) {
     const pivot = a[(lo + hi) >> 1];
-    let i = lo, j = hi;
+    let i = lo,
+      j = hi;
     while (i <= j) {
       while (a[i] < pivot) i++;
       while (a[j] > pivot) j--;
       if (i <= j) {
-        const x = a[i]; a[i] = a[j]; a[j] = x;
-        i++; j--;
+        const x = a[i];
+        a[i] = a[j];
+        a[j] = x;
+        i++;
+        j--;
       }
     }
     if (k <= j) hi = j;
@@ -97,7 +105,8 @@ export function findGaps(timeS: ArrayLike<number>, median = medianInterval(timeS
   const gaps: Gap[] = [];
   const limit = GAP_FACTOR * median;
   for (let i = 1; i < timeS.length; i++) {
-    if (timeS[i] - timeS[i - 1] > limit) gaps.push({ after: i - 1, startS: timeS[i - 1], endS: timeS[i] });
+    if (timeS[i] - timeS[i - 1] > limit)
+      gaps.push({ after: i - 1, startS: timeS[i - 1], endS: timeS[i] });
   }
   return gaps;
 }

@@ -43,8 +43,15 @@ export function countLines(bytes: Uint8Array): number {
   return cr + 1;
 }
 
-export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.' | ',', zone: ZoneResolver | null,
-  capacity: number, group = ''): Collected {
+export function collect(
+  rs: RowSource,
+  plan: Plan,
+  names: string[],
+  decimal: '.' | ',',
+  zone: ZoneResolver | null,
+  capacity: number,
+  group = '',
+): Collected {
   const fileName = rs.fileName;
   const timeMs = new Float64Array(capacity);
   const value = new Float64Array(capacity);
@@ -59,8 +66,17 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
   const grp = group ? group.charCodeAt(0) : 0;
   const p = newParts();
   const allowed = Math.max(1, Math.floor(MAX_BAD_ROW_FRACTION * capacity));
-  let n = 0, rows = 0, bad = 0, withOffset = 0, local = 0, repeated = 0;
-  let latest = -Infinity, outOfOrder = false, prevClock = -Infinity, dayAdd = 0, prevT = NaN;
+  let n = 0,
+    rows = 0,
+    bad = 0,
+    withOffset = 0,
+    local = 0,
+    repeated = 0;
+  let latest = -Infinity,
+    outOfOrder = false,
+    prevClock = -Infinity,
+    dayAdd = 0,
+    prevT = NaN;
   let hourBack: Collected['hourBack'] = null;
   let first: { line: number; field: string; text: string; why: string } | null = null;
   const badLines: number[] = [];
@@ -68,14 +84,22 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
   const refuse = (): never => {
     const f = first!;
     const shown = f.text.slice(0, 40).replace(/[\x00-\x1f]+/g, ' ');
-    throw new InputError(`${f.why} (cell "${shown}"); ${bad} of ${rows} rows unreadable, more than ${MAX_BAD_ROW_FRACTION * 100} % allowed`,
-      { file: fileName, line: f.line, field: f.field });
+    throw new InputError(
+      `${f.why} (cell "${shown}"); ${bad} of ${rows} rows unreadable, more than ${MAX_BAD_ROW_FRACTION * 100} % allowed`,
+      { file: fileName, line: f.line, field: f.field },
+    );
   };
   const cell = (r: Row, c: number) => r.src[c].slice(r.start[c], r.end[c]);
   const markBad = (r: Row, c: number, why: string): void => {
     bad++;
     if (badLines.length < 5) badLines.push(r.line);
-    if (!first) first = { line: r.line, field: names[c] ?? `column ${c + 1}`, text: c < r.count ? cell(r, c) : '', why };
+    if (!first)
+      first = {
+        line: r.line,
+        field: names[c] ?? `column ${c + 1}`,
+        text: c < r.count ? cell(r, c) : '',
+        why,
+      };
     if (bad > allowed) refuse();
   };
 
@@ -98,13 +122,25 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
         withOffset++;
         return utc;
       }
-      if (!(scanDateTime(r.src[tp.col], r.start[tp.col], r.end[tp.col], p) || scanBasicIso(r.src[tp.col], r.start[tp.col], r.end[tp.col], p)) || !p.hasDate) return NaN;
+      if (
+        !(
+          scanDateTime(r.src[tp.col], r.start[tp.col], r.end[tp.col], p) ||
+          scanBasicIso(r.src[tp.col], r.start[tp.col], r.end[tp.col], p)
+        ) ||
+        !p.hasDate
+      )
+        return NaN;
       wall = wallMs(p, tp.order);
     } else {
-      if (!scanDateTime(r.src[tp.dateCol], r.start[tp.dateCol], r.end[tp.dateCol], p) || !p.hasDate) return NaN;
+      if (!scanDateTime(r.src[tp.dateCol], r.start[tp.dateCol], r.end[tp.dateCol], p) || !p.hasDate)
+        return NaN;
       p.hasTime = false;
       const day = wallMs(p, tp.order);
-      if (!scanDateTime(r.src[tp.clockCol], r.start[tp.clockCol], r.end[tp.clockCol], p) || p.hasDate) return NaN;
+      if (
+        !scanDateTime(r.src[tp.clockCol], r.start[tp.clockCol], r.end[tp.clockCol], p) ||
+        p.hasDate
+      )
+        return NaN;
       wall = day + clockMs(p);
     }
     if (Number.isNaN(wall)) return NaN;
@@ -116,8 +152,10 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     if (!zone) return wall;
     const t = zone.resolve(wall, latest);
     if (zone.last === 'skipped')
-      throw new InputError(`${cell(r, timeCols[timeCols.length - 1])} does not exist in ${zone.zone}: the clocks skipped that hour (is the log in standard time all year? then give a fixed-offset zone)`,
-        { file: fileName, line: r.line, field: names[timeCols[timeCols.length - 1]] });
+      throw new InputError(
+        `${cell(r, timeCols[timeCols.length - 1])} does not exist in ${zone.zone}: the clocks skipped that hour (is the log in standard time all year? then give a fixed-offset zone)`,
+        { file: fileName, line: r.line, field: names[timeCols[timeCols.length - 1]] },
+      );
     if (zone.last === 'repeated') repeated++;
     return t;
   };
@@ -126,24 +164,33 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
   const tag = plan.tagFilter?.tag ?? '';
   forEachRow(rs, (r) => {
     // long format: only the rows of the tag being read
-    if (tagCol >= 0 && (tagCol >= r.count || r.src[tagCol].slice(r.start[tagCol], r.end[tagCol]).trim() !== tag)) return;
+    if (
+      tagCol >= 0 &&
+      (tagCol >= r.count || r.src[tagCol].slice(r.start[tagCol], r.end[tagCol]).trim() !== tag)
+    )
+      return;
     rows++;
     if (r.count < need) {
       markBad(r, r.count, `row has ${r.count} fields, ${need} needed`);
       return;
     }
     const t = timeOf(r);
-    if (!Number.isFinite(t) || Math.abs(t) > 8.64e15) { // the range of a JavaScript Date
+    if (!Number.isFinite(t) || Math.abs(t) > 8.64e15) {
+      // the range of a JavaScript Date
       markBad(r, timeCols[0], 'not a time');
       return;
     }
-    const v = grp ? parseGroupedNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec, grp) : parseNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec);
+    const v = grp
+      ? parseGroupedNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec, grp)
+      : parseNumber(r.src[vcol], r.start[vcol], r.end[vcol], dec);
     if (!Number.isFinite(v)) {
       markBad(r, vcol, 'not a number');
       return;
     }
     if (temp) {
-      const tv = grp ? parseGroupedNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec, grp) : parseNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec);
+      const tv = grp
+        ? parseGroupedNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec, grp)
+        : parseNumber(r.src[tcol], r.start[tcol], r.end[tcol], dec);
       if (!Number.isFinite(tv)) {
         markBad(r, tcol, 'temperature is not a number');
         return;
@@ -154,7 +201,8 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     else latest = t;
     // A step back by (nearly) one hour from the row before: the clocks went back.
     const back = prevT - t;
-    if (!hourBack && back >= 3_300_000 && back <= 3_601_000) hourBack = { line: r.line, stepS: back / 1000 };
+    if (!hourBack && back >= 3_300_000 && back <= 3_601_000)
+      hourBack = { line: r.line, stepS: back / 1000 };
     prevT = t;
     timeMs[n] = t;
     value[n] = v;
@@ -162,5 +210,19 @@ export function collect(rs: RowSource, plan: Plan, names: string[], decimal: '.'
     n++;
   });
   if (first && bad > Math.max(1, Math.floor(MAX_BAD_ROW_FRACTION * rows))) refuse();
-  return { n, timeMs, value, temp, line, rows, badRows: bad, badLines, outOfOrder, withOffset, local, repeated, hourBack };
+  return {
+    n,
+    timeMs,
+    value,
+    temp,
+    line,
+    rows,
+    badRows: bad,
+    badLines,
+    outOfOrder,
+    withOffset,
+    local,
+    repeated,
+    hourBack,
+  };
 }

@@ -31,18 +31,37 @@ export interface DateTimeParts {
 }
 
 export function newParts(): DateTimeParts {
-  return { hasDate: false, hasTime: false, yearFirst: false, n1: 0, n2: 0, n3: 0, n3Digits: 0,
-    hour: 0, minute: 0, second: 0, ms: 0, meridiem: 0, offsetMin: NaN, pos: 0, digits: 0 };
+  return {
+    hasDate: false,
+    hasTime: false,
+    yearFirst: false,
+    n1: 0,
+    n2: 0,
+    n3: 0,
+    n3Digits: 0,
+    hour: 0,
+    minute: 0,
+    second: 0,
+    ms: 0,
+    meridiem: 0,
+    offsetMin: NaN,
+    pos: 0,
+    digits: 0,
+  };
 }
 
-const D0 = 48, D9 = 57, COLON = 58, SPACE = 32;
+const D0 = 48,
+  D9 = 57,
+  COLON = 58,
+  SPACE = 32;
 
 function isDigit(c: number): boolean {
   return c >= D0 && c <= D9;
 }
 
 function digitsAt(s: string, b: number, max: number, p: DateTimeParts): number {
-  let v = 0, n = 0;
+  let v = 0,
+    n = 0;
   while (p.pos < b && n < max && isDigit(s.charCodeAt(p.pos))) {
     v = v * 10 + (s.charCodeAt(p.pos) - D0);
     p.pos++;
@@ -86,7 +105,8 @@ export function scanDateTime(s: string, a: number, b: number, p: DateTimeParts):
     if (p.yearFirst ? p.digits > 2 : p.digits === 3) return false;
     if (p.pos >= b) return true;
     const c = s.charCodeAt(p.pos);
-    if (c === 84 || c === 116) p.pos++; // T
+    if (c === 84 || c === 116)
+      p.pos++; // T
     else if (c === SPACE || c === 9 || c === 44) {
       p.pos++;
       skipSpaces(s, b, p);
@@ -114,7 +134,9 @@ function scanClock(s: string, b: number, p: DateTimeParts): boolean {
     const c = s.charCodeAt(p.pos);
     if (p.pos < b && (c === 46 || c === 44)) {
       p.pos++;
-      let scale = 100, ms = 0, n = 0;
+      let scale = 100,
+        ms = 0,
+        n = 0;
       while (p.pos < b && isDigit(s.charCodeAt(p.pos))) {
         ms += (s.charCodeAt(p.pos) - D0) * scale;
         scale /= 10;
@@ -187,26 +209,83 @@ function scanOffset(s: string, b: number, p: DateTimeParts): boolean {
  */
 export function isoZuluMs(s: string, a: number, b: number): number {
   const len = b - a;
-  if ((len !== 20 && len !== 24) || s.charCodeAt(a + 4) !== 45 || s.charCodeAt(a + 7) !== 45 || s.charCodeAt(a + 10) !== 84 ||
-    s.charCodeAt(a + 13) !== COLON || s.charCodeAt(a + 16) !== COLON || s.charCodeAt(b - 1) !== 90) return NaN;
+  if (
+    (len !== 20 && len !== 24) ||
+    s.charCodeAt(a + 4) !== 45 ||
+    s.charCodeAt(a + 7) !== 45 ||
+    s.charCodeAt(a + 10) !== 84 ||
+    s.charCodeAt(a + 13) !== COLON ||
+    s.charCodeAt(a + 16) !== COLON ||
+    s.charCodeAt(b - 1) !== 90
+  )
+    return NaN;
   // Small integers only (no NaN in the arithmetic): digit values, and a flag for any non-digit
   // (a character below '0' makes the OR negative).
-  const c0 = s.charCodeAt(a) - D0, c1 = s.charCodeAt(a + 1) - D0, c2 = s.charCodeAt(a + 2) - D0, c3 = s.charCodeAt(a + 3) - D0;
-  const c5 = s.charCodeAt(a + 5) - D0, c6 = s.charCodeAt(a + 6) - D0, c8 = s.charCodeAt(a + 8) - D0, c9 = s.charCodeAt(a + 9) - D0;
-  const c11 = s.charCodeAt(a + 11) - D0, c12 = s.charCodeAt(a + 12) - D0, c14 = s.charCodeAt(a + 14) - D0, c15 = s.charCodeAt(a + 15) - D0;
-  const c17 = s.charCodeAt(a + 17) - D0, c18 = s.charCodeAt(a + 18) - D0;
-  let bad = (c0 | c1 | c2 | c3 | c5 | c6 | c8 | c9 | c11 | c12 | c14 | c15 | c17 | c18) < 0 ||
-    c0 > 9 || c1 > 9 || c2 > 9 || c3 > 9 || c5 > 9 || c6 > 9 || c8 > 9 || c9 > 9 || c11 > 9 || c12 > 9 || c14 > 9 || c15 > 9 || c17 > 9 || c18 > 9;
+  const c0 = s.charCodeAt(a) - D0,
+    c1 = s.charCodeAt(a + 1) - D0,
+    c2 = s.charCodeAt(a + 2) - D0,
+    c3 = s.charCodeAt(a + 3) - D0;
+  const c5 = s.charCodeAt(a + 5) - D0,
+    c6 = s.charCodeAt(a + 6) - D0,
+    c8 = s.charCodeAt(a + 8) - D0,
+    c9 = s.charCodeAt(a + 9) - D0;
+  const c11 = s.charCodeAt(a + 11) - D0,
+    c12 = s.charCodeAt(a + 12) - D0,
+    c14 = s.charCodeAt(a + 14) - D0,
+    c15 = s.charCodeAt(a + 15) - D0;
+  const c17 = s.charCodeAt(a + 17) - D0,
+    c18 = s.charCodeAt(a + 18) - D0;
+  let bad =
+    (c0 | c1 | c2 | c3 | c5 | c6 | c8 | c9 | c11 | c12 | c14 | c15 | c17 | c18) < 0 ||
+    c0 > 9 ||
+    c1 > 9 ||
+    c2 > 9 ||
+    c3 > 9 ||
+    c5 > 9 ||
+    c6 > 9 ||
+    c8 > 9 ||
+    c9 > 9 ||
+    c11 > 9 ||
+    c12 > 9 ||
+    c14 > 9 ||
+    c15 > 9 ||
+    c17 > 9 ||
+    c18 > 9;
   let ms = 0;
   if (len === 24) {
-    const f0 = s.charCodeAt(a + 20) - D0, f1 = s.charCodeAt(a + 21) - D0, f2 = s.charCodeAt(a + 22) - D0;
-    bad = bad || s.charCodeAt(a + 19) !== 46 || f0 < 0 || f0 > 9 || f1 < 0 || f1 > 9 || f2 < 0 || f2 > 9;
+    const f0 = s.charCodeAt(a + 20) - D0,
+      f1 = s.charCodeAt(a + 21) - D0,
+      f2 = s.charCodeAt(a + 22) - D0;
+    bad =
+      bad ||
+      s.charCodeAt(a + 19) !== 46 ||
+      f0 < 0 ||
+      f0 > 9 ||
+      f1 < 0 ||
+      f1 > 9 ||
+      f2 < 0 ||
+      f2 > 9;
     ms = f0 * 100 + f1 * 10 + f2;
   }
   if (bad) return NaN;
-  const y = c0 * 1000 + c1 * 100 + c2 * 10 + c3, m = c5 * 10 + c6, d = c8 * 10 + c9;
-  const h = c11 * 10 + c12, mi = c14 * 10 + c15, sec = c17 * 10 + c18;
-  if (y < 1900 || y > 2200 || m < 1 || m > 12 || d < 1 || d > daysIn(y, m) || h > 23 || mi > 59 || sec > 59) return NaN;
+  const y = c0 * 1000 + c1 * 100 + c2 * 10 + c3,
+    m = c5 * 10 + c6,
+    d = c8 * 10 + c9;
+  const h = c11 * 10 + c12,
+    mi = c14 * 10 + c15,
+    sec = c17 * 10 + c18;
+  if (
+    y < 1900 ||
+    y > 2200 ||
+    m < 1 ||
+    m > 12 ||
+    d < 1 ||
+    d > daysIn(y, m) ||
+    h > 23 ||
+    mi > 59 ||
+    sec > 59
+  )
+    return NaN;
   return daysFromCivil(y, m, d) * 86400000 + (((h * 60 + mi) * 60 + sec) * 1000 + ms);
 }
 
@@ -244,11 +323,19 @@ export function clockMs(p: DateTimeParts): number {
 export function wallMs(p: DateTimeParts, order: DateOrder): number {
   let y: number, m: number, d: number;
   if (p.yearFirst || order === 'ymd') {
-    y = p.n1; m = p.n2; d = p.n3;
+    y = p.n1;
+    m = p.n2;
+    d = p.n3;
     if (!p.yearFirst) y += y < 70 ? 2000 : 1900;
   } else {
     y = p.n3;
-    if (order === 'dmy') { d = p.n1; m = p.n2; } else { m = p.n1; d = p.n2; }
+    if (order === 'dmy') {
+      d = p.n1;
+      m = p.n2;
+    } else {
+      m = p.n1;
+      d = p.n2;
+    }
     // Two-digit years: 70–99 are 19xx, 00–69 are 20xx (common practice, as in POSIX strptime %y).
     if (p.n3Digits === 2) y += y < 70 ? 2000 : 1900;
   }

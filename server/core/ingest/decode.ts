@@ -15,21 +15,37 @@ export interface EncodingGuess {
 }
 
 export function detectEncoding(bytes: Uint8Array): EncodingGuess {
-  const b0 = bytes[0], b1 = bytes[1], b2 = bytes[2];
-  if (b0 === 0xef && b1 === 0xbb && b2 === 0xbf) return { encoding: 'utf-8', bomBytes: 3, reason: 'UTF-8 byte-order mark' };
-  if (b0 === 0xff && b1 === 0xfe) return { encoding: 'utf-16le', bomBytes: 2, reason: 'UTF-16 little-endian byte-order mark' };
-  if (b0 === 0xfe && b1 === 0xff) return { encoding: 'utf-16be', bomBytes: 2, reason: 'UTF-16 big-endian byte-order mark' };
+  const b0 = bytes[0],
+    b1 = bytes[1],
+    b2 = bytes[2];
+  if (b0 === 0xef && b1 === 0xbb && b2 === 0xbf)
+    return { encoding: 'utf-8', bomBytes: 3, reason: 'UTF-8 byte-order mark' };
+  if (b0 === 0xff && b1 === 0xfe)
+    return { encoding: 'utf-16le', bomBytes: 2, reason: 'UTF-16 little-endian byte-order mark' };
+  if (b0 === 0xfe && b1 === 0xff)
+    return { encoding: 'utf-16be', bomBytes: 2, reason: 'UTF-16 big-endian byte-order mark' };
   // Without a mark, UTF-16 text of mostly ASCII shows a NUL in every other byte.
   const n = Math.min(bytes.length & ~1, 4096);
-  let evenNul = 0, oddNul = 0;
+  let evenNul = 0,
+    oddNul = 0;
   for (let i = 0; i < n; i += 2) {
     if (bytes[i] === 0) evenNul++;
     if (bytes[i + 1] === 0) oddNul++;
   }
   const pairs = n / 2;
   if (pairs >= 4) {
-    if (oddNul > 0.4 * pairs && evenNul < 0.05 * pairs) return { encoding: 'utf-16le', bomBytes: 0, reason: 'NUL in every second byte (UTF-16 little-endian without mark)' };
-    if (evenNul > 0.4 * pairs && oddNul < 0.05 * pairs) return { encoding: 'utf-16be', bomBytes: 0, reason: 'NUL in every first byte (UTF-16 big-endian without mark)' };
+    if (oddNul > 0.4 * pairs && evenNul < 0.05 * pairs)
+      return {
+        encoding: 'utf-16le',
+        bomBytes: 0,
+        reason: 'NUL in every second byte (UTF-16 little-endian without mark)',
+      };
+    if (evenNul > 0.4 * pairs && oddNul < 0.05 * pairs)
+      return {
+        encoding: 'utf-16be',
+        bomBytes: 0,
+        reason: 'NUL in every first byte (UTF-16 big-endian without mark)',
+      };
   }
   return { encoding: 'utf-8', bomBytes: 0, reason: 'no byte-order mark; read as UTF-8' };
 }
@@ -51,7 +67,10 @@ export function* textChunks(
   chunkBytes = 1 << 20,
   lineAt: (offsetInChunk: number, chunk: string) => number = () => 0,
 ): Generator<string> {
-  const dec = new TextDecoder(guess.encoding, { fatal: guess.encoding === 'utf-8', ignoreBOM: true });
+  const dec = new TextDecoder(guess.encoding, {
+    fatal: guess.encoding === 'utf-8',
+    ignoreBOM: true,
+  });
   // In UTF-8 and 8-bit text a 0x0A byte is always a line feed: pieces that end just after one
   // need no text carried over to the next, so the caller scans flat strings, not joined ones
   // (reading characters of a joined string is several times slower).
@@ -78,21 +97,32 @@ export function* textChunks(
     if (m) {
       const line = lineAt(m.index, text);
       const code = text.charCodeAt(m.index).toString(16).padStart(4, '0');
-      throw new InputError(`binary content (character U+${code}): this does not look like a text log`, {
-        file: fileName,
-        ...(line > 0 ? { line } : {}),
-      });
+      throw new InputError(
+        `binary content (character U+${code}): this does not look like a text log`,
+        {
+          file: fileName,
+          ...(line > 0 ? { line } : {}),
+        },
+      );
     }
     yield text;
   }
 }
 
 /** The first `maxBytes` of the file as text (an incomplete last character held back). */
-export function decodeHead(bytes: Uint8Array, guess: EncodingGuess, maxBytes: number, fileName: string): string {
+export function decodeHead(
+  bytes: Uint8Array,
+  guess: EncodingGuess,
+  maxBytes: number,
+  fileName: string,
+): string {
   const end = Math.min(bytes.length, guess.bomBytes + maxBytes);
   let text: string;
   try {
-    const dec = new TextDecoder(guess.encoding, { fatal: guess.encoding === 'utf-8', ignoreBOM: true });
+    const dec = new TextDecoder(guess.encoding, {
+      fatal: guess.encoding === 'utf-8',
+      ignoreBOM: true,
+    });
     text = dec.decode(bytes.subarray(guess.bomBytes, end), { stream: end < bytes.length });
   } catch {
     throw new NotUtf8();
@@ -102,7 +132,10 @@ export function decodeHead(bytes: Uint8Array, guess: EncodingGuess, maxBytes: nu
     let line = 1;
     for (let i = text.indexOf('\n'); i >= 0 && i < m.index; i = text.indexOf('\n', i + 1)) line++;
     const code = text.charCodeAt(m.index).toString(16).padStart(4, '0');
-    throw new InputError(`binary content (character U+${code}): this does not look like a text log`, { file: fileName, line });
+    throw new InputError(
+      `binary content (character U+${code}): this does not look like a text log`,
+      { file: fileName, line },
+    );
   }
   return text.replace(/^\uFEFF/, '');
 }

@@ -25,7 +25,8 @@ export interface LogDescription {
 }
 
 function range(a: Float64Array): { min: number; max: number } {
-  let min = Infinity, max = -Infinity;
+  let min = Infinity,
+    max = -Infinity;
   for (let i = 0; i < a.length; i++) {
     if (a[i] < min) min = a[i];
     if (a[i] > max) max = a[i];
@@ -34,19 +35,35 @@ function range(a: Float64Array): { min: number; max: number } {
 }
 
 export function describeLog(series: LevelSeries): LogDescription {
-  const t = series.timeS, n = t.length;
+  const t = series.timeS,
+    n = t.length;
   const median = n >= 2 ? medianInterval(t) : 0;
   const durationS = n ? t[n - 1] - t[0] : 0;
-  const iso = (s: number) => (series.t0EpochMs === null ? null : new Date(series.t0EpochMs + s * 1000).toISOString());
+  const iso = (s: number) =>
+    series.t0EpochMs === null ? null : new Date(series.t0EpochMs + s * 1000).toISOString();
   const lv = range(series.levelM);
   return {
     samples: n,
-    columns: series.columns.map(({ index, header, role, unit, reason }) => ({ index, header, role, unit, reason })),
+    columns: series.columns.map(({ index, header, role, unit, reason }) => ({
+      index,
+      header,
+      role,
+      unit,
+      reason,
+    })),
     start: n ? iso(t[0]) : null,
     end: n ? iso(t[n - 1]) : null,
     durationS,
     medianIntervalS: median,
-    gaps: n >= 2 ? findGaps(t, median).map((g) => ({ afterLine: series.sourceLine[g.after], startS: g.startS, endS: g.endS, durationS: g.endS - g.startS })) : [],
+    gaps:
+      n >= 2
+        ? findGaps(t, median).map((g) => ({
+            afterLine: series.sourceLine[g.after],
+            startS: g.startS,
+            endS: g.endS,
+            durationS: g.endS - g.startS,
+          }))
+        : [],
     level: { minM: lv.min, maxM: lv.max, firstM: series.levelM[0], lastM: series.levelM[n - 1] },
     temperatureC: series.temperatureC ? range(series.temperatureC) : null,
     metadata: series.metadata,

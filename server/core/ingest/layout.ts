@@ -31,20 +31,31 @@ export interface Layout {
   notes: ReadNote[];
 }
 
-const CANDIDATES: [string, string][] = [['\t', 'tab'], [';', 'semicolon'], ['|', 'pipe'], [',', 'comma']];
+const CANDIDATES: [string, string][] = [
+  ['\t', 'tab'],
+  [';', 'semicolon'],
+  ['|', 'pipe'],
+  [',', 'comma'],
+];
 const SAMPLE_ROWS = 200;
 
 function parseRows(head: string, delimiter: string): HeadRow[] {
   // Without a quote anywhere, CSV fields are the text between delimiters: split directly (what
   // papaparse itself does then), one line a row, instead of running its parser four times.
   if (head.indexOf('"') < 0) return splitRows(head, delimiter);
-  const res = Papa.parse<string[]>(head, { delimiter, newline: '\n', quoteChar: '"', skipEmptyLines: false });
+  const res = Papa.parse<string[]>(head, {
+    delimiter,
+    newline: '\n',
+    quoteChar: '"',
+    skipEmptyLines: false,
+  });
   const rows: HeadRow[] = [];
   let line = 1;
   for (const fields of res.data) {
     rows.push({ line, fields });
     line += 1;
-    for (const f of fields) for (let i = f.indexOf('\n'); i >= 0; i = f.indexOf('\n', i + 1)) line++;
+    for (const f of fields)
+      for (let i = f.indexOf('\n'); i >= 0; i = f.indexOf('\n', i + 1)) line++;
   }
   return rows.filter((r) => r.fields.some((f) => f.trim() !== ''));
 }
@@ -63,13 +74,18 @@ const parts = newParts();
 
 /** A cell that reads as data: a number in either decimal style, or a date/time. */
 export function isDataCell(f: string): boolean {
-  return !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_DOT)) ||
-    !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_COMMA)) || GROUPED.test(f) ||
-    scanDateTime(f, 0, f.length, parts) || scanBasicIso(f, 0, f.length, parts);
+  return (
+    !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_DOT)) ||
+    !Number.isNaN(parseNumber(f, 0, f.length, DECIMAL_COMMA)) ||
+    GROUPED.test(f) ||
+    scanDateTime(f, 0, f.length, parts) ||
+    scanBasicIso(f, 0, f.length, parts)
+  );
 }
 
 function dataLike(fields: string[]): boolean {
-  let filled = 0, data = 0;
+  let filled = 0,
+    data = 0;
   for (const f of fields) {
     if (f.trim() === '') continue;
     filled++;
@@ -80,7 +96,8 @@ function dataLike(fields: string[]): boolean {
 
 function headerLike(fields: string[], n: number): boolean {
   if (fields.length !== n) return false;
-  let filled = 0, data = 0;
+  let filled = 0,
+    data = 0;
   for (const f of fields) {
     if (f.trim() === '') continue;
     filled++;
@@ -91,16 +108,26 @@ function headerLike(fields: string[], n: number): boolean {
 
 function mode(values: number[]): number {
   const counts = new Map<number, number>();
-  let best = 0, bestN = 0;
+  let best = 0,
+    bestN = 0;
   for (const v of values) {
     const n = (counts.get(v) ?? 0) + 1;
     counts.set(v, n);
-    if (n > bestN || (n === bestN && v > best)) { best = v; bestN = n; }
+    if (n > bestN || (n === bestN && v > best)) {
+      best = v;
+      bestN = n;
+    }
   }
   return best;
 }
 
-interface Scored { delimiter: string; label: string; rows: HeadRow[]; count: number; score: number }
+interface Scored {
+  delimiter: string;
+  label: string;
+  rows: HeadRow[];
+  count: number;
+  score: number;
+}
 
 function score(head: string, delimiter: string, label: string): Scored {
   const rows = parseRows(head, delimiter);
@@ -110,8 +137,13 @@ function score(head: string, delimiter: string, label: string): Scored {
   // Lines from the end that keep the same field count: data rows and (usually) the header.
   let run = 0;
   for (let i = rows.length - 1; i >= 0 && rows[i].fields.length === count; i--) run++;
-  let cells = 0, data = 0;
-  for (const r of tail.slice(0, 50)) for (const f of r.fields) { cells++; if (isDataCell(f)) data++; }
+  let cells = 0,
+    data = 0;
+  for (const r of tail.slice(0, 50))
+    for (const f of r.fields) {
+      cells++;
+      if (isDataCell(f)) data++;
+    }
   return { delimiter, label, rows, count, score: run + (cells ? data / cells : 0) };
 }
 
@@ -120,31 +152,50 @@ function metaEntry(line: number, text: string, fields: string[]): LevelSeries['m
   const kv = /^([^:=]{1,60}?)\s*[:=]\s*(.*)$/.exec(clean);
   const filled = fields.map((f) => f.trim()).filter(Boolean);
   if (kv && kv[1].trim()) return { line, text, key: kv[1].trim(), value: kv[2].trim() };
-  if (filled.length === 2) return { line, text, key: filled[0].replace(/^#\s*/, ''), value: filled[1] };
+  if (filled.length === 2)
+    return { line, text, key: filled[0].replace(/^#\s*/, ''), value: filled[1] };
   return { line, text };
 }
 
-export function findLayout(head: string, fileName: string, opts: { delimiter?: string; decimal?: '.' | ',' }): Layout {
+export function findLayout(
+  head: string,
+  fileName: string,
+  opts: { delimiter?: string; decimal?: '.' | ',' },
+): Layout {
   const notes: ReadNote[] = [];
   let chosen: Scored;
   if (opts.delimiter !== undefined) {
     const d = opts.delimiter === 'tab' || opts.delimiter === '\\t' ? '\t' : opts.delimiter;
     if (d.length !== 1 || d === '"' || d === '\n' || d === '\r')
-      throw new InputError(`delimiter must be one character (or "tab"), got "${opts.delimiter}"`, { file: fileName, field: 'delimiter' });
+      throw new InputError(`delimiter must be one character (or "tab"), got "${opts.delimiter}"`, {
+        file: fileName,
+        field: 'delimiter',
+      });
     chosen = score(head, d, JSON.stringify(d));
     notes.push({ code: 'delimiter', message: `fields split on ${chosen.label}, as given` });
   } else {
     // A delimiter absent from the head gives one field a line, which never scores: not split.
-    const scored = CANDIDATES.map(([d, l]) => (head.indexOf(d) < 0 ? { delimiter: d, label: l, rows: [], count: 1, score: -1 } : score(head, d, l)));
+    const scored = CANDIDATES.map(([d, l]) =>
+      head.indexOf(d) < 0
+        ? { delimiter: d, label: l, rows: [], count: 1, score: -1 }
+        : score(head, d, l),
+    );
     chosen = scored.reduce((a, b) => (b.score > a.score ? b : a));
     if (chosen.score < 0) {
-      throw new InputError('found no delimiter (comma, semicolon, tab or pipe) that splits the lines into columns; give --delimiter', { file: fileName });
+      throw new InputError(
+        'found no delimiter (comma, semicolon, tab or pipe) that splits the lines into columns; give --delimiter',
+        { file: fileName },
+      );
     }
-    notes.push({ code: 'delimiter', message: `fields split on ${chosen.label}: it gives ${chosen.count} fields on the most lines` });
+    notes.push({
+      code: 'delimiter',
+      message: `fields split on ${chosen.label}: it gives ${chosen.count} fields on the most lines`,
+    });
   }
   const rows = chosen.rows;
   const n = chosen.count;
-  const isData = (i: number) => i < rows.length && rows[i].fields.length >= n && dataLike(rows[i].fields);
+  const isData = (i: number) =>
+    i < rows.length && rows[i].fields.length >= n && dataLike(rows[i].fields);
   // Data start where three rows in a row read as data; prefer the first such run that
   // follows a header-like row, so "key;number" metadata lines are not taken for data.
   let first = -1;
@@ -154,29 +205,61 @@ export function findLayout(head: string, fileName: string, opts: { delimiter?: s
     for (let k = 0; k < need && ok; k++) ok = isData(i + k);
     if (!ok) continue;
     if (first < 0) first = i;
-    if (i > 0 && headerLike(rows[i - 1].fields, n)) { first = i; break; }
+    if (i > 0 && headerLike(rows[i - 1].fields, n)) {
+      first = i;
+      break;
+    }
   }
   const lastLine = rows.length ? rows[rows.length - 1].line : 0;
   if (first < 0) {
     const h = rows.findIndex((r) => headerLike(r.fields, n));
     if (h >= 0 && h === rows.length - 1)
-      throw new InputError('the file has a header but no data rows', { file: fileName, line: rows[h].line });
-    throw new InputError('found no rows of numbers or times to read', { file: fileName, ...(lastLine ? { line: lastLine } : {}) });
+      throw new InputError('the file has a header but no data rows', {
+        file: fileName,
+        line: rows[h].line,
+      });
+    throw new InputError('found no rows of numbers or times to read', {
+      file: fileName,
+      ...(lastLine ? { line: lastLine } : {}),
+    });
   }
   const prev = first > 0 ? rows[first - 1] : null;
   const hasHeader = prev !== null && headerLike(prev.fields, n);
   const headerIdx = hasHeader ? first - 1 : first;
   const lines = head.split('\n');
   const metadata: Layout['metadata'] = [];
-  for (const r of rows.slice(0, headerIdx)) metadata.push(metaEntry(r.line, lines[r.line - 1] ?? r.fields.join(chosen.delimiter), r.fields));
-  const names = hasHeader ? prev!.fields.map((f) => f.replace(/^\uFEFF/, '').trim()) : Array.from({ length: n }, (_, i) => `column ${i + 1}`);
-  if (hasHeader) notes.push({ code: 'header', message: `header on line ${prev!.line}${metadata.length ? `, after ${metadata.length} line(s) of metadata` : ''}` });
+  for (const r of rows.slice(0, headerIdx))
+    metadata.push(
+      metaEntry(r.line, lines[r.line - 1] ?? r.fields.join(chosen.delimiter), r.fields),
+    );
+  const names = hasHeader
+    ? prev!.fields.map((f) => f.replace(/^\uFEFF/, '').trim())
+    : Array.from({ length: n }, (_, i) => `column ${i + 1}`);
+  if (hasHeader)
+    notes.push({
+      code: 'header',
+      message: `header on line ${prev!.line}${metadata.length ? `, after ${metadata.length} line(s) of metadata` : ''}`,
+    });
   else notes.push({ code: 'header', message: 'no header row: columns are named by position' });
   const sample = rows.slice(first, first + SAMPLE_ROWS);
 
-  const { decimal, group } = numberFormat(sample.flatMap((r) => r.fields), chosen.delimiter, opts.decimal, fileName, notes);
+  const { decimal, group } = numberFormat(
+    sample.flatMap((r) => r.fields),
+    chosen.delimiter,
+    opts.decimal,
+    fileName,
+    notes,
+  );
   return {
-    delimiter: chosen.delimiter, decimal, group, headerLine: hasHeader ? prev!.line : null, names, fieldCount: n,
-    dataAfterLine: hasHeader ? prev!.line : rows[first].line - 1, metadata, sample, notes,
+    delimiter: chosen.delimiter,
+    decimal,
+    group,
+    headerLine: hasHeader ? prev!.line : null,
+    names,
+    fieldCount: n,
+    dataAfterLine: hasHeader ? prev!.line : rows[first].line - 1,
+    metadata,
+    sample,
+    notes,
   };
 }

@@ -21,7 +21,8 @@ export interface TagColumns {
   unitCol: number;
 }
 
-const TAG_WORDS = /^(tag|tags|tagname|tag name|tag id|tagid|name|point|point name|pointname|signal|variable|channel|item|parameter|series|sensor|measurement)$/i;
+const TAG_WORDS =
+  /^(tag|tags|tagname|tag name|tag id|tagid|name|point|point name|pointname|signal|variable|channel|item|parameter|series|sensor|measurement)$/i;
 const UNIT_WORDS = /^(unit|units|uom|eu|eng units|engineering units|engunits|unit of measure)$/i;
 
 /** Words, not a number or a date and time ("11:59 PM" and "20260611T070000Z" have letters too). */
@@ -38,7 +39,9 @@ function isText(f: string): boolean {
 export function findTagColumns(layout: Layout): TagColumns | null {
   const n = layout.fieldCount;
   // the time column, roughly: the first whose first cell looks like a date or clock time
-  const timeCol = layout.names.findIndex((_, c) => /\d[-:/.T]\d|^\s*\d{8}T/.test(layout.sample[0]?.fields[c] ?? ''));
+  const timeCol = layout.names.findIndex((_, c) =>
+    /\d[-:/.T]\d|^\s*\d{8}T/.test(layout.sample[0]?.fields[c] ?? ''),
+  );
   const textCols: number[] = [];
   for (let c = 0; c < n; c++) {
     if (c === timeCol) continue;
@@ -54,7 +57,8 @@ export function findTagColumns(layout: Layout): TagColumns | null {
   if (new Set(times).size === times.length) return null;
   // several rows at one time that differ in a text column: that column names them (rows merely
   // pasted twice repeat their text too, and stay an ordinary file)
-  let best = -1, bestDistinct = 1;
+  let best = -1,
+    bestDistinct = 1;
   for (const c of candidates) {
     const atTime = new Map<string, Set<string>>();
     layout.sample.forEach((r, i) => {
@@ -87,7 +91,9 @@ export function listTags(rs: RowSource, cols: TagColumns): TagSummary[] {
 }
 
 export function tagList(tags: TagSummary[]): string {
-  const shown = tags.slice(0, 12).map((t) => `"${t.tag}"${t.unit ? ` [${t.unit}]` : ''} (${t.rows} rows)`);
+  const shown = tags
+    .slice(0, 12)
+    .map((t) => `"${t.tag}"${t.unit ? ` [${t.unit}]` : ''} (${t.rows} rows)`);
   return shown.join(', ') + (tags.length > 12 ? `, … (${tags.length} tags)` : '');
 }
 
@@ -95,9 +101,19 @@ export function tagList(tags: TagSummary[]): string {
  * The tag to read: the one named (matched without regard to case), or the only one. Refuses,
  * listing the tags, when none is named and there are several, or the named one is absent.
  */
-export function pickTag(tags: TagSummary[], wanted: string | undefined, fileName: string, what: 'level' | 'barometric', tagHeader: string): TagSummary {
+export function pickTag(
+  tags: TagSummary[],
+  wanted: string | undefined,
+  fileName: string,
+  what: 'level' | 'barometric',
+  tagHeader: string,
+): TagSummary {
   const option = what === 'level' ? '--level-tag' : '--baro-tag';
-  if (tags.length === 0) throw new InputError(`the tag column "${tagHeader}" is empty`, { file: fileName, field: tagHeader });
+  if (tags.length === 0)
+    throw new InputError(`the tag column "${tagHeader}" is empty`, {
+      file: fileName,
+      field: tagHeader,
+    });
   if (wanted === undefined) {
     if (tags.length === 1) return tags[0];
     throw new InputError(
@@ -108,6 +124,10 @@ export function pickTag(tags: TagSummary[], wanted: string | undefined, fileName
   }
   const want = wanted.trim().toLowerCase();
   const hit = tags.find((t) => t.tag.toLowerCase() === want);
-  if (!hit) throw new InputError(`no tag "${wanted}" in column "${tagHeader}" (tags: ${tagList(tags)})`, { file: fileName, field: what === 'level' ? 'levelTag' : 'baroTag' });
+  if (!hit)
+    throw new InputError(`no tag "${wanted}" in column "${tagHeader}" (tags: ${tagList(tags)})`, {
+      file: fileName,
+      field: what === 'level' ? 'levelTag' : 'baroTag',
+    });
   return hit;
 }

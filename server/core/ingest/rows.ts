@@ -34,7 +34,13 @@ export interface RowSource {
 
 /** Calls onRow for every non-blank row after the header. */
 export function forEachRow(rs: RowSource, onRow: (row: Row) => void): void {
-  const row: Row = { line: 0, count: 0, src: new Array<string>(MAX_FIELDS).fill(''), start: new Int32Array(MAX_FIELDS), end: new Int32Array(MAX_FIELDS) };
+  const row: Row = {
+    line: 0,
+    count: 0,
+    src: new Array<string>(MAX_FIELDS).fill(''),
+    start: new Int32Array(MAX_FIELDS),
+    end: new Int32Array(MAX_FIELDS),
+  };
   const nl = rs.newline;
   const delim = rs.delimiter;
   let line = 1; // line number of the first line of `carry`
@@ -56,15 +62,25 @@ export function forEachRow(rs: RowSource, onRow: (row: Row) => void): void {
     let cut = last ? text.length : text.lastIndexOf(nl) + 1;
     const quoted = text.indexOf('"') >= 0 && text.indexOf('"') < cut;
     if (quoted && !last) cut = evenQuoteCut(text, cut, nl);
-    if (cut <= 0) { carry = text; continue; }
+    if (cut <= 0) {
+      carry = text;
+      continue;
+    }
     line = splitPiece(text, cut, line, rs, delim, row, onRow);
     carry = cut < text.length ? text.slice(cut) : '';
   }
   if (carry.length) splitPiece(carry, carry.length, line, rs, delim, row, onRow);
 }
 
-function splitPiece(text: string, cut: number, line: number, rs: RowSource, delim: string, row: Row,
-  onRow: (row: Row) => void): number {
+function splitPiece(
+  text: string,
+  cut: number,
+  line: number,
+  rs: RowSource,
+  delim: string,
+  row: Row,
+  onRow: (row: Row) => void,
+): number {
   const done = plainPiece(text, cut, line, rs, delim, row, onRow);
   if (done.stop >= cut) return done.line;
   return quotedPiece(text.slice(done.stop, cut), done.line, rs, row, onRow);
@@ -92,8 +108,15 @@ function evenQuoteCut(text: string, cut: number, nl: string): number {
  * are split here too (offsets inside the quotes); at the first line that needs more, returns
  * its offset so the rest of the piece goes to papaparse.
  */
-function plainPiece(text: string, cut: number, line: number, rs: RowSource, delim: string, row: Row,
-  onRow: (row: Row) => void): { line: number; stop: number } {
+function plainPiece(
+  text: string,
+  cut: number,
+  line: number,
+  rs: RowSource,
+  delim: string,
+  row: Row,
+  onRow: (row: Row) => void,
+): { line: number; stop: number } {
   const nl = rs.newline;
   let p = 0;
   let nextQuote = text.indexOf('"');
@@ -125,7 +148,8 @@ function plainPiece(text: string, cut: number, line: number, rs: RowSource, deli
  * own: V8 optimises it after a few hundred lines, long before the loop over the piece would be.
  */
 function splitFields(text: string, p: number, e: number, delim: string, row: Row): void {
-  let count = 0, s = p;
+  let count = 0,
+    s = p;
   for (;;) {
     let d = text.indexOf(delim, s);
     if (d < 0 || d > e) d = e;
@@ -156,20 +180,25 @@ function blankRow(row: Row): boolean {
 /** Simple quoted fields on one line; false when the line needs a full CSV parser. */
 function splitQuoted(text: string, p: number, e: number, delim: string, row: Row): boolean {
   const dc = delim.charCodeAt(0);
-  let count = 0, s = p;
+  let count = 0,
+    s = p;
   for (;;) {
     let a: number, b: number, after: number;
     if (s < e && text.charCodeAt(s) === 34) {
       const q = text.indexOf('"', s + 1);
       if (q < 0 || q >= e || (q + 1 < e && text.charCodeAt(q + 1) === 34)) return false;
       if (q + 1 < e && text.charCodeAt(q + 1) !== dc) return false;
-      a = s + 1; b = q; after = q + 1;
+      a = s + 1;
+      b = q;
+      after = q + 1;
     } else {
       let d = text.indexOf(delim, s);
       if (d < 0 || d > e) d = e;
       const q = text.indexOf('"', s);
       if (q >= 0 && q < d) return false;
-      a = s; b = d; after = d;
+      a = s;
+      b = d;
+      after = d;
     }
     if (count < MAX_FIELDS) {
       row.src[count] = text;
@@ -184,10 +213,20 @@ function splitQuoted(text: string, p: number, e: number, delim: string, row: Row
   return true;
 }
 
-function quotedPiece(piece: string, line: number, rs: RowSource, row: Row,
-  onRow: (row: Row) => void): number {
+function quotedPiece(
+  piece: string,
+  line: number,
+  rs: RowSource,
+  row: Row,
+  onRow: (row: Row) => void,
+): number {
   const crlf = rs.newline === '\n' && piece.indexOf('\r\n') >= 0;
-  const res = Papa.parse<string[]>(piece, { delimiter: rs.delimiter, newline: crlf ? '\r\n' : rs.newline, quoteChar: '"', skipEmptyLines: false });
+  const res = Papa.parse<string[]>(piece, {
+    delimiter: rs.delimiter,
+    newline: crlf ? '\r\n' : rs.newline,
+    quoteChar: '"',
+    skipEmptyLines: false,
+  });
   const data = res.data;
   // A piece that ends with a line break yields one empty row after it: not a line.
   const rows = data.length && piece.endsWith(rs.newline) ? data.length - 1 : data.length;

@@ -24,7 +24,11 @@ export function isZip(bytes: Uint8Array): boolean {
 function hasEntry(bytes: Uint8Array, name: string): boolean {
   // zip entry names are stored uncompressed in the local headers and the central directory
   const first = name.charCodeAt(0);
-  for (let i = bytes.indexOf(first); i >= 0 && i + name.length <= bytes.length; i = bytes.indexOf(first, i + 1)) {
+  for (
+    let i = bytes.indexOf(first);
+    i >= 0 && i + name.length <= bytes.length;
+    i = bytes.indexOf(first, i + 1)
+  ) {
     let k = 1;
     while (k < name.length && bytes[i + k] === name.charCodeAt(k)) k++;
     if (k === name.length) return true;
@@ -51,33 +55,65 @@ export interface WorkbookText {
 }
 
 /** The named (or first) sheet of an .xlsx workbook as tab-separated UTF-8 text. */
-export async function workbookAsText(bytes: Uint8Array, fileName: string, sheet?: string, maxBytes = DEFAULT_MAX_BYTES): Promise<WorkbookText> {
-  if (bytes.length > maxBytes) throw new InputError(`file is ${bytes.length} bytes, more than the ${maxBytes} allowed`, { file: fileName });
+export async function workbookAsText(
+  bytes: Uint8Array,
+  fileName: string,
+  sheet?: string,
+  maxBytes = DEFAULT_MAX_BYTES,
+): Promise<WorkbookText> {
+  if (bytes.length > maxBytes)
+    throw new InputError(`file is ${bytes.length} bytes, more than the ${maxBytes} allowed`, {
+      file: fileName,
+    });
   if (!hasEntry(bytes, 'xl/workbook.xml')) {
-    throw new InputError('a zip archive that is not an .xlsx workbook (no xl/workbook.xml): export the sheet as CSV, or give the .xlsx file', { file: fileName });
+    throw new InputError(
+      'a zip archive that is not an .xlsx workbook (no xl/workbook.xml): export the sheet as CSV, or give the .xlsx file',
+      { file: fileName },
+    );
   }
   let sheets: { sheet: string; data: unknown[][] }[];
   try {
-    const ab = bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer;
+    const ab = bytes.buffer.slice(
+      bytes.byteOffset,
+      bytes.byteOffset + bytes.byteLength,
+    ) as ArrayBuffer;
     sheets = (await readXlsxFile(ab)) as unknown as { sheet: string; data: unknown[][] }[];
   } catch (e) {
     const why = e instanceof Error ? e.message.split('\n')[0].slice(0, 120) : 'unreadable';
-    throw new InputError(`the workbook cannot be read (${why}): the file is damaged or not an .xlsx workbook`, { file: fileName });
+    throw new InputError(
+      `the workbook cannot be read (${why}): the file is damaged or not an .xlsx workbook`,
+      { file: fileName },
+    );
   }
   const names = sheets.map((s) => s.sheet);
   if (names.length === 0) throw new InputError('the workbook has no sheets', { file: fileName });
-  const chosen = sheet === undefined ? sheets[0] : sheets.find((s) => s.sheet.trim().toLowerCase() === sheet.trim().toLowerCase());
-  if (!chosen) throw new InputError(`no sheet named "${sheet}" (sheets: ${names.map((n) => `"${n}"`).join(', ')})`, { file: fileName, field: 'sheet' });
+  const chosen =
+    sheet === undefined
+      ? sheets[0]
+      : sheets.find((s) => s.sheet.trim().toLowerCase() === sheet.trim().toLowerCase());
+  if (!chosen)
+    throw new InputError(
+      `no sheet named "${sheet}" (sheets: ${names.map((n) => `"${n}"`).join(', ')})`,
+      { file: fileName, field: 'sheet' },
+    );
   const lines: string[] = [];
   let size = 0;
   for (const row of chosen.data) {
     const line = row.map(cellText).join('\t');
     size += line.length + 1;
     if (size > maxBytes) {
-      throw new InputError(`sheet "${chosen.sheet}" holds more than ${maxBytes} bytes of data, more than allowed`, { file: fileName, field: 'sheet' });
+      throw new InputError(
+        `sheet "${chosen.sheet}" holds more than ${maxBytes} bytes of data, more than allowed`,
+        { file: fileName, field: 'sheet' },
+      );
     }
     lines.push(line);
   }
-  if (lines.every((l) => l.trim() === '')) throw new InputError(`sheet "${chosen.sheet}" is empty`, { file: fileName, field: 'sheet' });
-  return { bytes: new TextEncoder().encode(lines.join('\n') + '\n'), sheet: chosen.sheet, sheets: names };
+  if (lines.every((l) => l.trim() === ''))
+    throw new InputError(`sheet "${chosen.sheet}" is empty`, { file: fileName, field: 'sheet' });
+  return {
+    bytes: new TextEncoder().encode(lines.join('\n') + '\n'),
+    sheet: chosen.sheet,
+    sheets: names,
+  };
 }

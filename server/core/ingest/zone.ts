@@ -17,32 +17,62 @@ export class ZoneResolver {
   /** How the last call resolved. */
   last: Resolution = 'ok';
 
-  constructor(readonly zone: string, fileName: string) {
+  constructor(
+    readonly zone: string,
+    fileName: string,
+  ) {
     try {
       this.fmt = new Intl.DateTimeFormat('en-US', {
-        timeZone: zone, hourCycle: 'h23', year: 'numeric', month: 'numeric', day: 'numeric',
-        hour: 'numeric', minute: 'numeric', second: 'numeric',
+        timeZone: zone,
+        hourCycle: 'h23',
+        year: 'numeric',
+        month: 'numeric',
+        day: 'numeric',
+        hour: 'numeric',
+        minute: 'numeric',
+        second: 'numeric',
       });
     } catch {
-      throw new InputError(`unknown time zone "${zone}" (give an IANA name such as Europe/Lisbon)`, {
-        file: fileName, field: 'tz',
-      });
+      throw new InputError(
+        `unknown time zone "${zone}" (give an IANA name such as Europe/Lisbon)`,
+        {
+          file: fileName,
+          field: 'tz',
+        },
+      );
     }
   }
 
   /** Offset east of UTC, ms, at an instant. */
   offsetAt(instantMs: number): number {
     const t = Math.floor(instantMs / 1000) * 1000;
-    let y = 0, mo = 0, d = 0, h = 0, mi = 0, s = 0;
+    let y = 0,
+      mo = 0,
+      d = 0,
+      h = 0,
+      mi = 0,
+      s = 0;
     for (const part of this.fmt.formatToParts(t)) {
       const v = Number(part.value);
       switch (part.type) {
-        case 'year': y = v; break;
-        case 'month': mo = v; break;
-        case 'day': d = v; break;
-        case 'hour': h = v; break;
-        case 'minute': mi = v; break;
-        case 'second': s = v; break;
+        case 'year':
+          y = v;
+          break;
+        case 'month':
+          mo = v;
+          break;
+        case 'day':
+          d = v;
+          break;
+        case 'hour':
+          h = v;
+          break;
+        case 'minute':
+          mi = v;
+          break;
+        case 'second':
+          s = v;
+          break;
       }
     }
     return daysFromCivil(y, mo, d) * 86400000 + ((h * 60 + mi) * 60 + s) * 1000 - t;
@@ -60,10 +90,14 @@ export class ZoneResolver {
       // The instant lies within 14 h of the wall time (the largest offsets); the offsets in
       // force 26 h either side cover that with margin, and zones change offset months apart.
       // When they differ, find the transition instant to the second by bisection.
-      const lo = wall - WINDOW, hi = wall + WINDOW, a = this.offsetAt(lo), b = this.offsetAt(hi);
+      const lo = wall - WINDOW,
+        hi = wall + WINDOW,
+        a = this.offsetAt(lo),
+        b = this.offsetAt(hi);
       if (a === b) offs = [a];
       else {
-        let l = lo, r = hi;
+        let l = lo,
+          r = hi;
         while (r - l > 1000) {
           const m = Math.floor((l + r) / 2000) * 1000;
           if (this.offsetAt(m) === a) l = m;
@@ -78,8 +112,10 @@ export class ZoneResolver {
       return wall - offs[0];
     }
     const [a, b, transition] = offs;
-    const before = wall - a, after = wall - b;
-    const okBefore = before < transition, okAfter = after >= transition;
+    const before = wall - a,
+      after = wall - b;
+    const okBefore = before < transition,
+      okAfter = after >= transition;
     if (!okBefore && !okAfter) {
       this.last = 'skipped';
       return NaN;

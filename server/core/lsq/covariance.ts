@@ -15,7 +15,12 @@ export interface CovarianceFromR {
 }
 
 /** R is n×n column-major; column j of R belongs to parameter ipvt[j]. */
-export function covarianceFromR(R: Float64Array, n: number, ipvt: Int32Array, m: number): CovarianceFromR {
+export function covarianceFromR(
+  R: Float64Array,
+  n: number,
+  ipvt: Int32Array,
+  m: number,
+): CovarianceFromR {
   const rows: number[][] = [];
   for (let i = 0; i < n; i++) {
     const row = new Array<number>(n);
@@ -30,18 +35,31 @@ export function covarianceFromR(R: Float64Array, n: number, ipvt: Int32Array, m:
  * rowWeight[r] (W = diag(rowWeight²)), as the joint fit needs (per-log AR(1) factors). The columns
  * are equilibrated first so parameters of very different size (m² and m) keep their digits.
  */
-export function covarianceFromJacobian(J: Float64Array, m: number, n: number, rowWeight: Float64Array): CovarianceFromR {
+export function covarianceFromJacobian(
+  J: Float64Array,
+  m: number,
+  n: number,
+  rowWeight: Float64Array,
+): CovarianceFromR {
   const scale = new Float64Array(n);
-  for (let r = 0; r < m; r++) for (let j = 0; j < n; j++) scale[j] += (J[r * n + j] * rowWeight[r]) ** 2;
+  for (let r = 0; r < m; r++)
+    for (let j = 0; j < n; j++) scale[j] += (J[r * n + j] * rowWeight[r]) ** 2;
   for (let j = 0; j < n; j++) scale[j] = scale[j] > 0 ? Math.sqrt(scale[j]) : 1;
   const a = new Matrix(m, n);
-  for (let r = 0; r < m; r++) for (let j = 0; j < n; j++) a.set(r, j, (J[r * n + j] * rowWeight[r]) / scale[j]);
+  for (let r = 0; r < m; r++)
+    for (let j = 0; j < n; j++) a.set(r, j, (J[r * n + j] * rowWeight[r]) / scale[j]);
   const identity = Int32Array.from({ length: n }, (_, j) => j);
   return pseudoInverse(a, n, m, identity, scale);
 }
 
 /** Pseudo-inverse of AᵀA from A's SVD; entry (a, b) goes to (perm[a], perm[b]), divided by colScale[a]·colScale[b]. */
-function pseudoInverse(a: Matrix, n: number, m: number, perm: Int32Array, colScale: Float64Array | null): CovarianceFromR {
+function pseudoInverse(
+  a: Matrix,
+  n: number,
+  m: number,
+  perm: Int32Array,
+  colScale: Float64Array | null,
+): CovarianceFromR {
   const svd = new SingularValueDecomposition(a, {
     computeLeftSingularVectors: false,
     computeRightSingularVectors: true,

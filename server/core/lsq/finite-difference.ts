@@ -6,7 +6,11 @@
  */
 import type { LeastSquaresProblem } from './types.js';
 
-export function finiteDifferenceJacobian(problem: LeastSquaresProblem, p: Float64Array, central = true): Float64Array {
+export function finiteDifferenceJacobian(
+  problem: LeastSquaresProblem,
+  p: Float64Array,
+  central = true,
+): Float64Array {
   const { m, n } = problem;
   const J = new Float64Array(m * n);
   const r0 = new Float64Array(m);

@@ -47,18 +47,28 @@ function finite(v: Float64Array): boolean {
   return true;
 }
 
-function validate(problem: LeastSquaresProblem, p0: Float64Array): { lower: Float64Array; upper: Float64Array } {
+function validate(
+  problem: LeastSquaresProblem,
+  p0: Float64Array,
+): { lower: Float64Array; upper: Float64Array } {
   const { m, n } = problem;
-  if (!Number.isInteger(n) || n < 1) throw new InputError('the problem needs at least one parameter', { field: 'n' });
-  if (!Number.isInteger(m) || m < n) throw new InputError(`${m} residuals cannot determine ${n} parameters`, { field: 'm' });
-  if (p0.length !== n) throw new InputError(`start has ${p0.length} values for ${n} parameters`, { field: 'p0' });
+  if (!Number.isInteger(n) || n < 1)
+    throw new InputError('the problem needs at least one parameter', { field: 'n' });
+  if (!Number.isInteger(m) || m < n)
+    throw new InputError(`${m} residuals cannot determine ${n} parameters`, { field: 'm' });
+  if (p0.length !== n)
+    throw new InputError(`start has ${p0.length} values for ${n} parameters`, { field: 'p0' });
   const lower = problem.lower ?? new Float64Array(n).fill(-Infinity);
   const upper = problem.upper ?? new Float64Array(n).fill(Infinity);
-  if (lower.length !== n || upper.length !== n) throw new InputError('bounds must have one value per parameter', { field: 'bounds' });
+  if (lower.length !== n || upper.length !== n)
+    throw new InputError('bounds must have one value per parameter', { field: 'bounds' });
   for (let j = 0; j < n; j++) {
-    if (!Number.isFinite(p0[j])) throw new InputError(`start value ${j} is not a finite number`, { field: `p0[${j}]` });
+    if (!Number.isFinite(p0[j]))
+      throw new InputError(`start value ${j} is not a finite number`, { field: `p0[${j}]` });
     if (Number.isNaN(lower[j]) || Number.isNaN(upper[j]) || lower[j] > upper[j]) {
-      throw new InputError(`bounds of parameter ${j} are empty or not numbers`, { field: `bounds[${j}]` });
+      throw new InputError(`bounds of parameter ${j} are empty or not numbers`, {
+        field: `bounds[${j}]`,
+      });
     }
   }
   return { lower, upper };
@@ -90,7 +100,12 @@ function residualNorm(r: Float64Array): number {
   return finite(r) ? euclideanNorm(r) : NaN;
 }
 
-export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array, options: SolveOptions = {}, work?: SolveWorkspace): SolveResult {
+export function solveLeastSquares(
+  problem: LeastSquaresProblem,
+  p0: Float64Array,
+  options: SolveOptions = {},
+  work?: SolveWorkspace,
+): SolveResult {
   const opt = { ...DEFAULT_SOLVE_OPTIONS, ...stripUndefined(options) };
   const { lower, upper } = validate(problem, p0);
   const { m, n } = problem;
@@ -116,8 +131,18 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
   const step = new Float64Array(n);
   const trial = new Float64Array(n);
   const w3 = new Float64Array(n);
-  const qrw = { ipvt: new Int32Array(n), rdiag: new Float64Array(n), acnorm: new Float64Array(n), wa: new Float64Array(n) };
-  const lmw = { wa1: new Float64Array(n), wa2: new Float64Array(n), sdiag: new Float64Array(n), wa4: new Float64Array(n) };
+  const qrw = {
+    ipvt: new Int32Array(n),
+    rdiag: new Float64Array(n),
+    acnorm: new Float64Array(n),
+    wa: new Float64Array(n),
+  };
+  const lmw = {
+    wa1: new Float64Array(n),
+    wa2: new Float64Array(n),
+    sdiag: new Float64Array(n),
+    wa4: new Float64Array(n),
+  };
 
   let evaluations = 0;
   let jacobianEvaluations = 0;
@@ -144,7 +169,8 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
   // The start is evaluated with its Jacobian at once: the first iteration needs both.
   let startOk = jacobianAt(x);
   const startJacobianRefused = !startOk;
-  if (startJacobianRefused && Number.isNaN(residualsAt(x, fvec))) return failedStart(problem, x, fvec, evaluations);
+  if (startJacobianRefused && Number.isNaN(residualsAt(x, fvec)))
+    return failedStart(problem, x, fvec, evaluations);
   let fnorm = startOk ? jacobianNorm : residualNorm(fvec);
   let par = 0;
   let delta = 0;
@@ -204,7 +230,9 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
     nf = 0;
     for (let j = 0; j < n; j++) {
       const pinned =
-        lower[j] === upper[j] || (x[j] <= lower[j] && grad[j] > 0) || (x[j] >= upper[j] && grad[j] < 0);
+        lower[j] === upper[j] ||
+        (x[j] <= lower[j] && grad[j] > 0) ||
+        (x[j] >= upper[j] && grad[j] < 0);
       isFree[j] = pinned ? 0 : 1;
       if (!pinned) free[nf++] = j;
     }
@@ -334,7 +362,8 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
       if (smallReduction) stopReason = 'relative-reduction';
       else if (smallStep) stopReason = 'relative-step';
       else if (evaluations >= opt.maxEvaluations) stopReason = 'max-evaluations';
-      else if (Math.abs(actred) <= EPS && prered <= EPS && 0.5 * ratio <= 1) stopReason = 'relative-reduction';
+      else if (Math.abs(actred) <= EPS && prered <= EPS && 0.5 * ratio <= 1)
+        stopReason = 'relative-reduction';
       else if (delta <= EPS * xnorm) stopReason = 'relative-step';
       else if (gnorm <= EPS) stopReason = 'gradient-orthogonal';
       if (stopReason !== null) {
@@ -348,13 +377,52 @@ export function solveLeastSquares(problem: LeastSquaresProblem, p0: Float64Array
 
   const reason: StopReason = stopReason ?? 'max-iterations';
   if (opt.skipCovariance) {
-    return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, reason, lower, upper, false, a);
+    return finish(
+      problem,
+      x,
+      fvec,
+      J,
+      iterations,
+      evaluations,
+      jacobianEvaluations,
+      reason,
+      lower,
+      upper,
+      false,
+      a,
+    );
   }
   if (!jacobianCurrent && !(jacobianAt(x) && finite(J))) {
     // The accepted point's Jacobian is unusable; report what we have.
-    return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, 'not-finite', lower, upper, false, a);
+    return finish(
+      problem,
+      x,
+      fvec,
+      J,
+      iterations,
+      evaluations,
+      jacobianEvaluations,
+      'not-finite',
+      lower,
+      upper,
+      false,
+      a,
+    );
   }
-  return finish(problem, x, fvec, J, iterations, evaluations, jacobianEvaluations, reason, lower, upper, true, a);
+  return finish(
+    problem,
+    x,
+    fvec,
+    J,
+    iterations,
+    evaluations,
+    jacobianEvaluations,
+    reason,
+    lower,
+    upper,
+    true,
+    a,
+  );
 }
 
 function scaledNorm(d: Float64Array, v: Float64Array, n: number): number {
@@ -398,7 +466,12 @@ function finish(
     // Full pivoted QR of J at p, then the SVD of the n×n factor.
     const a = scratchMn;
     gatherColumns(J, m, n, null, n, a);
-    const w = { ipvt: new Int32Array(n), rdiag: new Float64Array(n), acnorm: new Float64Array(n), wa: new Float64Array(n) };
+    const w = {
+      ipvt: new Int32Array(n),
+      rdiag: new Float64Array(n),
+      acnorm: new Float64Array(n),
+      wa: new Float64Array(n),
+    };
     householderQr(a, m, n, true, w);
     const R = new Float64Array(n * n);
     extractR(a, m, n, w.rdiag, R);
@@ -425,7 +498,12 @@ function finish(
   };
 }
 
-function failedStart(problem: LeastSquaresProblem, x: Float64Array, fvec: Float64Array, evaluations: number): SolveResult {
+function failedStart(
+  problem: LeastSquaresProblem,
+  x: Float64Array,
+  fvec: Float64Array,
+  evaluations: number,
+): SolveResult {
   const { m, n } = problem;
   const sumSquares = sumOfSquares(fvec.length === m ? fvec : fvec.subarray(0, m));
   return {

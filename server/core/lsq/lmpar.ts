@@ -94,7 +94,8 @@ export function lmParameter(
     const fpOld = fp;
     fp = dxnorm - delta;
     // Accept when within 10 % of Δ, or when parl = 0 and the step can only shrink further.
-    if (Math.abs(fp) <= 0.1 * delta || (parl === 0 && fp <= fpOld && fpOld < 0) || iter === 10) break;
+    if (Math.abs(fp) <= 0.1 * delta || (parl === 0 && fp <= fpOld && fpOld < 0) || iter === 10)
+      break;
     // Newton correction to par.
     for (let j = 0; j < n; j++) {
       const l = ipvt[j];

@@ -16,7 +16,14 @@ export function sumOfSquares(v: Float64Array): number {
  * One pass over the rows of the row-major m×n J: colNormSq[j] = Σ J_ij², grad[j] = Σ J_ij·r_i
  * (both accumulated in row order).
  */
-export function columnSumsOfSquaresAndGradient(J: Float64Array, r: Float64Array, m: number, n: number, colNormSq: Float64Array, grad: Float64Array): void {
+export function columnSumsOfSquaresAndGradient(
+  J: Float64Array,
+  r: Float64Array,
+  m: number,
+  n: number,
+  colNormSq: Float64Array,
+  grad: Float64Array,
+): void {
   colNormSq.fill(0);
   grad.fill(0);
   if (n === 2) {
@@ -51,7 +58,14 @@ export function columnSumsOfSquaresAndGradient(J: Float64Array, r: Float64Array,
 }
 
 /** a (column-major m×count) ← the columns cols[0..count−1] of the row-major m×n J. */
-export function gatherColumns(J: Float64Array, m: number, n: number, cols: Int32Array | null, count: number, a: Float64Array): void {
+export function gatherColumns(
+  J: Float64Array,
+  m: number,
+  n: number,
+  cols: Int32Array | null,
+  count: number,
+  a: Float64Array,
+): void {
   for (let k = 0; k < count; k++) {
     const j = cols ? cols[k] : k;
     const col = k * m;

@@ -29,7 +29,13 @@ function plainNorm(s: number): number {
   return s > 1e-280 && s < 1e280 ? Math.sqrt(s) : s === 0 ? 0 : NaN;
 }
 
-export function householderQr(a: Float64Array, m: number, n: number, pivot: boolean, w: QrWork): void {
+export function householderQr(
+  a: Float64Array,
+  m: number,
+  n: number,
+  pivot: boolean,
+  w: QrWork,
+): void {
   const { ipvt, rdiag, acnorm, wa } = w;
   for (let j = 0; j < n; j++) {
     acnorm[j] = euclideanNorm(a, j * m, m);
@@ -124,7 +130,14 @@ export function householderQr(a: Float64Array, m: number, n: number, pivot: bool
  * out[0..n-1] = first n entries of Qᵀ·b, using the reflections left in `a` by householderQr.
  * `scratch` (length m) receives the whole of Qᵀ·b; b is not modified.
  */
-export function applyQt(a: Float64Array, m: number, n: number, b: Float64Array, scratch: Float64Array, out: Float64Array): void {
+export function applyQt(
+  a: Float64Array,
+  m: number,
+  n: number,
+  b: Float64Array,
+  scratch: Float64Array,
+  out: Float64Array,
+): void {
   const minmn = Math.min(m, n);
   // The copy and each reflection are fused with the next reflection's dot product; every sum is
   // accumulated in the same order as separate passes would, so the result is the same to the bit.
@@ -164,7 +177,13 @@ export function applyQt(a: Float64Array, m: number, n: number, b: Float64Array, 
 }
 
 /** Copy R (n×n, upper triangular, column-major with leading dimension n) out of the factored `a`. */
-export function extractR(a: Float64Array, m: number, n: number, rdiag: Float64Array, R: Float64Array): void {
+export function extractR(
+  a: Float64Array,
+  m: number,
+  n: number,
+  rdiag: Float64Array,
+  R: Float64Array,
+): void {
   for (let j = 0; j < n; j++) {
     for (let i = 0; i < n; i++) {
       R[j * n + i] = i < j ? a[j * m + i] : i === j ? rdiag[j] : 0;

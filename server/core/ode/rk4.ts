@@ -73,7 +73,8 @@ export function integrateRk4(problem: OdeProblem, z0: Float64Array, timeS: Float
     problem.rates(t + 0.5 * h, tmp, k3);
     for (let j = 0; j < dim; j++) tmp[j] = z[j] + h * k3[j];
     problem.rates(t + h, tmp, k4);
-    for (let j = 0; j < dim; j++) zNext[j] = z[j] + (h / 6) * (dz[j] + 2 * k2[j] + 2 * k3[j] + k4[j]);
+    for (let j = 0; j < dim; j++)
+      zNext[j] = z[j] + (h / 6) * (dz[j] + 2 * k2[j] + 2 * k3[j] + k4[j]);
     const tNext = toBreak ? breaks[b] : t + h;
     for (let j = 0; j < dim; j++) if (!Number.isFinite(zNext[j])) return false;
     problem.rates(tNext, zNext, dzNext);
@@ -117,7 +118,8 @@ function hermiteOutput(
     const h10 = (s3 - 2 * s2 + s) * h;
     const h01 = -2 * s3 + 3 * s2;
     const h11 = (s3 - s2) * h;
-    for (let j = 0; j < dim; j++) state[j] = h00 * z[j] + h10 * dz[j] + h01 * zNext[j] + h11 * dzNext[j];
+    for (let j = 0; j < dim; j++)
+      state[j] = h00 * z[j] + h10 * dz[j] + h01 * zNext[j] + h11 * dzNext[j];
     problem.write(i++, state);
   }
   return i;
@@ -140,7 +142,12 @@ export function holdAtOutlet(
   count: number,
   stride: number,
 ): boolean {
-  if (before[level] < outletM - DRAINED_TOLERANCE_M || z[level] > outletM + DRAINED_TOLERANCE_M || dz[level] > 0) return false;
+  if (
+    before[level] < outletM - DRAINED_TOLERANCE_M ||
+    z[level] > outletM + DRAINED_TOLERANCE_M ||
+    dz[level] > 0
+  )
+    return false;
   z[level] = Math.max(outletM, 0);
   dz[level] = 0;
   for (let c = 0; c < count; c++) {

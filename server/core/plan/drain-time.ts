@@ -9,7 +9,12 @@ import type { DrainSetting } from '../drain/parameters.js';
  */
 const PANELS = 2000;
 
-export function drainTimeS(setting: DrainSetting, effectiveAreaM2: number, fromSurfaceM: number, toSurfaceM: number): number {
+export function drainTimeS(
+  setting: DrainSetting,
+  effectiveAreaM2: number,
+  fromSurfaceM: number,
+  toSurfaceM: number,
+): number {
   const zo = setting.outletElevationM;
   const s0 = Math.sqrt(Math.max(fromSurfaceM - zo, 0));
   const s1 = Math.sqrt(Math.max(toSurfaceM - zo, 0));
@@ -38,7 +43,13 @@ export interface DrainCurve {
 }
 
 /** The level and outflow against time from the opening down to `toSurfaceM`, at `points` levels evenly spaced in √head. */
-export function drainCurve(setting: DrainSetting, effectiveAreaM2: number, fromSurfaceM: number, toSurfaceM: number, points = 121): DrainCurve {
+export function drainCurve(
+  setting: DrainSetting,
+  effectiveAreaM2: number,
+  fromSurfaceM: number,
+  toSurfaceM: number,
+  points = 121,
+): DrainCurve {
   const zo = setting.outletElevationM;
   const s0 = Math.sqrt(Math.max(fromSurfaceM - zo, 0));
   const s1 = Math.sqrt(Math.max(toSurfaceM - zo, 0));
@@ -55,7 +66,12 @@ export function drainCurve(setting: DrainSetting, effectiveAreaM2: number, fromS
 }
 
 /** Surface elevation after `timeS` of draining from `fromSurfaceM` (bisection on the drain time). */
-export function surfaceAfter(setting: DrainSetting, effectiveAreaM2: number, fromSurfaceM: number, timeS: number): number {
+export function surfaceAfter(
+  setting: DrainSetting,
+  effectiveAreaM2: number,
+  fromSurfaceM: number,
+  timeS: number,
+): number {
   const zo = setting.outletElevationM;
   if (setting.shape.constantArea) {
     const c = (effectiveAreaM2 * Math.sqrt(2 * setting.gravity)) / setting.shape.areaM2(zo);

@@ -43,7 +43,9 @@ export interface PlannedWindow {
  */
 export function relativeTypeAByLength(w: PlannedWindow, noise: NoiseModel): Float64Array {
   const m = w.samples;
-  const free = w.datumFitted ? Int32Array.of(THETA.effectiveArea, THETA.initialReading, THETA.sensorZero) : Int32Array.of(THETA.effectiveArea, THETA.initialReading);
+  const free = w.datumFitted
+    ? Int32Array.of(THETA.effectiveArea, THETA.initialReading, THETA.sensorZero)
+    : Int32Array.of(THETA.effectiveArea, THETA.initialReading);
   const k = free.length;
   const theta = new Float64Array(THETA_SIZE);
   theta[THETA.effectiveArea] = w.effectiveAreaM2;
@@ -54,19 +56,28 @@ export function relativeTypeAByLength(w: PlannedWindow, noise: NoiseModel): Floa
   for (let i = 0; i < m; i++) timeS[i] = i * w.sampleIntervalS;
   const readings = new Float64Array(m);
   const jac = new Float64Array(m * k);
-  if (!predictReadings(w.setting, solutionFor(w.setting, false), theta, timeS, readings, jac, free)) {
+  if (
+    !predictReadings(w.setting, solutionFor(w.setting, false), theta, timeS, readings, jac, free)
+  ) {
     throw new RangeError('planned drain outside the model domain');
   }
   return prefixInverseCorner(jac, m, k, noise.varianceM2 * noise.inflation, w.effectiveAreaM2);
 }
 
 /** Running JᵀJ over the rows; at each row √(scale·[(JᵀJ)⁻¹]₀₀)/value. */
-function prefixInverseCorner(jac: Float64Array, m: number, k: number, scale: number, value: number): Float64Array {
+function prefixInverseCorner(
+  jac: Float64Array,
+  m: number,
+  k: number,
+  scale: number,
+  value: number,
+): Float64Array {
   const out = new Float64Array(m);
   const a = new Float64Array(k * k);
   for (let i = 0; i < m; i++) {
     const row = i * k;
-    for (let p = 0; p < k; p++) for (let q = p; q < k; q++) a[p * k + q] += jac[row + p] * jac[row + q];
+    for (let p = 0; p < k; p++)
+      for (let q = p; q < k; q++) a[p * k + q] += jac[row + p] * jac[row + q];
     out[i] = Math.sqrt(scale * inverseCorner(a, k)) / value;
   }
   return out;

@@ -58,8 +58,13 @@ interface Context {
 
 function contextFor(vessel: VesselSpec, req: PlanRequest): Context {
   const gravity = vessel.gravityMS2 ?? STANDARD_GRAVITY_MS2;
-  const setting: DrainSetting = { shape: makeShape(vessel.shape), outletElevationM: vessel.outlet.elevationM, gravity };
-  const known = vessel.sensor?.zeroElevationM ?? (vessel.sensor?.mountElevationM !== undefined ? 0 : null);
+  const setting: DrainSetting = {
+    shape: makeShape(vessel.shape),
+    outletElevationM: vessel.outlet.elevationM,
+    gravity,
+  };
+  const known =
+    vessel.sensor?.zeroElevationM ?? (vessel.sensor?.mountElevationM !== undefined ? 0 : null);
   const zs = known ?? 0;
   const type = vessel.outlet.type ?? 'other';
   const cd = req.expectedCd ?? TYPICAL_CD[type];
@@ -67,22 +72,55 @@ function contextFor(vessel: VesselSpec, req: PlanRequest): Context {
   const cdA = cd * nominalAreaM2(vessel.outlet.boreM);
   const outletLevelM = vessel.outlet.elevationM - zs;
   const top = setting.shape.heightM;
-  const maxStartLevelM = req.maxStartLevelM ?? (Number.isFinite(top) ? DEFAULT_FILL_FRACTION * top - zs : NaN);
+  const maxStartLevelM =
+    req.maxStartLevelM ?? (Number.isFinite(top) ? DEFAULT_FILL_FRACTION * top - zs : NaN);
   if (!Number.isFinite(maxStartLevelM)) {
-    throw new InputError('the vessel file gives no height: state the highest level the vessel may be filled to', { field: 'maxStartLevelM' });
+    throw new InputError(
+      'the vessel file gives no height: state the highest level the vessel may be filled to',
+      { field: 'maxStartLevelM' },
+    );
   }
-  if (maxStartLevelM + zs > top + 1e-9) throw new InputError(`the highest fill ${maxStartLevelM} m is above the vessel's top`, { field: 'maxStartLevelM' });
-  if (!(maxStartLevelM > outletLevelM)) throw new InputError('the highest fill is not above the outlet', { field: 'maxStartLevelM' });
+  if (maxStartLevelM + zs > top + 1e-9)
+    throw new InputError(`the highest fill ${maxStartLevelM} m is above the vessel's top`, {
+      field: 'maxStartLevelM',
+    });
+  if (!(maxStartLevelM > outletLevelM))
+    throw new InputError('the highest fill is not above the outlet', { field: 'maxStartLevelM' });
   const noise = noiseModel(req.sensor);
-  if (!(noise.varianceM2 > 0)) throw new InputError('give the sensor\'s noise or resolution: with neither, no scatter can be predicted', { field: 'sensor.noiseM' });
-  const boreRelative = (2 * ((vessel.outlet.boreToleranceM ?? 0) / Math.sqrt(3))) / vessel.outlet.boreM;
-  return { req, setting, zs, datumFitted: known === null, cd, band, cdA, outletLevelM, maxStartLevelM, noise, boreRelative };
+  if (!(noise.varianceM2 > 0))
+    throw new InputError(
+      "give the sensor's noise or resolution: with neither, no scatter can be predicted",
+      { field: 'sensor.noiseM' },
+    );
+  const boreRelative =
+    (2 * ((vessel.outlet.boreToleranceM ?? 0) / Math.sqrt(3))) / vessel.outlet.boreM;
+  return {
+    req,
+    setting,
+    zs,
+    datumFitted: known === null,
+    cd,
+    band,
+    cdA,
+    outletLevelM,
+    maxStartLevelM,
+    noise,
+    boreRelative,
+  };
 }
 
 function checkLevel(ctx: Context, levelM: number, field: string): void {
   const what = field === 'startLevelM' ? 'the start level' : 'the level';
-  if (!(levelM > ctx.outletLevelM)) throw new InputError(`${what} ${levelM} m is not above the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`, { field });
-  if (levelM + ctx.zs > ctx.setting.shape.heightM + 1e-9) throw new InputError(`${what} ${levelM} m is above the vessel's top (${(ctx.setting.shape.heightM - ctx.zs).toFixed(3)} m as a level)`, { field });
+  if (!(levelM > ctx.outletLevelM))
+    throw new InputError(
+      `${what} ${levelM} m is not above the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`,
+      { field },
+    );
+  if (levelM + ctx.zs > ctx.setting.shape.heightM + 1e-9)
+    throw new InputError(
+      `${what} ${levelM} m is above the vessel's top (${(ctx.setting.shape.heightM - ctx.zs).toFixed(3)} m as a level)`,
+      { field },
+    );
 }
 
 interface WindowGeometry {
@@ -102,7 +140,12 @@ function windowGeometry(ctx: Context, startLevelM: number): WindowGeometry {
 }
 
 /** Type A relative u for every window length from `startLevelM`, up to logging until `endSurface`. */
-function typeAProfile(ctx: Context, g: WindowGeometry, endSurface: number, sampleIntervalS = ctx.req.sensor.sampleIntervalS): Float64Array {
+function typeAProfile(
+  ctx: Context,
+  g: WindowGeometry,
+  endSurface: number,
+  sampleIntervalS = ctx.req.sensor.sampleIntervalS,
+): Float64Array {
   const windowEnd = Math.max(endSurface, g.cutSurface);
   const spanS = drainTimeS(ctx.setting, ctx.cdA, g.windowStartSurface, windowEnd);
   const samples = Math.floor(spanS / sampleIntervalS + 1e-9) + 1;
@@ -122,9 +165,28 @@ function typeAProfile(ctx: Context, g: WindowGeometry, endSurface: number, sampl
 }
 
 function combine(ctx: Context, typeA: number): PlannedTest['uncertainty'] {
-  const lines: UncertaintyLine[] = [{ name: 'fit scatter (type A, predicted from the sampling)', relative: typeA, applies: 'effective-area', kind: 'A' }];
-  for (const s of ctx.req.statedInputs) lines.push({ name: `${s.name} (stated)`, relative: s.relativeStandardUncertainty, applies: 'effective-area', kind: 'B' });
-  if (ctx.boreRelative > 0) lines.push({ name: 'bore tolerance (rectangular, ×2 into Cd)', relative: ctx.boreRelative, applies: 'discharge-coefficient', kind: 'B' });
+  const lines: UncertaintyLine[] = [
+    {
+      name: 'fit scatter (type A, predicted from the sampling)',
+      relative: typeA,
+      applies: 'effective-area',
+      kind: 'A',
+    },
+  ];
+  for (const s of ctx.req.statedInputs)
+    lines.push({
+      name: `${s.name} (stated)`,
+      relative: s.relativeStandardUncertainty,
+      applies: 'effective-area',
+      kind: 'B',
+    });
+  if (ctx.boreRelative > 0)
+    lines.push({
+      name: 'bore tolerance (rectangular, ×2 into Cd)',
+      relative: ctx.boreRelative,
+      applies: 'discharge-coefficient',
+      kind: 'B',
+    });
   let area2 = 0;
   let cd2 = 0;
   for (const l of lines) {
@@ -143,13 +205,17 @@ function combine(ctx: Context, typeA: number): PlannedTest['uncertainty'] {
   };
 }
 
-function typeBFloor(ctx: Context, quantity: TargetQuantity): { floor: number; largest: string | null } {
+function typeBFloor(
+  ctx: Context,
+  quantity: TargetQuantity,
+): { floor: number; largest: string | null } {
   let f2 = 0;
   let largest: string | null = null;
   let big = 0;
   for (const s of ctx.req.statedInputs) {
     f2 += s.relativeStandardUncertainty ** 2;
-    if (s.relativeStandardUncertainty > big) (big = s.relativeStandardUncertainty), (largest = s.name);
+    if (s.relativeStandardUncertainty > big)
+      (big = s.relativeStandardUncertainty), (largest = s.name);
   }
   if (quantity === 'discharge-coefficient') {
     f2 += ctx.boreRelative ** 2;
@@ -159,7 +225,12 @@ function typeBFloor(ctx: Context, quantity: TargetQuantity): { floor: number; la
 }
 
 /** A planned test from `startLevelM`, logged until `endLevelM` (or the window's end); `windowSamples` shortens the window. */
-function predictTest(ctx: Context, startLevelM: number, endLevelM: number | undefined, windowSamples?: number): PlannedTest {
+function predictTest(
+  ctx: Context,
+  startLevelM: number,
+  endLevelM: number | undefined,
+  windowSamples?: number,
+): PlannedTest {
   const g = windowGeometry(ctx, startLevelM);
   const dt = ctx.req.sensor.sampleIntervalS;
   const zo = ctx.setting.outletElevationM;
@@ -179,7 +250,13 @@ function predictTest(ctx: Context, startLevelM: number, endLevelM: number | unde
   const curve = drainCurve(ctx.setting, ctx.cdA, g.startSurface, endSurface);
   const timesToLevels = ctx.req.levelsM.map((levelM) => {
     const surface = levelM + ctx.zs;
-    return { levelM, timeS: surface > zo && surface <= g.startSurface ? drainTimeS(ctx.setting, ctx.cdA, g.startSurface, surface) : null };
+    return {
+      levelM,
+      timeS:
+        surface > zo && surface <= g.startSurface
+          ? drainTimeS(ctx.setting, ctx.cdA, g.startSurface, surface)
+          : null,
+    };
   });
   return {
     startLevelM,
@@ -198,7 +275,8 @@ function predictTest(ctx: Context, startLevelM: number, endLevelM: number | unde
       drainTimeS(ctx.setting, ctx.band[1] * nominal, g.startSurface, endSurface),
       drainTimeS(ctx.setting, ctx.band[0] * nominal, g.startSurface, endSurface),
     ],
-    volumeDischargedM3: ctx.setting.shape.volumeM3(g.startSurface) - ctx.setting.shape.volumeM3(endSurface),
+    volumeDischargedM3:
+      ctx.setting.shape.volumeM3(g.startSurface) - ctx.setting.shape.volumeM3(endSurface),
     peakOutflowLS: ctx.cdA * root2g * Math.sqrt(g.startSurface - zo) * 1000,
     effectiveAreaM2: ctx.cdA,
     uncertainty: combine(ctx, typeA),
@@ -242,7 +320,10 @@ function recommend(ctx: Context, allowed: number): NonNullable<PlanResult['recom
     }
     return { shortest: null, lowestStart: null, sampleIntervalNeededS: needed };
   }
-  const start = ctx.req.startLevelM !== undefined && fullTypeA(ctx, ctx.req.startLevelM) <= allowed ? ctx.req.startLevelM : top;
+  const start =
+    ctx.req.startLevelM !== undefined && fullTypeA(ctx, ctx.req.startLevelM) <= allowed
+      ? ctx.req.startLevelM
+      : top;
   const g = windowGeometry(ctx, start);
   const n = firstMeeting(typeAProfile(ctx, g, g.cutSurface), allowed);
   const shortest = predictTest(ctx, start, undefined, n);
@@ -261,17 +342,27 @@ function recommend(ctx: Context, allowed: number): NonNullable<PlanResult['recom
 export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult {
   const ctx = contextFor(vessel, req);
   if (req.startLevelM === undefined && !req.target) {
-    throw new InputError('give a start level, a target uncertainty, or both', { field: 'startLevelM' });
+    throw new InputError('give a start level, a target uncertainty, or both', {
+      field: 'startLevelM',
+    });
   }
   if (req.startLevelM !== undefined) checkLevel(ctx, req.startLevelM, 'startLevelM');
   if (req.endLevelM !== undefined) {
-    if (req.startLevelM === undefined) throw new InputError('an end level needs a start level', { field: 'endLevelM' });
-    if (!(req.endLevelM < req.startLevelM)) throw new InputError('the end level must be below the start level', { field: 'endLevelM' });
-    if (!(req.endLevelM >= ctx.outletLevelM)) throw new InputError(`the end level is below the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`, { field: 'endLevelM' });
+    if (req.startLevelM === undefined)
+      throw new InputError('an end level needs a start level', { field: 'endLevelM' });
+    if (!(req.endLevelM < req.startLevelM))
+      throw new InputError('the end level must be below the start level', { field: 'endLevelM' });
+    if (!(req.endLevelM >= ctx.outletLevelM))
+      throw new InputError(
+        `the end level is below the outlet (level ${ctx.outletLevelM.toFixed(3)} m)`,
+        { field: 'endLevelM' },
+      );
   }
   const notes: string[] = [];
-  const test = req.startLevelM !== undefined ? predictTest(ctx, req.startLevelM, req.endLevelM) : null;
-  if (test && test.samplesInWindow < 10) notes.push('the planned window holds fewer than 10 readings: a fit would refuse it');
+  const test =
+    req.startLevelM !== undefined ? predictTest(ctx, req.startLevelM, req.endLevelM) : null;
+  if (test && test.samplesInWindow < 10)
+    notes.push('the planned window holds fewer than 10 readings: a fit would refuse it');
 
   let target: PlanResult['target'] = null;
   let recommendation: PlanResult['recommendation'] = null;
@@ -280,10 +371,19 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
     const relative = req.target.relativeStandardUncertainty;
     const { floor, largest } = typeBFloor(ctx, quantity);
     const label = quantity === 'effective-area' ? 'u_r(Cd·a)' : 'u_r(Cd)';
-    const achieved = test ? (quantity === 'effective-area' ? test.uncertainty.effectiveAreaRelative : test.uncertainty.dischargeCoefficientRelative) : null;
+    const achieved = test
+      ? quantity === 'effective-area'
+        ? test.uncertainty.effectiveAreaRelative
+        : test.uncertainty.dischargeCoefficientRelative
+      : null;
     if (floor >= relative) {
       target = {
-        quantity, relative, met: achieved === null ? null : false, possible: false, typeBFloorRelative: floor, typeAAllowedRelative: null,
+        quantity,
+        relative,
+        met: achieved === null ? null : false,
+        possible: false,
+        typeBFloorRelative: floor,
+        typeAAllowedRelative: null,
         reason: `the target ${label} ${pct(relative)} cannot be met by any test: ${largest} alone gives ${pct(floor)} (type B, which more data does not reduce)`,
       };
     } else {
@@ -291,17 +391,36 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
       recommendation = recommend(ctx, allowed);
       const possible = recommendation.shortest !== null;
       let reason: string;
-      if (possible) reason = floor > 0 ? `the target ${label} ${pct(relative)} leaves ${pct(allowed)} for the fit's scatter after ${pct(floor)} of type B` : `no type B input is stated for ${label}: the fit's scatter may take all of ${pct(relative)}`;
+      if (possible)
+        reason =
+          floor > 0
+            ? `the target ${label} ${pct(relative)} leaves ${pct(allowed)} for the fit's scatter after ${pct(floor)} of type B`
+            : `no type B input is stated for ${label}: the fit's scatter may take all of ${pct(relative)}`;
       else if (recommendation.sampleIntervalNeededS !== null)
         reason = `even a full drain from the highest fill (${ctx.maxStartLevelM.toFixed(3)} m) misses ${label} ${pct(relative)} at ${req.sensor.sampleIntervalS} s sampling; sampling every ${sig(recommendation.sampleIntervalNeededS)} s would meet it if the noise per reading stayed the same`;
-      else reason = `the target ${label} ${pct(relative)} cannot be met with this sensor from the highest fill (${ctx.maxStartLevelM.toFixed(3)} m)`;
-      target = { quantity, relative, met: achieved === null ? null : achieved <= relative, possible, typeBFloorRelative: floor, typeAAllowedRelative: allowed, reason };
+      else
+        reason = `the target ${label} ${pct(relative)} cannot be met with this sensor from the highest fill (${ctx.maxStartLevelM.toFixed(3)} m)`;
+      target = {
+        quantity,
+        relative,
+        met: achieved === null ? null : achieved <= relative,
+        possible,
+        typeBFloorRelative: floor,
+        typeAAllowedRelative: allowed,
+        reason,
+      };
     }
   }
 
   const peak = test?.peakOutflowLS ?? recommendation?.shortest?.peakOutflowLS ?? null;
   const limit = req.dischargeLimitLS ?? null;
-  let discharge: PlanResult['discharge'] = { peakOutflowLS: peak, limitLS: limit, withinLimit: null, highestStartWithinLimitM: null, message: null };
+  let discharge: PlanResult['discharge'] = {
+    peakOutflowLS: peak,
+    limitLS: limit,
+    withinLimit: null,
+    highestStartWithinLimitM: null,
+    message: null,
+  };
   if (limit !== null) {
     const headMax = (limit / 1000 / (ctx.cdA * Math.sqrt(2 * ctx.setting.gravity))) ** 2;
     const highest = ctx.setting.outletElevationM + headMax - ctx.zs;
@@ -319,21 +438,36 @@ export function planDrainTest(vessel: VesselSpec, req: PlanRequest): PlanResult 
             : `predicted peak outflow ${peak.toFixed(2)} L/s at opening EXCEEDS the stated limit of ${limit} L/s: start below ${highest.toFixed(3)} m, throttle the discharge, or agree the release with the receiver`,
     };
   }
-  if (ctx.datumFitted) notes.push("the vessel file gives no sensor zero: levels are heights above the vessel bottom, and the fit will have to free the datum (a much wider u)");
+  if (ctx.datumFitted)
+    notes.push(
+      'the vessel file gives no sensor zero: levels are heights above the vessel bottom, and the fit will have to free the datum (a much wider u)',
+    );
   if (req.sensor.resolutionM > 0 && req.sensor.noiseM < req.sensor.resolutionM / 2) {
-    notes.push('the noise is below half the resolution: rounding is then not random and the fit\'s scatter may differ from this prediction');
+    notes.push(
+      "the noise is below half the resolution: rounding is then not random and the fit's scatter may differ from this prediction",
+    );
   }
   if (recommendation?.lowestStart) {
-    notes.push('a shallow drain meets the target on paper but is more exposed to low-head effects (vortices, the outlet uncovering, the opening transient) than this prediction shows; the shortest test from a high fill is the safer choice');
+    notes.push(
+      'a shallow drain meets the target on paper but is more exposed to low-head effects (vortices, the outlet uncovering, the opening transient) than this prediction shows; the shortest test from a high fill is the safer choice',
+    );
   }
-  if (req.statedInputs.length) notes.push('stated type B inputs are taken as given (relative contributions to Cd·a); their sensitivities are not derived here');
-  notes.push('type A assumes the drain follows the orifice law (n = ½) with no inflow and the readings\' noise as stated; slosh, a leaking inlet or drift add to it');
+  if (req.statedInputs.length)
+    notes.push(
+      'stated type B inputs are taken as given (relative contributions to Cd·a); their sensitivities are not derived here',
+    );
+  notes.push(
+    "type A assumes the drain follows the orifice law (n = ½) with no inflow and the readings' noise as stated; slosh, a leaking inlet or drift add to it",
+  );
 
   return {
     vessel: { name: vessel.name, site: vessel.site ?? null },
     assumptions: {
       expectedCd: ctx.cd,
-      expectedCdSource: req.expectedCd !== undefined ? 'given' : `usual value for a ${vessel.outlet.type ?? 'other'} outlet, from memory of textbook values`,
+      expectedCdSource:
+        req.expectedCd !== undefined
+          ? 'given'
+          : `usual value for a ${vessel.outlet.type ?? 'other'} outlet, from memory of textbook values`,
       usualCdBand: ctx.band,
       nominalAreaM2: nominalAreaM2(vessel.outlet.boreM),
       effectiveAreaM2: ctx.cdA,

@@ -81,8 +81,13 @@ export interface PlanResult {
     /** When even a full test from the highest fill misses: the sample interval that would meet it (same noise per sample), or null. */
     sampleIntervalNeededS: number | null;
   } | null;
-  discharge: { peakOutflowLS: number | null; limitLS: number | null; withinLimit: boolean | null; highestStartWithinLimitM: number | null; message: string | null };
+  discharge: {
+    peakOutflowLS: number | null;
+    limitLS: number | null;
+    withinLimit: boolean | null;
+    highestStartWithinLimitM: number | null;
+    message: string | null;
+  };
   cautions: readonly string[];
   notes: string[];
 }
-

@@ -12,7 +12,12 @@ const short = (v: unknown) => {
 };
 
 /** Differences between `a` (the file) and `b` (rebuilt from the records), at most `limit` of them. */
-export function compareReports(a: unknown, b: unknown, limit = 20, ignore: readonly string[] = []): ReportDifference[] {
+export function compareReports(
+  a: unknown,
+  b: unknown,
+  limit = 20,
+  ignore: readonly string[] = [],
+): ReportDifference[] {
   const out: ReportDifference[] = [];
   const walk = (x: unknown, y: unknown, path: string) => {
     if (out.length >= limit || ignore.includes(path)) return;
@@ -22,10 +27,12 @@ export function compareReports(a: unknown, b: unknown, limit = 20, ignore: reado
         out.push({ path: `${path}.length`, inFile: x.length, inRecords: y.length });
       }
       const keys = new Set([...Object.keys(x as object), ...Object.keys(y as object)]);
-      for (const k of [...keys].sort()) walk((x as any)[k], (y as any)[k], path ? `${path}.${k}` : k);
+      for (const k of [...keys].sort())
+        walk((x as any)[k], (y as any)[k], path ? `${path}.${k}` : k);
       return;
     }
-    if (JSON.stringify(x) !== JSON.stringify(y)) out.push({ path: path || '(whole)', inFile: short(x), inRecords: short(y) });
+    if (JSON.stringify(x) !== JSON.stringify(y))
+      out.push({ path: path || '(whole)', inFile: short(x), inRecords: short(y) });
   };
   walk(a, b, '');
   return out;

@@ -16,6 +16,8 @@ export function csvCell(v: string | number | boolean | null | undefined): string
 }
 
 /** Rows of cells as CSV text with CRLF line ends (RFC 4180). */
-export function csvText(rows: readonly (readonly (string | number | boolean | null | undefined)[])[]): string {
+export function csvText(
+  rows: readonly (readonly (string | number | boolean | null | undefined)[])[],
+): string {
   return rows.map((r) => r.map(csvCell).join(',')).join('\r\n') + '\r\n';
 }

@@ -18,7 +18,10 @@ export function reportIdOf(hash: string): string {
 }
 
 /** Fills in the identity fields and returns the object as it will read back from its JSON. */
-export function withIdentity<T extends Record<string, unknown>>(body: T, sha256Hex: Sha256Hex): T & { reportId: string; contentSha256: string } {
+export function withIdentity<T extends Record<string, unknown>>(
+  body: T,
+  sha256Hex: Sha256Hex,
+): T & { reportId: string; contentSha256: string } {
   const normal = JSON.parse(canonicalJson(body)) as T;
   const hash = contentHash(normal, sha256Hex);
   return { ...normal, reportId: reportIdOf(hash), contentSha256: hash };

@@ -3,7 +3,12 @@
  * the trend (server/core/trend) with its bands, threshold, forecast and status, as of a stated date.
  */
 import { InputError } from '../errors.js';
-import { outletTrend, type ApprovedFit, type MaintenanceEvent, type OutletTrend } from '../trend/index.js';
+import {
+  outletTrend,
+  type ApprovedFit,
+  type MaintenanceEvent,
+  type OutletTrend,
+} from '../trend/index.js';
 import { withIdentity, type Sha256Hex } from './identity.js';
 import type { OutletReportRecords, SoftwareRecord } from './records.js';
 import { REPORT_FORMAT_VERSION } from './fit-report.js';
@@ -41,7 +46,15 @@ export interface OutletReport {
   asOf: string;
   software: SoftwareRecord;
   vessel: { id: number; site: string; name: string; revision: number };
-  outlet: { id: number; key: string; type: string | null; boreM: number | null; boreToleranceM: number | null; elevationM: number | null; actionThreshold: number | null };
+  outlet: {
+    id: number;
+    key: string;
+    type: string | null;
+    boreM: number | null;
+    boreToleranceM: number | null;
+    elevationM: number | null;
+    actionThreshold: number | null;
+  };
   actionThresholdPct: number;
   thresholdSource: string;
   fits: OutletReportFit[];
@@ -60,16 +73,27 @@ const ms = (iso: string, field: string) => {
 export function latestRecordTime(records: OutletReportRecords): string | null {
   let best: string | null = null;
   let bestMs = -Infinity;
-  for (const t of [...records.fits.map((f) => f.review.at), ...records.events.map((e) => e.occurredAt)]) {
+  for (const t of [
+    ...records.fits.map((f) => f.review.at),
+    ...records.events.map((e) => e.occurredAt),
+  ]) {
     const m = Date.parse(t);
     if (m > bestMs) (bestMs = m), (best = t);
   }
   return best;
 }
 
-export function buildOutletReport(records: OutletReportRecords, software: SoftwareRecord, sha256Hex: Sha256Hex, asOf?: string): OutletReport {
+export function buildOutletReport(
+  records: OutletReportRecords,
+  software: SoftwareRecord,
+  sha256Hex: Sha256Hex,
+  asOf?: string,
+): OutletReport {
   const { vessel, outlet } = records;
-  if (records.fits.length === 0) throw new InputError(`outlet ${outlet.id} has no approved fits to report`, { field: 'outletId' });
+  if (records.fits.length === 0)
+    throw new InputError(`outlet ${outlet.id} has no approved fits to report`, {
+      field: 'outletId',
+    });
   const at = asOf ?? latestRecordTime(records)!;
   const nowMs = ms(at, 'asOf');
   const fraction = outlet.actionThreshold;
@@ -106,19 +130,40 @@ export function buildOutletReport(records: OutletReportRecords, software: Softwa
     dischargeCoefficient: f.dischargeCoefficient ?? NaN,
     dischargeCoefficientU: f.dischargeCoefficientU ?? NaN,
   }));
-  const events = records.events.slice().sort((a, b) => ms(a.occurredAt, 'occurredAt') - ms(b.occurredAt, 'occurredAt') || a.id - b.id);
-  const trendEvents: MaintenanceEvent[] = events.map((e) => ({ atMs: ms(e.occurredAt, 'occurredAt'), kind: e.kind, ...(e.notes ? { note: e.notes } : {}) }));
+  const events = records.events
+    .slice()
+    .sort((a, b) => ms(a.occurredAt, 'occurredAt') - ms(b.occurredAt, 'occurredAt') || a.id - b.id);
+  const trendEvents: MaintenanceEvent[] = events.map((e) => ({
+    atMs: ms(e.occurredAt, 'occurredAt'),
+    kind: e.kind,
+    ...(e.notes ? { note: e.notes } : {}),
+  }));
   const body = {
     format: OUTLET_REPORT_FORMAT,
     formatVersion: REPORT_FORMAT_VERSION,
     asOf: new Date(nowMs).toISOString(),
     software,
     vessel: { id: vessel.id, site: vessel.site, name: vessel.name, revision: vessel.revision },
-    outlet: { id: outlet.id, key: outlet.key, type: outlet.type, boreM: outlet.boreM, boreToleranceM: outlet.boreToleranceM, elevationM: outlet.elevationM, actionThreshold: outlet.actionThreshold },
+    outlet: {
+      id: outlet.id,
+      key: outlet.key,
+      type: outlet.type,
+      boreM: outlet.boreM,
+      boreToleranceM: outlet.boreToleranceM,
+      elevationM: outlet.elevationM,
+      actionThreshold: outlet.actionThreshold,
+    },
     actionThresholdPct: pct,
-    thresholdSource: usable ? `the outlet's action threshold, ${fraction} of the baseline Cd·a` : 'no usable threshold on the outlet: the default, a 10 % loss of the baseline Cd·a',
+    thresholdSource: usable
+      ? `the outlet's action threshold, ${fraction} of the baseline Cd·a`
+      : 'no usable threshold on the outlet: the default, a 10 % loss of the baseline Cd·a',
     fits,
-    events: events.map((e) => ({ id: e.id, kind: e.kind, occurredAt: e.occurredAt, notes: e.notes })),
+    events: events.map((e) => ({
+      id: e.id,
+      kind: e.kind,
+      occurredAt: e.occurredAt,
+      notes: e.notes,
+    })),
     trend: outletTrend(trendFits, trendEvents, { actionThresholdPct: pct }, nowMs),
     statement: [...SCOPE_STATEMENT],
   };

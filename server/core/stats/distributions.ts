@@ -11,7 +11,8 @@ function positiveDof(v: number, name: string): void {
 
 /** The p-quantile of Student's t with `dof` degrees of freedom (dof may be fractional, e.g. Welch–Satterthwaite). */
 export function tQuantile(p: number, dof: number): number {
-  if (!(p > 0 && p < 1)) throw new InputError(`probability must be strictly between 0 and 1 (got ${p})`);
+  if (!(p > 0 && p < 1))
+    throw new InputError(`probability must be strictly between 0 and 1 (got ${p})`);
   positiveDof(dof, 'degrees of freedom');
   return tQuantileStdlib(p, dof);
 }

@@ -14,8 +14,10 @@ export function akaike(sumSquares: number, n: number, k: number): { aic: number;
   if (!(sumSquares > 0) || !Number.isFinite(sumSquares)) {
     throw new InputError(`sum of squares must be a positive finite number (got ${sumSquares})`);
   }
-  if (!Number.isInteger(n) || n < 1) throw new InputError(`number of points must be a positive integer (got ${n})`);
-  if (!Number.isInteger(k) || k < 0) throw new InputError(`number of parameters must be a whole number (got ${k})`);
+  if (!Number.isInteger(n) || n < 1)
+    throw new InputError(`number of points must be a positive integer (got ${n})`);
+  if (!Number.isInteger(k) || k < 0)
+    throw new InputError(`number of parameters must be a whole number (got ${k})`);
   const K = k + 1;
   const aic = n * Math.log(sumSquares / n) + 2 * K;
   const room = n - K - 1;
@@ -40,10 +42,13 @@ export function nestedFTest(
     [ssrSmall, 'small-model sum of squares'],
     [ssrLarge, 'large-model sum of squares'],
   ] as const) {
-    if (!(v >= 0) || !Number.isFinite(v)) throw new InputError(`${name} must be a finite number ≥ 0 (got ${v})`);
+    if (!(v >= 0) || !Number.isFinite(v))
+      throw new InputError(`${name} must be a finite number ≥ 0 (got ${v})`);
   }
   if (!Number.isInteger(kSmall) || !Number.isInteger(kLarge) || kSmall < 0 || kLarge <= kSmall) {
-    throw new InputError(`the large model must have more parameters than the small one (got ${kLarge} and ${kSmall})`);
+    throw new InputError(
+      `the large model must have more parameters than the small one (got ${kLarge} and ${kSmall})`,
+    );
   }
   if (!Number.isInteger(n) || n <= kLarge) {
     throw new InputError(`need more points (${n}) than parameters of the large model (${kLarge})`);

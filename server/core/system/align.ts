@@ -34,32 +34,49 @@ export interface Alignment {
 }
 
 /** window: seconds from the common start (optional end), to cut the fit to part of the span. */
-export function alignLogs(logs: readonly LogForSystem[], window?: { startS: number; endS?: number }): Alignment {
+export function alignLogs(
+  logs: readonly LogForSystem[],
+  window?: { startS: number; endS?: number },
+): Alignment {
   if (logs.length === 0) throw new InputError('no logs given');
   const warnings: string[] = [];
   const absolute = logs.filter((l) => l.t0EpochMs !== null);
   if (absolute.length > 0 && absolute.length < logs.length) {
     const bare = logs.find((l) => l.t0EpochMs === null)!;
-    throw new InputError('has elapsed time only while other logs have timestamps, so it cannot be placed on their clock', { file: bare.fileName });
+    throw new InputError(
+      'has elapsed time only while other logs have timestamps, so it cannot be placed on their clock',
+      { file: bare.fileName },
+    );
   }
-  const offsetMs = (l: LogForSystem) => (l.t0EpochMs ?? 0) - (absolute.length ? Math.min(...absolute.map((a) => a.t0EpochMs!)) : 0);
-  if (absolute.length === 0 && logs.length > 1) warnings.push('the logs have elapsed time only: they are taken to start at the same instant');
+  const offsetMs = (l: LogForSystem) =>
+    (l.t0EpochMs ?? 0) - (absolute.length ? Math.min(...absolute.map((a) => a.t0EpochMs!)) : 0);
+  if (absolute.length === 0 && logs.length > 1)
+    warnings.push('the logs have elapsed time only: they are taken to start at the same instant');
   let start = -Infinity;
   let end = Infinity;
   for (const l of logs) {
-    if (l.timeS.length < 2) throw new InputError('has fewer than two samples', { file: l.fileName });
+    if (l.timeS.length < 2)
+      throw new InputError('has fewer than two samples', { file: l.fileName });
     const off = offsetMs(l) / 1000;
     start = Math.max(start, off + l.timeS[0]);
     end = Math.min(end, off + l.timeS[l.timeS.length - 1]);
   }
   if (!(end > start)) {
-    const late = logs.reduce((a, b) => (offsetMs(a) / 1000 + a.timeS[0] > offsetMs(b) / 1000 + b.timeS[0] ? a : b));
-    throw new InputError('does not overlap in time with the other logs: the vessels must be logged during the same test', { file: late.fileName });
+    const late = logs.reduce((a, b) =>
+      offsetMs(a) / 1000 + a.timeS[0] > offsetMs(b) / 1000 + b.timeS[0] ? a : b,
+    );
+    throw new InputError(
+      'does not overlap in time with the other logs: the vessels must be logged during the same test',
+      { file: late.fileName },
+    );
   }
   if (window) {
     const s = start + window.startS;
     const e = window.endS === undefined ? end : Math.min(end, start + window.endS);
-    if (!(window.startS >= 0) || !(e > s)) throw new InputError(`the window ${window.startS}..${window.endS ?? ''} s lies outside the logs' common span (0..${(end - start).toFixed(1)} s)`);
+    if (!(window.startS >= 0) || !(e > s))
+      throw new InputError(
+        `the window ${window.startS}..${window.endS ?? ''} s lies outside the logs' common span (0..${(end - start).toFixed(1)} s)`,
+      );
     start = s;
     end = e;
   }
@@ -70,7 +87,10 @@ export function alignLogs(logs: readonly LogForSystem[], window?: { startS: numb
       const t = off + l.timeS[i];
       if (t >= start - 1e-9 && t <= end + 1e-9) keep.push(i);
     }
-    if (keep.length < 3) throw new InputError('has fewer than three samples inside the common span of the logs', { file: l.fileName });
+    if (keep.length < 3)
+      throw new InputError('has fewer than three samples inside the common span of the logs', {
+        file: l.fileName,
+      });
     return {
       vessel: l.vessel,
       fileName: l.fileName,
@@ -79,5 +99,11 @@ export function alignLogs(logs: readonly LogForSystem[], window?: { startS: numb
     };
   });
   const base = absolute.length ? Math.min(...absolute.map((a) => a.t0EpochMs!)) : null;
-  return { logs: out, t0EpochMs: base === null ? null : base + start * 1000, spanS: end - start, startS: start, warnings };
+  return {
+    logs: out,
+    t0EpochMs: base === null ? null : base + start * 1000,
+    spanS: end - start,
+    startS: start,
+    warnings,
+  };
 }

@@ -1,6 +1,15 @@
 import { InputError } from '../errors.js';
-import { dischargeCoefficientQuantity, effectiveAreaQuantity, type GumQuantity } from '../fit/coefficient.js';
-import { covarianceFromJacobian, solveLeastSquares, type LeastSquaresProblem, type SolveResult } from '../lsq/index.js';
+import {
+  dischargeCoefficientQuantity,
+  effectiveAreaQuantity,
+  type GumQuantity,
+} from '../fit/coefficient.js';
+import {
+  covarianceFromJacobian,
+  solveLeastSquares,
+  type LeastSquaresProblem,
+  type SolveResult,
+} from '../lsq/index.js';
 import { residualDiagnostics, tQuantile } from '../stats/index.js';
 import type { AlignedLog } from './align.js';
 import { integrateSystem } from './integrate.js';
@@ -78,11 +87,17 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
   const n = network.vessels.length;
   const byVessel: AlignedLog[] = [];
   for (const l of logs) {
-    if (byVessel[l.vessel]) throw new InputError(`two logs given for vessel "${network.vessels[l.vessel].id}"`, { file: l.fileName });
+    if (byVessel[l.vessel])
+      throw new InputError(`two logs given for vessel "${network.vessels[l.vessel].id}"`, {
+        file: l.fileName,
+      });
     byVessel[l.vessel] = l;
   }
   for (let i = 0; i < n; i++) {
-    if (!byVessel[i]) throw new InputError(`no log given for vessel "${network.vessels[i].id}": the joint fit needs every vessel's level`);
+    if (!byVessel[i])
+      throw new InputError(
+        `no log given for vessel "${network.vessels[i].id}": the joint fit needs every vessel's level`,
+      );
   }
   const theta = new Float64Array(n * PER_VESSEL);
   const freeList: number[] = [];
@@ -90,7 +105,10 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
     const v = network.vessels[i];
     const zsUnknown = v.sensorZeroM === null;
     if (zsUnknown && !request.terms?.datum) {
-      throw new InputError(`vessel "${v.id}" has no sensor.zeroElevationM, so its head is unknown: add it, or fit the datum`, { field: `vessels.${i}.sensor.zeroElevationM` });
+      throw new InputError(
+        `vessel "${v.id}" has no sensor.zeroElevationM, so its head is unknown: add it, or fit the datum`,
+        { field: `vessels.${i}.sensor.zeroElevationM` },
+      );
     }
     theta[i * PER_VESSEL + P.sensorZero] = v.sensorZeroM ?? 0;
     freeList.push(i * PER_VESSEL + P.effectiveArea, i * PER_VESSEL + P.initialReading);
@@ -113,7 +131,9 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
   const weights = new Float64Array(n).fill(1);
   const work = new Float64Array(theta.length);
 
-  const lower = Float64Array.from(free, (p) => (p % PER_VESSEL === P.effectiveArea ? 0 : -Infinity));
+  const lower = Float64Array.from(free, (p) =>
+    p % PER_VESSEL === P.effectiveArea ? 0 : -Infinity,
+  );
   const upper = Float64Array.from(free, () => Infinity);
   const problem: LeastSquaresProblem = {
     m,
@@ -123,7 +143,8 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
     evaluate(p, r, J) {
       work.set(theta);
       for (let c = 0; c < k; c++) work[free[c]] = p[c];
-      if (!integrateSystem(network, work, all, eta, J ? sens : null, { inflows, free })) return false;
+      if (!integrateSystem(network, work, all, eta, J ? sens : null, { inflows, free }))
+        return false;
       for (let i = 0; i < n; i++) {
         const l = byVessel[i];
         const zs = work[i * PER_VESSEL + P.sensorZero];
@@ -155,7 +176,13 @@ export function fitSystem(request: SystemFitRequest): SystemFitResult {
   }
   const solve = solveLeastSquares(problem, first.p);
   for (let c = 0; c < k; c++) theta[free[c]] = solve.p[c];
-  return { ...summarise(request, byVessel, theta, free, solve, sigma, rowStart), solve, start: p0, lower, upper };
+  return {
+    ...summarise(request, byVessel, theta, free, solve, sigma, rowStart),
+    solve,
+    start: p0,
+    lower,
+    upper,
+  };
 }
 
 function summarise(
@@ -210,11 +237,18 @@ function summarise(
   const s2 = solve.sumSquares / Math.max(m - k, 1);
   const svd = covarianceFromJacobian(solve.jacobian, m, k, rowWeight);
   const inv = svd.rank === k ? svd.unscaledCovariance : null;
-  if (!inv) warnings.push('the parameters cannot all be told apart from these logs (singular information matrix): the uncertainties are not defined');
+  if (!inv)
+    warnings.push(
+      'the parameters cannot all be told apart from these logs (singular information matrix): the uncertainties are not defined',
+    );
   const covariance = inv ? inv.map((x) => x * s2) : new Float64Array(k * k).fill(NaN);
-  const u = Float64Array.from({ length: k }, (_, j) => Math.sqrt(Math.max(covariance[j * k + j], 0)));
+  const u = Float64Array.from({ length: k }, (_, j) =>
+    Math.sqrt(Math.max(covariance[j * k + j], 0)),
+  );
   const correlations = new Float64Array(k * k);
-  for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) correlations[a * k + b] = a === b ? 1 : covariance[a * k + b] / (u[a] * u[b]);
+  for (let a = 0; a < k; a++)
+    for (let b = 0; b < k; b++)
+      correlations[a * k + b] = a === b ? 1 : covariance[a * k + b] / (u[a] * u[b]);
   const dof = Math.max(effectiveTotal - k, 1);
   const outlets: Record<string, OutletResult> = {};
   for (let i = 0; i < n; i++) {
@@ -223,20 +257,36 @@ function summarise(
     const value = theta[i * PER_VESSEL + P.effectiveArea];
     outlets[v.id] = {
       effectiveAreaM2: effectiveAreaQuantity(value, u[c], dof),
-      dischargeCoefficient: dischargeCoefficientQuantity(value, u[c], dof, v.boreM, v.boreToleranceM),
+      dischargeCoefficient: dischargeCoefficientQuantity(
+        value,
+        u[c],
+        dof,
+        v.boreM,
+        v.boreToleranceM,
+      ),
     };
   }
-  if (!solve.converged) warnings.push(`the solver stopped without converging (${solve.stopReason})`);
+  if (!solve.converged)
+    warnings.push(`the solver stopped without converging (${solve.stopReason})`);
   for (let a = 0; a < k; a++) {
     for (let b = a + 1; b < k; b++) {
-      if (free[a] % PER_VESSEL === P.effectiveArea && free[b] % PER_VESSEL === P.effectiveArea && Math.abs(correlations[a * k + b]) > 0.95) {
-        warnings.push(`${parameterName(network, free[a])} and ${parameterName(network, free[b])} are correlated at ${correlations[a * k + b].toFixed(3)}: these logs barely separate the two outlets`);
+      if (
+        free[a] % PER_VESSEL === P.effectiveArea &&
+        free[b] % PER_VESSEL === P.effectiveArea &&
+        Math.abs(correlations[a * k + b]) > 0.95
+      ) {
+        warnings.push(
+          `${parameterName(network, free[a])} and ${parameterName(network, free[b])} are correlated at ${correlations[a * k + b].toFixed(3)}: these logs barely separate the two outlets`,
+        );
       }
     }
   }
   for (const [id, o] of Object.entries(outlets)) {
     const cd = o.dischargeCoefficient.value;
-    if (!(cd >= 0.5 && cd <= 1.0)) warnings.push(`${id}: Cd ${cd.toPrecision(3)} lies outside 0.5–1.0 (common practice): check the bore, the geometry, the connections and the logs`);
+    if (!(cd >= 0.5 && cd <= 1.0))
+      warnings.push(
+        `${id}: Cd ${cd.toPrecision(3)} lies outside 0.5–1.0 (common practice): check the bore, the geometry, the connections and the logs`,
+      );
   }
   return {
     converged: solve.converged,

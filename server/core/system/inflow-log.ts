@@ -11,24 +11,34 @@ import type { InflowInput } from './network.js';
  */
 const COVER_TOLERANCE_S = 1e-3;
 
-export function inflowOnFitClock(series: FlowSeries, vessel: number, alignment: Alignment): InflowInput {
+export function inflowOnFitClock(
+  series: FlowSeries,
+  vessel: number,
+  alignment: Alignment,
+): InflowInput {
   const levelsAbsolute = alignment.t0EpochMs !== null;
   const flowAbsolute = series.t0EpochMs !== null;
   if (levelsAbsolute !== flowAbsolute) {
     throw new InputError(
-      flowAbsolute ? 'the inflow log has timestamps while the level logs have elapsed time only, so it cannot be placed on their clock'
+      flowAbsolute
+        ? 'the inflow log has timestamps while the level logs have elapsed time only, so it cannot be placed on their clock'
         : 'the inflow log has elapsed time only while the level logs have timestamps, so it cannot be placed on their clock',
       { file: series.fileName },
     );
   }
   // seconds to add to the flow log's own time to reach the fit's clock
-  const shift = flowAbsolute ? (series.t0EpochMs! - alignment.t0EpochMs!) / 1000 : -alignment.startS;
+  const shift = flowAbsolute
+    ? (series.t0EpochMs! - alignment.t0EpochMs!) / 1000
+    : -alignment.startS;
   const n = series.timeS.length;
   const first = series.timeS[0] + shift;
   const last = series.timeS[n - 1] + shift;
   const span = alignment.spanS;
   if (first > COVER_TOLERANCE_S || last < span - COVER_TOLERANCE_S) {
-    const say = (t: number) => (flowAbsolute ? new Date(alignment.t0EpochMs! + t * 1000).toISOString() : `${(t + alignment.startS).toFixed(1)} s`);
+    const say = (t: number) =>
+      flowAbsolute
+        ? new Date(alignment.t0EpochMs! + t * 1000).toISOString()
+        : `${(t + alignment.startS).toFixed(1)} s`;
     throw new InputError(
       `the inflow log covers ${say(first)} to ${say(last)} but the fitted span is ${say(0)} to ${say(span)}: the known inflow must be logged over the whole span (or fit a shorter --window)`,
       { file: series.fileName },

@@ -60,7 +60,8 @@ export function integrateSystem(
   for (let c = 0; c < k; c++) {
     const p = free[c];
     const role = p % PER_VESSEL;
-    if (role === P.initialReading || role === P.sensorZero) z0[n + Math.floor(p / PER_VESSEL) * k + c] = 1;
+    if (role === P.initialReading || role === P.sensorZero)
+      z0[n + Math.floor(p / PER_VESSEL) * k + c] = 1;
   }
   return integrateRk4(problem, z0, timeS);
 }
@@ -131,7 +132,10 @@ class NetworkLevels implements OdeProblem {
       if (w.regular[j]) continue;
       const r = network.vessels[j].receiver;
       const c = theta[j * PER_VESSEL + P.effectiveArea];
-      const rate = c * (Math.abs(w.dUp[j]) + Math.abs(w.dDown[j])) * (1 / w.area[j] + (r >= 0 ? 1 / w.area[r] : 0));
+      const rate =
+        c *
+        (Math.abs(w.dUp[j]) + Math.abs(w.dDown[j])) *
+        (1 / w.area[j] + (r >= 0 ? 1 / w.area[r] : 0));
       if (rate > signal) signal = rate;
     }
     this.fastest = fastest;
@@ -151,7 +155,10 @@ class NetworkLevels implements OdeProblem {
   }
 
   stepS(): number {
-    return Math.min(this.signal > 0 ? ACCURACY_SCALE / this.signal : Infinity, this.fastest > 0 ? STABILITY_SCALE / this.fastest : Infinity);
+    return Math.min(
+      this.signal > 0 ? ACCURACY_SCALE / this.signal : Infinity,
+      this.fastest > 0 ? STABILITY_SCALE / this.fastest : Infinity,
+    );
   }
 
   /** Every drained vessel held at its outlet; at rest when all are and no logged inflow is to come. */
@@ -159,7 +166,8 @@ class NetworkLevels implements OdeProblem {
     const { n, k } = this;
     let held = 0;
     for (let i = 0; i < n; i++) {
-      if (holdAtOutlet(before, z, dz, i, this.network.vessels[i].outletElevationM, n + i * k, k, 1)) held++;
+      if (holdAtOutlet(before, z, dz, i, this.network.vessels[i].outletElevationM, n + i * k, k, 1))
+        held++;
     }
     return held === n && this.breaks.length === 0;
   }
@@ -180,6 +188,7 @@ function inflowBreaks(list: readonly InflowInput[]): Float64Array {
   for (const f of list) if (f.timeS) for (const x of f.timeS) if (x > 0) all.push(x);
   const sorted = Float64Array.from(all).sort();
   let w = 0;
-  for (let i = 0; i < sorted.length; i++) if (w === 0 || sorted[i] > sorted[w - 1]) sorted[w++] = sorted[i];
+  for (let i = 0; i < sorted.length; i++)
+    if (w === 0 || sorted[i] > sorted[w - 1]) sorted[w++] = sorted[i];
   return sorted.subarray(0, w);
 }

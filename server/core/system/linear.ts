@@ -1,7 +1,14 @@
 import { integrateRk4, type OdeProblem } from '../ode/rk4.js';
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { propagate } from './matrix.js';
-import { coverageFactor, estimate, operatingTheta, outletCovariance, type Estimate, type SystemModel } from './model.js';
+import {
+  coverageFactor,
+  estimate,
+  operatingTheta,
+  outletCovariance,
+  type Estimate,
+  type SystemModel,
+} from './model.js';
 import { netFlows, rateWork } from './rates.js';
 import { equilibrium } from './steady.js';
 
@@ -39,7 +46,16 @@ function linearCore(model: SystemModel, theta: Float64Array, q: Float64Array): C
   const { eta } = equilibrium(model, theta, q);
   const w = rateWork(n);
   const dNet = new Float64Array(n * n);
-  netFlows(model.network, theta, Array.from(q, (x, i) => ({ vessel: i, constantM3S: x })), 0, eta, new Float64Array(n), dNet, w);
+  netFlows(
+    model.network,
+    theta,
+    Array.from(q, (x, i) => ({ vessel: i, constantM3S: x })),
+    0,
+    eta,
+    new Float64Array(n),
+    dNet,
+    w,
+  );
   const a = new Float64Array(n * n);
   const b = new Float64Array(n * n);
   const tau = new Float64Array(n);
@@ -79,7 +95,9 @@ export function linearize(model: SystemModel, inflowM3S: Float64Array): LinearMo
   const k = coverageFactor(model);
   const flat = flatten(base);
   const at = (e: number) => estimate(flat[e], variance ? variance[e] : null, k);
-  const eig = new EigenvalueDecomposition(new Matrix(Array.from({ length: n }, (_, i) => Array.from(base.a.subarray(i * n, i * n + n)))));
+  const eig = new EigenvalueDecomposition(
+    new Matrix(Array.from({ length: n }, (_, i) => Array.from(base.a.subarray(i * n, i * n + n)))),
+  );
   const modes = eig.realEigenvalues.map((re) => -1 / re).sort((x, y) => y - x);
   return {
     ids: model.network.vessels.map((v) => v.id),
@@ -101,7 +119,14 @@ function flatten(c: Core): Float64Array {
 }
 
 /** The linear model's response x(t) to a constant input step du from x = 0 (the one RK4, ode/rk4.ts; for checks). */
-export function linearStepResponse(a: Float64Array, b: Float64Array, du: Float64Array, n: number, tS: number, steps: number): Float64Array {
+export function linearStepResponse(
+  a: Float64Array,
+  b: Float64Array,
+  du: Float64Array,
+  n: number,
+  tS: number,
+  steps: number,
+): Float64Array {
   const bu = new Float64Array(n);
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) bu[i] += b[i * n + j] * du[j];
   const x = new Float64Array(n);

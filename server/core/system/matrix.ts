@@ -40,7 +40,12 @@ export function covarianceRoot(a: Float64Array, n: number): Float64Array {
 }
 
 /** G·Σ·Gᵀ for G (r×k) and Σ (k×k): the delta method's covariance of r derived quantities. */
-export function propagate(g: Float64Array, sigma: Float64Array, r: number, k: number): Float64Array {
+export function propagate(
+  g: Float64Array,
+  sigma: Float64Array,
+  r: number,
+  k: number,
+): Float64Array {
   const gm = toMatrix(g, r, k);
   return toArray(gm.mmul(toMatrix(sigma, k, k)).mmul(gm.transpose()));
 }

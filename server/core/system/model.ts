@@ -19,14 +19,17 @@ export interface SystemModel {
 }
 
 /** The effective-area entries of the covariance: which θ index each row is, and Σ restricted to them. */
-export function outletCovariance(model: SystemModel): { index: Int32Array; sigma: Float64Array } | null {
+export function outletCovariance(
+  model: SystemModel,
+): { index: Int32Array; sigma: Float64Array } | null {
   if (!model.covariance) return null;
   const k = model.free.length;
   const rows: number[] = [];
   for (let c = 0; c < k; c++) if (model.free[c] % PER_VESSEL === P.effectiveArea) rows.push(c);
   const r = rows.length;
   const sigma = new Float64Array(r * r);
-  for (let a = 0; a < r; a++) for (let b = 0; b < r; b++) sigma[a * r + b] = model.covariance[rows[a] * k + rows[b]];
+  for (let a = 0; a < r; a++)
+    for (let b = 0; b < r; b++) sigma[a * r + b] = model.covariance[rows[a] * k + rows[b]];
   return { index: Int32Array.from(rows, (c) => model.free[c]), sigma };
 }
 
@@ -49,7 +52,8 @@ export interface Estimate {
 }
 
 export function estimate(value: number, variance: number | null, k: number): Estimate {
-  if (variance === null || !Number.isFinite(variance)) return { value, standardUncertainty: null, ci95: null };
+  if (variance === null || !Number.isFinite(variance))
+    return { value, standardUncertainty: null, ci95: null };
   const u = Math.sqrt(Math.max(variance, 0));
   return { value, standardUncertainty: u, ci95: [value - k * u, value + k * u] };
 }

@@ -48,7 +48,12 @@ export const P = {
   /** Unknown constant inflow into the vessel (a passing valve), m³/s. */
   leak: 3,
 } as const;
-const P_NAMES = ['effectiveAreaM2', 'initialReadingM', 'sensorZeroElevationM', 'leakInflowM3S'] as const;
+const P_NAMES = [
+  'effectiveAreaM2',
+  'initialReadingM',
+  'sensorZeroElevationM',
+  'leakInflowM3S',
+] as const;
 
 export function parameterIndex(vessel: number, role: number): number {
   return vessel * PER_VESSEL + role;
@@ -63,7 +68,9 @@ export function buildNetwork(spec: SystemSpec): VesselNetwork {
   const gravities = new Set(spec.vessels.map((v) => v.gravityMS2 ?? STANDARD_GRAVITY_MS2));
   const vessels = spec.vessels.map((v): NetworkVessel => {
     const nominal = (Math.PI * v.outlet.boreM ** 2) / 4;
-    const known = v.effectiveAreaM2 ?? (v.dischargeCoefficient !== undefined ? v.dischargeCoefficient * nominal : null);
+    const known =
+      v.effectiveAreaM2 ??
+      (v.dischargeCoefficient !== undefined ? v.dischargeCoefficient * nominal : null);
     return {
       id: v.id,
       shape: makeShape(v.shape),

@@ -38,7 +38,12 @@ function headLaw(delta: number, g: number, out: { value: number; slope: number }
 
 const law = { value: 0, slope: 0 };
 
-export function outletFlow(network: VesselNetwork, i: number, eta: Float64Array, out: OutletFlow): void {
+export function outletFlow(
+  network: VesselNetwork,
+  i: number,
+  eta: Float64Array,
+  out: OutletFlow,
+): void {
   const v = network.vessels[i];
   const g = network.gravity;
   if (v.connection === 'free' || v.receiver < 0) {

@@ -92,7 +92,12 @@ export function areas(network: VesselNetwork, eta: Float64Array, w: RateWork): v
  * ∂net_i/∂θ_p for one parameter p (the vessel block and role from PER_VESSEL), into col.
  * Needs netFlows to have been called at the same state (uses w.perArea).
  */
-export function netParameterColumn(network: VesselNetwork, p: number, w: RateWork, col: Float64Array): void {
+export function netParameterColumn(
+  network: VesselNetwork,
+  p: number,
+  w: RateWork,
+  col: Float64Array,
+): void {
   col.fill(0);
   const j = Math.floor(p / PER_VESSEL);
   const role = p % PER_VESSEL;

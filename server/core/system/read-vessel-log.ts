@@ -30,10 +30,19 @@ export function readVesselLog(
   const series = readLevelLog(file.bytes, file.fileName, {
     ...settings,
     fluidDensityKgM3: v.fluid && 'densityKgM3' in v.fluid ? density.value : undefined,
-    fallbackDensity: v.fluid && 'temperatureC' in v.fluid ? { valueKgM3: density.value, source: density.source } : undefined,
+    fallbackDensity:
+      v.fluid && 'temperatureC' in v.fluid
+        ? { valueKgM3: density.value, source: density.source }
+        : undefined,
     mountElevationM: v.sensor?.mountElevationM,
     zeroElevationM: v.sensor?.zeroElevationM,
     gravityMS2: gravity,
   });
-  return { vessel, fileName: file.fileName, timeS: series.timeS, levelM: series.levelM, t0EpochMs: series.t0EpochMs };
+  return {
+    vessel,
+    fileName: file.fileName,
+    timeS: series.timeS,
+    levelM: series.levelM,
+    t0EpochMs: series.t0EpochMs,
+  };
 }

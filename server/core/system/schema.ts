@@ -27,12 +27,26 @@ const linkSchema = z.object({
   /** A known Cd (with the outlet's bore), the alternative to effectiveAreaM2. */
   dischargeCoefficient: z.number().positive().max(1.5).optional(),
 });
-const SYSTEM_ONLY = ['id', 'dischargesTo', 'connection', 'baseElevationM', 'effectiveAreaM2', 'dischargeCoefficient'] as const;
+const SYSTEM_ONLY = [
+  'id',
+  'dischargesTo',
+  'connection',
+  'baseElevationM',
+  'effectiveAreaM2',
+  'dischargeCoefficient',
+] as const;
 
 const inflowSchema = z.union([
-  z.strictObject({ to: tagText().min(1), constant: z.union([z.number().min(0), tagText().min(1)]) }),
+  z.strictObject({
+    to: tagText().min(1),
+    constant: z.union([z.number().min(0), tagText().min(1)]),
+  }),
   // a flow log (time and flow columns); its path is relative to the system file; unit if its header gives none
-  z.strictObject({ to: tagText().min(1), log: limitedText('path').min(1), unit: tagText().min(1).optional() }),
+  z.strictObject({
+    to: tagText().min(1),
+    log: limitedText('path').min(1),
+    unit: tagText().min(1).optional(),
+  }),
 ]);
 
 const systemObject = z.strictObject({
@@ -52,7 +66,9 @@ export interface SystemVessel extends VesselSpec {
   dischargeCoefficient?: number;
 }
 
-export type SystemInflow = { to: string; constantM3S: number } | { to: string; log: string; unit?: string };
+export type SystemInflow =
+  | { to: string; constantM3S: number }
+  | { to: string; log: string; unit?: string };
 
 export interface SystemSpec {
   name: string;
@@ -86,31 +102,59 @@ export function validateSystem(value: unknown, fileName?: string): SystemSpec {
       spec = validateVessel(body, fileName);
     } catch (e) {
       if (!(e instanceof InputError)) throw e;
-      throw new InputError(e.message, { file: fileName, field: e.field ? `vessels.${i}.${e.field}` : `vessels.${i}` });
+      throw new InputError(e.message, {
+        file: fileName,
+        field: e.field ? `vessels.${i}.${e.field}` : `vessels.${i}`,
+      });
     }
     if (link.data.effectiveAreaM2 !== undefined && link.data.dischargeCoefficient !== undefined) {
-      refuse('give effectiveAreaM2 or dischargeCoefficient, not both', `vessels.${i}.dischargeCoefficient`, fileName);
+      refuse(
+        'give effectiveAreaM2 or dischargeCoefficient, not both',
+        `vessels.${i}.dischargeCoefficient`,
+        fileName,
+      );
     }
     return { ...spec, ...link.data };
   });
   const index = new Map<string, number>();
   vessels.forEach((v, i) => {
-    if (index.has(v.id)) refuse(`id "${v.id}" is used twice (also vessels.${index.get(v.id)})`, `vessels.${i}.id`, fileName);
+    if (index.has(v.id))
+      refuse(
+        `id "${v.id}" is used twice (also vessels.${index.get(v.id)})`,
+        `vessels.${i}.id`,
+        fileName,
+      );
     index.set(v.id, i);
   });
   vessels.forEach((v, i) => {
     if (v.dischargesTo === null) {
-      if (v.connection === 'submerged') refuse('a submerged outlet needs a receiving vessel (dischargesTo)', `vessels.${i}.connection`, fileName);
+      if (v.connection === 'submerged')
+        refuse(
+          'a submerged outlet needs a receiving vessel (dischargesTo)',
+          `vessels.${i}.connection`,
+          fileName,
+        );
       return;
     }
     const j = index.get(v.dischargesTo);
-    if (j === undefined) refuse(`no vessel has id "${v.dischargesTo}"`, `vessels.${i}.dischargesTo`, fileName);
-    if (j === i) refuse('a vessel cannot discharge into itself', `vessels.${i}.dischargesTo`, fileName);
+    if (j === undefined)
+      refuse(`no vessel has id "${v.dischargesTo}"`, `vessels.${i}.dischargesTo`, fileName);
+    if (j === i)
+      refuse('a vessel cannot discharge into itself', `vessels.${i}.dischargesTo`, fileName);
     if (v.connection === 'submerged') {
       // both surfaces must be on one datum for their difference to be a head
-      if (v.baseElevationM === undefined) refuse('a submerged connection needs baseElevationM (on the common site datum)', `vessels.${i}.baseElevationM`, fileName);
+      if (v.baseElevationM === undefined)
+        refuse(
+          'a submerged connection needs baseElevationM (on the common site datum)',
+          `vessels.${i}.baseElevationM`,
+          fileName,
+        );
       if (vessels[j].baseElevationM === undefined) {
-        refuse(`receives a submerged outlet from "${v.id}", so it needs baseElevationM`, `vessels.${j}.baseElevationM`, fileName);
+        refuse(
+          `receives a submerged outlet from "${v.id}", so it needs baseElevationM`,
+          `vessels.${j}.baseElevationM`,
+          fileName,
+        );
       }
     }
   });
@@ -120,15 +164,27 @@ export function validateSystem(value: unknown, fileName?: string): SystemSpec {
     let k = i;
     while (vessels[k].dischargesTo !== null) {
       k = index.get(vessels[k].dischargesTo!)!;
-      if (seen.has(k)) refuse(`the vessels discharge in a loop (${[...seen].map((s) => vessels[s].id).join(' → ')} → ${vessels[k].id})`, `vessels.${i}.dischargesTo`, fileName);
+      if (seen.has(k))
+        refuse(
+          `the vessels discharge in a loop (${[...seen].map((s) => vessels[s].id).join(' → ')} → ${vessels[k].id})`,
+          `vessels.${i}.dischargesTo`,
+          fileName,
+        );
       seen.add(k);
     }
   });
   const inflows: SystemInflow[] = (r.data.inflows ?? []).map((f, i) => {
     if (!index.has(f.to)) refuse(`no vessel has id "${f.to}"`, `inflows.${i}.to`, fileName);
     if ('log' in f) {
-      if (f.unit !== undefined && flowFactorToM3s(f.unit) === null) refuse(`"${f.unit}" is not a flow unit we know (e.g. L/s, m3/h, gpm)`, `inflows.${i}.unit`, fileName);
-      return f.unit === undefined ? { to: f.to, log: f.log } : { to: f.to, log: f.log, unit: f.unit };
+      if (f.unit !== undefined && flowFactorToM3s(f.unit) === null)
+        refuse(
+          `"${f.unit}" is not a flow unit we know (e.g. L/s, m3/h, gpm)`,
+          `inflows.${i}.unit`,
+          fileName,
+        );
+      return f.unit === undefined
+        ? { to: f.to, log: f.log }
+        : { to: f.to, log: f.log, unit: f.unit };
     }
     let q: number;
     try {
@@ -137,7 +193,8 @@ export function validateSystem(value: unknown, fileName?: string): SystemSpec {
       if (!(e instanceof InputError)) throw e;
       refuse(e.message, `inflows.${i}.constant`, fileName);
     }
-    if (!(q >= 0)) refuse(`must not be negative (got ${f.constant})`, `inflows.${i}.constant`, fileName);
+    if (!(q >= 0))
+      refuse(`must not be negative (got ${f.constant})`, `inflows.${i}.constant`, fileName);
     return { to: f.to, constantM3S: q };
   });
   return { name: r.data.name, site: r.data.site, notes: r.data.notes, vessels, inflows };
@@ -155,7 +212,10 @@ export function parseJsonText(text: string, fileName: string): unknown {
   } catch (e) {
     const offset = jsonErrorOffset(body);
     const line = lineOf(body, offset < 0 ? body.length : offset);
-    const what = body.trim() === '' ? 'the file is empty' : (e as Error).message.replace(/, ".*" is not valid JSON$/s, '');
+    const what =
+      body.trim() === ''
+        ? 'the file is empty'
+        : (e as Error).message.replace(/, ".*" is not valid JSON$/s, '');
     throw new InputError(`not valid JSON: ${what}`, { file: fileName, line });
   }
 }

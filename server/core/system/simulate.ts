@@ -39,7 +39,12 @@ export function simulateSystemTest(sim: SystemSimulation): SimulatedVesselLog[] 
     const timeS = new Float64Array(count);
     for (let s = 0; s < count; s++) timeS[s] = off + s * dt;
     const eta = new Float64Array(count * n);
-    if (!integrateSystem(sim.network, sim.theta, timeS, eta, null, { inflows: sim.inflows ?? [], free: new Int32Array(0) })) {
+    if (
+      !integrateSystem(sim.network, sim.theta, timeS, eta, null, {
+        inflows: sim.inflows ?? [],
+        free: new Int32Array(0),
+      })
+    ) {
       throw new RangeError('simulation parameters outside the model domain');
     }
     const zs = sim.theta[i * 4 + 2];

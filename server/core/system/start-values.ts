@@ -8,7 +8,12 @@ import { interpolateLinear } from './interpolate.js';
  * and the outflow of the vessels above), and Cd·a is that volume over ∫ sqrt(2g·H_i) dt.
  * Good to a few per cent on a clean test, which is all the solver needs.
  */
-export function startValues(network: VesselNetwork, logs: readonly AlignedLog[], inflows: readonly InflowInput[], theta: Float64Array): void {
+export function startValues(
+  network: VesselNetwork,
+  logs: readonly AlignedLog[],
+  inflows: readonly InflowInput[],
+  theta: Float64Array,
+): void {
   const n = network.vessels.length;
   const g = network.gravity;
   const byVessel = new Map(logs.map((l) => [l.vessel, l]));
@@ -24,14 +29,17 @@ export function startValues(network: VesselNetwork, logs: readonly AlignedLog[],
   const steps = 200;
   for (let s = 0; s <= steps; s++) {
     knownInflows(inflows, (span * s) / steps, q);
-    for (let i = 0; i < n; i++) knownVolume[i] += (s === 0 || s === steps ? 0.5 : 1) * q[i] * (span / steps);
+    for (let i = 0; i < n; i++)
+      knownVolume[i] += (s === 0 || s === steps ? 0.5 : 1) * q[i] * (span / steps);
   }
   const outVolume = new Float64Array(n);
   const done = new Uint8Array(n);
   for (let pass = 0; pass < n; pass++) {
     for (let i = 0; i < n; i++) {
       if (done[i]) continue;
-      const upstream = network.vessels.map((v, j) => (v.receiver === i ? j : -1)).filter((j) => j >= 0);
+      const upstream = network.vessels
+        .map((v, j) => (v.receiver === i ? j : -1))
+        .filter((j) => j >= 0);
       if (upstream.some((j) => !done[j])) continue;
       const v = network.vessels[i];
       const l = byVessel.get(i)!;
@@ -44,7 +52,10 @@ export function startValues(network: VesselNetwork, logs: readonly AlignedLog[],
           const surface = y + zs(i);
           if (v.connection === 'submerged' && v.receiver >= 0) {
             const r = network.vessels[v.receiver];
-            const down = Math.max(surfaceAt(v.receiver, t) + r.baseElevationM, v.baseElevationM + v.outletElevationM);
+            const down = Math.max(
+              surfaceAt(v.receiver, t) + r.baseElevationM,
+              v.baseElevationM + v.outletElevationM,
+            );
             return v.baseElevationM + surface - down;
           }
           return surface - v.outletElevationM;
@@ -60,4 +71,3 @@ export function startValues(network: VesselNetwork, logs: readonly AlignedLog[],
     }
   }
 }
-

@@ -1,7 +1,14 @@
 import { InputError } from '../errors.js';
 import { seededRandom } from '../random/prng.js';
 import { covarianceRoot, propagate, solve } from './matrix.js';
-import { coverageFactor, estimate, operatingTheta, outletCovariance, type Estimate, type SystemModel } from './model.js';
+import {
+  coverageFactor,
+  estimate,
+  operatingTheta,
+  outletCovariance,
+  type Estimate,
+  type SystemModel,
+} from './model.js';
 import { P, PER_VESSEL, type InflowInput } from './network.js';
 import { netFlows, netParameterColumn, rateWork } from './rates.js';
 
@@ -30,7 +37,8 @@ export interface SteadyState {
 export function inflowVector(n: number, inflows: readonly InflowInput[]): Float64Array {
   const q = new Float64Array(n);
   for (const f of inflows) {
-    if (f.constantM3S === undefined) throw new InputError('a steady state needs constant inflows, not a logged one');
+    if (f.constantM3S === undefined)
+      throw new InputError('a steady state needs constant inflows, not a logged one');
     q[f.vessel] += f.constantM3S;
   }
   return q;
@@ -55,7 +63,11 @@ function freeChainLevels(model: SystemModel, theta: Float64Array, q: Float64Arra
   });
 }
 
-export function equilibrium(model: SystemModel, theta: Float64Array, q: Float64Array): { eta: Float64Array; iterations: number } {
+export function equilibrium(
+  model: SystemModel,
+  theta: Float64Array,
+  q: Float64Array,
+): { eta: Float64Array; iterations: number } {
   const n = model.network.vessels.length;
   const inflows: InflowInput[] = Array.from(q, (x, i) => ({ vessel: i, constantM3S: x }));
   const w = rateWork(n);
@@ -70,7 +82,10 @@ export function equilibrium(model: SystemModel, theta: Float64Array, q: Float64A
   let it = 0;
   for (; it < 200 && size(net) > 1e-13 * scale; it++) {
     const step = solve(dNet, net, n, 1);
-    if (!step) throw new InputError('the steady state cannot be found: the equations are singular (an outlet with no area?)');
+    if (!step)
+      throw new InputError(
+        'the steady state cannot be found: the equations are singular (an outlet with no area?)',
+      );
     let lambda = 1;
     const before = size(net);
     for (;;) {
@@ -86,7 +101,13 @@ export function equilibrium(model: SystemModel, theta: Float64Array, q: Float64A
 }
 
 /** η* and its sensitivities to the given θ indices (n × r). */
-export function equilibriumSensitivity(model: SystemModel, theta: Float64Array, eta: Float64Array, q: Float64Array, index: Int32Array): Float64Array {
+export function equilibriumSensitivity(
+  model: SystemModel,
+  theta: Float64Array,
+  eta: Float64Array,
+  q: Float64Array,
+  index: Int32Array,
+): Float64Array {
   const n = model.network.vessels.length;
   const r = index.length;
   const w = rateWork(n);
@@ -108,7 +129,8 @@ export function equilibriumSensitivity(model: SystemModel, theta: Float64Array, 
 export function steadyState(model: SystemModel, inflowM3S: Float64Array): SteadyState {
   const { network } = model;
   const n = network.vessels.length;
-  if (inflowM3S.some((x) => !(x >= 0))) throw new InputError('inflows must be non-negative numbers');
+  if (inflowM3S.some((x) => !(x >= 0)))
+    throw new InputError('inflows must be non-negative numbers');
   const theta = operatingTheta(model);
   const { eta, iterations } = equilibrium(model, theta, inflowM3S);
   const cov = outletCovariance(model);
@@ -129,7 +151,9 @@ export function steadyState(model: SystemModel, inflowM3S: Float64Array): Steady
     flows.push(c * w.perArea[i]);
     heads.push((w.perArea[i] * Math.abs(w.perArea[i])) / (2 * network.gravity));
     if (eta[i] > v.shape.heightM) {
-      warnings.push(`${v.id}: the equilibrium level ${eta[i].toFixed(3)} m is above the vessel's height ${v.shape.heightM} m: at this inflow it would overflow`);
+      warnings.push(
+        `${v.id}: the equilibrium level ${eta[i].toFixed(3)} m is above the vessel's height ${v.shape.heightM} m: at this inflow it would overflow`,
+      );
     }
   });
   return {
@@ -144,7 +168,12 @@ export function steadyState(model: SystemModel, inflowM3S: Float64Array): Steady
 }
 
 /** Standard deviations of the equilibrium levels over draws of Cd·a from the covariance (a check of the delta method). */
-export function steadyStateMonteCarlo(model: SystemModel, inflowM3S: Float64Array, draws: number, seed: number): Float64Array {
+export function steadyStateMonteCarlo(
+  model: SystemModel,
+  inflowM3S: Float64Array,
+  draws: number,
+  seed: number,
+): Float64Array {
   const cov = outletCovariance(model);
   if (!cov) throw new InputError('Monte Carlo needs a covariance (a fit)');
   const n = model.network.vessels.length;
@@ -169,5 +198,7 @@ export function steadyStateMonteCarlo(model: SystemModel, inflowM3S: Float64Arra
       sum2[i] += eta[i] * eta[i];
     }
   }
-  return Float64Array.from(sum, (s, i) => Math.sqrt(Math.max(sum2[i] / draws - (s / draws) ** 2, 0) * (draws / (draws - 1))));
+  return Float64Array.from(sum, (s, i) =>
+    Math.sqrt(Math.max(sum2[i] / draws - (s / draws) ** 2, 0) * (draws / (draws - 1))),
+  );
 }

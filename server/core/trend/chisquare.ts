@@ -8,7 +8,10 @@ import { InputError } from '../errors.js';
  * Q(dof/2, x/2), so a small p-value keeps its digits (1 − CDF would cancel).
  */
 function checkDof(dof: number): void {
-  if (!Number.isInteger(dof) || dof < 1) throw new InputError(`degrees of freedom must be a whole number ≥ 1, got ${dof}`, { field: 'dof' });
+  if (!Number.isInteger(dof) || dof < 1)
+    throw new InputError(`degrees of freedom must be a whole number ≥ 1, got ${dof}`, {
+      field: 'dof',
+    });
 }
 
 /** P(X ≤ x) for X ~ χ²(dof). */

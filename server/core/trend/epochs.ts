@@ -10,16 +10,24 @@ function checkFit(f: ApprovedFit, i: number): void {
   else if (!Number.isFinite(f.testedAtMs)) bad = 'testedAtMs';
   else if (!(f.effectiveAreaM2 > 0 && f.effectiveAreaM2 < Infinity)) bad = 'effectiveAreaM2';
   else if (!(f.effectiveAreaU > 0 && f.effectiveAreaU < Infinity)) bad = 'effectiveAreaU';
-  else if (!(f.dischargeCoefficient > 0 && f.dischargeCoefficient < Infinity)) bad = 'dischargeCoefficient';
-  else if (!(f.dischargeCoefficientU > 0 && f.dischargeCoefficientU < Infinity)) bad = 'dischargeCoefficientU';
+  else if (!(f.dischargeCoefficient > 0 && f.dischargeCoefficient < Infinity))
+    bad = 'dischargeCoefficient';
+  else if (!(f.dischargeCoefficientU > 0 && f.dischargeCoefficientU < Infinity))
+    bad = 'dischargeCoefficientU';
   if (bad !== null) {
-    const what = bad === 'fitId' ? 'fit has no id' : bad === 'testedAtMs' ? 'test time is not a number' : `${bad} must be a positive finite number`;
+    const what =
+      bad === 'fitId'
+        ? 'fit has no id'
+        : bad === 'testedAtMs'
+          ? 'test time is not a number'
+          : `${bad} must be a positive finite number`;
     throw new InputError(what, { field: `fits[${i}].${bad}` });
   }
 }
 
 function sortedBy<T>(xs: readonly T[], key: (x: T) => number): T[] {
-  for (let i = 1; i < xs.length; i++) if (key(xs[i]) < key(xs[i - 1])) return [...xs].sort((a, b) => key(a) - key(b));
+  for (let i = 1; i < xs.length; i++)
+    if (key(xs[i]) < key(xs[i - 1])) return [...xs].sort((a, b) => key(a) - key(b));
   return xs as T[]; // already in order (the usual case from the store): no copy; never mutated below
 }
 
@@ -29,11 +37,18 @@ function sortedBy<T>(xs: readonly T[], key: (x: T) => number): T[] {
  * as after it (the test that confirms the work). Epochs without fits are kept, so "cleaned, not
  * yet tested" shows.
  */
-export function splitEpochs(fits: readonly ApprovedFit[], events: readonly MaintenanceEvent[]): Epoch[] {
+export function splitEpochs(
+  fits: readonly ApprovedFit[],
+  events: readonly MaintenanceEvent[],
+): Epoch[] {
   for (let i = 0; i < fits.length; i++) checkFit(fits[i], i);
   events.forEach((e, i) => {
-    if (!Number.isFinite(e.atMs)) throw new InputError('event time is not a number', { field: `events[${i}].atMs` });
-    if (!KINDS.has(e.kind)) throw new InputError(`unknown maintenance kind "${String(e.kind)}"`, { field: `events[${i}].kind` });
+    if (!Number.isFinite(e.atMs))
+      throw new InputError('event time is not a number', { field: `events[${i}].atMs` });
+    if (!KINDS.has(e.kind))
+      throw new InputError(`unknown maintenance kind "${String(e.kind)}"`, {
+        field: `events[${i}].kind`,
+      });
   });
   const sortedFits = sortedBy(fits, (f) => f.testedAtMs);
   const sortedEvents = sortedBy(events, (e) => e.atMs);
@@ -43,13 +58,25 @@ export function splitEpochs(fits: readonly ApprovedFit[], events: readonly Maint
   for (const f of sortedFits) {
     while (e < sortedEvents.length && sortedEvents[e].atMs <= f.testedAtMs) {
       const ev = sortedEvents[e++];
-      epochs.push({ index: epochs.length, startedBy: ev, startMs: ev.atMs, fits: [], baseline: null });
+      epochs.push({
+        index: epochs.length,
+        startedBy: ev,
+        startMs: ev.atMs,
+        fits: [],
+        baseline: null,
+      });
     }
     epochs[epochs.length - 1].fits.push(f);
   }
   while (e < sortedEvents.length) {
     const ev = sortedEvents[e++];
-    epochs.push({ index: epochs.length, startedBy: ev, startMs: ev.atMs, fits: [], baseline: null });
+    epochs.push({
+      index: epochs.length,
+      startedBy: ev,
+      startMs: ev.atMs,
+      fits: [],
+      baseline: null,
+    });
   }
   // An event recorded before any test leaves the first (pre-maintenance) epoch empty: drop it.
   if (epochs.length > 1 && epochs[0].fits.length === 0) {

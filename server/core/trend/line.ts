@@ -42,14 +42,21 @@ export interface WeightedLine extends LineUncertainty {
 
 export function weightedLine(tYears: Float64Array, y: Float64Array, u: Float64Array): WeightedLine {
   const n = tYears.length;
-  if (y.length !== n || u.length !== n) throw new InputError(`t, y and u differ in length (${n}, ${y.length}, ${u.length})`, { field: 'y' });
+  if (y.length !== n || u.length !== n)
+    throw new InputError(`t, y and u differ in length (${n}, ${y.length}, ${u.length})`, {
+      field: 'y',
+    });
   if (n < 3) throw new InputError(`a trend line needs at least 3 tests, got ${n}`, { field: 'y' });
   // Centre on the weighted means first: the normal equations then decouple and lose no digits.
-  let sw = 0, swt = 0, swy = 0;
+  let sw = 0,
+    swt = 0,
+    swy = 0;
   for (let i = 0; i < n; i++) {
     const ui = u[i];
-    if (!(ui > 0) || !Number.isFinite(ui)) throw new InputError(`uncertainty must be positive, got ${ui}`, { field: `u[${i}]` });
-    if (!Number.isFinite(tYears[i]) || !Number.isFinite(y[i])) throw new InputError('not a finite number', { field: `y[${i}]` });
+    if (!(ui > 0) || !Number.isFinite(ui))
+      throw new InputError(`uncertainty must be positive, got ${ui}`, { field: `u[${i}]` });
+    if (!Number.isFinite(tYears[i]) || !Number.isFinite(y[i]))
+      throw new InputError('not a finite number', { field: `y[${i}]` });
     const w = 1 / (ui * ui);
     sw += w;
     swt += w * tYears[i];
@@ -57,14 +64,16 @@ export function weightedLine(tYears: Float64Array, y: Float64Array, u: Float64Ar
   }
   const tm = swt / sw;
   const ym = swy / sw;
-  let stt = 0, sty = 0;
+  let stt = 0,
+    sty = 0;
   for (let i = 0; i < n; i++) {
     const w = 1 / (u[i] * u[i]);
     const dt = tYears[i] - tm;
     stt += w * dt * dt;
     sty += w * dt * (y[i] - ym);
   }
-  if (!(stt > 0)) throw new InputError('all tests at the same time: no slope can be fitted', { field: 't' });
+  if (!(stt > 0))
+    throw new InputError('all tests at the same time: no slope can be fitted', { field: 't' });
   const slope = sty / stt;
   const intercept = ym - slope * tm;
   let chi2 = 0;

@@ -88,7 +88,12 @@ function series(ep: Epoch): SeriesPoint[] {
  * The current epoch's band runs on past the last test to now, and on to the forecast crossing
  * (at most twice the epoch's span, or two years, past its last test) so the chart shows it.
  */
-export function outletTrend(fits: readonly ApprovedFit[], events: readonly MaintenanceEvent[], settings: TrendSettings, nowMs: number): OutletTrend {
+export function outletTrend(
+  fits: readonly ApprovedFit[],
+  events: readonly MaintenanceEvent[],
+  settings: TrendSettings,
+  nowMs: number,
+): OutletTrend {
   checkSettings(settings);
   if (!Number.isFinite(nowMs)) throw new InputError('now is not a time', { field: 'nowMs' });
   const pct = settings.actionThresholdPct;
@@ -105,7 +110,10 @@ export function outletTrend(fits: readonly ApprovedFit[], events: readonly Maint
     if (isCurrent && Number.isFinite(lastT)) {
       const reach = Math.max(2 * (lastT - first), 2 * YEAR_MS);
       const fc = current.forecast;
-      const want = Math.max(nowMs, fc?.status === 'forecast' ? (fc.upperMs ?? fc.crossingMs!) : -Infinity);
+      const want = Math.max(
+        nowMs,
+        fc?.status === 'forecast' ? (fc.upperMs ?? fc.crossingMs!) : -Infinity,
+      );
       end = Math.min(Math.max(lastT, want), lastT + reach);
     }
     return {

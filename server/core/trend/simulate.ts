@@ -51,9 +51,12 @@ export function seededNormal(seed: number): () => number {
 }
 
 export function simulateFoulingHistory(o: FoulingHistoryOptions): FoulingHistory {
-  if (!Number.isInteger(o.months) || o.months < 1) throw new InputError('months must be a whole number ≥ 1', { field: 'months' });
-  if (!(o.baselineAreaM2 > 0)) throw new InputError('baseline area must be positive', { field: 'baselineAreaM2' });
-  if (!(o.relU > 0)) throw new InputError('relative uncertainty must be positive', { field: 'relU' });
+  if (!Number.isInteger(o.months) || o.months < 1)
+    throw new InputError('months must be a whole number ≥ 1', { field: 'months' });
+  if (!(o.baselineAreaM2 > 0))
+    throw new InputError('baseline area must be positive', { field: 'baselineAreaM2' });
+  if (!(o.relU > 0))
+    throw new InputError('relative uncertainty must be positive', { field: 'relU' });
   const normal = seededNormal(o.seed);
   const uniform = seededUniform(o.seed ^ 0x5bd1e995);
   const aNom = o.nominalAreaM2 ?? o.baselineAreaM2 / 0.62;
@@ -73,14 +76,19 @@ export function simulateFoulingHistory(o: FoulingHistoryOptions): FoulingHistory
     if (mt && m > 0) {
       const at = slot - monthMs / 2;
       events.push({ atMs: at, kind: mt.kind ?? 'cleaned' });
-      epochs.push({ startMs: at, startAreaM2: o.baselineAreaM2 * (1 + (mt.restorePct ?? 0) / 100) });
+      epochs.push({
+        startMs: at,
+        startAreaM2: o.baselineAreaM2 * (1 + (mt.restorePct ?? 0) / 100),
+      });
       stepPct = 0; // maintenance clears a blockage too
     }
     for (const s of o.steps ?? []) if (s.month === m) stepPct += s.pct;
     const jitter = o.dayJitter ? (2 * uniform() - 1) * o.dayJitter * DAY_MS : 0;
     const at = Math.round(slot + jitter);
     const ep = epochs[epochs.length - 1];
-    const truth = ep.startAreaM2 * (1 + (o.driftPctPerYear / 100) * ((at - ep.startMs) / YEAR_MS)) + (o.baselineAreaM2 * stepPct) / 100;
+    const truth =
+      ep.startAreaM2 * (1 + (o.driftPctPerYear / 100) * ((at - ep.startMs) / YEAR_MS)) +
+      (o.baselineAreaM2 * stepPct) / 100;
     const u = o.relU * truth;
     const y = truth + u * normal();
     trueArea[m] = truth;

@@ -46,34 +46,58 @@ export interface StepCheck {
 }
 
 /** `epochFits` in time order (an Epoch's fits); `line` the epoch's Cd·a line (its Birge factor stands in early on). */
-export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine | null): StepCheck {
+export function detectStep(
+  epochFits: readonly ApprovedFit[],
+  line: WeightedLine | null,
+): StepCheck {
   const n = epochFits.length;
   const z = new Float64Array(n).fill(NaN);
   const lineScale = line ? line.scale : 1;
   const base = { k: CUSUM_K, h: CUSUM_H, zLimit: LATEST_Z_LIMIT, z };
   if (n <= MIN_PRIOR) {
-    return { ...base, flagged: false, by: null, fitId: null, alarmFitId: null, direction: null, latestZ: null,
-      reason: `fewer than ${MIN_PRIOR + 1} tests in this epoch: no prediction to compare with yet` };
+    return {
+      ...base,
+      flagged: false,
+      by: null,
+      fitId: null,
+      alarmFitId: null,
+      direction: null,
+      latestZ: null,
+      reason: `fewer than ${MIN_PRIOR + 1} tests in this epoch: no prediction to compare with yet`,
+    };
   }
   // Running weighted sums about the first test, so nothing large is subtracted.
-  const t0 = epochFits[0].testedAtMs, y0 = epochFits[0].effectiveAreaM2;
-  let S = 0, St = 0, Stt = 0, Sy = 0, Sty = 0, Syy = 0;
-  let up = 0, down = 0, upStart = 0, downStart = 0;
-  let alarmAt = -1, changeAt = -1, dir: 'drop' | 'rise' | null = null;
+  const t0 = epochFits[0].testedAtMs,
+    y0 = epochFits[0].effectiveAreaM2;
+  let S = 0,
+    St = 0,
+    Stt = 0,
+    Sy = 0,
+    Sty = 0,
+    Syy = 0;
+  let up = 0,
+    down = 0,
+    upStart = 0,
+    downStart = 0;
+  let alarmAt = -1,
+    changeAt = -1,
+    dir: 'drop' | 'rise' | null = null;
   for (let i = 0; i < n; i++) {
     const f = epochFits[i];
     const t = (f.testedAtMs - t0) / YEAR_MS;
     const y = f.effectiveAreaM2 - y0;
     const w = 1 / (f.effectiveAreaU * f.effectiveAreaU);
     if (i >= MIN_PRIOR) {
-      const tm = St / S, ym = Sy / S;
+      const tm = St / S,
+        ym = Sy / S;
       const ctt = Stt - St * tm;
       const b = ctt > 0 ? (Sty - St * ym) / ctt : 0;
       const dt = t - tm;
       const varPred = 1 / S + (ctt > 0 ? (dt * dt) / ctt : 0);
       const dofPrior = i - 2;
       const chi2Prior = Math.max(0, Syy - Sy * ym - b * (Sty - St * ym));
-      const scale = dofPrior >= MIN_BIRGE_DOF ? Math.max(1, Math.sqrt(chi2Prior / dofPrior)) : lineScale;
+      const scale =
+        dofPrior >= MIN_BIRGE_DOF ? Math.max(1, Math.sqrt(chi2Prior / dofPrior)) : lineScale;
       const zi = (y - ym - b * dt) / (scale * Math.sqrt(f.effectiveAreaU ** 2 + varPred));
       z[i] = zi;
       if (alarmAt < 0) {
@@ -88,7 +112,12 @@ export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine
         }
       }
     }
-    S += w; St += w * t; Stt += w * t * t; Sy += w * y; Sty += w * t * y; Syy += w * y * y;
+    S += w;
+    St += w * t;
+    Stt += w * t * t;
+    Sy += w * y;
+    Sty += w * t * y;
+    Syy += w * y * y;
   }
   const latestZ = z[n - 1];
   const latestFlag = Math.abs(latestZ) > LATEST_Z_LIMIT;
@@ -96,17 +125,45 @@ export function detectStep(epochFits: readonly ApprovedFit[], line: WeightedLine
   const last = epochFits[n - 1];
   const date = (f: ApprovedFit) => new Date(f.testedAtMs).toISOString().slice(0, 10);
   if (!cusumFlag && !latestFlag) {
-    return { ...base, flagged: false, by: null, fitId: null, alarmFitId: null, direction: null, latestZ,
-      reason: `no test departs from the epoch's line (latest z = ${latestZ.toFixed(2)}, CUSUM below ${CUSUM_H})` };
+    return {
+      ...base,
+      flagged: false,
+      by: null,
+      fitId: null,
+      alarmFitId: null,
+      direction: null,
+      latestZ,
+      reason: `no test departs from the epoch's line (latest z = ${latestZ.toFixed(2)}, CUSUM below ${CUSUM_H})`,
+    };
   }
   const latestDir: 'drop' | 'rise' = latestZ < 0 ? 'drop' : 'rise';
   if (cusumFlag) {
-    const from = epochFits[changeAt], at = epochFits[alarmAt];
+    const from = epochFits[changeAt],
+      at = epochFits[alarmAt];
     const by = latestFlag ? 'both' : 'cusum';
-    return { ...base, flagged: true, by, fitId: from.fitId, alarmFitId: at.fitId, direction: dir, latestZ,
-      reason: `sudden ${dir} from the test of ${date(from)}: the cumulative departure from the line passed ${CUSUM_H} at ${date(at)}` +
-        (latestFlag ? `; the latest test is ${Math.abs(latestZ).toFixed(1)} standard uncertainties off its prediction` : '') };
+    return {
+      ...base,
+      flagged: true,
+      by,
+      fitId: from.fitId,
+      alarmFitId: at.fitId,
+      direction: dir,
+      latestZ,
+      reason:
+        `sudden ${dir} from the test of ${date(from)}: the cumulative departure from the line passed ${CUSUM_H} at ${date(at)}` +
+        (latestFlag
+          ? `; the latest test is ${Math.abs(latestZ).toFixed(1)} standard uncertainties off its prediction`
+          : ''),
+    };
   }
-  return { ...base, flagged: true, by: 'latest-test', fitId: last.fitId, alarmFitId: last.fitId, direction: latestDir, latestZ,
-    reason: `the latest test (${date(last)}) is ${Math.abs(latestZ).toFixed(1)} standard uncertainties ${latestDir === 'drop' ? 'below' : 'above'} the epoch's prediction` };
+  return {
+    ...base,
+    flagged: true,
+    by: 'latest-test',
+    fitId: last.fitId,
+    alarmFitId: last.fitId,
+    direction: latestDir,
+    latestZ,
+    reason: `the latest test (${date(last)}) is ${Math.abs(latestZ).toFixed(1)} standard uncertainties ${latestDir === 'drop' ? 'below' : 'above'} the epoch's prediction`,
+  };
 }

@@ -44,7 +44,9 @@ export function epochLine(epoch: Epoch, quantity: TrendQuantity): TrendLine | nu
   if (fits.length < 3 || !epoch.baseline) return null;
   const origin = epoch.baseline.testedAtMs;
   const n = fits.length;
-  const t = new Float64Array(n), y = new Float64Array(n), u = new Float64Array(n);
+  const t = new Float64Array(n),
+    y = new Float64Array(n),
+    u = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     t[i] = yearsSince(origin, fits[i].testedAtMs);
     y[i] = quantityValue(fits[i], quantity);
@@ -63,6 +65,9 @@ export function epochLine(epoch: Epoch, quantity: TrendQuantity): TrendLine | nu
     slopePerYearInterval95: fit.slopeInterval95,
     slopePctPerYear: fit.slope * pct,
     slopePctPerYearU: fit.uSlope * pct,
-    slopePctPerYearInterval95: { lower: fit.slopeInterval95.lower * pct, upper: fit.slopeInterval95.upper * pct },
+    slopePctPerYearInterval95: {
+      lower: fit.slopeInterval95.lower * pct,
+      upper: fit.slopeInterval95.upper * pct,
+    },
   };
 }

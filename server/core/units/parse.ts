@@ -15,7 +15,8 @@ function parseQuantity(
   if (!m) throw new InputError(`cannot read "${text}" as a ${what} (expected e.g. ${examples})`);
   const value = Number(m[1].replace(',', '.'));
   const unit = m[2];
-  if (unit === '') throw new InputError(`"${text}" has no unit; a ${what} needs one (e.g. ${examples})`);
+  if (unit === '')
+    throw new InputError(`"${text}" has no unit; a ${what} needs one (e.g. ${examples})`);
   const f = factor(unit);
   if (f === null) throw new InputError(`unknown ${what} unit "${unit}" in "${text}"`);
   return value * f;

@@ -35,8 +35,10 @@ for (const [names, f] of [
   // psig and psia name gauge or absolute reference; the factor is the same and which
   // reference applies is decided where the column is read.
   [['psi', 'psig', 'psia', 'lbf/in2'], PSI_PA],
-  [['inh2o', 'inwc', 'inwg', '"h2o', '"wc', 'inchh2o', 'incheswc', 'inchesh2o', 'inofwater'],
-    INCH_M * WATER_COLUMN_PA_PER_M],
+  [
+    ['inh2o', 'inwc', 'inwg', '"h2o', '"wc', 'inchh2o', 'incheswc', 'inchesh2o', 'inofwater'],
+    INCH_M * WATER_COLUMN_PA_PER_M,
+  ],
   [['cmh2o', 'cmwc', 'cmwg'], 0.01 * WATER_COLUMN_PA_PER_M],
   [['mmh2o', 'mmwc', 'mmwg'], 0.001 * WATER_COLUMN_PA_PER_M],
   [['mh2o', 'mwc', 'mwg'], WATER_COLUMN_PA_PER_M],

@@ -24,7 +24,8 @@ export function temperatureUnit(unit: string): TemperatureUnit | null {
 export function temperatureToC(value: number, unit: string): number {
   const u = temperatureUnit(unit);
   if (u === null) throw new InputError(`unknown temperature unit "${unit}" (use C, F or K)`);
-  if (!Number.isFinite(value)) throw new InputError(`temperature is not a finite number (got ${value})`);
+  if (!Number.isFinite(value))
+    throw new InputError(`temperature is not a finite number (got ${value})`);
   const c = u === 'C' ? value : u === 'F' ? (value - 32) / 1.8 : value - 273.15;
   if (c < -273.15) throw new InputError(`temperature ${value} ${unit} is below absolute zero`);
   return c;

@@ -35,26 +35,42 @@ const TYPE_WORDS: Record<string, string> = {
 };
 
 /** One person-readable sentence for a zod issue, and the field it is about. */
-export function describeIssue(issue: Issue, input: unknown, prefix: Path = []): { field: string; message: string } {
+export function describeIssue(
+  issue: Issue,
+  input: unknown,
+  prefix: Path = [],
+): { field: string; message: string } {
   const path = [...prefix, ...issue.path];
   const got = at(input, path);
   const field = dotted(path);
   switch (issue.code) {
     case 'invalid_type':
       if (got === undefined) return { field, message: 'is required' };
-      return { field, message: `must be ${TYPE_WORDS[issue.expected] ?? issue.expected} (got ${show(got)})` };
+      return {
+        field,
+        message: `must be ${TYPE_WORDS[issue.expected] ?? issue.expected} (got ${show(got)})`,
+      };
     case 'too_small': {
-      if (issue.origin === 'array') return { field, message: `needs at least ${issue.minimum} entries` };
+      if (issue.origin === 'array')
+        return { field, message: `needs at least ${issue.minimum} entries` };
       if (issue.origin === 'string') return { field, message: 'must not be empty' };
       if (Number(issue.minimum) === 0 && !issue.inclusive) {
         return { field, message: `must be a positive number (got ${show(got)})` };
       }
-      return { field, message: `must be ${issue.inclusive ? '≥' : '>'} ${issue.minimum} (got ${show(got)})` };
+      return {
+        field,
+        message: `must be ${issue.inclusive ? '≥' : '>'} ${issue.minimum} (got ${show(got)})`,
+      };
     }
     case 'too_big':
-      if (issue.origin === 'array') return { field, message: `allows at most ${issue.maximum} entries` };
-      if (issue.origin === 'string') return { field, message: `is longer than ${issue.maximum} characters` };
-      return { field, message: `must be ${issue.inclusive ? '≤' : '<'} ${issue.maximum} (got ${show(got)})` };
+      if (issue.origin === 'array')
+        return { field, message: `allows at most ${issue.maximum} entries` };
+      if (issue.origin === 'string')
+        return { field, message: `is longer than ${issue.maximum} characters` };
+      return {
+        field,
+        message: `must be ${issue.inclusive ? '≤' : '<'} ${issue.maximum} (got ${show(got)})`,
+      };
     case 'unrecognized_keys': {
       const key = issue.keys[0];
       const others = issue.keys.length > 1 ? ` (and ${issue.keys.length - 1} more)` : '';
@@ -68,13 +84,18 @@ export function describeIssue(issue: Issue, input: unknown, prefix: Path = []): 
     case 'invalid_union': {
       const disc = (issue as { discriminator?: string; options?: unknown[] }).discriminator;
       if (disc !== undefined) {
-        const options = ((issue as { options?: unknown[] }).options ?? []).map((o) => JSON.stringify(o));
+        const options = ((issue as { options?: unknown[] }).options ?? []).map((o) =>
+          JSON.stringify(o),
+        );
         return { field, message: `must be one of ${options.join(', ')} (got ${show(got)})` };
       }
       // Several forms are allowed: report the one the input evidently meant, i.e. the only
       // branch whose fields the input does not overstep.
-      const fitting = issue.errors.filter((branch) => !branch.some((i) => i.code === 'unrecognized_keys'));
-      if (fitting.length === 1 && fitting[0].length > 0) return describeIssue(fitting[0][0], input, path);
+      const fitting = issue.errors.filter(
+        (branch) => !branch.some((i) => i.code === 'unrecognized_keys'),
+      );
+      if (fitting.length === 1 && fitting[0].length > 0)
+        return describeIssue(fitting[0][0], input, path);
       return { field, message: unionHint(field) };
     }
     default:

@@ -7,7 +7,8 @@ export function jsonErrorOffset(text: string): number {
   let i = 0;
   const n = text.length;
   const ws = () => {
-    while (i < n && (text[i] === ' ' || text[i] === '\t' || text[i] === '\n' || text[i] === '\r')) i++;
+    while (i < n && (text[i] === ' ' || text[i] === '\t' || text[i] === '\n' || text[i] === '\r'))
+      i++;
   };
   // Each reader returns false at the first error, leaving i there.
   const value = (): boolean => {

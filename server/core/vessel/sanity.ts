@@ -53,7 +53,11 @@ export function crossFieldProblems(v: Parsed): CrossFieldProblem[] {
     return out;
   }
   const { outlet } = v;
-  if (v.shape.kind === 'table' && v.shape.pointTolerances && v.shape.pointTolerances.length !== v.shape.points.length) {
+  if (
+    v.shape.kind === 'table' &&
+    v.shape.pointTolerances &&
+    v.shape.pointTolerances.length !== v.shape.points.length
+  ) {
     out.push({
       path: ['shape', 'pointTolerances'],
       message: `must give one [heightM, areaM2] tolerance pair per point (${v.shape.points.length}) (got ${v.shape.pointTolerances.length})`,

@@ -51,8 +51,14 @@ const loggerSchema = z.strictObject({
 
 // Water temperature bounds are those of waterDensityKgM3.
 const fluidSchema = z.union([
-  z.strictObject({ densityKgM3: z.number().positive(), densityToleranceKgM3: z.number().min(0).optional() }),
-  z.strictObject({ temperatureC: z.number().min(0).max(100), temperatureToleranceC: z.number().min(0).optional() }),
+  z.strictObject({
+    densityKgM3: z.number().positive(),
+    densityToleranceKgM3: z.number().min(0).optional(),
+  }),
+  z.strictObject({
+    temperatureC: z.number().min(0).max(100),
+    temperatureToleranceC: z.number().min(0).optional(),
+  }),
 ]);
 
 const vesselObject = z.strictObject({
@@ -70,7 +76,8 @@ const vesselObject = z.strictObject({
 /** The vessel file, with the cross-field checks (run only once every field is well formed). */
 export const vesselSchema = vesselObject.superRefine(
   (v, ctx) => {
-    for (const p of crossFieldProblems(v)) ctx.addIssue({ code: 'custom', message: p.message, path: p.path });
+    for (const p of crossFieldProblems(v))
+      ctx.addIssue({ code: 'custom', message: p.message, path: p.path });
   },
   { when: (payload) => payload.issues.length === 0 },
 );
@@ -94,7 +101,10 @@ export function parseVesselFile(text: string, fileName: string): VesselSpec {
   } catch (e) {
     const offset = jsonErrorOffset(body);
     const line = lineOf(body, offset < 0 ? body.length : offset);
-    const what = body.trim() === '' ? 'the file is empty' : (e as Error).message.replace(/, ".*" is not valid JSON$/s, '');
+    const what =
+      body.trim() === ''
+        ? 'the file is empty'
+        : (e as Error).message.replace(/, ".*" is not valid JSON$/s, '');
     throw new InputError(`not valid JSON: ${what}`, { file: fileName, line });
   }
   return validateVessel(value, fileName);
@@ -107,7 +117,10 @@ const ASSUMED_WATER_TEMPERATURE_C = 20;
  * water at the temperature measured during the test (the argument); water at the vessel file's
  * temperature; else water at 20 °C, said to be assumed.
  */
-export function fluidDensityKgM3(spec: VesselSpec, temperatureC?: number): { value: number; source: string } {
+export function fluidDensityKgM3(
+  spec: VesselSpec,
+  temperatureC?: number,
+): { value: number; source: string } {
   const fluid = spec.fluid;
   if (fluid && 'densityKgM3' in fluid) {
     return { value: fluid.densityKgM3, source: 'density given in the vessel file' };
@@ -120,7 +133,10 @@ export function fluidDensityKgM3(spec: VesselSpec, temperatureC?: number): { val
     };
   }
   if (fluid && 'temperatureC' in fluid) {
-    return { value: waterDensityKgM3(fluid.temperatureC), source: `${cite} at ${fluid.temperatureC} °C, from the vessel file` };
+    return {
+      value: waterDensityKgM3(fluid.temperatureC),
+      source: `${cite} at ${fluid.temperatureC} °C, from the vessel file`,
+    };
   }
   return {
     value: waterDensityKgM3(ASSUMED_WATER_TEMPERATURE_C),

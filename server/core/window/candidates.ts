@@ -92,7 +92,14 @@ function turningPoints(v: Float64Array, h: number): number[] {
 }
 
 /** Holds inside blocks [a, b]: stretches steady within `band` for at least holdS. */
-function holdsWithin(t: Float64Array, v: Float64Array, a: number, b: number, band: number, holdS: number): [number, number][] {
+function holdsWithin(
+  t: Float64Array,
+  v: Float64Array,
+  a: number,
+  b: number,
+  band: number,
+  holdS: number,
+): [number, number][] {
   const holds: [number, number][] = [];
   let i = a;
   let hi = v[a];
@@ -123,7 +130,14 @@ export function findDrainCandidates(
   if (n < 3) return [];
   const holdS = options.holdS ?? 30;
   const d = decimate(timeS, levelM, excluded, options.blockSamples ?? defaultBlockSamples(n));
-  const { bandM, minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options, known);
+  const { bandM, minDropM } = candidateScales(
+    levelM,
+    excluded,
+    d.levelM,
+    d.blockSamples,
+    options,
+    known,
+  );
   const t = d.timeS;
   const v = d.levelM;
   const pts = turningPoints(v, minDropM);

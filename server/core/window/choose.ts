@@ -13,26 +13,47 @@ import { openingTrim } from './opening.js';
 import { estimateNoise, estimateResolution } from './robust.js';
 import { findClipping, findFlatLines } from './runs.js';
 import { findSpikes } from './spikes.js';
-import type { DrainCandidate, WindowChoice, WindowNote, WindowOptions, WindowTrim } from './types.js';
+import type {
+  DrainCandidate,
+  WindowChoice,
+  WindowNote,
+  WindowOptions,
+  WindowTrim,
+} from './types.js';
 
 const s1 = (t: number) => `${t.toFixed(1)} s`;
 const m3 = (m: number) => `${m.toFixed(3)} m`;
 
-function checkInput(series: Pick<LevelSeries, 'timeS' | 'levelM' | 'sourceLine'>, minSamples: number): void {
+function checkInput(
+  series: Pick<LevelSeries, 'timeS' | 'levelM' | 'sourceLine'>,
+  minSamples: number,
+): void {
   const { timeS, levelM, sourceLine } = series;
   const n = levelM.length;
   if (timeS.length !== n || sourceLine.length !== n) {
-    throw new InputError(`time, level and line arrays differ in length (${timeS.length}, ${n}, ${sourceLine.length})`, { field: 'levelM' });
+    throw new InputError(
+      `time, level and line arrays differ in length (${timeS.length}, ${n}, ${sourceLine.length})`,
+      { field: 'levelM' },
+    );
   }
   if (n < Math.max(minSamples, 20)) {
-    throw new InputError(`the log has only ${n} readings; a drain window needs at least ${Math.max(minSamples, 20)}`, { field: 'levelM' });
+    throw new InputError(
+      `the log has only ${n} readings; a drain window needs at least ${Math.max(minSamples, 20)}`,
+      { field: 'levelM' },
+    );
   }
   const bad = firstUnfit(timeS, levelM);
   if (bad < 0) return;
   if (!Number.isFinite(levelM[bad]) || !Number.isFinite(timeS[bad])) {
-    throw new InputError('reading is not a finite number', { line: sourceLine[bad], field: Number.isFinite(timeS[bad]) ? 'level' : 'time' });
+    throw new InputError('reading is not a finite number', {
+      line: sourceLine[bad],
+      field: Number.isFinite(timeS[bad]) ? 'level' : 'time',
+    });
   }
-  throw new InputError('times must increase from one reading to the next', { line: sourceLine[bad], field: 'time' });
+  throw new InputError('times must increase from one reading to the next', {
+    line: sourceLine[bad],
+    field: 'time',
+  });
 }
 
 // The passes over every reading are small functions of their own, so that in a fresh process
@@ -84,11 +105,15 @@ export function chooseDrainWindow(
   const warnings: WindowNote[] = [];
   const trims: WindowTrim[] = [];
   const headFraction = options.headFraction ?? 0.05;
-  if (!(headFraction > 0 && headFraction < 1)) throw new InputError('headFraction must lie between 0 and 1', { field: 'headFraction' });
+  if (!(headFraction > 0 && headFraction < 1))
+    throw new InputError('headFraction must lie between 0 and 1', { field: 'headFraction' });
 
   const [lo, hi] = range(levelM);
   if (hi === lo) {
-    throw new InputError(`the level reads ${lo} m throughout: the sensor did not respond, or the file's level column is wrong`, { field: 'level' });
+    throw new InputError(
+      `the level reads ${lo} m throughout: the sensor did not respond, or the file's level column is wrong`,
+      { field: 'level' },
+    );
   }
 
   // 1. Readings to set aside.
@@ -96,33 +121,58 @@ export function chooseDrainWindow(
   // The noise of all readings, measured once: the spike filter's default floor, and (while
   // nothing is set aside) the noise the stuck-run test and the candidates need as well.
   const noiseAll = options.spikes?.scaleFloorM === undefined ? estimateNoise(levelM) : NaN;
-  const spikeIdx = findSpikes(timeS, levelM, { ...options.spikes, scaleFloorM: options.spikes?.scaleFloorM ?? Math.max(q, noiseAll) });
+  const spikeIdx = findSpikes(timeS, levelM, {
+    ...options.spikes,
+    scaleFloorM: options.spikes?.scaleFloorM ?? Math.max(q, noiseAll),
+  });
   const excluded = new Uint8Array(n);
   for (const i of spikeIdx) excluded[i] = 1;
   const clipping = findClipping(timeS, levelM, { resolutionM: q, rangeM: [lo, hi] });
   for (const r of clipping) excluded.fill(1, r.startIndex, r.endIndex + 1);
   // With nothing set aside the noise of the kept readings is the noise of all (the same numbers
   // in the same order); otherwise measured once here for the stuck-run test and reused below.
-  const noiseKept = spikeIdx.length === 0 && clipping.length === 0 && noiseAll === noiseAll ? noiseAll : estimateNoise(levelM, excluded);
+  const noiseKept =
+    spikeIdx.length === 0 && clipping.length === 0 && noiseAll === noiseAll
+      ? noiseAll
+      : estimateNoise(levelM, excluded);
   const flatLines = findFlatLines(timeS, levelM, { resolutionM: q, excluded, noiseM: noiseKept });
   for (const r of flatLines) excluded.fill(1, r.startIndex, r.endIndex + 1);
-  const spikes = Array.from(spikeIdx, (i) => ({ index: i, line: sourceLine[i], timeS: timeS[i], levelM: levelM[i] }));
-  if (q > 0) notes.push({ code: 'resolution', message: `readings come in steps of ${(q * 1000).toPrecision(3)} mm` });
-  if (spikes.length) notes.push({ code: 'spikes', message: `${spikes.length} reading(s) stand out from their neighbours (moving median test) and are left out` });
+  const spikes = Array.from(spikeIdx, (i) => ({
+    index: i,
+    line: sourceLine[i],
+    timeS: timeS[i],
+    levelM: levelM[i],
+  }));
+  if (q > 0)
+    notes.push({
+      code: 'resolution',
+      message: `readings come in steps of ${(q * 1000).toPrecision(3)} mm`,
+    });
+  if (spikes.length)
+    notes.push({
+      code: 'spikes',
+      message: `${spikes.length} reading(s) stand out from their neighbours (moving median test) and are left out`,
+    });
   for (const r of clipping) warnings.push({ code: 'clipping', message: r.reason });
   for (const r of flatLines) warnings.push({ code: 'flat-line', message: r.reason });
 
   // 2. Falling stretches.
   // the white noise of the readings left in, measured once for the candidates and the onset
   const sigma = flatLines.length ? estimateNoise(levelM, excluded) : noiseKept;
-  const candidates = findDrainCandidates(timeS, levelM, excluded, options.candidates, { resolutionM: q, noiseM: sigma });
+  const candidates = findDrainCandidates(timeS, levelM, excluded, options.candidates, {
+    resolutionM: q,
+    noiseM: sigma,
+  });
 
   let startIndex: number;
   let endIndex: number;
   if (options.window) {
     const { startS, endS } = options.window;
     if (!Number.isFinite(startS) || !Number.isFinite(endS) || !(endS > startS)) {
-      throw new InputError(`the window must have a start before its end (got ${startS} s to ${endS} s)`, { field: 'window' });
+      throw new InputError(
+        `the window must have a start before its end (got ${startS} s to ${endS} s)`,
+        { field: 'window' },
+      );
     }
     if (startS < timeS[0] || endS > timeS[n - 1]) {
       throw new InputError(
@@ -134,12 +184,31 @@ export function chooseDrainWindow(
     while (timeS[startIndex] < startS) startIndex++;
     endIndex = n - 1;
     while (timeS[endIndex] > endS) endIndex--;
-    notes.push({ code: 'window-chosen-by-user', message: `the window ${s1(startS)} to ${s1(endS)} was given; no automatic trims applied` });
-    if (candidates.length === 0) warnings.push({ code: 'no-fall', message: 'no clear falling stretch was found anywhere in the log' });
+    notes.push({
+      code: 'window-chosen-by-user',
+      message: `the window ${s1(startS)} to ${s1(endS)} was given; no automatic trims applied`,
+    });
+    if (candidates.length === 0)
+      warnings.push({
+        code: 'no-fall',
+        message: 'no clear falling stretch was found anywhere in the log',
+      });
   } else {
     if (candidates.length === 0) {
-      const d = decimate(timeS, levelM, excluded, options.candidates?.blockSamples ?? defaultBlockSamples(n));
-      const { minDropM } = candidateScales(levelM, excluded, d.levelM, d.blockSamples, options.candidates, { resolutionM: q, noiseM: sigma });
+      const d = decimate(
+        timeS,
+        levelM,
+        excluded,
+        options.candidates?.blockSamples ?? defaultBlockSamples(n),
+      );
+      const { minDropM } = candidateScales(
+        levelM,
+        excluded,
+        d.levelM,
+        d.blockSamples,
+        options.candidates,
+        { resolutionM: q, noiseM: sigma },
+      );
       throw new InputError(
         `the level never falls by more than ${m3(minDropM)} (the smallest fall that stands clear of the noise) ` +
           'without a hold or a rise: is this a drain test? Check the level column, or choose the window by hand',
@@ -147,15 +216,35 @@ export function chooseDrainWindow(
       );
     }
     const best = candidates[0];
-    notes.push({ code: 'drain-chosen', message: `the largest fall is used: ${candidateLine(best)}` });
-    for (const c of candidates.slice(1)) notes.push({ code: 'other-drain', message: `another fall, not used: ${candidateLine(c)}` });
+    notes.push({
+      code: 'drain-chosen',
+      message: `the largest fall is used: ${candidateLine(best)}`,
+    });
+    for (const c of candidates.slice(1))
+      notes.push({ code: 'other-drain', message: `another fall, not used: ${candidateLine(c)}` });
     if (candidates.length > 1 && candidates[1].dropM >= 0.8 * best.dropM) {
-      warnings.push({ code: 'similar-drains', message: 'another fall is nearly as large as the one used: check that the right drain was picked' });
+      warnings.push({
+        code: 'similar-drains',
+        message:
+          'another fall is nearly as large as the one used: check that the right drain was picked',
+      });
     }
 
     // 3. Onset and the valve-opening transient.
-    const earliest = candidates.filter((c) => c.endIndex <= best.startIndex).reduce((e, c) => Math.max(e, c.endIndex), 0);
-    const onset = findOnset(timeS, levelM, excluded, best.startIndex, best.endIndex, earliest, sigma, q, best.dropM);
+    const earliest = candidates
+      .filter((c) => c.endIndex <= best.startIndex)
+      .reduce((e, c) => Math.max(e, c.endIndex), 0);
+    const onset = findOnset(
+      timeS,
+      levelM,
+      excluded,
+      best.startIndex,
+      best.endIndex,
+      earliest,
+      sigma,
+      q,
+      best.dropM,
+    );
     notes.push({
       code: 'valve-opened',
       message:
@@ -189,16 +278,30 @@ export function chooseDrainWindow(
         message: `the valve-opening trim takes ${usedS.toFixed(1)} s, ${pct} of the drain: the valve opened slowly or the start is unsettled; check the window`,
       });
     }
-    trims.push({ what: 'valve-opening', fromS: onset.timeS, toS: timeS[startIndex], reason: `${open.reason}; ${usedS.toFixed(1)} s trimmed (${pct} of the drain)` });
+    trims.push({
+      what: 'valve-opening',
+      fromS: onset.timeS,
+      toS: timeS[startIndex],
+      reason: `${open.reason}; ${usedS.toFixed(1)} s trimmed (${pct} of the drain)`,
+    });
 
     // 4. The end.
-    const cut = cutEnd(timeS, levelM, excluded, startIndex, best.endIndex, headFraction, options.outletReadingM);
+    const cut = cutEnd(
+      timeS,
+      levelM,
+      excluded,
+      startIndex,
+      best.endIndex,
+      headFraction,
+      options.outletReadingM,
+    );
     endIndex = cut.endIndex;
     trims.push(...cut.trims);
     if (options.outletReadingM === undefined) {
       notes.push({
         code: 'outlet-unknown',
-        message: "the outlet's level is not known, so the end is cut where the level flattens; give the outlet reading to cut by head",
+        message:
+          "the outlet's level is not known, so the end is cut where the level flattens; give the outlet reading to cut by head",
       });
     }
   }
@@ -212,15 +315,33 @@ export function chooseDrainWindow(
     );
   }
   const inside = spikes.filter((s) => s.index >= startIndex && s.index <= endIndex).length;
-  if (inside) notes.push({ code: 'spikes-in-window', message: `${inside} spike(s) inside the window are left out of the fit` });
-  const setAside = [...clipping, ...flatLines].filter((r) => r.endIndex >= startIndex && r.startIndex <= endIndex);
+  if (inside)
+    notes.push({
+      code: 'spikes-in-window',
+      message: `${inside} spike(s) inside the window are left out of the fit`,
+    });
+  const setAside = [...clipping, ...flatLines].filter(
+    (r) => r.endIndex >= startIndex && r.startIndex <= endIndex,
+  );
   if (setAside.length) {
-    warnings.push({ code: 'set-aside-in-window', message: `${setAside.length} stuck or clipped run(s) inside the window are left out of the fit` });
+    warnings.push({
+      code: 'set-aside-in-window',
+      message: `${setAside.length} stuck or clipped run(s) inside the window are left out of the fit`,
+    });
   }
-  notes.push({ code: 'window', message: `the fit window runs from ${s1(timeS[startIndex])} to ${s1(timeS[endIndex])} with ${kept} readings` });
+  notes.push({
+    code: 'window',
+    message: `the fit window runs from ${s1(timeS[startIndex])} to ${s1(timeS[endIndex])} with ${kept} readings`,
+  });
 
   return {
-    window: { startIndex, endIndex, startS: timeS[startIndex], endS: timeS[endIndex], samples: endIndex - startIndex + 1 },
+    window: {
+      startIndex,
+      endIndex,
+      startS: timeS[startIndex],
+      endS: timeS[endIndex],
+      samples: endIndex - startIndex + 1,
+    },
     keep,
     candidates,
     spikes,

@@ -39,7 +39,12 @@ export function decimate(
   const out: BlockOut = { t, v, first, last };
   let m = 0;
   for (let a = from; a <= to; a += B) {
-    if (excluded ? keptBlock(timeS, levelM, excluded, a, Math.min(a + B - 1, to), scratch, out, m) : wholeBlock(timeS, levelM, a, Math.min(a + B - 1, to), scratch, out, m)) m++;
+    if (
+      excluded
+        ? keptBlock(timeS, levelM, excluded, a, Math.min(a + B - 1, to), scratch, out, m)
+        : wholeBlock(timeS, levelM, a, Math.min(a + B - 1, to), scratch, out, m)
+    )
+      m++;
   }
   return {
     timeS: t.subarray(0, m),
@@ -60,7 +65,15 @@ interface BlockOut {
 // One block each, as small functions the JIT takes up early (called once per block).
 
 /** Block [a, b] with every reading kept into out[m]. */
-function wholeBlock(timeS: Float64Array, levelM: Float64Array, a: number, b: number, scratch: Float64Array, out: BlockOut, m: number): boolean {
+function wholeBlock(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  a: number,
+  b: number,
+  scratch: Float64Array,
+  out: BlockOut,
+  m: number,
+): boolean {
   let k = 0;
   let st = 0;
   for (let i = a; i <= b; i++) {
@@ -75,7 +88,16 @@ function wholeBlock(timeS: Float64Array, levelM: Float64Array, a: number, b: num
 }
 
 /** Block [a, b] without its set-aside readings into out[m]; false when none is left. */
-function keptBlock(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, a: number, b: number, scratch: Float64Array, out: BlockOut, m: number): boolean {
+function keptBlock(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  a: number,
+  b: number,
+  scratch: Float64Array,
+  out: BlockOut,
+  m: number,
+): boolean {
   let k = 0;
   let st = 0;
   let f = -1;

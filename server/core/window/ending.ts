@@ -42,7 +42,14 @@ export function cutEnd(
 ): EndCut {
   const trims: WindowTrim[] = [];
   const len = endIndex - startIndex + 1;
-  const d = decimate(timeS, levelM, excluded, Math.max(1, Math.ceil(len / 2000)), startIndex, endIndex);
+  const d = decimate(
+    timeS,
+    levelM,
+    excluded,
+    Math.max(1, Math.ceil(len / 2000)),
+    startIndex,
+    endIndex,
+  );
   const t = d.timeS;
   const v = d.levelM;
   const m = v.length;
@@ -84,7 +91,7 @@ export function cutEnd(
   if (mEnd >= 4 && duration > 0) {
     const i10 = Math.max(1, firstIndexAtOrAfter(t, t[0] + 0.1 * duration, 0, mEnd));
     const rate0 = (v[0] - v[i10]) / (t[i10] - t[0]);
-    const w = Math.max(1, Math.round((0.025 * mEnd)));
+    const w = Math.max(1, Math.round(0.025 * mEnd));
     // Outlet known: the head cut handles the free-draining tail, so only a real flattening (a tenth
     // of the initial rate: valve shut, outlet uncovered) cuts earlier.
     const fraction = outletReadingM === undefined ? Math.sqrt(headFraction) : 0.1;

@@ -35,7 +35,13 @@ interface HoldStats {
   count: number;
 }
 
-function holdStats(levelM: Float64Array, excluded: Uint8Array, a: number, b: number, floor: number): HoldStats {
+function holdStats(
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  a: number,
+  b: number,
+  floor: number,
+): HoldStats {
   const s = new Float64Array(b - a + 1);
   let k = 0;
   for (let i = a; i <= b; i++) if (!excluded[i]) s[k++] = levelM[i];
@@ -47,7 +53,14 @@ function holdStats(levelM: Float64Array, excluded: Uint8Array, a: number, b: num
 }
 
 /** First index of the hold that ends at `end`: blocks of 10 readings whose median stays within tol of ref. */
-function holdStart(levelM: Float64Array, excluded: Uint8Array, earliest: number, end: number, ref: number, tol: number): number {
+function holdStart(
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  earliest: number,
+  end: number,
+  ref: number,
+  tol: number,
+): number {
   const block = new Float64Array(10);
   let start = end;
   for (let b = end; b > earliest; b -= 10) {
@@ -61,7 +74,13 @@ function holdStart(levelM: Float64Array, excluded: Uint8Array, earliest: number,
 }
 
 /** Index after the last kept reading in [from, to] at or above `limit`; from when none. */
-function leavesBand(levelM: Float64Array, excluded: Uint8Array, from: number, to: number, limit: number): number {
+function leavesBand(
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  from: number,
+  to: number,
+  limit: number,
+): number {
   let last = from - 1;
   for (let i = from; i <= to; i++) if (!excluded[i] && levelM[i] >= limit) last = i;
   return Math.min(last + 1, to);
@@ -78,11 +97,22 @@ export function findOnset(
   resolutionM: number,
   dropM: number,
 ): Onset {
-  const floor = Math.max(0.5 * noiseM, 0.3 * resolutionM, 1e-9 * Math.abs(levelM[candidateStart]) + 1e-12);
-  const falling = (i: number): Onset => ({ index: i, timeS: timeS[i], holdLevelM: levelM[i], holdScatterM: 0, holdSamples: 0 });
+  const floor = Math.max(
+    0.5 * noiseM,
+    0.3 * resolutionM,
+    1e-9 * Math.abs(levelM[candidateStart]) + 1e-12,
+  );
+  const falling = (i: number): Onset => ({
+    index: i,
+    timeS: timeS[i],
+    holdLevelM: levelM[i],
+    holdScatterM: 0,
+    holdSamples: 0,
+  });
   // The level just before the fall (or, when the fall's start is found inside the hold near the
   // log's start, the first readings).
-  const nearTo = candidateStart - earliest >= 5 ? candidateStart : Math.min(candidateEnd, earliest + 29);
+  const nearTo =
+    candidateStart - earliest >= 5 ? candidateStart : Math.min(candidateEnd, earliest + 29);
   const near = holdStats(levelM, excluded, Math.max(earliest, nearTo - 30), nearTo, floor);
   if (near.count < 5) return falling(candidateStart);
   const tol = Math.max(0.05 * dropM, 8 * noiseM, 2 * resolutionM);
@@ -93,7 +123,8 @@ export function findOnset(
   let cross = leavesBand(levelM, excluded, hs, candidateEnd, hold.level - 4 * hold.scatter);
   hold = holdStats(levelM, excluded, hs, Math.max(hs, cross - 1), floor);
   cross = leavesBand(levelM, excluded, hs, candidateEnd, hold.level - 4 * hold.scatter);
-  if (hold.count < 5 || cross - hs < 5) return falling(Math.max(hs, Math.min(cross, candidateStart)));
+  if (hold.count < 5 || cross - hs < 5)
+    return falling(Math.max(hs, Math.min(cross, candidateStart)));
 
   // The first stretch of the fall: max(10 s, 20 samples, 5 % of the drain).
   const dt = (timeS[candidateEnd] - timeS[hs]) / Math.max(1, candidateEnd - hs);
@@ -113,11 +144,22 @@ export function findOnset(
   while (lo > hs + 1 && timeS[lo - 1] >= timeS[cross] - back) lo--;
   let hi = cross;
   const deep = hold.level - 12 * hold.scatter;
-  while (hi < fitEnd - 5 && timeS[hi + 1] <= timeS[cross] + back && !(levelM[hi] < deep && !excluded[hi])) hi++;
+  while (
+    hi < fitEnd - 5 &&
+    timeS[hi + 1] <= timeS[cross] + back &&
+    !(levelM[hi] < deep && !excluded[hi])
+  )
+    hi++;
   const t0 = hingeFit(timeS, levelM, excluded, hs, lo, hi, cross, fitEnd, hold);
   let index = lo;
   while (index < hi && timeS[index] < t0) index++;
-  return { index, timeS: t0, holdLevelM: hold.level, holdScatterM: hold.scatter, holdSamples: hold.count };
+  return {
+    index,
+    timeS: t0,
+    holdLevelM: hold.level,
+    holdScatterM: hold.scatter,
+    holdSamples: hold.count,
+  };
 }
 
 /**
@@ -164,8 +206,14 @@ function hingeFit(
   for (let i = hs; i < lo; i++) if (!excluded[i]) before += (levelM[i] - h) ** 2;
   // the fall's own scatter: the residual RMS of the fit hinged at the crossing's sample before
   const afterSse = (j: number, u0: number): number => {
-    const s0 = S[5 * j], s1 = S[5 * j + 1], s2 = S[5 * j + 2], s3 = S[5 * j + 3], s4 = S[5 * j + 4];
-    const p0 = P[3 * j], p1 = P[3 * j + 1], p2 = P[3 * j + 2];
+    const s0 = S[5 * j],
+      s1 = S[5 * j + 1],
+      s2 = S[5 * j + 2],
+      s3 = S[5 * j + 3],
+      s4 = S[5 * j + 4];
+    const p0 = P[3 * j],
+      p1 = P[3 * j + 1],
+      p2 = P[3 * j + 2];
     const a11 = s2 - 2 * u0 * s1 + u0 * u0 * s0;
     const a12 = s3 - 3 * u0 * s2 + 3 * u0 * u0 * s1 - u0 ** 3 * s0;
     const a22 = s4 - 4 * u0 * s3 + 6 * u0 * u0 * s2 - 4 * u0 ** 3 * s1 + u0 ** 4 * s0;
@@ -179,7 +227,10 @@ function hingeFit(
   };
   const jc = cross - lo;
   const nAfter = S[5 * jc];
-  const sd = Math.max(Math.sqrt(afterSse(jc, timeS[cross - 1] - tr) / Math.max(1, nAfter - 2)), hold.scatter * 1e-3);
+  const sd = Math.max(
+    Math.sqrt(afterSse(jc, timeS[cross - 1] - tr) / Math.max(1, nAfter - 2)),
+    hold.scatter * 1e-3,
+  );
   const wh = 1 / (hold.scatter * hold.scatter);
   const wd = 1 / (sd * sd);
   let bestT = timeS[cross];

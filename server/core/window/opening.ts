@@ -47,13 +47,19 @@ function lastBefore(timeS: Float64Array, a: number, endIndex: number, tEnd: numb
   return b;
 }
 
-function chunkRms(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, a: number, b: number): number {
+function chunkRms(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  a: number,
+  b: number,
+): number {
   const s = slopeOver(timeS, levelM, a, b, excluded);
   if (!Number.isFinite(s)) return NaN;
   let n = 0;
   let tm = 0;
   let ym = 0;
-  for (let i = a; i <= b; i++) if (!excluded[i]) (n++, (tm += timeS[i]), (ym += levelM[i]));
+  for (let i = a; i <= b; i++) if (!excluded[i]) n++, (tm += timeS[i]), (ym += levelM[i]);
   tm /= n;
   ym /= n;
   let ss = 0;
@@ -66,13 +72,22 @@ function chunkRms(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Arra
 }
 
 /** Least-squares line over kept samples in [a, b]: slope, its standard error and the mean level. */
-function lineFit(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, a: number, b: number): { slope: number; se: number; meanM: number } {
-  let n = 0, tm = 0, ym = 0;
-  for (let i = a; i <= b; i++) if (!excluded[i]) (n++, (tm += timeS[i]), (ym += levelM[i]));
+function lineFit(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  a: number,
+  b: number,
+): { slope: number; se: number; meanM: number } {
+  let n = 0,
+    tm = 0,
+    ym = 0;
+  for (let i = a; i <= b; i++) if (!excluded[i]) n++, (tm += timeS[i]), (ym += levelM[i]);
   if (n < 3) return { slope: NaN, se: NaN, meanM: NaN };
   tm /= n;
   ym /= n;
-  let stt = 0, sty = 0;
+  let stt = 0,
+    sty = 0;
   for (let i = a; i <= b; i++) {
     if (excluded[i]) continue;
     stt += (timeS[i] - tm) ** 2;
@@ -80,12 +95,20 @@ function lineFit(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array
   }
   const slope = sty / stt;
   let ss = 0;
-  for (let i = a; i <= b; i++) if (!excluded[i]) ss += (levelM[i] - ym - slope * (timeS[i] - tm)) ** 2;
+  for (let i = a; i <= b; i++)
+    if (!excluded[i]) ss += (levelM[i] - ym - slope * (timeS[i] - tm)) ** 2;
   return { slope, se: Math.sqrt(ss / (n - 2) / stt), meanM: ym };
 }
 
 /** Seconds after the onset by which the outflow, relative to the head model, had stopped growing. */
-function stillOpeningS(timeS: Float64Array, levelM: Float64Array, excluded: Uint8Array, onset: Onset, endIndex: number, ctx: TrimContext): number {
+function stillOpeningS(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  excluded: Uint8Array,
+  onset: Onset,
+  endIndex: number,
+  ctx: TrimContext,
+): number {
   const t0 = onset.timeS;
   const duration = timeS[endIndex] - t0;
   const dt = duration / Math.max(1, endIndex - onset.index);
@@ -112,7 +135,9 @@ function stillOpeningS(timeS: Float64Array, levelM: Float64Array, excluded: Uint
   // units before the head model's scaling (which grows as the head falls).
   const diffs = new Float64Array(Math.max(0, rate.length - 1));
   let m = 0;
-  for (let c = 1; c < rate.length; c++) if (Number.isFinite(rate[c]) && Number.isFinite(rate[c - 1])) diffs[m++] = Math.abs(rate[c] - rate[c - 1]);
+  for (let c = 1; c < rate.length; c++)
+    if (Number.isFinite(rate[c]) && Number.isFinite(rate[c - 1]))
+      diffs[m++] = Math.abs(rate[c] - rate[c - 1]);
   const seFloor = m >= 4 ? (MAD_TO_SIGMA * medianInPlace(diffs, m)) / Math.SQRT2 : 0;
   const k = rate.map((r, c) => r * scales[c]);
   const se = rateSe.map((e, c) => Math.max(e, seFloor) * Math.abs(scales[c]));
@@ -149,7 +174,10 @@ export function openingTrim(
     rms.push(b - a >= 2 ? chunkRms(timeS, levelM, excluded, a, b) : NaN);
     a = b + 1;
   }
-  const body = rms.slice(Math.floor(0.2 * rms.length), Math.max(Math.floor(0.2 * rms.length) + 1, Math.ceil(0.6 * rms.length)));
+  const body = rms.slice(
+    Math.floor(0.2 * rms.length),
+    Math.max(Math.floor(0.2 * rms.length) + 1, Math.ceil(0.6 * rms.length)),
+  );
   const finite = Float64Array.from(body.filter(Number.isFinite));
   const ref = finite.length ? medianInPlace(finite) : 0;
   const limit = 2.5 * ref + 0.1 * ctx.resolutionM + 1e-12;

@@ -87,7 +87,12 @@ function smallestStep(levelM: Float64Array, tiny: number): number {
   return q;
 }
 
-function countOnGrid(levelM: Float64Array, tiny: number, q: number, stride: number): { steps: number; onGrid: number } {
+function countOnGrid(
+  levelM: Float64Array,
+  tiny: number,
+  q: number,
+  stride: number,
+): { steps: number; onGrid: number } {
   let steps = 0;
   let onGrid = 0;
   for (let i = stride; i < levelM.length; i += stride) {
@@ -120,7 +125,8 @@ export function estimateNoise(levelM: Float64Array, excluded?: Uint8Array | null
 /** d = |second differences| of all readings; returns their count. */
 function secondDiffs(levelM: Float64Array, d: Float64Array): number {
   const n = levelM.length;
-  for (let i = 1; i < n - 1; i++) d[i - 1] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
+  for (let i = 1; i < n - 1; i++)
+    d[i - 1] = Math.abs(levelM[i + 1] - 2 * levelM[i] + levelM[i - 1]);
   return n - 2;
 }
 

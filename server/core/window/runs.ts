@@ -6,7 +6,11 @@ import { estimateNoise, estimateResolution, slopeOver } from './robust.js';
 import type { ClippingOptions, ClippingRun, FlatLineOptions, SampleRun } from './types.js';
 
 /** Maximal runs [start, end] of identical readings at least minSamples long. */
-function identicalRuns(levelM: Float64Array, minSamples: number, accept: (v: number) => boolean): [number, number][] {
+function identicalRuns(
+  levelM: Float64Array,
+  minSamples: number,
+  accept: (v: number) => boolean,
+): [number, number][] {
   const runs: [number, number][] = [];
   const n = levelM.length;
   let a = 0;
@@ -28,8 +32,22 @@ function extremes(levelM: Float64Array): [number, number] {
   return [lo, hi];
 }
 
-function run(timeS: Float64Array, levelM: Float64Array, a: number, b: number, reason: string): SampleRun {
-  return { startIndex: a, endIndex: b, startS: timeS[a], endS: timeS[b], samples: b - a + 1, levelM: levelM[a], reason };
+function run(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  a: number,
+  b: number,
+  reason: string,
+): SampleRun {
+  return {
+    startIndex: a,
+    endIndex: b,
+    startS: timeS[a],
+    endS: timeS[b],
+    samples: b - a + 1,
+    levelM: levelM[a],
+    reason,
+  };
 }
 
 const mm = (m: number) => `${(m * 1000).toFixed(1)} mm`;
@@ -40,7 +58,11 @@ const mm = (m: number) => `${(m * 1000).toFixed(1)} mm`;
  * rate it would have moved by more than `factor` reading steps (or noise σ) during the run.
  * Holds are not flagged: on both sides of a hold the rate is about zero.
  */
-export function findFlatLines(timeS: Float64Array, levelM: Float64Array, options: FlatLineOptions = {}): SampleRun[] {
+export function findFlatLines(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  options: FlatLineOptions = {},
+): SampleRun[] {
   const minSamples = options.minSamples ?? 10;
   const factor = options.factor ?? 5;
   const q = options.resolutionM ?? estimateResolution(levelM);
@@ -51,7 +73,12 @@ export function findFlatLines(timeS: Float64Array, levelM: Float64Array, options
     if (a - side < 0 || b + side >= levelM.length) continue; // no level movement to judge against
     const before = slopeOver(timeS, levelM, a - side, a - 1, options.excluded);
     const after = slopeOver(timeS, levelM, b + 1, b + side, options.excluded);
-    if (!Number.isFinite(before) || !Number.isFinite(after) || Math.sign(before) !== Math.sign(after)) continue;
+    if (
+      !Number.isFinite(before) ||
+      !Number.isFinite(after) ||
+      Math.sign(before) !== Math.sign(after)
+    )
+      continue;
     const rate = Math.min(Math.abs(before), Math.abs(after));
     const duration = timeS[b] - timeS[a];
     const expected = rate * duration;
@@ -78,7 +105,11 @@ export function findFlatLines(timeS: Float64Array, levelM: Float64Array, options
  * still run at the very extreme is the sensor at the end of its range. With noise-free readings
  * a still run at the extreme is an ordinary hold (or an empty vessel) and is not flagged.
  */
-export function findClipping(timeS: Float64Array, levelM: Float64Array, options: ClippingOptions = {}): ClippingRun[] {
+export function findClipping(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  options: ClippingOptions = {},
+): ClippingRun[] {
   const n = levelM.length;
   if (n < 3) return [];
   const minSamples = options.minSamples ?? 5;

@@ -60,15 +60,27 @@ function slide(s: Float64Array, gone: number, come: number): void {
 }
 
 /** Indices (ascending) of the readings the Hampel filter calls spikes. */
-export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: SpikeOptions = {}): Int32Array {
+export function findSpikes(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  options: SpikeOptions = {},
+): Int32Array {
   const n = levelM.length;
   if (timeS.length !== n) {
-    throw new InputError(`time and level have different lengths (${timeS.length} and ${n})`, { field: 'levelM' });
+    throw new InputError(`time and level have different lengths (${timeS.length} and ${n})`, {
+      field: 'levelM',
+    });
   }
   const k = options.halfWindow ?? 5;
   const threshold = options.threshold ?? 3.5;
-  if (!Number.isInteger(k) || k < 1) throw new InputError('the spike half-window must be a whole number of samples ≥ 1', { field: 'halfWindow' });
-  if (!(threshold > 0)) throw new InputError('the spike threshold must be a positive number of scaled MADs', { field: 'threshold' });
+  if (!Number.isInteger(k) || k < 1)
+    throw new InputError('the spike half-window must be a whole number of samples ≥ 1', {
+      field: 'halfWindow',
+    });
+  if (!(threshold > 0))
+    throw new InputError('the spike threshold must be a positive number of scaled MADs', {
+      field: 'threshold',
+    });
   if (n < 3) return new Int32Array(0);
   // Floor on the scale: with 1 mm steps the MAD is often exactly 0, and a scale of 0 would flag
   // every step; the white-noise level keeps quiet windows from flagging ordinary noise.
@@ -91,7 +103,8 @@ export function findSpikes(timeS: Float64Array, levelM: Float64Array, options: S
   const beyond = deviations(z, med, bar, dev);
   if (beyond > n / 16) {
     const mad = movingMedian(dev, k);
-    for (let i = 0; i < n; i++) if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
+    for (let i = 0; i < n; i++)
+      if (dev[i] > threshold * Math.max(MAD_TO_SIGMA * mad[i], floor)) out.push(i);
     return Int32Array.from(out);
   }
   const window = new Float64Array(L);
@@ -122,7 +135,12 @@ function rates(timeS: Float64Array, levelM: Float64Array): Float64Array {
 }
 
 /** z = readings minus the integral of the smoothed rate (z[0] = the first reading). */
-function detrend(timeS: Float64Array, levelM: Float64Array, smooth: Float64Array, z: Float64Array): void {
+function detrend(
+  timeS: Float64Array,
+  levelM: Float64Array,
+  smooth: Float64Array,
+  z: Float64Array,
+): void {
   let trend = 0;
   z[0] = levelM[0];
   for (let i = 1; i < levelM.length; i++) {

@@ -7,7 +7,14 @@ import { HttpProblem } from '../problems.js';
 import { protectedErrors } from '../schemas.js';
 import { assertSite, sitesOf } from '../site-scope.js';
 
-const recordDifference = z.object({ table: z.string(), row: z.number().int(), field: z.string(), stored: z.unknown(), expected: z.unknown(), message: z.string() });
+const recordDifference = z.object({
+  table: z.string(),
+  row: z.number().int(),
+  field: z.string(),
+  stored: z.unknown(),
+  expected: z.unknown(),
+  message: z.string(),
+});
 
 const entry = z
   .object({
@@ -32,28 +39,43 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: AUDITORS, scope: 'listed' },
       schema: {
         tags: ['audit'],
-        summary: 'The audit log, oldest first; page on with afterSeq (a person limited to sites: one vessel of theirs at a time, vesselId)',
+        summary:
+          'The audit log, oldest first; page on with afterSeq (a person limited to sites: one vessel of theirs at a time, vesselId)',
         querystring: z.object({
           entityType: tagText().optional(),
           entityId: tagText().optional(),
           actorId: z.coerce.number().int().optional(),
           action: tagText().optional(),
-          vesselId: z.coerce.number().int().positive().optional().meta({ description: 'entries of the vessel and of its outlets, tests, fits and maintenance events' }),
+          vesselId: z.coerce.number().int().positive().optional().meta({
+            description:
+              'entries of the vessel and of its outlets, tests, fits and maintenance events',
+          }),
           since: tagText().optional(),
           until: tagText().optional(),
           afterSeq: z.coerce.number().int().min(0).default(0),
           limit: z.coerce.number().int().min(1).max(1000).default(100),
         }),
-        response: { 200: z.object({ items: z.array(entry), nextAfterSeq: z.number().int().nullable() }), ...protectedErrors },
+        response: {
+          200: z.object({ items: z.array(entry), nextAfterSeq: z.number().int().nullable() }),
+          ...protectedErrors,
+        },
       },
     },
     async (request) => {
       if (sitesOf(request) !== null) {
-        if (request.query.vesselId === undefined) throw new HttpProblem(403, 'site-forbidden', 'a person limited to sites reads the audit log of one vessel at a time: give vesselId');
+        if (request.query.vesselId === undefined)
+          throw new HttpProblem(
+            403,
+            'site-forbidden',
+            'a person limited to sites reads the audit log of one vessel at a time: give vesselId',
+          );
         assertSite(request, app.store.sites.siteOf('vessel', request.query.vesselId));
       }
       const items = app.store.audit.list(request.query);
-      return { items, nextAfterSeq: items.length === request.query.limit ? items[items.length - 1].seq : null };
+      return {
+        items,
+        nextAfterSeq: items.length === request.query.limit ? items[items.length - 1].seq : null,
+      };
     },
   );
 
@@ -63,7 +85,8 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: AUDITORS, scope: 'every-site' },
       schema: {
         tags: ['audit'],
-        summary: 'Walk the hash chain and check every stored copy (result columns, status cache) against what it was copied from',
+        summary:
+          'Walk the hash chain and check every stored copy (result columns, status cache) against what it was copied from',
         response: {
           200: z.object({
             ok: z.boolean(),
@@ -71,7 +94,13 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
             head: z.string(),
             brokenAt: z.number().int().optional(),
             reason: z.string().optional(),
-            records: z.object({ ok: z.boolean(), fitsChecked: z.number().int(), outletsChecked: z.number().int(), differences: z.array(recordDifference), undatedTests: z.array(z.object({ testId: z.number().int(), reason: z.string() })) }),
+            records: z.object({
+              ok: z.boolean(),
+              fitsChecked: z.number().int(),
+              outletsChecked: z.number().int(),
+              differences: z.array(recordDifference),
+              undatedTests: z.array(z.object({ testId: z.number().int(), reason: z.string() })),
+            }),
           }),
           ...protectedErrors,
         },

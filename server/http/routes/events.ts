@@ -44,7 +44,13 @@ export const eventRoutes: FastifyPluginAsyncZod = async (app) => {
         throw new InputError(`vessel ${v.id} has no outlet ${outletId}`, { field: 'outletId' });
       }
       reply.code(201);
-      return app.store.events.create(actorOf(request.user!), { vesselId: v.id, outletId, kind: request.body.kind, occurredAt: request.body.occurredAt, notes: request.body.notes });
+      return app.store.events.create(actorOf(request.user!), {
+        vesselId: v.id,
+        outletId,
+        kind: request.body.kind,
+        occurredAt: request.body.occurredAt,
+        notes: request.body.notes,
+      });
     },
   );
 
@@ -52,11 +58,24 @@ export const eventRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/vessels/:id/events',
     {
       config: { roles: ENGINEERS_AND_AUDITORS },
-      schema: { tags: ['maintenance'], summary: "A vessel's maintenance events, in time order", params: idParams, querystring: paging, response: { 200: pageOf(event), ...protectedErrors } },
+      schema: {
+        tags: ['maintenance'],
+        summary: "A vessel's maintenance events, in time order",
+        params: idParams,
+        querystring: paging,
+        response: { 200: pageOf(event), ...protectedErrors },
+      },
     },
     async (request) => {
       app.store.vessels.get(request.params.id);
-      return { ...app.store.events.listByVessel(request.params.id, request.query.limit, request.query.offset), ...request.query };
+      return {
+        ...app.store.events.listByVessel(
+          request.params.id,
+          request.query.limit,
+          request.query.offset,
+        ),
+        ...request.query,
+      };
     },
   );
 };

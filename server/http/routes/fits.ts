@@ -6,26 +6,56 @@ import { reviewFit } from '../../jobs/review.js';
 import { actorOf } from '../../store/users.js';
 import { ENGINEERS_UP, READERS, TECHNICIANS_UP } from '../access.js';
 import { sendReadyText } from '../ready-text.js';
-import { analysisSettings, fit, idParams, pageOf, paging, problem, protectedErrors } from '../schemas.js';
+import {
+  analysisSettings,
+  fit,
+  idParams,
+  pageOf,
+  paging,
+  problem,
+  protectedErrors,
+} from '../schemas.js';
 
 export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/vessels/:id/fits',
     {
       config: { roles: READERS },
-      schema: { tags: ['fits'], summary: "A vessel's fits, newest first", params: idParams, querystring: paging, response: { 200: pageOf(fit), ...protectedErrors } },
+      schema: {
+        tags: ['fits'],
+        summary: "A vessel's fits, newest first",
+        params: idParams,
+        querystring: paging,
+        response: { 200: pageOf(fit), ...protectedErrors },
+      },
     },
     async (request) => {
       app.store.vessels.get(request.params.id);
-      return { ...app.store.fits.listByVessel(request.params.id, request.query.limit, request.query.offset), ...request.query };
+      return {
+        ...app.store.fits.listByVessel(
+          request.params.id,
+          request.query.limit,
+          request.query.offset,
+        ),
+        ...request.query,
+      };
     },
   );
 
   app.get(
     '/api/fits/:id',
-    { config: { roles: READERS }, schema: { tags: ['fits'], summary: 'One fit', params: idParams, response: { 200: fit, ...protectedErrors } } },
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['fits'],
+        summary: 'One fit',
+        params: idParams,
+        response: { 200: fit, ...protectedErrors },
+      },
+    },
     // Stored JSON bytes sent as is (same shape as the schema; checked by the store's tests), with an ETag.
-    async (request, reply) => sendReadyText(request, reply, app.store.fits.getText(request.params.id)),
+    async (request, reply) =>
+      sendReadyText(request, reply, app.store.fits.getText(request.params.id)),
   );
 
   app.post(
@@ -34,14 +64,21 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: TECHNICIANS_UP },
       schema: {
         tags: ['fits'],
-        summary: 'Fit the same raw file again with changed settings (merged over the old); the old fit is superseded, kept',
+        summary:
+          'Fit the same raw file again with changed settings (merged over the old); the old fit is superseded, kept',
         params: idParams,
         body: z.object({ settings: analysisSettings }),
         response: { 201: fit, 409: problem, 422: problem, 503: problem, ...protectedErrors },
       },
     },
     async (request, reply) => {
-      const created = await refit(app.store, app.analyze, actorOf(request.user!), request.params.id, request.body.settings);
+      const created = await refit(
+        app.store,
+        app.analyze,
+        actorOf(request.user!),
+        request.params.id,
+        request.body.settings,
+      );
       reply.code(201);
       return created;
     },

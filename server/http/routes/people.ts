@@ -14,35 +14,89 @@ import { idParams, problem, protectedErrors } from '../schemas.js';
 
 const ADMINS: Access = ['admin'];
 const role = z.enum(ROLES);
-const siteList = z.array(z.string().min(1).max(200)).max(100).nullable().meta({ description: 'sites this person may see and act on; null or [] = every site' });
+const siteList = z
+  .array(z.string().min(1).max(200))
+  .max(100)
+  .nullable()
+  .meta({ description: 'sites this person may see and act on; null or [] = every site' });
 
 export const person = z
-  .object({ id: z.number().int(), name: z.string(), role, sites: z.array(z.string()).nullable(), createdAt: z.string(), revokedAt: z.string().nullable() })
+  .object({
+    id: z.number().int(),
+    name: z.string(),
+    role,
+    sites: z.array(z.string()).nullable(),
+    createdAt: z.string(),
+    revokedAt: z.string().nullable(),
+  })
   .meta({ id: 'Person' });
 const token = z
-  .object({ id: z.number().int(), userId: z.number().int(), userName: z.string(), name: z.string(), createdAt: z.string(), revokedAt: z.string().nullable() })
+  .object({
+    id: z.number().int(),
+    userId: z.number().int(),
+    userName: z.string(),
+    name: z.string(),
+    createdAt: z.string(),
+    revokedAt: z.string().nullable(),
+  })
   .meta({ id: 'TokenInfo' });
-const site = z.object({ id: z.number().int(), name: z.string(), selfReviewAllowed: z.boolean(), createdAt: z.string() }).meta({ id: 'Site' });
+const site = z
+  .object({
+    id: z.number().int(),
+    name: z.string(),
+    selfReviewAllowed: z.boolean(),
+    createdAt: z.string(),
+  })
+  .meta({ id: 'Site' });
 
 /** Admins with no site limit who could still manage people, other than `exceptId`. */
 function otherFullAdmins(store: Store, exceptId: number): Person[] {
-  return store.users.people().filter((p) => p.id !== exceptId && p.role === 'admin' && p.sites === null && p.revokedAt === null);
+  return store.users
+    .people()
+    .filter(
+      (p) => p.id !== exceptId && p.role === 'admin' && p.sites === null && p.revokedAt === null,
+    );
 }
 
-function keepAnAdmin(store: Store, id: number, next: { role?: Role; sites?: string[] | null; revoked?: boolean }): void {
+function keepAnAdmin(
+  store: Store,
+  id: number,
+  next: { role?: Role; sites?: string[] | null; revoked?: boolean },
+): void {
   const p = store.users.person(id);
-  const stillFull = !next.revoked && (next.role ?? p.role) === 'admin' && (next.sites === undefined ? p.sites === null : !next.sites?.length);
-  if (p.role === 'admin' && p.sites === null && !stillFull && otherFullAdmins(store, id).length === 0) {
-    throw new ConflictError(`${p.name} is the last admin with no site limit; add another before changing or revoking this one`);
+  const stillFull =
+    !next.revoked &&
+    (next.role ?? p.role) === 'admin' &&
+    (next.sites === undefined ? p.sites === null : !next.sites?.length);
+  if (
+    p.role === 'admin' &&
+    p.sites === null &&
+    !stillFull &&
+    otherFullAdmins(store, id).length === 0
+  ) {
+    throw new ConflictError(
+      `${p.name} is the last admin with no site limit; add another before changing or revoking this one`,
+    );
   }
 }
 
 export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
   const cfg = { roles: ADMINS, scope: 'every-site' as const };
 
-  app.get('/api/people', { config: cfg, schema: { tags: ['people'], summary: 'Everyone with a role, their site limits and whether revoked', response: { 200: z.object({ items: z.array(person) }), ...protectedErrors } } }, async () => ({
-    items: app.store.users.people(),
-  }));
+  app.get(
+    '/api/people',
+    {
+      config: cfg,
+      schema: {
+        tags: ['people'],
+        summary: 'Everyone with a role, their site limits and whether revoked',
+        response: { 200: z.object({ items: z.array(person) }), ...protectedErrors },
+      },
+    },
+    async () => ({
+      items: app.store.users.people(),
+    }),
+  );
 
   app.post(
     '/api/people',
@@ -50,14 +104,22 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       config: cfg,
       schema: {
         tags: ['people'],
-        summary: 'Add a named person with a role and optional site limits (no credential yet: POST /api/people/:id/tokens)',
-        body: z.object({ name: z.string().trim().min(1).max(200), role, sites: siteList.optional() }).strict(),
+        summary:
+          'Add a named person with a role and optional site limits (no credential yet: POST /api/people/:id/tokens)',
+        body: z
+          .object({ name: z.string().trim().min(1).max(200), role, sites: siteList.optional() })
+          .strict(),
         response: { 201: person, 409: problem, ...protectedErrors },
       },
     },
     async (request, reply) => {
       reply.code(201);
-      return app.store.users.addPerson(actorOf(request.user!), request.body.name, request.body.role, request.body.sites ?? null);
+      return app.store.users.addPerson(
+        actorOf(request.user!),
+        request.body.name,
+        request.body.role,
+        request.body.sites ?? null,
+      );
     },
   );
 
@@ -67,7 +129,8 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       config: cfg,
       schema: {
         tags: ['people'],
-        summary: "Change a person's role or site limits (effective on their next request, open sessions included)",
+        summary:
+          "Change a person's role or site limits (effective on their next request, open sessions included)",
         params: idParams,
         body: z.object({ role: role.optional(), sites: siteList.optional() }).strict(),
         response: { 200: person, 409: problem, ...protectedErrors },
@@ -81,7 +144,15 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
 
   app.post(
     '/api/people/:id/revoke',
-    { config: cfg, schema: { tags: ['people'], summary: 'Revoke a person: every token revoked, every open session ended at once', params: idParams, response: { 200: person, 409: problem, ...protectedErrors } } },
+    {
+      config: cfg,
+      schema: {
+        tags: ['people'],
+        summary: 'Revoke a person: every token revoked, every open session ended at once',
+        params: idParams,
+        response: { 200: person, 409: problem, ...protectedErrors },
+      },
+    },
     async (request) => {
       keepAnAdmin(app.store, request.params.id, { revoked: true });
       return app.store.users.revokePerson(actorOf(request.user!), request.params.id);
@@ -97,13 +168,25 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
         summary: 'A new API token for the person, shown in this answer only',
         params: idParams,
         body: z.object({ label: z.string().trim().min(1).max(200).default('web') }).strict(),
-        response: { 201: z.object({ token: z.string(), tokenId: z.number().int(), person }), 409: problem, ...protectedErrors },
+        response: {
+          201: z.object({ token: z.string(), tokenId: z.number().int(), person }),
+          409: problem,
+          ...protectedErrors,
+        },
       },
     },
     async (request, reply) => {
-      const out = app.store.users.createTokenFor(actorOf(request.user!), request.params.id, request.body.label);
+      const out = app.store.users.createTokenFor(
+        actorOf(request.user!),
+        request.params.id,
+        request.body.label,
+      );
       reply.code(201).header('cache-control', 'no-store');
-      return { token: out.token, tokenId: out.tokenId, person: app.store.users.person(request.params.id) };
+      return {
+        token: out.token,
+        tokenId: out.tokenId,
+        person: app.store.users.person(request.params.id),
+      };
     },
   );
 
@@ -111,20 +194,44 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/tokens',
     {
       config: cfg,
-      schema: { tags: ['people'], summary: 'API tokens (never the secrets), of one person with personId', querystring: z.object({ personId: z.coerce.number().int().positive().optional() }), response: { 200: z.object({ items: z.array(token) }), ...protectedErrors } },
+      schema: {
+        tags: ['people'],
+        summary: 'API tokens (never the secrets), of one person with personId',
+        querystring: z.object({ personId: z.coerce.number().int().positive().optional() }),
+        response: { 200: z.object({ items: z.array(token) }), ...protectedErrors },
+      },
     },
     async (request) => ({ items: app.store.users.tokens(request.query.personId ?? null) }),
   );
 
   app.delete(
     '/api/tokens/:id',
-    { config: cfg, schema: { tags: ['people'], summary: 'Revoke a token: sessions opened with it end at once', params: idParams, response: { 200: token, 409: problem, ...protectedErrors } } },
+    {
+      config: cfg,
+      schema: {
+        tags: ['people'],
+        summary: 'Revoke a token: sessions opened with it end at once',
+        params: idParams,
+        response: { 200: token, 409: problem, ...protectedErrors },
+      },
+    },
     async (request) => app.store.users.revokeToken(actorOf(request.user!), request.params.id),
   );
 
-  app.get('/api/sites', { config: cfg, schema: { tags: ['people'], summary: 'Sites and their settings', response: { 200: z.object({ items: z.array(site) }), ...protectedErrors } } }, async () => ({
-    items: app.store.sites.list(),
-  }));
+  app.get(
+    '/api/sites',
+    {
+      config: cfg,
+      schema: {
+        tags: ['people'],
+        summary: 'Sites and their settings',
+        response: { 200: z.object({ items: z.array(site) }), ...protectedErrors },
+      },
+    },
+    async () => ({
+      items: app.store.sites.list(),
+    }),
+  );
 
   app.put(
     '/api/sites/:name/settings',
@@ -132,12 +239,18 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       config: cfg,
       schema: {
         tags: ['people'],
-        summary: 'Allow self-review on a site with one qualified person (four eyes waived; every self-review is marked)',
+        summary:
+          'Allow self-review on a site with one qualified person (four eyes waived; every self-review is marked)',
         params: z.object({ name: z.string().min(1).max(200) }),
         body: z.object({ selfReviewAllowed: z.boolean() }).strict(),
         response: { 200: site, ...protectedErrors },
       },
     },
-    async (request) => app.store.sites.setSelfReview(actorOf(request.user!), request.params.name, request.body.selfReviewAllowed),
+    async (request) =>
+      app.store.sites.setSelfReview(
+        actorOf(request.user!),
+        request.params.name,
+        request.body.selfReviewAllowed,
+      ),
   );
 };

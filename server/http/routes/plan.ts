@@ -33,7 +33,8 @@ export const planRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS, scope: 'vessel' },
       schema: {
         tags: ['plan'],
-        summary: 'Plan a drain test: drain time, volume, peak outflow, expected u of Cd·a and Cd, the least test for a target',
+        summary:
+          'Plan a drain test: drain time, volume, peak outflow, expected u of Cd·a and Cd, the least test for a target',
         params: idParams,
         body: planBody,
         response: { 200: planAnswer, 422: problem, ...protectedErrors },

@@ -27,7 +27,12 @@ const exportJob = z
     state: z.enum(['running', 'done', 'failed']),
     done: z.number().int().meta({ description: 'reports made so far' }),
     total: z.number().int().meta({ description: 'reports in the export' }),
-    selection: z.object({ site: z.string().optional(), vessel: z.string().optional(), from: z.string().optional(), to: z.string().optional() }),
+    selection: z.object({
+      site: z.string().optional(),
+      vessel: z.string().optional(),
+      from: z.string().optional(),
+      to: z.string().optional(),
+    }),
     createdAt: z.string(),
     finishedAt: z.string().nullable(),
     bytes: z.number().int().nullable(),
@@ -36,25 +41,55 @@ const exportJob = z
     archiveUrl: z.string().nullable().meta({ description: 'where the zip is, once state is done' }),
   })
   .meta({ id: 'ExportJob' });
-const withUrls = <T extends { id: string; state: string }>(j: T) => ({ ...j, statusUrl: `/api/exports/${j.id}`, archiveUrl: j.state === 'done' ? `/api/exports/${j.id}/archive.zip` : null });
+const withUrls = <T extends { id: string; state: string }>(j: T) => ({
+  ...j,
+  statusUrl: `/api/exports/${j.id}`,
+  archiveUrl: j.state === 'done' ? `/api/exports/${j.id}/archive.zip` : null,
+});
 
 export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/api/fits/:id/report.pdf',
-    { config: { roles: READERS }, schema: { tags: ['reports'], summary: "The fit's report as PDF (deterministic bytes)", params: idParams, response: { 200: binary, 503: problem, ...protectedErrors } } },
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['reports'],
+        summary: "The fit's report as PDF (deterministic bytes)",
+        params: idParams,
+        response: { 200: binary, 503: problem, ...protectedErrors },
+      },
+    },
     async (request, reply) => {
       const report = fitReport(app.store, request.params.id, currentSoftware());
       const pdf = await app.tasks('fit-report-pdf', report);
-      return reply.type('application/pdf').header('content-disposition', `attachment; filename="fit-${request.params.id}-${report.reportId}.pdf"`).header('x-report-id', report.reportId).send(bytes(pdf));
+      return reply
+        .type('application/pdf')
+        .header(
+          'content-disposition',
+          `attachment; filename="fit-${request.params.id}-${report.reportId}.pdf"`,
+        )
+        .header('x-report-id', report.reportId)
+        .send(bytes(pdf));
     },
   );
 
   app.get(
     '/api/fits/:id/report.json',
-    { config: { roles: READERS }, schema: { tags: ['reports'], summary: "The fit's report as canonical JSON", params: idParams, response: { 200: binary, ...protectedErrors } } },
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['reports'],
+        summary: "The fit's report as canonical JSON",
+        params: idParams,
+        response: { 200: binary, ...protectedErrors },
+      },
+    },
     async (request, reply) => {
       const report = fitReport(app.store, request.params.id, currentSoftware());
-      return reply.type('application/json').header('x-report-id', report.reportId).send(reportJson(report as unknown as Record<string, unknown>));
+      return reply
+        .type('application/json')
+        .header('x-report-id', report.reportId)
+        .send(reportJson(report as unknown as Record<string, unknown>));
     },
   );
 
@@ -62,12 +97,30 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/outlets/:id/report.pdf',
     {
       config: { roles: READERS },
-      schema: { tags: ['reports'], summary: "An outlet's approved fits and trend as PDF", params: idParams, querystring: z.object({ asOf: tagText().optional() }), response: { 200: binary, 422: problem, 503: problem, ...protectedErrors } },
+      schema: {
+        tags: ['reports'],
+        summary: "An outlet's approved fits and trend as PDF",
+        params: idParams,
+        querystring: z.object({ asOf: tagText().optional() }),
+        response: { 200: binary, 422: problem, 503: problem, ...protectedErrors },
+      },
     },
     async (request, reply) => {
-      const report = outletReport(app.store, request.params.id, currentSoftware(), request.query.asOf);
+      const report = outletReport(
+        app.store,
+        request.params.id,
+        currentSoftware(),
+        request.query.asOf,
+      );
       const pdf = await app.tasks('outlet-report-pdf', report);
-      return reply.type('application/pdf').header('content-disposition', `attachment; filename="outlet-${request.params.id}-${report.reportId}.pdf"`).header('x-report-id', report.reportId).send(bytes(pdf));
+      return reply
+        .type('application/pdf')
+        .header(
+          'content-disposition',
+          `attachment; filename="outlet-${request.params.id}-${report.reportId}.pdf"`,
+        )
+        .header('x-report-id', report.reportId)
+        .send(bytes(pdf));
     },
   );
 
@@ -77,16 +130,28 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: ENGINEERS_AND_AUDITORS, scope: 'listed' },
       schema: {
         tags: ['reports'],
-        summary: 'Start an export of the approved fits of a site, vessel or period (zip of PDF reports, CSV summary, audit excerpt, SHA-256 manifest); 202 with the job',
-        description: 'Poll GET statusUrl for progress (done of total reports); once state is "done", GET archiveUrl. A selection that matches no approved fit is refused at once (422).',
-        body: z.object({ site: nameText().optional(), vessel: nameText().optional(), from: tagText().optional(), to: tagText().optional() }),
+        summary:
+          'Start an export of the approved fits of a site, vessel or period (zip of PDF reports, CSV summary, audit excerpt, SHA-256 manifest); 202 with the job',
+        description:
+          'Poll GET statusUrl for progress (done of total reports); once state is "done", GET archiveUrl. A selection that matches no approved fit is refused at once (422).',
+        body: z.object({
+          site: nameText().optional(),
+          vessel: nameText().optional(),
+          from: tagText().optional(),
+          to: tagText().optional(),
+        }),
         response: { 202: exportJob, 422: problem, 503: problem, ...protectedErrors },
       },
     },
     async (request, reply) => {
       const sites = sitesOf(request);
       if (sites !== null) {
-        if (request.body.site === undefined) throw new HttpProblem(403, 'site-forbidden', `a person limited to sites exports one site at a time: give site (${sites.join(', ')})`);
+        if (request.body.site === undefined)
+          throw new HttpProblem(
+            403,
+            'site-forbidden',
+            `a person limited to sites exports one site at a time: give site (${sites.join(', ')})`,
+          );
         assertSite(request, request.body.site);
       }
       const job = app.exports.start(request.user!.id, request.body);
@@ -96,10 +161,27 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
 
   app.get(
     '/api/exports/:id',
-    { config: { roles: ENGINEERS_AND_AUDITORS, scope: 'listed' }, schema: { tags: ['reports'], summary: 'An export job: state and progress', params: jobParams, response: { 200: exportJob, ...protectedErrors } } },
+    {
+      config: { roles: ENGINEERS_AND_AUDITORS, scope: 'listed' },
+      schema: {
+        tags: ['reports'],
+        summary: 'An export job: state and progress',
+        params: jobParams,
+        response: { 200: exportJob, ...protectedErrors },
+      },
+    },
     async (request) => {
-      const job = app.exports.get(request.params.id, request.user!.id, request.user!.role === 'admin');
-      if (!job) throw new HttpProblem(404, 'not-found', `no export ${request.params.id} (exports are kept an hour after they finish, and not across restarts)`);
+      const job = app.exports.get(
+        request.params.id,
+        request.user!.id,
+        request.user!.role === 'admin',
+      );
+      if (!job)
+        throw new HttpProblem(
+          404,
+          'not-found',
+          `no export ${request.params.id} (exports are kept an hour after they finish, and not across restarts)`,
+        );
       return withUrls(job);
     },
   );
@@ -108,15 +190,35 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/exports/:id/archive.zip',
     {
       config: { roles: ENGINEERS_AND_AUDITORS, scope: 'listed' },
-      schema: { tags: ['reports'], summary: "A finished export's zip", params: jobParams, response: { 200: binary, 409: problem, ...protectedErrors } },
+      schema: {
+        tags: ['reports'],
+        summary: "A finished export's zip",
+        params: jobParams,
+        response: { 200: binary, 409: problem, ...protectedErrors },
+      },
     },
     async (request, reply) => {
       const admin = request.user!.role === 'admin';
       const job = app.exports.get(request.params.id, request.user!.id, admin);
-      if (!job) throw new HttpProblem(404, 'not-found', `no export ${request.params.id} (exports are kept an hour after they finish, and not across restarts)`);
+      if (!job)
+        throw new HttpProblem(
+          404,
+          'not-found',
+          `no export ${request.params.id} (exports are kept an hour after they finish, and not across restarts)`,
+        );
       const zip = app.exports.zip(request.params.id, request.user!.id, admin);
-      if (job.state !== 'done' || !zip) throw new HttpProblem(409, 'not-ready', job.state === 'failed' ? `the export failed: ${job.error}` : `the export is not ready: ${job.done} of ${job.total} reports made`);
-      return reply.type('application/zip').header('content-disposition', 'attachment; filename="efflux-export.zip"').send(bytes(zip));
+      if (job.state !== 'done' || !zip)
+        throw new HttpProblem(
+          409,
+          'not-ready',
+          job.state === 'failed'
+            ? `the export failed: ${job.error}`
+            : `the export is not ready: ${job.done} of ${job.total} reports made`,
+        );
+      return reply
+        .type('application/zip')
+        .header('content-disposition', 'attachment; filename="efflux-export.zip"')
+        .send(bytes(zip));
     },
   );
 };

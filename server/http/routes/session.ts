@@ -11,7 +11,12 @@ export interface SessionOptions {
   signInPerMinute: number;
 }
 
-const whoami = z.object({ id: z.number().int(), name: z.string(), role: z.string(), sites: z.array(z.string()).nullable() });
+const whoami = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  role: z.string(),
+  sites: z.array(z.string()).nullable(),
+});
 
 /** Sign-in for the browser: a token in, an httpOnly SameSite=Strict cookie out. */
 export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, opts) => {
@@ -23,7 +28,11 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
         tags: ['session'],
         summary: 'Sign in with an API token; sets the session cookie',
         body: z.object({ token: z.string().min(1).max(200) }),
-        response: { 201: z.object({ user: whoami, expiresAt: z.string() }), 401: problem, 429: problem },
+        response: {
+          201: z.object({ user: whoami, expiresAt: z.string() }),
+          401: problem,
+          429: problem,
+        },
       },
     },
     async (request, reply) => {
@@ -38,19 +47,43 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
         expires: new Date(expiresAt),
       });
       reply.code(201);
-      return { user: { id: user.id, name: user.name, role: user.role, sites: user.sites }, expiresAt };
+      return {
+        user: { id: user.id, name: user.name, role: user.role, sites: user.sites },
+        expiresAt,
+      };
     },
   );
 
   app.get(
     '/api/session',
-    { config: { roles: READERS, scope: 'none' }, schema: { tags: ['session'], summary: 'Who is signed in', response: { 200: z.object({ user: whoami }) } } },
-    async (request) => ({ user: { id: request.user!.id, name: request.user!.name, role: request.user!.role, sites: request.user!.sites } }),
+    {
+      config: { roles: READERS, scope: 'none' },
+      schema: {
+        tags: ['session'],
+        summary: 'Who is signed in',
+        response: { 200: z.object({ user: whoami }) },
+      },
+    },
+    async (request) => ({
+      user: {
+        id: request.user!.id,
+        name: request.user!.name,
+        role: request.user!.role,
+        sites: request.user!.sites,
+      },
+    }),
   );
 
   app.delete(
     '/api/session',
-    { config: { roles: READERS, scope: 'none' }, schema: { tags: ['session'], summary: 'Sign out (ends the cookie session)', response: { 204: z.null() } } },
+    {
+      config: { roles: READERS, scope: 'none' },
+      schema: {
+        tags: ['session'],
+        summary: 'Sign out (ends the cookie session)',
+        response: { 204: z.null() },
+      },
+    },
     async (request, reply) => {
       const secret = request.cookies[SESSION_COOKIE];
       if (secret) app.store.users.closeSession(request.user!, secret);

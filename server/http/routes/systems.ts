@@ -30,7 +30,10 @@ const MAX_LOGS = 12;
 const bool = z.enum(['true', 'false']).transform((s) => s === 'true');
 export const fitFields = z
   .object({
-    window: tagText().regex(/^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/, 'START..END in seconds from the logs’ common start'),
+    window: tagText().regex(
+      /^\s*[\d.]+\s*\.\.\s*[\d.]*\s*$/,
+      'START..END in seconds from the logs’ common start',
+    ),
     fitDatum: bool,
     fitInflow: bool,
     unit: tagText().min(1),
@@ -42,27 +45,62 @@ export const fitFields = z
   .partial()
   .strict();
 
-const estimate = z.object({ value: z.number(), standardUncertainty: z.number().nullable(), ci95: z.tuple([z.number(), z.number()]).nullable() });
+const estimate = z.object({
+  value: z.number(),
+  standardUncertainty: z.number().nullable(),
+  ci95: z.tuple([z.number(), z.number()]).nullable(),
+});
 
 const fitAnswer = jointFitResult
   .extend({
-    drawing: z.array(z.object({ id: z.string(), fileName: z.string(), timeS: z.array(z.number()), levelM: z.array(z.number()), fittedM: z.array(z.number()) })),
+    drawing: z.array(
+      z.object({
+        id: z.string(),
+        fileName: z.string(),
+        timeS: z.array(z.number()),
+        levelM: z.array(z.number()),
+        fittedM: z.array(z.number()),
+      }),
+    ),
   })
-  .meta({ id: 'SystemFit', description: 'The output of `efflux fit-system --json` (the one fit-result shape), plus `drawing` (each log thinned for charts, with the fitted curve)' });
+  .meta({
+    id: 'SystemFit',
+    description:
+      'The output of `efflux fit-system --json` (the one fit-result shape), plus `drawing` (each log thinned for charts, with the fitted curve)',
+  });
 
 const inflowItem = z.object({
-  to: tagText().min(1).optional().meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
-  flow: z.union([tagText().min(1), z.number().min(0)]).meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
+  to: tagText()
+    .min(1)
+    .optional()
+    .meta({ description: 'vessel id; omitted: the one vessel nothing discharges into' }),
+  flow: z
+    .union([tagText().min(1), z.number().min(0)])
+    .meta({ description: 'e.g. "2.5L/s", "9 m3/h", or m³/s as a number' }),
 });
 const operatingBody = z.object({
-  system: z.record(z.string(), z.unknown()).meta({ description: 'a system file, or the answer of POST /api/systems/fit' }),
-  inflows: z.array(inflowItem).max(50).optional().meta({ description: 'omitted: the constant inflows of the system file' }),
+  system: z
+    .record(z.string(), z.unknown())
+    .meta({ description: 'a system file, or the answer of POST /api/systems/fit' }),
+  inflows: z
+    .array(inflowItem)
+    .max(50)
+    .optional()
+    .meta({ description: 'omitted: the constant inflows of the system file' }),
 });
 
 const steadyAnswer = z
   .object({
     inflowM3S: z.record(z.string(), z.number()),
-    vessels: z.record(z.string(), z.object({ levelM: estimate, headM: z.number(), outflowM3S: z.number(), heightM: z.number() })),
+    vessels: z.record(
+      z.string(),
+      z.object({
+        levelM: estimate,
+        headM: z.number(),
+        outflowM3S: z.number(),
+        heightM: z.number(),
+      }),
+    ),
     covariance: z.array(z.array(z.number())).nullable(),
     uncertainty: z.string(),
     warnings: z.array(z.string()),
@@ -70,7 +108,15 @@ const steadyAnswer = z
   .meta({ id: 'SystemSteadyState' });
 
 const linearAnswer = z
-  .looseObject({ ids: z.array(z.string()), a: z.array(estimate), b: z.array(estimate), timeConstantsS: z.array(estimate), modeTimeConstantsS: z.array(z.number()), text: z.string(), csv: z.string() })
+  .looseObject({
+    ids: z.array(z.string()),
+    a: z.array(estimate),
+    b: z.array(estimate),
+    timeConstantsS: z.array(estimate),
+    modeTimeConstantsS: z.array(z.number()),
+    text: z.string(),
+    csv: z.string(),
+  })
   .meta({ id: 'SystemLinearModel' });
 
 export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
@@ -90,7 +136,11 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
     async (request) => {
       const { system, logs, flows, fields } = await readSystemUpload(request);
       const transfer = [system.bytes, ...[...logs.values(), ...flows.values()].map((f) => f.bytes)];
-      return (await app.tasks('system-fit', { system, logs: [...logs], flows: [...flows], fields }, { transfer })) as z.infer<typeof fitAnswer>;
+      return (await app.tasks(
+        'system-fit',
+        { system, logs: [...logs], flows: [...flows], fields },
+        { transfer },
+      )) as z.infer<typeof fitAnswer>;
     },
   );
 
@@ -98,7 +148,12 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/systems/steady',
     {
       config: { roles: READERS, scope: 'none' },
-      schema: { tags: ['systems'], summary: 'Equilibrium levels at constant inflows, with intervals from a fit', body: operatingBody, response: { 200: steadyAnswer, 422: problem, ...protectedErrors } },
+      schema: {
+        tags: ['systems'],
+        summary: 'Equilibrium levels at constant inflows, with intervals from a fit',
+        body: operatingBody,
+        response: { 200: steadyAnswer, 422: problem, ...protectedErrors },
+      },
     },
     async (request) => {
       const { spec, model } = loadSystemModel(request.body.system, 'system');
@@ -108,9 +163,25 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       const n = ids.length;
       return {
         inflowM3S: Object.fromEntries(ids.map((id, i) => [id, q[i]])),
-        vessels: Object.fromEntries(ids.map((id, i) => [id, { levelM: s.levelsM[i], headM: s.headsM[i], outflowM3S: s.flowsM3S[i], heightM: model.network.vessels[i].shape.heightM }])),
-        covariance: s.covariance ? Array.from({ length: n }, (_, i) => Array.from(s.covariance!.subarray(i * n, (i + 1) * n))) : null,
-        uncertainty: s.covariance ? 'delta method with the exact sensitivities of the equilibrium' : 'none: Cd·a taken from the system file as exact',
+        vessels: Object.fromEntries(
+          ids.map((id, i) => [
+            id,
+            {
+              levelM: s.levelsM[i],
+              headM: s.headsM[i],
+              outflowM3S: s.flowsM3S[i],
+              heightM: model.network.vessels[i].shape.heightM,
+            },
+          ]),
+        ),
+        covariance: s.covariance
+          ? Array.from({ length: n }, (_, i) =>
+              Array.from(s.covariance!.subarray(i * n, (i + 1) * n)),
+            )
+          : null,
+        uncertainty: s.covariance
+          ? 'delta method with the exact sensitivities of the equilibrium'
+          : 'none: Cd·a taken from the system file as exact',
         warnings: s.warnings,
       };
     },
@@ -122,7 +193,8 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS, scope: 'none' },
       schema: {
         tags: ['systems'],
-        summary: 'State-space model dx/dt = A x + B u about the equilibrium, time constants, as JSON with a text block and CSV',
+        summary:
+          'State-space model dx/dt = A x + B u about the equilibrium, time constants, as JSON with a text block and CSV',
         body: operatingBody,
         response: { 200: linearAnswer, 422: problem, ...protectedErrors },
       },
@@ -140,20 +212,39 @@ interface FileIn {
   fileName: string;
 }
 
-async function readSystemUpload(request: FastifyRequest): Promise<{ system: FileIn; logs: Map<string, FileIn>; flows: Map<string, FileIn>; fields: z.infer<typeof fitFields> }> {
-  if (!request.isMultipart()) throw new HttpProblem(415, 'multipart-required', 'send multipart/form-data with a file field "system" and one "log:ID" per vessel');
+async function readSystemUpload(request: FastifyRequest): Promise<{
+  system: FileIn;
+  logs: Map<string, FileIn>;
+  flows: Map<string, FileIn>;
+  fields: z.infer<typeof fitFields>;
+}> {
+  if (!request.isMultipart())
+    throw new HttpProblem(
+      415,
+      'multipart-required',
+      'send multipart/form-data with a file field "system" and one "log:ID" per vessel',
+    );
   let system: FileIn | null = null;
   const logs = new Map<string, FileIn>();
   const flows = new Map<string, FileIn>();
   const text: Record<string, string> = {};
-  const refuse = (path: string, message: string) => new HttpProblem(400, 'validation', `${path}: ${message}`, { title: 'Invalid request', errors: [{ path, message }] });
+  const refuse = (path: string, message: string) =>
+    new HttpProblem(400, 'validation', `${path}: ${message}`, {
+      title: 'Invalid request',
+      errors: [{ path, message }],
+    });
   for await (const part of request.parts({ limits: { files: 2 * MAX_LOGS + 1 } })) {
     if (part.type !== 'file') {
       text[part.fieldname] = String(part.value);
       continue;
     }
     const bytes = await part.toBuffer(); // 413 past the upload limit
-    const fileName = (part.filename ?? '').split(/[\\/]/).pop()!.replace(/[\u0000-\u001f\u007f"]/g, '').slice(0, 255) || `${part.fieldname}.csv`;
+    const fileName =
+      (part.filename ?? '')
+        .split(/[\\/]/)
+        .pop()!
+        .replace(/[\u0000-\u001f\u007f"]/g, '')
+        .slice(0, 255) || `${part.fieldname}.csv`;
     if (bytes.byteLength === 0) throw refuse(part.fieldname, 'the file is empty');
     if (part.fieldname === 'system') {
       if (system) throw refuse('system', 'sent twice');
@@ -166,7 +257,11 @@ async function readSystemUpload(request: FastifyRequest): Promise<{ system: File
       const id = part.fieldname.slice(7);
       if (flows.has(id)) throw refuse(part.fieldname, 'sent twice');
       flows.set(id, { bytes, fileName });
-    } else throw refuse(part.fieldname, 'unexpected file (send "system", "log:ID" and, for a logged inflow, "inflow:ID")');
+    } else
+      throw refuse(
+        part.fieldname,
+        'unexpected file (send "system", "log:ID" and, for a logged inflow, "inflow:ID")',
+      );
   }
   if (!system) throw refuse('system', 'required: the system file');
   const parsed = fitFields.safeParse(text);
@@ -175,12 +270,20 @@ async function readSystemUpload(request: FastifyRequest): Promise<{ system: File
 }
 
 /** Inflows as [{to?, flow}]; a flow without `to` goes to the single vessel nothing discharges into. */
-function inflowVector(spec: SystemSpec, items: z.infer<typeof inflowItem>[] | undefined): Float64Array {
+function inflowVector(
+  spec: SystemSpec,
+  items: z.infer<typeof inflowItem>[] | undefined,
+): Float64Array {
   const q = new Float64Array(spec.vessels.length);
   const ids = new Map(spec.vessels.map((v, i) => [v.id, i]));
   if (!items || items.length === 0) {
-    const constant = spec.inflows.filter((f): f is { to: string; constantM3S: number } => 'constantM3S' in f);
-    if (!constant.length) throw new InputError('no inflow given: add inflows, e.g. [{"flow": "2.5L/s"}]', { field: 'inflows' });
+    const constant = spec.inflows.filter(
+      (f): f is { to: string; constantM3S: number } => 'constantM3S' in f,
+    );
+    if (!constant.length)
+      throw new InputError('no inflow given: add inflows, e.g. [{"flow": "2.5L/s"}]', {
+        field: 'inflows',
+      });
     for (const f of constant) q[ids.get(f.to)!] += f.constantM3S;
     return q;
   }
@@ -188,11 +291,21 @@ function inflowVector(spec: SystemSpec, items: z.infer<typeof inflowItem>[] | un
     let vessel: number;
     if (item.to !== undefined) {
       const i = ids.get(item.to);
-      if (i === undefined) throw new InputError(`no vessel has id "${item.to}" (the system has ${[...ids.keys()].join(', ')})`, { field: `inflows.${k}.to` });
+      if (i === undefined)
+        throw new InputError(
+          `no vessel has id "${item.to}" (the system has ${[...ids.keys()].join(', ')})`,
+          { field: `inflows.${k}.to` },
+        );
       vessel = i;
     } else {
-      const tops = spec.vessels.map((_, i) => i).filter((i) => !spec.vessels.some((v) => v.dischargesTo === spec.vessels[i].id));
-      if (tops.length !== 1) throw new InputError(`the system has several top vessels (${tops.map((i) => spec.vessels[i].id).join(', ')}): say which with "to"`, { field: `inflows.${k}.to` });
+      const tops = spec.vessels
+        .map((_, i) => i)
+        .filter((i) => !spec.vessels.some((v) => v.dischargesTo === spec.vessels[i].id));
+      if (tops.length !== 1)
+        throw new InputError(
+          `the system has several top vessels (${tops.map((i) => spec.vessels[i].id).join(', ')}): say which with "to"`,
+          { field: `inflows.${k}.to` },
+        );
       vessel = tops[0];
     }
     let flow: number;
@@ -201,7 +314,8 @@ function inflowVector(spec: SystemSpec, items: z.infer<typeof inflowItem>[] | un
       try {
         flow = parseFlow(item.flow);
       } catch (e) {
-        if (e instanceof InputError) throw new InputError(e.message, { field: `inflows.${k}.flow` });
+        if (e instanceof InputError)
+          throw new InputError(e.message, { field: `inflows.${k}.flow` });
         throw e;
       }
     }

@@ -20,8 +20,12 @@ function contentDisposition(name: string): string {
  * (analyzeDrainTest in the worker), store-fit (the fit's commit and read-back), serialise (the
  * answer's JSON). Numbers for people measuring the service; nothing depends on them.
  */
-const uploadTimings = new WeakMap<object, { receiveMs: number; timing: UploadTiming; doneAt: number }>();
-const dur = (name: string, ms: number | undefined) => (ms === undefined ? [] : [`${name};dur=${ms.toFixed(1)}`]);
+const uploadTimings = new WeakMap<
+  object,
+  { receiveMs: number; timing: UploadTiming; doneAt: number }
+>();
+const dur = (name: string, ms: number | undefined) =>
+  ms === undefined ? [] : [`${name};dur=${ms.toFixed(1)}`];
 
 export const testRoutes: FastifyPluginAsyncZod = async (app) => {
   app.post(
@@ -30,16 +34,25 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: TECHNICIANS_UP },
       schema: {
         tags: ['tests'],
-        summary: 'Upload a drain test (multipart: file "log", optional file "baro", settings and metadata fields); fitted at once',
+        summary:
+          'Upload a drain test (multipart: file "log", optional file "baro", settings and metadata fields); fitted at once',
         description:
           'Text fields: outletId, operator, loggerId, testedAt, notes, and the AnalysisSettings (timeColumn, levelColumn, unit, quantity, ' +
           'dateOrder, tz, delimiter, decimal, levelTag, baroTag, sheet, window, fitInflow, fitDatum, fitExponent; booleans as "true"/"false"). ' +
           'The raw bytes are stored before the analysis runs. A refused file is answered 422 and not kept. testedAt (ISO 8601 with offset) ' +
-          'is the date of the test; without it, the first reading of the fitted window on the log\'s own clock (a log with elapsed time only needs testedAt). ' +
+          "is the date of the test; without it, the first reading of the fitted window on the log's own clock (a log with elapsed time only needs testedAt). " +
           'The same bytes as an earlier test of the vessel: 409 naming it, unless allowDuplicate=true. Header Idempotency-Key: a retry with the same key answers the first result (Idempotency-Replayed: true).',
         consumes: ['multipart/form-data'],
         params: idParams,
-        response: { 201: z.object({ test: drainTest, fit }), 409: problem, 413: problem, 415: problem, 422: problem, 503: problem, ...protectedErrors },
+        response: {
+          201: z.object({ test: drainTest, fit }),
+          409: problem,
+          413: problem,
+          415: problem,
+          422: problem,
+          503: problem,
+          ...protectedErrors,
+        },
       },
       onSend: async (request, reply, payload) => {
         const t = uploadTimings.get(request);
@@ -68,9 +81,20 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       const timing: UploadTiming = {};
       const key = request.headers['idempotency-key'];
       if (key !== undefined && (typeof key !== 'string' || key.length === 0 || key.length > 200)) {
-        throw new HttpProblem(400, 'validation', 'Idempotency-Key: one value of 1 to 200 characters', { errors: [{ path: 'headers.idempotency-key', message: '1 to 200 characters' }] });
+        throw new HttpProblem(
+          400,
+          'validation',
+          'Idempotency-Key: one value of 1 to 200 characters',
+          { errors: [{ path: 'headers.idempotency-key', message: '1 to 200 characters' }] },
+        );
       }
-      const out = await uploadDrainTest(app.store, app.analyze, actorOf(request.user!), { vesselId: vessel.id, ...up, idempotencyKey: key ?? null, nowMs: app.clockMs() }, timing);
+      const out = await uploadDrainTest(
+        app.store,
+        app.analyze,
+        actorOf(request.user!),
+        { vesselId: vessel.id, ...up, idempotencyKey: key ?? null, nowMs: app.clockMs() },
+        timing,
+      );
       uploadTimings.set(request, { receiveMs, timing, doneAt: performance.now() });
       if (out.replayed) reply.header('idempotency-replayed', 'true');
       reply.code(201);
@@ -82,24 +106,50 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/vessels/:id/tests',
     {
       config: { roles: READERS },
-      schema: { tags: ['tests'], summary: "A vessel's drain tests, newest first", params: idParams, querystring: paging, response: { 200: pageOf(drainTest), ...protectedErrors } },
+      schema: {
+        tags: ['tests'],
+        summary: "A vessel's drain tests, newest first",
+        params: idParams,
+        querystring: paging,
+        response: { 200: pageOf(drainTest), ...protectedErrors },
+      },
     },
     async (request, reply) => {
       app.store.vessels.assertExists(request.params.id);
       // spliced from the stored JSON (same shape as the schema; checked by the store's tests), kept as bytes
-      return sendReadyText(request, reply, app.store.tests.pageText(request.params.id, request.query.limit, request.query.offset));
+      return sendReadyText(
+        request,
+        reply,
+        app.store.tests.pageText(request.params.id, request.query.limit, request.query.offset),
+      );
     },
   );
 
   app.get(
     '/api/tests/:id',
-    { config: { roles: READERS }, schema: { tags: ['tests'], summary: 'One drain test', params: idParams, response: { 200: drainTest, ...protectedErrors } } },
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['tests'],
+        summary: 'One drain test',
+        params: idParams,
+        response: { 200: drainTest, ...protectedErrors },
+      },
+    },
     async (request) => app.store.tests.get(request.params.id),
   );
 
   app.get(
     '/api/tests/:id/fits',
-    { config: { roles: READERS }, schema: { tags: ['tests'], summary: "A test's fits, oldest first (refits supersede)", params: idParams, response: { 200: z.object({ items: z.array(fit) }), ...protectedErrors } } },
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['tests'],
+        summary: "A test's fits, oldest first (refits supersede)",
+        params: idParams,
+        response: { 200: z.object({ items: z.array(fit) }), ...protectedErrors },
+      },
+    },
     async (request) => {
       app.store.tests.get(request.params.id);
       return { items: app.store.fits.listByTest(request.params.id) };
@@ -120,7 +170,8 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     async (request, reply) => {
       const t = app.store.tests.get(request.params.id);
-      const ref = request.query.file === 'baro' ? t.baro : { sha256: t.sha256, fileName: t.fileName };
+      const ref =
+        request.query.file === 'baro' ? t.baro : { sha256: t.sha256, fileName: t.fileName };
       if (!ref) throw new HttpProblem(404, 'not-found', `test ${t.id} has no barometric file`);
       const bytes = app.store.tests.rawBytes(ref.sha256);
       reply

@@ -6,7 +6,13 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { nameText } from '../../core/limits.js';
 import { InputError } from '../../core/errors.js';
-import { fleetStatus, historyCsv, outletTrendView, STATUS_WORDS, thresholdOf } from '../../jobs/trend.js';
+import {
+  fleetStatus,
+  historyCsv,
+  outletTrendView,
+  STATUS_WORDS,
+  thresholdOf,
+} from '../../jobs/trend.js';
 import { ConflictError } from '../../store/errors.js';
 import { actorOf } from '../../store/users.js';
 import { outletsOf } from '../../store/vessels.js';
@@ -17,7 +23,8 @@ import { checkVesselFile } from '../vessel-file.js';
 import { asOfQuery, fleetView, statusChange, threshold, trendView } from './trend-schemas.js';
 
 export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
-  const nowOf = (asOf: string | undefined) => (asOf === undefined ? app.clockMs() : Date.parse(asOf));
+  const nowOf = (asOf: string | undefined) =>
+    asOf === undefined ? app.clockMs() : Date.parse(asOf);
 
   app.get(
     '/api/outlets/:id/trend',
@@ -25,7 +32,8 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS },
       schema: {
         tags: ['trend'],
-        summary: "An outlet's approved fits over time: epochs, weighted lines with 95 % bands, threshold, forecast, step check, status",
+        summary:
+          "An outlet's approved fits over time: epochs, weighted lines with 95 % bands, threshold, forecast, step check, status",
         params: idParams,
         querystring: asOfQuery,
         response: { 200: trendView, 422: problem, ...protectedErrors },
@@ -40,16 +48,25 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS },
       schema: {
         tags: ['trend'],
-        summary: "An outlet's approved fits with standard uncertainties and epoch, as CSV for a spreadsheet",
+        summary:
+          "An outlet's approved fits with standard uncertainties and epoch, as CSV for a spreadsheet",
         params: idParams,
         querystring: asOfQuery,
         produces: ['text/csv'],
-        response: { 200: z.string().meta({ description: 'text/csv; header row, then one row per approved fit' }), ...protectedErrors },
+        response: {
+          200: z
+            .string()
+            .meta({ description: 'text/csv; header row, then one row per approved fit' }),
+          ...protectedErrors,
+        },
       },
     },
     async (request, reply) => {
       const view = outletTrendView(app.store, request.params.id, nowOf(request.query.asOf));
-      const name = `${view.outlet.vesselName}-${view.outlet.key}-history.csv`.replace(/[^\w.-]+/g, '_');
+      const name = `${view.outlet.vesselName}-${view.outlet.key}-history.csv`.replace(
+        /[^\w.-]+/g,
+        '_',
+      );
       return reply
         .type('text/csv; charset=utf-8')
         .header('content-disposition', `attachment; filename="${name}"`)
@@ -62,7 +79,12 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
     '/api/outlets/:id/status-changes',
     {
       config: { roles: READERS },
-      schema: { tags: ['trend'], summary: "Changes of an outlet's status caused by approvals, oldest first", params: idParams, response: { 200: z.array(statusChange), ...protectedErrors } },
+      schema: {
+        tags: ['trend'],
+        summary: "Changes of an outlet's status caused by approvals, oldest first",
+        params: idParams,
+        response: { 200: z.array(statusChange), ...protectedErrors },
+      },
     },
     async (request) => {
       app.store.vessels.outlet(request.params.id);
@@ -76,20 +98,39 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: ENGINEERS_UP },
       schema: {
         tags: ['trend'],
-        summary: "Set an outlet's action threshold (fraction of the baseline Cd·a; null: the default 0.9). Stored in the vessel file, so it is a vessel update",
+        summary:
+          "Set an outlet's action threshold (fraction of the baseline Cd·a; null: the default 0.9). Stored in the vessel file, so it is a vessel update",
         params: idParams,
-        body: z.object({ actionThreshold: z.number().gt(0).lt(2).refine((x) => x !== 1, 'a threshold of exactly the baseline is no threshold').nullable() }).strict(),
-        response: { 200: z.object({ outlet, threshold }), 409: problem, 422: problem, ...protectedErrors },
+        body: z
+          .object({
+            actionThreshold: z
+              .number()
+              .gt(0)
+              .lt(2)
+              .refine((x) => x !== 1, 'a threshold of exactly the baseline is no threshold')
+              .nullable(),
+          })
+          .strict(),
+        response: {
+          200: z.object({ outlet, threshold }),
+          409: problem,
+          422: problem,
+          ...protectedErrors,
+        },
       },
     },
     async (request) => {
       const o = app.store.vessels.outlet(request.params.id);
-      if (o.retiredAt !== null) throw new ConflictError(`outlet ${o.id} is retired; it is no longer in the vessel file`);
+      if (o.retiredAt !== null)
+        throw new ConflictError(`outlet ${o.id} is retired; it is no longer in the vessel file`);
       const v = app.store.vessels.get(o.vesselId);
       const spec = structuredClone(v.spec);
-      const list = Array.isArray(spec.outlets) ? (spec.outlets as Record<string, unknown>[]) : [spec.outlet as Record<string, unknown>];
+      const list = Array.isArray(spec.outlets)
+        ? (spec.outlets as Record<string, unknown>[])
+        : [spec.outlet as Record<string, unknown>];
       const at = outletsOf(spec).findIndex((x) => x.key === o.key);
-      if (at < 0) throw new InputError(`outlet "${o.key}" is not in vessel ${v.id}'s file`, { field: 'id' });
+      if (at < 0)
+        throw new InputError(`outlet "${o.key}" is not in vessel ${v.id}'s file`, { field: 'id' });
       if (request.body.actionThreshold === null) delete list[at].actionThreshold;
       else list[at].actionThreshold = request.body.actionThreshold;
       const updated = app.store.vessels.update(actorOf(request.user!), v.id, checkVesselFile(spec));
@@ -104,24 +145,48 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS, scope: 'listed' },
       schema: {
         tags: ['trend'],
-        summary: 'Every outlet (of the sites the person may see) with its status and days to threshold, soonest first; filter by site and status (comma-separated)',
-        querystring: paging.extend({
-          site: nameText().min(1).optional(),
-          status: nameText().min(1).optional(),
-          retired: z.enum(['true', 'false']).optional(),
-        }).merge(asOfQuery),
+        summary:
+          'Every outlet (of the sites the person may see) with its status and days to threshold, soonest first; filter by site and status (comma-separated)',
+        querystring: paging
+          .extend({
+            site: nameText().min(1).optional(),
+            status: nameText().min(1).optional(),
+            retired: z.enum(['true', 'false']).optional(),
+          })
+          .merge(asOfQuery),
         response: { 200: fleetView, ...protectedErrors },
       },
     },
     async (request) => {
       const q = request.query;
-      const words = q.status?.split(',').map((s) => s.trim()).filter(Boolean);
+      const words = q.status
+        ?.split(',')
+        .map((s) => s.trim())
+        .filter(Boolean);
       for (const w of words ?? []) {
-        if (!(STATUS_WORDS as readonly string[]).includes(w)) throw new InputError(`unknown status "${w}"; one of: ${STATUS_WORDS.join(', ')}`, { field: 'status' });
+        if (!(STATUS_WORDS as readonly string[]).includes(w))
+          throw new InputError(`unknown status "${w}"; one of: ${STATUS_WORDS.join(', ')}`, {
+            field: 'status',
+          });
       }
       if (q.site !== undefined) assertSite(request, q.site);
-      const view = fleetStatus(app.store, { site: q.site, sites: sitesOf(request), status: words as never, includeRetired: q.retired === 'true' }, nowOf(q.asOf));
-      return { ...view, total: view.items.length, limit: q.limit, offset: q.offset, items: view.items.slice(q.offset, q.offset + q.limit) };
+      const view = fleetStatus(
+        app.store,
+        {
+          site: q.site,
+          sites: sitesOf(request),
+          status: words as never,
+          includeRetired: q.retired === 'true',
+        },
+        nowOf(q.asOf),
+      );
+      return {
+        ...view,
+        total: view.items.length,
+        limit: q.limit,
+        offset: q.offset,
+        items: view.items.slice(q.offset, q.offset + q.limit),
+      };
     },
   );
 };

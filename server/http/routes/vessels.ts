@@ -7,25 +7,41 @@ import { assertSite, sitesOf } from '../site-scope.js';
 import { checkVesselFile } from '../vessel-file.js';
 
 /** The site a vessel file names ("main" when it names none, as the store reads it). */
-const siteOfSpec = (spec: Record<string, unknown>) => (typeof spec.site === 'string' && spec.site.length > 0 ? spec.site : 'main');
+const siteOfSpec = (spec: Record<string, unknown>) =>
+  typeof spec.site === 'string' && spec.site.length > 0 ? spec.site : 'main';
 
 export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
-  const body = z.record(z.string(), z.unknown()).meta({ description: 'A vessel in the vessel-file format' });
+  const body = z
+    .record(z.string(), z.unknown())
+    .meta({ description: 'A vessel in the vessel-file format' });
 
   app.get(
     '/api/vessels',
     {
       config: { roles: READERS, scope: 'listed' },
-      schema: { tags: ['vessels'], summary: 'Vessels with their outlets (of the sites the person may see)', querystring: paging, response: { 200: pageOf(vessel), ...protectedErrors } },
+      schema: {
+        tags: ['vessels'],
+        summary: 'Vessels with their outlets (of the sites the person may see)',
+        querystring: paging,
+        response: { 200: pageOf(vessel), ...protectedErrors },
+      },
     },
-    async (request) => ({ ...app.store.vessels.list(request.query.limit, request.query.offset, sitesOf(request)), ...request.query }),
+    async (request) => ({
+      ...app.store.vessels.list(request.query.limit, request.query.offset, sitesOf(request)),
+      ...request.query,
+    }),
   );
 
   app.post(
     '/api/vessels',
     {
       config: { roles: ENGINEERS_UP, scope: 'listed' },
-      schema: { tags: ['vessels'], summary: 'Create a vessel from a vessel file', body, response: { 201: vessel, 409: problem, 422: problem, ...protectedErrors } },
+      schema: {
+        tags: ['vessels'],
+        summary: 'Create a vessel from a vessel file',
+        body,
+        response: { 201: vessel, 409: problem, 422: problem, ...protectedErrors },
+      },
     },
     async (request, reply) => {
       const spec = checkVesselFile(request.body);
@@ -37,7 +53,15 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
 
   app.get(
     '/api/vessels/:id',
-    { config: { roles: READERS }, schema: { tags: ['vessels'], summary: 'One vessel', params: idParams, response: { 200: vessel, ...protectedErrors } } },
+    {
+      config: { roles: READERS },
+      schema: {
+        tags: ['vessels'],
+        summary: 'One vessel',
+        params: idParams,
+        response: { 200: vessel, ...protectedErrors },
+      },
+    },
     async (request) => app.store.vessels.get(request.params.id),
   );
 

@@ -18,7 +18,10 @@ import { READERS, TECHNICIANS_UP } from '../access.js';
 import { analysisSettings, idParams, problem, protectedErrors } from '../schemas.js';
 import { readUpload } from '../uploads.js';
 
-const json = (reply: FastifyReply, u: Uint8Array) => reply.type('application/json; charset=utf-8').send(Buffer.from(u.buffer, u.byteOffset, u.byteLength));
+const json = (reply: FastifyReply, u: Uint8Array) =>
+  reply
+    .type('application/json; charset=utf-8')
+    .send(Buffer.from(u.buffer, u.byteOffset, u.byteLength));
 
 const series = z.object({
   /** ISO 8601 instant of timeS = 0, or null for elapsed-time logs. */
@@ -41,7 +44,8 @@ const inspection = z
 /** The vessel file for the analysis; with several outlets and none named, the first active one (the window hardly depends on it). */
 function vesselFile(v: Vessel, outletId: number | undefined): Record<string, unknown> {
   const active = v.outlets.filter((o) => o.retiredAt === null);
-  const outlet = outletId === undefined && active.length > 1 ? active[0] : chooseOutlet(v, outletId);
+  const outlet =
+    outletId === undefined && active.length > 1 ? active[0] : chooseOutlet(v, outletId);
   return vesselForAnalysis(v, outlet);
 }
 
@@ -52,8 +56,10 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: TECHNICIANS_UP },
       schema: {
         tags: ['tests'],
-        summary: 'Read a logger file without storing it: first lines, detected columns, units, time format, the window, the series',
-        description: 'The same multipart body as an upload (file "log", optional "baro", outletId and the AnalysisSettings fields). Nothing is kept.',
+        summary:
+          'Read a logger file without storing it: first lines, detected columns, units, time format, the window, the series',
+        description:
+          'The same multipart body as an upload (file "log", optional "baro", outletId and the AnalysisSettings fields). Nothing is kept.',
         consumes: ['multipart/form-data'],
         params: idParams,
         response: { 200: inspection, 413: problem, 415: problem, 422: problem, ...protectedErrors },
@@ -62,8 +68,19 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const v = app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
-      const req = { log: up.log, baro: up.baro, vessel: vesselFile(v, up.outletId), vesselFileName: v.name, settings: up.settings };
-      return json(reply, await app.tasks('inspect', req, { transfer: [up.log.bytes, ...(up.baro ? [up.baro.bytes] : [])] }));
+      const req = {
+        log: up.log,
+        baro: up.baro,
+        vessel: vesselFile(v, up.outletId),
+        vesselFileName: v.name,
+        settings: up.settings,
+      };
+      return json(
+        reply,
+        await app.tasks('inspect', req, {
+          transfer: [up.log.bytes, ...(up.baro ? [up.baro.bytes] : [])],
+        }),
+      );
     },
   );
 
@@ -73,10 +90,15 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS },
       schema: {
         tags: ['tests'],
-        summary: "A stored test's parsed series at full resolution (reading settings of the given fit, else the test's)",
+        summary:
+          "A stored test's parsed series at full resolution (reading settings of the given fit, else the test's)",
         params: idParams,
         querystring: z.object({ fit: z.coerce.number().int().positive().optional() }),
-        response: { 200: z.object({ series, detected: z.record(z.string(), z.unknown()) }), 422: problem, ...protectedErrors },
+        response: {
+          200: z.object({ series, detected: z.record(z.string(), z.unknown()) }),
+          422: problem,
+          ...protectedErrors,
+        },
       },
     },
     async (request, reply) => {
@@ -86,11 +108,21 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       const v = app.store.vessels.get(t.vesselId);
       // a file database: the task thread reads the raw bytes itself (tens of MB stay off this thread)
       const dbPath = app.store.db.memory ? null : app.store.db.name;
-      const raw = (sha256: string, fileName: string) => (dbPath ? { fileName, dbPath, sha256 } : { fileName, bytes: app.store.tests.rawBytes(sha256) });
+      const raw = (sha256: string, fileName: string) =>
+        dbPath
+          ? { fileName, dbPath, sha256 }
+          : { fileName, bytes: app.store.tests.rawBytes(sha256) };
       const log = raw(t.sha256, t.fileName);
       const baro = t.baro ? raw(t.baro.sha256, t.baro.fileName) : undefined;
       const vessel = f && f.testId === t.id ? f.vessel : vesselFile(v, t.outletId ?? undefined);
-      return json(reply, await app.tasks('series', { log, baro, vessel, vesselFileName: v.name, settings }, { transfer: [log, baro].flatMap((r) => (r && 'bytes' in r && r.bytes ? [r.bytes] : [])) }));
+      return json(
+        reply,
+        await app.tasks(
+          'series',
+          { log, baro, vessel, vesselFileName: v.name, settings },
+          { transfer: [log, baro].flatMap((r) => (r && 'bytes' in r && r.bytes ? [r.bytes] : [])) },
+        ),
+      );
     },
   );
 };

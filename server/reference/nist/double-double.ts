@@ -278,7 +278,9 @@ const FINE = 65536;
 const COARSE_HALF = Math.ceil((LN2.hi / 2) * COARSE);
 const FINE_HALF = FINE / COARSE / 2;
 function expTable(half: number, step: number): [Float64Array, Float64Array] {
-  const t = Array.from({ length: 2 * half + 1 }, (_, i) => expByHalving(fromNumber((i - half) / step)));
+  const t = Array.from({ length: 2 * half + 1 }, (_, i) =>
+    expByHalving(fromNumber((i - half) / step)),
+  );
   return [Float64Array.from(t, (v) => v.hi), Float64Array.from(t, (v) => v.lo)];
 }
 const [COARSE_HI, COARSE_LO] = expTable(COARSE_HALF, COARSE);
@@ -342,7 +344,8 @@ function sinTaylor(r: Dd): Dd {
   const r2l = R[1];
   const sign = (j: number): number => (j % 2 === 0 ? 1 : -1); // (−1)^j / (2j+1)!
   let q = sign(SIN_TERMS) * INV_FACT_HI[2 * SIN_TERMS + 1];
-  for (let j = SIN_TERMS - 1; j >= SIN_DOUBLE_FROM; j--) q = q * r2h + sign(j) * INV_FACT_HI[2 * j + 1];
+  for (let j = SIN_TERMS - 1; j >= SIN_DOUBLE_FROM; j--)
+    q = q * r2h + sign(j) * INV_FACT_HI[2 * j + 1];
   kMul(r2h, r2l, q, 0);
   for (let j = SIN_DOUBLE_FROM - 1; j >= 0; j--) {
     kAdd(R[0], R[1], sign(j) * INV_FACT_HI[2 * j + 1], sign(j) * INV_FACT_LO[2 * j + 1]);

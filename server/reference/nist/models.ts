@@ -9,7 +9,25 @@
  * sit below what double evaluation can resolve; the Jacobian needs only relative accuracy and
  * stays in double. Nelson's response is log(y) (its model is written for log[y]).
  */
-import { ONE, PI, add, addNum, atan, div, exp, fromNumber, log, mul, mulNum, neg, pow, sinCos, sqr, sqrt, sub } from './double-double.js';
+import {
+  ONE,
+  PI,
+  add,
+  addNum,
+  atan,
+  div,
+  exp,
+  fromNumber,
+  log,
+  mul,
+  mulNum,
+  neg,
+  pow,
+  sinCos,
+  sqr,
+  sqrt,
+  sub,
+} from './double-double.js';
 import type { Dd } from './double-double.js';
 
 export interface StrdModel {

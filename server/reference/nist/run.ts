@@ -33,7 +33,8 @@ export interface StrdRun {
 /** −log10(|est − cert| / |cert|), capped at `digits`; 0 when not even the first digit agrees. */
 export function logRelativeError(estimate: number, certified: number, digits: number): number {
   if (!Number.isFinite(estimate)) return 0;
-  const rel = certified === 0 ? Math.abs(estimate) : Math.abs(estimate - certified) / Math.abs(certified);
+  const rel =
+    certified === 0 ? Math.abs(estimate) : Math.abs(estimate - certified) / Math.abs(certified);
   if (rel === 0) return digits;
   return Math.max(0, Math.min(digits, -Math.log10(rel)));
 }
@@ -56,11 +57,18 @@ interface StrdData {
 // code from one run to the next, where a fresh closure per run would start cold each time.
 
 function residualsDd(d: StrdData, p: Float64Array, r: Float64Array): void {
-  for (let i = 0; i < d.m; i++) r[i] = toNumber(sub(d.yDd[i], d.model.fDd(p, d.x1Dd[i], d.x2Dd[i])));
+  for (let i = 0; i < d.m; i++)
+    r[i] = toNumber(sub(d.yDd[i], d.model.fDd(p, d.x1Dd[i], d.x2Dd[i])));
 }
 
 /** Jacobian rows from the double model; also the residuals when `withResiduals`. */
-function doubleModel(d: StrdData, p: Float64Array, r: Float64Array, J: Float64Array | null, withResiduals: boolean): void {
+function doubleModel(
+  d: StrdData,
+  p: Float64Array,
+  r: Float64Array,
+  J: Float64Array | null,
+  withResiduals: boolean,
+): void {
   const { n, g } = d;
   for (let i = 0; i < d.m; i++) {
     const f = d.model.f(p, d.x1[i], d.x2[i], J ? g : null);
@@ -80,7 +88,11 @@ function samePoint(a: Float64Array, b: Float64Array): boolean {
  * the default), or entirely in double from the rounded data (`'double'`, kept to compare); the
  * Jacobian is always the double analytic one.
  */
-export function strdProblem(ds: StrdDataset, model: StrdModel, residuals: 'double-double' | 'double' = 'double-double'): LeastSquaresProblem {
+export function strdProblem(
+  ds: StrdDataset,
+  model: StrdModel,
+  residuals: 'double-double' | 'double' = 'double-double',
+): LeastSquaresProblem {
   const respDd = model.responseDd;
   const data: StrdData = {
     model,
@@ -119,7 +131,9 @@ export function runStrd(ds: StrdDataset, start: 1 | 2, options?: SolveOptions): 
   const model = STRD_MODELS[ds.name];
   if (!model) throw new InputError(`no model for dataset ${ds.name}`, { field: 'dataset' });
   if (model.n !== ds.parameters.length) {
-    throw new InputError(`${ds.name} lists ${ds.parameters.length} parameters, the model has ${model.n}`);
+    throw new InputError(
+      `${ds.name} lists ${ds.parameters.length} parameters, the model has ${model.n}`,
+    );
   }
   const problem = strdProblem(ds, model);
   const p0 = Float64Array.from(ds.parameters, (q) => (start === 1 ? q.start1 : q.start2));
@@ -130,7 +144,9 @@ export function runStrd(ds: StrdDataset, start: 1 | 2, options?: SolveOptions): 
   let ssr = 0;
   for (const r of res.residuals) ssr += r * r;
   const s2 = ssr / (problem.m - problem.n);
-  const se = Array.from({ length: problem.n }, (_, k) => Math.sqrt(s2 * res.unscaledCovariance[k * problem.n + k]));
+  const se = Array.from({ length: problem.n }, (_, k) =>
+    Math.sqrt(s2 * res.unscaledCovariance[k * problem.n + k]),
+  );
   return {
     dataset: ds.name,
     start,
@@ -141,8 +157,12 @@ export function runStrd(ds: StrdDataset, start: 1 | 2, options?: SolveOptions): 
     stopReason: res.stopReason,
     iterations: res.iterations,
     ms,
-    estimateLre: ds.parameters.map((q, k) => logRelativeError(res.p[k], q.certified, q.certifiedDigits)),
-    standardErrorLre: ds.parameters.map((q, k) => logRelativeError(se[k], q.certifiedSd, q.certifiedSdDigits)),
+    estimateLre: ds.parameters.map((q, k) =>
+      logRelativeError(res.p[k], q.certified, q.certifiedDigits),
+    ),
+    standardErrorLre: ds.parameters.map((q, k) =>
+      logRelativeError(se[k], q.certifiedSd, q.certifiedSdDigits),
+    ),
     rssLre: logRelativeError(ssr, ds.residualSumOfSquares, ds.residualSumOfSquaresDigits),
   };
 }
@@ -161,6 +181,7 @@ export function loadStrdDirectory(dir: string): StrdDataset[] {
 
 export function runAllStrd(datasets: StrdDataset[], options?: SolveOptions): StrdRun[] {
   const out: StrdRun[] = [];
-  for (const ds of datasets) for (const start of [1, 2] as const) out.push(runStrd(ds, start, options));
+  for (const ds of datasets)
+    for (const start of [1, 2] as const) out.push(runStrd(ds, start, options));
   return out;
 }

@@ -43,24 +43,31 @@ export function significantDigits(token: string): number {
 
 function num(token: string | undefined, file: string, line: number, field: string): number {
   const v = token === undefined ? NaN : Number(token);
-  if (!Number.isFinite(v)) throw new InputError(`not a number: ${token ?? '(missing)'}`, { file, line, field });
+  if (!Number.isFinite(v))
+    throw new InputError(`not a number: ${token ?? '(missing)'}`, { file, line, field });
   return v;
 }
 
 function exact(token: string, file: string, line: number, field: string): Dd {
   const v = parseDecimal(token);
-  if (!v || !Number.isFinite(v.hi)) throw new InputError(`not a number: ${token}`, { file, line, field });
+  if (!v || !Number.isFinite(v.hi))
+    throw new InputError(`not a number: ${token}`, { file, line, field });
   return v;
 }
 
 function lineRange(text: string, label: string, file: string): [number, number] {
   const re = new RegExp(`${label}\\s*\\(lines\\s+(\\d+)\\s+to\\s+(\\d+)\\)`);
   const m = re.exec(text);
-  if (!m) throw new InputError(`header does not say where the ${label.toLowerCase()} are`, { file });
+  if (!m)
+    throw new InputError(`header does not say where the ${label.toLowerCase()} are`, { file });
   return [Number(m[1]), Number(m[2])];
 }
 
-export function parseStrdFile(text: string, file: string, name = file.replace(/^.*[\\/]/, '').replace(/\.dat$/i, '')): StrdDataset {
+export function parseStrdFile(
+  text: string,
+  file: string,
+  name = file.replace(/^.*[\\/]/, '').replace(/\.dat$/i, ''),
+): StrdDataset {
   const lines = text.split(/\r?\n/);
   const head = lines.slice(0, 12).join('\n');
   const [ps, pe] = lineRange(head, 'Starting Values', file);
@@ -109,7 +116,8 @@ export function parseStrdFile(text: string, file: string, name = file.replace(/^
       x = Array.from({ length: Math.max(1, cells.length - 1) }, () => new Float64Array(count));
       xExact = x.map(() => []);
     }
-    if (cells.length !== x.length + 1) throw new InputError(`expected ${x.length + 1} numbers`, { file, line: ln });
+    if (cells.length !== x.length + 1)
+      throw new InputError(`expected ${x.length + 1} numbers`, { file, line: ln });
     y[k] = num(cells[0], file, ln, 'y');
     yExact.push(exact(cells[0], file, ln, 'y'));
     for (let c = 0; c < x.length; c++) {
@@ -117,5 +125,15 @@ export function parseStrdFile(text: string, file: string, name = file.replace(/^
       xExact[c].push(exact(cells[c + 1], file, ln, `x${c + 1}`));
     }
   }
-  return { name, parameters, residualSumOfSquares: rss, residualSumOfSquaresDigits: rssDigits, degreesOfFreedom: dof, y, x, yExact, xExact };
+  return {
+    name,
+    parameters,
+    residualSumOfSquares: rss,
+    residualSumOfSquaresDigits: rssDigits,
+    degreesOfFreedom: dof,
+    y,
+    x,
+    yExact,
+    xExact,
+  };
 }

@@ -39,12 +39,23 @@ describe('a stated testedAt', () => {
 
 describe("the log's own date", () => {
   it("is the window's first reading on the log's clock, else a preamble start plus the window offset", () => {
-    expect(logTestDate({ startS: 40, startTime: '2026-03-10T08:15:40.000Z' }, [])).toBe('2026-03-10T08:15:40.000Z');
-    const meta = [{ key: 'Vessel', value: 'FD-1' }, { key: 'Started', value: '2024-10-07T08:00:00Z' }];
+    expect(logTestDate({ startS: 40, startTime: '2026-03-10T08:15:40.000Z' }, [])).toBe(
+      '2026-03-10T08:15:40.000Z',
+    );
+    const meta = [
+      { key: 'Vessel', value: 'FD-1' },
+      { key: 'Started', value: '2024-10-07T08:00:00Z' },
+    ];
     expect(logTestDate({ startS: 70, startTime: null }, meta)).toBe('2024-10-07T08:01:10.000Z'); // 08:00:00 + 70 s, by hand
-    expect(logTestDate({ startS: 0, startTime: null }, [{ key: 'Start time', value: '2024-10-07 10:00:00+02:00' }])).toBe('2024-10-07T08:00:00.000Z');
+    expect(
+      logTestDate({ startS: 0, startTime: null }, [
+        { key: 'Start time', value: '2024-10-07 10:00:00+02:00' },
+      ]),
+    ).toBe('2024-10-07T08:00:00.000Z');
     // no offset, no clock: no date
-    expect(logTestDate({ startS: 0, startTime: null }, [{ key: 'Started', value: '2024-10-07 08:00' }])).toBeNull();
+    expect(
+      logTestDate({ startS: 0, startTime: null }, [{ key: 'Started', value: '2024-10-07 08:00' }]),
+    ).toBeNull();
     expect(logTestDate({ startS: 0, startTime: null }, null)).toBeNull();
   });
 });

@@ -18,7 +18,13 @@ export function budgetOf(
   const setting = settingFor(vessel.shape, vessel.outlet.elevationM);
   const v = fit.variant;
   const col = Array.from(v.free).indexOf(THETA.effectiveArea);
-  const bands = withBands ? headBands({ setting, timeS: data.timeS, levelM: data.levelM }, v, fit.uncertainty.varianceInflation) : fit.headBands;
+  const bands = withBands
+    ? headBands(
+        { setting, timeS: data.timeS, levelM: data.levelM },
+        v,
+        fit.uncertainty.varianceInflation,
+      )
+    : fit.headBands;
   return uncertaintyBudget({
     vessel,
     quantity: 'level',
@@ -27,7 +33,16 @@ export function budgetOf(
     datumFitted: v.terms.datum,
     gravity: g,
     boreM: vessel.outlet.boreM,
-    model: { setting, shapeSpec: vessel.shape, outletElevationM: vessel.outlet.elevationM, solution: v.solution, theta: v.theta, free: v.free, timeS: data.timeS, levelM: data.levelM },
+    model: {
+      setting,
+      shapeSpec: vessel.shape,
+      outletElevationM: vessel.outlet.elevationM,
+      solution: v.solution,
+      theta: v.theta,
+      free: v.free,
+      timeS: data.timeS,
+      levelM: data.levelM,
+    },
     typeAStandardUncertainty: fit.uncertainty.standardUncertainties[col],
     typeADegreesOfFreedom: fit.uncertainty.degreesOfFreedom,
     headBands: bands,

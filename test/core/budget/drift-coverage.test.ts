@@ -15,7 +15,12 @@ import { budgetOf } from './budget-helpers.js';
  */
 const d = 0.012;
 const truth = (0.61 * Math.PI * d * d) / 4;
-const vessel = { name: 'sim', shape: { kind: 'vertical-cylinder', diameterM: 6 }, outlet: { boreM: d, elevationM: 0 }, sensor: { zeroElevationM: 0 } } as VesselSpec;
+const vessel = {
+  name: 'sim',
+  shape: { kind: 'vertical-cylinder', diameterM: 6 },
+  outlet: { boreM: d, elevationM: 0 },
+  sensor: { zeroElevationM: 0 },
+} as VesselSpec;
 const setting = settingFor(vessel.shape, 0);
 
 function run(kind: 'drift' | 'white' | 'ar1', runs: number) {
@@ -25,17 +30,35 @@ function run(kind: 'drift' | 'white' | 'ar1', runs: number) {
   const est: number[] = [];
   const us: number[] = [];
   for (let seed = 1; seed <= runs; seed++) {
-    const noise = kind === 'ar1' ? { noiseM: 0.003, noiseLag1: 0.85 } : { noiseM: 0.003, noiseLag1: 0 };
-    const log = simulateDrainTest({ setting, effectiveAreaM2: truth, initialSurfaceM: 3, sensorZeroElevationM: 0, sampleIntervalS: kind === 'drift' ? 60 : 10, drainS: kind === 'drift' ? 3 * 86400 : 3990, seed: 500 + seed, ...noise });
+    const noise =
+      kind === 'ar1' ? { noiseM: 0.003, noiseLag1: 0.85 } : { noiseM: 0.003, noiseLag1: 0 };
+    const log = simulateDrainTest({
+      setting,
+      effectiveAreaM2: truth,
+      initialSurfaceM: 3,
+      sensorZeroElevationM: 0,
+      sampleIntervalS: kind === 'drift' ? 60 : 10,
+      drainS: kind === 'drift' ? 3 * 86400 : 3990,
+      seed: 500 + seed,
+      ...noise,
+    });
     if (kind === 'drift') {
       // a daily swing of 3 mm (sensor temperature), random phase
       const phase = 2 * Math.PI * seededRandom(9000 + seed).uniform();
-      for (let i = 0; i < log.levelM.length; i++) log.levelM[i] += 0.003 * Math.sin((2 * Math.PI * log.timeS[i]) / 86400 + phase);
+      for (let i = 0; i < log.levelM.length; i++)
+        log.levelM[i] += 0.003 * Math.sin((2 * Math.PI * log.timeS[i]) / 86400 + phase);
     }
     let end = log.levelM.length;
     while (end > 10 && log.levelM[end - 1] < 0.45) end--;
     const data = { timeS: log.timeS.subarray(0, end), levelM: log.levelM.subarray(0, end) };
-    const fit = fitDrain({ setting, ...data, knownSensorZeroM: 0, terms: { inflow: false, datum: false, exponent: false }, outlet: { boreM: d }, essentialsOnly: true });
+    const fit = fitDrain({
+      setting,
+      ...data,
+      knownSensorZeroM: 0,
+      terms: { inflow: false, datum: false, exponent: false },
+      outlet: { boreM: d },
+      essentialsOnly: true,
+    });
     const b = budgetOf(vessel, fit, data, {}, true);
     const q = b.effectiveAreaM2;
     if (q.ci95[0] <= truth && truth <= q.ci95[1]) covered++;
@@ -46,7 +69,12 @@ function run(kind: 'drift' | 'white' | 'ar1', runs: number) {
   }
   const mean = est.reduce((a, x) => a + x, 0) / runs;
   const sd = Math.sqrt(est.reduce((a, x) => a + (x - mean) ** 2, 0) / (runs - 1));
-  return { coverage: covered / runs, ar1Only: coveredAr1Only / runs, uOverSd: us.reduce((a, x) => a + x, 0) / runs / sd, widened: widened / runs };
+  return {
+    coverage: covered / runs,
+    ar1Only: coveredAr1Only / runs,
+    uOverSd: us.reduce((a, x) => a + x, 0) / runs / sd,
+    widened: widened / runs,
+  };
 }
 
 describe('systematic drift: delete-a-block jackknife and head bands against the AR(1) estimate', () => {
@@ -79,6 +107,7 @@ describe('systematic drift: delete-a-block jackknife and head bands against the 
   it('the χ²/ν limits are the 99 % points: F(ν, ∞) at them is 0.99', () => {
     // χ²(ν)/ν is F(ν, ∞); a very large second degree of freedom stands in for ∞
     const limits: Record<number, number> = { 3: 3.782, 9: 2.407 };
-    for (const [nu, x] of Object.entries(limits)) expect(fCdf(x, Number(nu), 1e8)).toBeCloseTo(0.99, 3);
+    for (const [nu, x] of Object.entries(limits))
+      expect(fCdf(x, Number(nu), 1e8)).toBeCloseTo(0.99, 3);
   });
 });

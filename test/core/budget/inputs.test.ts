@@ -3,12 +3,34 @@ import { InputError } from '../../../server/core/errors.js';
 import { budgetInputs } from '../../../server/core/budget/inputs.js';
 import { validateVessel } from '../../../server/core/vessel/schema.js';
 
-const base = { name: 'v', shape: { kind: 'vertical-cylinder', diameterM: 3.2, diameterToleranceM: 0.01 }, outlet: { boreM: 0.05, elevationM: 0.1 }, sensor: { zeroElevationM: 0.1 } };
-const ctx = (vessel: unknown, quantity: 'level' | 'gauge-pressure' | 'absolute-pressure' = 'level', densitySource = 'assumed') => ({ vessel: validateVessel(vessel), quantity, densityKgM3: 998.2, densitySource, datumFitted: false, gravity: 9.80665 });
+const base = {
+  name: 'v',
+  shape: { kind: 'vertical-cylinder', diameterM: 3.2, diameterToleranceM: 0.01 },
+  outlet: { boreM: 0.05, elevationM: 0.1 },
+  sensor: { zeroElevationM: 0.1 },
+};
+const ctx = (
+  vessel: unknown,
+  quantity: 'level' | 'gauge-pressure' | 'absolute-pressure' = 'level',
+  densitySource = 'assumed',
+) => ({
+  vessel: validateVessel(vessel),
+  quantity,
+  densityKgM3: 998.2,
+  densitySource,
+  datumFitted: false,
+  gravity: 9.80665,
+});
 
 describe('stated uncertainties in the vessel file', () => {
   it('reads ± limits as rectangular, u = T/√3 (JCGM 100:2008, 4.3.7), and the resolution as δ/√12', () => {
-    const lines = budgetInputs(ctx({ ...base, sensor: { zeroElevationM: 0.1, resolutionM: 0.001, spanErrorFraction: 0.002 }, logger: { clockRateErrorFraction: 2e-5 } }));
+    const lines = budgetInputs(
+      ctx({
+        ...base,
+        sensor: { zeroElevationM: 0.1, resolutionM: 0.001, spanErrorFraction: 0.002 },
+        logger: { clockRateErrorFraction: 2e-5 },
+      }),
+    );
     const u = (key: string) => lines.find((l) => l.key === key)!.standardUncertainty;
     expect(u('shape.diameterM')).toBeCloseTo(0.01 / Math.sqrt(3), 15);
     expect(u('sensor.resolution')).toBeCloseTo(0.001 / Math.sqrt(12), 15);
@@ -27,14 +49,33 @@ describe('stated uncertainties in the vessel file', () => {
     expect(budgetInputs(ctx(base)).some((l) => l.key.startsWith('fluid.'))).toBe(false);
   });
   it('a stage–area table needs one tolerance pair per point', () => {
-    const table = { ...base, shape: { kind: 'table', points: [[0, 2], [2, 3]], pointTolerances: [[0.01, 0.02]] } };
+    const table = {
+      ...base,
+      shape: {
+        kind: 'table',
+        points: [
+          [0, 2],
+          [2, 3],
+        ],
+        pointTolerances: [[0.01, 0.02]],
+      },
+    };
     expect(() => validateVessel(table, 'pond.vessel.json')).toThrow(InputError);
     try {
       validateVessel(table, 'pond.vessel.json');
     } catch (e) {
       expect((e as InputError).field).toBe('shape.pointTolerances');
     }
-    const ok = validateVessel({ ...table, shape: { ...table.shape, pointTolerances: [[0.01, 0.02], [0.01, 0.03]] } });
+    const ok = validateVessel({
+      ...table,
+      shape: {
+        ...table.shape,
+        pointTolerances: [
+          [0.01, 0.02],
+          [0.01, 0.03],
+        ],
+      },
+    });
     expect(budgetInputs(ctx(ok)).filter((l) => l.key.startsWith('shape.points.')).length).toBe(4);
   });
 });
@@ -48,7 +89,16 @@ describe('a fit whose parameters leave the model', () => {
     const b = uncertaintyBudget({
       ...ctx(base),
       boreM: 0.05,
-      model: { setting: { shape: makeShape(vessel.shape), outletElevationM: 0.1, gravity: 9.80665 }, shapeSpec: vessel.shape, outletElevationM: 0.1, solution: 'closed-form', theta, free: Int32Array.of(0, 1), timeS: Float64Array.of(0, 1, 2), levelM: Float64Array.of(1, 0.9, 0.8) },
+      model: {
+        setting: { shape: makeShape(vessel.shape), outletElevationM: 0.1, gravity: 9.80665 },
+        shapeSpec: vessel.shape,
+        outletElevationM: 0.1,
+        solution: 'closed-form',
+        theta,
+        free: Int32Array.of(0, 1),
+        timeS: Float64Array.of(0, 1, 2),
+        levelM: Float64Array.of(1, 0.9, 0.8),
+      },
       typeAStandardUncertainty: 1e-6,
       typeADegreesOfFreedom: 10,
       headBands: [],

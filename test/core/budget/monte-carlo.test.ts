@@ -43,14 +43,30 @@ function trial(seed: number, drawn: boolean) {
   const clock = pm(5e-5);
   const setting = settingFor({ kind: 'vertical-cylinder', diameterM: dTrue }, outletTrue);
   const cdA = (trueCd * Math.PI * boreTrue * boreTrue) / 4;
-  const log = simulateDrainTest({ setting, effectiveAreaM2: cdA, initialSurfaceM: 3, sensorZeroElevationM: zeroTrue, sampleIntervalS: 10, drainS: 4000, noiseM: 0.002, seed: 90_000 + seed });
+  const log = simulateDrainTest({
+    setting,
+    effectiveAreaM2: cdA,
+    initialSurfaceM: 3,
+    sensorZeroElevationM: zeroTrue,
+    sampleIntervalS: 10,
+    drainS: 4000,
+    noiseM: 0.002,
+    seed: 90_000 + seed,
+  });
   // what the logger records: the sensor's scale error on the readings, its clock's rate on the times
   const levelM = log.levelM.map((y) => y * (1 + span));
   const timeS = log.timeS.map((t) => t * (1 + clock));
   let end = levelM.length;
   while (end > 10 && levelM[end - 1] < 0.3) end--;
   const data = { timeS: timeS.subarray(0, end), levelM: levelM.subarray(0, end) };
-  const fit = fitDrain({ setting: nominalSetting, ...data, knownSensorZeroM: 0.1, terms: { inflow: false, datum: false, exponent: false }, outlet: { boreM: bore, boreToleranceM: 0.0001 }, essentialsOnly: true });
+  const fit = fitDrain({
+    setting: nominalSetting,
+    ...data,
+    knownSensorZeroM: 0.1,
+    terms: { inflow: false, datum: false, exponent: false },
+    outlet: { boreM: bore, boreToleranceM: 0.0001 },
+    essentialsOnly: true,
+  });
   return { fit, data, cd: fit.variant.theta[0] / ((Math.PI * bore * bore) / 4) };
 }
 
@@ -70,14 +86,22 @@ describe('JCGM 101:2008 Monte Carlo validation of the budget', () => {
     const l = Math.floor(Math.log10(u)); // u = c·10^l, one significant digit
     const delta = 0.5 * 10 ** l;
     const seSd = u / Math.sqrt(2 * (M - 1)); // MC standard error of the standard deviation
-    expect(Math.abs(sd - u), `MC sd ${sd} vs budget u ${u} (SE ${seSd})`).toBeLessThan(Math.min(delta, 3 * seSd));
+    expect(Math.abs(sd - u), `MC sd ${sd} vs budget u ${u} (SE ${seSd})`).toBeLessThan(
+      Math.min(delta, 3 * seSd),
+    );
     // the GUM interval about the MC mean (the budget's y is one fit; MC's centre is the truth)
-    expect(Math.abs(mean - U - low), `low end: ${mean - U} vs ${low}, δ ${delta}`).toBeLessThan(delta);
-    expect(Math.abs(mean + U - high), `high end: ${mean + U} vs ${high}, δ ${delta}`).toBeLessThan(delta);
+    expect(Math.abs(mean - U - low), `low end: ${mean - U} vs ${low}, δ ${delta}`).toBeLessThan(
+      delta,
+    );
+    expect(Math.abs(mean + U - high), `high end: ${mean + U} vs ${high}, δ ${delta}`).toBeLessThan(
+      delta,
+    );
     // no bias: the MC mean within 3 standard errors (u/√M) of the true Cd
     expect(Math.abs(mean - trueCd)).toBeLessThan((3 * u) / Math.sqrt(M));
     // the diameter is the largest contribution to Cd·a, as the issue requires
-    const big = budget.lines.filter((x) => x.counted && x.key !== 'outlet.boreM').sort((a, b) => b.contributionEffectiveArea - a.contributionEffectiveArea)[0];
+    const big = budget.lines
+      .filter((x) => x.counted && x.key !== 'outlet.boreM')
+      .sort((a, b) => b.contributionEffectiveArea - a.contributionEffectiveArea)[0];
     expect(big.key).toBe('shape.diameterM');
   }, 120_000);
 });

@@ -44,7 +44,9 @@ describe('drain-time integrals: ODE against closed forms (ordinary calculus, t =
     const D = 2.2;
     const h0 = 2.0;
     const times = levels.map(
-      (h) => (Math.PI / (cdA * sqrt2g)) * ((2 * D) / 3 * (h0 ** 1.5 - h ** 1.5) - 0.4 * (h0 ** 2.5 - h ** 2.5)),
+      (h) =>
+        (Math.PI / (cdA * sqrt2g)) *
+        (((2 * D) / 3) * (h0 ** 1.5 - h ** 1.5) - 0.4 * (h0 ** 2.5 - h ** 2.5)),
     );
     const got = odeLevelsAt({ shape: sphere(D), outletElevationM: 0, gravity: g }, cdA, h0, times);
     got.forEach((y, i) => expect(Math.abs(y - levels[i])).toBeLessThan(1e-6));
@@ -54,8 +56,15 @@ describe('drain-time integrals: ODE against closed forms (ordinary calculus, t =
     const D = 2.0;
     const L = 5.0;
     const h0 = 1.8;
-    const times = levels.map((h) => ((2 * L) / (cdA * sqrt2g)) * (2 / 3) * ((D - h) ** 1.5 - (D - h0) ** 1.5));
-    const got = odeLevelsAt({ shape: horizontalCylinder(D, L), outletElevationM: 0, gravity: g }, cdA, h0, times);
+    const times = levels.map(
+      (h) => ((2 * L) / (cdA * sqrt2g)) * (2 / 3) * ((D - h) ** 1.5 - (D - h0) ** 1.5),
+    );
+    const got = odeLevelsAt(
+      { shape: horizontalCylinder(D, L), outletElevationM: 0, gravity: g },
+      cdA,
+      h0,
+      times,
+    );
     got.forEach((y, i) => expect(Math.abs(y - levels[i])).toBeLessThan(1e-6));
   });
 
@@ -93,11 +102,41 @@ describe('drain-time integrals: ODE against closed forms (ordinary calculus, t =
 });
 
 describe('derivatives: closed form and sensitivity equations against central differences', () => {
-  const cases: { name: string; setting: DrainSetting; th: Float64Array; free: number[]; solver: typeof odeReadings }[] = [
-    { name: 'closed form n=½', setting: { shape: cylinder(3), outletElevationM: 0.1, gravity: g }, th: theta(7e-4, 3.2, 0.02), free: [0, 1, 2], solver: closedFormReadings },
-    { name: 'closed form free n', setting: { shape: cylinder(3), outletElevationM: 0.1, gravity: g }, th: theta(7e-4, 3.2, 0.02, 0, 0.55), free: [0, 1, 2, 4], solver: closedFormReadings },
-    { name: 'ODE sphere, all terms', setting: { shape: sphere(2.4), outletElevationM: 0.05, gravity: g }, th: theta(5e-4, 2.0, 0.1, 1e-4, 0.5), free: [0, 1, 2, 3, 4], solver: odeReadings },
-    { name: 'ODE horizontal cylinder', setting: { shape: horizontalCylinder(2.4, 6), outletElevationM: 0, gravity: g }, th: theta(4.4e-4, 2.2), free: [0, 1], solver: odeReadings },
+  const cases: {
+    name: string;
+    setting: DrainSetting;
+    th: Float64Array;
+    free: number[];
+    solver: typeof odeReadings;
+  }[] = [
+    {
+      name: 'closed form n=½',
+      setting: { shape: cylinder(3), outletElevationM: 0.1, gravity: g },
+      th: theta(7e-4, 3.2, 0.02),
+      free: [0, 1, 2],
+      solver: closedFormReadings,
+    },
+    {
+      name: 'closed form free n',
+      setting: { shape: cylinder(3), outletElevationM: 0.1, gravity: g },
+      th: theta(7e-4, 3.2, 0.02, 0, 0.55),
+      free: [0, 1, 2, 4],
+      solver: closedFormReadings,
+    },
+    {
+      name: 'ODE sphere, all terms',
+      setting: { shape: sphere(2.4), outletElevationM: 0.05, gravity: g },
+      th: theta(5e-4, 2.0, 0.1, 1e-4, 0.5),
+      free: [0, 1, 2, 3, 4],
+      solver: odeReadings,
+    },
+    {
+      name: 'ODE horizontal cylinder',
+      setting: { shape: horizontalCylinder(2.4, 6), outletElevationM: 0, gravity: g },
+      th: theta(4.4e-4, 2.2),
+      free: [0, 1],
+      solver: odeReadings,
+    },
   ];
   for (const c of cases) {
     it(c.name, () => {

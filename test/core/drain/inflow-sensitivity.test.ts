@@ -28,8 +28,22 @@ describe('closed-form inflow sensitivity of a constant-area orifice drain', () =
     const dq = 1e-7;
     const up = new Float64Array(ts.length);
     const down = new Float64Array(ts.length);
-    odeReadings(setting, Float64Array.from(th, (v, j) => (j === THETA.inflow ? dq : v)), ts, up, null, new Int32Array(0));
-    odeReadings(setting, Float64Array.from(th, (v, j) => (j === THETA.inflow ? -dq : v)), ts, down, null, new Int32Array(0));
+    odeReadings(
+      setting,
+      Float64Array.from(th, (v, j) => (j === THETA.inflow ? dq : v)),
+      ts,
+      up,
+      null,
+      new Int32Array(0),
+    );
+    odeReadings(
+      setting,
+      Float64Array.from(th, (v, j) => (j === THETA.inflow ? -dq : v)),
+      ts,
+      down,
+      null,
+      new Int32Array(0),
+    );
     let scale = 0;
     for (const s of closed) scale = Math.max(scale, Math.abs(s));
     expect(scale).toBeGreaterThan(100); // of order t/A: hundreds of m per m³/s here
@@ -37,14 +51,29 @@ describe('closed-form inflow sensitivity of a constant-area orifice drain', () =
       expect(Math.abs(closed[i] - sens[i])).toBeLessThan(1e-5 * scale);
       // differences only well before the drained point, where ±Q_in changes the ending itself
       const head = y[i] + th[THETA.sensorZero] - setting.outletElevationM;
-      if (head > 0.2) expect(Math.abs(closed[i] - (up[i] - down[i]) / (2 * dq))).toBeLessThan(1e-4 * scale);
+      if (head > 0.2)
+        expect(Math.abs(closed[i] - (up[i] - down[i]) / (2 * dq))).toBeLessThan(1e-4 * scale);
     }
     expect(closed[1]).toBeCloseTo(ts[1] / setting.shape.areaM2(0), 0); // starts as t/A
   });
 
   it('is refused outside n = ½ or at Cd·a = 0, so the caller falls back to the ODE', () => {
     const out = new Float64Array(ts.length);
-    expect(closedFormInflowSensitivity(setting, Float64Array.from(th, (v, j) => (j === THETA.exponent ? 0.6 : v)), ts, out)).toBe(false);
-    expect(closedFormInflowSensitivity(setting, Float64Array.from(th, (v, j) => (j === THETA.effectiveArea ? 0 : v)), ts, out)).toBe(false);
+    expect(
+      closedFormInflowSensitivity(
+        setting,
+        Float64Array.from(th, (v, j) => (j === THETA.exponent ? 0.6 : v)),
+        ts,
+        out,
+      ),
+    ).toBe(false);
+    expect(
+      closedFormInflowSensitivity(
+        setting,
+        Float64Array.from(th, (v, j) => (j === THETA.effectiveArea ? 0 : v)),
+        ts,
+        out,
+      ),
+    ).toBe(false);
   });
 });

@@ -6,13 +6,25 @@ import type { VesselShape } from '../../../server/core/geometry/shape.js';
  */
 export function cylinder(diameter: number, height = 10): VesselShape {
   const a = (Math.PI * diameter * diameter) / 4;
-  return { kind: 'cyl', heightM: height, constantArea: true, areaM2: () => a, volumeM3: (y) => a * y };
+  return {
+    kind: 'cyl',
+    heightM: height,
+    constantArea: true,
+    areaM2: () => a,
+    volumeM3: (y) => a * y,
+  };
 }
 
 /** Apex-down cone, apex at y = 0, radius R at height hc. */
 export function cone(radius: number, coneHeight: number): VesselShape {
   const alpha = Math.PI * (radius / coneHeight) ** 2;
-  return { kind: 'cone', heightM: coneHeight, constantArea: false, areaM2: (y) => alpha * y * y, volumeM3: (y) => (alpha * y ** 3) / 3 };
+  return {
+    kind: 'cone',
+    heightM: coneHeight,
+    constantArea: false,
+    areaM2: (y) => alpha * y * y,
+    volumeM3: (y) => (alpha * y ** 3) / 3,
+  };
 }
 
 export function sphere(diameter: number): VesselShape {

@@ -13,8 +13,12 @@ const sample = (name: string) => join(root, 'sample-data', name);
 
 describe('the single-fit result', () => {
   it('reads a fit stored by engine 0.1.0 (test/fixtures/pre-house) unchanged', () => {
-    const db = new Database(join(root, 'test/fixtures/pre-house/efflux.sqlite'), { readonly: true });
-    const stored = JSON.parse(db.prepare('SELECT result FROM fits WHERE id = 1').pluck().get() as string);
+    const db = new Database(join(root, 'test/fixtures/pre-house/efflux.sqlite'), {
+      readonly: true,
+    });
+    const stored = JSON.parse(
+      db.prepare('SELECT result FROM fits WHERE id = 1').pluck().get() as string,
+    );
     db.close();
     const parsed = singleFitResult.parse(stored);
     expect(parsed.engineVersion).toBe('0.1.0');
@@ -24,7 +28,10 @@ describe('the single-fit result', () => {
 
   it('a fresh fit names every parameter with value, free or fixed, bounds, uncertainty, interval and start', () => {
     const fit = analyzeDrainTest({
-      log: { bytes: readFileSync(sample('fb1-2026-03-10-preamble.csv')), fileName: 'fb1-2026-03-10-preamble.csv' },
+      log: {
+        bytes: readFileSync(sample('fb1-2026-03-10-preamble.csv')),
+        fileName: 'fb1-2026-03-10-preamble.csv',
+      },
       vessel: JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8')),
       settings: {},
     }).fit;
@@ -34,8 +41,15 @@ describe('the single-fit result', () => {
     expect(area.standardUncertainty).toBeGreaterThan(0);
     expect(area.start).toBeGreaterThan(0);
     const exponent = r.parameters.find((p) => p.name === 'headExponent')!;
-    expect(exponent).toMatchObject({ free: false, value: 0.5, standardUncertainty: null, bounds: { lower: 0.5, upper: 0.5 } });
-    expect(r.correlations.parameters).toEqual(r.parameters.filter((p) => p.free).map((p) => p.name));
+    expect(exponent).toMatchObject({
+      free: false,
+      value: 0.5,
+      standardUncertainty: null,
+      bounds: { lower: 0.5, upper: 0.5 },
+    });
+    expect(r.correlations.parameters).toEqual(
+      r.parameters.filter((p) => p.free).map((p) => p.name),
+    );
     expect(r.solver).toMatchObject({ converged: true, rank: 2 });
   });
 
@@ -44,7 +58,9 @@ describe('the single-fit result', () => {
     const doc = (await t.app.inject({ method: 'GET', url: '/api/openapi.json' })).json();
     await t.app.close();
     expect(doc.components.schemas.FitResult.properties.parameters.type).toBe('array');
-    expect(doc.components.schemas.Fit.properties.result.$ref).toBe('#/components/schemas/FitResult');
+    expect(doc.components.schemas.Fit.properties.result.$ref).toBe(
+      '#/components/schemas/FitResult',
+    );
   });
 });
 // the joint fit's shape is checked on a real joint fit in test/cli/system.test.ts

@@ -9,7 +9,10 @@ describe('discharge coefficient from effective area (JCGM 100:2008 vocabulary)',
     const q = dischargeCoefficientQuantity(cdA, 0.004 * cdA, 50, d, 0.0002);
     const urBore = 0.0002 / Math.sqrt(3) / d;
     expect(q.value).toBeCloseTo(0.61, 12);
-    expect(q.relativeStandardUncertainty).toBeCloseTo(Math.sqrt(0.004 ** 2 + (2 * urBore) ** 2), 12);
+    expect(q.relativeStandardUncertainty).toBeCloseTo(
+      Math.sqrt(0.004 ** 2 + (2 * urBore) ** 2),
+      12,
+    );
     // Welch–Satterthwaite (GUM G.2b): ν_eff = u_c⁴ / (u_fit⁴/50 + u_bore⁴/∞), worked by hand:
     // u_r,c² = 0.004² + (2·0.0002/√3/0.04)² = 4.9333e-5, so ν_eff = 50 · (4.9333e-5)² / 0.004⁴ = 475.3
     expect(q.effectiveDegreesOfFreedom).toBeCloseTo(475.35, 1);

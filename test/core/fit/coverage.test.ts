@@ -8,7 +8,7 @@ import { simulateAndFit, type Scenario } from './simulated.js';
  * sqrt((1+ρ)/(1−ρ)) ≈ 3.5 times too narrow and cover far less often.
  */
 const d = 0.04;
-const truth = 0.61 * (Math.PI * d * d) / 4;
+const truth = (0.61 * (Math.PI * d * d)) / 4;
 
 function coverage(noiseLag1: number, runs: number): number {
   let covered = 0;
@@ -16,7 +16,16 @@ function coverage(noiseLag1: number, runs: number): number {
     const sc: Scenario = {
       shape: { kind: 'vertical-cylinder', diameterM: 2.5 },
       boreM: d,
-      sim: { effectiveAreaM2: truth, initialSurfaceM: 3.0, sensorZeroElevationM: 0, drainS: 3990, sampleIntervalS: 10, noiseM: 0.003, noiseLag1, seed: 1000 + seed },
+      sim: {
+        effectiveAreaM2: truth,
+        initialSurfaceM: 3.0,
+        sensorZeroElevationM: 0,
+        drainS: 3990,
+        sampleIntervalS: 10,
+        noiseM: 0.003,
+        noiseLag1,
+        seed: 1000 + seed,
+      },
     };
     const { result } = simulateAndFit(sc, true);
     const [lo, hi] = result.effectiveArea.ci95;

@@ -9,7 +9,7 @@ import { simulateAndFit, type Scenario } from './simulated.js';
  * ρ = 0.85 the ratio would be about √((1+ρ)/(1−ρ)) ≈ 3.5.
  */
 const d = 0.04;
-const truth = 0.61 * (Math.PI * d * d) / 4;
+const truth = (0.61 * (Math.PI * d * d)) / 4;
 
 function spreadOverStated(noiseLag1: number, seeds: number): number[] {
   const bands: { area: number[]; u: number[] }[] = [];
@@ -17,7 +17,16 @@ function spreadOverStated(noiseLag1: number, seeds: number): number[] {
     const sc: Scenario = {
       shape: { kind: 'vertical-cylinder', diameterM: 2.5 },
       boreM: d,
-      sim: { effectiveAreaM2: truth, initialSurfaceM: 3.0, sensorZeroElevationM: 0, drainS: 3990, sampleIntervalS: 10, noiseM: 0.003, noiseLag1, seed: 2000 + seed },
+      sim: {
+        effectiveAreaM2: truth,
+        initialSurfaceM: 3.0,
+        sensorZeroElevationM: 0,
+        drainS: 3990,
+        sampleIntervalS: 10,
+        noiseM: 0.003,
+        noiseLag1,
+        seed: 2000 + seed,
+      },
     };
     const { result } = simulateAndFit(sc, false);
     expect(result.headBands.length).toBe(4);

@@ -12,16 +12,161 @@ const a = (Math.PI * bore * bore) / 4;
 const base = { sampleIntervalS: 2, noiseM: 0.001, quantumM: 0.001, seed: 7 };
 
 const scenarios: [string, Scenario][] = [
-  ['vertical cylinder', { shape: { kind: 'vertical-cylinder', diameterM: 2.5 }, boreM: bore, sim: { ...base, effectiveAreaM2: 0.61 * a, initialSurfaceM: 3.0, sensorZeroElevationM: 0, drainS: 3600 } }],
-  ['vertical cylinder, outlet above the bottom, sensor zero fitted', { shape: { kind: 'vertical-cylinder', diameterM: 2.5 }, outletElevationM: 0.2, boreM: bore, knownZero: false, terms: { datum: true }, sim: { ...base, effectiveAreaM2: 0.63 * a, initialSurfaceM: 3.2, sensorZeroElevationM: 0.35, drainS: 5400 } }],
-  ['vertical cylinder with a leaking inlet', { shape: { kind: 'vertical-cylinder', diameterM: 2.5 }, boreM: bore, terms: { inflow: true }, sim: { ...base, effectiveAreaM2: 0.61 * a, inflowM3S: 4e-4, initialSurfaceM: 3.0, sensorZeroElevationM: 0, drainS: 3600 } }],
-  ['vertical cylinder, exponent free', { shape: { kind: 'vertical-cylinder', diameterM: 2.0 }, boreM: bore, terms: { exponent: true }, sim: { ...base, effectiveAreaM2: 0.62 * a, initialSurfaceM: 3.0, sensorZeroElevationM: 0, drainS: 3000 } }],
-  ['rectangular', { shape: { kind: 'rectangular', lengthM: 2, widthM: 1.5 }, boreM: bore, sim: { ...base, effectiveAreaM2: 0.6 * a, initialSurfaceM: 2.0, sensorZeroElevationM: 0.0, drainS: 2400 } }],
-  ['horizontal cylinder', { shape: { kind: 'horizontal-cylinder', diameterM: 2.4, lengthM: 6 }, boreM: 0.05, sim: { ...base, effectiveAreaM2: 0.62 * Math.PI * 0.025 ** 2, initialSurfaceM: 2.2, sensorZeroElevationM: 0, drainS: 3600 } }],
-  ['sphere', { shape: { kind: 'sphere', diameterM: 3 }, boreM: 0.05, sim: { ...base, effectiveAreaM2: 0.61 * Math.PI * 0.025 ** 2, initialSurfaceM: 2.7, sensorZeroElevationM: 0.05, drainS: 3600 } }],
-  ['cone bottom', { shape: { kind: 'cone-bottom', diameterM: 2, coneHeightM: 1.2, heightM: 4 }, boreM: bore, sim: { ...base, effectiveAreaM2: 0.61 * a, initialSurfaceM: 3.5, sensorZeroElevationM: 0, drainS: 3000 } }],
-  ['stage–area table', { shape: { kind: 'table', points: [[0, 0.5], [0.5, 1.5], [1.0, 2.6], [2.0, 4.0], [3.0, 5.0]] }, boreM: bore, sim: { ...base, effectiveAreaM2: 0.61 * a, initialSurfaceM: 2.8, sensorZeroElevationM: 0, drainS: 3000 } }],
-  ['elliptical-head cylinder', { shape: { kind: 'elliptical-head-cylinder', diameterM: 2, heightM: 4 }, boreM: bore, sim: { ...base, effectiveAreaM2: 0.64 * a, initialSurfaceM: 3.5, sensorZeroElevationM: 0, drainS: 3000 } }],
+  [
+    'vertical cylinder',
+    {
+      shape: { kind: 'vertical-cylinder', diameterM: 2.5 },
+      boreM: bore,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.61 * a,
+        initialSurfaceM: 3.0,
+        sensorZeroElevationM: 0,
+        drainS: 3600,
+      },
+    },
+  ],
+  [
+    'vertical cylinder, outlet above the bottom, sensor zero fitted',
+    {
+      shape: { kind: 'vertical-cylinder', diameterM: 2.5 },
+      outletElevationM: 0.2,
+      boreM: bore,
+      knownZero: false,
+      terms: { datum: true },
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.63 * a,
+        initialSurfaceM: 3.2,
+        sensorZeroElevationM: 0.35,
+        drainS: 5400,
+      },
+    },
+  ],
+  [
+    'vertical cylinder with a leaking inlet',
+    {
+      shape: { kind: 'vertical-cylinder', diameterM: 2.5 },
+      boreM: bore,
+      terms: { inflow: true },
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.61 * a,
+        inflowM3S: 4e-4,
+        initialSurfaceM: 3.0,
+        sensorZeroElevationM: 0,
+        drainS: 3600,
+      },
+    },
+  ],
+  [
+    'vertical cylinder, exponent free',
+    {
+      shape: { kind: 'vertical-cylinder', diameterM: 2.0 },
+      boreM: bore,
+      terms: { exponent: true },
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.62 * a,
+        initialSurfaceM: 3.0,
+        sensorZeroElevationM: 0,
+        drainS: 3000,
+      },
+    },
+  ],
+  [
+    'rectangular',
+    {
+      shape: { kind: 'rectangular', lengthM: 2, widthM: 1.5 },
+      boreM: bore,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.6 * a,
+        initialSurfaceM: 2.0,
+        sensorZeroElevationM: 0.0,
+        drainS: 2400,
+      },
+    },
+  ],
+  [
+    'horizontal cylinder',
+    {
+      shape: { kind: 'horizontal-cylinder', diameterM: 2.4, lengthM: 6 },
+      boreM: 0.05,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.62 * Math.PI * 0.025 ** 2,
+        initialSurfaceM: 2.2,
+        sensorZeroElevationM: 0,
+        drainS: 3600,
+      },
+    },
+  ],
+  [
+    'sphere',
+    {
+      shape: { kind: 'sphere', diameterM: 3 },
+      boreM: 0.05,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.61 * Math.PI * 0.025 ** 2,
+        initialSurfaceM: 2.7,
+        sensorZeroElevationM: 0.05,
+        drainS: 3600,
+      },
+    },
+  ],
+  [
+    'cone bottom',
+    {
+      shape: { kind: 'cone-bottom', diameterM: 2, coneHeightM: 1.2, heightM: 4 },
+      boreM: bore,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.61 * a,
+        initialSurfaceM: 3.5,
+        sensorZeroElevationM: 0,
+        drainS: 3000,
+      },
+    },
+  ],
+  [
+    'stage–area table',
+    {
+      shape: {
+        kind: 'table',
+        points: [
+          [0, 0.5],
+          [0.5, 1.5],
+          [1.0, 2.6],
+          [2.0, 4.0],
+          [3.0, 5.0],
+        ],
+      },
+      boreM: bore,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.61 * a,
+        initialSurfaceM: 2.8,
+        sensorZeroElevationM: 0,
+        drainS: 3000,
+      },
+    },
+  ],
+  [
+    'elliptical-head cylinder',
+    {
+      shape: { kind: 'elliptical-head-cylinder', diameterM: 2, heightM: 4 },
+      boreM: bore,
+      sim: {
+        ...base,
+        effectiveAreaM2: 0.64 * a,
+        initialSurfaceM: 3.5,
+        sensorZeroElevationM: 0,
+        drainS: 3000,
+      },
+    },
+  ],
 ];
 
 describe('Cd recovered from simulated drains of every shape and option', () => {
@@ -38,7 +183,9 @@ describe('Cd recovered from simulated drains of every shape and option', () => {
         expect(Math.abs(q / (sc.sim.inflowM3S ?? 1) - 1)).toBeLessThan(0.05);
       }
       if (sc.terms?.datum) {
-        expect(Math.abs(result.variant.theta[THETA.sensorZero] - sc.sim.sensorZeroElevationM)).toBeLessThan(0.01);
+        expect(
+          Math.abs(result.variant.theta[THETA.sensorZero] - sc.sim.sensorZeroElevationM),
+        ).toBeLessThan(0.01);
       }
       if (sc.terms?.exponent) {
         expect(Math.abs(result.variant.theta[THETA.exponent] - 0.5)).toBeLessThan(0.01);
@@ -84,6 +231,9 @@ describe('what the fit reports beside the numbers', () => {
   it('bore tolerance adds to the uncertainty of Cd as u_r(Cd)² = u_r(Cd·a)² + (2·u_r(d))² (JCGM 100:2008, 5.1.6)', () => {
     const { result } = simulateAndFit(scenarios[0][1]);
     const cd = result.dischargeCoefficient;
-    expect(cd.relativeStandardUncertainty).toBeCloseTo(result.effectiveArea.relativeStandardUncertainty, 12);
+    expect(cd.relativeStandardUncertainty).toBeCloseTo(
+      result.effectiveArea.relativeStandardUncertainty,
+      12,
+    );
   });
 });

@@ -41,5 +41,8 @@ export function simulateAndFit(sc: Scenario, essentialsOnly = false) {
     outlet: { boreM: sc.boreM, boreToleranceM: 0 },
     essentialsOnly,
   };
-  return { result: fitDrain(input), trueCd: sc.sim.effectiveAreaM2 / ((Math.PI * sc.boreM ** 2) / 4) };
+  return {
+    result: fitDrain(input),
+    trueCd: sc.sim.effectiveAreaM2 / ((Math.PI * sc.boreM ** 2) / 4),
+  };
 }

@@ -5,7 +5,8 @@ import { makeShape } from '../../../server/core/geometry/index.js';
  * Volumes against closed forms of ordinary geometry, written here in a different (textbook)
  * form from the one the code uses, so a slip in either shows.
  */
-const close = (a: number, b: number) => expect(Math.abs(a - b)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(b)));
+const close = (a: number, b: number) =>
+  expect(Math.abs(a - b)).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(b)));
 const depths = (h: number) => [0, 0.01, 0.1, 0.25, 0.5, 0.73, 0.9, 0.99, 1].map((f) => f * h);
 
 describe('vertical cylinder and rectangular prism', () => {
@@ -45,7 +46,7 @@ describe('horizontal cylinder', () => {
     const s = makeShape({ kind: 'horizontal-cylinder', diameterM: d, lengthM: l });
     for (const y of depths(d)) {
       const theta = 2 * Math.acos((r - y) / r);
-      close(s.volumeM3(y), l * (r * r / 2) * (theta - Math.sin(theta)));
+      close(s.volumeM3(y), l * ((r * r) / 2) * (theta - Math.sin(theta)));
     }
     close(s.volumeM3(d), Math.PI * r * r * l);
     close(s.volumeM3(r), (Math.PI * r * r * l) / 2);
@@ -76,8 +77,10 @@ describe('2:1 elliptical head under a cylinder', () => {
     const s = makeShape({ kind: 'elliptical-head-cylinder', diameterM: d, heightM: 3 });
     close(s.volumeM3(b), 0.5 * (4 / 3) * Math.PI * r * r * b);
     // Partial head: a spherical cap of radius b, y²·π·(3b − y)/3, stretched sideways by (R/b)².
-    for (const y of depths(b)) close(s.volumeM3(y), ((r / b) ** 2 * Math.PI * y * y * (3 * b - y)) / 3);
-    for (const y of [0.5, 1, 2.2, 3]) close(s.volumeM3(y), (2 / 3) * Math.PI * r * r * b + Math.PI * (y - b));
+    for (const y of depths(b))
+      close(s.volumeM3(y), ((r / b) ** 2 * Math.PI * y * y * (3 * b - y)) / 3);
+    for (const y of [0.5, 1, 2.2, 3])
+      close(s.volumeM3(y), (2 / 3) * Math.PI * r * r * b + Math.PI * (y - b));
   });
 });
 
@@ -92,7 +95,15 @@ describe('stage–area table', () => {
     for (const y of depths(2)) close(s.areaM2(y), L * (w0 + 2 * m * y));
   });
   it('piecewise areas integrate segment by segment (trapezoids)', () => {
-    const s = makeShape({ kind: 'table', points: [[0, 1], [1, 3], [2, 3], [4, 1]] });
+    const s = makeShape({
+      kind: 'table',
+      points: [
+        [0, 1],
+        [1, 3],
+        [2, 3],
+        [4, 1],
+      ],
+    });
     // Trapezoids: (1+3)/2·1 + 3·1 + (3+1)/2·2 = 2 + 3 + 4.
     close(s.volumeM3(4), 9);
     close(s.volumeM3(1.5), 2 + 1.5);
@@ -100,7 +111,13 @@ describe('stage–area table', () => {
     expect(s.constantArea).toBe(false);
   });
   it('holds the first area below a table that starts above zero, and is full above the last point', () => {
-    const s = makeShape({ kind: 'table', points: [[0.5, 2], [1.5, 2]] });
+    const s = makeShape({
+      kind: 'table',
+      points: [
+        [0.5, 2],
+        [1.5, 2],
+      ],
+    });
     close(s.volumeM3(0.25), 0.5);
     close(s.volumeM3(1.5), 3);
     close(s.volumeM3(9), 3);

@@ -39,21 +39,27 @@ const cases: fc.Arbitrary<Case> = fc.oneof(
   })),
   fc.tuple(dim, dim, dim).map(([d, hc, extra]) => ({
     spec: { kind: 'cone-bottom', diameterM: d, coneHeightM: hc, heightM: hc + extra } as ShapeSpec,
-    total: (Math.PI * d * d) / 4 * (hc / 3 + extra),
+    total: ((Math.PI * d * d) / 4) * (hc / 3 + extra),
     top: hc + extra,
     kinks: [hc],
   })),
   fc.tuple(dim, dim).map(([d, extra]) => ({
     spec: { kind: 'elliptical-head-cylinder', diameterM: d, heightM: d / 4 + extra } as ShapeSpec,
-    total: (Math.PI * d * d) / 4 * ((2 / 3) * (d / 4) + extra),
+    total: ((Math.PI * d * d) / 4) * ((2 / 3) * (d / 4) + extra),
     top: d / 4 + extra,
     kinks: [d / 4],
   })),
   fc
-    .array(fc.tuple(fc.double({ min: 0.05, max: 3, noNaN: true }), fc.double({ min: 0.1, max: 500, noNaN: true })), {
-      minLength: 2,
-      maxLength: 8,
-    })
+    .array(
+      fc.tuple(
+        fc.double({ min: 0.05, max: 3, noNaN: true }),
+        fc.double({ min: 0.1, max: 500, noNaN: true }),
+      ),
+      {
+        minLength: 2,
+        maxLength: 8,
+      },
+    )
     .map((steps) => {
       let h = 0;
       const points: Array<[number, number]> = steps.map(([dh, a], i) => {
@@ -61,8 +67,14 @@ const cases: fc.Arbitrary<Case> = fc.oneof(
         return [h, a];
       });
       let total = 0;
-      for (let i = 1; i < points.length; i++) total += ((points[i - 1][1] + points[i][1]) / 2) * (points[i][0] - points[i - 1][0]);
-      return { spec: { kind: 'table', points } as ShapeSpec, total, top: h, kinks: points.map((p) => p[0]) };
+      for (let i = 1; i < points.length; i++)
+        total += ((points[i - 1][1] + points[i][1]) / 2) * (points[i][0] - points[i - 1][0]);
+      return {
+        spec: { kind: 'table', points } as ShapeSpec,
+        total,
+        top: h,
+        kinks: points.map((p) => p[0]),
+      };
     }),
 );
 
@@ -80,14 +92,19 @@ describe('every shape', () => {
 
   it('V is increasing and A ≥ 0 across the height', () => {
     fc.assert(
-      fc.property(cases, fc.double({ min: 0, max: 1, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (c, f1, f2) => {
-        const s = makeShape(c.spec);
-        const [a, b] = f1 < f2 ? [f1, f2] : [f2, f1];
-        const ya = a * s.heightM;
-        const yb = b * s.heightM;
-        expect(s.areaM2(ya)).toBeGreaterThanOrEqual(0);
-        expect(s.volumeM3(yb)).toBeGreaterThanOrEqual(s.volumeM3(ya));
-      }),
+      fc.property(
+        cases,
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        (c, f1, f2) => {
+          const s = makeShape(c.spec);
+          const [a, b] = f1 < f2 ? [f1, f2] : [f2, f1];
+          const ya = a * s.heightM;
+          const yb = b * s.heightM;
+          expect(s.areaM2(ya)).toBeGreaterThanOrEqual(0);
+          expect(s.volumeM3(yb)).toBeGreaterThanOrEqual(s.volumeM3(ya));
+        },
+      ),
     );
   });
 

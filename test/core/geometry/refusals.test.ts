@@ -23,15 +23,44 @@ describe('makeShape refuses bad dimensions, naming the field', () => {
     [{ kind: 'cone-bottom', diameterM: 2, coneHeightM: -1 }, 'shape.coneHeightM'],
     [{ kind: 'elliptical-head-cylinder', diameterM: 2, heightM: 0.4 }, 'shape.heightM'],
     [{ kind: 'table', points: [[0, 1]] }, 'shape.points'],
-    [{ kind: 'table', points: [[0, 1], [0, 2]] }, 'shape.points.1.0'],
-    [{ kind: 'table', points: [[-1, 1], [1, 2]] }, 'shape.points.0.0'],
-    [{ kind: 'table', points: [[0, 1], [1, 0]] }, 'shape.points.1.1'],
+    [
+      {
+        kind: 'table',
+        points: [
+          [0, 1],
+          [0, 2],
+        ],
+      },
+      'shape.points.1.0',
+    ],
+    [
+      {
+        kind: 'table',
+        points: [
+          [-1, 1],
+          [1, 2],
+        ],
+      },
+      'shape.points.0.0',
+    ],
+    [
+      {
+        kind: 'table',
+        points: [
+          [0, 1],
+          [1, 0],
+        ],
+      },
+      'shape.points.1.1',
+    ],
     [{ kind: 'table', points: [[0, 1], [1]] }, 'shape.points.1'],
     [{ kind: 'pyramid', diameterM: 1 }, 'shape.kind'],
   ])('%j → %s', (spec, field) => {
     expect(refusal(spec).field).toBe(field);
   });
   it('says what it got', () => {
-    expect(refusal({ kind: 'sphere', diameterM: -2 }).message).toBe('must be a positive number (got -2)');
+    expect(refusal({ kind: 'sphere', diameterM: -2 }).message).toBe(
+      'must be a positive number (got -2)',
+    );
   });
 });

@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { InputError } from '../../../server/core/errors.js';
 import { readLevelLog } from '../../../server/core/ingest/read-log.js';
 
-const TEXT = 'Time,Level [cm]\n2026-05-04T10:00:00Z,120.0\n2026-05-04T10:00:01Z,119.5\n2026-05-04T10:00:02Z,119.0\n';
+const TEXT =
+  'Time,Level [cm]\n2026-05-04T10:00:00Z,120.0\n2026-05-04T10:00:01Z,119.5\n2026-05-04T10:00:02Z,119.0\n';
 const utf8 = (s: string) => new TextEncoder().encode(s);
 
 function utf16(s: string, le: boolean, bom: boolean): Uint8Array {
@@ -43,7 +44,8 @@ describe('text encodings', () => {
   });
   it('falls back to Latin-1 when UTF-8 is invalid, and says so', () => {
     // "Temp °C" with ° as the single byte 0xB0 (ISO 8859-1), which is invalid UTF-8.
-    const text = 'Time,Level [cm],Temp \u00b0C\n2026-05-04T10:00:00Z,120.0,12.5\n2026-05-04T10:00:01Z,119.5,12.5\n2026-05-04T10:00:02Z,119.0,12.5\n';
+    const text =
+      'Time,Level [cm],Temp \u00b0C\n2026-05-04T10:00:00Z,120.0,12.5\n2026-05-04T10:00:01Z,119.5,12.5\n2026-05-04T10:00:02Z,119.0,12.5\n';
     const bytes = Uint8Array.from(text, (c) => c.charCodeAt(0));
     const s = expectTest(bytes);
     expect(s.columns[2].header).toBe('Temp \u00b0C');
@@ -53,18 +55,29 @@ describe('text encodings', () => {
   it('refuses NUL bytes in a UTF-8 file as binary, naming the line', () => {
     const bytes = utf8(TEXT);
     bytes[TEXT.indexOf('119.5')] = 0;
-    const err = (() => { try { readLevelLog(bytes, 'log.csv'); } catch (e) { return e; } })();
+    const err = (() => {
+      try {
+        readLevelLog(bytes, 'log.csv');
+      } catch (e) {
+        return e;
+      }
+    })();
     expect(err).toBeInstanceOf(InputError);
     expect((err as InputError).message).toMatch(/binary/);
     expect((err as InputError).line).toBe(3);
   });
   it('refuses control characters', () => {
-    expect(() => readLevelLog(utf8(TEXT.replace('119.0', '119\u00070')), 'log.csv')).toThrow(/binary/);
+    expect(() => readLevelLog(utf8(TEXT.replace('119.0', '119\u00070')), 'log.csv')).toThrow(
+      /binary/,
+    );
   });
   it('refuses random bytes of a binary file', () => {
     const bytes = new Uint8Array(2000);
     let x = 12345;
-    for (let i = 0; i < bytes.length; i++) { x = (x * 1103515245 + 12345) >>> 0; bytes[i] = x >>> 24; }
+    for (let i = 0; i < bytes.length; i++) {
+      x = (x * 1103515245 + 12345) >>> 0;
+      bytes[i] = x >>> 24;
+    }
     expect(() => readLevelLog(bytes, 'x.bin')).toThrow(InputError);
   });
 });

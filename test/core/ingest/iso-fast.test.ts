@@ -14,13 +14,17 @@ describe('isoZuluMs, the fast path for YYYY-MM-DDThh:mm:ss[.fff]Z', () => {
   it('equals Date.parse and the general scanner on random instants of 1900–2200', () => {
     // Date.parse reads this form exactly (ECMAScript, Date Time String Format, via Node's Date)
     fc.assert(
-      fc.property(fc.integer({ min: Date.UTC(1900, 0, 1), max: Date.UTC(2200, 11, 31, 23, 59, 59, 999) }), fc.boolean(), (t, withMs) => {
-        const iso = new Date(withMs ? t : t - (((t % 1000) + 1000) % 1000)).toISOString();
-        const text = withMs ? iso : iso.slice(0, 19) + 'Z';
-        const fast = isoZuluMs(text, 0, text.length);
-        expect(fast).toBe(Date.parse(text));
-        expect(fast).toBe(generalMs(text));
-      }),
+      fc.property(
+        fc.integer({ min: Date.UTC(1900, 0, 1), max: Date.UTC(2200, 11, 31, 23, 59, 59, 999) }),
+        fc.boolean(),
+        (t, withMs) => {
+          const iso = new Date(withMs ? t : t - (((t % 1000) + 1000) % 1000)).toISOString();
+          const text = withMs ? iso : iso.slice(0, 19) + 'Z';
+          const fast = isoZuluMs(text, 0, text.length);
+          expect(fast).toBe(Date.parse(text));
+          expect(fast).toBe(generalMs(text));
+        },
+      ),
       { numRuns: 2000 },
     );
   });
@@ -41,12 +45,21 @@ describe('isoZuluMs, the fast path for YYYY-MM-DDThh:mm:ss[.fff]Z', () => {
       '2026/04/02T06:00:00Z',
       '2026-04-02T06:0a:00Z',
       '2026-04-02T06:00:00,000Z',
-    ]) expect(isoZuluMs(text, 0, text.length)).toBeNaN();
+    ])
+      expect(isoZuluMs(text, 0, text.length)).toBeNaN();
   });
 
   it('refuses what the general path refuses: impossible dates and clocks, years outside 1900–2200', () => {
-    for (const text of ['2026-02-29T00:00:00Z', '2026-13-01T00:00:00Z', '2026-04-00T00:00:00Z', '2026-04-02T24:00:00Z',
-      '2026-04-02T23:60:00Z', '2026-04-02T23:59:60Z', '1899-12-31T23:59:59Z', '2201-01-01T00:00:00Z']) {
+    for (const text of [
+      '2026-02-29T00:00:00Z',
+      '2026-13-01T00:00:00Z',
+      '2026-04-00T00:00:00Z',
+      '2026-04-02T24:00:00Z',
+      '2026-04-02T23:60:00Z',
+      '2026-04-02T23:59:60Z',
+      '1899-12-31T23:59:59Z',
+      '2201-01-01T00:00:00Z',
+    ]) {
       expect(isoZuluMs(text, 0, text.length)).toBeNaN();
       expect(generalMs(text)).toBeNaN();
     }

@@ -9,7 +9,12 @@ const G = 9.80665; // standard gravity, 3rd CGPM (1901)
 const one = (header: string, v: string, extra = '') =>
   `Timestamp,${header}${extra ? ',Temp (°C)' : ''}\n2026-05-04T10:00:00Z,${v}${extra ? `,${extra}` : ''}\n2026-05-04T10:00:01Z,${v}${extra ? `,${extra}` : ''}\n`;
 const refusal = (f: () => unknown): InputError => {
-  try { f(); } catch (e) { if (e instanceof InputError) return e; throw e; }
+  try {
+    f();
+  } catch (e) {
+    if (e instanceof InputError) return e;
+    throw e;
+  }
   throw new Error('expected a refusal');
 };
 
@@ -34,7 +39,8 @@ describe('pressure to head', () => {
     expect(s.levelM[0]).toBeCloseTo(1, 12);
   });
   it('takes water density from the temperature column, sample by sample, and notes it', () => {
-    const text = 'Timestamp,Pressure gauge (kPa),Temp (°F)\n2026-05-04T10:00:00Z,10,39.2\n2026-05-04T10:00:01Z,10,86\n';
+    const text =
+      'Timestamp,Pressure gauge (kPa),Temp (°F)\n2026-05-04T10:00:00Z,10,39.2\n2026-05-04T10:00:01Z,10,86\n';
     const s = read(text);
     // 39.2 °F = 4 °C and 86 °F = 30 °C (NIST SP 811 B.9: t/°C = (t/°F − 32)/1.8).
     expect(s.temperatureC![0]).toBeCloseTo(4, 12);
@@ -52,7 +58,8 @@ describe('pressure to head', () => {
     expect(s.notes.find((n) => n.code === 'density')!.message).toMatch(/as given.*not used/);
   });
   it('refuses a water temperature outside the density formula, naming the line', () => {
-    const text = 'Timestamp,Pressure gauge (kPa),Temp (°C)\n2026-05-04T10:00:00Z,10,20\n2026-05-04T10:00:01Z,10,-5\n';
+    const text =
+      'Timestamp,Pressure gauge (kPa),Temp (°C)\n2026-05-04T10:00:00Z,10,20\n2026-05-04T10:00:01Z,10,-5\n';
     const e = refusal(() => read(text));
     expect(e.line).toBe(3);
     expect(e.field).toBe('Temp (°C)');
@@ -63,14 +70,22 @@ describe('pressure to head', () => {
     expect(gauge.columns[1].role).toBe('gauge-pressure');
     expect(gauge.notes.find((n) => n.code === 'pressure-reference')!.message).toMatch(/--quantity/);
     const baro = 'Stamp,Baro (kPa)\n2026-05-04T10:00:00Z,101\n2026-05-04T10:01:00Z,101\n';
-    const abs = read(text, { fluidDensityKgM3: 1000, baro: { bytes: enc(baro), fileName: 'b.csv' } });
+    const abs = read(text, {
+      fluidDensityKgM3: 1000,
+      baro: { bytes: enc(baro), fileName: 'b.csv' },
+    });
     expect(abs.columns[1].role).toBe('absolute-pressure');
     expect(abs.levelM[0]).toBeCloseTo(10000 / (1000 * G), 9);
   });
   it('subtracts a barometric log interpolated in time from absolute pressure', () => {
-    const abs = 'Timestamp;P_abs (kPa)\n2026-05-04T10:00:30Z;111,0\n2026-05-04T10:01:00Z;110,9\n2026-05-04T10:01:30Z;110,8\n';
-    const baro = 'Stamp,Baro (hPa)\n2026-05-04T10:00:00Z,1000\n2026-05-04T10:01:00Z,1010\n2026-05-04T10:02:00Z,1020\n';
-    const s = readLevelLog(enc(abs), 'abs.csv', { baro: { bytes: enc(baro), fileName: 'baro.csv' }, fluidDensityKgM3: 1000 });
+    const abs =
+      'Timestamp;P_abs (kPa)\n2026-05-04T10:00:30Z;111,0\n2026-05-04T10:01:00Z;110,9\n2026-05-04T10:01:30Z;110,8\n';
+    const baro =
+      'Stamp,Baro (hPa)\n2026-05-04T10:00:00Z,1000\n2026-05-04T10:01:00Z,1010\n2026-05-04T10:02:00Z,1020\n';
+    const s = readLevelLog(enc(abs), 'abs.csv', {
+      baro: { bytes: enc(baro), fileName: 'baro.csv' },
+      fluidDensityKgM3: 1000,
+    });
     expect(s.levelM[0]).toBeCloseTo((111000 - 100500) / (1000 * G), 9);
     expect(s.levelM[1]).toBeCloseTo((110900 - 101000) / (1000 * G), 9);
     expect(s.levelM[2]).toBeCloseTo((110800 - 101500) / (1000 * G), 9);
@@ -79,8 +94,12 @@ describe('pressure to head', () => {
   it('refuses a barometric log that does not cover the test, naming both spans', () => {
     const abs = 'Timestamp,P_abs (kPa)\n2026-05-04T10:00:30Z,111\n2026-05-04T10:05:00Z,110\n';
     const baro = 'Stamp,Baro (hPa)\n2026-05-04T10:00:00Z,1000\n2026-05-04T10:01:00Z,1010\n';
-    const e = refusal(() => readLevelLog(enc(abs), 'abs.csv', { baro: { bytes: enc(baro), fileName: 'baro.csv' } }));
-    expect(e.message).toMatch(/10:00:00.000Z to 2026-05-04T10:01:00.000Z.*10:00:30.000Z to 2026-05-04T10:05:00.000Z/);
+    const e = refusal(() =>
+      readLevelLog(enc(abs), 'abs.csv', { baro: { bytes: enc(baro), fileName: 'baro.csv' } }),
+    );
+    expect(e.message).toMatch(
+      /10:00:00.000Z to 2026-05-04T10:01:00.000Z.*10:00:30.000Z to 2026-05-04T10:05:00.000Z/,
+    );
     expect(e.file).toBe('baro.csv');
   });
   it('refuses absolute pressure without a barometric log', () => {
@@ -88,14 +107,21 @@ describe('pressure to head', () => {
   });
   it('refuses absolute pressure against elapsed time', () => {
     const baro = 'Stamp,Baro (hPa)\n2026-05-04T10:00:00Z,1000\n2026-05-04T10:01:00Z,1010\n';
-    const e = refusal(() => read('Elapsed (s),P_abs (kPa)\n0,110\n1,110\n', { baro: { bytes: enc(baro), fileName: 'b.csv' } }));
+    const e = refusal(() =>
+      read('Elapsed (s),P_abs (kPa)\n0,110\n1,110\n', {
+        baro: { bytes: enc(baro), fileName: 'b.csv' },
+      }),
+    );
     expect(e.message).toMatch(/dates and times/);
   });
 });
 
 describe('distance from a top-mounted sensor', () => {
   it('gives level = mount elevation − distance − zero elevation', () => {
-    const s = read(one('Distance to surface (m)', '0.75'), { mountElevationM: 4, zeroElevationM: 0.5 });
+    const s = read(one('Distance to surface (m)', '0.75'), {
+      mountElevationM: 4,
+      zeroElevationM: 0.5,
+    });
     expect(s.levelM[0]).toBeCloseTo(2.75, 12);
   });
   it('refuses without the mount elevation', () => {

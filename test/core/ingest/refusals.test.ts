@@ -4,7 +4,12 @@ import { readLevelLog } from '../../../server/core/ingest/read-log.js';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 const refusal = (s: string | Uint8Array, o = {}): InputError => {
-  try { readLevelLog(typeof s === 'string' ? enc(s) : s, 'log.csv', o); } catch (e) { if (e instanceof InputError) return e; throw e; }
+  try {
+    readLevelLog(typeof s === 'string' ? enc(s) : s, 'log.csv', o);
+  } catch (e) {
+    if (e instanceof InputError) return e;
+    throw e;
+  }
   throw new Error('expected a refusal');
 };
 const rows = (n: number, cell = (i: number) => (3 - i / 1000).toFixed(3)) =>
@@ -21,10 +26,14 @@ describe('bad input is refused with a one-line reason', () => {
     expect(e.line).toBe(1);
   });
   it('no numeric level column', () => {
-    expect(refusal('Elapsed (s),Status\n0,open\n1,open\n2,open\n').message).toMatch(/no numeric level/);
+    expect(refusal('Elapsed (s),Status\n0,open\n1,open\n2,open\n').message).toMatch(
+      /no numeric level/,
+    );
   });
   it('a level column of text', () => {
-    expect(refusal('Elapsed (s),Level (m)\n0,high\n1,high\n2,low\n', { levelColumn: 2 }).message).toMatch(/does not hold numbers/);
+    expect(
+      refusal('Elapsed (s),Level (m)\n0,high\n1,high\n2,low\n', { levelColumn: 2 }).message,
+    ).toMatch(/does not hold numbers/);
   });
   it('a single data row', () => {
     const e = refusal('Elapsed (s),Level (m)\n0,1.5\n');
@@ -32,7 +41,9 @@ describe('bad input is refused with a one-line reason', () => {
     expect(e.line).toBe(2);
   });
   it('a file over the size limit', () => {
-    expect(refusal(`Elapsed (s),Level (m)\n${rows(10)}\n`, { maxBytes: 50 }).message).toMatch(/more than the 50 allowed/);
+    expect(refusal(`Elapsed (s),Level (m)\n${rows(10)}\n`, { maxBytes: 50 }).message).toMatch(
+      /more than the 50 allowed/,
+    );
   });
   it('no time column', () => {
     expect(refusal('Level (m),Temp (C)\n1.0,12\n0.9,12\n').message).toMatch(/--time-column/);

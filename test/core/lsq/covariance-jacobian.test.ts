@@ -28,7 +28,7 @@ describe('covarianceFromJacobian (SVD, ml-matrix)', () => {
   it('keeps the digits of columns of very different size, and says when columns cannot be told apart', () => {
     const scaled = Float64Array.from(t.flatMap((x) => [1e-6, x * 1e3]));
     const c = covarianceFromJacobian(scaled, m, 2, new Float64Array(m).fill(1));
-    expect(c.unscaledCovariance[0] / (sumSq / (m * sxx) * 1e12) - 1).toBeCloseTo(0, 10);
+    expect(c.unscaledCovariance[0] / ((sumSq / (m * sxx)) * 1e12) - 1).toBeCloseTo(0, 10);
     const twin = Float64Array.from(t.flatMap((x) => [x, 2 * x]));
     expect(covarianceFromJacobian(twin, m, 2, new Float64Array(m).fill(1)).rank).toBe(1);
   });

@@ -16,7 +16,11 @@ function noise(count: number, scale: number, seed = 12345): Float64Array {
 }
 
 /** y ≈ a·exp(−k·t), parameters [a, k]. */
-function decayProblem(t: Float64Array, y: Float64Array, extra: Partial<LeastSquaresProblem> = {}): LeastSquaresProblem {
+function decayProblem(
+  t: Float64Array,
+  y: Float64Array,
+  extra: Partial<LeastSquaresProblem> = {},
+): LeastSquaresProblem {
   return {
     m: t.length,
     n: 2,
@@ -105,7 +109,10 @@ describe('bounds', () => {
   const { t, y } = decayData();
   it('keeps the solution inside the box and reports the active bound', () => {
     // The free fit has k ≈ 0.4; an upper bound of 0.3 must be active.
-    const problem = decayProblem(t, y, { lower: new Float64Array([0, 0]), upper: new Float64Array([10, 0.3]) });
+    const problem = decayProblem(t, y, {
+      lower: new Float64Array([0, 0]),
+      upper: new Float64Array([10, 0.3]),
+    });
     const res = solveLeastSquares(problem, new Float64Array([1, 0.1]));
     expect(res.converged).toBe(true);
     expect(res.p[1]).toBe(0.3);
@@ -121,7 +128,10 @@ describe('bounds', () => {
     expect(res.p[0]).toBeCloseTo(num / den, 9);
   });
   it('projects a start outside the box onto it', () => {
-    const problem = decayProblem(t, y, { lower: new Float64Array([0, 0.5]), upper: new Float64Array([10, 1]) });
+    const problem = decayProblem(t, y, {
+      lower: new Float64Array([0, 0.5]),
+      upper: new Float64Array([10, 1]),
+    });
     const res = solveLeastSquares(problem, new Float64Array([-5, 3]));
     expect(res.p[1]).toBe(0.5);
     expect(res.p[0]).toBeGreaterThanOrEqual(0);
@@ -184,12 +194,16 @@ describe('stop reasons', () => {
     expect(res.converged).toBe(true);
   });
   it('max-iterations', () => {
-    const res = solveLeastSquares(decayProblem(t, y), new Float64Array([1, 1]), { maxIterations: 1 });
+    const res = solveLeastSquares(decayProblem(t, y), new Float64Array([1, 1]), {
+      maxIterations: 1,
+    });
     expect(res.stopReason).toBe('max-iterations');
     expect(res.converged).toBe(false);
   });
   it('max-evaluations', () => {
-    const res = solveLeastSquares(decayProblem(t, y), new Float64Array([1, 1]), { maxEvaluations: 3 });
+    const res = solveLeastSquares(decayProblem(t, y), new Float64Array([1, 1]), {
+      maxEvaluations: 3,
+    });
     expect(res.stopReason).toBe('max-evaluations');
     expect(res.converged).toBe(false);
   });
@@ -214,8 +228,13 @@ describe('stop reasons', () => {
   });
   it('refuses malformed input with InputError', () => {
     expect(() => solveLeastSquares(decayProblem(t, y), new Float64Array([1]))).toThrow(InputError);
-    expect(() => solveLeastSquares(decayProblem(t.subarray(0, 1), y), new Float64Array([1, 1]))).toThrow(InputError);
-    const bad = decayProblem(t, y, { lower: new Float64Array([1, 1]), upper: new Float64Array([0, 2]) });
+    expect(() =>
+      solveLeastSquares(decayProblem(t.subarray(0, 1), y), new Float64Array([1, 1])),
+    ).toThrow(InputError);
+    const bad = decayProblem(t, y, {
+      lower: new Float64Array([1, 1]),
+      upper: new Float64Array([0, 2]),
+    });
     expect(() => solveLeastSquares(bad, new Float64Array([1, 1]))).toThrow(InputError);
   });
 });

@@ -28,10 +28,14 @@ describe('exponential decay against ml-levenberg-marquardt', () => {
     const ours = solveLeastSquares(problem, new Float64Array([1, 0.3]));
     const ref = levenbergMarquardt(
       { x: t, y },
-      ([a, k]: number[]) => (x: number) => a * Math.exp(-k * x),
+      ([a, k]: number[]) =>
+        (x: number) =>
+          a * Math.exp(-k * x),
       {
         initialValues: [1, 0.3],
-        jacobianFunction: ([a, k]: number[]) => (x: number) => [Math.exp(-k * x), -a * x * Math.exp(-k * x)],
+        jacobianFunction:
+          ([a, k]: number[]) =>
+          (x: number) => [Math.exp(-k * x), -a * x * Math.exp(-k * x)],
         maxIterations: 500,
         errorTolerance: 0,
         damping: 1e-2,

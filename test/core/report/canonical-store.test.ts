@@ -19,21 +19,68 @@ function storeRules(value: unknown): string {
   }
   if (Array.isArray(value)) return `[${value.map(storeRules).join(',')}]`;
   const obj = value as Record<string, unknown>;
-  const keys = Object.keys(obj).filter((k) => obj[k] !== undefined).sort();
+  const keys = Object.keys(obj)
+    .filter((k) => obj[k] !== undefined)
+    .sort();
   return `{${keys.map((k) => `${JSON.stringify(k)}:${storeRules(obj[k])}`).join(',')}}`;
 }
 
-const numbers = [0, -0, 1, -1, 0.1, 1 / 3, 2 ** 53, 2 ** 53 + 2, -(2 ** 31), 1e21, 1e-7, 5e-324, Number.MAX_VALUE, NaN, Infinity, -Infinity, 0.61234567891234, 9.80665];
-const strings = ['', 'a"b\\c', 'line\nfeed\ttab\u0000nul', '\u2028\u2029', 'é', 'e\u0301', '水位', '😀', '\ud800', '\udfff', 'z', 'Z', '~'];
+const numbers = [
+  0,
+  -0,
+  1,
+  -1,
+  0.1,
+  1 / 3,
+  2 ** 53,
+  2 ** 53 + 2,
+  -(2 ** 31),
+  1e21,
+  1e-7,
+  5e-324,
+  Number.MAX_VALUE,
+  NaN,
+  Infinity,
+  -Infinity,
+  0.61234567891234,
+  9.80665,
+];
+const strings = [
+  '',
+  'a"b\\c',
+  'line\nfeed\ttab\u0000nul',
+  '\u2028\u2029',
+  'é',
+  'e\u0301',
+  '水位',
+  '😀',
+  '\ud800',
+  '\udfff',
+  'z',
+  'Z',
+  '~',
+];
 
 describe("core's canonical JSON against the rules the store's hashes were written with", () => {
   it('numbers, unicode strings and keys, nested arrays, undefined members', () => {
     const cases: unknown[] = [
-      ...numbers, ...strings, null, true, false, undefined,
-      numbers, [strings, [numbers, [[], [{}]]]],
+      ...numbers,
+      ...strings,
+      null,
+      true,
+      false,
+      undefined,
+      numbers,
+      [strings, [numbers, [[], [{}]]]],
       Object.fromEntries(strings.map((s, i) => [s, numbers[i]])),
       { b: 1, a: { d: [1, { z: 1, y: 2 }], c: undefined }, list: [undefined, null, NaN] },
-      { fit: { effectiveAreaM2: { value: 7.6e-4, ci95: [7.5e-4, 7.7e-4] }, warnings: [], note: undefined } },
+      {
+        fit: {
+          effectiveAreaM2: { value: 7.6e-4, ci95: [7.5e-4, 7.7e-4] },
+          warnings: [],
+          note: undefined,
+        },
+      },
       { before: null, after: { role: 'reviewer', at: '2026-03-10T08:15:00.000Z' } },
     ];
     for (const c of cases) {
@@ -49,10 +96,28 @@ describe("core's canonical JSON against the rules the store's hashes were writte
   });
 
   it('any JSON-like value (fast-check, 300 cases, fixed seed)', () => {
-    const leaf = fc.oneof(fc.double(), fc.integer(), fc.string({ unit: 'binary' }), fc.boolean(), fc.constant(null), fc.constant(undefined));
+    const leaf = fc.oneof(
+      fc.double(),
+      fc.integer(),
+      fc.string({ unit: 'binary' }),
+      fc.boolean(),
+      fc.constant(null),
+      fc.constant(undefined),
+    );
     const value = fc.letrec((tie) => ({
-      node: fc.oneof({ depthSize: 'small' }, leaf, fc.array(tie('node')), fc.dictionary(fc.string({ unit: 'binary' }), tie('node'))),
+      node: fc.oneof(
+        { depthSize: 'small' },
+        leaf,
+        fc.array(tie('node')),
+        fc.dictionary(fc.string({ unit: 'binary' }), tie('node')),
+      ),
     })).node;
-    fc.assert(fc.property(value, (v) => canonicalJson(v) === storeRules(v) && storeCanonicalJson(v) === storeRules(v)), { numRuns: 300, seed: 20260310 });
+    fc.assert(
+      fc.property(
+        value,
+        (v) => canonicalJson(v) === storeRules(v) && storeCanonicalJson(v) === storeRules(v),
+      ),
+      { numRuns: 300, seed: 20260310 },
+    );
   });
 });

@@ -14,7 +14,9 @@ describe('csvCell', () => {
     expect(csvCell('@cmd')).toBe(`"'@cmd"`);
     expect(csvCell('\tx')).toBe(`"'\tx"`);
     expect(csvCell('\rx')).toBe(`"'\rx"`);
-    expect(csvCell('=HYPERLINK("http://example.invalid")')).toBe(`"'=HYPERLINK(""http://example.invalid"")"`);
+    expect(csvCell('=HYPERLINK("http://example.invalid")')).toBe(
+      `"'=HYPERLINK(""http://example.invalid"")"`,
+    );
   });
 
   it('quotes per RFC 4180 and leaves plain text and numbers alone', () => {
@@ -26,6 +28,11 @@ describe('csvCell', () => {
     expect(csvCell(Number.NaN)).toBe('');
     expect(csvCell(null)).toBe('');
     expect(csvCell(true)).toBe('true');
-    expect(csvText([['a', 1], ['=b', -2]])).toBe(`a,1\r\n"'=b",-2\r\n`);
+    expect(
+      csvText([
+        ['a', 1],
+        ['=b', -2],
+      ]),
+    ).toBe(`a,1\r\n"'=b",-2\r\n`);
   });
 });

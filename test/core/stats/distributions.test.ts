@@ -40,13 +40,24 @@ describe('tQuantile', () => {
   });
   it('is symmetric about zero', () => {
     fc.assert(
-      fc.property(fc.double({ min: 0.01, max: 0.99, noNaN: true }), fc.double({ min: 0.5, max: 1000, noNaN: true }), (p, v) =>
-        Math.abs(tQuantile(p, v) + tQuantile(1 - p, v)) <= 1e-9 * Math.max(1, Math.abs(tQuantile(p, v))),
+      fc.property(
+        fc.double({ min: 0.01, max: 0.99, noNaN: true }),
+        fc.double({ min: 0.5, max: 1000, noNaN: true }),
+        (p, v) =>
+          Math.abs(tQuantile(p, v) + tQuantile(1 - p, v)) <=
+          1e-9 * Math.max(1, Math.abs(tQuantile(p, v))),
       ),
     );
   });
   it('refuses probabilities outside (0, 1) and non-positive degrees of freedom', () => {
-    for (const [p, v] of [[0, 5], [1, 5], [1.2, 5], [0.5, 0], [0.5, -3], [Number.NaN, 3]]) {
+    for (const [p, v] of [
+      [0, 5],
+      [1, 5],
+      [1.2, 5],
+      [0.5, 0],
+      [0.5, -3],
+      [Number.NaN, 3],
+    ]) {
       expect(() => tQuantile(p, v)).toThrow(InputError);
     }
   });
@@ -69,7 +80,8 @@ describe('fCdf', () => {
     }
   });
   it('F(1, ν) is the square of t(ν): P(F ≤ t²) = 2·P(T ≤ t) − 1', () => {
-    for (const v of [3, 7.5, 40]) expect(fCdf(tQuantile(0.975, v) ** 2, 1, v)).toBeCloseTo(0.95, 12);
+    for (const v of [3, 7.5, 40])
+      expect(fCdf(tQuantile(0.975, v) ** 2, 1, v)).toBeCloseTo(0.95, 12);
   });
   it('is 0 at and below zero, and refuses bad degrees of freedom', () => {
     expect(fCdf(0, 3, 4)).toBe(0);

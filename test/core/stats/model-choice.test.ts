@@ -16,7 +16,13 @@ describe('akaike', () => {
     expect(akaike(1, 4, 2).aicc).toBe(Infinity);
   });
   it('refuses impossible arguments', () => {
-    for (const [s, n, k] of [[0, 10, 2], [-1, 10, 2], [1, 0, 2], [1, 10, -1], [1, 10.5, 2]]) {
+    for (const [s, n, k] of [
+      [0, 10, 2],
+      [-1, 10, 2],
+      [1, 0, 2],
+      [1, 10, -1],
+      [1, 10.5, 2],
+    ]) {
       expect(() => akaike(s, n, k)).toThrow(InputError);
     }
   });

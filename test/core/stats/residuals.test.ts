@@ -28,16 +28,19 @@ describe('residualDiagnostics', () => {
   it('keeps r₁ in [−1, 1] and DW in [0, 4]', () => {
     // Both bounds follow from the Cauchy–Schwarz inequality (ordinary algebra).
     fc.assert(
-      fc.property(fc.array(fc.double({ min: -1e3, max: 1e3, noNaN: true }), { minLength: 2, maxLength: 50 }), (xs) => {
-        const d = residualDiagnostics(Float64Array.from(xs));
-        if (!Number.isNaN(d.lag1Autocorrelation)) {
-          expect(Math.abs(d.lag1Autocorrelation)).toBeLessThanOrEqual(1 + 1e-12);
-        }
-        if (!Number.isNaN(d.durbinWatson)) {
-          expect(d.durbinWatson).toBeGreaterThanOrEqual(0);
-          expect(d.durbinWatson).toBeLessThanOrEqual(4 + 1e-12);
-        }
-      }),
+      fc.property(
+        fc.array(fc.double({ min: -1e3, max: 1e3, noNaN: true }), { minLength: 2, maxLength: 50 }),
+        (xs) => {
+          const d = residualDiagnostics(Float64Array.from(xs));
+          if (!Number.isNaN(d.lag1Autocorrelation)) {
+            expect(Math.abs(d.lag1Autocorrelation)).toBeLessThanOrEqual(1 + 1e-12);
+          }
+          if (!Number.isNaN(d.durbinWatson)) {
+            expect(d.durbinWatson).toBeGreaterThanOrEqual(0);
+            expect(d.durbinWatson).toBeLessThanOrEqual(4 + 1e-12);
+          }
+        },
+      ),
     );
   });
 });

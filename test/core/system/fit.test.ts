@@ -17,13 +17,27 @@ function run(net: VesselNetwork, theta: Float64Array, seed: number, durationS: n
     quantumM: 0.001,
     seed,
   });
-  const aligned = alignLogs(logs.map((l) => ({ ...l, fileName: `v${l.vessel}.csv`, t0EpochMs: 1e12 })));
+  const aligned = alignLogs(
+    logs.map((l) => ({ ...l, fileName: `v${l.vessel}.csv`, t0EpochMs: 1e12 })),
+  );
   return fitSystem({ network: net, logs: aligned.logs });
 }
 
 const cases = [
-  { name: 'two vessels, free jet', rig: TWO_FREE, cd: [0.61, 0.63], surface: [2.0, 0.6], durationS: 900 },
-  { name: 'three vessels, submerged then free', rig: THREE_MIXED, cd: [0.62, 0.6, 0.64], surface: [2.2, 0.8, 1.0], durationS: 1200 },
+  {
+    name: 'two vessels, free jet',
+    rig: TWO_FREE,
+    cd: [0.61, 0.63],
+    surface: [2.0, 0.6],
+    durationS: 900,
+  },
+  {
+    name: 'three vessels, submerged then free',
+    rig: THREE_MIXED,
+    cd: [0.62, 0.6, 0.64],
+    surface: [2.2, 0.8, 1.0],
+    durationS: 1200,
+  },
 ];
 
 describe('joint fit of connected vessels (simulated tests with known truth, invented rigs)', () => {
@@ -40,7 +54,9 @@ describe('joint fit of connected vessels (simulated tests with known truth, inve
         expect(a.ci95[0]).toBeLessThanOrEqual(t);
         expect(a.ci95[1]).toBeGreaterThanOrEqual(t);
         // Cd carries the bore tolerance (GUM combination, fit/coefficient.ts), so its interval is wider
-        expect(fit.outlets[v.id].dischargeCoefficient.relativeStandardUncertainty).toBeGreaterThan(a.relativeStandardUncertainty);
+        expect(fit.outlets[v.id].dischargeCoefficient.relativeStandardUncertainty).toBeGreaterThan(
+          a.relativeStandardUncertainty,
+        );
       });
       // each log's AR(1) factor was measured and applied
       for (const d of fit.vessels) expect(d.varianceInflation).toBeGreaterThan(1.3);
@@ -79,6 +95,8 @@ describe('joint fit of connected vessels (simulated tests with known truth, inve
   it('refuses a system with a vessel left without a log', () => {
     const net = rig(TWO_FREE);
     const t = Float64Array.from({ length: 10 }, (_, i) => i);
-    expect(() => fitSystem({ network: net, logs: [{ vessel: 0, fileName: 'a.csv', timeS: t, levelM: t }] })).toThrow(/no log given for vessel "T2"/);
+    expect(() =>
+      fitSystem({ network: net, logs: [{ vessel: 0, fileName: 'a.csv', timeS: t, levelM: t }] }),
+    ).toThrow(/no log given for vessel "T2"/);
   });
 });

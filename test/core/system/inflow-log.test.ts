@@ -31,9 +31,10 @@ function pumpTruth(vessel: number, durationS: number): InflowInput {
   return { vessel, timeS, flowM3S: Float64Array.from(timeS, pump) };
 }
 
-describe('readFlowLog: a flow meter\'s log through ingest\'s conventions', () => {
+describe("readFlowLog: a flow meter's log through ingest's conventions", () => {
   it('reads a preamble, semicolons, decimal commas, day-first dates and L/min from the header', () => {
-    const text = 'Meter: invented\nSite: test\n\nDatum;Zeit;Zufluss [L/min]\n07.04.2026;09:00:00;30,0\n07.04.2026;09:00:02;60,0\n07.04.2026;09:00:04;90,0\n13.04.2026;09:00:06;90,0\n';
+    const text =
+      'Meter: invented\nSite: test\n\nDatum;Zeit;Zufluss [L/min]\n07.04.2026;09:00:00;30,0\n07.04.2026;09:00:02;60,0\n07.04.2026;09:00:04;90,0\n13.04.2026;09:00:06;90,0\n';
     const s = readFlowLog(enc(text), 'meter.csv');
     expect(s.unit).toBe('L/min');
     expect(Array.from(s.timeS.subarray(0, 3))).toEqual([0, 2, 4]);
@@ -43,7 +44,7 @@ describe('readFlowLog: a flow meter\'s log through ingest\'s conventions', () =>
     expect(s.t0EpochMs).toBe(Date.UTC(2026, 3, 7, 9, 0, 0));
   });
 
-  it('reads elapsed seconds with a flow unit given apart, and a unit as the header\'s last word', () => {
+  it("reads elapsed seconds with a flow unit given apart, and a unit as the header's last word", () => {
     const a = readFlowLog(enc('elapsed [s],flow\n0,1.5\n10,2.5\n'), 'a.csv', { unit: 'L/s' });
     expect(a.t0EpochMs).toBeNull();
     expect(Array.from(a.flowM3S)).toEqual([0.0015, 0.0025]);
@@ -72,22 +73,35 @@ describe('a logged inflow inside the ODE (piecewise linear in time)', () => {
     const logTimes = Float64Array.from([0, 3.3, 17, 17.5, 90, 211, 400.2, 600]);
     const a = new Float64Array(61);
     const b = new Float64Array(61);
-    integrateSystem(one, th, t, a, null, { inflows: [{ vessel: 0, constantM3S: 0.001 }], free: new Int32Array(0) });
-    integrateSystem(one, th, t, b, null, { inflows: [{ vessel: 0, timeS: logTimes, flowM3S: new Float64Array(logTimes.length).fill(0.001) }], free: new Int32Array(0) });
+    integrateSystem(one, th, t, a, null, {
+      inflows: [{ vessel: 0, constantM3S: 0.001 }],
+      free: new Int32Array(0),
+    });
+    integrateSystem(one, th, t, b, null, {
+      inflows: [
+        { vessel: 0, timeS: logTimes, flowM3S: new Float64Array(logTimes.length).fill(0.001) },
+      ],
+      free: new Int32Array(0),
+    });
     // 1 µm: a thousandth of the logs' 1 mm quantisation; only the step grids differ
     for (let i = 0; i < 61; i++) expect(Math.abs(a[i] - b[i])).toBeLessThan(1e-6);
   });
 
   it('with the outlet shut, the level is the exact integral of the piecewise-linear inflow (closed form)', () => {
     const th = truthTheta(one, [0], [0.5]);
-    const meter: InflowInput = { vessel: 0, timeS: Float64Array.from({ length: 301 }, (_, i) => i * 2), flowM3S: new Float64Array(301) };
+    const meter: InflowInput = {
+      vessel: 0,
+      timeS: Float64Array.from({ length: 301 }, (_, i) => i * 2),
+      flowM3S: new Float64Array(301),
+    };
     meter.flowM3S!.set(Array.from(meter.timeS!, pump));
     const t = Float64Array.from({ length: 41 }, (_, i) => i * 15 + 0.7);
     const eta = new Float64Array(41);
     integrateSystem(one, th, t, eta, null, { inflows: [meter], free: new Int32Array(0) });
     // η(t) = η0 + (1/A)·∫0^t Q dt, and the integral of a piecewise-linear Q is the trapezoid sum (ordinary calculus)
     const integral = (x: number): number => {
-      const ts = meter.timeS!, qs = meter.flowM3S!;
+      const ts = meter.timeS!,
+        qs = meter.flowM3S!;
       let v = 0;
       for (let i = 1; i < ts.length && ts[i - 1] < x; i++) {
         const b = Math.min(ts[i], x);
@@ -96,13 +110,18 @@ describe('a logged inflow inside the ODE (piecewise linear in time)', () => {
       }
       return v;
     };
-    for (let i = 0; i < 41; i++) expect(Math.abs(eta[i] - (0.5 + integral(t[i]) / area))).toBeLessThan(1e-9);
+    for (let i = 0; i < 41; i++)
+      expect(Math.abs(eta[i] - (0.5 + integral(t[i]) / area))).toBeLessThan(1e-9);
   });
 
   it('a draining vessel fed by a cycling pump agrees with a fine-step reference (RK4 at 0.01 s, written here)', () => {
     const cd = 0.61;
     const th = truthTheta(one, [cd], [1.8]);
-    const meter: InflowInput = { vessel: 0, timeS: Float64Array.from({ length: 601 }, (_, i) => i), flowM3S: new Float64Array(601) };
+    const meter: InflowInput = {
+      vessel: 0,
+      timeS: Float64Array.from({ length: 601 }, (_, i) => i),
+      flowM3S: new Float64Array(601),
+    };
     meter.flowM3S!.set(Array.from(meter.timeS!, pump));
     const ca = th[P.effectiveArea];
     const zo = one.vessels[0].outletElevationM;
@@ -117,7 +136,10 @@ describe('a logged inflow inside the ODE (piecewise linear in time)', () => {
     const dt = 0.01;
     for (let s = 0; s < 60000; s++) {
       const x = s * dt;
-      const k1 = f(x, h), k2 = f(x + dt / 2, h + (dt / 2) * k1), k3 = f(x + dt / 2, h + (dt / 2) * k2), k4 = f(x + dt, h + dt * k3);
+      const k1 = f(x, h),
+        k2 = f(x + dt / 2, h + (dt / 2) * k1),
+        k3 = f(x + dt / 2, h + (dt / 2) * k2),
+        k4 = f(x + dt, h + dt * k3);
       h += (dt / 6) * (k1 + 2 * k2 + 2 * k3 + k4);
       if ((s + 1) % 1000 === 0) ref.push(h);
     }
@@ -130,11 +152,20 @@ describe('a logged inflow inside the ODE (piecewise linear in time)', () => {
   });
 });
 
-describe('inflowOnFitClock: the log placed on the levels\' clock', () => {
+describe("inflowOnFitClock: the log placed on the levels' clock", () => {
   const t0 = Date.UTC(2026, 3, 7, 9, 0, 0);
-  const levels = [0, 1].map((v) => ({ vessel: v, fileName: `v${v}.csv`, timeS: Float64Array.from({ length: 101 }, (_, i) => i * 2), levelM: new Float64Array(101).fill(1), t0EpochMs: t0 + 10_000 }));
+  const levels = [0, 1].map((v) => ({
+    vessel: v,
+    fileName: `v${v}.csv`,
+    timeS: Float64Array.from({ length: 101 }, (_, i) => i * 2),
+    levelM: new Float64Array(101).fill(1),
+    t0EpochMs: t0 + 10_000,
+  }));
   const series = (start: number, end: number, abs: boolean): FlowSeries => ({
-    fileName: 'pump.csv', unit: 'L/s', column: 'flow', warnings: [],
+    fileName: 'pump.csv',
+    unit: 'L/s',
+    column: 'flow',
+    warnings: [],
     timeS: Float64Array.from({ length: end - start + 1 }, (_, i) => i),
     flowM3S: Float64Array.from({ length: end - start + 1 }, (_, i) => (start + i) * 1e-6),
     t0EpochMs: abs ? t0 + start * 1000 : null,
@@ -150,25 +181,41 @@ describe('inflowOnFitClock: the log placed on the levels\' clock', () => {
     expect(f.vessel).toBe(1);
   });
 
-  it('elapsed-time logs: placed on the levels\' elapsed time (t = 0 at their latest first sample)', () => {
-    const bare = levels.map((l, i) => ({ ...l, t0EpochMs: null, timeS: Float64Array.from(l.timeS, (t) => t + 5 * i) }));
+  it("elapsed-time logs: placed on the levels' elapsed time (t = 0 at their latest first sample)", () => {
+    const bare = levels.map((l, i) => ({
+      ...l,
+      t0EpochMs: null,
+      timeS: Float64Array.from(l.timeS, (t) => t + 5 * i),
+    }));
     const a = alignLogs(bare);
     const f = inflowOnFitClock(series(0, 400, false), 0, a);
     // the second log starts at 5 s, so the flow reading at 5 s is the fit's t = 0
     expect(f.timeS![0]).toBe(0);
     expect(f.flowM3S![0]).toBeCloseTo(5e-6, 15);
-    expect(() => inflowOnFitClock(series(0, 400, true), 0, a)).toThrow(/has timestamps while the level logs have elapsed time only/);
+    expect(() => inflowOnFitClock(series(0, 400, true), 0, a)).toThrow(
+      /has timestamps while the level logs have elapsed time only/,
+    );
   });
 
   it('the system file takes a unit for a log and refuses one that is not a flow unit', () => {
-    const body = (unit: string) => ({ name: 'x', vessels: rigSpecBody(), inflows: [{ to: 'T1', log: 'pump.csv', unit }] });
-    expect(validateSystem(body('L/min')).inflows[0]).toEqual({ to: 'T1', log: 'pump.csv', unit: 'L/min' });
+    const body = (unit: string) => ({
+      name: 'x',
+      vessels: rigSpecBody(),
+      inflows: [{ to: 'T1', log: 'pump.csv', unit }],
+    });
+    expect(validateSystem(body('L/min')).inflows[0]).toEqual({
+      to: 'T1',
+      log: 'pump.csv',
+      unit: 'L/min',
+    });
     expect(() => validateSystem(body('m'))).toThrow(/not a flow unit/);
   });
 
   it('refuses a log that does not cover the fitted span, naming both spans', () => {
     const a = alignLogs(levels);
-    expect(() => inflowOnFitClock(series(15, 400, true), 0, a)).toThrow(/covers 2026-04-07T09:00:15.000Z to 2026-04-07T09:06:40.000Z but the fitted span is 2026-04-07T09:00:10.000Z to 2026-04-07T09:03:30.000Z/);
+    expect(() => inflowOnFitClock(series(15, 400, true), 0, a)).toThrow(
+      /covers 2026-04-07T09:00:15.000Z to 2026-04-07T09:06:40.000Z but the fitted span is 2026-04-07T09:00:10.000Z to 2026-04-07T09:03:30.000Z/,
+    );
     expect(() => inflowOnFitClock(series(0, 150, true), 0, a)).toThrow(/fitted span/);
     expect(() => inflowOnFitClock(series(0, 400, false), 0, a)).toThrow(/elapsed time only/);
   });
@@ -180,14 +227,25 @@ describe('joint fit with a logged, varying inflow (simulated, invented rig)', ()
     const truth = truthTheta(net, [0.61, 0.63], [1.9, 0.6]);
     const durationS = 900;
     const logs = simulateSystemTest({
-      network: net, theta: truth, inflows: [pumpTruth(0, durationS + 5)], durationS,
-      sampleIntervalS: [1, 2], sampleOffsetS: [0, 0.3], noiseM: 0.0015, noiseLag1: 0.4, quantumM: 0.001, seed: 23,
+      network: net,
+      theta: truth,
+      inflows: [pumpTruth(0, durationS + 5)],
+      durationS,
+      sampleIntervalS: [1, 2],
+      sampleOffsetS: [0, 0.3],
+      noiseM: 0.0015,
+      noiseLag1: 0.4,
+      quantumM: 0.001,
+      seed: 23,
     });
     const t0 = Date.UTC(2026, 3, 7, 9, 0, 0);
-    const aligned = alignLogs(logs.map((l) => ({ ...l, fileName: `v${l.vessel}.csv`, t0EpochMs: t0 })));
+    const aligned = alignLogs(
+      logs.map((l) => ({ ...l, fileName: `v${l.vessel}.csv`, t0EpochMs: t0 })),
+    );
     // the meter reads every 2 s, from 4 s before the levels start, to 0.01 L/s
     const lines = ['timestamp,inflow [L/s]'];
-    for (let s = -4; s <= durationS + 4; s += 2) lines.push(`${new Date(t0 + s * 1000).toISOString()},${(pump(s) * 1000).toFixed(2)}`);
+    for (let s = -4; s <= durationS + 4; s += 2)
+      lines.push(`${new Date(t0 + s * 1000).toISOString()},${(pump(s) * 1000).toFixed(2)}`);
     const meter = readFlowLog(enc(lines.join('\n') + '\n'), 'pump.csv');
     const inflow = inflowOnFitClock(meter, 0, aligned);
     const fit = fitSystem({ network: net, logs: aligned.logs, inflows: [inflow] });
@@ -202,10 +260,24 @@ describe('joint fit with a logged, varying inflow (simulated, invented rig)', ()
     // the same test fitted as if the pump's mean flow were constant is visibly wrong (the log matters)
     let mean = 0;
     for (let s = 0; s < durationS; s++) mean += pump(s + 0.5) / durationS;
-    const wrong = fitSystem({ network: net, logs: aligned.logs, inflows: [{ vessel: 0, constantM3S: mean }] });
-    const worst = Math.max(...net.vessels.map((v, i) => Math.abs(wrong.outlets[v.id].effectiveAreaM2.value / truth[i * PER_VESSEL + P.effectiveArea] - 1)));
-    const rmsWrong = Math.sqrt(wrong.residuals[0].reduce((s, r) => s + r * r, 0) / wrong.residuals[0].length);
-    const rmsRight = Math.sqrt(fit.residuals[0].reduce((s, r) => s + r * r, 0) / fit.residuals[0].length);
+    const wrong = fitSystem({
+      network: net,
+      logs: aligned.logs,
+      inflows: [{ vessel: 0, constantM3S: mean }],
+    });
+    const worst = Math.max(
+      ...net.vessels.map((v, i) =>
+        Math.abs(
+          wrong.outlets[v.id].effectiveAreaM2.value / truth[i * PER_VESSEL + P.effectiveArea] - 1,
+        ),
+      ),
+    );
+    const rmsWrong = Math.sqrt(
+      wrong.residuals[0].reduce((s, r) => s + r * r, 0) / wrong.residuals[0].length,
+    );
+    const rmsRight = Math.sqrt(
+      fit.residuals[0].reduce((s, r) => s + r * r, 0) / fit.residuals[0].length,
+    );
     expect(worst > 0.005 || rmsWrong > 2 * rmsRight).toBe(true);
   });
 });

@@ -11,7 +11,11 @@ const g = 9.80665; // standard gravity (CGPM 1901)
 
 function model(vessels: typeof TWO_FREE, cd: number[]): SystemModel {
   const network = rig(vessels);
-  const theta = truthTheta(network, cd, vessels.map(() => 1));
+  const theta = truthTheta(
+    network,
+    cd,
+    vessels.map(() => 1),
+  );
   const free = Int32Array.from(network.vessels.map((_, i) => i * PER_VESSEL + P.effectiveArea));
   const k = free.length;
   const covariance = new Float64Array(k * k);
@@ -54,7 +58,8 @@ describe('linear model about an operating point', () => {
       dn[j] -= h;
       const fu = f(up);
       const fd = f(dn);
-      for (let i = 0; i < n; i++) expect(Math.abs(lm.a[i * n + j].value - (fu[i] - fd[i]) / (2 * h))).toBeLessThan(1e-8);
+      for (let i = 0; i < n; i++)
+        expect(Math.abs(lm.a[i * n + j].value - (fu[i] - fd[i]) / (2 * h))).toBeLessThan(1e-8);
     }
   });
 
@@ -67,13 +72,19 @@ describe('linear model about an operating point', () => {
     const b = Float64Array.from(lm.b, (e) => e.value);
     const relErr = (dq: number) => {
       const theta = Float64Array.from(m.theta);
-      for (let i = 0; i < n; i++) theta[i * PER_VESSEL + P.initialReading] = lm.operatingLevelsM[i] - theta[i * PER_VESSEL + P.sensorZero];
+      for (let i = 0; i < n; i++)
+        theta[i * PER_VESSEL + P.initialReading] =
+          lm.operatingLevelsM[i] - theta[i * PER_VESSEL + P.sensorZero];
       const t = 200;
       const eta = new Float64Array(n);
-      integrateSystem(m.network, theta, Float64Array.of(t), eta, null, { inflows: [{ vessel: 0, constantM3S: q[0] + dq }], free: new Int32Array(0) });
+      integrateSystem(m.network, theta, Float64Array.of(t), eta, null, {
+        inflows: [{ vessel: 0, constantM3S: q[0] + dq }],
+        free: new Int32Array(0),
+      });
       const x = linearStepResponse(a, b, Float64Array.of(dq, 0, 0), n, t, 4000);
       let worst = 0;
-      for (let i = 0; i < n; i++) worst = Math.max(worst, Math.abs(eta[i] - lm.operatingLevelsM[i] - x[i]) / Math.abs(x[i]));
+      for (let i = 0; i < n; i++)
+        worst = Math.max(worst, Math.abs(eta[i] - lm.operatingLevelsM[i] - x[i]) / Math.abs(x[i]));
       return worst;
     };
     const e1 = relErr(0.0015 * 0.02);
@@ -89,7 +100,10 @@ describe('linear model about an operating point', () => {
     const csv = linearModelCsv(lm).trim().split('\n');
     expect(csv[0]).toBe('matrix,row,column,value,standard_uncertainty,ci95_low,ci95_high');
     expect(csv.filter((r) => r.startsWith('A,')).length).toBe(4);
-    expect(Number(csv.find((r) => r.startsWith('A,T2,T1,'))!.split(',')[3])).toBeCloseTo(lm.a[2].value, 8);
+    expect(Number(csv.find((r) => r.startsWith('A,T2,T1,'))!.split(',')[3])).toBeCloseTo(
+      lm.a[2].value,
+      8,
+    );
     const text = linearModelText(lm);
     expect(text).toMatch(/^A = \[/m);
     expect(text).toMatch(/C = eye\(2\)/);

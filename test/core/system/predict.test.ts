@@ -9,7 +9,11 @@ const g = 9.80665; // standard gravity (CGPM 1901)
 
 function model(vessels: typeof TWO_FREE, cd: number[], rel = 0.004): SystemModel {
   const network = rig(vessels);
-  const theta = truthTheta(network, cd, vessels.map(() => 1));
+  const theta = truthTheta(
+    network,
+    cd,
+    vessels.map(() => 1),
+  );
   const free = Int32Array.from(network.vessels.map((_, i) => i * PER_VESSEL + P.effectiveArea));
   const k = free.length;
   const covariance = new Float64Array(k * k);
@@ -23,7 +27,9 @@ describe('predictions with intervals', () => {
     const v = m.network.vessels[0];
     const t = timeToLevel(m, Float64Array.of(2.0), [], 0, 0.5);
     const area = v.shape.areaM2(1);
-    const exact = ((2 * area) / (m.theta[0] * Math.sqrt(2 * g))) * (Math.sqrt(2.0 - v.outletElevationM) - Math.sqrt(0.5 - v.outletElevationM));
+    const exact =
+      ((2 * area) / (m.theta[0] * Math.sqrt(2 * g))) *
+      (Math.sqrt(2.0 - v.outletElevationM) - Math.sqrt(0.5 - v.outletElevationM));
     expect(Math.abs(t.value / exact - 1)).toBeLessThan(1e-6);
     // t ∝ 1/(Cd·a): u_r(t) = u_r(Cd·a)
     expect(Math.abs(t.standardUncertainty! / t.value / 0.004 - 1)).toBeLessThan(1e-3);

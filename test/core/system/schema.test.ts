@@ -25,19 +25,63 @@ function refusal(value: unknown): InputError {
 
 describe('system file', () => {
   it('reads a chain and converts a constant inflow with its unit', () => {
-    const s = validateSystem({ name: 'x', vessels: [vessel('A', 'B'), vessel('B', null)], inflows: [{ to: 'A', constant: '2.5L/s' }] });
+    const s = validateSystem({
+      name: 'x',
+      vessels: [vessel('A', 'B'), vessel('B', null)],
+      inflows: [{ to: 'A', constant: '2.5L/s' }],
+    });
     expect(s.inflows[0]).toEqual({ to: 'A', constantM3S: 0.0025 });
   });
 
   it.each([
-    ['a repeated id', { name: 'x', vessels: [vessel('A', null), vessel('A', null)] }, 'vessels.1.id', /used twice/],
-    ['an unknown receiver', { name: 'x', vessels: [vessel('A', 'Z')] }, 'vessels.0.dischargesTo', /no vessel has id "Z"/],
-    ['a loop', { name: 'x', vessels: [vessel('A', 'B'), vessel('B', 'A')] }, 'vessels.0.dischargesTo', /loop/],
-    ['a bad vessel field', { name: 'x', vessels: [vessel('A', null, { outlet: { boreM: -1, elevationM: 0.1 } })] }, 'vessels.0.outlet.boreM', /positive/],
-    ['a bad connection', { name: 'x', vessels: [vessel('A', null, { connection: 'pipe' })] }, 'vessels.0.connection', /one of/],
-    ['a submerged link without datum', { name: 'x', vessels: [vessel('A', 'B', { connection: 'submerged' }), vessel('B', null)] }, 'vessels.0.baseElevationM', /baseElevationM/],
-    ['an inflow to nowhere', { name: 'x', vessels: [vessel('A', null)], inflows: [{ to: 'Q', constant: 1 }] }, 'inflows.0.to', /no vessel/],
-    ['an inflow without unit', { name: 'x', vessels: [vessel('A', null)], inflows: [{ to: 'A', constant: '2.5' }] }, 'inflows.0.constant', /no unit/],
+    [
+      'a repeated id',
+      { name: 'x', vessels: [vessel('A', null), vessel('A', null)] },
+      'vessels.1.id',
+      /used twice/,
+    ],
+    [
+      'an unknown receiver',
+      { name: 'x', vessels: [vessel('A', 'Z')] },
+      'vessels.0.dischargesTo',
+      /no vessel has id "Z"/,
+    ],
+    [
+      'a loop',
+      { name: 'x', vessels: [vessel('A', 'B'), vessel('B', 'A')] },
+      'vessels.0.dischargesTo',
+      /loop/,
+    ],
+    [
+      'a bad vessel field',
+      { name: 'x', vessels: [vessel('A', null, { outlet: { boreM: -1, elevationM: 0.1 } })] },
+      'vessels.0.outlet.boreM',
+      /positive/,
+    ],
+    [
+      'a bad connection',
+      { name: 'x', vessels: [vessel('A', null, { connection: 'pipe' })] },
+      'vessels.0.connection',
+      /one of/,
+    ],
+    [
+      'a submerged link without datum',
+      { name: 'x', vessels: [vessel('A', 'B', { connection: 'submerged' }), vessel('B', null)] },
+      'vessels.0.baseElevationM',
+      /baseElevationM/,
+    ],
+    [
+      'an inflow to nowhere',
+      { name: 'x', vessels: [vessel('A', null)], inflows: [{ to: 'Q', constant: 1 }] },
+      'inflows.0.to',
+      /no vessel/,
+    ],
+    [
+      'an inflow without unit',
+      { name: 'x', vessels: [vessel('A', null)], inflows: [{ to: 'A', constant: '2.5' }] },
+      'inflows.0.constant',
+      /no unit/,
+    ],
   ])('refuses %s, naming the field', (_what, doc, field, message) => {
     const e = refusal(doc);
     expect(e.field).toBe(field);

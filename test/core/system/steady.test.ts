@@ -1,12 +1,21 @@
 import { describe, expect, it } from 'vitest';
 import type { SystemModel } from '../../../server/core/system/model.js';
 import { P, PER_VESSEL } from '../../../server/core/system/network.js';
-import { equilibrium, equilibriumSensitivity, steadyState, steadyStateMonteCarlo } from '../../../server/core/system/steady.js';
+import {
+  equilibrium,
+  equilibriumSensitivity,
+  steadyState,
+  steadyStateMonteCarlo,
+} from '../../../server/core/system/steady.js';
 import { rig, THREE_MIXED, truthTheta, TWO_FREE } from './fixtures.js';
 
 function model(vessels: typeof TWO_FREE, cd: number[], relU = 0.002): SystemModel {
   const network = rig(vessels);
-  const theta = truthTheta(network, cd, vessels.map(() => 1));
+  const theta = truthTheta(
+    network,
+    cd,
+    vessels.map(() => 1),
+  );
   const free = Int32Array.from(network.vessels.map((_, i) => i * PER_VESSEL + P.effectiveArea));
   const k = free.length;
   const covariance = new Float64Array(k * k);
@@ -56,7 +65,10 @@ describe('steady state of connected vessels', () => {
       const eu = equilibrium(m, up, q).eta;
       const ed = equilibrium(m, dn, q).eta;
       for (let i = 0; i < 3; i++) expect(sens[i * 3 + c]).toBeCloseTo((eu[i] - ed[i]) / (2 * h), 0);
-      for (let i = 0; i < 3; i++) expect(Math.abs(sens[i * 3 + c] - (eu[i] - ed[i]) / (2 * h))).toBeLessThan(1e-5 * (Math.abs(sens[i * 3 + c]) + 1));
+      for (let i = 0; i < 3; i++)
+        expect(Math.abs(sens[i * 3 + c] - (eu[i] - ed[i]) / (2 * h))).toBeLessThan(
+          1e-5 * (Math.abs(sens[i * 3 + c]) + 1),
+        );
     }
   });
 
@@ -65,7 +77,8 @@ describe('steady state of connected vessels', () => {
     const q = Float64Array.of(0.0015, 0, 0);
     const s = steadyState(m, q);
     const mc = steadyStateMonteCarlo(m, q, 2000, 5);
-    for (let i = 0; i < 3; i++) expect(Math.abs(mc[i] / s.levelsM[i].standardUncertainty! - 1)).toBeLessThan(0.1);
+    for (let i = 0; i < 3; i++)
+      expect(Math.abs(mc[i] / s.levelsM[i].standardUncertainty! - 1)).toBeLessThan(0.1);
   });
 
   it('warns when an equilibrium lies above a vessel (it would overflow)', () => {

@@ -21,8 +21,19 @@ function norris() {
   const [b1, sd1] = num(/^\s+B1\s+(\S+)\s+(\S+)/);
   const [rsd] = num(/^\s+Standard Deviation\s+(\S+)/);
   const start = lines.findIndex((l) => /^Data:\s+y\s+x/.test(l));
-  const rows = lines.slice(start + 1).filter((l) => l.trim()).map((l) => l.trim().split(/\s+/).map(Number));
-  return { b0, sd0, b1, sd1, rsd, y: Float64Array.from(rows, (r) => r[0]), x: Float64Array.from(rows, (r) => r[1]) };
+  const rows = lines
+    .slice(start + 1)
+    .filter((l) => l.trim())
+    .map((l) => l.trim().split(/\s+/).map(Number));
+  return {
+    b0,
+    sd0,
+    b1,
+    sd1,
+    rsd,
+    y: Float64Array.from(rows, (r) => r[0]),
+    x: Float64Array.from(rows, (r) => r[1]),
+  };
 }
 
 describe('weightedLine', () => {
@@ -45,9 +56,12 @@ describe('weightedLine', () => {
     // Reference: ml-regression-multivariate-linear 2.0.4 (npm), ordinary least squares without
     // intercept on design rows [√w, √w·t] and responses √w·y — the textbook reduction of WLS to OLS.
     for (let seed = 1; seed <= 5; seed++) {
-      const nrm = seededNormal(seed), uni = seededUniform(seed + 99);
+      const nrm = seededNormal(seed),
+        uni = seededUniform(seed + 99);
       const n = 24;
-      const t = new Float64Array(n), y = new Float64Array(n), u = new Float64Array(n);
+      const t = new Float64Array(n),
+        y = new Float64Array(n),
+        u = new Float64Array(n);
       for (let i = 0; i < n; i++) {
         t[i] = i / 12 + 0.02 * uni();
         u[i] = 1e-5 * (0.5 + 2 * uni());
@@ -60,14 +74,15 @@ describe('weightedLine', () => {
       expect(fit.intercept / ref.weights[0][0] - 1).toBeCloseTo(0, 9);
       expect(fit.slope / ref.weights[1][0] - 1).toBeCloseTo(0, 8);
       // Its standard errors use s² = SSR/(n − p): ours times the Birge ratio.
-      expect(fit.internal.uIntercept * fit.birgeRatio / ref.stdErrors[0] - 1).toBeCloseTo(0, 7);
-      expect(fit.internal.uSlope * fit.birgeRatio / ref.stdErrors[1] - 1).toBeCloseTo(0, 7);
+      expect((fit.internal.uIntercept * fit.birgeRatio) / ref.stdErrors[0] - 1).toBeCloseTo(0, 7);
+      expect((fit.internal.uSlope * fit.birgeRatio) / ref.stdErrors[1] - 1).toBeCloseTo(0, 7);
       expect(fit.chi2 / (ref.stdError ** 2 * (n - 2)) - 1).toBeCloseTo(0, 8);
     }
   });
 
   it('widens by the Birge ratio when the scatter exceeds the stated u, and never narrows', () => {
-    const n = 30, nrm = seededNormal(7);
+    const n = 30,
+      nrm = seededNormal(7);
     const t = Float64Array.from({ length: n }, (_, i) => i / 12);
     const u = new Float64Array(n).fill(1e-5);
     const big = Float64Array.from(t, () => 1e-3 + 3e-5 * nrm()); // 3× the stated u
@@ -101,7 +116,9 @@ describe('weightedLine', () => {
   });
 
   it('gives the uncertainty of the line value consistently with its covariance', () => {
-    const t = Float64Array.from([0, 1, 2, 3.5]), y = Float64Array.from([1, 0.9, 0.85, 0.7]), u = Float64Array.from([0.02, 0.03, 0.02, 0.05]);
+    const t = Float64Array.from([0, 1, 2, 3.5]),
+      y = Float64Array.from([1, 0.9, 0.85, 0.7]),
+      u = Float64Array.from([0.02, 0.03, 0.02, 0.05]);
     const f = weightedLine(t, y, u);
     for (const x of [-1, 0, 2, 10]) {
       const v = f.uIntercept ** 2 + 2 * x * f.covInterceptSlope + x * x * f.uSlope ** 2;
@@ -113,8 +130,12 @@ describe('weightedLine', () => {
   it('refuses what it cannot fit', () => {
     const a = Float64Array.from([0, 1, 2]);
     expect(() => weightedLine(a, a, Float64Array.from([1, 0, 1]))).toThrow(InputError);
-    expect(() => weightedLine(a.subarray(0, 2), a.subarray(0, 2), a.subarray(0, 2))).toThrow(InputError);
-    expect(() => weightedLine(new Float64Array(3), a, Float64Array.from([1, 1, 1]))).toThrow(InputError);
+    expect(() => weightedLine(a.subarray(0, 2), a.subarray(0, 2), a.subarray(0, 2))).toThrow(
+      InputError,
+    );
+    expect(() => weightedLine(new Float64Array(3), a, Float64Array.from([1, 1, 1]))).toThrow(
+      InputError,
+    );
     expect(() => weightedLine(a, a.subarray(0, 2), a)).toThrow(InputError);
   });
 });

@@ -9,8 +9,17 @@ import { InputError } from '../../../server/core/errors.js';
 const START = Date.UTC(2021, 0, 1);
 const DAY = 86_400_000;
 const sim = (seed: number, months: number, drift: number, extra: object = {}) =>
-  simulateFoulingHistory({ seed, months, startMs: START, baselineAreaM2: 1e-3, driftPctPerYear: drift, relU: 0.01, ...extra });
-const nowAfter = (h: { fits: { testedAtMs: number }[] }) => h.fits[h.fits.length - 1].testedAtMs + 5 * DAY;
+  simulateFoulingHistory({
+    seed,
+    months,
+    startMs: START,
+    baselineAreaM2: 1e-3,
+    driftPctPerYear: drift,
+    relU: 0.01,
+    ...extra,
+  });
+const nowAfter = (h: { fits: { testedAtMs: number }[] }) =>
+  h.fits[h.fits.length - 1].testedAtMs + 5 * DAY;
 
 describe('splitEpochs', () => {
   it('starts an epoch at each maintenance event, the first fit of each being its baseline', () => {
@@ -39,7 +48,15 @@ describe('outletStatus', () => {
       ['drifting', outletStatus(sim(3, 24, -2).fits, [], settings, START + 2 * YEAR_MS)],
       ['action due soon', outletStatus(sim(4, 24, -4.5).fits, [], settings, START + 2 * YEAR_MS)],
       ['past threshold', outletStatus(sim(5, 36, -6).fits, [], settings, START + 3 * YEAR_MS)],
-      ['sudden change', outletStatus(sim(6, 24, -1, { steps: [{ month: 18, pct: -6 }] }).fits, [], { actionThresholdPct: -30 }, START + 2 * YEAR_MS)],
+      [
+        'sudden change',
+        outletStatus(
+          sim(6, 24, -1, { steps: [{ month: 18, pct: -6 }] }).fits,
+          [],
+          { actionThresholdPct: -30 },
+          START + 2 * YEAR_MS,
+        ),
+      ],
     ];
     for (const [word, st] of cases) {
       expect(st.status, st.reason).toBe(word);
@@ -51,7 +68,12 @@ describe('outletStatus', () => {
   });
   it('calls a clean outlet steady, except where its 95 % slope interval misses zero by chance', () => {
     let steady = 0;
-    for (let s = 0; s < 100; s++) if (outletStatus(sim(200 + s, 24, 0).fits, [], settings, START + 2 * YEAR_MS).status === 'steady') steady++;
+    for (let s = 0; s < 100; s++)
+      if (
+        outletStatus(sim(200 + s, 24, 0).fits, [], settings, START + 2 * YEAR_MS).status ===
+        'steady'
+      )
+        steady++;
     expect(steady).toBeGreaterThanOrEqual(88); // 95 expected
   });
   it('restarts after a cleaning: a fouled outlet just cleaned is not past its threshold', () => {
@@ -62,16 +84,35 @@ describe('outletStatus', () => {
     expect(st.status).not.toBe('past threshold');
   });
   it('refuses a zero threshold', () => {
-    expect(() => outletStatus(sim(1, 5, 0).fits, [], { actionThresholdPct: 0 }, START)).toThrow(InputError);
+    expect(() => outletStatus(sim(1, 5, 0).fits, [], { actionThresholdPct: 0 }, START)).toThrow(
+      InputError,
+    );
   });
 });
 
 describe('fleetOrder', () => {
   it('orders by days to threshold, unknown last and the more severe of those first', () => {
-    const mk = (status: OutletStatus['status'], d: number | null, id: string) =>
-      ({ status, daysToThreshold: d, id, reason: '', crossingMs: null, epochIndex: 0, testsInEpoch: 0, latestTestMs: null, latestChangePct: null, slopePctPerYear: null, thresholdPct: -10 });
-    const order = fleetOrder([mk('steady', null, 'a'), mk('drifting', 400, 'b'), mk('past threshold', -30, 'c'),
-      mk('sudden change', null, 'd'), mk('action due soon', 20, 'e'), mk('not enough tests', null, 'f')]);
+    const mk = (status: OutletStatus['status'], d: number | null, id: string) => ({
+      status,
+      daysToThreshold: d,
+      id,
+      reason: '',
+      crossingMs: null,
+      epochIndex: 0,
+      testsInEpoch: 0,
+      latestTestMs: null,
+      latestChangePct: null,
+      slopePctPerYear: null,
+      thresholdPct: -10,
+    });
+    const order = fleetOrder([
+      mk('steady', null, 'a'),
+      mk('drifting', 400, 'b'),
+      mk('past threshold', -30, 'c'),
+      mk('sudden change', null, 'd'),
+      mk('action due soon', 20, 'e'),
+      mk('not enough tests', null, 'f'),
+    ]);
     expect(order.map((s) => s.id)).toEqual(['c', 'e', 'b', 'd', 'f', 'a']);
   });
 });

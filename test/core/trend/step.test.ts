@@ -6,12 +6,23 @@ import { detectStep, CUSUM_H } from '../../../server/core/trend/step.js';
 
 const START = Date.UTC(2018, 0, 1);
 
-function check(seed: number, o: { months: number; drift: number; step?: number; stepMonth?: number; understate?: number }) {
+function check(
+  seed: number,
+  o: { months: number; drift: number; step?: number; stepMonth?: number; understate?: number },
+) {
   const h = simulateFoulingHistory({
-    seed, months: o.months, startMs: START, baselineAreaM2: 1.5e-3, driftPctPerYear: o.drift, relU: 0.01,
+    seed,
+    months: o.months,
+    startMs: START,
+    baselineAreaM2: 1.5e-3,
+    driftPctPerYear: o.drift,
+    relU: 0.01,
     steps: o.step ? [{ month: o.stepMonth ?? 24, pct: o.step }] : [],
   });
-  const fits = h.fits.map((f) => ({ ...f, effectiveAreaU: f.effectiveAreaU / (o.understate ?? 1) }));
+  const fits = h.fits.map((f) => ({
+    ...f,
+    effectiveAreaU: f.effectiveAreaU / (o.understate ?? 1),
+  }));
   const ep = splitEpochs(fits, [])[0];
   return { fits, r: detectStep(ep.fits, epochLine(ep, 'effectiveArea')!.fit) };
 }
@@ -20,7 +31,9 @@ const month = (id: string | null) => (id === null ? NaN : Number(id.slice(-4)));
 describe('detectStep', () => {
   it('finds a blockage of 8 % (8 standard uncertainties) and places it at the step', () => {
     const N = 200;
-    let found = 0, placed = 0, prompt = 0;
+    let found = 0,
+      placed = 0,
+      prompt = 0;
     for (let s = 0; s < N; s++) {
       const { r } = check(100 + s, { months: 36, drift: -5, step: -8, stepMonth: 24 });
       if (!r.flagged) continue;
@@ -34,13 +47,14 @@ describe('detectStep', () => {
     expect(prompt / N).toBeGreaterThanOrEqual(0.95);
   });
 
-  it('flags a blockage in this month\'s test at once', () => {
+  it("flags a blockage in this month's test at once", () => {
     let found = 0;
     for (let s = 0; s < 50; s++) {
       const { fits, r } = check(700 + s, { months: 30, drift: -3, step: -8, stepMonth: 29 });
       // The alarm is this test; the change start is the CUSUM's estimate (up to 2 tests earlier
       // when the down-sum was already off zero), as in the placement check above.
-      if (r.flagged && r.alarmFitId === fits[29].fitId && r.latestZ! < -3 && month(r.fitId) >= 27) found++;
+      if (r.flagged && r.alarmFitId === fits[29].fitId && r.latestZ! < -3 && month(r.fitId) >= 27)
+        found++;
     }
     expect(found / 50).toBeGreaterThanOrEqual(0.96);
   });
@@ -57,7 +71,8 @@ describe('detectStep', () => {
 
   it('keeps false alarms rare when the stated uncertainties are half the real scatter', () => {
     let alarms = 0;
-    for (let s = 0; s < 200; s++) if (check(6000 + s, { months: 60, drift: -4, understate: 2 }).r.flagged) alarms++;
+    for (let s = 0; s < 200; s++)
+      if (check(6000 + s, { months: 60, drift: -4, understate: 2 }).r.flagged) alarms++;
     expect(alarms / 200).toBeLessThanOrEqual(0.05);
   });
 

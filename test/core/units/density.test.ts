@@ -20,7 +20,8 @@ describe('waterDensityKgM3', () => {
       [30, 995.6488],
       [40, 992.2152],
     ];
-    for (const [t, rho] of table) expect(Math.abs(waterDensityKgM3(t) - rho)).toBeLessThanOrEqual(PPM_1);
+    for (const [t, rho] of table)
+      expect(Math.abs(waterDensityKgM3(t) - rho)).toBeLessThanOrEqual(PPM_1);
   });
 
   it('agrees with the usual rounded values quoted in the field notes', () => {
@@ -43,7 +44,8 @@ describe('waterDensityKgM3', () => {
       [90, 965.31],
       [100, 958.35],
     ];
-    for (const [t, rho] of table) expect(Math.abs(waterDensityKgM3(t) - rho)).toBeLessThanOrEqual(0.02);
+    for (const [t, rho] of table)
+      expect(Math.abs(waterDensityKgM3(t) - rho)).toBeLessThanOrEqual(0.02);
   });
 
   it('is densest near 3.98 °C (Tanaka et al. 2001: maximum at 3.983 °C)', () => {
@@ -55,10 +57,14 @@ describe('waterDensityKgM3', () => {
 
   it('falls monotonically with temperature above the maximum', () => {
     fc.assert(
-      fc.property(fc.double({ min: 4, max: 100, noNaN: true }), fc.double({ min: 4, max: 100, noNaN: true }), (a, b) => {
-        fc.pre(b - a > 1e-6); // closer than a micro-kelvin the formula's rounding is all that differs
-        return waterDensityKgM3(a) > waterDensityKgM3(b);
-      }),
+      fc.property(
+        fc.double({ min: 4, max: 100, noNaN: true }),
+        fc.double({ min: 4, max: 100, noNaN: true }),
+        (a, b) => {
+          fc.pre(b - a > 1e-6); // closer than a micro-kelvin the formula's rounding is all that differs
+          return waterDensityKgM3(a) > waterDensityKgM3(b);
+        },
+      ),
     );
   });
 

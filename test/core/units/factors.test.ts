@@ -86,11 +86,13 @@ describe('pressureFactorToPa', () => {
 describe('flowFactorToM3s', () => {
   it('matches NIST SP 811 (2008) Appendix B.8', () => {
     // B.8 "gallon (U.S.) per minute (gpm)": 6.309 020 E-05 m³/s.
-    for (const u of ['gpm', 'USgpm', 'gal/min', 'US gal/min', 'GPM']) agreesWithTable(flowFactorToM3s(u), 6.30902e-5);
+    for (const u of ['gpm', 'USgpm', 'gal/min', 'US gal/min', 'GPM'])
+      agreesWithTable(flowFactorToM3s(u), 6.30902e-5);
     // B.8 "liter (L)": 1.0 E-03 m³ exact; SP 811 Table 6: 1 min = 60 s, 1 h = 3600 s.
     for (const u of ['L/s', 'l/s', 'lps']) expect(flowFactorToM3s(u)).toBe(1e-3);
     for (const u of ['L/min', 'lpm']) expect(flowFactorToM3s(u)).toBeCloseTo(1e-3 / 60, 18);
-    for (const u of ['m³/h', 'm3/h', 'm^3/hr', 'M3/H']) expect(flowFactorToM3s(u)).toBeCloseTo(1 / 3600, 17);
+    for (const u of ['m³/h', 'm3/h', 'm^3/hr', 'M3/H'])
+      expect(flowFactorToM3s(u)).toBeCloseTo(1 / 3600, 17);
     for (const u of ['m³/s', 'm3/s']) expect(flowFactorToM3s(u)).toBe(1);
   });
   it('refuses what is not a flow (and does not guess the imperial gallon)', () => {
@@ -100,7 +102,18 @@ describe('flowFactorToM3s', () => {
 
 describe('round trips', () => {
   const lengthUnits = ['m', 'cm', 'mm', 'in', 'ft'];
-  const pressureUnits = ['Pa', 'kPa', 'hPa', 'bar', 'mbar', 'psi', 'inH2O', 'cmH2O', 'mH2O', 'mmHg'];
+  const pressureUnits = [
+    'Pa',
+    'kPa',
+    'hPa',
+    'bar',
+    'mbar',
+    'psi',
+    'inH2O',
+    'cmH2O',
+    'mH2O',
+    'mmHg',
+  ];
   const flowUnits = ['m3/s', 'L/s', 'L/min', 'm3/h', 'gpm'];
   const value = fc.double({ min: -1e6, max: 1e6, noNaN: true });
 

@@ -10,7 +10,8 @@ import {
 
 describe('temperatureUnit', () => {
   it('reads the usual spellings', () => {
-    for (const u of ['C', '°C', 'degC', 'deg C', 'c', '℃', 'ºC', 'Celsius']) expect(temperatureUnit(u)).toBe('C');
+    for (const u of ['C', '°C', 'degC', 'deg C', 'c', '℃', 'ºC', 'Celsius'])
+      expect(temperatureUnit(u)).toBe('C');
     for (const u of ['F', '°F', 'degF', 'f', 'Fahrenheit']) expect(temperatureUnit(u)).toBe('F');
     for (const u of ['K', 'kelvin', '°K']) expect(temperatureUnit(u)).toBe('K');
   });
@@ -34,16 +35,23 @@ describe('temperatureToC', () => {
       fc.property(fc.double({ min: -200, max: 1000, noNaN: true }), (c) => {
         const f = c * 1.8 + 32;
         const k = c + 273.15;
-        return Math.abs(temperatureToC(f, 'F') - c) < 1e-9 && Math.abs(temperatureToC(k, 'K') - c) < 1e-9;
+        return (
+          Math.abs(temperatureToC(f, 'F') - c) < 1e-9 && Math.abs(temperatureToC(k, 'K') - c) < 1e-9
+        );
       }),
     );
   });
   it('is increasing in the reading for every scale', () => {
     fc.assert(
-      fc.property(fc.double({ min: 0, max: 500, noNaN: true }), fc.double({ min: 0, max: 500, noNaN: true }), fc.constantFrom('C', 'F', 'K'), (a, b, u) => {
-        fc.pre(b - a > 1e-9); // closer than that, °C values can round to the same double
-        return temperatureToC(a, u) < temperatureToC(b, u);
-      }),
+      fc.property(
+        fc.double({ min: 0, max: 500, noNaN: true }),
+        fc.double({ min: 0, max: 500, noNaN: true }),
+        fc.constantFrom('C', 'F', 'K'),
+        (a, b, u) => {
+          fc.pre(b - a > 1e-9); // closer than that, °C values can round to the same double
+          return temperatureToC(a, u) < temperatureToC(b, u);
+        },
+      ),
     );
   });
   it('refuses unknown units, non-numbers and temperatures below absolute zero', () => {

@@ -13,7 +13,13 @@ const good = {
   name: 'Day tank 2',
   site: 'North works',
   shape: { kind: 'vertical-cylinder', diameterM: 3, heightM: 4 },
-  outlet: { boreM: 0.05, boreToleranceM: 0.0005, elevationM: 0.1, type: 'sharp-edged', id: 'DT2-drain' },
+  outlet: {
+    boreM: 0.05,
+    boreToleranceM: 0.0005,
+    elevationM: 0.1,
+    type: 'sharp-edged',
+    id: 'DT2-drain',
+  },
   sensor: { zeroElevationM: 0.02, mountElevationM: 4.2 },
   fluid: { temperatureC: 12 },
   gravityMS2: 9.806,
@@ -39,7 +45,11 @@ const withPatch = (patch: (v: any) => void) => {
 describe('validateVessel accepts', () => {
   it('a complete file and a minimal one', () => {
     expect(validateVessel(good).outlet.type).toBe('sharp-edged');
-    const min = { name: 'x', shape: { kind: 'sphere', diameterM: 2 }, outlet: { boreM: 0.02, elevationM: 0 } };
+    const min = {
+      name: 'x',
+      shape: { kind: 'sphere', diameterM: 2 },
+      outlet: { boreM: 0.02, elevationM: 0 },
+    };
     expect(validateVessel(min)).toEqual(min);
   });
   it('the demo vessel files in sample-data', () => {
@@ -56,7 +66,13 @@ describe('validateVessel accepts', () => {
       { kind: 'rectangular', lengthM: 2, widthM: 1 },
       { kind: 'horizontal-cylinder', diameterM: 2, lengthM: 5 },
       { kind: 'cone-bottom', diameterM: 2, coneHeightM: 1, heightM: 3 },
-      { kind: 'table', points: [[0, 4], [1, 6]] },
+      {
+        kind: 'table',
+        points: [
+          [0, 4],
+          [1, 6],
+        ],
+      },
       { kind: 'elliptical-head-cylinder', diameterM: 2 },
     ]) {
       expect(validateVessel({ ...good, shape, sensor: undefined }).shape).toEqual(shape);
@@ -66,34 +82,146 @@ describe('validateVessel accepts', () => {
 
 describe('validateVessel refuses, naming the field', () => {
   it.each<[string, (v: any) => void, string, RegExp]>([
-    ['negative diameter', (v) => (v.shape.diameterM = -2), 'shape.diameterM', /^must be a positive number \(got -2\)$/],
-    ['diameter as text', (v) => (v.shape.diameterM = '3'), 'shape.diameterM', /must be a number \(got "3"\)/],
+    [
+      'negative diameter',
+      (v) => (v.shape.diameterM = -2),
+      'shape.diameterM',
+      /^must be a positive number \(got -2\)$/,
+    ],
+    [
+      'diameter as text',
+      (v) => (v.shape.diameterM = '3'),
+      'shape.diameterM',
+      /must be a number \(got "3"\)/,
+    ],
     ['missing diameter', (v) => delete v.shape.diameterM, 'shape.diameterM', /is required/],
-    ['unknown shape kind', (v) => (v.shape = { kind: 'pyramid' }), 'shape.kind', /must be one of .*"sphere".*\(got "pyramid"\)/],
+    [
+      'unknown shape kind',
+      (v) => (v.shape = { kind: 'pyramid' }),
+      'shape.kind',
+      /must be one of .*"sphere".*\(got "pyramid"\)/,
+    ],
     ['unknown field in shape', (v) => (v.shape.radius = 1), 'shape.radius', /not a known field/],
     ['unknown top-level field', (v) => (v.colour = 'red'), 'colour', /not a known field/],
     ['empty name', (v) => (v.name = ''), 'name', /must not be empty/],
     ['missing name', (v) => delete v.name, 'name', /is required/],
     ['missing outlet', (v) => delete v.outlet, 'outlet', /is required/],
     ['zero bore', (v) => (v.outlet.boreM = 0), 'outlet.boreM', /positive/],
-    ['negative bore tolerance', (v) => (v.outlet.boreToleranceM = -1e-4), 'outlet.boreToleranceM', /≥ 0/],
-    ['negative outlet elevation', (v) => (v.outlet.elevationM = -0.1), 'outlet.elevationM', /≥ 0 \(got -0.1\)/],
-    ['unknown outlet type', (v) => (v.outlet.type = 'orifice'), 'outlet.type', /"sharp-edged".*\(got "orifice"\)/],
+    [
+      'negative bore tolerance',
+      (v) => (v.outlet.boreToleranceM = -1e-4),
+      'outlet.boreToleranceM',
+      /≥ 0/,
+    ],
+    [
+      'negative outlet elevation',
+      (v) => (v.outlet.elevationM = -0.1),
+      'outlet.elevationM',
+      /≥ 0 \(got -0.1\)/,
+    ],
+    [
+      'unknown outlet type',
+      (v) => (v.outlet.type = 'orifice'),
+      'outlet.type',
+      /"sharp-edged".*\(got "orifice"\)/,
+    ],
     ['unknown field in outlet', (v) => (v.outlet.cd = 0.6), 'outlet.cd', /not a known field/],
-    ['sensor mount not positive', (v) => (v.sensor.mountElevationM = 0), 'sensor.mountElevationM', /positive/],
-    ['fluid with both forms', (v) => (v.fluid = { densityKgM3: 1000, temperatureC: 20 }), 'fluid', /exactly one of/],
+    [
+      'sensor mount not positive',
+      (v) => (v.sensor.mountElevationM = 0),
+      'sensor.mountElevationM',
+      /positive/,
+    ],
+    [
+      'fluid with both forms',
+      (v) => (v.fluid = { densityKgM3: 1000, temperatureC: 20 }),
+      'fluid',
+      /exactly one of/,
+    ],
     ['empty fluid', (v) => (v.fluid = {}), 'fluid', /exactly one of/],
     ['negative density', (v) => (v.fluid = { densityKgM3: -1 }), 'fluid.densityKgM3', /positive/],
-    ['temperature beyond water', (v) => (v.fluid = { temperatureC: 120 }), 'fluid.temperatureC', /≤ 100/],
-    ['table of one point', (v) => (v.shape = { kind: 'table', points: [[0, 1]] }), 'shape.points', /at least 2/],
-    ['table with falling heights', (v) => (v.shape = { kind: 'table', points: [[0, 1], [2, 2], [1, 3]] }), 'shape.points.2.0', /increase/],
-    ['table with zero area', (v) => (v.shape = { kind: 'table', points: [[0, 1], [1, 0]] }), 'shape.points.1.1', /positive/],
-    ['cone taller than the vessel', (v) => (v.shape = { kind: 'cone-bottom', diameterM: 2, coneHeightM: 3, heightM: 2 }), 'shape.heightM', /at least the cone height/],
-    ['outlet above the top', (v) => (v.outlet.elevationM = 4), 'outlet.elevationM', /below the top of the vessel \(4 m\)/],
-    ['bore wider than the vessel', (v) => (v.outlet.boreM = 3), 'outlet.boreM', /smaller than the vessel/],
-    ['bore wider than a table vessel', (v) => (v.shape = { kind: 'table', points: [[0, 0.001], [1, 0.001]] }), 'outlet.boreM', /smaller than the vessel/],
-    ['tolerance as large as the bore', (v) => (v.outlet.boreToleranceM = 0.05), 'outlet.boreToleranceM', /smaller than the bore/],
-    ['gauge below the outlet', (v) => (v.sensor.mountElevationM = 0.05), 'sensor.mountElevationM', /above the outlet/],
+    [
+      'temperature beyond water',
+      (v) => (v.fluid = { temperatureC: 120 }),
+      'fluid.temperatureC',
+      /≤ 100/,
+    ],
+    [
+      'table of one point',
+      (v) => (v.shape = { kind: 'table', points: [[0, 1]] }),
+      'shape.points',
+      /at least 2/,
+    ],
+    [
+      'table with falling heights',
+      (v) =>
+        (v.shape = {
+          kind: 'table',
+          points: [
+            [0, 1],
+            [2, 2],
+            [1, 3],
+          ],
+        }),
+      'shape.points.2.0',
+      /increase/,
+    ],
+    [
+      'table with zero area',
+      (v) =>
+        (v.shape = {
+          kind: 'table',
+          points: [
+            [0, 1],
+            [1, 0],
+          ],
+        }),
+      'shape.points.1.1',
+      /positive/,
+    ],
+    [
+      'cone taller than the vessel',
+      (v) => (v.shape = { kind: 'cone-bottom', diameterM: 2, coneHeightM: 3, heightM: 2 }),
+      'shape.heightM',
+      /at least the cone height/,
+    ],
+    [
+      'outlet above the top',
+      (v) => (v.outlet.elevationM = 4),
+      'outlet.elevationM',
+      /below the top of the vessel \(4 m\)/,
+    ],
+    [
+      'bore wider than the vessel',
+      (v) => (v.outlet.boreM = 3),
+      'outlet.boreM',
+      /smaller than the vessel/,
+    ],
+    [
+      'bore wider than a table vessel',
+      (v) =>
+        (v.shape = {
+          kind: 'table',
+          points: [
+            [0, 0.001],
+            [1, 0.001],
+          ],
+        }),
+      'outlet.boreM',
+      /smaller than the vessel/,
+    ],
+    [
+      'tolerance as large as the bore',
+      (v) => (v.outlet.boreToleranceM = 0.05),
+      'outlet.boreToleranceM',
+      /smaller than the bore/,
+    ],
+    [
+      'gauge below the outlet',
+      (v) => (v.sensor.mountElevationM = 0.05),
+      'sensor.mountElevationM',
+      /above the outlet/,
+    ],
     ['gravity in ft/s²', (v) => (v.gravityMS2 = 32.17), 'gravityMS2', /between 9.7 and 9.9/],
   ])('%s', (_what, patch, field, message) => {
     const e = refusal(withPatch(patch));
@@ -120,7 +248,8 @@ describe('vesselSchema', () => {
 
 describe('parseVesselFile', () => {
   it('gives the line of a JSON syntax error', () => {
-    const text = '{\n  "name": "a",\n  "shape": {"kind": "sphere", "diameterM": 2},\n  "outlet": {"boreM": 0.02 "elevationM": 0}\n}\n';
+    const text =
+      '{\n  "name": "a",\n  "shape": {"kind": "sphere", "diameterM": 2},\n  "outlet": {"boreM": 0.02 "elevationM": 0}\n}\n';
     try {
       parseVesselFile(text, 'bad.json');
       throw new Error('expected a refusal');
@@ -160,7 +289,9 @@ describe('fluidDensityKgM3', () => {
     expect(r.source).toMatch(/given/);
   });
   it('then the measured temperature, then the file temperature', () => {
-    expect(fluidDensityKgM3({ ...base, fluid: { temperatureC: 12 } }, 25).value).toBe(waterDensityKgM3(25));
+    expect(fluidDensityKgM3({ ...base, fluid: { temperatureC: 12 } }, 25).value).toBe(
+      waterDensityKgM3(25),
+    );
     const r = fluidDensityKgM3({ ...base, fluid: { temperatureC: 12 } });
     expect(r.value).toBe(waterDensityKgM3(12));
     expect(r.source).toMatch(/12 °C, from the vessel file/);

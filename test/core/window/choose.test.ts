@@ -17,7 +17,12 @@ const single = () =>
       { kind: 'hold', durationS: 120 },
       { kind: 'drain', durationS: 900, k, wobbleM: 0.01, wobbleS: 8 },
     ],
-    spikes: [[50, 0.08], [300, -0.05], [301, -0.06], [500, 0.2]],
+    spikes: [
+      [50, 0.08],
+      [300, -0.05],
+      [301, -0.06],
+      [500, 0.2],
+    ],
   });
 
 /** Fill, hold, drain (valve shut at 0.5 m), hold, drain to empty, hold. */
@@ -55,7 +60,13 @@ describe('findDrainCandidates', () => {
   });
 
   it('finds nothing in a log that only holds with noise', () => {
-    const { series } = simulate({ startLevelM: 1, outletM: 0, noiseM: 0.002, stepM: 0.001, phases: [{ kind: 'hold', durationS: 2000 }] });
+    const { series } = simulate({
+      startLevelM: 1,
+      outletM: 0,
+      noiseM: 0.002,
+      stepM: 0.001,
+      phases: [{ kind: 'hold', durationS: 2000 }],
+    });
     expect(findDrainCandidates(series.timeS, series.levelM, null)).toEqual([]);
   });
 });
@@ -102,7 +113,9 @@ describe('chooseDrainWindow', () => {
         expect(i >= r.window.startIndex && i <= r.window.endIndex).toBe(true);
       }
     }
-    const spikesInside = truth.spikeIndices.filter((i) => i >= r.window.startIndex && i <= r.window.endIndex).length;
+    const spikesInside = truth.spikeIndices.filter(
+      (i) => i >= r.window.startIndex && i <= r.window.endIndex,
+    ).length;
     expect(kept).toBe(r.window.samples - spikesInside);
   });
 
@@ -127,18 +140,38 @@ describe('chooseDrainWindow', () => {
 
   it('refuses a window outside the log, a reversed one, or one too short', () => {
     const { series } = single();
-    expect(() => chooseDrainWindow(series, { window: { startS: -5, endS: 100 } })).toThrow(/outside the log/);
-    expect(() => chooseDrainWindow(series, { window: { startS: 500, endS: 5000 } })).toThrow(/outside the log/);
-    expect(() => chooseDrainWindow(series, { window: { startS: 300, endS: 200 } })).toThrow(/start before its end/);
-    expect(() => chooseDrainWindow(series, { window: { startS: 200, endS: 205 } })).toThrow(/only \d+ usable readings/);
+    expect(() => chooseDrainWindow(series, { window: { startS: -5, endS: 100 } })).toThrow(
+      /outside the log/,
+    );
+    expect(() => chooseDrainWindow(series, { window: { startS: 500, endS: 5000 } })).toThrow(
+      /outside the log/,
+    );
+    expect(() => chooseDrainWindow(series, { window: { startS: 300, endS: 200 } })).toThrow(
+      /start before its end/,
+    );
+    expect(() => chooseDrainWindow(series, { window: { startS: 200, endS: 205 } })).toThrow(
+      /only \d+ usable readings/,
+    );
   });
 
   it('refuses a log that never falls, a constant signal, too few readings, and bad times', () => {
-    const hold = simulate({ startLevelM: 1, outletM: 0, noiseM: 0.002, stepM: 0.001, phases: [{ kind: 'hold', durationS: 1000 }] }).series;
-    expect(() => chooseDrainWindow(hold)).toThrow(/never falls by more than .* is this a drain test/);
+    const hold = simulate({
+      startLevelM: 1,
+      outletM: 0,
+      noiseM: 0.002,
+      stepM: 0.001,
+      phases: [{ kind: 'hold', durationS: 1000 }],
+    }).series;
+    expect(() => chooseDrainWindow(hold)).toThrow(
+      /never falls by more than .* is this a drain test/,
+    );
     const flat = { ...hold, levelM: new Float64Array(hold.levelM.length).fill(0.8) };
     expect(() => chooseDrainWindow(flat)).toThrow(/throughout/);
-    const short = { timeS: hold.timeS.subarray(0, 8), levelM: hold.levelM.subarray(0, 8), sourceLine: hold.sourceLine.subarray(0, 8) };
+    const short = {
+      timeS: hold.timeS.subarray(0, 8),
+      levelM: hold.levelM.subarray(0, 8),
+      sourceLine: hold.sourceLine.subarray(0, 8),
+    };
     expect(() => chooseDrainWindow(short)).toThrow(/only 8 readings/);
     const back = { ...hold, timeS: Float64Array.from(hold.timeS) };
     back.timeS[10] = back.timeS[9];

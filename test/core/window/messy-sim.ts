@@ -67,7 +67,11 @@ function trueLevels(o: MessyLog, timeS: Float64Array): Float64Array {
   return out;
 }
 
-export function simulateMessy(o: MessyLog): { series: LevelSeries; trueLevelM: Float64Array; openS: number } {
+export function simulateMessy(o: MessyLog): {
+  series: LevelSeries;
+  trueLevelM: Float64Array;
+  openS: number;
+} {
   const n = Math.floor((o.holdS + o.drainS) * o.rateHz) + 1;
   const timeS = new Float64Array(n);
   for (let i = 0; i < n; i++) timeS[i] = i / o.rateHz;
@@ -80,14 +84,26 @@ export function simulateMessy(o: MessyLog): { series: LevelSeries; trueLevelM: F
   for (let i = 0; i < n; i++) {
     if (i > 0) e = rho * e + Math.sqrt(1 - rho * rho) * rnd.normal();
     const inHold = timeS[i] <= o.holdS;
-    const sigma = (o.noiseM + (o.noisePerHeadM ?? 0) * truth[i]) * (inHold ? (o.holdNoiseFactor ?? 1) : 1);
-    const wander = o.wanderM ? o.wanderM * Math.sin((2 * Math.PI * timeS[i]) / (o.wanderPeriodS ?? 60) + phase) : 0;
+    const sigma =
+      (o.noiseM + (o.noisePerHeadM ?? 0) * truth[i]) * (inHold ? (o.holdNoiseFactor ?? 1) : 1);
+    const wander = o.wanderM
+      ? o.wanderM * Math.sin((2 * Math.PI * timeS[i]) / (o.wanderPeriodS ?? 60) + phase)
+      : 0;
     levelM[i] = truth[i] + sigma * e + wander;
   }
   const sourceLine = new Int32Array(n);
   for (let i = 0; i < n; i++) sourceLine[i] = i + 2;
   return {
-    series: { timeS, levelM, t0EpochMs: null, sourceLine, metadata: [], columns: [], notes: [], warnings: [] },
+    series: {
+      timeS,
+      levelM,
+      t0EpochMs: null,
+      sourceLine,
+      metadata: [],
+      columns: [],
+      notes: [],
+      warnings: [],
+    },
     trueLevelM: truth,
     openS: o.holdS,
   };
@@ -96,6 +112,7 @@ export function simulateMessy(o: MessyLog): { series: LevelSeries; trueLevelM: F
 /** The log as CSV text: elapsed seconds and level in metres. */
 export function messyCsv(series: LevelSeries): string {
   const rows = ['elapsed_s,level_m'];
-  for (let i = 0; i < series.timeS.length; i++) rows.push(`${series.timeS[i].toFixed(3)},${series.levelM[i].toFixed(5)}`);
+  for (let i = 0; i < series.timeS.length; i++)
+    rows.push(`${series.timeS[i].toFixed(3)},${series.levelM[i].toFixed(5)}`);
   return rows.join('\n') + '\n';
 }

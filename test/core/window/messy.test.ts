@@ -28,10 +28,15 @@ function chooseAndFit(o: MessyLog) {
   const A = areaM2(o);
   const choice = chooseDrainWindow(series, { outletReadingM: 0, areaAtReadingM2: () => A });
   const idx: number[] = [];
-  for (let i = choice.window.startIndex; i <= choice.window.endIndex; i++) if (choice.keep[i]) idx.push(i);
+  for (let i = choice.window.startIndex; i <= choice.window.endIndex; i++)
+    if (choice.keep[i]) idx.push(i);
   const t0 = series.timeS[idx[0]];
   const fit = fitDrain({
-    setting: { shape: makeShape({ kind: 'vertical-cylinder', diameterM: o.diameterM }), outletElevationM: 0, gravity: G },
+    setting: {
+      shape: makeShape({ kind: 'vertical-cylinder', diameterM: o.diameterM }),
+      outletElevationM: 0,
+      gravity: G,
+    },
     timeS: Float64Array.from(idx, (i) => series.timeS[i] - t0),
     levelM: Float64Array.from(idx, (i) => series.levelM[i]),
     knownSensorZeroM: 0,
@@ -63,7 +68,10 @@ describe('the drain starts where the valve opened, judged from the hold itself',
     let within = 0;
     for (let seed = 1; seed <= 200; seed++) {
       const { series, openS } = simulateMessy(orifice(seed, { noiseM: 0.002, lag1: 0.97 }));
-      const choice = chooseDrainWindow(series, { outletReadingM: 0, areaAtReadingM2: () => Math.PI / 4 });
+      const choice = chooseDrainWindow(series, {
+        outletReadingM: 0,
+        areaAtReadingM2: () => Math.PI / 4,
+      });
       const onset = choice.trims.find((t) => t.what === 'valve-opening')!.fromS;
       if (Math.abs(onset - openS) <= 2) within++;
       expect(choice.window.startS).toBeGreaterThanOrEqual(openS);
@@ -99,27 +107,52 @@ describe('a valve that opens slowly on a fast drain is trimmed by physics, with 
   const vessel = {
     name: 'Test column TC-1 (invented)',
     shape: { kind: 'vertical-cylinder', diameterM: 0.5, heightM: 1.2 },
-    outlet: { id: 'stub', boreM: 0.05, boreToleranceM: 0, elevationM: 0, type: 'square-edged-short-tube' },
+    outlet: {
+      id: 'stub',
+      boreM: 0.05,
+      boreToleranceM: 0,
+      elevationM: 0,
+      type: 'square-edged-short-tube',
+    },
     sensor: { zeroElevationM: 0 },
   };
   const trueCd = 0.78;
   const run = (rampS: number, seed: number) => {
-    const o: MessyLog = { diameterM: 0.5, effectiveAreaM2: (trueCd * Math.PI * 0.05 ** 2) / 4, head0M: 1.0, holdS: 20, drainS: 55, rateHz: 10, rampS, noiseM: 0.001, seed };
+    const o: MessyLog = {
+      diameterM: 0.5,
+      effectiveAreaM2: (trueCd * Math.PI * 0.05 ** 2) / 4,
+      head0M: 1.0,
+      holdS: 20,
+      drainS: 55,
+      rateHz: 10,
+      rampS,
+      noiseM: 0.001,
+      seed,
+    };
     const { series } = simulateMessy(o);
     const bytes = new TextEncoder().encode(messyCsv(series));
-    return analyzeDrainTest({ log: { bytes, fileName: `ramp-${rampS}s.csv` }, vessel, settings: {} }).fit;
+    return analyzeDrainTest({
+      log: { bytes, fileName: `ramp-${rampS}s.csv` },
+      vessel,
+      settings: {},
+    }).fit;
   };
   for (const rampS of [4, 8, 12]) {
     it(`${rampS} s ramp: Cd within 0.2 % of the truth with the truth inside its interval, or a warning`, () => {
       for (let seed = 1; seed <= 3; seed++) {
         const fit = run(rampS, seed);
         const cd = fit.dischargeCoefficient!;
-        const close = Math.abs(cd.value / trueCd - 1) <= 0.002 && (cd.ci95![0] ?? -Infinity) <= trueCd && trueCd <= (cd.ci95![1] ?? Infinity);
+        const close =
+          Math.abs(cd.value / trueCd - 1) <= 0.002 &&
+          (cd.ci95![0] ?? -Infinity) <= trueCd &&
+          trueCd <= (cd.ci95![1] ?? Infinity);
         const warned = fit.warnings.some((w) => w.code === 'opening-trim-large');
         expect(close || warned, `seed ${seed}: Cd ${cd.value}`).toBe(true);
         if (rampS <= 8) expect(close).toBe(true);
         // the note states the trim actually used: the window starts where the trim says
-        const trim = (fit.window.trims as { what: string; fromS: number; toS: number; reason: string }[]).find((t) => t.what === 'valve-opening')!;
+        const trim = (
+          fit.window.trims as { what: string; fromS: number; toS: number; reason: string }[]
+        ).find((t) => t.what === 'valve-opening')!;
         expect(trim.toS).toBe(fit.window.startS);
         expect(trim.reason).toContain(`${(trim.toS - trim.fromS).toFixed(1)} s trimmed`);
         // the trim reaches past the end of the ramp (opening at 20 s)
@@ -129,10 +162,26 @@ describe('a valve that opens slowly on a fast drain is trimmed by physics, with 
   }
 
   it('a drain still opening for most of its length is refused without a window from a person, and fits with one', () => {
-    const o: MessyLog = { diameterM: 0.5, effectiveAreaM2: (trueCd * Math.PI * 0.05 ** 2) / 4, head0M: 1.0, holdS: 20, drainS: 55, rateHz: 10, rampS: 40, noiseM: 0.001, seed: 1 };
+    const o: MessyLog = {
+      diameterM: 0.5,
+      effectiveAreaM2: (trueCd * Math.PI * 0.05 ** 2) / 4,
+      head0M: 1.0,
+      holdS: 20,
+      drainS: 55,
+      rateHz: 10,
+      rampS: 40,
+      noiseM: 0.001,
+      seed: 1,
+    };
     const bytes = new TextEncoder().encode(messyCsv(simulateMessy(o).series));
-    expect(() => analyzeDrainTest({ log: { bytes, fileName: 'slow.csv' }, vessel, settings: {} })).toThrow(/too little of the drain.*--window/);
-    const fit = analyzeDrainTest({ log: { bytes, fileName: 'slow.csv' }, vessel, settings: { window: '61..66' } }).fit;
+    expect(() =>
+      analyzeDrainTest({ log: { bytes, fileName: 'slow.csv' }, vessel, settings: {} }),
+    ).toThrow(/too little of the drain.*--window/);
+    const fit = analyzeDrainTest({
+      log: { bytes, fileName: 'slow.csv' },
+      vessel,
+      settings: { window: '61..66' },
+    }).fit;
     expect(fit.window.startS).toBeGreaterThanOrEqual(61);
   });
 });

@@ -53,7 +53,14 @@ export function simulate(o: SimOptions): { series: LevelSeries; truth: SimTruth 
     return o.outletM + (r > 0 ? r * r : 0);
   };
   for (const ph of o.phases) {
-    if (ph.kind === 'drain') truth.drains.push({ openS: phaseStart, shutS: phaseStart + ph.durationS, head0M: phaseLevel - o.outletM, k: ph.k, wobbleS: ph.wobbleS ?? 0 });
+    if (ph.kind === 'drain')
+      truth.drains.push({
+        openS: phaseStart,
+        shutS: phaseStart + ph.durationS,
+        head0M: phaseLevel - o.outletM,
+        k: ph.k,
+        wobbleS: ph.wobbleS ?? 0,
+      });
     phaseLevel = endLevel(ph, phaseLevel, ph.durationS);
     phaseStart += ph.durationS;
   }
@@ -95,7 +102,16 @@ export function simulate(o: SimOptions): { series: LevelSeries; truth: SimTruth 
   const sourceLine = new Int32Array(n);
   for (let i = 0; i < n; i++) sourceLine[i] = i + 2; // one header line
   return {
-    series: { timeS, levelM: level, t0EpochMs: null, sourceLine, metadata: [], columns: [], notes: [], warnings: [] },
+    series: {
+      timeS,
+      levelM: level,
+      t0EpochMs: null,
+      sourceLine,
+      metadata: [],
+      columns: [],
+      notes: [],
+      warnings: [],
+    },
     truth,
   };
 }

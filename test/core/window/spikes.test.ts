@@ -37,13 +37,25 @@ describe('findSpikes', () => {
   });
 
   it('finds isolated and paired spikes on the drain and the hold', () => {
-    const spikes: [number, number][] = [[50, 0.08], [300, -0.05], [301, -0.06], [500, 0.2], [650, -0.03]];
+    const spikes: [number, number][] = [
+      [50, 0.08],
+      [300, -0.05],
+      [301, -0.06],
+      [500, 0.2],
+      [650, -0.03],
+    ];
     const { series, truth } = drain(0, spikes);
     expect(Array.from(findSpikes(series.timeS, series.levelM))).toEqual(truth.spikeIndices);
   });
 
   it('on noisy data finds every spike and flags ordinary readings no more often than the normal tail allows', () => {
-    const spikes: [number, number][] = [[50, 0.08], [300, -0.05], [301, -0.06], [500, 0.2], [650, -0.03]];
+    const spikes: [number, number][] = [
+      [50, 0.08],
+      [300, -0.05],
+      [301, -0.06],
+      [500, 0.2],
+      [650, -0.03],
+    ];
     const { series, truth } = drain(0.0015, spikes, 7);
     const found = new Set(findSpikes(series.timeS, series.levelM));
     for (const i of truth.spikeIndices) expect(found.has(i)).toBe(true);

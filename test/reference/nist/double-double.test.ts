@@ -65,7 +65,11 @@ const samples = [-40.3, -7.25, -1, -0.3, -1e-9, 1e-12, 0.015, 0.5, 1.75, 3.3, 12
 
 describe('double-double: parsing decimal text', () => {
   it('reads integers of up to 30 digits exactly', () => {
-    for (const t of ['123456789012345678901234567890', '9007199254740993', '-98765432109876543210']) {
+    for (const t of [
+      '123456789012345678901234567890',
+      '9007199254740993',
+      '-98765432109876543210',
+    ]) {
       const v = dd(t);
       expect((scaled(v.hi) + scaled(v.lo)) >> 1074n).toBe(BigInt(t));
       expect((scaled(v.hi) + scaled(v.lo)) % (1n << 1074n)).toBe(0n);
@@ -94,7 +98,8 @@ describe('double-double: parsing decimal text', () => {
       expect(dd(t).hi).toBe(Number(t));
     }
     expect(dd('0.1').lo).not.toBe(0); // 0.1 is not a binary fraction: the tail is kept
-    for (const t of ['', '.', 'abc', '1.2.3', '1e', '0x10']) expect(parseDecimal(t)).toBeUndefined();
+    for (const t of ['', '.', 'abc', '1.2.3', '1e', '0x10'])
+      expect(parseDecimal(t)).toBeUndefined();
   });
 
   it('reads every StRD data value with the same double as Number() and a tail that brings it closer', () => {
@@ -114,7 +119,12 @@ describe('double-double: arithmetic', () => {
   });
 
   it('divides and multiplies back to within a few units of rounding', () => {
-    for (const [a, b] of [[1, 3], [2, 7], [-5.5, 0.1], [1e10, 3.3e-7]]) {
+    for (const [a, b] of [
+      [1, 3],
+      [2, 7],
+      [-5.5, 0.1],
+      [1e10, 3.3e-7],
+    ]) {
       const q = div(fromNumber(a), fromNumber(b));
       expect(relErr(mul(q, fromNumber(b)), fromNumber(a))).toBeLessThan(TOL);
     }
@@ -123,7 +133,8 @@ describe('double-double: arithmetic', () => {
 
   it('sqrt: √2 to 32 digits, and √x² = x', () => {
     expect(relErr(sqrt(fromNumber(2)), dd(SQRT2))).toBeLessThan(TOL);
-    for (const x of [0.3, 7, 1e-8, 12345.678]) expect(relErr(sqr(sqrt(fromNumber(x))), fromNumber(x))).toBeLessThan(TOL);
+    for (const x of [0.3, 7, 1e-8, 12345.678])
+      expect(relErr(sqr(sqrt(fromNumber(x))), fromNumber(x))).toBeLessThan(TOL);
     expect(Number.isNaN(sqrt(fromNumber(-1)).hi)).toBe(true);
   });
 });
@@ -179,7 +190,9 @@ describe('double-double: exp, log, pow', () => {
       expect(relErr(mul(sqr(pow(x, third)), pow(x, third)), x)).toBeLessThan(TOL);
       const a = fromNumber(-1.07);
       const b = fromNumber(0.3);
-      expect(relErr(mul(pow(x, a), pow(x, b)), pow(x, add(a, b)))).toBeLessThan(TOL * Math.max(1, Math.abs(Math.log(v))));
+      expect(relErr(mul(pow(x, a), pow(x, b)), pow(x, add(a, b)))).toBeLessThan(
+        TOL * Math.max(1, Math.abs(Math.log(v))),
+      );
     }
   });
 });
@@ -187,7 +200,10 @@ describe('double-double: exp, log, pow', () => {
 describe('double-double: sin, cos, atan', () => {
   it('π: 4·atan(1) and Machin’s formula 16·atan(1/5) − 4·atan(1/239) agree with the constant', () => {
     expect(relErr(mulNum(atan(ONE), 4), PI)).toBeLessThan(TOL);
-    const machin = sub(mulNum(atan(div(ONE, fromNumber(5))), 16), mulNum(atan(div(ONE, fromNumber(239))), 4));
+    const machin = sub(
+      mulNum(atan(div(ONE, fromNumber(5))), 16),
+      mulNum(atan(div(ONE, fromNumber(239))), 4),
+    );
     expect(relErr(machin, PI)).toBeLessThan(TOL);
   });
 
@@ -205,8 +221,12 @@ describe('double-double: sin, cos, atan', () => {
       const [s, c] = sinCos(x);
       expect(Math.abs(toNumber(sub(add(sqr(s), sqr(c)), ONE)))).toBeLessThan(TOL);
       const [s2] = sinCos(mulNum(x, 2));
-      expect(Math.abs(toNumber(sub(s2, mulNum(mul(s, c), 2))))).toBeLessThan(TOL * Math.max(1, Math.abs(a)));
-      expect(Math.abs(toNumber(sub(sin(add(x, mulNum(PI, 0.5))), c)))).toBeLessThan(TOL * Math.max(1, Math.abs(a)));
+      expect(Math.abs(toNumber(sub(s2, mulNum(mul(s, c), 2))))).toBeLessThan(
+        TOL * Math.max(1, Math.abs(a)),
+      );
+      expect(Math.abs(toNumber(sub(sin(add(x, mulNum(PI, 0.5))), c)))).toBeLessThan(
+        TOL * Math.max(1, Math.abs(a)),
+      );
       expect(Math.abs(s.hi - Math.sin(a))).toBeLessThan(1e-15 * Math.max(1, Math.abs(a)));
     }
   });

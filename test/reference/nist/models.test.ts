@@ -25,10 +25,13 @@ describe('StRD model Jacobians against central differences', () => {
         const fd = finiteDifferenceJacobian(problem, p);
         for (let k = 0; k < problem.n; k++) {
           let scale = 0;
-          for (let i = 0; i < problem.m; i++) scale = Math.max(scale, Math.abs(J[i * problem.n + k]));
+          for (let i = 0; i < problem.m; i++)
+            scale = Math.max(scale, Math.abs(J[i * problem.n + k]));
           for (let i = 0; i < problem.m; i++) {
             // Central differences with a relative step of 6e-6 carry errors of order 1e-9 of the column scale.
-            expect(Math.abs(fd[i * problem.n + k] - J[i * problem.n + k])).toBeLessThanOrEqual(1e-6 * scale + 1e-300);
+            expect(Math.abs(fd[i * problem.n + k] - J[i * problem.n + k])).toBeLessThanOrEqual(
+              1e-6 * scale + 1e-300,
+            );
           }
         }
       }
@@ -54,7 +57,10 @@ describe('StRD models: the double-double form is the same model as the double fo
         }
         if (model.response && model.responseDd) {
           for (let i = 0; i < ds.y.length; i++) {
-            expect(toNumber(model.responseDd(ds.yExact[i]))).toBeCloseTo(model.response(ds.y[i]), 13);
+            expect(toNumber(model.responseDd(ds.yExact[i]))).toBeCloseTo(
+              model.response(ds.y[i]),
+              13,
+            );
           }
         }
       }

@@ -39,13 +39,23 @@ const ACTION_WORDS: Record<string, string> = {
 const PAGE = 200;
 
 export async function auditPage({ user, main }: PageContext): Promise<void> {
-  main.append(h('h1', {}, 'Audit log'), h('p', { class: 'lede' }, 'Every change the service made, in order, each entry sealed with the hash of the one before. Filter it, check the chain, open the reports, and export a period.'));
+  main.append(
+    h('h1', {}, 'Audit log'),
+    h(
+      'p',
+      { class: 'lede' },
+      'Every change the service made, in order, each entry sealed with the hash of the one before. Filter it, check the chain, open the reports, and export a period.',
+    ),
+  );
   if (user.role !== 'auditor' && user.role !== 'admin') {
     main.append(notice('info', 'The audit log is open to auditors and administrators.'));
     return;
   }
   const vessels = await api<Page<Vessel>>('GET', '/api/vessels?limit=500');
-  const vessel = select('vesselId', [['', 'every vessel'], ...vessels.items.map((v): [string, string] => [String(v.id), `${v.name} (${v.site})`])]);
+  const vessel = select('vesselId', [
+    ['', 'every vessel'],
+    ...vessels.items.map((v): [string, string] => [String(v.id), `${v.name} (${v.site})`]),
+  ]);
   const person = select('actorId', [['', 'everyone']]);
   const since = h('input', { type: 'date', name: 'since' });
   const until = h('input', { type: 'date', name: 'until' });
@@ -56,13 +66,51 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
   const count = h('p', { class: 'count', 'aria-live': 'polite' });
   const body = h('tbody');
   const more = h('button', { type: 'button', hidden: true }, 'Show more');
-  const filters = h('form', { class: 'filters audit-filters' }, field('Vessel', vessel), field('Person', person), field('From (inclusive)', since), field('Until (inclusive)', until), h('div', { class: 'actions' }, show));
+  const filters = h(
+    'form',
+    { class: 'filters audit-filters' },
+    field('Vessel', vessel),
+    field('Person', person),
+    field('From (inclusive)', since),
+    field('Until (inclusive)', until),
+    h('div', { class: 'actions' }, show),
+  );
   main.append(
-    h('section', {}, h('div', { class: 'actions' }, check, h('span', { class: 'hint' }, 'walks every entry and recomputes its hash')), chain),
+    h(
+      'section',
+      {},
+      h(
+        'div',
+        { class: 'actions' },
+        check,
+        h('span', { class: 'hint' }, 'walks every entry and recomputes its hash'),
+      ),
+      chain,
+    ),
     filters,
     reports,
     count,
-    h('div', { class: 'table-wrap' }, h('table', { class: 'audit' }, h('caption', { class: 'visually-hidden' }, 'Audit entries'), h('thead', {}, h('tr', {}, ['No.', 'When (UTC)', 'Who', 'What happened', 'On', 'Reports', 'Hash'].map((t) => h('th', { scope: 'col' }, t)))), body)),
+    h(
+      'div',
+      { class: 'table-wrap' },
+      h(
+        'table',
+        { class: 'audit' },
+        h('caption', { class: 'visually-hidden' }, 'Audit entries'),
+        h(
+          'thead',
+          {},
+          h(
+            'tr',
+            {},
+            ['No.', 'When (UTC)', 'Who', 'What happened', 'On', 'Reports', 'Hash'].map((t) =>
+              h('th', { scope: 'col' }, t),
+            ),
+          ),
+        ),
+        body,
+      ),
+    ),
     more,
     exportForm(vessels.items),
   );
@@ -75,14 +123,37 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
     if (person.value) q.set('actorId', person.value);
     if (since.value) q.set('since', since.value);
     // "until" is exclusive in the API: the day after, so the chosen day is included
-    if (until.value) q.set('until', new Date(Date.parse(until.value) + 86400_000).toISOString().slice(0, 10));
+    if (until.value)
+      q.set('until', new Date(Date.parse(until.value) + 86400_000).toISOString().slice(0, 10));
     return q;
   };
   const row = (e: Entry) => {
     const id = e.entityId;
-    const on = id === null ? e.entityType : e.entityType === 'fit' ? h('a', { href: `#/fits/${id}` }, `fit ${id}`) : e.entityType === 'vessel' ? h('a', { href: `#/vessels/${id}` }, `vessel ${id}`) : `${e.entityType.replace('-', ' ')} ${id}`;
-    const links = e.entityType === 'fit' && id ? h('a', { href: `/api/fits/${id}/report.pdf` }, 'fit report (PDF)') : e.entityType === 'outlet' && id ? h('a', { href: `/api/outlets/${id}/report.pdf` }, 'outlet report (PDF)') : '';
-    return h('tr', { 'data-seq': e.seq }, h('td', { class: 'num' }, String(e.seq)), h('td', {}, dateTime(e.at).replace(' UTC', '')), h('td', {}, e.actorName), h('td', {}, ACTION_WORDS[e.action] ?? e.action), h('td', {}, on), h('td', {}, links), h('td', {}, h('code', { title: e.hash }, e.hash.slice(0, 12) + '…')));
+    const on =
+      id === null
+        ? e.entityType
+        : e.entityType === 'fit'
+          ? h('a', { href: `#/fits/${id}` }, `fit ${id}`)
+          : e.entityType === 'vessel'
+            ? h('a', { href: `#/vessels/${id}` }, `vessel ${id}`)
+            : `${e.entityType.replace('-', ' ')} ${id}`;
+    const links =
+      e.entityType === 'fit' && id
+        ? h('a', { href: `/api/fits/${id}/report.pdf` }, 'fit report (PDF)')
+        : e.entityType === 'outlet' && id
+          ? h('a', { href: `/api/outlets/${id}/report.pdf` }, 'outlet report (PDF)')
+          : '';
+    return h(
+      'tr',
+      { 'data-seq': e.seq },
+      h('td', { class: 'num' }, String(e.seq)),
+      h('td', {}, dateTime(e.at).replace(' UTC', '')),
+      h('td', {}, e.actorName),
+      h('td', {}, ACTION_WORDS[e.action] ?? e.action),
+      h('td', {}, on),
+      h('td', {}, links),
+      h('td', {}, h('code', { title: e.hash }, e.hash.slice(0, 12) + '…')),
+    );
   };
   let shown = 0;
   const load = async (fresh: boolean) => {
@@ -91,11 +162,21 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
       shown = 0;
       body.replaceChildren();
     }
-    const page = await api<{ items: Entry[]; nextAfterSeq: number | null }>('GET', `/api/audit?${query().toString()}`);
-    for (const e of page.items) if (e.actorId !== null && !people.has(String(e.actorId))) people.set(String(e.actorId), e.actorName);
+    const page = await api<{ items: Entry[]; nextAfterSeq: number | null }>(
+      'GET',
+      `/api/audit?${query().toString()}`,
+    );
+    for (const e of page.items)
+      if (e.actorId !== null && !people.has(String(e.actorId)))
+        people.set(String(e.actorId), e.actorName);
     if (person.options.length - 1 < people.size) {
       const keep = person.value;
-      person.replaceChildren(h('option', { value: '' }, 'everyone'), ...[...people].sort((a, b) => a[1].localeCompare(b[1])).map(([v, name]) => h('option', { value: v }, name)));
+      person.replaceChildren(
+        h('option', { value: '' }, 'everyone'),
+        ...[...people]
+          .sort((a, b) => a[1].localeCompare(b[1]))
+          .map(([v, name]) => h('option', { value: v }, name)),
+      );
       person.value = keep;
     }
     body.append(...page.items.map(row));
@@ -108,23 +189,52 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
     reports.replaceChildren();
     const v = vessels.items.find((x) => String(x.id) === vessel.value);
     if (!v) return;
-    reports.append(h('p', {}, `Outlet reports of ${v.name}: `, ...v.outlets.flatMap((o, i) => [i ? ' · ' : '', h('a', { href: `/api/outlets/${o.id}/report.pdf` }, `outlet ${o.key} (PDF)`)])));
+    reports.append(
+      h(
+        'p',
+        {},
+        `Outlet reports of ${v.name}: `,
+        ...v.outlets.flatMap((o, i) => [
+          i ? ' · ' : '',
+          h('a', { href: `/api/outlets/${o.id}/report.pdf` }, `outlet ${o.key} (PDF)`),
+        ]),
+      ),
+    );
   };
   filters.addEventListener('submit', (ev) => {
     ev.preventDefault();
     outletReports();
-    void load(true).catch((e) => count.replaceChildren(notice('error', e instanceof Error ? e.message : String(e))));
+    void load(true).catch((e) =>
+      count.replaceChildren(notice('error', e instanceof Error ? e.message : String(e))),
+    );
   });
   more.addEventListener('click', () => void load(false));
   check.addEventListener('click', async () => {
     chain.replaceChildren();
     check.disabled = true;
     try {
-      const r = await api<{ ok: boolean; count: number; head: string; brokenAt?: number; reason?: string }>('GET', '/api/audit/verify');
+      const r = await api<{
+        ok: boolean;
+        count: number;
+        head: string;
+        brokenAt?: number;
+        reason?: string;
+      }>('GET', '/api/audit/verify');
       chain.append(
         r.ok
-          ? notice('info', h('strong', {}, 'The chain is intact. '), `${r.count} entries checked; the latest hash is `, h('code', {}, r.head), '.')
-          : notice('error', h('strong', {}, `The chain is broken at entry ${r.brokenAt}. `), r.reason ?? '', ` (${r.count} entries read).`),
+          ? notice(
+              'info',
+              h('strong', {}, 'The chain is intact. '),
+              `${r.count} entries checked; the latest hash is `,
+              h('code', {}, r.head),
+              '.',
+            )
+          : notice(
+              'error',
+              h('strong', {}, `The chain is broken at entry ${r.brokenAt}. `),
+              r.reason ?? '',
+              ` (${r.count} entries read).`,
+            ),
       );
     } catch (e) {
       chain.append(notice('error', e instanceof ApiError ? e.message : String(e)));
@@ -150,7 +260,10 @@ interface ExportJob {
 function exportForm(vessels: Vessel[]): HTMLElement {
   const sites = [...new Set(vessels.map((v) => v.site))].sort();
   const site = select('site', [['', 'every site'], ...sites.map((s): [string, string] => [s, s])]);
-  const vessel = select('vessel', [['', 'every vessel'], ...vessels.map((v): [string, string] => [v.name, v.name])]);
+  const vessel = select('vessel', [
+    ['', 'every vessel'],
+    ...vessels.map((v): [string, string] => [v.name, v.name]),
+  ]);
   const from = h('input', { type: 'date', name: 'from' });
   const to = h('input', { type: 'date', name: 'to' });
   const go = h('button', { type: 'submit', class: 'primary' }, 'Make the export');
@@ -158,7 +271,25 @@ function exportForm(vessels: Vessel[]): HTMLElement {
   const form = h(
     'form',
     { class: 'export-form' },
-    h('fieldset', {}, h('legend', {}, 'Export approved fits'), h('p', { class: 'hint' }, 'A zip of each fit’s PDF report, a CSV summary, the audit entries of the period and a SHA-256 manifest of every file.'), h('div', { class: 'grid' }, field('Site', site), field('Vessel', vessel), field('From', from), field('To', to)), h('div', { class: 'actions' }, go)),
+    h(
+      'fieldset',
+      {},
+      h('legend', {}, 'Export approved fits'),
+      h(
+        'p',
+        { class: 'hint' },
+        'A zip of each fit’s PDF report, a CSV summary, the audit entries of the period and a SHA-256 manifest of every file.',
+      ),
+      h(
+        'div',
+        { class: 'grid' },
+        field('Site', site),
+        field('Vessel', vessel),
+        field('From', from),
+        field('To', to),
+      ),
+      h('div', { class: 'actions' }, go),
+    ),
     out,
   );
   form.addEventListener('submit', async (ev) => {
@@ -173,7 +304,11 @@ function exportForm(vessels: Vessel[]): HTMLElement {
     try {
       // the service makes the export as a job (POST → 202); show its progress until the zip is ready
       let job = await api<ExportJob>('POST', '/api/exports', body);
-      const bar = h('progress', { max: String(Math.max(1, job.total)), value: '0', id: 'export-progress' });
+      const bar = h('progress', {
+        max: String(Math.max(1, job.total)),
+        value: '0',
+        id: 'export-progress',
+      });
       const words = h('span', {}, `0 of ${job.total} reports made`);
       out.append(h('p', { class: 'export-progress' }, bar, ' ', words));
       while (job.state === 'running') {
@@ -184,8 +319,13 @@ function exportForm(vessels: Vessel[]): HTMLElement {
         words.textContent = `${job.done} of ${job.total} reports made`;
       }
       out.replaceChildren();
-      if (job.state === 'failed' || !job.archiveUrl) throw new Error(job.error ?? 'the export failed');
-      const link = h('a', { href: job.archiveUrl, download: 'efflux-export.zip', class: 'button', id: 'export-link' }, `Save efflux-export.zip (${((job.bytes ?? 0) / 1024).toFixed(0)} KiB, ${job.total} reports)`);
+      if (job.state === 'failed' || !job.archiveUrl)
+        throw new Error(job.error ?? 'the export failed');
+      const link = h(
+        'a',
+        { href: job.archiveUrl, download: 'efflux-export.zip', class: 'button', id: 'export-link' },
+        `Save efflux-export.zip (${((job.bytes ?? 0) / 1024).toFixed(0)} KiB, ${job.total} reports)`,
+      );
       out.append(notice('info', 'The export is ready. ', link));
       link.click();
     } catch (e) {

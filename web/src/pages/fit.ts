@@ -3,10 +3,31 @@
  * its standard uncertainty and 95 % interval, correlations, warnings in plain words, the model
  * comparison; review (approve or reject with a comment), refit, and the report when there is one.
  */
-import { api, ApiError, canReview, canUpload, type DrainTest, type Fit, type Series, type Vessel } from '../api.js';
+import {
+  api,
+  ApiError,
+  canReview,
+  canUpload,
+  type DrainTest,
+  type Fit,
+  type Series,
+  type Vessel,
+} from '../api.js';
 import { fitChart, headBandChart, logChart, residualChart, type WindowPlot } from '../charts.js';
 import { field, h, notice, table } from '../dom.js';
-import { areaMm2, clockAt, inWords, dateTime, decimalsFor, mm, num, paramName, plusMinus, seconds, termName } from '../format.js';
+import {
+  areaMm2,
+  clockAt,
+  inWords,
+  dateTime,
+  decimalsFor,
+  mm,
+  num,
+  paramName,
+  plusMinus,
+  seconds,
+  termName,
+} from '../format.js';
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
 import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/budget/drain-time.js';
@@ -19,7 +40,8 @@ function scaled(unit: string): { factor: number; unit: string } {
   return { factor: 1, unit };
 }
 
-const pct = (p: number | null | undefined) => (p === null || p === undefined ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3));
+const pct = (p: number | null | undefined) =>
+  p === null || p === undefined ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3);
 
 export async function fitPage({ user, params, main, go }: PageContext): Promise<void> {
   const id = Number(params[0]);
@@ -32,17 +54,43 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   ]);
   const r = fit.result;
   // the engine's own flag for a stated window is not always set; the stored settings say it
-  const chosenBy = fit.settings.window ? `by the person (${fit.settings.window} s)` : r.window.chosenBy ?? 'automatically';
+  const chosenBy = fit.settings.window
+    ? `by the person (${fit.settings.window} s)`
+    : (r.window.chosenBy ?? 'automatically');
   const cd = r.dischargeCoefficient;
   const ea = r.effectiveAreaM2;
   const outlet = vessel.outlets.find((o) => o.id === fit.outletId);
 
   main.append(
-    h('nav', { class: 'crumbs', 'aria-label': 'Where you are' }, h('a', { href: '#/' }, 'Fleet'), ' › ', h('a', { href: `#/vessels/${vessel.id}` }, vessel.name), ` › fit ${fit.id}`),
-    h('div', { class: 'title-row' }, h('h1', {}, `Fit ${fit.id} · ${vessel.name}${outlet ? `, outlet ${outlet.key}` : ''}`), h('span', { class: `badge badge-${fit.status}` }, fit.status)),
-    h('p', { class: 'lede' }, `Logger file ${test.fileName}${test.baro ? ` with barometric log ${test.baro.fileName}` : ''} · fitted ${dateTime(fit.createdAt)} · engine ${fit.engineVersion}`),
+    h(
+      'nav',
+      { class: 'crumbs', 'aria-label': 'Where you are' },
+      h('a', { href: '#/' }, 'Fleet'),
+      ' › ',
+      h('a', { href: `#/vessels/${vessel.id}` }, vessel.name),
+      ` › fit ${fit.id}`,
+    ),
+    h(
+      'div',
+      { class: 'title-row' },
+      h('h1', {}, `Fit ${fit.id} · ${vessel.name}${outlet ? `, outlet ${outlet.key}` : ''}`),
+      h('span', { class: `badge badge-${fit.status}` }, fit.status),
+    ),
+    h(
+      'p',
+      { class: 'lede' },
+      `Logger file ${test.fileName}${test.baro ? ` with barometric log ${test.baro.fileName}` : ''} · fitted ${dateTime(fit.createdAt)} · engine ${fit.engineVersion}`,
+    ),
   );
-  if (fit.supersededBy !== null) main.append(notice('info', 'This fit was replaced by a refit: ', h('a', { href: `#/fits/${fit.supersededBy}` }, `open fit ${fit.supersededBy}`), '.'));
+  if (fit.supersededBy !== null)
+    main.append(
+      notice(
+        'info',
+        'This fit was replaced by a refit: ',
+        h('a', { href: `#/fits/${fit.supersededBy}` }, `open fit ${fit.supersededBy}`),
+        '.',
+      ),
+    );
 
   // headline numbers
   const k = cd?.coverageFactor;
@@ -50,16 +98,96 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     h(
       'section',
       { class: 'headline', 'aria-label': 'Result' },
-      h('div', { class: 'card big' }, h('h2', {}, 'Discharge coefficient Cd'), h('p', { class: 'value' }, cd ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN)) : 'not available'), h('p', { class: 'hint' }, cd ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95?.[0], 4)} to ${num(cd.ci95?.[1], 4)}` : 'the outlet bore is not known, so only Cd·a is given')),
-      h('div', { class: 'card big' }, h('h2', {}, 'Effective area Cd·a'), h('p', { class: 'value' }, areaMm2(ea.value, ea.expandedUncertainty ?? 2 * (ea.standardUncertainty ?? NaN))), h('p', { class: 'hint' }, `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95?.[0] ?? NaN)} to ${areaMm2(ea.ci95?.[1] ?? NaN)}`)),
-      h('div', { class: 'card' }, h('h2', {}, 'Window'), h('p', {}, `${num(r.window.startS, 6)} s to ${num(r.window.endS, 6)} s from the first reading`), h('p', { class: 'hint' }, `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`)),
-      h('div', { class: 'card' }, h('h2', {}, 'Scatter about the curve'), h('p', {}, `RMS ${mm(r.residuals?.rmseM)}`), h('p', { class: 'hint' }, `largest ${mm(r.residuals?.maxAbsM)}; neighbouring residuals correlate ${num(r.residuals?.lag1Autocorrelation, 2)}; ${r.converged ? 'the solver converged' : 'the solver did NOT converge'}`)),
+      h(
+        'div',
+        { class: 'card big' },
+        h('h2', {}, 'Discharge coefficient Cd'),
+        h(
+          'p',
+          { class: 'value' },
+          cd
+            ? plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN))
+            : 'not available',
+        ),
+        h(
+          'p',
+          { class: 'hint' },
+          cd
+            ? `expanded uncertainty, coverage factor k = ${num(k ?? 2, 3)} (about 95 %); standard uncertainty ${num(cd.standardUncertainty, 2)}; 95 % interval ${num(cd.ci95?.[0], 4)} to ${num(cd.ci95?.[1], 4)}`
+            : 'the outlet bore is not known, so only Cd·a is given',
+        ),
+      ),
+      h(
+        'div',
+        { class: 'card big' },
+        h('h2', {}, 'Effective area Cd·a'),
+        h(
+          'p',
+          { class: 'value' },
+          areaMm2(ea.value, ea.expandedUncertainty ?? 2 * (ea.standardUncertainty ?? NaN)),
+        ),
+        h(
+          'p',
+          { class: 'hint' },
+          `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95?.[0] ?? NaN)} to ${areaMm2(ea.ci95?.[1] ?? NaN)}`,
+        ),
+      ),
+      h(
+        'div',
+        { class: 'card' },
+        h('h2', {}, 'Window'),
+        h(
+          'p',
+          {},
+          `${num(r.window.startS, 6)} s to ${num(r.window.endS, 6)} s from the first reading`,
+        ),
+        h(
+          'p',
+          { class: 'hint' },
+          `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`,
+        ),
+      ),
+      h(
+        'div',
+        { class: 'card' },
+        h('h2', {}, 'Scatter about the curve'),
+        h('p', {}, `RMS ${mm(r.residuals?.rmseM)}`),
+        h(
+          'p',
+          { class: 'hint' },
+          `largest ${mm(r.residuals?.maxAbsM)}; neighbouring residuals correlate ${num(r.residuals?.lag1Autocorrelation, 2)}; ${r.converged ? 'the solver converged' : 'the solver did NOT converge'}`,
+        ),
+      ),
     ),
   );
 
   // warnings, in the service's own plain sentences
   main.append(
-    h('section', {}, h('h2', {}, 'Warnings'), r.warnings.length ? h('ul', { class: 'warnings' }, r.warnings.map((w) => h('li', {}, w.stage ? h('span', { class: 'stage' }, `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : w.stage === 'budget' ? 'the uncertainty budget' : 'the fit'}: `) : null, inWords(w.message)))) : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.')),
+    h(
+      'section',
+      {},
+      h('h2', {}, 'Warnings'),
+      r.warnings.length
+        ? h(
+            'ul',
+            { class: 'warnings' },
+            r.warnings.map((w) =>
+              h(
+                'li',
+                {},
+                w.stage
+                  ? h(
+                      'span',
+                      { class: 'stage' },
+                      `${w.stage === 'reading' ? 'reading the file' : w.stage === 'window' ? 'choosing the window' : w.stage === 'budget' ? 'the uncertainty budget' : 'the fit'}: `,
+                    )
+                  : null,
+                inWords(w.message),
+              ),
+            ),
+          )
+        : h('p', {}, 'None: nothing in the reading, the window or the fit called for attention.'),
+    ),
   );
 
   // charts
@@ -68,8 +196,28 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     const curve = h('div', { class: 'chart', id: 'fit-chart' });
     const resid = h('div', { class: 'chart', id: 'residual-chart' });
     main.append(
-      h('section', {}, h('h2', {}, 'Readings and the fitted drain curve'), h('p', { class: 'hint' }, 'Dots: readings in the window (thinned for drawing; the fit used every reading). Line: the fitted model.'), curve),
-      h('section', {}, h('h2', {}, 'Residuals against time'), h('p', { class: 'hint' }, 'Reading minus fitted level. A good fit scatters evenly about zero; a slow wander means the model misses something. The band is ±2 × RMS.'), resid),
+      h(
+        'section',
+        {},
+        h('h2', {}, 'Readings and the fitted drain curve'),
+        h(
+          'p',
+          { class: 'hint' },
+          'Dots: readings in the window (thinned for drawing; the fit used every reading). Line: the fitted model.',
+        ),
+        curve,
+      ),
+      h(
+        'section',
+        {},
+        h('h2', {}, 'Residuals against time'),
+        h(
+          'p',
+          { class: 'hint' },
+          'Reading minus fitted level. A good fit scatters evenly about zero; a slow wander means the model misses something. The band is ±2 × RMS.',
+        ),
+        resid,
+      ),
     );
     fitChart(curve, plot.window as WindowPlot);
     residualChart(resid, plot.window as WindowPlot, r.residuals?.rmseM ?? null);
@@ -77,8 +225,28 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   if (r.headBands?.length) {
     const box = h('div', { class: 'chart', id: 'band-chart' });
     main.append(
-      h('section', {}, h('h2', {}, 'Cd by head band'), h('p', { class: 'hint' }, 'The window cut into bands of head over the outlet, each fitted alone; bars are ±2 standard uncertainties. A trend with head suggests the outflow law differs from the model.'), box,
-        table(null, ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'], r.headBands.map((b) => [`${num(b.headFromM, 4)} m`, `${num(b.headToM, 4)} m`, String(b.samples), (b.dischargeCoefficient ?? NaN).toFixed(decimalsFor(b.standardUncertainty ?? NaN)), num(b.standardUncertainty, 2)]))),
+      h(
+        'section',
+        {},
+        h('h2', {}, 'Cd by head band'),
+        h(
+          'p',
+          { class: 'hint' },
+          'The window cut into bands of head over the outlet, each fitted alone; bars are ±2 standard uncertainties. A trend with head suggests the outflow law differs from the model.',
+        ),
+        box,
+        table(
+          null,
+          ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'],
+          r.headBands.map((b) => [
+            `${num(b.headFromM, 4)} m`,
+            `${num(b.headToM, 4)} m`,
+            String(b.samples),
+            (b.dischargeCoefficient ?? NaN).toFixed(decimalsFor(b.standardUncertainty ?? NaN)),
+            num(b.standardUncertainty, 2),
+          ]),
+        ),
+      ),
     );
     headBandChart(box, r.headBands as Parameters<typeof headBandChart>[1]);
   }
@@ -87,25 +255,71 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   if (r.budget?.table) {
     const t = r.budget.table;
     main.append(
-      h('section', { id: 'budget' }, h('h2', {}, 'Uncertainty budget (JCGM 100:2008)'), h('p', { class: 'hint' }, 'Every input with its standard uncertainty, sensitivity coefficient and contribution to u(Cd); the same numbers as the text and PDF reports.'),
+      h(
+        'section',
+        { id: 'budget' },
+        h('h2', {}, 'Uncertainty budget (JCGM 100:2008)'),
+        h(
+          'p',
+          { class: 'hint' },
+          'Every input with its standard uncertainty, sensitivity coefficient and contribution to u(Cd); the same numbers as the text and PDF reports.',
+        ),
         table(null, t.columns, t.rows, 'budget'),
-        h('ul', { class: 'budget-totals' }, t.totals.map(([k, v]) => h('li', {}, `${k}: ${v}`))),
-        h('details', {}, h('summary', {}, 'How the budget is made'), h('ul', {}, r.budget.notes.map((n) => h('li', {}, n))))),
+        h(
+          'ul',
+          { class: 'budget-totals' },
+          t.totals.map(([k, v]) => h('li', {}, `${k}: ${v}`)),
+        ),
+        h(
+          'details',
+          {},
+          h('summary', {}, 'How the budget is made'),
+          h(
+            'ul',
+            {},
+            r.budget.notes.map((n) => h('li', {}, n)),
+          ),
+        ),
+      ),
     );
   }
   const drainModel = drainVesselFromFit(r);
   if (drainModel) {
     const fromIn = h('input', { type: 'number', step: 'any', min: '0', name: 'from', value: '' });
-    const toIn = h('input', { type: 'number', step: 'any', min: '0', name: 'to', value: String(drainModel.vessel.outletElevationM) });
+    const toIn = h('input', {
+      type: 'number',
+      step: 'any',
+      min: '0',
+      name: 'to',
+      value: String(drainModel.vessel.outletElevationM),
+    });
     const answer = h('p', { 'aria-live': 'polite', id: 'drain-time-answer' });
-    const calc = h('form', { class: 'card drain-calc', id: 'drain-calculator' }, h('h2', {}, 'How long to drain'),
-      h('p', { class: 'hint' }, `Levels in metres above the vessel's lowest point; the outlet is at ${drainModel.vessel.outletElevationM} m. No inflow; 95 % interval from this fit's budget.`),
-      field('From level, m', fromIn), field('To level, m', toIn), h('div', { class: 'actions' }, h('button', { type: 'submit' }, 'Work it out')), answer);
+    const calc = h(
+      'form',
+      { class: 'card drain-calc', id: 'drain-calculator' },
+      h('h2', {}, 'How long to drain'),
+      h(
+        'p',
+        { class: 'hint' },
+        `Levels in metres above the vessel's lowest point; the outlet is at ${drainModel.vessel.outletElevationM} m. No inflow; 95 % interval from this fit's budget.`,
+      ),
+      field('From level, m', fromIn),
+      field('To level, m', toIn),
+      h('div', { class: 'actions' }, h('button', { type: 'submit' }, 'Work it out')),
+      answer,
+    );
     calc.addEventListener('submit', (e) => {
       e.preventDefault();
       try {
-        const p = drainTimeWithBudget(drainModel.vessel, drainModel.lines, Number(fromIn.value), Number(toIn.value));
-        answer.replaceChildren(`${num(p.value, 6)} s, about ${(p.value / 60).toFixed(1)} min; 95 % interval ${num(p.ci95[0], 6)} s to ${num(p.ci95[1], 6)} s (k = ${num(p.coverageFactor, 3)})`);
+        const p = drainTimeWithBudget(
+          drainModel.vessel,
+          drainModel.lines,
+          Number(fromIn.value),
+          Number(toIn.value),
+        );
+        answer.replaceChildren(
+          `${num(p.value, 6)} s, about ${(p.value / 60).toFixed(1)} min; 95 % interval ${num(p.ci95[0], 6)} s to ${num(p.ci95[1], 6)} s (k = ${num(p.coverageFactor, 3)})`,
+        );
       } catch (err) {
         answer.replaceChildren(notice('error', err instanceof Error ? err.message : String(err)));
       }
@@ -116,54 +330,155 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
   // parameters, correlations, model comparison
   if (r.parameters) {
     main.append(
-      h('section', {}, h('h2', {}, 'Parameters'), table(null, ['Parameter', 'Value', 'Standard uncertainty', '95 % interval', 'Fitted or fixed'], r.parameters.map((p) => {
-        const s = scaled(p.unit);
-        const u = p.standardUncertainty;
-        const d = u ? decimalsFor(u * s.factor) : 4;
-        const unit = s.unit ? ` ${s.unit}` : '';
-        return [
-          paramName(p.name),
-          `${u ? ((p.value ?? NaN) * s.factor).toFixed(d) : num((p.value ?? NaN) * s.factor, 5)}${unit}`,
-          u === null ? '—' : `${num(u * s.factor, 2)}${unit}`,
-          p.ci95 && p.free ? `${((p.ci95[0] ?? NaN) * s.factor).toFixed(d)} to ${((p.ci95[1] ?? NaN) * s.factor).toFixed(d)}${unit}` : '—',
-          p.free ? (p.atBound ? 'fitted (at its limit)' : 'fitted') : 'fixed',
-        ];
-      }))),
+      h(
+        'section',
+        {},
+        h('h2', {}, 'Parameters'),
+        table(
+          null,
+          ['Parameter', 'Value', 'Standard uncertainty', '95 % interval', 'Fitted or fixed'],
+          r.parameters.map((p) => {
+            const s = scaled(p.unit);
+            const u = p.standardUncertainty;
+            const d = u ? decimalsFor(u * s.factor) : 4;
+            const unit = s.unit ? ` ${s.unit}` : '';
+            return [
+              paramName(p.name),
+              `${u ? ((p.value ?? NaN) * s.factor).toFixed(d) : num((p.value ?? NaN) * s.factor, 5)}${unit}`,
+              u === null ? '—' : `${num(u * s.factor, 2)}${unit}`,
+              p.ci95 && p.free
+                ? `${((p.ci95[0] ?? NaN) * s.factor).toFixed(d)} to ${((p.ci95[1] ?? NaN) * s.factor).toFixed(d)}${unit}`
+                : '—',
+              p.free ? (p.atBound ? 'fitted (at its limit)' : 'fitted') : 'fixed',
+            ];
+          }),
+        ),
+      ),
     );
   }
   if (r.correlations && r.correlations.parameters.length > 1) {
     const names = r.correlations.parameters;
-    main.append(h('section', {}, h('h2', {}, 'Correlations between fitted parameters'), h('p', { class: 'hint' }, 'Near ±1: the data cannot tell the two apart well.'), table(null, ['', ...names.map(paramName)], names.map((n, i) => [paramName(n), ...r.correlations!.matrix[i].map((c) => h('span', { class: c !== null && Math.abs(c) > 0.95 && i !== r.correlations!.matrix[i].indexOf(c) ? 'strong-corr' : '' }, c === null ? '—' : c.toFixed(3)))]), 'corr')));
+    main.append(
+      h(
+        'section',
+        {},
+        h('h2', {}, 'Correlations between fitted parameters'),
+        h('p', { class: 'hint' }, 'Near ±1: the data cannot tell the two apart well.'),
+        table(
+          null,
+          ['', ...names.map(paramName)],
+          names.map((n, i) => [
+            paramName(n),
+            ...r.correlations!.matrix[i].map((c) =>
+              h(
+                'span',
+                {
+                  class:
+                    c !== null && Math.abs(c) > 0.95 && i !== r.correlations!.matrix[i].indexOf(c)
+                      ? 'strong-corr'
+                      : '',
+                },
+                c === null ? '—' : c.toFixed(3),
+              ),
+            ),
+          ]),
+          'corr',
+        ),
+      ),
+    );
   }
   if (r.modelComparison) {
     const mc = r.modelComparison;
     main.append(
-      h('section', {}, h('h2', {}, 'Model comparison'), h('p', {}, `Chosen model: ${mc.chosen.model} (${mc.chosen.parameters} fitted parameters). ${mc.basis ?? ''}`),
-        table(null, ['Term', 'Compared model', 'Change in AIC', 'F-test p', 'In words'], mc.rows.map((row) => {
-          const earned = row.fTest ? (row.fTest.pValue ?? 1) < 0.05 : false;
-          const words = row.change === 'with' ? (earned && (row.deltaAic ?? 0) < -2 ? `adding the ${termName(row.term)} is supported by the data` : `the ${termName(row.term)} is not needed`) : earned ? `the ${termName(row.term)} is earned: keep it` : `the ${termName(row.term)} is not supported by the data`;
-          return [`${row.change} ${termName(row.term)}`, row.model, row.deltaAic === null ? '—' : row.deltaAic.toFixed(1), pct(row.fTest?.pValue), words];
-        }))),
+      h(
+        'section',
+        {},
+        h('h2', {}, 'Model comparison'),
+        h(
+          'p',
+          {},
+          `Chosen model: ${mc.chosen.model} (${mc.chosen.parameters} fitted parameters). ${mc.basis ?? ''}`,
+        ),
+        table(
+          null,
+          ['Term', 'Compared model', 'Change in AIC', 'F-test p', 'In words'],
+          mc.rows.map((row) => {
+            const earned = row.fTest ? (row.fTest.pValue ?? 1) < 0.05 : false;
+            const words =
+              row.change === 'with'
+                ? earned && (row.deltaAic ?? 0) < -2
+                  ? `adding the ${termName(row.term)} is supported by the data`
+                  : `the ${termName(row.term)} is not needed`
+                : earned
+                  ? `the ${termName(row.term)} is earned: keep it`
+                  : `the ${termName(row.term)} is not supported by the data`;
+            return [
+              `${row.change} ${termName(row.term)}`,
+              row.model,
+              row.deltaAic === null ? '—' : row.deltaAic.toFixed(1),
+              pct(row.fTest?.pValue),
+              words,
+            ];
+          }),
+        ),
+      ),
     );
   }
 
   // the window on the whole log, and how it was cut
   const logBox = h('div', { class: 'chart', id: 'window-chart' });
   const trims = r.window.trims ?? [];
-  const windowSection = h('section', {}, h('h2', {}, 'The window on the whole log'), logBox, trims.length ? h('ul', {}, trims.map((t) => h('li', {}, `${(t.fromS ?? NaN).toFixed(1)} s to ${(t.toS ?? NaN).toFixed(1)} s left out: ${t.reason}`))) : null, h('details', {}, h('summary', {}, 'How the window was chosen'), h('ul', {}, (r.window.notes ?? []).map((n) => h('li', {}, n.message)))));
+  const windowSection = h(
+    'section',
+    {},
+    h('h2', {}, 'The window on the whole log'),
+    logBox,
+    trims.length
+      ? h(
+          'ul',
+          {},
+          trims.map((t) =>
+            h(
+              'li',
+              {},
+              `${(t.fromS ?? NaN).toFixed(1)} s to ${(t.toS ?? NaN).toFixed(1)} s left out: ${t.reason}`,
+            ),
+          ),
+        )
+      : null,
+    h(
+      'details',
+      {},
+      h('summary', {}, 'How the window was chosen'),
+      h(
+        'ul',
+        {},
+        (r.window.notes ?? []).map((n) => h('li', {}, n.message)),
+      ),
+    ),
+  );
   main.append(windowSection);
   let series: Series | null = null;
   try {
-    series = (await api<{ series: Series }>('GET', `/api/tests/${fit.testId}/series?fit=${fit.id}`)).series;
+    series = (await api<{ series: Series }>('GET', `/api/tests/${fit.testId}/series?fit=${fit.id}`))
+      .series;
   } catch (e) {
     if (!(e instanceof ApiError) || e.status !== 404) throw e; // no full-resolution route: draw the stored thinned log
   }
   const t0 = series?.t0 ?? r.read?.t0 ?? null;
   const win = windowForm((s) => clockAt(t0, s), 'Window of this fit');
-  const lc = logChart(logBox, series?.timeS ?? plot?.log.timeS ?? [], series?.levelM ?? (plot?.log.levelM as number[] | undefined) ?? [], r.window, canUpload(user) ? (a, b) => {
-    win.set(a, b, true);
-    lc.setWindow(a, b);
-  } : undefined);
+  const lc = logChart(
+    logBox,
+    series?.timeS ?? plot?.log.timeS ?? [],
+    series?.levelM ?? (plot?.log.levelM as number[] | undefined) ?? [],
+    r.window,
+    canUpload(user)
+      ? (a, b) => {
+          win.set(a, b, true);
+          lc.setWindow(a, b);
+        }
+      : undefined,
+  );
   win.onChange((a, b) => lc.setWindow(a, b));
   win.set(r.window.startS, r.window.endS, false);
 
@@ -173,7 +488,10 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     const out = h('div', { 'aria-live': 'polite' });
     const decide = (decision: 'approve' | 'reject') => async () => {
       try {
-        await api('POST', `/api/fits/${id}/review`, { decision, comment: comment.value.trim() || undefined });
+        await api('POST', `/api/fits/${id}/review`, {
+          decision,
+          comment: comment.value.trim() || undefined,
+        });
         go(`#/fits/${id}`);
       } catch (e) {
         out.replaceChildren(notice('error', e instanceof Error ? e.message : String(e)));
@@ -183,30 +501,74 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     const reject = h('button', { type: 'button', class: 'danger' }, 'Reject');
     approve.addEventListener('click', decide('approve'));
     reject.addEventListener('click', decide('reject'));
-    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), field('Comment (kept with the fit)', comment), h('div', { class: 'actions' }, approve, reject), out));
+    main.append(
+      h(
+        'section',
+        { class: 'card review' },
+        h('h2', {}, 'Review'),
+        field('Comment (kept with the fit)', comment),
+        h('div', { class: 'actions' }, approve, reject),
+        out,
+      ),
+    );
   } else if (fit.review?.at) {
-    main.append(h('section', { class: 'card review' }, h('h2', {}, 'Review'), h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`),
-      fit.review.selfReview ? notice('caution', 'Self-review: approved by the person who uploaded the test or asked for this fit (allowed for this site by an admin; four eyes waived).') : null, fit.review.comment ? h('blockquote', {}, fit.review.comment) : null));
+    main.append(
+      h(
+        'section',
+        { class: 'card review' },
+        h('h2', {}, 'Review'),
+        h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`),
+        fit.review.selfReview
+          ? notice(
+              'caution',
+              'Self-review: approved by the person who uploaded the test or asked for this fit (allowed for this site by an admin; four eyes waived).',
+            )
+          : null,
+        fit.review.comment ? h('blockquote', {}, fit.review.comment) : null,
+      ),
+    );
   }
 
   // refit
   if (canUpload(user) && fit.supersededBy === null) {
     const sensor = (fit.vessel.sensor ?? {}) as Record<string, unknown>;
-    const model = modelForm(fit.settings, typeof sensor.zeroElevationM !== 'number' && typeof sensor.mountElevationM !== 'number');
+    const model = modelForm(
+      fit.settings,
+      typeof sensor.zeroElevationM !== 'number' && typeof sensor.mountElevationM !== 'number',
+    );
     const reading = readingForm(fit.settings);
     const out = h('div', { 'aria-live': 'polite' });
     const button = h('button', { type: 'submit' }, 'Fit again');
-    const form = h('form', { class: 'card refit' }, h('h2', {}, 'Fit again with another window or model'), h('p', { class: 'hint' }, 'Drag across the chart above or type the times. The present fit is kept and marked as replaced.'), win.el, model.el, h('details', {}, h('summary', {}, 'Reading settings'), reading.el), h('div', { class: 'actions' }, button, out));
+    const form = h(
+      'form',
+      { class: 'card refit' },
+      h('h2', {}, 'Fit again with another window or model'),
+      h(
+        'p',
+        { class: 'hint' },
+        'Drag across the chart above or type the times. The present fit is kept and marked as replaced.',
+      ),
+      win.el,
+      model.el,
+      h('details', {}, h('summary', {}, 'Reading settings'), reading.el),
+      h('div', { class: 'actions' }, button, out),
+    );
     form.addEventListener('submit', async (e) => {
       e.preventDefault();
       button.disabled = true;
       out.replaceChildren(h('p', {}, 'Fitting…'));
-      const settings = { ...reading.values(), ...model.values(), ...(win.value() ? { window: win.value() } : {}) };
+      const settings = {
+        ...reading.values(),
+        ...model.values(),
+        ...(win.value() ? { window: win.value() } : {}),
+      };
       try {
         const f = await api<Fit>('POST', `/api/fits/${id}/refit`, { settings });
         go(`#/fits/${f.id}`);
       } catch (err) {
-        out.replaceChildren(notice('error', `Not fitted: ${err instanceof Error ? err.message : String(err)}`));
+        out.replaceChildren(
+          notice('error', `Not fitted: ${err instanceof Error ? err.message : String(err)}`),
+        );
         button.disabled = false;
       }
     });
@@ -215,13 +577,41 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
 
   // the report, and the other fits of the same test
   main.append(
-    h('section', {}, h('h2', {}, 'Report'), h('p', {}, h('a', { href: `/api/fits/${id}/report.pdf`, class: 'button' }, 'Download the report (PDF)'), ' ', h('span', { class: 'hint' }, 'built when you ask for it; a long report may take a few seconds'))),
-    h('section', {}, h('h2', {}, 'Fits of this test'), table(null, ['Fit', 'Made', 'Window', 'Cd', 'State'], siblings.items.map((s) => [
-      s.id === id ? `${s.id} (this one)` : h('a', { href: `#/fits/${s.id}` }, String(s.id)),
-      dateTime(s.createdAt),
-      `${num(s.result.window.startS, 5)} s to ${num(s.result.window.endS, 5)} s`,
-      s.result.dischargeCoefficient ? s.result.dischargeCoefficient.value.toFixed(4) : '—',
-      `${s.status}${s.supersededBy !== null ? ', replaced' : ''}`,
-    ]))),
+    h(
+      'section',
+      {},
+      h('h2', {}, 'Report'),
+      h(
+        'p',
+        {},
+        h(
+          'a',
+          { href: `/api/fits/${id}/report.pdf`, class: 'button' },
+          'Download the report (PDF)',
+        ),
+        ' ',
+        h(
+          'span',
+          { class: 'hint' },
+          'built when you ask for it; a long report may take a few seconds',
+        ),
+      ),
+    ),
+    h(
+      'section',
+      {},
+      h('h2', {}, 'Fits of this test'),
+      table(
+        null,
+        ['Fit', 'Made', 'Window', 'Cd', 'State'],
+        siblings.items.map((s) => [
+          s.id === id ? `${s.id} (this one)` : h('a', { href: `#/fits/${s.id}` }, String(s.id)),
+          dateTime(s.createdAt),
+          `${num(s.result.window.startS, 5)} s to ${num(s.result.window.endS, 5)} s`,
+          s.result.dischargeCoefficient ? s.result.dischargeCoefficient.value.toFixed(4) : '—',
+          `${s.status}${s.supersededBy !== null ? ', replaced' : ''}`,
+        ]),
+      ),
+    ),
   );
 }

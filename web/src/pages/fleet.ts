@@ -16,23 +16,53 @@ interface Row {
 }
 
 const dueOf = (d: { status: string; daysToThreshold: number | null } | undefined) =>
-  !d ? Infinity : d.status === 'past threshold' ? -Infinity : d.daysToThreshold !== null && Number.isFinite(d.daysToThreshold) ? d.daysToThreshold : Infinity;
+  !d
+    ? Infinity
+    : d.status === 'past threshold'
+      ? -Infinity
+      : d.daysToThreshold !== null && Number.isFinite(d.daysToThreshold)
+        ? d.daysToThreshold
+        : Infinity;
 
 export async function fleetPage({ main }: PageContext): Promise<void> {
-  main.append(h('h1', {}, 'Fleet'), h('p', { class: 'lede' }, 'Every vessel and outlet with its latest discharge coefficient. Choose a vessel for its drawing, its tests and its history.'));
+  main.append(
+    h('h1', {}, 'Fleet'),
+    h(
+      'p',
+      { class: 'lede' },
+      'Every vessel and outlet with its latest discharge coefficient. Choose a vessel for its drawing, its tests and its history.',
+    ),
+  );
   const vessels = await api<Page<Vessel>>('GET', '/api/vessels?limit=500');
-  const [histories, drift] = await Promise.all([Promise.all(vessels.items.map((v) => vesselHistory(v.id))), fleetDrift()]);
+  const [histories, drift] = await Promise.all([
+    Promise.all(vessels.items.map((v) => vesselHistory(v.id))),
+    fleetDrift(),
+  ]);
   const rows: Row[] = [];
   vessels.items.forEach((v, i) => {
     const active = v.outlets.filter((o) => o.retiredAt === null);
     for (const o of active.length ? active : [null]) {
-      const tests = histories[i].tests.filter((t) => o === null || t.outletId === o.id || t.outletId === null).length;
-      rows.push({ vessel: v, outlet: o, latest: latestFor(o, histories[i].fits), tests, drift: o ? driftWords(drift.get(o.id)) : null, due: o ? dueOf(drift.get(o.id)) : Infinity });
+      const tests = histories[i].tests.filter(
+        (t) => o === null || t.outletId === o.id || t.outletId === null,
+      ).length;
+      rows.push({
+        vessel: v,
+        outlet: o,
+        latest: latestFor(o, histories[i].fits),
+        tests,
+        drift: o ? driftWords(drift.get(o.id)) : null,
+        due: o ? dueOf(drift.get(o.id)) : Infinity,
+      });
     }
   });
   const anyDrift = drift.size > 0;
 
-  const search = h('input', { type: 'search', name: 'q', placeholder: 'vessel, site or outlet', autocomplete: 'off' });
+  const search = h('input', {
+    type: 'search',
+    name: 'q',
+    placeholder: 'vessel, site or outlet',
+    autocomplete: 'off',
+  });
   const sites = [...new Set(vessels.items.map((v) => v.site))].sort();
   const site = select('site', [['', 'all sites'], ...sites.map((s): [string, string] => [s, s])]);
   const state = select('state', [
@@ -41,11 +71,44 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
     ['draft', 'latest fit waiting for review'],
     ['none', 'never tested'],
   ]);
-  const order = select('order', anyDrift ? [['due', 'time to the action threshold, soonest first'], ['name', 'vessel name']] : [['name', 'vessel name']], anyDrift ? 'due' : 'name');
+  const order = select(
+    'order',
+    anyDrift
+      ? [
+          ['due', 'time to the action threshold, soonest first'],
+          ['name', 'vessel name'],
+        ]
+      : [['name', 'vessel name']],
+    anyDrift ? 'due' : 'name',
+  );
   const count = h('p', { class: 'count', 'aria-live': 'polite' });
   const body = h('tbody');
-  const head = ['Vessel', 'Site', 'Shape', 'Outlet', 'Latest Cd ± expanded uncertainty (k)', 'Fit', 'Last test', 'Tests', ...(anyDrift ? ['Drift status'] : [])];
-  const tableEl = h('table', { class: 'fleet' }, h('caption', { class: 'visually-hidden' }, 'Vessels and outlets'), h('thead', {}, h('tr', {}, head.map((t) => h('th', { scope: 'col' }, t)))), body);
+  const head = [
+    'Vessel',
+    'Site',
+    'Shape',
+    'Outlet',
+    'Latest Cd ± expanded uncertainty (k)',
+    'Fit',
+    'Last test',
+    'Tests',
+    ...(anyDrift ? ['Drift status'] : []),
+  ];
+  const tableEl = h(
+    'table',
+    { class: 'fleet' },
+    h('caption', { class: 'visually-hidden' }, 'Vessels and outlets'),
+    h(
+      'thead',
+      {},
+      h(
+        'tr',
+        {},
+        head.map((t) => h('th', { scope: 'col' }, t)),
+      ),
+    ),
+    body,
+  );
 
   const draw = () => {
     const q = search.value.trim().toLowerCase();
@@ -55,9 +118,14 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
       if (state.value === 'approved' && r.latest?.fit.status !== 'approved') return false;
       if (state.value === 'draft' && r.latest?.fit.status !== 'draft') return false;
       if (!q) return true;
-      return [r.vessel.name, r.vessel.site, r.outlet?.key ?? ''].some((s) => s.toLowerCase().includes(q));
+      return [r.vessel.name, r.vessel.site, r.outlet?.key ?? ''].some((s) =>
+        s.toLowerCase().includes(q),
+      );
     });
-    if (order.value === 'due') shown.sort((a, b) => (a.due === b.due ? a.vessel.name.localeCompare(b.vessel.name) : a.due < b.due ? -1 : 1));
+    if (order.value === 'due')
+      shown.sort((a, b) =>
+        a.due === b.due ? a.vessel.name.localeCompare(b.vessel.name) : a.due < b.due ? -1 : 1,
+      );
     body.replaceChildren(
       ...shown.map((r) => {
         const cd = r.latest?.fit.result.dischargeCoefficient;
@@ -67,19 +135,70 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
           {},
           h('th', { scope: 'row' }, h('a', { href: `#/vessels/${r.vessel.id}` }, r.vessel.name)),
           h('td', {}, r.vessel.site),
-          h('td', {}, shapeName(String((r.vessel.spec.shape as { kind?: string } | undefined)?.kind ?? ''))),
-          h('td', {}, r.outlet ? `${r.outlet.key} (${outletName(r.outlet.type)}${r.outlet.boreM ? `, ${(r.outlet.boreM * 1000).toFixed(1)} mm bore` : ''})` : 'no outlet'),
-          h('td', { class: 'num' }, cd ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN))}${k ? ` (k = ${k.toFixed(2)})` : ''}` : '—'),
-          h('td', {}, r.latest ? h('a', { href: `#/fits/${r.latest.fit.id}`, class: `badge badge-${r.latest.fit.status}` }, r.latest.fit.status) : '—'),
+          h(
+            'td',
+            {},
+            shapeName(String((r.vessel.spec.shape as { kind?: string } | undefined)?.kind ?? '')),
+          ),
+          h(
+            'td',
+            {},
+            r.outlet
+              ? `${r.outlet.key} (${outletName(r.outlet.type)}${r.outlet.boreM ? `, ${(r.outlet.boreM * 1000).toFixed(1)} mm bore` : ''})`
+              : 'no outlet',
+          ),
+          h(
+            'td',
+            { class: 'num' },
+            cd
+              ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN))}${k ? ` (k = ${k.toFixed(2)})` : ''}`
+              : '—',
+          ),
+          h(
+            'td',
+            {},
+            r.latest
+              ? h(
+                  'a',
+                  {
+                    href: `#/fits/${r.latest.fit.id}`,
+                    class: `badge badge-${r.latest.fit.status}`,
+                  },
+                  r.latest.fit.status,
+                )
+              : '—',
+          ),
           h('td', {}, r.latest ? date(r.latest.at) : '—'),
           h('td', { class: 'num' }, String(r.tests)),
-          ...(anyDrift ? [h('td', { title: (r.outlet && drift.get(r.outlet.id)?.reason) || '', class: `drift drift-${(r.outlet && drift.get(r.outlet.id)?.status.replace(/\s+/g, '-')) || 'none'}` }, r.drift ?? '—')] : []),
+          ...(anyDrift
+            ? [
+                h(
+                  'td',
+                  {
+                    title: (r.outlet && drift.get(r.outlet.id)?.reason) || '',
+                    class: `drift drift-${(r.outlet && drift.get(r.outlet.id)?.status.replace(/\s+/g, '-')) || 'none'}`,
+                  },
+                  r.drift ?? '—',
+                ),
+              ]
+            : []),
         );
       }),
     );
     count.textContent = `${shown.length} of ${rows.length} outlets shown${anyDrift ? '' : ' · drift status appears here once the service offers it'}`;
   };
   for (const c of [search, site, state, order]) c.addEventListener('input', draw);
-  main.append(h('div', { class: 'filters' }, field('Search', search), field('Site', site), field('Show', state), field('Order by', order)), count, h('div', { class: 'table-wrap' }, tableEl));
+  main.append(
+    h(
+      'div',
+      { class: 'filters' },
+      field('Search', search),
+      field('Site', site),
+      field('Show', state),
+      field('Order by', order),
+    ),
+    count,
+    h('div', { class: 'table-wrap' }, tableEl),
+  );
   draw();
 }

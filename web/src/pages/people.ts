@@ -30,9 +30,18 @@ interface Site {
   selfReviewAllowed: boolean;
 }
 
-const ROLES: [string, string][] = [['technician', 'technician'], ['engineer', 'engineer'], ['auditor', 'auditor'], ['admin', 'admin']];
+const ROLES: [string, string][] = [
+  ['technician', 'technician'],
+  ['engineer', 'engineer'],
+  ['auditor', 'auditor'],
+  ['admin', 'admin'],
+];
 const sitesText = (s: string[] | null) => (s?.length ? s.join(', ') : 'every site');
-const parseSites = (text: string) => text.split(',').map((x) => x.trim()).filter(Boolean);
+const parseSites = (text: string) =>
+  text
+    .split(',')
+    .map((x) => x.trim())
+    .filter(Boolean);
 const message = (e: unknown) => (e instanceof Error ? e.message : String(e));
 
 export async function peoplePage({ user, main }: PageContext): Promise<void> {
@@ -66,7 +75,12 @@ export async function peoplePage({ user, main }: PageContext): Promise<void> {
     };
     const personRows = people.items.map((p) => {
       const role = select('role', ROLES, p.role);
-      const siteBox = h('input', { type: 'text', value: p.sites?.join(', ') ?? '', placeholder: 'every site', 'aria-label': `sites of ${p.name}` });
+      const siteBox = h('input', {
+        type: 'text',
+        value: p.sites?.join(', ') ?? '',
+        placeholder: 'every site',
+        'aria-label': `sites of ${p.name}`,
+      });
       const live = p.revokedAt === null;
       return [
         p.name,
@@ -74,25 +88,60 @@ export async function peoplePage({ user, main }: PageContext): Promise<void> {
         live ? siteBox : sitesText(p.sites),
         live ? 'active' : `revoked ${dateTime(p.revokedAt)}`,
         live
-          ? h('span', {},
-              act('Save', () => api('PATCH', `/api/people/${p.id}`, { role: role.value, sites: parseSites(siteBox.value) })),
+          ? h(
+              'span',
+              {},
+              act('Save', () =>
+                api('PATCH', `/api/people/${p.id}`, {
+                  role: role.value,
+                  sites: parseSites(siteBox.value),
+                }),
+              ),
               act('New token', async () => {
-                const r = await api<{ token: string }>('POST', `/api/people/${p.id}/tokens`, { label: 'web' });
-                out.replaceChildren(notice('caution', `Token for ${p.name}, shown this once — hand it over safely: `, h('code', {}, r.token)));
+                const r = await api<{ token: string }>('POST', `/api/people/${p.id}/tokens`, {
+                  label: 'web',
+                });
+                out.replaceChildren(
+                  notice(
+                    'caution',
+                    `Token for ${p.name}, shown this once — hand it over safely: `,
+                    h('code', {}, r.token),
+                  ),
+                );
               }),
-              act('Revoke', () => api('POST', `/api/people/${p.id}/revoke`)))
+              act('Revoke', () => api('POST', `/api/people/${p.id}/revoke`)),
+            )
           : '',
       ];
     });
-    const tokenRows = tokens.items.map((t) => [t.userName, t.name, dateTime(t.createdAt), t.revokedAt ? `revoked ${dateTime(t.revokedAt)}` : act('Revoke', () => api('DELETE', `/api/tokens/${t.id}`))]);
+    const tokenRows = tokens.items.map((t) => [
+      t.userName,
+      t.name,
+      dateTime(t.createdAt),
+      t.revokedAt
+        ? `revoked ${dateTime(t.revokedAt)}`
+        : act('Revoke', () => api('DELETE', `/api/tokens/${t.id}`)),
+    ]);
     const siteRows = sites.items.map((s) => [
       s.name,
       s.selfReviewAllowed ? 'allowed (each one marked)' : 'four eyes',
-      act(s.selfReviewAllowed ? 'Require four eyes' : 'Allow self-review', () => api('PUT', `/api/sites/${encodeURIComponent(s.name)}/settings`, { selfReviewAllowed: !s.selfReviewAllowed })),
+      act(s.selfReviewAllowed ? 'Require four eyes' : 'Allow self-review', () =>
+        api('PUT', `/api/sites/${encodeURIComponent(s.name)}/settings`, {
+          selfReviewAllowed: !s.selfReviewAllowed,
+        }),
+      ),
     ]);
     lists.append(
-      table('People', ['Name', 'Role', 'Sites (comma-separated; blank: every site)', 'State', ''], personRows),
-      table('Access tokens (the secrets are never shown again)', ['Person', 'Label', 'Made', ''], tokenRows),
+      table(
+        'People',
+        ['Name', 'Role', 'Sites (comma-separated; blank: every site)', 'State', ''],
+        personRows,
+      ),
+      table(
+        'Access tokens (the secrets are never shown again)',
+        ['Person', 'Label', 'Made', ''],
+        tokenRows,
+      ),
       table('Sites', ['Site', 'Approvals', ''], siteRows),
     );
   }
@@ -101,11 +150,23 @@ export async function peoplePage({ user, main }: PageContext): Promise<void> {
   const role = select('role', ROLES, 'technician');
   const sites = h('input', { type: 'text', name: 'sites', placeholder: 'every site' });
   const add = h('button', { type: 'submit', class: 'primary' }, 'Add person');
-  const form = h('form', { class: 'card' }, h('h2', {}, 'Add a person'), field('Name', name), field('Role', role), field('Sites (comma-separated)', sites, 'blank: every site'), h('div', { class: 'actions' }, add));
+  const form = h(
+    'form',
+    { class: 'card' },
+    h('h2', {}, 'Add a person'),
+    field('Name', name),
+    field('Role', role),
+    field('Sites (comma-separated)', sites, 'blank: every site'),
+    h('div', { class: 'actions' }, add),
+  );
   form.addEventListener('submit', async (e) => {
     e.preventDefault();
     try {
-      await api('POST', '/api/people', { name: name.value.trim(), role: role.value, sites: parseSites(sites.value) });
+      await api('POST', '/api/people', {
+        name: name.value.trim(),
+        role: role.value,
+        sites: parseSites(sites.value),
+      });
       form.reset();
       out.replaceChildren(notice('info', 'Added. Make a token for them to sign in with.'));
       await draw();

@@ -3,13 +3,25 @@ import { field, h, notice } from '../dom.js';
 
 /** A token in (the demo prints one; `efflux token create` makes more); a session cookie out. */
 export async function signInPage(main: HTMLElement, done: (u: User) => void): Promise<void> {
-  const token = h('input', { type: 'password', name: 'token', autocomplete: 'off', required: true, spellcheck: 'false' });
+  const token = h('input', {
+    type: 'password',
+    name: 'token',
+    autocomplete: 'off',
+    required: true,
+    spellcheck: 'false',
+  });
   const status = h('div', { 'aria-live': 'polite' });
   const form = h(
     'form',
     { class: 'card sign-in' },
     h('h1', { tabindex: -1 }, 'Sign in'),
-    h('p', {}, 'Paste the access token you were given. The first start of the service prints one for the administrator; an administrator makes more with ', h('code', {}, 'efflux token create --role ROLE --name NAME'), '.'),
+    h(
+      'p',
+      {},
+      'Paste the access token you were given. The first start of the service prints one for the administrator; an administrator makes more with ',
+      h('code', {}, 'efflux token create --role ROLE --name NAME'),
+      '.',
+    ),
     field('Access token', token),
     h('button', { type: 'submit', class: 'primary' }, 'Sign in'),
     status,

@@ -38,30 +38,83 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   const cur = t.epochs.find((e) => e.current) ?? null;
   const cls = STATUS_CLASS[t.status.status] ?? 'quiet';
   wrap.append(
-    h('div', { class: 'title-row' }, h('h3', {}, `Outlet ${o.key}`), h('span', { class: `status status-${cls}` }, t.status.status)),
-    h('p', { class: 'trend-status' }, sentence(t.status.reason), ' ', t.status.crossingAt && t.status.reason.includes(date(t.status.crossingAt)) ? '' : forecastWords(t)),
+    h(
+      'div',
+      { class: 'title-row' },
+      h('h3', {}, `Outlet ${o.key}`),
+      h('span', { class: `status status-${cls}` }, t.status.status),
+    ),
+    h(
+      'p',
+      { class: 'trend-status' },
+      sentence(t.status.reason),
+      ' ',
+      t.status.crossingAt && t.status.reason.includes(date(t.status.crossingAt))
+        ? ''
+        : forecastWords(t),
+    ),
   );
   if (!points) {
     wrap.append(h('p', {}, 'No approved test yet: the trend starts with the first approved fit.'));
     return wrap;
   }
-  const quantity = select(`trend-q-${o.id}`, [['area', 'effective area Cd·a (mm²)'], ['cd', 'discharge coefficient Cd']], 'area');
+  const quantity = select(
+    `trend-q-${o.id}`,
+    [
+      ['area', 'effective area Cd·a (mm²)'],
+      ['cd', 'discharge coefficient Cd'],
+    ],
+    'area',
+  );
   const box = h('div', { class: 'chart trend-chart', id: `trend-${o.id}`, role: 'img' });
   box.dataset.points = String(points);
   box.dataset.epochs = String(t.epochs.length);
-  box.setAttribute('aria-label', `Trend of outlet ${o.key}: ${points} approved tests in ${t.epochs.length} epoch(s); status ${t.status.status}`);
+  box.setAttribute(
+    'aria-label',
+    `Trend of outlet ${o.key}: ${points} approved tests in ${t.epochs.length} epoch(s); status ${t.status.status}`,
+  );
   wrap.append(
-    h('div', { class: 'trend-controls' }, field('Show', quantity), h('a', { href: `/api/outlets/${o.id}/history.csv`, download: `outlet-${o.key}-history.csv` }, 'History as CSV'), h('a', { href: `/api/outlets/${o.id}/report.pdf` }, 'Outlet report (PDF)')),
+    h(
+      'div',
+      { class: 'trend-controls' },
+      field('Show', quantity),
+      h(
+        'a',
+        { href: `/api/outlets/${o.id}/history.csv`, download: `outlet-${o.key}-history.csv` },
+        'History as CSV',
+      ),
+      h('a', { href: `/api/outlets/${o.id}/report.pdf` }, 'Outlet report (PDF)'),
+    ),
     box,
     h(
       'ul',
       { class: 'chart-key' },
-      h('li', {}, h('span', { class: 'key key-point' }), 'approved test, bar ±2 standard uncertainties'),
-      h('li', {}, h('span', { class: 'key key-line' }), 'weighted trend line of the epoch, shaded: its 95 % band'),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-point' }),
+        'approved test, bar ±2 standard uncertainties',
+      ),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-line' }),
+        'weighted trend line of the epoch, shaded: its 95 % band',
+      ),
       h('li', {}, h('span', { class: 'key key-baseline' }), 'baseline of the epoch'),
-      h('li', {}, h('span', { class: 'key key-threshold' }), `action threshold (${num(t.threshold.pct, 3)} % from the baseline)`),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-threshold' }),
+        `action threshold (${num(t.threshold.pct, 3)} % from the baseline)`,
+      ),
       h('li', {}, h('span', { class: 'key key-maint' }), 'maintenance (starts a new epoch)'),
-      h('li', {}, h('span', { class: 'key key-forecast' }), 'forecast crossing date and its 95 % interval'),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-forecast' }),
+        'forecast crossing date and its 95 % interval',
+      ),
       h('li', {}, h('span', { class: 'key key-step' }), 'sudden step flagged'),
     ),
   );
@@ -76,24 +129,53 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   if (cur) {
     const line = cur.area;
     wrap.append(
-      table(null, ['Epoch', 'Started by', 'Approved tests', 'Drift of Cd·a', 'Baseline Cd·a', 'Threshold Cd·a', 'Step check'], t.epochs.map((e) => [
-        `${e.index + 1}${e.current ? ' (present)' : ''}`,
-        e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
-        String(e.series.length),
-        e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
-        e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
-        e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
-        e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
-      ]), 'trend-table'),
+      table(
+        null,
+        [
+          'Epoch',
+          'Started by',
+          'Approved tests',
+          'Drift of Cd·a',
+          'Baseline Cd·a',
+          'Threshold Cd·a',
+          'Step check',
+        ],
+        t.epochs.map((e) => [
+          `${e.index + 1}${e.current ? ' (present)' : ''}`,
+          e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
+          String(e.series.length),
+          e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
+          e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
+          e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
+          e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
+        ]),
+        'trend-table',
+      ),
     );
-    if (line && t.skipped.length) wrap.append(h('p', { class: 'hint' }, `${t.skipped.length} approved fit(s) left out of the trend: ${t.skipped.map((s) => s.why).join('; ')}`));
+    if (line && t.skipped.length)
+      wrap.append(
+        h(
+          'p',
+          { class: 'hint' },
+          `${t.skipped.length} approved fit(s) left out of the trend: ${t.skipped.map((s) => s.why).join('; ')}`,
+        ),
+      );
   }
   return wrap;
 }
 
-export function trendSection(outlets: Outlet[], trends: Map<number, FullTrend | null>): HTMLElement {
+export function trendSection(
+  outlets: Outlet[],
+  trends: Map<number, FullTrend | null>,
+): HTMLElement {
   const section = h('section', { class: 'trend' }, h('h2', {}, 'Trend of approved tests'));
-  section.append(h('p', { class: 'hint' }, 'Only approved fits count. Each cleaning, replacement or change of an outlet starts a new epoch with its own baseline; drift is fitted by weighted least squares within the epoch, weights from each test’s uncertainty.'));
+  section.append(
+    h(
+      'p',
+      { class: 'hint' },
+      'Only approved fits count. Each cleaning, replacement or change of an outlet starts a new epoch with its own baseline; drift is fitted by weighted least squares within the epoch, weights from each test’s uncertainty.',
+    ),
+  );
   for (const o of outlets) {
     const t = trends.get(o.id);
     if (t) section.append(outletTrend(o, t));
@@ -101,24 +183,78 @@ export function trendSection(outlets: Outlet[], trends: Map<number, FullTrend | 
   return section;
 }
 
-export function maintenanceSection(vesselId: number, outlets: Outlet[], events: MaintenanceEvent[], canRecord: boolean): HTMLElement {
+export function maintenanceSection(
+  vesselId: number,
+  outlets: Outlet[],
+  events: MaintenanceEvent[],
+  canRecord: boolean,
+): HTMLElement {
   const section = h('section', { class: 'maintenance' }, h('h2', {}, 'Maintenance'));
   section.append(
     events.length
-      ? table('Recorded maintenance', ['Date', 'Outlet', 'What was done', 'Notes'], [...events].sort((a, b) => Date.parse(b.occurredAt) - Date.parse(a.occurredAt)).map((e) => [date(e.occurredAt), outlets.find((o) => o.id === e.outletId)?.key ?? 'every outlet', e.kind, e.notes ?? '']))
+      ? table(
+          'Recorded maintenance',
+          ['Date', 'Outlet', 'What was done', 'Notes'],
+          [...events]
+            .sort((a, b) => Date.parse(b.occurredAt) - Date.parse(a.occurredAt))
+            .map((e) => [
+              date(e.occurredAt),
+              outlets.find((o) => o.id === e.outletId)?.key ?? 'every outlet',
+              e.kind,
+              e.notes ?? '',
+            ]),
+        )
       : h('p', {}, 'No maintenance recorded.'),
   );
   if (!canRecord) return section;
-  const kind = select('kind', [['cleaned', 'cleaned'], ['replaced', 'replaced'], ['modified', 'modified (bore or fitting changed)']], 'cleaned');
-  const outlet = select('outletId', [...outlets.map((o): [string, string] => [String(o.id), o.key]), ['', 'every outlet of the vessel']], outlets[0] ? String(outlets[0].id) : '');
-  const when = h('input', { type: 'date', name: 'occurredAt', required: true, value: new Date().toISOString().slice(0, 10) });
+  const kind = select(
+    'kind',
+    [
+      ['cleaned', 'cleaned'],
+      ['replaced', 'replaced'],
+      ['modified', 'modified (bore or fitting changed)'],
+    ],
+    'cleaned',
+  );
+  const outlet = select(
+    'outletId',
+    [
+      ...outlets.map((o): [string, string] => [String(o.id), o.key]),
+      ['', 'every outlet of the vessel'],
+    ],
+    outlets[0] ? String(outlets[0].id) : '',
+  );
+  const when = h('input', {
+    type: 'date',
+    name: 'occurredAt',
+    required: true,
+    value: new Date().toISOString().slice(0, 10),
+  });
   const notes = h('textarea', { name: 'notes', rows: 2, maxlength: 10000 });
   const status = h('div', { 'aria-live': 'polite' });
   const submit = h('button', { type: 'submit', class: 'primary' }, 'Record maintenance');
   const form = h(
     'form',
     { class: 'event-form' },
-    h('fieldset', {}, h('legend', {}, 'Record maintenance on an outlet'), h('div', { class: 'grid' }, field('What was done', kind), field('Outlet', outlet), field('Date', when)), field('Notes', notes, 'e.g. descaled with dilute acid, bore measured 49.8 mm'), h('div', { class: 'actions' }, submit, h('span', { class: 'hint' }, 'The outlet’s trend starts a new epoch from this date.'))),
+    h(
+      'fieldset',
+      {},
+      h('legend', {}, 'Record maintenance on an outlet'),
+      h(
+        'div',
+        { class: 'grid' },
+        field('What was done', kind),
+        field('Outlet', outlet),
+        field('Date', when),
+      ),
+      field('Notes', notes, 'e.g. descaled with dilute acid, bore measured 49.8 mm'),
+      h(
+        'div',
+        { class: 'actions' },
+        submit,
+        h('span', { class: 'hint' }, 'The outlet’s trend starts a new epoch from this date.'),
+      ),
+    ),
     status,
   );
   form.addEventListener('submit', async (ev) => {
@@ -126,7 +262,12 @@ export function maintenanceSection(vesselId: number, outlets: Outlet[], events: 
     submit.disabled = true;
     status.replaceChildren();
     try {
-      await api('POST', `/api/vessels/${vesselId}/events`, { kind: kind.value, outletId: outlet.value ? Number(outlet.value) : null, occurredAt: when.value, notes: notes.value.trim() || undefined });
+      await api('POST', `/api/vessels/${vesselId}/events`, {
+        kind: kind.value,
+        outletId: outlet.value ? Number(outlet.value) : null,
+        occurredAt: when.value,
+        notes: notes.value.trim() || undefined,
+      });
       // the page is drawn again, with the new epoch in the trend
       window.dispatchEvent(new HashChangeEvent('hashchange'));
     } catch (e) {
