@@ -294,9 +294,10 @@ async function heavy() {
       notes: 'n'.repeat(10_000),
       operator: 'o'.repeat(200),
       loggerId: 'l'.repeat(200),
+      testedAt: '2026-11-02T09:00:00Z', // the generated log has elapsed time only
     });
     const million = drainLog(1_000_000);
-    const big = await post(million, 'million.csv', {});
+    const big = await post(million, 'million.csv', { testedAt: '2026-11-03T09:00:00Z' });
     const total = (await (await fetch(`${base}/api/fleet?limit=1`, { headers: auth })).json())
       .total;
     const preview = await (
