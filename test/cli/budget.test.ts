@@ -1,10 +1,9 @@
-import { spawnSync } from 'node:child_process';
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { havePoppler, pdfText } from '../render/pdf-tools.js';
 import { reportFixture } from '../render/report-fixture.js';
-import { efflux as cli, root } from './run-cli.js';
+import { effluxWithData, efflux as cli, root } from './run-cli.js';
 
 /**
  * The budget through the shells: the same table strings in the CLI text report and the PDF (the
@@ -17,23 +16,7 @@ mkdirSync(cache, { recursive: true });
 const LOG = 'sample-data/fb1-2026-03-10-preamble.csv';
 const VESSEL = 'sample-data/backwash-tank-fb1.vessel.json';
 
-function withData(dataDir: string, args: string[]) {
-  const r = spawnSync(
-    process.execPath,
-    ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args],
-    {
-      cwd: root,
-      encoding: 'utf8',
-      env: {
-        ...process.env,
-        NO_COLOR: '1',
-        EFFLUX_DATA_DIR: dataDir,
-        EFFLUX_GIT_COMMIT: 'test-commit',
-      },
-    },
-  );
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const withData = effluxWithData;
 
 let dataDir: string;
 let fitId: number;

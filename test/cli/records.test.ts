@@ -1,11 +1,3 @@
-/**
- * Every stored copy is checked (issue 12): editing a copied result column, a test's date or a row
- * of the status cache directly in SQLite makes `efflux audit verify` and `efflux report verify` (on
- * a report written before) fail, naming the row and the field. And exports are safe to open: no
- * cell of summary.csv starts a spreadsheet formula. And people managed from the command line.
- * Data: the invented demo's backwash tank; people are fictional.
- */
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -18,25 +10,9 @@ import { periodExport } from '../../server/render/period-export.js';
 import { readZip } from '../../server/render/zip.js';
 import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
 import { reportFixture, SOFTWARE } from '../render/report-fixture.js';
-import { root } from './run-cli.js';
+import { effluxWithData } from './run-cli.js';
 
-function efflux(dataDir: string, args: string[]) {
-  const r = spawnSync(
-    process.execPath,
-    ['--import', 'tsx', join(root, 'server/cli/main.ts'), ...args],
-    {
-      cwd: root,
-      encoding: 'utf8',
-      env: {
-        ...process.env,
-        NO_COLOR: '1',
-        EFFLUX_DATA_DIR: dataDir,
-        EFFLUX_GIT_COMMIT: 'test-commit',
-      },
-    },
-  );
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const efflux = effluxWithData;
 
 let dataDir: string;
 let fitId: number;

@@ -18,3 +18,8 @@ export function efflux(args: string[], opts: { cwd?: string; env?: Record<string
   );
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
+
+/** The CLI against a data folder (EFFLUX_DATA_DIR), with a fixed git commit so reports rebuild the same. */
+export function effluxWithData(dataDir: string, args: string[]) {
+  return efflux(args, { env: { EFFLUX_DATA_DIR: dataDir, EFFLUX_GIT_COMMIT: 'test-commit' } });
+}
