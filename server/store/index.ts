@@ -10,6 +10,8 @@ import { ForeignWrites } from './read-cache.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
 import { SiteRepo } from './sites.js';
+import type { Sql } from './sql.js';
+import { SqliteSql } from './sqlite-sql.js';
 import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
@@ -17,6 +19,8 @@ import { VesselRepo } from './vessels.js';
 
 export interface Store {
   db: Db;
+  /** The one asynchronous way to the database (see sql.ts). */
+  sql: Sql;
   audit: AuditLog;
   vessels: VesselRepo;
   tests: TestRepo;
@@ -76,8 +80,10 @@ export function openStore(opts: StoreOptions = {}): Store {
   const reserve = opts.dataDir ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
   reserve?.ensure(); // false on a full disk: made again after the next compensating step
   const audit = new AuditLog(db);
+  const sql = new SqliteSql(db);
   const c: StoreContext = {
     db,
+    sql,
     audit,
     now: opts.now ?? (() => new Date().toISOString()),
     foreign: new ForeignWrites(db),
@@ -86,6 +92,7 @@ export function openStore(opts: StoreOptions = {}): Store {
   const sites = new SiteRepo(c);
   return {
     db,
+    sql,
     audit,
     vessels: new VesselRepo(c),
     tests,
