@@ -31,6 +31,12 @@ export interface Sql {
   run(sql: string, params?: SqlParams): Promise<SqlRunResult>;
   /** One transaction (IMMEDIATE on SQLite: the write lock is taken at the start). */
   tx<T>(fn: () => Promise<T>): Promise<T>;
+  /**
+   * Inside tx(): hold the named exclusive lock until the transaction ends, across every process
+   * and instance on this database (the audit chain's appends are serialised by it). SQLite needs
+   * nothing (BEGIN IMMEDIATE already admits one writer); PostgreSQL takes pg_advisory_xact_lock.
+   */
+  lock(name: string): Promise<void>;
   /** True while the caller runs inside tx(). */
   inTx(): boolean;
   close(): Promise<void>;

@@ -28,6 +28,10 @@ export class SqliteSql implements Sql {
     return s;
   }
 
+  async lock(_name: string): Promise<void> {
+    if (!this.inTx()) throw new Error('lock() outside a transaction');
+  }
+
   inTx(): boolean {
     return this.scope.getStore() === true;
   }
