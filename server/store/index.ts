@@ -70,9 +70,7 @@ async function openSqlite(opts: StoreOptions, now: () => string): Promise<Opened
   const sql = new SqliteSql(db);
   try {
     await migrate(sql, opts.migrationsDir, {
-      exec: async (script) => {
-        db.exec(script); // several statements: better-sqlite3's exec, inside migrate's transaction
-      },
+      exec: (script) => sql.exec(script),
       // VACUUM INTO: a consistent copy, taken before anything is changed
       beforeFirst: dataDir
         ? async (from, to) => {

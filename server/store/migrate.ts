@@ -126,11 +126,7 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
 }
 
 /** Runs the file's statements one by one inside a savepoint that is rolled back, to find the one that fails. */
-async function locateFailure(
-  sql: Sql,
-  hooks: MigrationHooks,
-  m: MigrationFile,
-): Promise<string | null> {
+async function locateFailure(hooks: MigrationHooks, m: MigrationFile): Promise<string | null> {
   try {
     let found: string | null = null;
     await hooks.exec('SAVEPOINT efflux_locate');
@@ -197,7 +193,7 @@ export async function migrate(
       });
     } catch (e) {
       const reason = (e as Error).message;
-      const where = await sql.tx(() => locateFailure(sql, hooks, m));
+      const where = await sql.tx(() => locateFailure(hooks, m));
       throw new MigrationError(m.name, where, reason);
     }
     applied.push(m.name);
