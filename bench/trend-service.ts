@@ -20,7 +20,7 @@ const NOW = START + MONTHS * (365.25 / 12) * DAY_MS;
 const iso = (ms: number) => new Date(ms).toISOString();
 
 const dir = mkdtempSync(join(tmpdir(), 'efflux-trend-bench-'));
-const store = openStore({ dataDir: dir, now: () => iso(NOW) });
+const store = await openStore({ dataDir: dir, now: () => iso(NOW) });
 const db = store.db;
 
 function seed() {
@@ -117,11 +117,11 @@ try {
   );
   console.log(`seeded in ${(seed() / 1000).toFixed(1)} s`);
   const t0 = performance.now();
-  const cold = fleetStatus(store, {}, NOW);
+  const cold = await fleetStatus(store, {}, NOW);
   console.log(
     `fleet, cold (every outlet stale, all recomputed and cached): ${(performance.now() - t0).toFixed(0)} ms (${cold.recomputed} recomputed)`,
   );
-  fleetStatus(store, {}, NOW); // warm up
+  await fleetStatus(store, {}, NOW); // warm up
   const fleetMs = time('fleet status, warm (cache read, days brought to now, ordered)', 9, () =>
     fleetStatus(store, {}, NOW),
   );
@@ -132,9 +132,9 @@ try {
   time('fleet status a day later each run (time-overtaken outlets recomputed)', 5, () =>
     fleetStatus(store, {}, (next += DAY_MS)),
   );
-  const ids = store.trends.outletIds();
+  const ids = await store.trends.outletIds();
   const one = ids[ids.length - 1];
-  outletTrendView(store, one, NOW);
+  await outletTrendView(store, one, NOW);
   const oneMs = time('one outlet trend (SQL read, all epochs, bands, answer shape)', 51, () =>
     outletTrendView(store, one, NOW),
   );
@@ -143,6 +143,6 @@ try {
     `goals: fleet < 200 ms ${fleetMs < 200 ? 'met' : 'MISSED'}, one outlet < 20 ms ${oneMs < 20 ? 'met' : 'MISSED'}`,
   );
 } finally {
-  store.close();
+  await store.close();
   rmSync(dir, { recursive: true, force: true });
 }

@@ -125,7 +125,7 @@ export async function runRestore(argv: string[]): Promise<number> {
     try {
       const r = restoreDatabase(dir, positionals[0], new Date().toISOString());
       // bring it to this build's schema now (a pre-migration copy is taken first), so the next start is plain
-      openStore({ dataDir: dir }).close();
+      await (await openStore({ dataDir: dir })).close();
       say(`restored ${positionals[0]} into ${databasePath(dir)}`);
       if (r.keptAs) say(`the database it replaced is kept as ${r.keptAs}`);
       printCheck(r.check);

@@ -61,7 +61,7 @@ const COPIES: [column: keyof FitCopyRow, key: string, field: 'value' | 'standard
 
 const sha256 = (text: string) => createHash('sha256').update(text).digest('hex');
 
-export function verifyRecords(store: Store): RecordsReport {
+export async function verifyRecords(store: Store): Promise<RecordsReport> {
   const db = store.db;
   const differences: RecordDifference[] = [];
   const differ = (
@@ -199,7 +199,7 @@ export function verifyRecords(store: Store): RecordsReport {
 
   // the status cache against a recomputation at the moment it was computed (stale rows are recomputed on the next read)
   let outletsChecked = 0;
-  const stale = new Set(store.trends.staleOutlets());
+  const stale = new Set(await store.trends.staleOutlets());
   for (const c of db
     .prepare(
       'SELECT outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body FROM outlet_trend_status ORDER BY outlet_id',
@@ -214,7 +214,7 @@ export function verifyRecords(store: Store): RecordsReport {
   }[]) {
     if (stale.has(c.outlet_id)) continue;
     outletsChecked++;
-    const again = computeStatus(store, c.outlet_id, c.computed_at_ms);
+    const again = await computeStatus(store, c.outlet_id, c.computed_at_ms);
     const body = { ...again.status, forecastStatus: again.forecastStatus };
     const why = `a recomputation at ${new Date(c.computed_at_ms).toISOString()}`;
     if (c.status !== again.status.status)
@@ -247,6 +247,6 @@ export function verifyRecords(store: Store): RecordsReport {
     fitsChecked,
     outletsChecked,
     differences,
-    undatedTests: store.tests.undated(),
+    undatedTests: await store.tests.undated(),
   };
 }

@@ -4,7 +4,7 @@ import { PUBLIC } from '../access.js';
 
 export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
   const probe = app.store.db.prepare('SELECT 1');
-  const demo = app.store.meta.isDemo(); // marked before the service is built; never unmarked
+  const demo = await app.store.meta.isDemo(); // marked before the service is built; never unmarked
   app.get(
     '/api/health',
     {

@@ -66,7 +66,7 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const v = app.store.vessels.get(request.params.id);
+      const v = await app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
       const req = {
         log: up.log,
@@ -102,18 +102,19 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const t = app.store.tests.get(request.params.id);
-      const f = request.query.fit === undefined ? null : app.store.fits.get(request.query.fit);
+      const t = await app.store.tests.get(request.params.id);
+      const f =
+        request.query.fit === undefined ? null : await app.store.fits.get(request.query.fit);
       const settings = (f && f.testId === t.id ? f.settings : t.settings) as AnalysisSettings;
-      const v = app.store.vessels.get(t.vesselId);
+      const v = await app.store.vessels.get(t.vesselId);
       // a file database: the task thread reads the raw bytes itself (tens of MB stay off this thread)
       const dbPath = app.store.db.memory ? null : app.store.db.name;
-      const raw = (sha256: string, fileName: string) =>
+      const raw = async (sha256: string, fileName: string) =>
         dbPath
           ? { fileName, dbPath, sha256 }
-          : { fileName, bytes: app.store.tests.rawBytes(sha256) };
-      const log = raw(t.sha256, t.fileName);
-      const baro = t.baro ? raw(t.baro.sha256, t.baro.fileName) : undefined;
+          : { fileName, bytes: await app.store.tests.rawBytes(sha256) };
+      const log = await raw(t.sha256, t.fileName);
+      const baro = t.baro ? await raw(t.baro.sha256, t.baro.fileName) : undefined;
       const vessel = f && f.testId === t.id ? f.vessel : vesselFile(v, t.outletId ?? undefined);
       return json(
         reply,
