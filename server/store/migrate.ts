@@ -87,9 +87,13 @@ export function buildSchemaVersion(dir = defaultMigrationsDir()): number {
 
 /**
  * Splits a migration into statements (quotes, comments and CREATE TRIGGER … END kept whole); used
- * only to name the statement that failed, never to run the file.
+ * only to name the statement that failed, never to run the file. PostgreSQL's files: dollar-quoted
+ * bodies ($$ … $$, $tag$ … $tag$) kept whole, and a trigger ends at its `;` like any statement.
  */
-export function splitStatements(sql: string): { text: string; line: number }[] {
+export function splitStatements(
+  sql: string,
+  dialect: 'sqlite' | 'postgres' = 'sqlite',
+): { text: string; line: number }[] {
   const out: { text: string; line: number }[] = [];
   let start = 0;
   let i = 0;
@@ -105,7 +109,11 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
   };
   while (i < sql.length) {
     const c = sql[i];
-    if (c === "'" || c === '"' || c === '`') {
+    const dollar = dialect === 'postgres' && c === '$' ? /^\$([A-Za-z_]\w*)?\$/.exec(sql.slice(i)) : null;
+    if (dollar) {
+      const close = sql.indexOf(dollar[0], i + dollar[0].length);
+      i = close < 0 ? sql.length : close + dollar[0].length;
+    } else if (c === "'" || c === '"' || c === '`') {
       const close = sql.indexOf(c, i + 1);
       i = close < 0 ? sql.length : close + 1;
     } else if (c === '-' && sql[i + 1] === '-') {
@@ -116,7 +124,8 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
       i = close < 0 ? sql.length : close + 2;
     } else if (c === ';') {
       const sofar = sql.slice(start, i).replace(/--[^\n]*/g, '');
-      const trigger = /^\s*CREATE\s+(TEMP\s+|TEMPORARY\s+)?TRIGGER\b/i.test(sofar);
+      const trigger =
+        dialect === 'sqlite' && /^\s*CREATE\s+(TEMP\s+|TEMPORARY\s+)?TRIGGER\b/i.test(sofar);
       if (!trigger || /\bEND\s*$/i.test(sofar)) push(i);
       i++;
     } else i++;
