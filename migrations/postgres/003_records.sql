@@ -10,14 +10,18 @@
 -- The backfills below only find rows in a database made at schema 2; they say what SQLite's
 -- date functions would have said (efflux_sqlite_time_valid, efflux_sqlite_time below).
 
--- SQLite's date parser (strftime('%s', t) IS NOT NULL), for the texts it reads: YYYY-MM-DD, then
--- optionally [T or spaces]HH:MM[:SS[.fff]]; or HH:MM[:SS[.fff]] alone; then optionally Z or
--- ±HH:MM; spaces around; 'now'; a Julian day number. Fields in SQLite's ranges (month 1–12,
--- day 1–31, hour 0–24, minute 0–59, second 0–59, zone hour 0–14).
+-- SQLite's date parser (strftime('%s', t) IS NOT NULL), for the texts it reads: [-]YYYY-MM-DD,
+-- then any run of spaces or T, then optionally HH:MM[:SS[.fff]] (also alone, without a date),
+-- then optionally Z or ±HH:MM (after a time only), spaces around it; 'now' in any case; a Julian
+-- day number (spaces allowed). Fields in SQLite's ranges: month 1–12, day 1–31, hour 0–24,
+-- minute 0–59, second 0–59, zone hour 0–14. Checked against SQLite itself in
+-- test/store/postgres-migrations.test.ts.
+-- Parts: 1 year, 2 month, 3 day, 4 hour, 5 minute, 6 second, 7 fraction, 8 Z, 9 zone sign,
+-- 10 zone hour, 11 zone minute.
 CREATE FUNCTION efflux_sqlite_time_parts(t TEXT) RETURNS TEXT[]
 LANGUAGE sql IMMUTABLE STRICT AS $$
   SELECT regexp_match(t,
-    '^\s*(?:(\d{4})-(\d{2})-(\d{2})(?:(?:T|\s+)(\d{2}):(\d{2})(?::(\d{2})(\.\d*)?)?)?|(\d{2}):(\d{2})(?::(\d{2})(\.\d*)?)?)\s*(?:([Zz])|([+-])(\d{2}):(\d{2}))?\s*$')
+    '^(?:(-?\d{4})-(\d{2})-(\d{2})[T\s]*)?(?:(\d{2}):(\d{2})(?::(\d{2})(\.\d+)?)?\s*(?:([Zz])|([+-])(\d{2}):(\d{2}))?\s*)?$')
 $$;
 
 CREATE FUNCTION efflux_sqlite_time_valid(t TEXT) RETURNS BOOLEAN
@@ -25,20 +29,19 @@ LANGUAGE plpgsql IMMUTABLE STRICT AS $$
 DECLARE
   p TEXT[] := efflux_sqlite_time_parts(t);
 BEGIN
-  IF lower(trim(t)) = 'now' THEN RETURN TRUE; END IF;
+  IF lower(t) = 'now' THEN RETURN TRUE; END IF;
   IF t ~ '^\s*[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?\s*$' THEN
     RETURN trim(t)::double precision >= 0 AND trim(t)::double precision < 5373484.5;
   END IF;
-  IF p IS NULL THEN RETURN FALSE; END IF;
+  IF p IS NULL OR (p[1] IS NULL AND p[4] IS NULL) THEN RETURN FALSE; END IF;
   RETURN (p[1] IS NULL OR (p[2]::int BETWEEN 1 AND 12 AND p[3]::int BETWEEN 1 AND 31))
-    AND (COALESCE(p[4], p[8]) IS NULL OR COALESCE(p[4], p[8])::int <= 24)
-    AND (COALESCE(p[5], p[9]) IS NULL OR COALESCE(p[5], p[9])::int <= 59)
-    AND (COALESCE(p[6], p[10]) IS NULL OR COALESCE(p[6], p[10])::int <= 59)
-    AND (p[14] IS NULL OR (p[14]::int <= 14 AND p[15]::int <= 59));
+    AND (p[4] IS NULL OR (p[4]::int <= 24 AND p[5]::int <= 59 AND COALESCE(p[6], '0')::int <= 59))
+    AND (p[9] IS NULL OR (p[10]::int <= 14 AND p[11]::int <= 59));
 END $$;
 
 -- A date and time as SQLite reads it, in UTC (no zone: UTC; days past a month's end roll over,
--- as SQLite's arithmetic does); NULL when SQLite would not read it or it has no date.
+-- as SQLite's arithmetic does); NULL when SQLite would not read it or it has no date (or a year
+-- before 1, which SQLite reads and PostgreSQL's calendar does not start at).
 CREATE FUNCTION efflux_sqlite_time(t TEXT) RETURNS TIMESTAMP
 LANGUAGE plpgsql IMMUTABLE STRICT AS $$
 DECLARE
@@ -48,9 +51,9 @@ BEGIN
   IF p IS NULL OR p[1] IS NULL OR p[1]::int < 1 OR NOT efflux_sqlite_time_valid(t) THEN RETURN NULL; END IF;
   at := make_timestamp(p[1]::int, p[2]::int, 1, 0, 0, 0)
     + make_interval(days => p[3]::int - 1, hours => COALESCE(p[4], '0')::int, mins => COALESCE(p[5], '0')::int,
-                    secs => (COALESCE(p[6], '0') || COALESCE(p[7], ''))::double precision);
-  IF p[13] IS NOT NULL THEN
-    at := at - (CASE p[13] WHEN '-' THEN -1 ELSE 1 END) * make_interval(hours => p[14]::int, mins => p[15]::int);
+                    secs => round((COALESCE(p[6], '0') || COALESCE(p[7], ''))::numeric, 3)::double precision);
+  IF p[9] IS NOT NULL THEN
+    at := at - (CASE p[9] WHEN '-' THEN -1 ELSE 1 END) * make_interval(hours => p[10]::int, mins => p[11]::int);
   END IF;
   RETURN at;
 END $$;

@@ -201,6 +201,61 @@ describe('migrations/postgres', () => {
     expect(await sql.all('SELECT outlet_id FROM outlet_trend_stale')).toEqual([{ outlet_id: second }]);
   });
 
+  it('reads dates as SQLite does in the backfills of 003 (SQLite itself is the reference)', async () => {
+    const { sql } = await emptyDatabase();
+    await migratePostgres(sql.pool);
+    const lite = openMemoryDatabase();
+    const texts = [
+      '2024-10-07T08:00:00Z',
+      '2024-10-07 08:00:00.25+02:00',
+      '2024-10-07T08:00-05:30',
+      '  2024-10-07 08:00:00Z',
+      '2024-10-07 T 08:00:00 Z  ',
+      '2024-10-0708:00',
+      '2024-10-07T',
+      '2024-10-07Z',
+      '2024-10-07T08:00:00.',
+      '2024-10-07T08:00:00.123456789Z',
+      '2024-10-07T08:00:00+14:59',
+      '0000-01-01',
+      ' 2460000.5 ',
+      '1e3',
+      '-5',
+      'NOW',
+      ' now',
+      '2024-02-30T10:00:00Z', // SQLite rolls past the month's end
+      '2024-10-07T24:00:00Z',
+      '2024-10-07',
+      '08:30',
+      '2024-13-01',
+      '2024-10-32',
+      '2024-10-07T08:60:00Z',
+      '2024-10-07T08:00:00+15:00',
+      '7 Oct 2024',
+      '2460000.5',
+      'now',
+      'yesterday',
+      '',
+    ];
+    for (const t of texts) {
+      const liteValid = lite.prepare("SELECT strftime('%s', ?) IS NOT NULL").pluck().get(t) === 1;
+      expect(await sql.value('SELECT efflux_sqlite_time_valid(?)', [t]), t).toBe(liteValid);
+      if (!/^[1-9]\d{3}-\d{2}-\d{2}[T ]/.test(t) || !liteValid) continue;
+      // the preamble backfill: strftime('%Y-%m-%dT%H:%M:%fZ', start, '+12.345 seconds')
+      const liteStart = lite
+        .prepare("SELECT strftime('%Y-%m-%dT%H:%M:%fZ', ?, printf('%+.3f seconds', 12.3454))")
+        .pluck()
+        .get(t);
+      const pgStart = await sql.value(
+        `SELECT to_char(efflux_sqlite_time(?) + make_interval(secs => round(12.3454::numeric, 3)::double precision),
+           'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`,
+        [t],
+      );
+      expect(pgStart, t).toBe(liteStart);
+    }
+    lite.close();
+  });
+
   it('two runners starting together apply each migration once', async () => {
     const { db, sql } = await emptyDatabase();
     const other = new PostgresSql({ connectionString: db.url, max: 2 });
