@@ -5,7 +5,11 @@ import { defineConfig } from 'vitest/config';
 // by EFFLUX_TEST_DATABASE_URL or starts a throw-away one (scripts/postgres-for-tests.mjs); each
 // test file, and each store a test opens, gets its own new database. Only one engine:
 // `npx vitest run --project sqlite` (or `--project postgres`).
-const POSTGRES_SUITES = ['test/store/**/*.test.ts', 'test/http/**/*.test.ts', 'test/e2e/workbench.test.ts'];
+const POSTGRES_SUITES = [
+  'test/store/**/*.test.ts',
+  'test/http/**/*.test.ts',
+  'test/e2e/workbench.test.ts',
+];
 // Tests of the PostgreSQL engine itself (no SQLite form)
 const POSTGRES_ONLY = ['test/**/postgres-*.test.ts'];
 

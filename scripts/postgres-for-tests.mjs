@@ -30,7 +30,10 @@ export function findPostgresBin() {
   if (process.env.EFFLUX_PG_BINDIR)
     return has(process.env.EFFLUX_PG_BINDIR) ? process.env.EFFLUX_PG_BINDIR : null;
   try {
-    const dir = execFileSync('pg_config', ['--bindir'], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'ignore'] }).trim();
+    const dir = execFileSync('pg_config', ['--bindir'], {
+      encoding: 'utf8',
+      stdio: ['ignore', 'pipe', 'ignore'],
+    }).trim();
     if (has(dir)) return dir;
   } catch {}
   const root = '/usr/lib/postgresql';
@@ -61,14 +64,17 @@ function pgRun(bin, prog, args) {
   const argv = asRoot ? ['-u', 'postgres', '--', join(bin, prog), ...args] : args;
   const r = spawnSync(cmd, argv, { encoding: 'utf8' });
   if (r.status !== 0)
-    throw new Error(`${prog} failed (${r.status ?? r.signal}): ${(r.stderr || r.stdout || r.error?.message || '').trim().slice(-800)}`);
+    throw new Error(
+      `${prog} failed (${r.status ?? r.signal}): ${(r.stderr || r.stdout || r.error?.message || '').trim().slice(-800)}`,
+    );
   return r.stdout;
 }
 
 /** Starts a throw-away cluster; resolves to { url, stop() }. */
 export async function startThrowawayPostgres() {
   const bin = findPostgresBin();
-  if (!bin) throw new Error(`no PostgreSQL server programs found (initdb, pg_ctl). ${HOW_TO_START}`);
+  if (!bin)
+    throw new Error(`no PostgreSQL server programs found (initdb, pg_ctl). ${HOW_TO_START}`);
   const dir = mkdtempSync(join(tmpdir(), 'efflux-pg-'));
   if (process.getuid?.() === 0) execFileSync('chown', ['postgres', dir]);
   else chmodSync(dir, 0o700);
@@ -85,7 +91,18 @@ export async function startThrowawayPostgres() {
     rmSync(dir, { recursive: true, force: true });
   };
   try {
-    pgRun(bin, 'initdb', ['-D', data, '-A', 'trust', '-U', 'efflux', '-E', 'UTF8', '--locale=C', '--no-sync']);
+    pgRun(bin, 'initdb', [
+      '-D',
+      data,
+      '-A',
+      'trust',
+      '-U',
+      'efflux',
+      '-E',
+      'UTF8',
+      '--locale=C',
+      '--no-sync',
+    ]);
     const opts = [
       `-p ${port}`,
       `-k ${dir}`,
@@ -96,7 +113,18 @@ export async function startThrowawayPostgres() {
       '-c max_connections=300',
     ].join(' ');
     started = true;
-    pgRun(bin, 'pg_ctl', ['-D', data, '-o', opts, '-l', join(dir, 'log'), '-w', '-t', '60', 'start']);
+    pgRun(bin, 'pg_ctl', [
+      '-D',
+      data,
+      '-o',
+      opts,
+      '-l',
+      join(dir, 'log'),
+      '-w',
+      '-t',
+      '60',
+      'start',
+    ]);
   } catch (e) {
     stop();
     throw e;
@@ -126,7 +154,9 @@ export default async function setup(project) {
   try {
     const t0 = Date.now();
     const { url, stop } = await startThrowawayPostgres();
-    console.log(`postgres-for-tests: throw-away server at ${url} (started in ${Date.now() - t0} ms)`);
+    console.log(
+      `postgres-for-tests: throw-away server at ${url} (started in ${Date.now() - t0} ms)`,
+    );
     project.provide('postgresUrl', url);
     return stop;
   } catch (e) {

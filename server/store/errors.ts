@@ -35,7 +35,11 @@ export function isDiskFull(err: unknown): boolean {
  */
 export function isUniqueViolation(err: unknown): boolean {
   const code = codeOf(err);
-  return code === 'SQLITE_CONSTRAINT_UNIQUE' || code === 'SQLITE_CONSTRAINT_PRIMARYKEY' || code === '23505';
+  return (
+    code === 'SQLITE_CONSTRAINT_UNIQUE' ||
+    code === 'SQLITE_CONSTRAINT_PRIMARYKEY' ||
+    code === '23505'
+  );
 }
 
 /** A row points at one that does not exist, or a row still pointed at was deleted (PostgreSQL 23503). */

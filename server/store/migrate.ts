@@ -109,7 +109,8 @@ export function splitStatements(
   };
   while (i < sql.length) {
     const c = sql[i];
-    const dollar = dialect === 'postgres' && c === '$' ? /^\$([A-Za-z_]\w*)?\$/.exec(sql.slice(i)) : null;
+    const dollar =
+      dialect === 'postgres' && c === '$' ? /^\$([A-Za-z_]\w*)?\$/.exec(sql.slice(i)) : null;
     if (dollar) {
       const close = sql.indexOf(dollar[0], i + dollar[0].length);
       i = close < 0 ? sql.length : close + dollar[0].length;

@@ -1,6 +1,12 @@
 import { AsyncLocalStorage } from 'node:async_hooks';
 import pg from 'pg';
-import { type Sql, type SqlParams, type SqlRunResult, type SqlValue, toNumberedPlaceholders } from './sql.js';
+import {
+  type Sql,
+  type SqlParams,
+  type SqlRunResult,
+  type SqlValue,
+  toNumberedPlaceholders,
+} from './sql.js';
 
 /**
  * The Sql interface over a node-postgres pool. Outside a transaction each call takes any pooled
@@ -15,7 +21,8 @@ const INT8_OID = 20;
 const NUMERIC_OID = 1700;
 function parseInt8(text: string): number {
   const n = Number(text);
-  if (!Number.isSafeInteger(n)) throw new RangeError(`integer ${text} is beyond 2^53, not kept exactly as a number`);
+  if (!Number.isSafeInteger(n))
+    throw new RangeError(`integer ${text} is beyond 2^53, not kept exactly as a number`);
   return n;
 }
 export const typeParsers: pg.CustomTypesConfig = {
@@ -102,7 +109,9 @@ export class PostgresSql implements Sql {
   }
 
   async value<T>(sql: string, params?: SqlParams): Promise<T | undefined> {
-    const row = (await this.query(sql, params, 'array')).rows[0] as unknown as unknown[] | undefined;
+    const row = (await this.query(sql, params, 'array')).rows[0] as unknown as
+      | unknown[]
+      | undefined;
     return row === undefined ? undefined : (row[0] as T);
   }
 
@@ -168,13 +177,9 @@ function isRetryable(e: unknown): boolean {
 function toPg(v: SqlValue): unknown {
   if (typeof v === 'boolean') return v ? 1 : 0;
   if (typeof v === 'bigint') return v.toString();
-  if (v instanceof Uint8Array && !Buffer.isBuffer(v)) return Buffer.from(v.buffer, v.byteOffset, v.byteLength);
+  if (v instanceof Uint8Array && !Buffer.isBuffer(v))
+    return Buffer.from(v.buffer, v.byteOffset, v.byteLength);
   return v;
 }
 
-/** The URL with its password (user:PASSWORD@ or ?password=) replaced by ***, for logs and the ready text. */
-export function redactDatabaseUrl(url: string): string {
-  return url
-    .replace(/^([a-z][\w+.-]*:\/\/[^:/@?#]*):[^/?#]*@/i, '$1:***@')
-    .replace(/([?&]password=)[^&#]*/gi, '$1***');
-}
+export { redactDatabaseUrl } from './database-url.js';

@@ -40,7 +40,10 @@ const SQLITE_FILES = readMigrations(defaultMigrationsDir()).map((m) => m.name);
 /** A row in each append-only table, through plain SQL (the repositories are not needed here). */
 async function seed(sql: PostgresSql) {
   const at = '2026-01-01T00:00:00.000Z';
-  const site = await sql.value<number>('INSERT INTO sites (name, created_at) VALUES (?, ?) RETURNING id', ['main', at]);
+  const site = await sql.value<number>(
+    'INSERT INTO sites (name, created_at) VALUES (?, ?) RETURNING id',
+    ['main', at],
+  );
   const vessel = await sql.value<number>(
     `INSERT INTO vessels (site_id, name, spec, shape, created_at, updated_at) VALUES (?, 'T-1', '{}', '{"kind":"box"}', ?, ?) RETURNING id`,
     [site!, at, at],
@@ -59,7 +62,9 @@ async function seed(sql: PostgresSql) {
      VALUES (?, ?, ?, 'log.csv', '{}', 'pending', ?, 'stated', ?) RETURNING id`,
     [vessel!, outlet!, 'a'.repeat(64), at, at],
   );
-  await sql.run(`UPDATE drain_tests SET status = 'analysed', detected = '{}' WHERE id = ?`, [test!]);
+  await sql.run(`UPDATE drain_tests SET status = 'analysed', detected = '{}' WHERE id = ?`, [
+    test!,
+  ]);
   const fit = await sql.value<number>(
     `INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd, status, created_at)
      VALUES (?, ?, ?, '{}', '{}', '{}', 'test-0', 0.0004, 0.61, 'approved', ?) RETURNING id`,
@@ -74,18 +79,25 @@ async function seed(sql: PostgresSql) {
      VALUES (1, ?, 'system', 'vessel.create', 'vessel', '1', ?, ?)`,
     [at, '0'.repeat(64), 'b'.repeat(64)],
   );
-  await sql.run(`INSERT INTO outlet_status_changes (outlet_id, fit_id, to_status, reason, at) VALUES (?, ?, 'ok', 'r', ?)`, [
-    outlet!,
-    fit!,
+  await sql.run(
+    `INSERT INTO outlet_status_changes (outlet_id, fit_id, to_status, reason, at) VALUES (?, ?, 'ok', 'r', ?)`,
+    [outlet!, fit!, at],
+  );
+  await sql.run(`INSERT INTO service_meta (key, value, set_at) VALUES ('purpose', 'demo', ?)`, [
     at,
   ]);
-  await sql.run(`INSERT INTO service_meta (key, value, set_at) VALUES ('purpose', 'demo', ?)`, [at]);
-  await sql.run(`INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, 'timeout')`, [test!, at]);
+  await sql.run(
+    `INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, 'timeout')`,
+    [test!, at],
+  );
   return { vessel: vessel!, outlet: outlet!, test: test!, fit: fit! };
 }
 
 /** The same forbidden statements, on SQLite (migrated in memory), for the expected message text. */
-function sqliteRefusal(statement: string, setup: (db: ReturnType<typeof openMemoryDatabase>) => void): string {
+function sqliteRefusal(
+  statement: string,
+  setup: (db: ReturnType<typeof openMemoryDatabase>) => void,
+): string {
   const db = openMemoryDatabase();
   try {
     migrate(db);
@@ -120,7 +132,9 @@ describe('migrations/postgres', () => {
     migrate(lite);
     const liteTables = (
       lite
-        .prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name")
+        .prepare(
+          "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name",
+        )
         .all() as { name: string }[]
     ).map((r) => r.name);
     lite.close();
@@ -139,10 +153,16 @@ describe('migrations/postgres', () => {
       ['DELETE FROM fits', 'DELETE FROM fits'],
       [`UPDATE fits SET cd = 0.7`, 'UPDATE fits SET cd = 0.7'],
       [`UPDATE fits SET status = 'rejected'`, "UPDATE fits SET status = 'rejected'"],
-      ["UPDATE drain_tests SET log_name = 'other.csv'", "UPDATE drain_tests SET log_name = 'other.csv'"],
+      [
+        "UPDATE drain_tests SET log_name = 'other.csv'",
+        "UPDATE drain_tests SET log_name = 'other.csv'",
+      ],
       ['DELETE FROM drain_tests', 'DELETE FROM drain_tests'],
       ["UPDATE maintenance_events SET notes = 'x'", "UPDATE maintenance_events SET notes = 'x'"],
-      ["UPDATE outlet_status_changes SET reason = 'x'", "UPDATE outlet_status_changes SET reason = 'x'"],
+      [
+        "UPDATE outlet_status_changes SET reason = 'x'",
+        "UPDATE outlet_status_changes SET reason = 'x'",
+      ],
       ["UPDATE service_meta SET value = 'real'", "UPDATE service_meta SET value = 'real'"],
       ["UPDATE analysis_failures SET reason = 'x'", "UPDATE analysis_failures SET reason = 'x'"],
     ];
@@ -179,18 +199,28 @@ describe('migrations/postgres', () => {
        VALUES (?, ?, '{}', '{}', '{}', 'test-0', '2026-01-02T00:00:00.000Z') RETURNING id`,
       [ids.test, ids.vessel],
     );
-    expect((await sql.run(`UPDATE fits SET status = 'approved', reviewed_at = 'now' WHERE id = ?`, [draft!])).changes).toBe(1);
+    expect(
+      (
+        await sql.run(`UPDATE fits SET status = 'approved', reviewed_at = 'now' WHERE id = ?`, [
+          draft!,
+        ])
+      ).changes,
+    ).toBe(1);
   });
 
   it('marks outlets stale as the SQLite triggers do (an event without an outlet: every outlet of the vessel)', async () => {
     const { sql } = await emptyDatabase();
     await migratePostgres(sql.pool);
     const ids = await seed(sql);
-    const second = await sql.value<number>(`INSERT INTO outlets (vessel_id, key, spec) VALUES (?, 'overflow', '{}') RETURNING id`, [
-      ids.vessel,
-    ]);
+    const second = await sql.value<number>(
+      `INSERT INTO outlets (vessel_id, key, spec) VALUES (?, 'overflow', '{}') RETURNING id`,
+      [ids.vessel],
+    );
     await sql.run('DELETE FROM outlet_trend_stale');
-    await sql.run(`INSERT INTO maintenance_events (vessel_id, kind, occurred_at, created_at) VALUES (?, 'cleaned', 'x', 'x')`, [ids.vessel]);
+    await sql.run(
+      `INSERT INTO maintenance_events (vessel_id, kind, occurred_at, created_at) VALUES (?, 'cleaned', 'x', 'x')`,
+      [ids.vessel],
+    );
     expect(await sql.all('SELECT outlet_id FROM outlet_trend_stale ORDER BY outlet_id')).toEqual([
       { outlet_id: ids.outlet },
       { outlet_id: second },
@@ -198,7 +228,9 @@ describe('migrations/postgres', () => {
     await sql.run('DELETE FROM outlet_trend_stale');
     await sql.run('UPDATE outlets SET action_threshold = 0.7 WHERE id = ?', [second!]);
     await sql.run(`UPDATE outlets SET type = 'nozzle' WHERE id = ?`, [ids.outlet]); // not an input of the status
-    expect(await sql.all('SELECT outlet_id FROM outlet_trend_stale')).toEqual([{ outlet_id: second }]);
+    expect(await sql.all('SELECT outlet_id FROM outlet_trend_stale')).toEqual([
+      { outlet_id: second },
+    ]);
   });
 
   it('reads dates as SQLite does in the backfills of 003 (SQLite itself is the reference)', async () => {
@@ -268,16 +300,19 @@ describe('migrations/postgres', () => {
   it('refuses a database from a newer build, and names the failing file and statement', async () => {
     const { sql } = await emptyDatabase();
     await migratePostgres(sql.pool);
-    await sql.run("INSERT INTO schema_migrations (version, name, applied_at) VALUES (99, '099_future.sql', 'x')");
+    await sql.run(
+      "INSERT INTO schema_migrations (version, name, applied_at) VALUES (99, '099_future.sql', 'x')",
+    );
     await expect(migratePostgres(sql.pool)).rejects.toBeInstanceOf(NewerSchemaError);
 
     const fresh = await emptyDatabase();
     const dir = mkdtempSync(join(tmpdir(), 'efflux-pgmig-'));
     for (const name of readdirSync(defaultPostgresMigrationsDir()))
-      if (name.startsWith('001')) writeFileSync(join(dir, name), readMigrations(defaultPostgresMigrationsDir())[0].sql);
+      if (name.startsWith('001'))
+        writeFileSync(join(dir, name), readMigrations(defaultPostgresMigrationsDir())[0].sql);
     writeFileSync(
       join(dir, '002_broken.sql'),
-      "CREATE FUNCTION f() RETURNS int LANGUAGE sql AS $$ SELECT 1; $$;\nCREATE TABLE ok (id int);\nALTER TABLE sites ADD COLUMN name TEXT;\n",
+      'CREATE FUNCTION f() RETURNS int LANGUAGE sql AS $$ SELECT 1; $$;\nCREATE TABLE ok (id int);\nALTER TABLE sites ADD COLUMN name TEXT;\n',
     );
     const e = await migratePostgres(fresh.sql.pool, dir).catch((x: unknown) => x);
     expect(e).toBeInstanceOf(MigrationError);

@@ -1,7 +1,8 @@
 // The PostgreSQL engine of the Sql interface, against a real server (vitest project `postgres`).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { isUniqueViolation } from '../../server/store/errors.js';
-import { PostgresSql, redactDatabaseUrl } from '../../server/store/postgres-sql.js';
+import { redactDatabaseUrl } from '../../server/store/database-url.js';
+import { PostgresSql } from '../../server/store/postgres-sql.js';
 import { createTestDatabase, type TestDatabase } from '../support/postgres.js';
 
 let db: TestDatabase;
@@ -28,7 +29,9 @@ describe('PostgresSql', () => {
     const row = await sql.get<{ id: number }>('INSERT INTO t (v) VALUES (?) RETURNING id', ['a']);
     expect(typeof row?.id).toBe('number');
     expect(await sql.all('SELECT v FROM t')).toEqual([{ v: 'a' }]);
-    expect(await sql.value('SELECT count(*) FROM t WHERE v = @v AND (@v IS NOT NULL)', { v: 'a' })).toBe(1);
+    expect(
+      await sql.value('SELECT count(*) FROM t WHERE v = @v AND (@v IS NOT NULL)', { v: 'a' }),
+    ).toBe(1);
     expect(await sql.value("SELECT '?' || v FROM t WHERE v = ?", ['a'])).toBe('?a');
     expect(await sql.value('SELECT v FROM t WHERE id = -1')).toBeUndefined();
     expect((await sql.run('UPDATE t SET n = ? WHERE v = ?', [5, 'a'])).changes).toBe(1);
@@ -36,7 +39,12 @@ describe('PostgresSql', () => {
 
   it('reads int8 and numeric as numbers, booleans as 0/1, doubles exactly', async () => {
     await fresh();
-    await sql.run('INSERT INTO t (v, n, x, r) VALUES (?, ?, ?, ?)', ['big', 2 ** 53 - 1, 0.125, 0.1]);
+    await sql.run('INSERT INTO t (v, n, x, r) VALUES (?, ?, ?, ?)', [
+      'big',
+      2 ** 53 - 1,
+      0.125,
+      0.1,
+    ]);
     const r = await sql.get<{ n: unknown; x: unknown; r: unknown }>('SELECT n, x, r FROM t');
     expect(r).toEqual({ n: 2 ** 53 - 1, x: 0.125, r: 0.1 });
     expect(await sql.value('SELECT count(*) FROM t')).toBe(1);
@@ -50,11 +58,16 @@ describe('PostgresSql', () => {
     await fresh();
     const bytes = Buffer.from(Array.from({ length: 256 }, (_, i) => i));
     await sql.run('INSERT INTO t (v, b) VALUES (?, ?)', ['bytes', bytes]);
-    await sql.run('INSERT INTO t (v, b) VALUES (?, ?)', ['view', new Uint8Array(bytes.buffer, bytes.byteOffset + 10, 5)]);
+    await sql.run('INSERT INTO t (v, b) VALUES (?, ?)', [
+      'view',
+      new Uint8Array(bytes.buffer, bytes.byteOffset + 10, 5),
+    ]);
     const back = await sql.value<Buffer>('SELECT b FROM t WHERE v = ?', ['bytes']);
     expect(Buffer.isBuffer(back)).toBe(true);
     expect(back!.equals(bytes)).toBe(true);
-    expect([...(await sql.value<Buffer>('SELECT b FROM t WHERE v = ?', ['view']))!]).toEqual([10, 11, 12, 13, 14]);
+    expect([...(await sql.value<Buffer>('SELECT b FROM t WHERE v = ?', ['view']))!]).toEqual([
+      10, 11, 12, 13, 14,
+    ]);
   });
 
   it('rolls a failed transaction back whole', async () => {
@@ -139,7 +152,8 @@ describe('PostgresSql', () => {
           await s.lock('efflux.test-counter');
           order.push(`${who} locked`);
           await afterLock?.();
-          const n = (await s.value<number>("SELECT coalesce(max(n), 0) FROM t WHERE v LIKE 'c%'")) ?? 0;
+          const n =
+            (await s.value<number>("SELECT coalesce(max(n), 0) FROM t WHERE v LIKE 'c%'")) ?? 0;
           await s.run('INSERT INTO t (v, n) VALUES (?, ?)', [`c${n + 1}`, n + 1]);
           order.push(`${who} done`);
         });
@@ -216,6 +230,8 @@ describe('redactDatabaseUrl', () => {
     expect(redactDatabaseUrl('postgres://db.example/efflux?password=s3cret&sslmode=require')).toBe(
       'postgres://db.example/efflux?password=***&sslmode=require',
     );
-    expect(redactDatabaseUrl('postgres://efx@db.example/efflux')).toBe('postgres://efx@db.example/efflux');
+    expect(redactDatabaseUrl('postgres://efx@db.example/efflux')).toBe(
+      'postgres://efx@db.example/efflux',
+    );
   });
 });
