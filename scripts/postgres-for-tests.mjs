@@ -12,6 +12,7 @@
 // - `node scripts/postgres-for-tests.mjs` alone: starts one, prints `export EFFLUX_TEST_DATABASE_URL=…`
 //   and keeps it until Ctrl-C.
 import { execFileSync, spawn, spawnSync } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
 import { chmodSync, existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
@@ -133,14 +134,35 @@ export async function startThrowawayPostgres() {
   return { url: `postgres://efflux@127.0.0.1:${port}/postgres`, stop };
 }
 
-/** vitest globalSetup: provides `postgresUrl` (or `postgresProblem`) to the postgres project. */
+/** Drops the databases this run made on a server it did not start (efflux_t_RUN_…, efflux_tpl_RUN). */
+async function dropRunDatabases(url, runId) {
+  const client = new pg.Client({ connectionString: url });
+  await client.connect();
+  try {
+    const { rows } = await client.query(
+      "SELECT datname FROM pg_database WHERE datname LIKE 'efflux\\_t\\_' || $1 || '\\_%' OR datname = 'efflux_tpl_' || $1",
+      [runId],
+    );
+    for (const { datname } of rows) await client.query(`DROP DATABASE IF EXISTS "${datname}" WITH (FORCE)`);
+  } finally {
+    await client.end();
+  }
+}
+
+/**
+ * vitest globalSetup: provides `postgresUrl` (or `postgresProblem`) to the postgres project, and
+ * `postgresRunId`, which names this run's databases (test/support/postgres.ts).
+ */
 export default async function setup(project) {
+  const runId = randomBytes(4).toString('hex');
+  project.provide('postgresRunId', runId);
   const given = process.env.EFFLUX_TEST_DATABASE_URL;
   if (given) {
     const client = new pg.Client({ connectionString: given, connectionTimeoutMillis: 10_000 });
     try {
       await client.connect();
       project.provide('postgresUrl', given);
+      return () => dropRunDatabases(given, runId);
     } catch (e) {
       project.provide(
         'postgresProblem',

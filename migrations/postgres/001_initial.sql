@@ -225,3 +225,36 @@ CREATE TRIGGER maintenance_events_no_truncate BEFORE TRUNCATE ON maintenance_eve
 FOR EACH STATEMENT EXECUTE FUNCTION efflux_refuse('maintenance events are append-only');
 CREATE TRIGGER audit_log_no_truncate BEFORE TRUNCATE ON audit_log
 FOR EACH STATEMENT EXECUTE FUNCTION efflux_refuse('the audit log is append-only');
+
+-- PostgreSQL only: a count of committed writes to what the read caches hold (read-cache.ts), so
+-- an instance sees another's commits (SQLite's PRAGMA data_version in PostgreSQL's terms). Each
+-- statement on those tables adds one, under the audit chain's lock (taken first, so a writer that
+-- appends to the chain and one that writes here never wait on each other in opposite order); a
+-- cached answer is served only while the count read at that moment is the one it was read under.
+-- Sign-ins (a new session) leave it: a cached answer never depends on a session that did not exist.
+CREATE TABLE write_counter (
+  id  INTEGER PRIMARY KEY CHECK (id = 1),
+  n   BIGINT NOT NULL
+);
+INSERT INTO write_counter (id, n) VALUES (1, 0);
+
+CREATE FUNCTION efflux_count_write() RETURNS trigger
+LANGUAGE plpgsql AS $$
+BEGIN
+  PERFORM pg_advisory_xact_lock(hashtextextended('audit-chain', 0));
+  UPDATE write_counter SET n = n + 1 WHERE id = 1;
+  RETURN NULL;
+END $$;
+
+CREATE TRIGGER fits_count_write AFTER INSERT OR UPDATE OR DELETE OR TRUNCATE ON fits
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();
+CREATE TRIGGER drain_tests_count_write AFTER INSERT OR UPDATE OR DELETE OR TRUNCATE ON drain_tests
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();
+CREATE TRIGGER users_count_write AFTER INSERT OR UPDATE OR DELETE OR TRUNCATE ON users
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();
+CREATE TRIGGER api_tokens_count_write AFTER UPDATE OR DELETE OR TRUNCATE ON api_tokens
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();
+CREATE TRIGGER sessions_count_write AFTER UPDATE OR DELETE OR TRUNCATE ON sessions
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();
+CREATE TRIGGER sites_count_write AFTER UPDATE OR DELETE OR TRUNCATE ON sites
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();

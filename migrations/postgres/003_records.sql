@@ -148,3 +148,7 @@ CREATE TABLE upload_keys (
   created_at  TEXT NOT NULL,
   PRIMARY KEY (user_id, key)
 );
+
+-- A person's site limits are part of the cached credentials (write_counter, 001).
+CREATE TRIGGER user_sites_count_write AFTER INSERT OR UPDATE OR DELETE OR TRUNCATE ON user_sites
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();

@@ -22,3 +22,7 @@ CREATE TABLE analysis_failures (
 CREATE INDEX analysis_failures_test ON analysis_failures (test_id, id);
 CREATE TRIGGER analysis_failures_no_update BEFORE UPDATE ON analysis_failures
 FOR EACH ROW EXECUTE FUNCTION efflux_refuse('analysis failures are append-only');
+
+-- A test's failures are part of its cached page (write_counter, 001).
+CREATE TRIGGER analysis_failures_count_write AFTER INSERT OR UPDATE OR DELETE OR TRUNCATE ON analysis_failures
+FOR EACH STATEMENT EXECUTE FUNCTION efflux_count_write();

@@ -60,7 +60,7 @@ export class PostgresSql implements Sql {
   constructor(opts: PostgresSqlOptions) {
     this.pool = new pg.Pool({
       connectionString: opts.connectionString,
-      max: opts.max ?? 10,
+      max: Math.max(2, opts.max ?? 10), // withSessionLock holds one while fn uses another
       types: typeParsers,
       application_name: 'efflux',
     });
@@ -132,6 +132,31 @@ export class PostgresSql implements Sql {
   async lock(name: string): Promise<void> {
     if (!this.inTx()) throw new Error('lock() outside a transaction');
     await this.query('SELECT pg_advisory_xact_lock(hashtextextended(?, 0))', [name]);
+  }
+
+  /**
+   * fn runs while this process holds the named lock on a connection of its own (a session
+   * advisory lock, not a transaction's: fn's statements run on other connections and commit as
+   * they go). Another instance asking for it waits; a process that dies releases it with its
+   * connection.
+   */
+  async withSessionLock<T>(name: string, fn: () => Promise<T>): Promise<T> {
+    const client = await this.pool.connect();
+    let broken = false;
+    try {
+      await client.query('SELECT pg_advisory_lock(hashtextextended($1, 0))', [name]);
+      try {
+        return await fn();
+      } finally {
+        await client
+          .query('SELECT pg_advisory_unlock(hashtextextended($1, 0))', [name])
+          .catch(() => {
+            broken = true; // the connection is gone, and its lock with it
+          });
+      }
+    } finally {
+      client.release(broken);
+    }
   }
 
   /**

@@ -8,18 +8,15 @@ import { openMemoryDatabase } from '../../server/store/db.js';
 import { isRuleRefusal } from '../../server/store/errors.js';
 import {
   defaultMigrationsDir,
-  migrate,
   MigrationError,
   NewerSchemaError,
   readMigrations,
+  schemaVersion,
 } from '../../server/store/migrate.js';
-import {
-  defaultPostgresMigrationsDir,
-  migratePostgres,
-  postgresSchemaVersion,
-} from '../../server/store/postgres-migrate.js';
+import { defaultPostgresMigrationsDir, migratePostgres } from '../../server/store/postgres-migrate.js';
 import { PostgresSql } from '../../server/store/postgres-sql.js';
 import { createTestDatabase, type TestDatabase } from '../support/postgres.js';
+import { migrateSqlite } from './helpers.js';
 
 const dropped: TestDatabase[] = [];
 const pools: PostgresSql[] = [];
@@ -94,13 +91,13 @@ async function seed(sql: PostgresSql) {
 }
 
 /** The same forbidden statements, on SQLite (migrated in memory), for the expected message text. */
-function sqliteRefusal(
+async function sqliteRefusal(
   statement: string,
   setup: (db: ReturnType<typeof openMemoryDatabase>) => void,
-): string {
+): Promise<string> {
   const db = openMemoryDatabase();
+  await migrateSqlite(db);
   try {
-    migrate(db);
     setup(db);
     db.exec(statement);
   } catch (e) {
@@ -118,18 +115,18 @@ describe('migrations/postgres', () => {
 
   it('applies every file to an empty database, each recorded once, and then nothing more', async () => {
     const { sql } = await emptyDatabase();
-    expect(await postgresSchemaVersion(sql.pool)).toBe(0);
-    expect(await migratePostgres(sql.pool)).toEqual(SQLITE_FILES);
+    expect(await schemaVersion(sql)).toBe(0);
+    expect(await migratePostgres(sql)).toEqual(SQLITE_FILES);
     expect(await sql.all('SELECT version, name FROM schema_migrations ORDER BY version')).toEqual(
       SQLITE_FILES.map((name) => ({ version: Number(name.slice(0, 3)), name })),
     );
-    expect(await migratePostgres(sql.pool)).toEqual([]);
+    expect(await migratePostgres(sql)).toEqual([]);
     const tables = await sql.all<{ t: string }>(
       "SELECT table_name AS t FROM information_schema.tables WHERE table_schema = 'public' ORDER BY 1",
     );
     // the same tables as SQLite's schema
     const lite = openMemoryDatabase();
-    migrate(lite);
+    await migrateSqlite(lite);
     const liteTables = (
       lite
         .prepare(
@@ -138,12 +135,13 @@ describe('migrations/postgres', () => {
         .all() as { name: string }[]
     ).map((r) => r.name);
     lite.close();
-    expect(tables.map((r) => r.t).sort()).toEqual(liteTables.sort());
+    // the same tables as SQLite's schema, and write_counter (PostgreSQL's stand-in for PRAGMA data_version)
+    expect(tables.map((r) => r.t).sort()).toEqual([...liteTables, 'write_counter'].sort());
   });
 
   it('refuses what SQLite refuses, with the same words', async () => {
     const { sql } = await emptyDatabase();
-    await migratePostgres(sql.pool);
+    await migratePostgres(sql);
     const ids = await seed(sql);
     // [statement on PostgreSQL, the same on SQLite after the same seed]
     const cases: [string, string][] = [
@@ -185,7 +183,7 @@ describe('migrations/postgres', () => {
         INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (1, '${at}', 'timeout');`);
     };
     for (const [pgStatement, liteStatement] of cases) {
-      const expected = sqliteRefusal(liteStatement, liteSeed);
+      const expected = await sqliteRefusal(liteStatement, liteSeed);
       const e = await sql.run(pgStatement).catch((x: unknown) => x);
       expect(e, pgStatement).toBeInstanceOf(Error);
       expect((e as Error).message, pgStatement).toBe(expected);
@@ -210,7 +208,7 @@ describe('migrations/postgres', () => {
 
   it('marks outlets stale as the SQLite triggers do (an event without an outlet: every outlet of the vessel)', async () => {
     const { sql } = await emptyDatabase();
-    await migratePostgres(sql.pool);
+    await migratePostgres(sql);
     const ids = await seed(sql);
     const second = await sql.value<number>(
       `INSERT INTO outlets (vessel_id, key, spec) VALUES (?, 'overflow', '{}') RETURNING id`,
@@ -235,7 +233,7 @@ describe('migrations/postgres', () => {
 
   it('reads dates as SQLite does in the backfills of 003 (SQLite itself is the reference)', async () => {
     const { sql } = await emptyDatabase();
-    await migratePostgres(sql.pool);
+    await migratePostgres(sql);
     const lite = openMemoryDatabase();
     const texts = [
       '2024-10-07T08:00:00Z',
@@ -292,18 +290,18 @@ describe('migrations/postgres', () => {
     const { db, sql } = await emptyDatabase();
     const other = new PostgresSql({ connectionString: db.url, max: 2 });
     pools.push(other);
-    const [a, b] = await Promise.all([migratePostgres(sql.pool), migratePostgres(other.pool)]);
+    const [a, b] = await Promise.all([migratePostgres(sql), migratePostgres(other)]);
     expect([...a, ...b].sort()).toEqual(SQLITE_FILES);
     expect(await sql.value('SELECT count(*) FROM schema_migrations')).toBe(SQLITE_FILES.length);
   });
 
   it('refuses a database from a newer build, and names the failing file and statement', async () => {
     const { sql } = await emptyDatabase();
-    await migratePostgres(sql.pool);
+    await migratePostgres(sql);
     await sql.run(
       "INSERT INTO schema_migrations (version, name, applied_at) VALUES (99, '099_future.sql', 'x')",
     );
-    await expect(migratePostgres(sql.pool)).rejects.toBeInstanceOf(NewerSchemaError);
+    await expect(migratePostgres(sql)).rejects.toBeInstanceOf(NewerSchemaError);
 
     const fresh = await emptyDatabase();
     const dir = mkdtempSync(join(tmpdir(), 'efflux-pgmig-'));
@@ -314,12 +312,12 @@ describe('migrations/postgres', () => {
       join(dir, '002_broken.sql'),
       'CREATE FUNCTION f() RETURNS int LANGUAGE sql AS $$ SELECT 1; $$;\nCREATE TABLE ok (id int);\nALTER TABLE sites ADD COLUMN name TEXT;\n',
     );
-    const e = await migratePostgres(fresh.sql.pool, dir).catch((x: unknown) => x);
+    const e = await migratePostgres(fresh.sql, dir).catch((x: unknown) => x);
     expect(e).toBeInstanceOf(MigrationError);
     expect((e as Error).message).toMatch(
       /^migration 002_broken\.sql failed at statement 3 \(line 3: "ALTER TABLE sites ADD COLUMN name TEXT"\): column "name" of relation "sites" already exists; the database was left at the previous version$/,
     );
-    expect(await postgresSchemaVersion(fresh.sql.pool)).toBe(1);
+    expect(await schemaVersion(fresh.sql)).toBe(1);
     expect(await fresh.sql.value("SELECT to_regclass('ok') IS NULL")).toBe(true);
   });
 });

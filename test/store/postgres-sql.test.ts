@@ -211,7 +211,7 @@ describe('PostgresSql', () => {
         await other.run("UPDATE t SET n = n + 10 WHERE v = 'x'");
       });
       await Promise.all([a, b]);
-      expect(attemptsA + attemptsB).toBe(3); // one of them ran twice
+      expect(attemptsA + attemptsB).toBeGreaterThanOrEqual(3); // the loser ran again
       expect(await sql.all("SELECT v, n FROM t WHERE v IN ('x', 'y') ORDER BY v")).toEqual([
         { v: 'x', n: 11 },
         { v: 'y', n: 11 },

@@ -7,10 +7,12 @@ declare module 'vitest' {
   export interface ProvidedContext {
     postgresUrl?: string;
     postgresProblem?: string;
+    postgresRunId?: string;
   }
 }
 
 const url = inject('postgresUrl');
+process.env.EFFLUX_TEST_RUN_ID = inject('postgresRunId') ?? 'x';
 if (url) process.env.EFFLUX_TEST_DATABASE_URL = url;
 else {
   const problem = inject('postgresProblem') ?? 'no server was named or started';
