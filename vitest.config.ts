@@ -37,7 +37,11 @@ export default defineConfig({
           name: 'postgres',
           include: [...POSTGRES_SUITES, ...POSTGRES_ONLY],
           // tests of SQLite's own pieces (its Sql engine, its migrations), which open SQLite directly
-          exclude: ['test/store/sql.test.ts', 'test/store/migrate.test.ts', 'test/store/migrate-records.test.ts'],
+          exclude: [
+            'test/store/sql.test.ts',
+            'test/store/migrate.test.ts',
+            'test/store/migrate-records.test.ts',
+          ],
           globalSetup: ['./scripts/postgres-for-tests.mjs'],
           setupFiles: ['./test/support/postgres-setup.ts'],
         },

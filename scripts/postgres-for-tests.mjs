@@ -143,7 +143,8 @@ async function dropRunDatabases(url, runId) {
       "SELECT datname FROM pg_database WHERE datname LIKE 'efflux\\_t\\_' || $1 || '\\_%' OR datname = 'efflux_tpl_' || $1",
       [runId],
     );
-    for (const { datname } of rows) await client.query(`DROP DATABASE IF EXISTS "${datname}" WITH (FORCE)`);
+    for (const { datname } of rows)
+      await client.query(`DROP DATABASE IF EXISTS "${datname}" WITH (FORCE)`);
   } finally {
     await client.end();
   }

@@ -113,7 +113,10 @@ async function openPostgres(url: string, opts: StoreOptions): Promise<OpenedEngi
   });
   try {
     // a migrations folder given for SQLite (tests) holds PostgreSQL's files in postgres/
-    await migratePostgres(sql, opts.migrationsDir ? join(opts.migrationsDir, 'postgres/') : undefined);
+    await migratePostgres(
+      sql,
+      opts.migrationsDir ? join(opts.migrationsDir, 'postgres/') : undefined,
+    );
   } catch (e) {
     await sql.close();
     throw e;

@@ -13,7 +13,10 @@ import {
   readMigrations,
   schemaVersion,
 } from '../../server/store/migrate.js';
-import { defaultPostgresMigrationsDir, migratePostgres } from '../../server/store/postgres-migrate.js';
+import {
+  defaultPostgresMigrationsDir,
+  migratePostgres,
+} from '../../server/store/postgres-migrate.js';
 import { PostgresSql } from '../../server/store/postgres-sql.js';
 import { createTestDatabase, type TestDatabase } from '../support/postgres.js';
 import { migrateSqlite } from './helpers.js';

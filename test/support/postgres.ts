@@ -50,7 +50,8 @@ export async function createTestDatabase(template?: string): Promise<TestDatabas
   return {
     name,
     url: databaseUrl(postgresServerUrl(), name),
-    drop: () => onServer((c) => c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`)).then(() => {}),
+    drop: () =>
+      onServer((c) => c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`)).then(() => {}),
   };
 }
 
@@ -67,7 +68,10 @@ async function migratedTemplate(): Promise<string> {
       const has = await c.query('SELECT 1 FROM pg_database WHERE datname = $1', [name]);
       if (has.rowCount) return;
       await c.query(`CREATE DATABASE ${name}`);
-      const sql = new PostgresSql({ connectionString: databaseUrl(postgresServerUrl(), name), max: 2 });
+      const sql = new PostgresSql({
+        connectionString: databaseUrl(postgresServerUrl(), name),
+        max: 2,
+      });
       try {
         await migratePostgres(sql);
       } finally {
