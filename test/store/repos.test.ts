@@ -122,6 +122,23 @@ describe('drain tests and fits', () => {
     expect((await s.audit.verify()).ok).toBe(true);
   });
 
+  it('concurrent writes from many requests each commit whole, and the audit chain stays one line', async () => {
+    const { s, v } = await withTest();
+    const uploads = Array.from({ length: 20 }, (_, i) =>
+      s.tests.createPending(SYSTEM_ACTOR, {
+        vesselId: v.id,
+        outletId: v.outlets[0].id,
+        log: { bytes: new TextEncoder().encode(`time_s,level_m\n0,${i}\n`), fileName: `${i}.csv` },
+        settings: {},
+      }),
+    );
+    const stored = await Promise.all(uploads);
+    expect(new Set(stored.map((t) => t.id)).size).toBe(20);
+    const chain = await s.audit.verify();
+    expect(chain).toMatchObject({ ok: true, count: 1 + 1 + 20 }); // vessel, first test, 20 uploads
+    expect(await s.tests.count()).toBe(21);
+  });
+
   it('triggers refuse rewriting or deleting fits and analysed tests, even through raw SQL', async () => {
     const { s, t } = await withTest();
     const f = await s.fits.storeFirst(
