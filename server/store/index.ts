@@ -10,6 +10,7 @@ import { databasePath } from './maintenance.js';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
 import { redactDatabaseUrl } from './database-url.js';
+import { type AnalysisClaims, LocalClaims, PostgresClaims } from './claims.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
 import { SiteRepo } from './sites.js';
@@ -37,6 +38,8 @@ export interface Store {
   meta: ServiceMetaRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
+  /** Which instance analyses a pending test (claims.ts). */
+  claims: AnalysisClaims;
   close(): Promise<void>;
 }
 
@@ -66,6 +69,7 @@ interface OpenedEngine {
   sql: Sql;
   engine: StoreEngine;
   foreign: ForeignWrites;
+  claims: AnalysisClaims;
 }
 
 /** SQLite (better-sqlite3): a file in the data folder, or memory; migrated before use. */
@@ -95,6 +99,7 @@ async function openSqlite(opts: StoreOptions, now: () => string): Promise<Opened
     sql,
     engine: { kind: 'sqlite', path: dataDir ? databasePath(dataDir) : null, dataDir },
     foreign: new ForeignWrites(() => dataVersion.get() as number),
+    claims: new LocalClaims(),
   };
 }
 
@@ -127,13 +132,14 @@ async function openPostgres(url: string, opts: StoreOptions): Promise<OpenedEngi
     foreign: new ForeignWrites(async () =>
       Number(await sql.value('SELECT n FROM write_counter WHERE id = 1')),
     ),
+    claims: new PostgresClaims(() => sql.dedicatedClient()),
   };
 }
 
 /** Opens the database, brings its schema up to date and builds the repositories on it. */
 export async function openStore(opts: StoreOptions = {}): Promise<Store> {
   const now = opts.now ?? (() => new Date().toISOString());
-  const { sql, engine, foreign } = opts.databaseUrl
+  const { sql, engine, foreign, claims } = opts.databaseUrl
     ? await openPostgres(opts.databaseUrl, opts)
     : await openSqlite(opts, now);
   const reserve =
@@ -157,7 +163,11 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),
     reserve,
-    close: () => sql.close(),
+    claims,
+    close: async () => {
+      await claims.close();
+      await sql.close();
+    },
   };
 }
 

@@ -57,7 +57,7 @@ export class PostgresSql implements Sql {
   readonly pool: pg.Pool;
   private readonly scope = new AsyncLocalStorage<TxScope>();
 
-  constructor(opts: PostgresSqlOptions) {
+  constructor(private readonly opts: PostgresSqlOptions) {
     this.pool = new pg.Pool({
       connectionString: opts.connectionString,
       max: Math.max(2, opts.max ?? 10), // withSessionLock holds one while fn uses another
@@ -66,6 +66,18 @@ export class PostgresSql implements Sql {
     });
     // Without a listener an idle connection's error would end the process.
     this.pool.on('error', (e) => opts.onIdleError?.(e));
+  }
+
+  /** A connection outside the pool, for what lives as long as the process (claims.ts); the caller ends it. */
+  async dedicatedClient(): Promise<pg.Client> {
+    const client = new pg.Client({
+      connectionString: this.opts.connectionString,
+      types: typeParsers,
+      application_name: 'efflux',
+    });
+    client.on('error', (e) => this.opts.onIdleError?.(e));
+    await client.connect();
+    return client;
   }
 
   private current(): TxScope | undefined {
