@@ -12,6 +12,8 @@ import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildWeb } from '../../web/build.js';
+import { testingOnPostgres } from '../support/open-test-store.js';
+import { createTestDatabase, type TestDatabase } from '../support/postgres.js';
 import {
   dragAcross,
   guardBrowser,
@@ -45,8 +47,15 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     EFFLUX_DEMO: '1',
   };
   let problems: string[] = [];
+  // the vitest project `postgres`: the server keeps everything in a new PostgreSQL database (and
+  // migrates it itself), the data folder holds only the first admin token's file
+  let database: TestDatabase | null = null;
 
   beforeAll(async () => {
+    if (testingOnPostgres()) {
+      database = await createTestDatabase();
+      Object.assign(env, { EFFLUX_DATABASE_URL: database.url });
+    }
     mkdirSync(shots, { recursive: true });
     await buildWeb(webRoot);
     server = spawn(
@@ -81,6 +90,7 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
       await exited;
     }
     for (const d of [dataDir, webRoot, profile]) rmSync(d, { recursive: true, force: true });
+    await database?.drop();
   });
 
   const shot = (name: string) =>
