@@ -250,6 +250,17 @@ export function dataDir(env = process.env, opts: { flag?: string; demo?: boolean
   );
 }
 
+/**
+ * Where the commands find the store: EFFLUX_DATABASE_URL's PostgreSQL database when set, else the
+ * data folder's SQLite (the folder still holds what is the machine's own: lock, first token file).
+ */
+export function storeLocation(
+  env = process.env,
+  opts: { flag?: string; demo?: boolean } = {},
+): { dataDir: string; databaseUrl?: string } {
+  return { dataDir: dataDir(env, opts), databaseUrl: read(env, 'EFFLUX_DATABASE_URL') };
+}
+
 export interface ServeOverrides {
   /** --data DIR */
   dataDir?: string;

@@ -12,7 +12,7 @@ import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildWeb } from '../../web/build.js';
-import { testingOnPostgres } from '../support/open-test-store.js';
+import { testingOnPostgres } from '../support/store.js';
 import { createTestDatabase, type TestDatabase } from '../support/postgres.js';
 import {
   dragAcross,

@@ -294,15 +294,17 @@ describe('pending tests: retry, withdraw, marked when they keep failing', () => 
   it('resume: one failure does not stop the others; after 3 failures a test is marked stuck and left for a person', async () => {
     const t = await testApp();
     const vesselId = await withVessel(t);
-    const put = (body: string) =>
-      t.store.tests.createPending(SYSTEM_ACTOR, {
-        vesselId,
-        outletId: null,
-        log: { bytes: Buffer.from(body), fileName: 'x.csv' },
-        settings: {},
-      }).id;
-    const bad = put('t,level\nFAIL\n0,1\n1,0.9\n');
-    const good = put('t,level\n0,1\n1,0.9\n');
+    const put = async (body: string) =>
+      (
+        await t.store.tests.createPending(SYSTEM_ACTOR, {
+          vesselId,
+          outletId: null,
+          log: { bytes: Buffer.from(body), fileName: 'x.csv' },
+          settings: {},
+        })
+      ).id;
+    const bad = await put('t,level\nFAIL\n0,1\n1,0.9\n');
+    const good = await put('t,level\n0,1\n1,0.9\n');
     const analyze = async (req: AnalysisRequest) => {
       if (new TextDecoder().decode(req.log.bytes).includes('FAIL')) throw new Error('worker fault');
       return analyzeDrainTest(req);
@@ -313,17 +315,17 @@ describe('pending tests: retry, withdraw, marked when they keep failing', () => 
       failed: [{ testId: bad, reason: 'worker fault' }],
       stuck: 0,
     });
-    expect(t.store.tests.get(good).status).toBe('analysed');
+    expect((await t.store.tests.get(good)).status).toBe('analysed');
     await resumePending(t.store, analyze, SYSTEM_ACTOR);
     await resumePending(t.store, analyze, SYSTEM_ACTOR);
-    expect(t.store.tests.get(bad)).toMatchObject({ failedAttempts: 3, stuck: true });
+    expect(await t.store.tests.get(bad)).toMatchObject({ failedAttempts: 3, stuck: true });
     expect(await resumePending(t.store, analyze, SYSTEM_ACTOR)).toEqual({
       done: 0,
       refused: 0,
       failed: [],
       stuck: 1,
     });
-    expect(t.store.tests.get(bad).failedAttempts).toBe(3); // not tried again
+    expect((await t.store.tests.get(bad)).failedAttempts).toBe(3); // not tried again
     const page = (
       await t.app.inject({ url: `/api/vessels/${vesselId}/tests`, headers: t.auth('auditor') })
     ).json();

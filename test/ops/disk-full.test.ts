@@ -12,10 +12,11 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AnalysisRequest } from '../../server/core/analysis-contract.js';
 import { buildApp } from '../../server/http/app.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { checkDatabase, rowCounts } from '../../server/store/maintenance.js';
 import { analyzeDrainTest } from '../http/fake-analyze.js';
 import { multipart, VESSEL_FILE } from '../http/helpers.js';
+import { openTestStore } from '../support/store.js';
 
 const mountPoint = mkdtempSync(join(tmpdir(), 'efflux-full-'));
 const dataDir = join(mountPoint, 'data');
@@ -63,8 +64,8 @@ describe('a full disk', () => {
   };
 
   it('answers 507 problem+json and keeps nothing; after space is freed the next upload is whole', async () => {
-    store = openStore({ dataDir });
-    const token = store.users.createToken(SYSTEM_ACTOR, 'tech', 'admin').token;
+    store = await openTestStore({ dataDir });
+    const token = (await store.users.createToken(SYSTEM_ACTOR, 'tech', 'admin')).token;
     const app = await buildApp({ store, analyze });
     const auth = { authorization: `Bearer ${token}` };
     const v = await app.inject({
@@ -107,7 +108,7 @@ describe('a full disk', () => {
     // and the audit log tells the upload and its withdrawal (two entries more)
     expect({ ...after, audit_log: 0 }).toEqual({ ...before, audit_log: 0 });
     expect(after.audit_log).toBe(before.audit_log + 2);
-    expect(store.tests.pending()).toEqual([]);
+    expect(await store.tests.pending()).toEqual([]);
     expect(checkDatabase(store.db)).toMatchObject({ ok: true, problems: [] });
 
     // 3. with space again, an upload is stored with its fit
@@ -116,6 +117,6 @@ describe('a full disk', () => {
     expect(rowCounts(store.db).fits).toBe(before.fits + 1);
     expect(checkDatabase(store.db).ok).toBe(true);
     await app.close();
-    store.close();
+    await store.close();
   });
 });

@@ -5,7 +5,6 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openDatabase } from '../../server/store/db.js';
-import { openStore } from '../../server/store/index.js';
 import {
   defaultMigrationsDir,
   migrate,
@@ -15,6 +14,7 @@ import {
   schemaVersion,
   splitStatements,
 } from '../../server/store/migrate.js';
+import { openTestStore } from '../support/store.js';
 
 const tmp = () => mkdtempSync(join(tmpdir(), 'efflux-mig-'));
 
@@ -57,7 +57,7 @@ describe('migration safety', () => {
     }
   });
 
-  it('takes a copy into the data folder, named with both versions, before migrating an existing database', () => {
+  it('takes a copy into the data folder, named with both versions, before migrating an existing database', async () => {
     const all = readMigrations(defaultMigrationsDir());
     const older = tmp();
     for (const f of all.slice(0, -1)) writeFileSync(join(older, f.name), f.sql);
@@ -70,11 +70,13 @@ describe('migration safety', () => {
     const from = all.at(-2)!.version;
     const to = all.at(-1)!.version;
     expect(readdirSync(data).filter((n) => n.startsWith('efflux-before'))).toEqual([]); // a new database needs no copy
-    openStore({
-      dataDir: data,
-      migrationsDir: newest,
-      now: () => '2026-12-05T04:45:00.000Z',
-    }).close();
+    await (
+      await openTestStore({
+        dataDir: data,
+        migrationsDir: newest,
+        now: () => '2026-12-05T04:45:00.000Z',
+      })
+    ).close();
     const copies = readdirSync(data).filter((n) => n.startsWith('efflux-before'));
     expect(copies).toEqual([`efflux-before-schema-${from}-to-${to}-20261205T044500.sqlite`]);
     const copy = new Database(join(data, copies[0]), { readonly: true });
@@ -82,15 +84,15 @@ describe('migration safety', () => {
     copy.close();
   });
 
-  it('refuses a database newer than the build, leaving it untouched', () => {
+  it('refuses a database newer than the build, leaving it untouched', async () => {
     const data = tmp();
-    openStore({ dataDir: data }).close();
+    await (await openTestStore({ dataDir: data })).close();
     const db = new Database(join(data, 'efflux.sqlite'));
     const build = schemaVersion(db);
     db.prepare('INSERT INTO schema_migrations VALUES (?, ?, ?)').run(build + 1, 'next.sql', 'x');
     db.close();
-    expect(() => openStore({ dataDir: data })).toThrow(NewerSchemaError);
-    expect(() => openStore({ dataDir: data })).toThrow(
+    await expect(openTestStore({ dataDir: data })).rejects.toThrow(NewerSchemaError);
+    await expect(openTestStore({ dataDir: data })).rejects.toThrow(
       `schema version ${build + 1}, newer than this build's ${build}`,
     );
     const again = new Database(join(data, 'efflux.sqlite'), { readonly: true });

@@ -1,6 +1,6 @@
 import type Database from 'better-sqlite3';
 import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
-import { openTestStore } from '../support/open-test-store.js';
+import { openTestStore } from '../support/store.js';
 import { migrate } from '../../server/store/migrate.js';
 import { SqliteSql } from '../../server/store/sqlite-sql.js';
 

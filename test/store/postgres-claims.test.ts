@@ -1,6 +1,6 @@
 // Claims of pending tests between two instances on one PostgreSQL database (vitest project `postgres`).
 import { describe, expect, it } from 'vitest';
-import { openTestStorePair } from '../support/open-test-store.js';
+import { openTestStorePair } from '../support/store.js';
 
 describe('analysis claims across instances', () => {
   it('one instance at a time; released, or its connection gone, the other may take it', async () => {

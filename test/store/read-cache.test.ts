@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Store } from '../../server/store/index.js';
 import { ForeignWrites, ReadCache } from '../../server/store/read-cache.js';
-import { openTestStorePair } from '../support/open-test-store.js';
+import { openTestStorePair } from '../support/store.js';
 import { FIT_RESULT, memoryStore, SYSTEM_ACTOR, VESSEL } from './helpers.js';
 
 const bytes = new TextEncoder().encode('t,level\n0,2\n1,1.9\n');

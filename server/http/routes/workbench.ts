@@ -67,7 +67,7 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const v = app.store.vessels.get(request.params.id);
+      const v = await app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
       const req = {
         log: up.log,
@@ -103,10 +103,11 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const t = app.store.tests.get(request.params.id);
-      const f = request.query.fit === undefined ? null : app.store.fits.get(request.query.fit);
+      const t = await app.store.tests.get(request.params.id);
+      const f =
+        request.query.fit === undefined ? null : await app.store.fits.get(request.query.fit);
       const settings = (f && f.testId === t.id ? f.settings : t.settings) as AnalysisSettings;
-      const v = app.store.vessels.get(t.vesselId);
+      const v = await app.store.vessels.get(t.vesselId);
       // a file database: the task thread reads the raw bytes itself (tens of MB stay off this thread)
       const dbPath = databaseFile(app.store.engine);
       const raw = async (sha256: string, fileName: string) =>

@@ -1,6 +1,11 @@
-// The one way tests open a store: SQLite in memory (or in a data folder when one is given), or,
-// in the vitest project `postgres` (EFFLUX_TEST_DATABASE_URL set), a new PostgreSQL database of
-// its own for every store, dropped when the store is closed or the test file ends.
+/**
+ * The one way a test opens a store (the HTTP helpers' testApp and every test that wants a store of
+ * its own come through here), so the engine under the suites is chosen in one place: SQLite, in
+ * memory, or the data folder's file when `dataDir` is given; in the vitest project `postgres`
+ * (EFFLUX_TEST_DATABASE_URL set) a new PostgreSQL database of its own for every store without a
+ * data folder, dropped when the store is closed or the test file ends. close() may be called more
+ * than once (a test closes early, the file's afterAll closes again).
+ */
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -19,7 +24,8 @@ export function testingOnPostgres(): boolean {
 }
 
 export async function openTestStore(opts: StoreOptions = {}): Promise<Store> {
-  if (!testingOnPostgres() || opts.dataDir || opts.databaseUrl) return openStore(opts);
+  if (!testingOnPostgres() || opts.dataDir || opts.databaseUrl)
+    return withCleanup(await openStore(opts), async () => {});
   const db = await createMigratedTestDatabase();
   return withCleanup(await openStore({ ...opts, databaseUrl: db.url, poolSize: 4 }), () =>
     db.drop(),
