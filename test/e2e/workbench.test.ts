@@ -78,6 +78,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
         reject(new Error(`server exited ${code} before listening:\n${out}`)),
       );
     });
+    // the records are where the project says (the banner names the database, never a password)
+    if (database) expect(out).toContain(`(database ${database.url}; DEMO data`);
+    else expect(out).toContain(`(data in ${dataDir}; DEMO data`);
     adminToken = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
     ({ context, page, profile, problems } = await launch());
   }, 180_000);
