@@ -11,7 +11,7 @@ import { currentSoftware } from '../render/software.js';
 import { openStore } from '../store/index.js';
 import { guarded } from './io.js';
 import { parseCommandLine } from './options.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = `usage: efflux export [--site S] [--vessel ID|NAME] [--from YYYY-MM-DD] [--to YYYY-MM-DD] --out archive.zip
 All approved (current) fits whose drain test falls in the period; --to includes its whole day.
@@ -36,7 +36,7 @@ export async function run(argv: string[]): Promise<number> {
     if (positionals.length)
       throw new InputError(`unexpected argument "${positionals[0]}" (see --help)`);
     if (!values.out) throw new InputError('say where to write the archive: --out archive.zip');
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       const t0 = performance.now();
       const r = await periodExport(

@@ -14,7 +14,7 @@ import {
 } from '../jobs/trend.js';
 import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = `usage: efflux trend <outletId> [--json|--csv] [--as-of DATE]
        efflux trend --fleet [--json] [--site SITE] [--status WORD[,WORD…]] [--as-of DATE]
@@ -140,7 +140,7 @@ export async function run(argv: string[]): Promise<number> {
     const csv = argv.includes('--csv');
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
     const nowMs = asOfMs(argv);
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       if (argv.includes('--fleet')) {
         if (csv) throw new InputError("--csv is for one outlet's history", { field: 'csv' });
