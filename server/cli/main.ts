@@ -72,6 +72,11 @@ const COMMANDS: Record<string, Command> = {
     summary: "an outlet's Cd·a trend and forecast, or the fleet: trend <outletId> | trend --fleet",
     load: () => loadModule('trend'),
   },
+  'migrate-store': {
+    summary:
+      'copy a data folder into an empty PostgreSQL database and verify the copy: migrate-store --from DIR --to postgres://…',
+    load: () => loadModule('migrate-store'),
+  },
   backup: {
     summary: "copy the data folder's database online and check the copy: backup --out FILE",
     load: async () => ({ run: (await import('./data-folder.js')).runBackup }),
