@@ -134,7 +134,7 @@ export async function run(argv: string[]): Promise<number> {
     if (!existsSync(databasePath(from)))
       throw new InputError(`no efflux database in the data folder ${from} (${databasePath(from)})`);
     const shownTo = redactDatabaseUrl(to);
-    let lock;
+    let lock: ReturnType<typeof lockDataFolder>;
     try {
       lock = lockDataFolder(from, 'efflux migrate-store');
     } catch (e) {
