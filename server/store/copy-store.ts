@@ -13,7 +13,11 @@
  * - Tables go in the order their foreign keys need (read from the target's catalogue); a column
  *   pointing at its own table (fits.superseded_by) is filled in a second pass, which the
  *   append-only rules allow (superseded_by is set once).
- * - The whole copy is one transaction on the target: a failure leaves it as empty as it was.
+ * - The whole copy is one transaction on the target: a failure leaves it as empty as it was. The
+ *   target's own triggers are off during it (ALTER TABLE … DISABLE TRIGGER USER: the user that
+ *   migrated the database owns its tables), so rows that triggers derive on insert (vessel
+ *   revisions, the revision a fit used, stale marks) come from the source as they were, not
+ *   recomputed from the state at copy time; foreign keys are still checked.
  */
 import { createHash } from 'node:crypto';
 import type { Sql, SqlValue } from './sql.js';
@@ -178,6 +182,9 @@ export async function copyStore(
       );
   }
   await target.tx(async () => {
+    // the rows go in as they were: triggers that derive rows (revisions, the trend's stale marks)
+    // or count writes would add rows the source already holds; foreign keys stay checked
+    for (const p of plans) await target.run(`ALTER TABLE ${q(p.name)} DISABLE TRIGGER USER`);
     for (const p of plans) {
       const total = Number(await source.value(`SELECT count(*) FROM ${q(p.name)}`));
       if (MADE_BY_TRIGGERS.has(p.name)) await target.run(`DELETE FROM ${q(p.name)}`);
@@ -207,7 +214,7 @@ export async function copyStore(
           });
         const values = p.columns.map((c) => (p.selfRefs.includes(c) ? null : (r[c] as SqlValue)));
         batch.push(values);
-        bytes += values.reduce((s, v) => s + sizeOf(v), 0);
+        bytes += values.reduce<number>((sum, v) => sum + sizeOf(v), 0);
         if (batch.length >= BATCH_ROWS || bytes >= BATCH_BYTES) await flush();
       }
       await flush();
@@ -222,6 +229,7 @@ export async function copyStore(
       }
       counts[p.name] = copied;
     }
+    for (const p of plans) await target.run(`ALTER TABLE ${q(p.name)} ENABLE TRIGGER USER`);
     // every outlet's status is recomputed (and so re-checked) on its first read
     if (plans.some((p) => p.name === 'outlet_trend_stale'))
       await target.run(
