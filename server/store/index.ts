@@ -4,6 +4,7 @@ import { openDatabase, openMemoryDatabase, type Db } from './db.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
 import { LiveRepo } from './live.js';
+import { NameRepo } from './names.js';
 import { join } from 'node:path';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
@@ -16,6 +17,7 @@ import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
 import { VesselRepo } from './vessels.js';
+import { VesselRevisionRepo } from './vessel-revisions.js';
 
 export interface Store {
   db: Db;
@@ -31,6 +33,10 @@ export interface Store {
   trends: TrendRepo;
   live: LiveRepo;
   meta: ServiceMetaRepo;
+  /** Saved revisions of vessel files and the revision each fit used (migration 007). */
+  vesselRevisions: VesselRevisionRepo;
+  /** Outlets and sites as people name them (CLI look-ups). */
+  names: NameRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
   close(): void;
@@ -103,6 +109,8 @@ export function openStore(opts: StoreOptions = {}): Store {
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),
+    vesselRevisions: new VesselRevisionRepo(c),
+    names: new NameRepo(c),
     reserve,
     close: () => db.close(),
   };
