@@ -41,14 +41,17 @@ export class VesselRevisionRepo {
     );
     const saver = new Map<number, string>();
     for (const e of entries) {
-      const rev = e.after === null ? undefined : (JSON.parse(e.after) as { revision?: unknown }).revision;
+      const rev =
+        e.after === null ? undefined : (JSON.parse(e.after) as { revision?: unknown }).revision;
       if (typeof rev === 'number') saver.set(rev, e.actor_name);
     }
     return rows.map((r) => ({
       revision: Number(r.revision),
       savedAt: r.saved_at,
       savedBy: saver.get(Number(r.revision)) ?? null,
-      fitIds: fits.filter((f) => Number(f.revision) === Number(r.revision)).map((f) => Number(f.fit_id)),
+      fitIds: fits
+        .filter((f) => Number(f.revision) === Number(r.revision))
+        .map((f) => Number(f.fit_id)),
     }));
   }
 

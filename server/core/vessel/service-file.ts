@@ -74,7 +74,8 @@ export function vesselFileProblems(value: unknown): VesselFileProblem[] {
       const id = plain.id;
       if (typeof id !== 'string')
         add({ field: `${prefix(i)}.id`, message: 'each of several outlets needs an id' });
-      else if (ids.has(id)) add({ field: `${prefix(i)}.id`, message: `outlet id "${id}" is used twice` });
+      else if (ids.has(id))
+        add({ field: `${prefix(i)}.id`, message: `outlet id "${id}" is used twice` });
       else ids.add(id);
     }
   });

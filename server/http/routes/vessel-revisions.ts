@@ -32,7 +32,8 @@ export const vesselRevisionRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS, scope: 'vessel' },
       schema: {
         tags: ['vessels'],
-        summary: "A vessel's saved revisions, newest first, with who saved each and the fits made with it",
+        summary:
+          "A vessel's saved revisions, newest first, with who saved each and the fits made with it",
         params: idParams,
         response: { 200: z.object({ items: z.array(revisionInfo) }), ...protectedErrors },
       },
@@ -51,8 +52,7 @@ export const vesselRevisionRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: revisionBody, ...protectedErrors },
       },
     },
-    async (request) =>
-      app.store.vesselRevisions.get(request.params.id, request.params.revision),
+    async (request) => app.store.vesselRevisions.get(request.params.id, request.params.revision),
   );
 
   app.get(
