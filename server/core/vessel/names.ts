@@ -99,3 +99,38 @@ export function matchSites(part: string, sites: readonly string[], field = 'site
     );
   return hits;
 }
+
+/** A vessel as the person names it: its id, its tag or its name (any case). */
+export function resolveVesselName(
+  ref: string,
+  outlets: readonly OutletName[],
+  field = 'vessel',
+): { vesselId: number; vesselName: string; vesselTag: string | null; site: string } {
+  const byId = new Map<number, OutletName>();
+  for (const o of outlets) if (!byId.has(o.vesselId)) byId.set(o.vesselId, o);
+  const vessels = [...byId.values()];
+  const text = ref.trim();
+  const pickOne = (found: OutletName[]) => {
+    if (found.length === 1) return found[0];
+    if (found.length === 0) return null;
+    throw new AmbiguousNameError(
+      `"${text}" names ${found.length} vessels; give the vessel id`,
+      found.map(
+        (v) =>
+          `${v.vesselTag ?? v.vesselName} (vessel ${v.vesselId}, ${v.vesselName}, site ${v.site})`,
+      ),
+      field,
+    );
+  };
+  const hit = /^\d+$/.test(text)
+    ? (byId.get(Number(text)) ?? null)
+    : (pickOne(vessels.filter((v) => v.vesselTag !== null && same(v.vesselTag, text))) ??
+      pickOne(vessels.filter((v) => same(v.vesselName, text))));
+  if (!hit) throw new InputError(`no vessel "${text}" (give its id, tag or name)`, { field });
+  return {
+    vesselId: hit.vesselId,
+    vesselName: hit.vesselName,
+    vesselTag: hit.vesselTag,
+    site: hit.site,
+  };
+}
