@@ -9,7 +9,7 @@ import { crossFieldProblems } from './sanity.js';
 
 export { shapeSchema } from './shape-schema.js';
 
-const OUTLET_TYPES = [
+export const OUTLET_TYPES = [
   'sharp-edged',
   'square-edged-short-tube',
   'rounded',
