@@ -120,9 +120,10 @@ class Controls {
     });
     input.addEventListener('input', onChange);
     this.lengths.set(path, { input, unit: unitSel });
-    const row = h('div', { class: 'length-entry' }, input, unitSel);
     const f = field(label, input);
-    f.querySelector('input')?.replaceWith(row);
+    const row = h('div', { class: 'length-entry' });
+    input.replaceWith(row);
+    row.append(input, unitSel);
     f.append(this.errorSlot(path));
     return f;
   }
