@@ -95,6 +95,19 @@ describe('efflux vessel and outlet commands', () => {
     expect(run('trend', 'nothing-here').stderr).toContain('no outlet tagged "nothing-here"');
   });
 
+  it('efflux trend FD-2 finds the demo FD-2 vessel by the tag painted on it', () => {
+    expect(run('vessel', 'add', join(root, 'sample-data/filter-drain-fd2.vessel.json')).code).toBe(
+      0,
+    );
+    const r = run('trend', 'FD-2', '--json');
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    expect(JSON.parse(r.stdout).outlet).toMatchObject({
+      key: 'drain',
+      vesselName: 'Filter drain tank FD-2',
+    });
+  });
+
   it('sets an outlet threshold by tag, as a new audited vessel revision', () => {
     const r = run('outlet', 'threshold', 'D-2/bottom', '0.85', '--site', 'kestrel');
     expect(r.code).toBe(0);

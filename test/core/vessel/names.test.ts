@@ -52,7 +52,7 @@ describe('outlet names', () => {
 
   it('refuses a name that fits several outlets, listing each, and one that fits none', () => {
     expect(() => resolveOutletName('drain', FLEET)).toThrow(
-      /"drain" names 2 outlets[^]*FD-2\/drain \(outlet 11[^]*FD-3\/drain \(outlet 12/,
+      /"drain" names 2 outlets[\s\S]*FD-2\/drain \(outlet 11[\s\S]*FD-3\/drain \(outlet 12/,
     );
     expect(() => resolveOutletName('TT-1', FLEET)).toThrow(/names 2 outlets/);
     expect(() => resolveOutletName('99', FLEET)).toThrow('no outlet with id 99');
