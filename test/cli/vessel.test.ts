@@ -21,7 +21,8 @@ beforeAll(() => {
   work = mkdtempSync(join(tmpdir(), 'efflux-vessel-files-'));
 });
 
-describe('efflux vessel and outlet commands', () => {
+// each case starts the CLI several times (about 2 s each on a quiet machine, far more under load)
+describe('efflux vessel and outlet commands', { timeout: 240_000 }, () => {
   it('adds a vessel file and exports it back equal to the input (SI units)', () => {
     const add = run('vessel', 'add', D2_FILE);
     expect(add.stderr).toBe('');
