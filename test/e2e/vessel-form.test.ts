@@ -6,7 +6,9 @@
  * length the exact SI value, 1 in = 0.0254 m and 1 ft = 0.3048 m, NIST SP 811 B.8) gives the same
  * stored file, the same fit to the digits shown and the same drawing. Invented people and vessels.
  */
-import { mkdirSync, rmSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { readFile } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -157,9 +159,27 @@ describe.skipIf(!haveBrowser)('a vessel entered in feet and inches through the w
     expect(stored.spec).toEqual({ ...AS_FILE, name: 'Day tank D-9 (newcomer)', tag: 'D-9' });
     await page.getByRole('heading', { name: 'Revisions of the vessel file' }).waitFor();
 
+    // export from the page gives the stored file; import fills the form from a file
+    await page.goto(`${srv.base}/#/vessels/${vesselId}/edit`);
+    await page.getByRole('heading', { level: 1, name: 'Edit Day tank D-9 (newcomer)' }).waitFor();
+    const [download] = await Promise.all([
+      page.waitForEvent('download'),
+      page.getByRole('button', { name: 'Download vessel file' }).click(),
+    ]);
+    expect(download.suggestedFilename()).toBe('D-9.vessel.json');
+    expect(JSON.parse(await readFile((await download.path())!, 'utf8'))).toEqual(stored.spec);
+    const fileOnDisk = join(mkdtempSync(join(tmpdir(), 'efflux-e2e-vessel-')), 'd9.vessel.json');
+    writeFileSync(fileOnDisk, JSON.stringify(AS_FILE));
+    await page.locator('input[name="import"]').setInputFiles(fileOnDisk);
+    await page.getByText('Read d9.vessel.json').waitFor();
+    await expect(page.locator('input[name="name"]').inputValue()).resolves.toBe(AS_FILE.name);
+    await expect(length('shape.lengthM').inputValue()).resolves.toBe('4.4958');
+
     // the same vessel as a file, in metres, through the API
     const fileVessel = await call('POST', '/api/vessels', AS_FILE);
     expect(fileVessel.status).toBe(201);
+    await page.goto(`${srv.base}/#/vessels/${vesselId}`);
+    await page.getByRole('heading', { level: 1, name: 'Day tank D-9 (newcomer)' }).waitFor();
     const pageDrawing = await page.locator('svg.vessel-drawing').evaluate((e) => e.outerHTML);
     await page.goto(`${srv.base}/#/vessels/${fileVessel.json.id}`);
     await page.getByRole('heading', { level: 1, name: AS_FILE.name }).waitFor();
@@ -187,11 +207,7 @@ describe.skipIf(!haveBrowser)('a vessel entered in feet and inches through the w
 
     // the same log on the file's vessel: the same numbers to every digit shown
     const form = new FormData();
-    form.append(
-      'log',
-      new Blob([await (await import('node:fs/promises')).readFile(LOG)]),
-      'd2.csv',
-    );
+    form.append('log', new Blob([await readFile(LOG)]), 'd2.csv');
     const up = await call('POST', `/api/vessels/${fileVessel.json.id}/tests`, form);
     expect(up.status).toBe(201);
     await page.goto(`${srv.base}/#/fits/${up.json.fit.id}`);
