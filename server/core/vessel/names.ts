@@ -50,7 +50,7 @@ export function resolveOutletName(
   const text = ref.trim();
   if (/^\d+$/.test(text)) {
     const hit = outlets.find((o) => o.outletId === Number(text));
-    if (!hit) throw new InputError(`no outlet with id ${text}`, { field });
+    if (!hit) throw new InputError(`outlet ${text} not found`, { field });
     return hit;
   }
   const vesselIs = (o: OutletName, v: string) =>

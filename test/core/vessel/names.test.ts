@@ -55,7 +55,7 @@ describe('outlet names', () => {
       /"drain" names 2 outlets[\s\S]*FD-2\/drain \(outlet 11[\s\S]*FD-3\/drain \(outlet 12/,
     );
     expect(() => resolveOutletName('TT-1', FLEET)).toThrow(/names 2 outlets/);
-    expect(() => resolveOutletName('99', FLEET)).toThrow('no outlet with id 99');
+    expect(() => resolveOutletName('99', FLEET)).toThrow('outlet 99 not found');
     expect(() => resolveOutletName('XX-9', FLEET)).toThrow('no outlet tagged "XX-9"');
   });
 
