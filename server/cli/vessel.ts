@@ -79,11 +79,11 @@ function summary(v: Vessel): string[] {
 }
 
 async function withStore<T>(values: { data?: string }, body: (s: Store) => Promise<T>): Promise<T> {
-  const store = openStore({ dataDir: dataDir(process.env, { flag: values.data }) });
+  const store = await openStore({ dataDir: dataDir(process.env, { flag: values.data }) });
   try {
     return await refusalsAsInput(() => body(store));
   } finally {
-    store.close();
+    await store.close();
   }
 }
 

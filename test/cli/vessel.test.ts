@@ -109,23 +109,21 @@ describe('efflux vessel and outlet commands', { timeout: 240_000 }, () => {
     });
   });
 
-  it('sets an outlet threshold by tag, as a new audited vessel revision', () => {
+  it('sets an outlet threshold by tag, as a new audited vessel revision', async () => {
     const r = run('outlet', 'threshold', 'D-2/bottom', '0.85', '--site', 'kestrel');
     expect(r.code).toBe(0);
     expect(r.stdout).toContain('outlet 1 "bottom"');
     expect(r.stdout).toContain('vessel revision 3');
     expect(JSON.parse(run('vessel', 'export', '1').stdout).outlet.actionThreshold).toBe(0.85);
     expect(run('outlet', 'threshold', '1', '1').code).toBe(2);
-    const store = openStore({ dataDir: dir });
+    const store = await openStore({ dataDir: dir });
     try {
-      const row = store.db
-        .prepare(
-          `SELECT actor_name, action FROM audit_log WHERE entity_type = 'vessel' AND entity_id = '1' ORDER BY seq DESC LIMIT 1`,
-        )
-        .get();
+      const row = await store.sql.get(
+        `SELECT actor_name, action FROM audit_log WHERE entity_type = 'vessel' AND entity_id = '1' ORDER BY seq DESC LIMIT 1`,
+      );
       expect(row).toEqual({ actor_name: 'system', action: 'vessel.update' });
     } finally {
-      store.close();
+      await store.close();
     }
   });
 

@@ -69,12 +69,12 @@ describe('vessel revisions (migration 007)', () => {
     expect(none.statusCode).toBe(404);
 
     // the rules hold below the code too: a changed file without a new revision, or an edited revision, is refused
-    expect(() => t.store.db.prepare(`UPDATE vessels SET spec = '{}' WHERE id = ?`).run(id)).toThrow(
-      /needs a new revision/,
-    );
-    expect(() =>
-      t.store.db.prepare(`UPDATE vessel_revisions SET spec = '{}' WHERE vessel_id = ?`).run(id),
-    ).toThrow(/never changed/);
+    await expect(
+      t.store.sql.run(`UPDATE vessels SET spec = '{}' WHERE id = ?`, [id]),
+    ).rejects.toThrow(/needs a new revision/);
+    await expect(
+      t.store.sql.run(`UPDATE vessel_revisions SET spec = '{}' WHERE vessel_id = ?`, [id]),
+    ).rejects.toThrow(/never changed/);
   });
 
   it('fills the revisions of a database made before it from the audit log', () => {
