@@ -85,7 +85,7 @@ describe('a full disk', () => {
       });
     };
     expect((await up(0)).statusCode).toBe(201);
-    const before = rowCounts(store.db);
+    const before = await rowCounts(store.sql);
 
     // 1. the disk is full before the upload: the bytes cannot be stored
     expect(fillDisk()).toBeGreaterThan(0);
@@ -94,7 +94,7 @@ describe('a full disk', () => {
     expect(full.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(full.json()).toMatchObject({ status: 507, type: 'urn:efflux:problem:disk-full' });
     expect(full.body).not.toMatch(/SQLITE|at .*\.ts/);
-    expect(rowCounts(store.db)).toEqual(before);
+    expect(await rowCounts(store.sql)).toEqual(before);
     freeDisk();
 
     // 2. the disk fills while the analysis runs: the bytes were stored, the fit cannot be
@@ -103,19 +103,19 @@ describe('a full disk', () => {
     fillDuringAnalysis = false;
     expect(mid.statusCode).toBe(507);
     freeDisk();
-    const after = rowCounts(store.db);
+    const after = await rowCounts(store.sql);
     // the compensating step withdrew the test: no test, raw file or fit beyond what was there,
     // and the audit log tells the upload and its withdrawal (two entries more)
     expect({ ...after, audit_log: 0 }).toEqual({ ...before, audit_log: 0 });
     expect(after.audit_log).toBe(before.audit_log + 2);
     expect(await store.tests.pending()).toEqual([]);
-    expect(checkDatabase(store.db)).toMatchObject({ ok: true, problems: [] });
+    expect(await checkDatabase(store.sql)).toMatchObject({ ok: true, problems: [] });
 
     // 3. with space again, an upload is stored with its fit
     const ok = await up(3);
     expect(ok.statusCode).toBe(201);
-    expect(rowCounts(store.db).fits).toBe(before.fits + 1);
-    expect(checkDatabase(store.db).ok).toBe(true);
+    expect((await rowCounts(store.sql)).fits).toBe(before.fits + 1);
+    expect((await checkDatabase(store.sql)).ok).toBe(true);
     await app.close();
     await store.close();
   });
