@@ -76,7 +76,11 @@ function startServe(env: NodeJS.ProcessEnv): Promise<Instance> {
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
-async function httpCase(label: string, location: { dataDir?: string; databaseUrl?: string }, instances: number) {
+async function httpCase(
+  label: string,
+  location: { dataDir?: string; databaseUrl?: string },
+  instances: number,
+) {
   const store = await openStore({ ...location, poolSize: 2 });
   const token = (await store.users.createToken(SYSTEM_ACTOR, 'bench', 'admin')).token;
   const vessel = await store.vessels.create(
@@ -157,9 +161,15 @@ try {
   console.log(
     `${new Date().toISOString()}; ${cpus()[0]?.model ?? 'cpu'} × ${availableParallelism()}; load average ${loadavg()
       .map((x) => x.toFixed(2))
-      .join(' ')}; PostgreSQL ${given ? 'at EFFLUX_BENCH_DATABASE_URL' : 'throw-away (fsync off)'}; ${seconds} s per read case`,
+      .join(
+        ' ',
+      )}; PostgreSQL ${given ? 'at EFFLUX_BENCH_DATABASE_URL' : 'throw-away (fsync off)'}; ${seconds} s per read case`,
   );
-  await httpCase('SQLite, one instance', { dataDir: mkdtempSync(join(tmpdir(), 'efflux-bench-')) }, 1);
+  await httpCase(
+    'SQLite, one instance',
+    { dataDir: mkdtempSync(join(tmpdir(), 'efflux-bench-')) },
+    1,
+  );
   await httpCase('PostgreSQL, one instance', { databaseUrl: await newDatabase() }, 1);
   await httpCase('PostgreSQL, two instances', { databaseUrl: await newDatabase() }, 2);
 
@@ -169,7 +179,9 @@ try {
   const folder = mkdtempSync(join(tmpdir(), 'efflux-bench-fleet-'));
   const lite = await openStore({ dataDir: folder, now: at });
   const seededMs = await seedFleet(lite.sql, OUTLETS, MONTHS, START);
-  console.log(`fleet seeded on SQLite in ${(seededMs / 1000).toFixed(1)} s (${OUTLETS * MONTHS} fits)`);
+  console.log(
+    `fleet seeded on SQLite in ${(seededMs / 1000).toFixed(1)} s (${OUTLETS * MONTHS} fits)`,
+  );
   await fleetTimes('SQLite', lite, NOW);
   const pgStore = await openStore({ databaseUrl: await newDatabase(), now: at, poolSize: 4 });
   const t0 = performance.now();
