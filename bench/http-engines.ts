@@ -9,7 +9,8 @@
  * of it (server/store/copy-store.ts, as migrate-store copies).
  * PostgreSQL: EFFLUX_BENCH_DATABASE_URL names a server (a database is created on it per case),
  * else a throw-away one is started as the tests start theirs (scripts/postgres-for-tests.mjs; it
- * runs with fsync off, as a test server: say so beside its numbers).
+ * runs with fsync off, as a test server: say so beside its numbers). BENCH_FLEET_ONLY=1: the fleet
+ * case alone; BENCH_OUTLETS: a smaller fleet.
  */
 import autocannon from 'autocannon';
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -165,13 +166,15 @@ try {
         ' ',
       )}; PostgreSQL ${given ? 'at EFFLUX_BENCH_DATABASE_URL' : 'throw-away (fsync off)'}; ${seconds} s per read case`,
   );
-  await httpCase(
-    'SQLite, one instance',
-    { dataDir: mkdtempSync(join(tmpdir(), 'efflux-bench-')) },
-    1,
-  );
-  await httpCase('PostgreSQL, one instance', { databaseUrl: await newDatabase() }, 1);
-  await httpCase('PostgreSQL, two instances', { databaseUrl: await newDatabase() }, 2);
+  if (process.env.BENCH_FLEET_ONLY !== '1') {
+    await httpCase(
+      'SQLite, one instance',
+      { dataDir: mkdtempSync(join(tmpdir(), 'efflux-bench-')) },
+      1,
+    );
+    await httpCase('PostgreSQL, one instance', { databaseUrl: await newDatabase() }, 1);
+    await httpCase('PostgreSQL, two instances', { databaseUrl: await newDatabase() }, 2);
+  }
 
   const START = Date.UTC(2015, 0, 1);
   const NOW = START + MONTHS * (365.25 / 12) * DAY_MS;

@@ -94,21 +94,26 @@ describe('two instances on one PostgreSQL database', () => {
     const sent = Array.from({ length: UPLOADS }, (_, i) => {
       const onA = i % 2 === 0;
       return upload(onA ? a.base : b.base, i).then((r) => {
-        if (onA && r.status === 201 && ++answeredByA === 3 && !killed) {
+        // midway: after A's third answer, while most of its uploads are still in flight
+        if (onA && ++answeredByA === 3 && !killed) {
           killed = true;
-          a.child.kill('SIGKILL'); // midway: most of its uploads are still in flight
+          a.child.kill('SIGKILL');
         }
         return { ...r, onA };
       });
     });
     const results = await Promise.all(sent);
+    const statuses = (rs: typeof results) => rs.map((r) => r.status).join(' ');
     expect(killed).toBe(true);
     const fromA = results.filter((r) => r.onA);
     const fromB = results.filter((r) => !r.onA);
-    // the kill came while A still had uploads in flight, and B answered all of its own
-    expect(fromA.filter((r) => r.status === 201).length).toBeLessThan(UPLOADS / 2);
-    expect(fromB.map((r) => r.status)).toEqual(fromB.map(() => 201));
-    for (const r of results) expect([0, 201]).toContain(r.status);
+    expect(fromA.filter((r) => r.status === 0).length, statuses(fromA)).toBeGreaterThan(0);
+    // B answered each of its own: 201, or 503 when the analysis ran past its time limit on a
+    // loaded machine (the test stays stored, pending, and is analysed later); A the same, or the
+    // connection died with it
+    expect(fromB.filter((r) => r.status === 201).length, statuses(fromB)).toBeGreaterThan(0);
+    for (const r of fromB) expect([201, 503], statuses(fromB)).toContain(r.status);
+    for (const r of fromA) expect([0, 201, 503], statuses(fromA)).toContain(r.status);
 
     // the killed instance starts again and claims what was left pending
     const a2 = await serve(env);
