@@ -3,7 +3,15 @@ import type { FitReport, ReportQuantity } from '../core/report/index.js';
 import { reportJson } from '../core/report/index.js';
 import { domainOf, drawChart } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type Doc, type DocIdentity } from './pdf-doc.js';
-import { fields, figure, heading, paragraph, table } from './pdf-layout.js';
+import {
+  fields,
+  figure,
+  heading,
+  layoutRecord,
+  paragraph,
+  table,
+  type RenderOptions,
+} from './pdf-layout.js';
 import {
   areaText,
   bytesText,
@@ -148,7 +156,7 @@ function charts(doc: Doc, r: FitReport): void {
   });
 }
 
-export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
+export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {}): Promise<Buffer> {
   const id = fitReportIdentity(r);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Drain-test fit report', MARGIN, doc.y);
@@ -519,5 +527,6 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
     `To check this document against the records: efflux report verify <this file>. The canonical JSON of the report is attached to the PDF as report.json; its SHA-256 without the two identity fields is the content hash above.`,
     { size: 7.5, muted: true },
   );
+  opts.layout?.push(...layoutRecord(doc));
   return finishReportDoc(doc, id);
 }

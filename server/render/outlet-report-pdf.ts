@@ -4,7 +4,15 @@ import { reportJson } from '../core/report/index.js';
 import { dateTicks } from './chart-ticks.js';
 import { domainOf, drawChart, type Layer } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type DocIdentity } from './pdf-doc.js';
-import { fields, figure, heading, paragraph, table } from './pdf-layout.js';
+import {
+  fields,
+  figure,
+  heading,
+  layoutRecord,
+  paragraph,
+  table,
+  type RenderOptions,
+} from './pdf-layout.js';
 import {
   areaText,
   dateText,
@@ -40,7 +48,7 @@ export function outletReportIdentity(r: OutletReport): DocIdentity {
   };
 }
 
-export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
+export async function renderOutletReportPdf(r: OutletReport, opts: RenderOptions = {}): Promise<Buffer> {
   const id = outletReportIdentity(r);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Outlet history report', MARGIN, doc.y);
@@ -233,5 +241,6 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
     'Each fit has its own report (efflux report fit <fitId>); check this document against the records with efflux report verify <this file>.',
     { size: 7.5, muted: true },
   );
+  opts.layout?.push(...layoutRecord(doc));
   return finishReportDoc(doc, id);
 }

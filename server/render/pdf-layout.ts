@@ -33,6 +33,11 @@ export type LayoutEntry =
       rowsBelow: string[];
     };
 
+/** What a renderer can be asked for besides the bytes: `layout` receives where things landed. */
+export interface RenderOptions {
+  layout?: LayoutEntry[];
+}
+
 const records = new WeakMap<Doc, LayoutEntry[]>();
 
 /** The figures and table headers laid out so far in this document. */
@@ -147,8 +152,9 @@ function columnWidths(doc: Doc, columns: Column[], rows: string[][], size: numbe
 }
 
 /** A ruled table; the header repeats after a page break and never ends a page without two rows under it. */
-export function table(doc: Doc, columns: Column[], rows: string[][], size = 7.8): void {
+export function table(doc: Doc, columns: Column[], given: string[][], size = 7.8): void {
   const pad = 3;
+  const rows = given.length ? given : [['none', ...columns.slice(1).map(() => '')]];
   const widths = columnWidths(doc, columns, rows, size, pad);
   const cols = columns.map((c, i) => ({ ...c, width: widths[i] }));
   const rowHeight = (cells: string[], bold: boolean) =>
