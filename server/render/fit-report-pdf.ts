@@ -178,9 +178,9 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
 
   heading(doc, 'Result');
   if (r.results.dischargeCoefficient)
-    fields(doc, quantityRows(r.results.dischargeCoefficient), 150);
+    fields(doc, quantityRows(r.results.dischargeCoefficient), 160);
   doc.moveDown(0.3);
-  fields(doc, quantityRows(r.results.effectiveArea), 150);
+  fields(doc, quantityRows(r.results.effectiveArea), 160);
   if (r.results.profileInterval95M2)
     fields(
       doc,
