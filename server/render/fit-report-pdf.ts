@@ -47,7 +47,10 @@ export function fitReportMark(r: FitReport): DocIdentity['mark'] {
   if (/superseded/.test(r.status))
     return { word: 'SUPERSEDED', meaning: 'a later fit of this test replaces this one' };
   if (r.status.startsWith('draft'))
-    return { word: 'DRAFT', meaning: 'not reviewed; not for use until a second person approves it' };
+    return {
+      word: 'DRAFT',
+      meaning: 'not reviewed; not for use until a second person approves it',
+    };
   if (r.status.startsWith('rejected'))
     return { word: 'REJECTED', meaning: 'the reviewer refused this fit; kept for the record only' };
   return undefined;

@@ -48,7 +48,10 @@ export function outletReportIdentity(r: OutletReport): DocIdentity {
   };
 }
 
-export async function renderOutletReportPdf(r: OutletReport, opts: RenderOptions = {}): Promise<Buffer> {
+export async function renderOutletReportPdf(
+  r: OutletReport,
+  opts: RenderOptions = {},
+): Promise<Buffer> {
   const id = outletReportIdentity(r);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Outlet history report', MARGIN, doc.y);

@@ -253,7 +253,12 @@ export function figure(
   doc.moveDown(0.4);
   const top = doc.y;
   doc.font('bold').fontSize(9.5).fillColor(INK).text(spec.title, MARGIN, top, { width });
-  const frame = { x: MARGIN + left, y: top + titleH + 6, width: width - left - 4, height: spec.height };
+  const frame = {
+    x: MARGIN + left,
+    y: top + titleH + 6,
+    width: width - left - 4,
+    height: spec.height,
+  };
   spec.draw(frame);
   const captionTop = frame.y + spec.height + below;
   doc

@@ -179,10 +179,9 @@ describe.skipIf(!poppler)('demo reports written for a reader', () => {
       const anyFit = Object.keys(fitOf).find((f) => f.startsWith(`${prefix}-`))!;
       const test = await store.tests.get((await store.fits.get(fitOf[anyFit])).testId);
       const layout: LayoutEntry[] = [];
-      const pdf = await renderOutletReportPdf(
-        await outletReport(store, test.outletId!, SOFTWARE),
-        { layout },
-      );
+      const pdf = await renderOutletReportPdf(await outletReport(store, test.outletId!, SOFTWARE), {
+        layout,
+      });
       const file = join(out, `outlet-${prefix}.pdf`);
       writeFileSync(file, pdf);
       const pages = expectReadable({ file, layout });
