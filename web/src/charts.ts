@@ -39,6 +39,12 @@ const MINUTE_STEPS = [
   604800,
 ];
 
+/** The hover legend's x entry on a minute axis: the time in minutes, as the axis reads. */
+const MINUTE_LEGEND: uPlot.Series = {
+  label: 'time (min)',
+  value: (_u, v) => (v === null ? '—' : `${(v / 60).toFixed(2)} min`),
+};
+
 /** Follow the container's width (the page may be resized). */
 function fit(u: uPlot, el: HTMLElement, height: number): void {
   const ro = new ResizeObserver(() => {
@@ -82,7 +88,7 @@ export function logChart(
       axis('level above the sensor zero (m)'),
     ],
     series: [
-      { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+      MINUTE_LEGEND,
       {
         label: 'level (m)',
         stroke: COLOURS.level,
@@ -211,7 +217,15 @@ export function fitChart(
         axis('level above the sensor zero (m)'),
       ],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        MINUTE_LEGEND,
+        // the curve first: uPlot draws in series order, so the readings land on top of it
+        {
+          label: 'fitted drain curve (m)',
+          stroke: COLOURS.fitted,
+          width: 2,
+          points: { show: false },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
+        },
         {
           label: 'readings (m)',
           stroke: COLOURS.level,
@@ -219,16 +233,9 @@ export function fitChart(
           points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level },
           value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
         },
-        {
-          label: 'fitted drain curve (m)',
-          stroke: COLOURS.fitted,
-          width: 2.5,
-          points: { show: false },
-          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
-        },
       ],
     },
-    [x, w.observedM, w.fittedM] as uPlot.AlignedData,
+    [x, w.fittedM, w.observedM] as uPlot.AlignedData,
     el,
   );
   fit(u, el, 320);
@@ -254,7 +261,7 @@ export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | nu
       ],
       bands: [{ series: [2, 3], fill: COLOURS.band }],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        MINUTE_LEGEND,
         {
           label: 'residual (mm)',
           stroke: COLOURS.residual,
