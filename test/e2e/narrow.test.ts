@@ -15,12 +15,14 @@ import {
   guardBrowser,
   haveBrowser,
   launch,
+  root,
   shots,
   startServer,
   unexpected,
   type RunningServer,
 } from './browser.js';
 
+const SYSTEMS = join(root, 'sample-data/systems');
 guardBrowser('narrow pages');
 
 /** Elements whose box reaches past the viewport's right edge (or the page is wider than it). */
@@ -40,7 +42,9 @@ async function overflow(page: Page): Promise<string[]> {
         const id = el.id ? `#${el.id}` : '';
         const cls =
           typeof el.className === 'string' && el.className ? `.${el.className.split(' ')[0]}` : '';
-        out.push(`${el.tagName.toLowerCase()}${id}${cls} ${Math.round(r.left)}–${Math.round(r.right)} px`);
+        out.push(
+          `${el.tagName.toLowerCase()}${id}${cls} ${Math.round(r.left)}–${Math.round(r.right)} px`,
+        );
       }
     }
     return out.slice(0, 20);
@@ -104,13 +108,29 @@ describe.skipIf(!haveBrowser)('pages at 800 px and 1280 px', () => {
     it(`nothing wider than the viewport at ${width} px: fleet, vessel, fit, connected vessels`, async () => {
       await page.setViewportSize({ width, height: 1000 });
       const pages: [string, string, () => Promise<unknown>][] = [
-        ['fleet', '#/', () => page.getByRole('heading', { level: 1, name: 'Fleet' }).waitFor()],
-        ['vessel', where.vessel, () => page.locator('h1', { hasText: 'FB-1' }).waitFor()],
+        ['fleet', '#/', () => page.locator('table.fleet tbody tr').nth(10).waitFor()],
+        ['vessel', where.vessel, () => page.locator('main table tbody tr').first().waitFor()],
         ['fit', where.fit, () => page.locator('#fit-chart .uplot').waitFor()],
         [
           'systems',
           '#/systems',
-          () => page.getByRole('heading', { level: 1, name: /connected/i }).waitFor(),
+          async () => {
+            // with a joint fit on the page: schematic, per-log charts, tables (sample-data/systems)
+            await page.getByRole('heading', { level: 1, name: 'Connected vessels' }).waitFor();
+            await page
+              .getByLabel('System file')
+              .setInputFiles(join(SYSTEMS, 'filter-chain.system.json'));
+            await page.locator('svg.system-schematic').waitFor();
+            await page
+              .getByLabel('Level log of Feed tank FT-1 (FT1)')
+              .setInputFiles(join(SYSTEMS, 'ft1-2026-04-07.csv'));
+            await page
+              .getByLabel('Level log of Break tank BT-2 (BT2)')
+              .setInputFiles(join(SYSTEMS, 'bt2-2026-04-07.csv'));
+            await page.getByRole('button', { name: 'Fit all outlets together' }).click();
+            await page.getByRole('heading', { name: 'Joint fit' }).waitFor({ timeout: 60_000 });
+            await page.locator('#system-fit-BT2 canvas').waitFor();
+          },
         ],
       ];
       for (const [name, hash, ready] of pages) {
@@ -118,8 +138,25 @@ describe.skipIf(!haveBrowser)('pages at 800 px and 1280 px', () => {
         await ready();
         await page.waitForTimeout(300); // charts follow their container's width
         await page.screenshot({ path: join(shots, `20-${name}-${width}.png`), fullPage: true });
+        // and in parts a person (or an image viewer) can read at full size
+        const tall = await page.evaluate(() => document.documentElement.scrollHeight);
+        for (let i = 0; i * 1000 < Math.min(tall, 5000); i++)
+          await page.screenshot({
+            path: join(shots, `20-${name}-${width}-part${i + 1}.png`),
+            fullPage: true,
+            clip: { x: 0, y: i * 1000, width, height: Math.min(1000, tall - i * 1000) },
+          });
         expect(await overflow(page), `${name} at ${width} px`).toEqual([]);
       }
+      // the check itself: a box made wider than the viewport is found
+      await page.evaluate(() => {
+        const probe = document.createElement('div');
+        probe.id = 'probe';
+        probe.style.width = `${window.innerWidth + 200}px`;
+        probe.textContent = 'probe';
+        document.querySelector('main')!.append(probe);
+      });
+      expect((await overflow(page)).some((o) => o.startsWith('div#probe'))).toBe(true);
       expect(unexpected(problems)).toEqual([]);
     }, 120_000);
 
@@ -136,10 +173,11 @@ describe.skipIf(!haveBrowser)('pages at 800 px and 1280 px', () => {
     const inflow = page.locator('.headline .card', { hasText: 'Inflow during the drain' });
     expect(await inflow.innerText()).toMatch(/\d\.\d+ ± \d\.\d+ L\/s/);
     // every date on the page sits on one line
-    const wrapped = await page.evaluate(() =>
-      Array.from(document.querySelectorAll('time')).filter(
-        (t) => t.getClientRects().length > 1 || t.getBoundingClientRect().height > 30,
-      ).length,
+    const wrapped = await page.evaluate(
+      () =>
+        Array.from(document.querySelectorAll('time')).filter(
+          (t) => t.getClientRects().length > 1 || t.getBoundingClientRect().height > 30,
+        ).length,
     );
     expect(wrapped).toBe(0);
   }, 60_000);

@@ -39,6 +39,13 @@ const MINUTE_STEPS = [
   604800,
 ];
 
+/** Tick labels with as many decimals as the step between ticks needs (no two alike). */
+const stepDecimals = (_u: uPlot, ticks: number[]) => {
+  const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : 1;
+  const d = Math.max(0, Math.min(8, -Math.floor(Math.log10(step) + 1e-9)));
+  return ticks.map((t) => t.toFixed(d));
+};
+
 /** The hover legend's x entry on a minute axis: the time in minutes, as the axis reads. */
 const MINUTE_LEGEND: uPlot.Series = {
   label: 'time (min)',
@@ -219,18 +226,24 @@ export function fitChart(
       series: [
         MINUTE_LEGEND,
         // the curve first: uPlot draws in series order, so the readings land on top of it
+        // a wide curve under small, half-clear dots: the curve shows through where they crowd
         {
           label: 'fitted drain curve (m)',
           stroke: COLOURS.fitted,
-          width: 2,
+          width: 5,
           points: { show: false },
           value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
         },
         {
           label: 'readings (m)',
-          stroke: COLOURS.level,
+          stroke: 'rgba(47, 95, 138, 0.55)',
           width: 0,
-          points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level },
+          points: {
+            show: true,
+            size: 2.5,
+            stroke: 'rgba(47, 95, 138, 0.55)',
+            fill: 'rgba(47, 95, 138, 0.55)',
+          },
           value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
         },
       ],
@@ -365,7 +378,7 @@ export function headBandChart(
       },
       axes: [
         axis('head over the outlet, middle of the band (m)'),
-        axis('discharge coefficient Cd (–)'),
+        axis('discharge coefficient Cd (–)', { values: stepDecimals }),
       ],
       series: [
         { label: 'head (m)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) },

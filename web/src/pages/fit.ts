@@ -33,6 +33,7 @@ import {
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
 import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/budget/drain-time.js';
+import { plainNames } from '../../../server/render/report-words.js';
 
 /** A parameter's value in the unit a person reads it in. */
 function scaled(unit: string): { factor: number; unit: string } {
@@ -84,8 +85,7 @@ function termCards(
   k: number | null,
 ): HTMLElement[] {
   const cards: HTMLElement[] = [];
-  const U = (u: number | null | undefined) =>
-    u === null || u === undefined ? null : (k ?? 2) * u;
+  const U = (u: number | null | undefined) => (u === null || u === undefined ? null : (k ?? 2) * u);
   for (const p of parameters) {
     if (!p.free || p.value === null) continue;
     if (p.name === 'inflowM3S')
@@ -94,7 +94,11 @@ function termCards(
           'div',
           { class: 'card' },
           h('h2', {}, 'Inflow during the drain'),
-          h('p', { class: 'value' }, plusMinus(p.value * 1000, mul(U(p.standardUncertainty), 1000), 'L/s')),
+          h(
+            'p',
+            { class: 'value' },
+            plusMinus(p.value * 1000, mul(U(p.standardUncertainty), 1000), 'L/s'),
+          ),
           h(
             'p',
             { class: 'hint' },
@@ -108,7 +112,11 @@ function termCards(
           'div',
           { class: 'card' },
           h('h2', {}, 'Sensor zero (fitted)'),
-          h('p', { class: 'value' }, plusMinus(p.value * 1000, mul(U(p.standardUncertainty), 1000), 'mm')),
+          h(
+            'p',
+            { class: 'value' },
+            plusMinus(p.value * 1000, mul(U(p.standardUncertainty), 1000), 'mm'),
+          ),
           h('p', { class: 'hint' }, 'above the vessel’s lowest point, found from the data'),
         ),
       );
@@ -232,7 +240,10 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         h(
           'p',
           { class: 'hint' },
-          `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`,
+          `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}`,
+          ...(r.window.startTime
+            ? [' · ', when(r.window.startTime), ' to ', when(r.window.endTime)]
+            : []),
         ),
       ),
       h(
@@ -365,7 +376,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
           h(
             'ul',
             {},
-            r.budget.notes.map((n) => h('li', {}, n)),
+            r.budget.notes.map((n) => h('li', {}, plainNames(n))),
           ),
         ),
       ),
@@ -699,7 +710,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         ['Fit', 'Made', 'Window', 'Cd', 'State'],
         siblings.items.map((s) => [
           s.id === id ? `${s.id} (this one)` : h('a', { href: `#/fits/${s.id}` }, String(s.id)),
-          dateTime(s.createdAt),
+          when(s.createdAt),
           `${num(s.result.window.startS, 5)} s to ${num(s.result.window.endS, 5)} s`,
           s.result.dischargeCoefficient ? s.result.dischargeCoefficient.value.toFixed(4) : '—',
           `${s.status}${s.supersededBy !== null ? ', replaced' : ''}`,

@@ -155,7 +155,10 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
             { class: 'num' },
             cd
               ? [
-                  plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN)),
+                  plusMinus(
+                    cd.value,
+                    cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN),
+                  ),
                   k ? h('span', { class: 'k' }, ` (k = ${k.toFixed(2)})`) : '',
                 ]
               : '—',
