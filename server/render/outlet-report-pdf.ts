@@ -14,7 +14,6 @@ import {
   type RenderOptions,
 } from './pdf-layout.js';
 import {
-  areaText,
   dateText,
   dayText as day,
   durationText,

@@ -27,7 +27,7 @@ export interface PdfPage {
   text: string;
 }
 
-const unescape = (s: string) =>
+const unescapeXml = (s: string) =>
   s
     .replace(/&lt;/g, '<')
     .replace(/&gt;/g, '>')
@@ -51,7 +51,7 @@ export function pdfPages(file: string): PdfPage[] {
     for (const m of p.matchAll(/<line ([^>]*)>([\s\S]*?)<\/line>/g)) {
       const la = attrs(m[1]);
       const words = [...m[2].matchAll(/<word [^>]*>([\s\S]*?)<\/word>/g)].map((w) =>
-        unescape(w[1]),
+        unescapeXml(w[1]),
       );
       lines.push({
         text: words.join(' '),

@@ -36,7 +36,7 @@ beforeAll(async () => {
   expect(loaded.skipped).toEqual([]);
   const engineer = store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer');
   for (let id = 1; ; id++) {
-    let fit;
+    let fit: Awaited<ReturnType<Store['fits']['get']>>;
     try {
       fit = await store.fits.get(id);
     } catch {
