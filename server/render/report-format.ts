@@ -91,6 +91,12 @@ export function durationText(days: number | null | undefined): string {
 /** Axis tick labels: as few digits as tell the ticks apart, never exponent notation for ordinary magnitudes. */
 export function tickText(ticks: number[]): (v: number) => string {
   const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : Math.abs(ticks[0] || 1);
-  const decimals = Math.max(0, Math.min(10, -Math.floor(Math.log10(step) + 1e-9)));
+  // the fewest decimals that write the step exactly (0.005 → 3, 2.5 → 1, 20 → 0)
+  let decimals = 0;
+  while (decimals < 10) {
+    const scaledStep = step * 10 ** decimals;
+    if (Math.abs(scaledStep - Math.round(scaledStep)) <= 1e-6 * scaledStep) break;
+    decimals++;
+  }
   return (v: number) => (Math.abs(v) < step / 1e6 ? 0 : v).toFixed(decimals);
 }

@@ -42,7 +42,10 @@ const MINUTE_STEPS = [
 /** Tick labels with as many decimals as the step between ticks needs (no two alike). */
 const stepDecimals = (_u: uPlot, ticks: number[]) => {
   const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : 1;
-  const d = Math.max(0, Math.min(8, -Math.floor(Math.log10(step) + 1e-9)));
+  // the fewest decimals that write the step exactly (0.0005 → 4, 2.5 → 1)
+  let d = 0;
+  while (d < 8 && Math.abs(step * 10 ** d - Math.round(step * 10 ** d)) > 1e-6 * step * 10 ** d)
+    d++;
   return ticks.map((t) => t.toFixed(d));
 };
 
