@@ -455,7 +455,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
         `${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)}`,
         String(b.samples),
         toU(b.dischargeCoefficient, b.standardUncertainty),
-        sig(b.standardUncertainty, 2),
+        uncertaintyIn(b.standardUncertainty, '1'),
       ]),
     );
   }

@@ -44,9 +44,19 @@ export const valueIn = (
   return toU(scaled(x, factor), scaled(u, factor));
 };
 
-/** An uncertainty (two significant digits) in the display unit of `siUnit`. */
-export const uncertaintyIn = (u: number | null | undefined, siUnit: string): string =>
-  sig(scaled(u, displayUnit(siUnit).factor), 2);
+/**
+ * An uncertainty, two significant digits kept (0.00010, not 1.0e-4 nor 0.0001), in the display unit
+ * of `siUnit`; exponent notation only for extreme magnitudes.
+ */
+export const uncertaintyIn = (u: number | null | undefined, siUnit: string): string => {
+  const v = scaled(u, displayUnit(siUnit).factor);
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  const a = Math.abs(v);
+  if (a === 0) return '0';
+  if (a >= 1e-6 && a < 10) return v.toPrecision(2);
+  if (a >= 10 && a < 1e5) return String(Number(v.toPrecision(2)));
+  return sig(v, 2);
+};
 
 /** A number (no unit), `digits` significant digits, in the display unit of `siUnit`. */
 export const numberIn = (x: number | null | undefined, siUnit: string, digits = 4): string =>
