@@ -193,7 +193,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
           `${valueIn(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty, 'm²')} … ${areaText(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty)}`,
         ],
       ],
-      150,
+      160,
     );
   const inflow = r.parameters.find((p) => p.unit === 'm³/s' && p.free);
   if (inflow)
@@ -205,9 +205,9 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
           `${flowText(inflow.value, inflow.standardUncertainty)} ± ${uncertaintyIn(inflow.expandedUncertainty, 'm³/s')} L/s (U, k = ${sig(inflow.coverageFactor, 3)}): a passing inlet or other constant inflow, fitted`,
         ],
       ],
-      150,
+      160,
     );
-  fields(doc, [['solver converged', r.results.converged ? 'yes' : 'NO']], 150);
+  fields(doc, [['solver converged', r.results.converged ? 'yes' : 'NO']], 160);
   if (r.review)
     fields(
       doc,
@@ -217,9 +217,9 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
           `${r.review.by ?? '—'} on ${dateText(r.review.at)}${r.review.selfReview ? ' (SELF-REVIEW: approved by the person who uploaded the test or asked for this fit; allowed for the site by an admin)' : ''}${r.review.comment ? ` — “${r.review.comment}”` : ''}`,
         ],
       ],
-      150,
+      160,
     );
-  else fields(doc, [['review', 'not reviewed (draft)']], 150);
+  else fields(doc, [['review', 'not reviewed (draft)']], 160);
 
   heading(doc, 'Vessel, outlet and test');
   fields(doc, [
