@@ -16,7 +16,8 @@ import { renderFitReportPdf } from '../../server/render/fit-report-pdf.js';
 import { renderOutletReportPdf } from '../../server/render/outlet-report-pdf.js';
 import type { LayoutEntry } from '../../server/render/pdf-layout.js';
 import { fitReport, outletReport } from '../../server/render/report-service.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { openTestStore } from '../support/store.js';
 import { actorOf } from '../../server/store/users.js';
 import { havePoppler, pdfText } from './pdf-tools.js';
 import { internalNames, layoutProblems, pdfPages, reportTextProblems } from './pdf-text.js';
@@ -31,10 +32,10 @@ const fitOf: Record<string, number> = {};
 let parameterNames: string[] = [];
 
 beforeAll(async () => {
-  store = openStore();
+  store = await openTestStore();
   const loaded = await loadDemo(store, analyze, join(root, 'sample-data/manifest.json'));
   expect(loaded.skipped).toEqual([]);
-  const engineer = store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer');
+  const engineer = await store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer');
   for (let id = 1; ; id++) {
     let fit: Awaited<ReturnType<Store['fits']['get']>>;
     try {
@@ -62,7 +63,9 @@ beforeAll(async () => {
   parameterNames = [...names];
   mkdirSync(out, { recursive: true });
 }, 120_000);
-afterAll(() => store?.close());
+afterAll(async () => {
+  await store?.close();
+});
 
 interface Rendered {
   file: string;
