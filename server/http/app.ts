@@ -36,6 +36,7 @@ import { peopleRoutes } from './routes/people.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
+import { fitPeopleRoutes } from './routes/fit-people.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
@@ -304,6 +305,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(testRoutes);
   await app.register(pendingRoutes);
   await app.register(fitRoutes);
+  await app.register(fitPeopleRoutes);
   await app.register(eventRoutes);
   await app.register(trendRoutes);
   await app.register(auditRoutes);
