@@ -41,6 +41,9 @@ export default defineConfig({
             'test/store/sql.test.ts',
             'test/store/migrate.test.ts',
             'test/store/migrate-records.test.ts',
+            // a server process on a data folder's SQLite file, read directly (the two-instance
+            // kill test on PostgreSQL is its own file)
+            'test/http/process.test.ts',
           ],
           globalSetup: ['./scripts/postgres-for-tests.mjs'],
           setupFiles: ['./test/support/postgres-setup.ts'],
