@@ -192,12 +192,16 @@ async function refuseForeignDatabase(url: string, shown: string): Promise<void> 
   const { PostgresSql } = await import('../store/postgres-sql.js');
   const sql = new PostgresSql({ connectionString: url, max: 1 });
   try {
-    const tables = (
-      await sql.all<{ name: string }>(
+    const listed = await sql
+      .all<{ name: string }>(
         `SELECT table_name AS name FROM information_schema.tables
          WHERE table_schema = current_schema() ORDER BY table_name`,
       )
-    ).map((r) => r.name);
+      .catch((e: Error) => {
+        // not there, not reachable, or not allowed: said in one line, exit 2
+        throw new InputError(`cannot use the database ${shown}: ${e.message}`);
+      });
+    const tables = listed.map((r) => r.name);
     if (tables.length && !tables.includes('schema_migrations'))
       throw new InputError(
         new TargetNotEmptyError(
