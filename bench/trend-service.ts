@@ -96,11 +96,11 @@ function seed() {
   return performance.now() - t0;
 }
 
-function time(label: string, runs: number, f: () => unknown): number {
+async function time(label: string, runs: number, f: () => unknown): Promise<number> {
   const ms: number[] = [];
   for (let r = 0; r < runs; r++) {
     const t0 = performance.now();
-    f();
+    await f();
     ms.push(performance.now() - t0);
   }
   ms.sort((a, b) => a - b);
@@ -117,25 +117,25 @@ try {
   );
   console.log(`seeded in ${(seed() / 1000).toFixed(1)} s`);
   const t0 = performance.now();
-  const cold = fleetStatus(store, {}, NOW);
+  const cold = await fleetStatus(store, {}, NOW);
   console.log(
     `fleet, cold (every outlet stale, all recomputed and cached): ${(performance.now() - t0).toFixed(0)} ms (${cold.recomputed} recomputed)`,
   );
-  fleetStatus(store, {}, NOW); // warm up
-  const fleetMs = time('fleet status, warm (cache read, days brought to now, ordered)', 9, () =>
+  await fleetStatus(store, {}, NOW); // warm up
+  const fleetMs = await time('fleet status, warm (cache read, days brought to now, ordered)', 9, () =>
     fleetStatus(store, {}, NOW),
   );
-  time('fleet status, one site and one status word', 9, () =>
+  await time('fleet status, one site and one status word', 9, () =>
     fleetStatus(store, { site: 'site-3', status: ['drifting'] }, NOW),
   );
   let next = NOW;
-  time('fleet status a day later each run (time-overtaken outlets recomputed)', 5, () =>
+  await time('fleet status a day later each run (time-overtaken outlets recomputed)', 5, () =>
     fleetStatus(store, {}, (next += DAY_MS)),
   );
   const ids = store.trends.outletIds();
   const one = ids[ids.length - 1];
-  outletTrendView(store, one, NOW);
-  const oneMs = time('one outlet trend (SQL read, all epochs, bands, answer shape)', 51, () =>
+  await outletTrendView(store, one, NOW);
+  const oneMs = await time('one outlet trend (SQL read, all epochs, bands, answer shape)', 51, () =>
     outletTrendView(store, one, NOW),
   );
   console.log('statuses:', cold.counts);

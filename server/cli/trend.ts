@@ -135,7 +135,7 @@ export async function run(argv: string[]): Promise<number> {
     (argv.length ? process.stdout : process.stderr).write(USAGE);
     return argv.length ? 0 : 2;
   }
-  return guarded(() => {
+  return guarded(async () => {
     const json = argv.includes('--json');
     const csv = argv.includes('--csv');
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
@@ -151,7 +151,7 @@ export async function run(argv: string[]): Promise<number> {
         for (const w of words ?? [])
           if (!(STATUS_WORDS as readonly string[]).includes(w))
             throw new InputError(`unknown status "${w}"`, { field: 'status' });
-        const f = fleetStatus(store, { site: option(argv, 'site'), status: words as never }, nowMs);
+        const f = await fleetStatus(store, { site: option(argv, 'site'), status: words as never }, nowMs);
         process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f));
         return 0;
       }
@@ -165,7 +165,7 @@ export async function run(argv: string[]): Promise<number> {
         });
       let view: TrendView;
       try {
-        view = outletTrendView(store, id, nowMs);
+        view = await outletTrendView(store, id, nowMs);
       } catch (e) {
         if (e instanceof NotFoundError) throw new InputError(e.message, { field: 'outletId' });
         throw e;

@@ -42,6 +42,7 @@ import { systemRoutes } from './routes/systems.js';
 import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
+import { scheduleRoutes } from './routes/schedule.js';
 import { vesselRoutes } from './routes/vessels.js';
 import { reportRoutes } from './routes/reports.js';
 import { workbenchRoutes } from './routes/workbench.js';
@@ -314,6 +315,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     refitMs: opts.liveRefitMs,
   });
   await app.register(peopleRoutes);
+  await app.register(scheduleRoutes);
   app.get(
     '/api/openapi.json',
     {

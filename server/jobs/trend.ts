@@ -53,6 +53,7 @@ export type {
   TrendView,
 };
 import { csvText } from '../core/report/csv.js';
+import { newTestView, overdueSentence, scheduleOf, schedulesById } from './due.js';
 
 export const STATUS_WORDS: readonly StatusWord[] = [
   'past threshold',
@@ -171,8 +172,12 @@ const stepView = (s: StepCheck | null): StepView | null =>
 const bandView = (b: BandPoint[]) =>
   b.filter((p) => Number.isFinite(p.value) && Number.isFinite(p.lower) && Number.isFinite(p.upper));
 
-/** One outlet's whole trend as the API serves it. */
-export function outletTrendView(store: Store, outletId: number, nowMs: number): TrendView {
+/** One outlet's whole trend as the API serves it, with when it is next due for a test. */
+export async function outletTrendView(
+  store: Store,
+  outletId: number,
+  nowMs: number,
+): Promise<TrendView> {
   const { ref, outlet } = outletRef(store, outletId);
   const threshold = thresholdOf(outlet);
   const { fits, skipped } = store.trends.approvedFits(outletId);
@@ -180,10 +185,13 @@ export function outletTrendView(store: Store, outletId: number, nowMs: number): 
   const settings = { actionThresholdPct: threshold.pct };
   const trend = outletTrend(fits, events, settings, nowMs);
   const rows = new Map<string, TrendFitRow>(fits.map((f) => [f.fitId, f]));
+  const [scheduleRow] = await store.schedule.outlets(outletId);
+  const schedule = scheduleOf(scheduleRow, nowMs);
   // The core checks steps in the current epoch only; earlier epochs get the same check here,
   // so a blockage that a cleaning later removed still shows on the chart.
   const epochs = splitEpochs(fits, events);
   const last = trend.epochs.length - 1;
+  const overdue = overdueSentence(schedule, trend.epochs[last]?.newTestNow ?? null);
   const out: EpochView[] = trend.epochs.map((ep, i) => {
     let step = ep.step;
     if (i !== last && epochs[i].fits.length > 0)
@@ -225,8 +233,20 @@ export function outletTrendView(store: Store, outletId: number, nowMs: number): 
       cdBand: bandView(ep.cdBand),
       thresholdM2: fin(ep.thresholdM2),
       thresholdCd: baseline ? baseline.dischargeCoefficient * (1 + threshold.pct / 100) : null,
-      forecast: forecastView(ep.forecast),
+      forecast: forecastWithAge(forecastView(ep.forecast), i === last ? overdue : null),
       step: stepView(step),
+      segments: ep.segments.map((g) => ({
+        fitIds: g.fitIds.map(Number),
+        firstMs: g.firstMs,
+        lastMs: g.lastMs,
+        startedBy: g.startedBy,
+        area: lineView(g.area),
+        cd: lineView(g.cd),
+        areaBand: bandView(g.areaBand),
+        cdBand: bandView(g.cdBand),
+      })),
+      newTestNow: newTestView(ep.newTestNow),
+      areaNewTestBand: bandView(ep.areaNewTestBand),
     };
   });
   return {
@@ -236,8 +256,15 @@ export function outletTrendView(store: Store, outletId: number, nowMs: number): 
     threshold,
     status: statusView(trend.status),
     epochs: out,
+    schedule,
     skipped,
   };
+}
+
+/** An overdue outlet's forecast says so, with how old its latest test is and what a test now would read. */
+function forecastWithAge(f: ForecastView | null, sentence: string | null): ForecastView | null {
+  if (!f || !sentence) return f;
+  return { ...f, reason: `${f.reason}; ${sentence}` };
 }
 
 // ---- status, cached per outlet ----
@@ -284,7 +311,7 @@ export function refreshStatus(store: Store, outletId: number, nowMs: number): Co
 }
 
 /** A cached status brought forward to nowMs: only the days to the threshold move. */
-function aged(row: CachedStatus, nowMs: number): FleetItem {
+function aged(row: CachedStatus, nowMs: number): Omit<FleetItem, 'schedule'> {
   const b = row.body as unknown as StatusView & { forecastStatus: ForecastStatus | null };
   const fixedZero = b.status === 'past threshold' && b.forecastStatus !== 'crossed';
   const days =
@@ -323,10 +350,13 @@ export interface FleetQuery {
   includeRetired?: boolean;
 }
 
-/** Every outlet's status, in the order to act on them (soonest threshold first). */
-export function fleetStatus(store: Store, q: FleetQuery, nowMs: number): FleetView {
+/** Every outlet's status, in the order to act on them (soonest threshold first), each with when it is next due. */
+export async function fleetStatus(store: Store, q: FleetQuery, nowMs: number): Promise<FleetView> {
   const recomputed = refreshStale(store, nowMs);
-  let items = store.trends.cachedStatuses().map((r) => aged(r, nowMs));
+  const due = await schedulesById(store, nowMs);
+  let items = store.trends
+    .cachedStatuses()
+    .map((r) => ({ ...aged(r, nowMs), schedule: due.get(r.outletId) ?? null }));
   if (!q.includeRetired) items = items.filter((i) => !i.retired);
   if (q.site !== undefined) items = items.filter((i) => i.site === q.site);
   if (q.sites) items = items.filter((i) => q.sites!.includes(i.site));

@@ -24,7 +24,7 @@ beforeAll(async () => {
     { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' },
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T08:15:00Z' },
   ]);
-  fleetStatus(fx.store, {}, Date.parse('2026-04-02T00:00:00Z')); // fills the status cache
+  await fleetStatus(fx.store, {}, Date.parse('2026-04-02T00:00:00Z')); // fills the status cache
   fx.store.close();
   ({ dataDir, fitId, outletId } = fx);
   const db = new Database(join(dataDir, 'efflux.sqlite'));

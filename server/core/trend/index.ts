@@ -1,7 +1,7 @@
 export * from './types.js';
 export { splitEpochs } from './epochs.js';
 export { chiSquareCdf, chiSquareSf } from './chisquare.js';
-export { weightedLine, lineAt, lineUAt, type WeightedLine, type LineUncertainty } from './line.js';
+export { weightedLine, lineAt, lineUAt, newTestUAt, type WeightedLine, type LineUncertainty } from './line.js';
 export {
   epochLine,
   yearsSince,
@@ -40,7 +40,19 @@ export {
   type EpochTrend,
   type SeriesPoint,
   type BandPoint,
+  type TrendSegment,
 } from './outlet.js';
+export {
+  testSchedule,
+  predictNewTest,
+  checkIntervalDays,
+  ageInWords,
+  DEFAULT_TEST_INTERVAL_DAYS,
+  MAX_TEST_INTERVAL_DAYS,
+  type TestSchedule,
+  type NewTestPrediction,
+  type IntervalSource,
+} from './due.js';
 export {
   simulateFoulingHistory,
   seededUniform,

@@ -39,7 +39,7 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: trendView, 422: problem, ...protectedErrors },
       },
     },
-    async (request) => outletTrendView(app.store, request.params.id, nowOf(request.query.asOf)),
+    async (request) => await outletTrendView(app.store, request.params.id, nowOf(request.query.asOf)),
   );
 
   app.get(
@@ -62,7 +62,7 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const view = outletTrendView(app.store, request.params.id, nowOf(request.query.asOf));
+      const view = await outletTrendView(app.store, request.params.id, nowOf(request.query.asOf));
       const name = `${view.outlet.vesselName}-${view.outlet.key}-history.csv`.replace(
         /[^\w.-]+/g,
         '_',
@@ -170,7 +170,7 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
           });
       }
       if (q.site !== undefined) assertSite(request, q.site);
-      const view = fleetStatus(
+      const view = await fleetStatus(
         app.store,
         {
           site: q.site,
