@@ -60,8 +60,16 @@ const COMMANDS: Record<string, Command> = {
     load: () => loadModule('people'),
   },
   site: {
-    summary: 'site settings: site self-review SITE on|off',
-    load: async () => ({ run: (await import('./people.js')).runSite }),
+    summary: 'site settings: site self-review SITE on|off | site clock SITE [--time-zone Z] [--interval D]',
+    load: async () => ({ run: (await import('./due.js')).runSite }),
+  },
+  due: {
+    summary: 'outlets overdue or soon due for a drain test, soonest first: due [--site S]',
+    load: async () => ({ run: (await import('./due.js')).runDue }),
+  },
+  outlet: {
+    summary: "an outlet's settings: outlet interval OUTLET_ID DAYS|site",
+    load: async () => ({ run: (await import('./due.js')).runOutlet }),
   },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
   report: {
