@@ -148,6 +148,9 @@ async function withSiteZone(
 ): Promise<AnalysisSettings> {
   if (settings.tz !== undefined) return settings;
   const site = await store.schedule.siteOfVessel(vesselId);
+  // a site at UTC reads as before (no zone): the reader then still refuses a clock change
+  // in a local-time log with a message asking for the zone
+  if (site.timeZone === 'UTC') return settings;
   return { ...settings, tz: site.timeZone, tzSource: 'site' };
 }
 
