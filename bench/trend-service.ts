@@ -122,8 +122,10 @@ try {
     `fleet, cold (every outlet stale, all recomputed and cached): ${(performance.now() - t0).toFixed(0)} ms (${cold.recomputed} recomputed)`,
   );
   await fleetStatus(store, {}, NOW); // warm up
-  const fleetMs = await time('fleet status, warm (cache read, days brought to now, ordered)', 9, () =>
-    fleetStatus(store, {}, NOW),
+  const fleetMs = await time(
+    'fleet status, warm (cache read, days brought to now, ordered)',
+    9,
+    () => fleetStatus(store, {}, NOW),
   );
   await time('fleet status, one site and one status word', 9, () =>
     fleetStatus(store, { site: 'site-3', status: ['drifting'] }, NOW),

@@ -112,7 +112,9 @@ export async function runDue(argv: string[]): Promise<number> {
         },
         nowMs,
       );
-      process.stdout.write(argv.includes('--json') ? JSON.stringify(d, null, 2) + '\n' : dueText(d));
+      process.stdout.write(
+        argv.includes('--json') ? JSON.stringify(d, null, 2) + '\n' : dueText(d),
+      );
       return 0;
     } finally {
       store.close();

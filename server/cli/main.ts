@@ -60,7 +60,8 @@ const COMMANDS: Record<string, Command> = {
     load: () => loadModule('people'),
   },
   site: {
-    summary: 'site settings: site self-review SITE on|off | site clock SITE [--time-zone Z] [--interval D]',
+    summary:
+      'site settings: site self-review SITE on|off | site clock SITE [--time-zone Z] [--interval D]',
     load: async () => ({ run: (await import('./due.js')).runSite }),
   },
   due: {

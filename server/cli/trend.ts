@@ -151,7 +151,11 @@ export async function run(argv: string[]): Promise<number> {
         for (const w of words ?? [])
           if (!(STATUS_WORDS as readonly string[]).includes(w))
             throw new InputError(`unknown status "${w}"`, { field: 'status' });
-        const f = await fleetStatus(store, { site: option(argv, 'site'), status: words as never }, nowMs);
+        const f = await fleetStatus(
+          store,
+          { site: option(argv, 'site'), status: words as never },
+          nowMs,
+        );
         process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f));
         return 0;
       }

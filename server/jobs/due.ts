@@ -113,8 +113,7 @@ export async function dueList(store: Store, q: DueQuery, nowMs: number): Promise
     }))
     .filter((i) => i.neverTested || i.daysUntilDue! <= within)
     .sort(
-      (a, b) =>
-        (a.nextDueMs ?? -Infinity) - (b.nextDueMs ?? -Infinity) || a.outletId - b.outletId,
+      (a, b) => (a.nextDueMs ?? -Infinity) - (b.nextDueMs ?? -Infinity) || a.outletId - b.outletId,
     );
   return {
     asOf: new Date(nowMs).toISOString(),
@@ -126,7 +125,10 @@ export async function dueList(store: Store, q: DueQuery, nowMs: number): Promise
 }
 
 /** Every outlet's schedule by id (for the fleet). */
-export async function schedulesById(store: Store, nowMs: number): Promise<Map<number, ScheduleView>> {
+export async function schedulesById(
+  store: Store,
+  nowMs: number,
+): Promise<Map<number, ScheduleView>> {
   const m = new Map<number, ScheduleView>();
   for (const r of await store.schedule.outlets()) m.set(r.outletId, scheduleOf(r, nowMs));
   return m;

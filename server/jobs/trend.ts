@@ -23,7 +23,7 @@ import {
   type TrendLine,
 } from '../core/trend/index.js';
 import type { Store } from '../store/index.js';
-import type { CachedStatus, SkippedFit, TrendFitRow } from '../store/trends.js';
+import type { CachedStatus, TrendFitRow } from '../store/trends.js';
 import type { Outlet } from '../store/vessels.js';
 import type {
   EpochView,

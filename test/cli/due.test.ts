@@ -46,21 +46,35 @@ describe('efflux site clock / outlet interval / due', () => {
 
   it('lists the overdue outlet with the age of its last test; an outlet interval overrides the site', () => {
     // site interval 120 days (set above): 2026-03-10 + 120 d = 2026-07-08; on 2026-12-05 overdue
-    const late = effluxWithData(dataDir, ['due', '--site', site.slice(0, 6).toUpperCase(), '--as-of', '2026-12-05']);
+    const late = effluxWithData(dataDir, [
+      'due',
+      '--site',
+      site.slice(0, 6).toUpperCase(),
+      '--as-of',
+      '2026-12-05',
+    ]);
     expect(late.code, late.stderr).toBe(0);
-    const row = late.stdout.split('\n').find((l) => l.includes(` ${outletId} `) || l.trimStart().startsWith(String(outletId)));
+    const row = late.stdout
+      .split('\n')
+      .find((l) => l.includes(` ${outletId} `) || l.trimStart().startsWith(String(outletId)));
     expect(row, late.stdout).toBeDefined();
     // 2026-03-10T08:15Z to 2026-12-05T00:00Z is 269.66 days
     expect(row).toMatch(/2026-03-10\s+270\s+2026-07-08\s+120 d\s+OVERDUE by 150 days/);
-    const json = JSON.parse(effluxWithData(dataDir, ['due', '--as-of', '2026-12-05', '--json']).stdout);
+    const json = JSON.parse(
+      effluxWithData(dataDir, ['due', '--as-of', '2026-12-05', '--json']).stdout,
+    );
     const item = json.items.find((i: { outletId: number }) => i.outletId === outletId);
     expect(item.latestTestAgeDays).toBeCloseTo(269.65625, 6);
 
     const own = effluxWithData(dataDir, ['outlet', 'interval', String(outletId), '365']);
     expect(own.code, own.stderr).toBe(0);
     const notYet = effluxWithData(dataDir, ['due', '--as-of', '2026-12-05', '--json']);
-    expect(JSON.parse(notYet.stdout).items.some((i: { outletId: number }) => i.outletId === outletId)).toBe(false);
-    const soon = JSON.parse(effluxWithData(dataDir, ['due', '--as-of', '2026-12-05', '--within', '120', '--json']).stdout);
+    expect(
+      JSON.parse(notYet.stdout).items.some((i: { outletId: number }) => i.outletId === outletId),
+    ).toBe(false);
+    const soon = JSON.parse(
+      effluxWithData(dataDir, ['due', '--as-of', '2026-12-05', '--within', '120', '--json']).stdout,
+    );
     const s = soon.items.find((i: { outletId: number }) => i.outletId === outletId);
     expect(s.intervalSource).toBe('outlet');
     expect(s.nextDueAt.slice(0, 10)).toBe('2027-03-10');

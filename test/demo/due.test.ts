@@ -33,11 +33,19 @@ async function get<T>(url: string): Promise<T> {
 
 beforeAll(async () => {
   store = openStore({ now: () => new Date(NOW).toISOString() });
-  await loadDemo(store, async (req) => analyzeDrainTest(req), join(root, 'sample-data/manifest.json'));
+  await loadDemo(
+    store,
+    async (req) => analyzeDrainTest(req),
+    join(root, 'sample-data/manifest.json'),
+  );
   auth = {
     authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'reader', 'engineer').token}`,
   };
-  app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req), clockMs: () => NOW });
+  app = await buildApp({
+    store,
+    analyze: async (req) => analyzeDrainTest(req),
+    clockMs: () => NOW,
+  });
   for (const h of HISTORIES) {
     const id = store.vessels.findId('Kestrel Fen works (fictional)', h.vessel.name)!;
     outletOf[h.logPrefix] = store.vessels.get(id).outlets[0].id;
@@ -61,7 +69,9 @@ describe('tests that fall due, demo data, clock at 2026-12-05', () => {
       const age = (NOW - Date.parse(item!.latestTestAt!)) / DAY;
       expect(item!.latestTestAgeDays).toBeCloseTo(age, 6);
       expect(age).toBeGreaterThan(180);
-      expect(item!.reason).toMatch(/^overdue since \d{4}-\d\d-\d\d .*the latest test \(\d{4}-\d\d-\d\d\) is \d+ days \(\d+\.\d months\) old/);
+      expect(item!.reason).toMatch(
+        /^overdue since \d{4}-\d\d-\d\d .*the latest test \(\d{4}-\d\d-\d\d\) is \d+ days \(\d+\.\d months\) old/,
+      );
     }
     // soonest first: next-due dates never go backwards down the list
     const dues = due.items.map((i) => i.nextDueMs ?? -Infinity);
@@ -79,12 +89,16 @@ describe('tests that fall due, demo data, clock at 2026-12-05', () => {
     const now = await get<TrendView>(`/api/outlets/${id}/trend`);
     const lastAt = now.schedule.latestTestAt!;
     const dayAfter = new Date(Date.parse(lastAt) + DAY).toISOString();
-    const then = await get<TrendView>(`/api/outlets/${id}/trend?asOf=${encodeURIComponent(dayAfter)}`);
+    const then = await get<TrendView>(
+      `/api/outlets/${id}/trend?asOf=${encodeURIComponent(dayAfter)}`,
+    );
     const cur = now.epochs.find((e) => e.current)!;
     const curThen = then.epochs.find((e) => e.current)!;
     expect(now.schedule.overdue).toBe(true);
     expect(then.schedule.overdue).toBe(false);
-    expect(cur.forecast!.reason).toMatch(/the latest test is \d+ days \(\d+\.\d months\) old \(overdue since/);
+    expect(cur.forecast!.reason).toMatch(
+      /the latest test is \d+ days \(\d+\.\d months\) old \(overdue since/,
+    );
     expect(cur.forecast!.reason).toMatch(/a test today is expected to read [\d.]+ ± [\d.]+ mm²/);
     expect(curThen.forecast!.reason).not.toMatch(/overdue/);
     const wNow = cur.newTestNow!.halfWidth95,

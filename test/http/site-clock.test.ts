@@ -55,7 +55,9 @@ async function upload(bytes: Buffer, fields: Record<string, string> = {}) {
 
 beforeAll(async () => {
   t = await testApp({ analyze: async (req) => analyzeDrainTest(req) });
-  const spec = JSON.parse(readFileSync(join(root, 'sample-data/backwash-tank-fb1.vessel.json'), 'utf8'));
+  const spec = JSON.parse(
+    readFileSync(join(root, 'sample-data/backwash-tank-fb1.vessel.json'), 'utf8'),
+  );
   const v = await t.app.inject({
     method: 'POST',
     url: '/api/vessels',
@@ -123,7 +125,9 @@ describe("a site's clock", () => {
     const body = res.body;
     expect(body).toContain('2026-03-29 01:00:00');
     expect(body).toContain('does not exist in Europe/Lisbon');
-    expect(res.json().line ?? body).toSatisfy((x: unknown) => x === 1208 || String(x).includes('1208'));
+    expect(res.json().line ?? body).toSatisfy(
+      (x: unknown) => x === 1208 || String(x).includes('1208'),
+    );
   });
 
   it('fall back: the repeated hour is resolved by row order, with a warning, and the instants stay 1 s apart', async () => {
@@ -135,10 +139,16 @@ describe("a site's clock", () => {
     expect(res.statusCode, res.body).toBe(201);
     const fit = res.json().fit;
     expect(fit.result.read.t0).toBe(new Date(start).toISOString());
-    expect(JSON.stringify(fit.result.warnings)).toMatch(/repeated when clocks went back in Europe\/Lisbon: resolved by row order/);
+    expect(JSON.stringify(fit.result.warnings)).toMatch(
+      /repeated when clocks went back in Europe\/Lisbon: resolved by row order/,
+    );
     // the same drain read from UTC times gives the same Cd·a: the instants are the same
-    const utc = await upload(rewritten(start + 3_600_000 * 24 * 7, (ms) => new Date(ms).toISOString()));
+    const utc = await upload(
+      rewritten(start + 3_600_000 * 24 * 7, (ms) => new Date(ms).toISOString()),
+    );
     expect(utc.statusCode, utc.body).toBe(201);
-    expect(fit.result.effectiveAreaM2.value / utc.json().fit.result.effectiveAreaM2.value - 1).toBeCloseTo(0, 9);
+    expect(
+      fit.result.effectiveAreaM2.value / utc.json().fit.result.effectiveAreaM2.value - 1,
+    ).toBeCloseTo(0, 9);
   });
 });

@@ -72,7 +72,11 @@ export function drawToday(u: uPlot, nowS: number): void {
   ctx.font = `${11 * dpr}px system-ui, sans-serif`;
   const label = `today ${new Date(nowS * 1000).toISOString().slice(0, 10)}`;
   const tw = ctx.measureText(label).width;
-  ctx.fillText(label, x + 4 * dpr + tw > left + width ? x - 4 * dpr - tw : x + 4 * dpr, top + 28 * dpr);
+  ctx.fillText(
+    label,
+    x + 4 * dpr + tw > left + width ? x - 4 * dpr - tw : x + 4 * dpr,
+    top + 28 * dpr,
+  );
   ctx.restore();
 }
 

@@ -95,7 +95,11 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
   const ys = [
     ...lo,
     ...hi,
-    ...t.epochs.flatMap((e) => P.segmentBands(e).flat().flatMap((b) => [b.lo, b.hi])),
+    ...t.epochs.flatMap((e) =>
+      P.segmentBands(e)
+        .flat()
+        .flatMap((b) => [b.lo, b.hi]),
+    ),
     ...t.epochs.flatMap((e) =>
       P.newTestBand(e)
         .filter((b) => b.x <= t.nowMs / 1000 + 86400)

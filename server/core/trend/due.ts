@@ -31,7 +31,12 @@ export interface TestSchedule {
 }
 
 export function checkIntervalDays(days: unknown, field = 'testIntervalDays'): number {
-  if (typeof days !== 'number' || !Number.isInteger(days) || days < 1 || days > MAX_TEST_INTERVAL_DAYS)
+  if (
+    typeof days !== 'number' ||
+    !Number.isInteger(days) ||
+    days < 1 ||
+    days > MAX_TEST_INTERVAL_DAYS
+  )
     throw new InputError(
       `test interval must be a whole number of days from 1 to ${MAX_TEST_INTERVAL_DAYS}, got ${String(days)}`,
       { field },

@@ -1,7 +1,14 @@
 export * from './types.js';
 export { splitEpochs } from './epochs.js';
 export { chiSquareCdf, chiSquareSf } from './chisquare.js';
-export { weightedLine, lineAt, lineUAt, newTestUAt, type WeightedLine, type LineUncertainty } from './line.js';
+export {
+  weightedLine,
+  lineAt,
+  lineUAt,
+  newTestUAt,
+  type WeightedLine,
+  type LineUncertainty,
+} from './line.js';
 export {
   epochLine,
   yearsSince,

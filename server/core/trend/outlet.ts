@@ -107,7 +107,8 @@ function newTestBand(line: TrendLine | null, fromMs: number, toMs: number): Band
 function segmentsOf(ep: Epoch, step: StepCheck | null, endMs: number): TrendSegment[] {
   const fits = ep.fits;
   if (!fits.length) return [];
-  const cut = step?.flagged && step.fitId !== null ? fits.findIndex((f) => f.fitId === step.fitId) : -1;
+  const cut =
+    step?.flagged && step.fitId !== null ? fits.findIndex((f) => f.fitId === step.fitId) : -1;
   const parts = cut > 0 ? [fits.slice(0, cut), fits.slice(cut)] : [fits];
   return parts.map((part, k) => {
     const sub: Epoch = { ...ep, fits: part, baseline: part[0] };
@@ -178,7 +179,11 @@ export function outletTrend(
       end = Math.min(Math.max(lastT, want), lastT + reach);
     }
     // every epoch is checked for a step (earlier ones too: a blockage a cleaning later removed)
-    const stepHere = isCurrent ? current.step : ep.fits.length ? detectStep(ep.fits, epochLine(ep, 'effectiveArea')?.fit ?? null) : null;
+    const stepHere = isCurrent
+      ? current.step
+      : ep.fits.length
+        ? detectStep(ep.fits, epochLine(ep, 'effectiveArea')?.fit ?? null)
+        : null;
     const segments = segmentsOf(ep, stepHere, end);
     const lastSeg = segments[segments.length - 1];
     // after a step the latest stretch predicts the next test; with too few tests there, nothing does

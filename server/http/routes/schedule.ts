@@ -67,7 +67,10 @@ export const scheduleRoutes: FastifyPluginAsyncZod = async (app) => {
           "Set a site's time zone (IANA name, checked) and/or default test interval in days (audited)",
         params: siteParams,
         body: z
-          .object({ timeZone: z.string().min(1).max(64).optional(), testIntervalDays: intervalDays.optional() })
+          .object({
+            timeZone: z.string().min(1).max(64).optional(),
+            testIntervalDays: intervalDays.optional(),
+          })
           .strict(),
         response: { 200: siteClock, 422: problem, ...protectedErrors },
       },
@@ -123,7 +126,10 @@ export const scheduleRoutes: FastifyPluginAsyncZod = async (app) => {
         querystring: z.object({
           site: z.string().min(1).max(200).optional(),
           within: z.coerce.number().int().min(0).max(MAX_TEST_INTERVAL_DAYS).optional(),
-          asOf: z.iso.date().or(z.iso.datetime({ offset: true })).optional(),
+          asOf: z.iso
+            .date()
+            .or(z.iso.datetime({ offset: true }))
+            .optional(),
         }),
         response: {
           200: z

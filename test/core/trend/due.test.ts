@@ -89,7 +89,7 @@ describe('test schedule', () => {
 
 describe('trend segments and the forecast of a new test', () => {
   const t0 = Date.UTC(2024, 0, 10);
-  const fit = (i: number, v: number): ApprovedFit => ({
+  const approved = (i: number, v: number): ApprovedFit => ({
     fitId: String(i + 1),
     testedAtMs: t0 + i * 30 * DAY_MS,
     effectiveAreaM2: v,
@@ -100,7 +100,7 @@ describe('trend segments and the forecast of a new test', () => {
   it('breaks the line at a flagged step: each side its own line, none through the step', () => {
     const nrm = seededNormal(5);
     const fits = Array.from({ length: 14 }, (_, i) =>
-      fit(i, 7.5e-4 * (i >= 9 ? 0.93 : 1) + 1e-6 * nrm()),
+      approved(i, 7.5e-4 * (i >= 9 ? 0.93 : 1) + 1e-6 * nrm()),
     );
     const tr = outletTrend(fits, [], { actionThresholdPct: -10 }, t0 + 500 * DAY_MS);
     const ep = tr.epochs[0];
@@ -119,7 +119,9 @@ describe('trend segments and the forecast of a new test', () => {
   });
   it('one segment when no step is flagged; the new-test interval widens with time since the last test', () => {
     const nrm = seededNormal(9);
-    const fits = Array.from({ length: 12 }, (_, i) => fit(i, 7.5e-4 - 1e-7 * i + 1e-6 * nrm()));
+    const fits = Array.from({ length: 12 }, (_, i) =>
+      approved(i, 7.5e-4 - 1e-7 * i + 1e-6 * nrm()),
+    );
     const last = fits[fits.length - 1].testedAtMs;
     const soon = outletTrend(fits, [], { actionThresholdPct: -10 }, last + DAY_MS);
     const late = outletTrend(fits, [], { actionThresholdPct: -10 }, last + 270 * DAY_MS);

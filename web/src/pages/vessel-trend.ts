@@ -47,7 +47,10 @@ function scheduleWords(t: FullTrend): HTMLElement | null {
   }
   return h(
     'p',
-    { class: `trend-schedule${s.overdue ? ' schedule-overdue' : ''}`, 'data-overdue': String(s.overdue) },
+    {
+      class: `trend-schedule${s.overdue ? ' schedule-overdue' : ''}`,
+      'data-overdue': String(s.overdue),
+    },
     parts.join(' '),
   );
 }
@@ -137,7 +140,12 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
         h('span', { class: 'key key-forecast' }),
         'forecast crossing date and its 95 % interval',
       ),
-      h('li', {}, h('span', { class: 'key key-step' }), 'sudden step flagged (the line is cut there)'),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-step' }),
+        'sudden step flagged (the line is cut there)',
+      ),
       h(
         'li',
         {},
