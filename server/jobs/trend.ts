@@ -12,7 +12,7 @@ import {
   detectStep,
   epochLine,
   fleetOrder,
-  outletTrend,
+  outletTrendDetailed,
   splitEpochs,
   type BandPoint,
   type ForecastStatus,
@@ -183,7 +183,7 @@ export async function outletTrendView(
   const { fits, skipped } = store.trends.approvedFits(outletId);
   const events = store.trends.events(outletId);
   const settings = { actionThresholdPct: threshold.pct };
-  const trend = outletTrend(fits, events, settings, nowMs);
+  const { trend, details } = outletTrendDetailed(fits, events, settings, nowMs);
   const rows = new Map<string, TrendFitRow>(fits.map((f) => [f.fitId, f]));
   const [scheduleRow] = await store.schedule.outlets(outletId);
   const schedule = scheduleOf(scheduleRow, nowMs);
@@ -191,7 +191,7 @@ export async function outletTrendView(
   // so a blockage that a cleaning later removed still shows on the chart.
   const epochs = splitEpochs(fits, events);
   const last = trend.epochs.length - 1;
-  const overdue = overdueSentence(schedule, trend.epochs[last]?.newTestNow ?? null);
+  const overdue = overdueSentence(schedule, details[last]?.newTestNow ?? null);
   const out: EpochView[] = trend.epochs.map((ep, i) => {
     let step = ep.step;
     if (i !== last && epochs[i].fits.length > 0)
@@ -235,7 +235,7 @@ export async function outletTrendView(
       thresholdCd: baseline ? baseline.dischargeCoefficient * (1 + threshold.pct / 100) : null,
       forecast: forecastWithAge(forecastView(ep.forecast), i === last ? overdue : null),
       step: stepView(step),
-      segments: ep.segments.map((g) => ({
+      segments: details[i].segments.map((g) => ({
         fitIds: g.fitIds.map(Number),
         firstMs: g.firstMs,
         lastMs: g.lastMs,
@@ -245,8 +245,8 @@ export async function outletTrendView(
         areaBand: bandView(g.areaBand),
         cdBand: bandView(g.cdBand),
       })),
-      newTestNow: newTestView(ep.newTestNow),
-      areaNewTestBand: bandView(ep.areaNewTestBand),
+      newTestNow: newTestView(details[i].newTestNow),
+      areaNewTestBand: bandView(details[i].areaNewTestBand),
     };
   });
   return {

@@ -42,7 +42,9 @@ export {
 } from './status.js';
 export {
   outletTrend,
+  outletTrendDetailed,
   BAND_POINTS,
+  type EpochDetail,
   type OutletTrend,
   type EpochTrend,
   type SeriesPoint,

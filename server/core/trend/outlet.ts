@@ -62,6 +62,13 @@ export interface EpochTrend {
   /** Only the current epoch is forecast and checked for a step; earlier ones are history. */
   forecast: ThresholdForecast | null;
   step: StepCheck | null;
+}
+
+/**
+ * What the chart and the due list add to an epoch. Kept apart from EpochTrend so an outlet
+ * report (which embeds OutletTrend and must rebuild to the same content) does not change.
+ */
+export interface EpochDetail {
   /** The epoch cut at a flagged step (each part its own line or none); one segment otherwise. */
   segments: TrendSegment[];
   /** Current epoch only: what a test made now would read (Cd·a), with a 95 % prediction interval. */
@@ -156,12 +163,23 @@ export function outletTrend(
   settings: TrendSettings,
   nowMs: number,
 ): OutletTrend {
+  return outletTrendDetailed(fits, events, settings, nowMs).trend;
+}
+
+/** outletTrend, and beside it each epoch's segments and the forecast of a new test (EpochDetail). */
+export function outletTrendDetailed(
+  fits: readonly ApprovedFit[],
+  events: readonly MaintenanceEvent[],
+  settings: TrendSettings,
+  nowMs: number,
+): { trend: OutletTrend; details: EpochDetail[] } {
   checkSettings(settings);
   if (!Number.isFinite(nowMs)) throw new InputError('now is not a time', { field: 'nowMs' });
   const pct = settings.actionThresholdPct;
   const epochs = splitEpochs(fits, events);
   const lastIdx = epochs.length - 1;
   const current = assessEpoch(epochs[lastIdx], settings, nowMs);
+  const details: EpochDetail[] = [];
   const out: EpochTrend[] = epochs.map((ep, i) => {
     const isCurrent = i === lastIdx;
     const area = isCurrent ? current.area : epochLine(ep, 'effectiveArea');
@@ -188,6 +206,11 @@ export function outletTrend(
     const lastSeg = segments[segments.length - 1];
     // after a step the latest stretch predicts the next test; with too few tests there, nothing does
     const predictor = isCurrent ? (segments.length > 1 ? (lastSeg?.area ?? null) : area) : null;
+    details.push({
+      segments,
+      newTestNow: predictor ? predictNewTest(predictor, nowMs) : null,
+      areaNewTestBand: predictor ? newTestBand(predictor, lastT, Math.max(end, nowMs)) : [],
+    });
     return {
       index: ep.index,
       startedBy: ep.startedBy,
@@ -201,10 +224,7 @@ export function outletTrend(
       thresholdM2: ep.baseline ? ep.baseline.effectiveAreaM2 * (1 + pct / 100) : null,
       forecast: isCurrent ? current.forecast : null,
       step: isCurrent ? current.step : null,
-      segments,
-      newTestNow: predictor ? predictNewTest(predictor, nowMs) : null,
-      areaNewTestBand: predictor ? newTestBand(predictor, lastT, Math.max(end, nowMs)) : [],
     };
   });
-  return { thresholdPct: pct, nowMs, epochs: out, status: current.status };
+  return { trend: { thresholdPct: pct, nowMs, epochs: out, status: current.status }, details };
 }

@@ -4,7 +4,7 @@ import {
   DAY_MS,
   epochLine,
   newTestUAt,
-  outletTrend,
+  outletTrendDetailed,
   predictNewTest,
   seededNormal,
   splitEpochs,
@@ -102,9 +102,14 @@ describe('trend segments and the forecast of a new test', () => {
     const fits = Array.from({ length: 14 }, (_, i) =>
       approved(i, 7.5e-4 * (i >= 9 ? 0.93 : 1) + 1e-6 * nrm()),
     );
-    const tr = outletTrend(fits, [], { actionThresholdPct: -10 }, t0 + 500 * DAY_MS);
-    const ep = tr.epochs[0];
-    expect(ep.step?.flagged).toBe(true);
+    const { trend: tr, details } = outletTrendDetailed(
+      fits,
+      [],
+      { actionThresholdPct: -10 },
+      t0 + 500 * DAY_MS,
+    );
+    expect(tr.epochs[0].step?.flagged).toBe(true);
+    const ep = details[0];
     expect(ep.segments.length).toBe(2);
     expect(ep.segments[1].startedBy).toBe('step');
     expect(ep.segments[0].fitIds).toEqual(fits.slice(0, 9).map((f) => f.fitId));
@@ -123,11 +128,16 @@ describe('trend segments and the forecast of a new test', () => {
       approved(i, 7.5e-4 - 1e-7 * i + 1e-6 * nrm()),
     );
     const last = fits[fits.length - 1].testedAtMs;
-    const soon = outletTrend(fits, [], { actionThresholdPct: -10 }, last + DAY_MS);
-    const late = outletTrend(fits, [], { actionThresholdPct: -10 }, last + 270 * DAY_MS);
-    expect(soon.epochs[0].segments.length).toBe(1);
-    const a = soon.epochs[0].newTestNow!,
-      b = late.epochs[0].newTestNow!;
+    const soon = outletTrendDetailed(fits, [], { actionThresholdPct: -10 }, last + DAY_MS).details;
+    const late = outletTrendDetailed(
+      fits,
+      [],
+      { actionThresholdPct: -10 },
+      last + 270 * DAY_MS,
+    ).details;
+    expect(soon[0].segments.length).toBe(1);
+    const a = soon[0].newTestNow!,
+      b = late[0].newTestNow!;
     expect(b.halfWidth95).toBeGreaterThan(a.halfWidth95);
     // and it is the prediction of predictNewTest on the epoch line
     const line = epochLine(splitEpochs(fits, [])[0], 'effectiveArea')!;
