@@ -21,7 +21,7 @@ function reasonOf(s: TestSchedule): string {
   if (s.neverTested) return `no approved test yet: due now; then ${every}`;
   const age = `the latest test (${day(s.latestTestMs!)}) is ${ageInWords(s.latestTestAgeDays!)} old`;
   if (s.overdue)
-    return `overdue since ${day(s.nextDueMs!)} (${ageInWords(-s.daysUntilDue!)}): ${age}; due ${every}`;
+    return `overdue since ${day(s.nextDueMs!)}, by ${ageInWords(-s.daysUntilDue!)}: ${age}; due ${every}`;
   return `next test due ${day(s.nextDueMs!)}, in ${ageInWords(s.daysUntilDue!)}: ${age}; due ${every}`;
 }
 

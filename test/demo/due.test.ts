@@ -70,7 +70,7 @@ describe('tests that fall due, demo data, clock at 2026-12-05', () => {
       expect(item!.latestTestAgeDays).toBeCloseTo(age, 6);
       expect(age).toBeGreaterThan(180);
       expect(item!.reason).toMatch(
-        /^overdue since \d{4}-\d\d-\d\d .*the latest test \(\d{4}-\d\d-\d\d\) is \d+ days \(\d+\.\d months\) old/,
+        /^overdue since \d{4}-\d\d-\d\d, by \d+ days.*: the latest test \(\d{4}-\d\d-\d\d\) is \d+ days \(\d+\.\d months\) old/,
       );
     }
     // soonest first: next-due dates never go backwards down the list

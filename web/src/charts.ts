@@ -47,6 +47,8 @@ export const isoDateTicks = (
     const d = new Date(s * 1000).toISOString();
     return incr < 86400 ? d.slice(0, 16).replace('T', ' ') : d.slice(0, 10);
   });
+/** Least pixels between date ticks, so 10-character ISO dates never overlap. */
+export const ISO_DATE_SPACE = 96;
 export const utcDate = (ts: number) => uPlot.tzDate(new Date(ts * 1000), 'Etc/UTC');
 /** A hover legend's date: ISO, UTC. */
 export const isoDateValue = (_u: uPlot, v: number | null) =>
@@ -513,7 +515,7 @@ export function historyChart(
       scales: { x: { time: true, range: xr }, y: { range: [ymin - pad, ymax + pad] } },
       tzDate: utcDate,
       axes: [
-        axis('date of the test (UTC)', { values: isoDateTicks }),
+        axis('date of the test (UTC)', { values: isoDateTicks, space: ISO_DATE_SPACE }),
         axis('discharge coefficient Cd (–)'),
       ],
       series: [

@@ -9,7 +9,14 @@
  * fewer than 3 tests). Dates are ISO 8601, UTC.
  */
 import uPlot from 'uplot';
-import { COLOURS, drawToday, isoDateTicks, isoDateValue, utcDate } from './charts.js';
+import {
+  COLOURS,
+  drawToday,
+  ISO_DATE_SPACE,
+  isoDateTicks,
+  isoDateValue,
+  utcDate,
+} from './charts.js';
 
 // The API's shapes, defined once in server/jobs/trend-views.ts (type-only: erased by the bundler)
 export type {
@@ -278,6 +285,7 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
         {
           label: 'date of the test (UTC)',
           values: isoDateTicks,
+          space: ISO_DATE_SPACE,
           stroke: COLOURS.axis,
           grid: { stroke: COLOURS.grid, width: 1 },
           ticks: { stroke: COLOURS.grid, width: 1 },
