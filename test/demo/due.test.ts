@@ -57,6 +57,30 @@ afterAll(async () => {
   store.close();
 });
 
+describe('FD-3 trend chart data (issue 17: no straight line through its flagged 7 % step)', () => {
+  it('cuts the first epoch at the step: each side its own line; the cleaning starts another epoch', async () => {
+    const tr = await get<TrendView>(`/api/outlets/${outletOf.fd3}/trend`);
+    expect(tr.epochs.length).toBe(2);
+    const first = tr.epochs[0];
+    expect(first.step?.flagged).toBe(true);
+    expect(first.segments.length).toBe(2);
+    const [before, after] = first.segments;
+    expect(after.startedBy).toBe('step');
+    expect(after.fitIds[0]).toBe(first.step!.fitId);
+    // the scenario: drift −1 %/year, a 7 % step down at the tenth test (server/demo/scenario.ts)
+    expect(before.fitIds.length).toBe(9);
+    expect(before.area).not.toBeNull();
+    // the line before the step ends near its own tests, not dragged down by the step
+    const lastBefore = before.areaBand[before.areaBand.length - 1].value;
+    const lastAfterFirst = after.areaBand[0]?.value ?? Number.NaN;
+    const pts = first.series.map((p) => p.effectiveAreaM2);
+    expect(Math.abs(lastBefore / pts[8] - 1)).toBeLessThan(0.02);
+    // after the step: the tests from the tenth on sit about 7 % lower
+    expect(pts[9] / pts[8] - 1).toBeLessThan(-0.04);
+    if (after.area) expect(Math.abs(lastAfterFirst / pts[9] - 1)).toBeLessThan(0.02);
+  });
+});
+
 describe('tests that fall due, demo data, clock at 2026-12-05', () => {
   it('the three filter-drain outlets are overdue, with the age of their last test', async () => {
     const due = await get<DueList>('/api/due?site=kestrel');
