@@ -15,7 +15,7 @@ import { dataDir } from './serve-config.js';
 
 const DUE_USAGE = `usage: efflux due [--site PART] [--within DAYS] [--as-of DATE] [--json]
   Outlets overdue for a drain test, or due within DAYS (default 30), soonest first, with the age
-  of each latest approved test. --site matches part of a site name, any case.
+  of each latest test (approved or awaiting review). --site matches part of a site name, any case.
   Each outlet is tested every N days: its own interval (efflux outlet interval) or its site's
   (efflux site clock SITE --interval N; ${DEFAULT_TEST_INTERVAL_DAYS} days unless set, a common practice, not a standard).
   Drain tests involve work at height, confined spaces and discharges: follow site procedures.

@@ -1,5 +1,5 @@
 /**
- * Tests that fall due (shell): reads each outlet's intervals and latest approved test from the
+ * Tests that fall due (shell): reads each outlet's intervals and latest test from the
  * store (server/store/schedule.ts), asks server/core/trend/due.ts when each is next due, and
  * shapes the answer for the trend view, the fleet, `GET /api/due` and `efflux due`.
  */
@@ -18,7 +18,7 @@ const iso = (ms: number | null) => (ms === null ? null : new Date(ms).toISOStrin
 
 function reasonOf(s: TestSchedule): string {
   const every = `every ${s.intervalDays} days (${s.intervalSource === 'outlet' ? "the outlet's own interval" : "the site's interval"})`;
-  if (s.neverTested) return `no approved test yet: due now; then ${every}`;
+  if (s.neverTested) return `never tested: due now; then ${every}`;
   const age = `the latest test (${day(s.latestTestMs!)}) is ${ageInWords(s.latestTestAgeDays!)} old`;
   if (s.overdue)
     return `overdue since ${day(s.nextDueMs!)}, by ${ageInWords(-s.daysUntilDue!)}: ${age}; due ${every}`;

@@ -4,7 +4,7 @@ import { NotFoundError } from './errors.js';
 
 /**
  * Each site's clock and test interval, each outlet's own interval (migration 008), and what the
- * due list reads: every outlet with its latest approved test. Asynchronous on `c.sql` only.
+ * due list reads: every outlet with its latest test. Asynchronous on `c.sql` only.
  * Values are checked by the caller (server/core/trend/due.ts, server/core/ingest/zone.ts).
  */
 
@@ -26,7 +26,10 @@ export interface OutletScheduleRow {
   siteIntervalDays: number;
   /** The outlet's own interval; null = the site's. */
   outletIntervalDays: number | null;
-  /** The latest approved (not superseded) test's date, ISO; null when none. */
+  /**
+   * The latest drain test's date, ISO; null when none. A test counts once it is done (approved,
+   * awaiting review, or not analysed yet); a test whose every fit was rejected does not.
+   */
   latestTestAt: string | null;
 }
 
@@ -57,8 +60,9 @@ interface ScheduleRow {
 
 const SCHEDULE_SQL = `SELECT o.id AS outlet_id, o.key, v.id AS vessel_id, v.name AS vessel_name, s.name AS site,
     o.retired_at, s.test_interval_days AS site_interval, o.test_interval_days AS outlet_interval,
-    (SELECT MAX(t.tested_at) FROM fits f JOIN drain_tests t ON t.id = f.test_id
-      WHERE f.outlet_id = o.id AND f.status = 'approved' AND f.superseded_by IS NULL) AS latest
+    (SELECT MAX(t.tested_at) FROM drain_tests t WHERE t.outlet_id = o.id AND t.tested_at IS NOT NULL
+      AND (NOT EXISTS (SELECT 1 FROM fits f WHERE f.test_id = t.id)
+        OR EXISTS (SELECT 1 FROM fits f WHERE f.test_id = t.id AND f.status <> 'rejected'))) AS latest
   FROM outlets o JOIN vessels v ON v.id = o.vessel_id JOIN sites s ON s.id = v.site_id`;
 
 export class ScheduleRepo {
@@ -147,7 +151,7 @@ export class ScheduleRepo {
     });
   }
 
-  /** Every outlet (or one) with its intervals and latest approved test. */
+  /** Every outlet (or one) with its intervals and latest test (see latestTestAt). */
   async outlets(outletId?: number): Promise<OutletScheduleRow[]> {
     const rows =
       outletId === undefined

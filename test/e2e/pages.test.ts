@@ -149,7 +149,7 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     expect(Number(await chart.getAttribute('data-points'))).toBeGreaterThanOrEqual(2);
     // when the next test is due (the site's or the outlet's interval)
     await expect(page.locator('.trend-schedule').first().textContent()).resolves.toMatch(
-      /^Next test: (No approved test yet|Overdue since|Next test due) /,
+      /^Next test: (Never tested|Overdue since|Next test due) /,
     );
     // the status sentence, with the forecast crossing date (or why there is none)
     await expect(page.locator('.trend-status').first().textContent()).resolves.toMatch(

@@ -151,4 +151,44 @@ describe("a site's clock", () => {
       fit.result.effectiveAreaM2.value / utc.json().fit.result.effectiveAreaM2.value - 1,
     ).toBeCloseTo(0, 9);
   });
+
+  it('due list: a test awaiting review counts as done; one whose fit was rejected does not', async () => {
+    const list = await t.app.inject({
+      method: 'GET',
+      url: `/api/vessels/${vesselId}/tests?limit=100`,
+      headers: t.auth('engineer'),
+    });
+    const tests = (list.json().items as { id: number; testedAt: string; outletId: number }[])
+      .filter((x) => x.testedAt)
+      .sort((a, b) => Date.parse(a.testedAt) - Date.parse(b.testedAt));
+    expect(tests.length).toBeGreaterThanOrEqual(3);
+    const due = async () =>
+      (
+        await t.app.inject({
+          method: 'GET',
+          url: '/api/due?asOf=2028-01-01',
+          headers: t.auth('auditor'),
+        })
+      )
+        .json()
+        .items.find((i: { outletId: number }) => i.outletId === tests[0].outletId);
+    const newest = tests[tests.length - 1];
+    expect(Date.parse((await due()).latestTestAt)).toBe(Date.parse(newest.testedAt));
+    const fits = await t.app.inject({
+      method: 'GET',
+      url: `/api/tests/${newest.id}/fits`,
+      headers: t.auth('engineer'),
+    });
+    const fitId = (fits.json().items ?? fits.json())[0].id;
+    const rej = await t.app.inject({
+      method: 'POST',
+      url: `/api/fits/${fitId}/review`,
+      headers: t.auth('engineer'),
+      payload: { decision: 'reject', comment: 'logger clock doubtful (test of the due rule)' },
+    });
+    expect(rej.statusCode, rej.body).toBe(200);
+    const after = await due();
+    expect(Date.parse(after.latestTestAt)).toBe(Date.parse(tests[tests.length - 2].testedAt));
+    expect(after.intervalDays).toBe(90); // the site's, set above
+  });
 });

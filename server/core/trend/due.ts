@@ -1,6 +1,6 @@
 /**
  * Tests that fall due: each outlet is drain-tested every so many days (its own interval, or its
- * site's). From the latest approved test and the interval: the next test's date, whether it is
+ * site's). From the latest test and the interval: the next test's date, whether it is
  * overdue, and how old the latest test is. When a trend line exists, what a test made now would
  * read, with the 95 % prediction interval for a NEW test (not the band of the mean): it widens
  * the longer the outlet goes untested.
