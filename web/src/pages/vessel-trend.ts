@@ -55,6 +55,19 @@ function scheduleWords(t: FullTrend): HTMLElement | null {
   );
 }
 
+/** The epoch's drift; cut at a flagged step, each side's own (the whole-epoch line would run through the step). */
+function driftCell(e: FullTrend['epochs'][number]): string {
+  const one = (l: typeof e.area) =>
+    l
+      ? `${pct(l.slopePctPerYear, 2 * l.slopePctPerYearU)} a year (±2u)`
+      : 'too few tests for a line';
+  if (e.segments && e.segments.length > 1)
+    return e.segments
+      .map((g, k) => `${k === 0 ? 'before the step' : 'from the step'}: ${one(g.area)}`)
+      .join('; ');
+  return e.area ? one(e.area) : '—';
+}
+
 function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   const wrap = h('div', { class: 'trend-outlet', 'data-outlet': o.id });
   const points = t.epochs.reduce((s, e) => s + e.series.length, 0);
@@ -181,7 +194,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
           `${e.index + 1}${e.current ? ' (present)' : ''}`,
           e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
           String(e.series.length),
-          e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
+          driftCell(e),
           e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
           e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
           e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
