@@ -21,8 +21,8 @@ const DUE_USAGE = `usage: efflux due [--site PART] [--within DAYS] [--as-of DATE
   Drain tests involve work at height, confined spaces and discharges: follow site procedures.
 `;
 
-const SITE_USAGE = `usage: efflux site clock SITE [--time-zone ZONE] [--interval DAYS]
-  Without options: shows the site's time zone and default test interval.
+const SITE_USAGE = `usage: efflux site clock [SITE [--time-zone ZONE] [--interval DAYS]]
+  Without options: shows the site's time zone and default test interval (every site's without SITE).
   --time-zone  IANA name (e.g. Europe/Lisbon): local log times without an offset are read in it
   --interval   default days between drain tests of the site's outlets (1 to 3660)
 `;
@@ -129,10 +129,24 @@ const clockLine = (s: SiteClock) =>
 export async function runSite(argv: string[]): Promise<number> {
   if (argv[0] !== 'clock') return (await import('./people.js')).runSite(argv);
   const [, site, ...rest] = argv;
-  if (!site || site.startsWith('--')) {
+  if (site === '--help') {
+    process.stdout.write(SITE_USAGE);
+    return 0;
+  }
+  if (site?.startsWith('--')) {
     process.stderr.write(SITE_USAGE);
     return 2;
   }
+  if (site === undefined)
+    return guarded(async () => {
+      const store = openStore({ dataDir: dataDir() });
+      try {
+        for (const s of await store.schedule.sites()) process.stdout.write(clockLine(s));
+        return 0;
+      } finally {
+        store.close();
+      }
+    });
   return guarded(async () => {
     const zone = option(rest, 'time-zone');
     const interval = option(rest, 'interval');

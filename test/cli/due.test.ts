@@ -40,9 +40,12 @@ describe('efflux site clock / outlet interval / due', () => {
     const badDays = effluxWithData(dataDir, ['site', 'clock', site, '--interval', '1.5']);
     expect(badDays.code).toBe(2);
     expect(badDays.stderr).toMatch(/whole number of days/);
+    const all = effluxWithData(dataDir, ['site', 'clock']);
+    expect(all.code, all.stderr).toBe(0);
+    expect(all.stdout).toContain(`site "${site}": time zone Europe/Lisbon`);
     const noSite = effluxWithData(dataDir, ['site', 'clock', 'No such site']);
     expect(noSite.code).toBe(2);
-  });
+  }, 240_000);
 
   it('lists the overdue outlet with the age of its last test; an outlet interval overrides the site', () => {
     // site interval 120 days (set above): 2026-03-10 + 120 d = 2026-07-08; on 2026-12-05 overdue
@@ -81,5 +84,5 @@ describe('efflux site clock / outlet interval / due', () => {
     expect(effluxWithData(dataDir, ['outlet', 'interval', String(outletId), 'site']).code).toBe(0);
     expect(effluxWithData(dataDir, ['outlet', 'interval', '99999', '30']).code).toBe(2);
     expect(effluxWithData(dataDir, ['due', '--bogus']).code).toBe(2);
-  });
+  }, 240_000);
 });
