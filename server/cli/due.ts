@@ -102,7 +102,7 @@ export async function runDue(argv: string[]): Promise<number> {
         throw new InputError(`unknown option ${a}`, { field: a.slice(2) });
     const within = option(argv, 'within');
     const nowMs = asOfMs(argv);
-    const store = openStore({ dataDir: dataDir() });
+    const store = await openStore({ dataDir: dataDir() });
     try {
       const d = await dueList(
         store,
@@ -117,7 +117,7 @@ export async function runDue(argv: string[]): Promise<number> {
       );
       return 0;
     } finally {
-      store.close();
+      await store.close();
     }
   });
 }
@@ -139,12 +139,12 @@ export async function runSite(argv: string[]): Promise<number> {
   }
   if (site === undefined)
     return guarded(async () => {
-      const store = openStore({ dataDir: dataDir() });
+      const store = await openStore({ dataDir: dataDir() });
       try {
         for (const s of await store.schedule.sites()) process.stdout.write(clockLine(s));
         return 0;
       } finally {
-        store.close();
+        await store.close();
       }
     });
   return guarded(async () => {
@@ -154,7 +154,7 @@ export async function runSite(argv: string[]): Promise<number> {
       ...(zone !== undefined ? { timeZone: checkTimeZone(zone, 'time-zone') } : {}),
       ...(interval !== undefined ? { testIntervalDays: wholeDays(interval, 'interval') } : {}),
     };
-    const store = openStore({ dataDir: dataDir() });
+    const store = await openStore({ dataDir: dataDir() });
     try {
       const s = await asInput(
         () =>
@@ -166,7 +166,7 @@ export async function runSite(argv: string[]): Promise<number> {
       process.stdout.write(clockLine(s));
       return 0;
     } finally {
-      store.close();
+      await store.close();
     }
   });
 }
@@ -185,7 +185,7 @@ export async function runOutletInterval(argv: string[]): Promise<number> {
         field: 'outlet',
       });
     const days = daysText === 'site' ? null : wholeDays(daysText, 'days');
-    const store = openStore({ dataDir: dataDir() });
+    const store = await openStore({ dataDir: dataDir() });
     try {
       await asInput(() => store.schedule.outletInterval(id), 'outlet');
       await store.schedule.setOutletInterval(SYSTEM_ACTOR, id, days);
@@ -196,7 +196,7 @@ export async function runOutletInterval(argv: string[]): Promise<number> {
       );
       return 0;
     } finally {
-      store.close();
+      await store.close();
     }
   });
 }

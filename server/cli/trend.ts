@@ -146,7 +146,7 @@ export async function run(argv: string[]): Promise<number> {
     const csv = argv.includes('--csv');
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
     const nowMs = asOfMs(argv);
-    const store = openStore({ dataDir: dataDir() });
+    const store = await openStore({ dataDir: dataDir() });
     try {
       if (argv.includes('--fleet')) {
         if (csv) throw new InputError("--csv is for one outlet's history", { field: 'csv' });
@@ -185,7 +185,7 @@ export async function run(argv: string[]): Promise<number> {
       );
       return 0;
     } finally {
-      store.close();
+      await store.close();
     }
   });
 }

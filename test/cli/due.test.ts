@@ -13,8 +13,8 @@ let site: string;
 beforeAll(async () => {
   const fx = await reportFixture();
   outletId = fx.outletId;
-  site = fx.store.vessels.get(fx.vesselId).site;
-  fx.store.close();
+  site = (await fx.store.vessels.get(fx.vesselId)).site;
+  await fx.store.close();
   dataDir = fx.dataDir;
 }, 60_000);
 

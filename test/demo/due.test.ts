@@ -15,7 +15,8 @@ import { buildApp } from '../../server/http/app.js';
 import { loadDemo } from '../../server/jobs/demo.js';
 import type { DueList } from '../../server/jobs/due.js';
 import type { FleetView, TrendView } from '../../server/jobs/trend.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { openTestStore } from '../support/store.js';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 const NOW = Date.UTC(2026, 11, 5); // 2026-12-05
@@ -32,14 +33,14 @@ async function get<T>(url: string): Promise<T> {
 }
 
 beforeAll(async () => {
-  store = openStore({ now: () => new Date(NOW).toISOString() });
+  store = await openTestStore({ now: () => new Date(NOW).toISOString() });
   await loadDemo(
     store,
     async (req) => analyzeDrainTest(req),
     join(root, 'sample-data/manifest.json'),
   );
   auth = {
-    authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'reader', 'engineer').token}`,
+    authorization: `Bearer ${(await store.users.createToken(SYSTEM_ACTOR, 'reader', 'engineer')).token}`,
   };
   app = await buildApp({
     store,
@@ -47,14 +48,14 @@ beforeAll(async () => {
     clockMs: () => NOW,
   });
   for (const h of HISTORIES) {
-    const id = store.vessels.findId('Kestrel Fen works (fictional)', h.vessel.name)!;
-    outletOf[h.logPrefix] = store.vessels.get(id).outlets[0].id;
+    const id = (await store.vessels.findId('Kestrel Fen works (fictional)', h.vessel.name))!;
+    outletOf[h.logPrefix] = (await store.vessels.get(id)).outlets[0].id;
   }
 }, 120_000);
 
 afterAll(async () => {
   await app.close();
-  store.close();
+  await store.close();
 });
 
 describe('FD-3 trend chart data (issue 17: no straight line through its flagged 7 % step)', () => {

@@ -88,8 +88,8 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      app.store.vessels.outlet(request.params.id);
-      return app.store.trends.statusChanges(request.params.id);
+      await app.store.vessels.outlet(request.params.id);
+      return await app.store.trends.statusChanges(request.params.id);
     },
   );
 
@@ -121,10 +121,10 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      const o = app.store.vessels.outlet(request.params.id);
+      const o = await app.store.vessels.outlet(request.params.id);
       if (o.retiredAt !== null)
         throw new ConflictError(`outlet ${o.id} is retired; it is no longer in the vessel file`);
-      const v = app.store.vessels.get(o.vesselId);
+      const v = await app.store.vessels.get(o.vesselId);
       const spec = structuredClone(v.spec);
       const list = Array.isArray(spec.outlets)
         ? (spec.outlets as Record<string, unknown>[])
@@ -134,7 +134,11 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
         throw new InputError(`outlet "${o.key}" is not in vessel ${v.id}'s file`, { field: 'id' });
       if (request.body.actionThreshold === null) delete list[at].actionThreshold;
       else list[at].actionThreshold = request.body.actionThreshold;
-      const updated = app.store.vessels.update(actorOf(request.user!), v.id, checkVesselFile(spec));
+      const updated = await app.store.vessels.update(
+        actorOf(request.user!),
+        v.id,
+        checkVesselFile(spec),
+      );
       const after = updated.outlets.find((x) => x.id === o.id)!;
       return { outlet: after, threshold: thresholdOf(after) };
     },
