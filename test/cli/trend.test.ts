@@ -128,5 +128,5 @@ describe('efflux trend', () => {
     const bad = efflux(dataDir, ['trend', '999']);
     expect(bad.code).toBe(2);
     expect(bad.stderr).toMatch(/outlet 999 not found/);
-  }, 30_000);
+  }, 120_000); // three CLI processes (tsx each): room for a loaded machine
 });
