@@ -11,6 +11,7 @@ import { dueList, scheduleOf, type DueList } from '../jobs/due.js';
 import { NotFoundError, openStore, SYSTEM_ACTOR } from '../store/index.js';
 import type { SiteClock } from '../store/schedule.js';
 import { guarded } from './io.js';
+import { outletByName } from './names.js';
 import { dataDir } from './serve-config.js';
 
 const DUE_USAGE = `usage: efflux due [--site PART] [--within DAYS] [--as-of DATE] [--json]
@@ -27,8 +28,9 @@ const SITE_USAGE = `usage: efflux site clock [SITE [--time-zone ZONE] [--interva
   --interval   default days between drain tests of the site's outlets (1 to 3660)
 `;
 
-const OUTLET_USAGE = `usage: efflux outlet interval OUTLET_ID DAYS|site
+const OUTLET_USAGE = `usage: efflux outlet interval OUTLET DAYS|site
   The outlet's own days between drain tests, or "site" to follow its site's interval.
+  OUTLET is its id or its tag (as for efflux trend).
 `;
 
 function option(argv: string[], name: string): string | undefined {
@@ -179,14 +181,10 @@ export async function runOutletInterval(argv: string[]): Promise<number> {
     return 2;
   }
   return guarded(async () => {
-    const id = Number(idText);
-    if (!Number.isInteger(id) || id <= 0)
-      throw new InputError(`outlet id must be a positive whole number, not "${idText}"`, {
-        field: 'outlet',
-      });
     const days = daysText === 'site' ? null : wholeDays(daysText, 'days');
     const store = await openStore({ dataDir: dataDir() });
     try {
+      const id = (await outletByName(store, idText)).outletId;
       await asInput(() => store.schedule.outletInterval(id), 'outlet');
       await store.schedule.setOutletInterval(SYSTEM_ACTOR, id, days);
       const [row] = await store.schedule.outlets(id);
@@ -201,9 +199,8 @@ export async function runOutletInterval(argv: string[]): Promise<number> {
   });
 }
 
-/** `efflux outlet …`: the interval here; other outlet subcommands may join this dispatcher. */
+/** `efflux outlet …`: the interval here, the threshold (and help) in vessel.ts. */
 export async function runOutlet(argv: string[]): Promise<number> {
   if (argv[0] === 'interval') return runOutletInterval(argv);
-  process.stderr.write(OUTLET_USAGE);
-  return argv[0] === '--help' ? 0 : 2;
+  return (await import('./vessel.js')).runOutlet(argv);
 }

@@ -68,10 +68,6 @@ const COMMANDS: Record<string, Command> = {
     summary: 'outlets overdue or soon due for a drain test, soonest first: due [--site S]',
     load: async () => ({ run: (await import('./due.js')).runDue }),
   },
-  outlet: {
-    summary: "an outlet's settings: outlet interval OUTLET_ID DAYS|site",
-    load: async () => ({ run: (await import('./due.js')).runOutlet }),
-  },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
   report: {
     summary: 'fit and outlet reports (PDF/JSON) and report verify',
@@ -92,6 +88,15 @@ const COMMANDS: Record<string, Command> = {
   check: {
     summary: 'check the data folder: integrity, schema version, audit chain',
     load: async () => ({ run: (await import('./data-folder.js')).runCheck }),
+  },
+  vessel: {
+    summary: 'vessels: vessel add FILE | list | show | export | edit ID FILE | revisions',
+    load: () => loadModule('vessel'),
+  },
+  outlet: {
+    summary:
+      "an outlet's settings: outlet threshold TAG|ID FACTOR|default | outlet interval TAG|ID DAYS|site",
+    load: async () => ({ run: (await import('./due.js')).runOutlet }),
   },
   export: {
     summary: 'approved fits of a site, vessel or period as one zip with hashes',
