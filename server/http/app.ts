@@ -43,6 +43,7 @@ import { systemRoutes } from './routes/systems.js';
 import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
+import { scheduleRoutes } from './routes/schedule.js';
 import { vesselRoutes } from './routes/vessels.js';
 import { vesselRevisionRoutes } from './routes/vessel-revisions.js';
 import { reportRoutes } from './routes/reports.js';
@@ -318,6 +319,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     refitMs: opts.liveRefitMs,
   });
   await app.register(peopleRoutes);
+  await app.register(scheduleRoutes);
   app.get(
     '/api/openapi.json',
     {

@@ -12,6 +12,7 @@ import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
+import { ScheduleRepo } from './schedule.js';
 import { SiteRepo } from './sites.js';
 import type { Sql } from './sql.js';
 import { SqliteSql } from './sqlite-sql.js';
@@ -33,6 +34,8 @@ export interface Store {
   events: EventRepo;
   users: UserRepo;
   sites: SiteRepo;
+  /** Sites' clocks and test intervals, outlets' own intervals (async). */
+  schedule: ScheduleRepo;
   trends: TrendRepo;
   live: LiveRepo;
   meta: ServiceMetaRepo;
@@ -126,6 +129,7 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     events: new EventRepo(c),
     users: new UserRepo(c, sites),
     sites,
+    schedule: new ScheduleRepo(c),
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),

@@ -147,6 +147,10 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     const chart = page.locator(`#trend-${pick!.outletId}`);
     await chart.locator('canvas').waitFor();
     expect(Number(await chart.getAttribute('data-points'))).toBeGreaterThanOrEqual(2);
+    // when the next test is due (the site's or the outlet's interval)
+    await expect(page.locator('.trend-schedule').first().textContent()).resolves.toMatch(
+      /^Next test: (Never tested|Overdue since|Next test due) /,
+    );
     // the status sentence, with the forecast crossing date (or why there is none)
     await expect(page.locator('.trend-status').first().textContent()).resolves.toMatch(
       /\d{4}-\d{2}-\d{2}|forecast/i,
@@ -181,6 +185,13 @@ describe.skipIf(!haveBrowser)('connected vessels, trend and audit pages in a bro
     await page.locator('table.fleet tbody tr').first().waitFor();
     await expect(page.locator('table.fleet thead').textContent()).resolves.toContain(
       'Drift status',
+    );
+    // tests that fall due: the next test's date per outlet, overdue ones marked
+    await expect(page.locator('table.fleet thead').textContent()).resolves.toContain(
+      'Next test due',
+    );
+    await expect(page.locator('table.fleet td.due').first().textContent()).resolves.toMatch(
+      /\d{4}-\d{2}-\d{2}|due now/,
     );
   }, 180_000);
 

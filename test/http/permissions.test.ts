@@ -79,6 +79,10 @@ const TABLE: Record<string, Rule> = {
   'DELETE /api/tokens/:id': ADM,
   'GET /api/sites': ADM,
   'PUT /api/sites/:name/settings': ADM,
+  'GET /api/sites/:name/clock': ALL,
+  'PUT /api/sites/:name/clock': ENG,
+  'PUT /api/outlets/:id/interval': ENG,
+  'GET /api/due': ALL,
 };
 
 /**
@@ -141,6 +145,10 @@ const SCOPE: Record<string, SiteScope> = {
   'DELETE /api/tokens/:id': 'every-site',
   'GET /api/sites': 'every-site',
   'PUT /api/sites/:name/settings': 'every-site',
+  'GET /api/sites/:name/clock': 'listed',
+  'PUT /api/sites/:name/clock': 'listed',
+  'PUT /api/outlets/:id/interval': 'outlet',
+  'GET /api/due': 'listed',
   'POST /api/vessels/:id/plan': 'vessel',
   'POST /api/vessels/:id/live': 'vessel',
   'GET /api/live/:id': 'listed',

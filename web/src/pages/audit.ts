@@ -31,7 +31,8 @@ const ACTION_WORDS: Record<string, string> = {
   'user.update': 'role or sites changed',
   'user.revoke': 'person revoked (sessions ended)',
   'token.revoke': 'access token revoked (sessions ended)',
-  'site.settings': 'site setting changed (self-review)',
+  'site.settings': 'site setting changed (self-review, time zone or test interval)',
+  'outlet.interval': 'outlet test interval changed',
   'fit.supersede': 'fit replaced by an approved one',
   'api-token.create': 'access token made',
 };
