@@ -3,7 +3,7 @@ import { InputError } from '../core/errors.js';
 import { timeUnitMs } from '../core/ingest/header.js';
 import { parseFlow, parseLength } from '../core/units/index.js';
 import { readFlowLog } from '../core/system/flow-log.js';
-import { inflowOnFitClock } from '../core/system/inflow-log.js';
+import { inflowOnFitClock, meanFlowOverSpan } from '../core/system/inflow-log.js';
 import type { InflowInput } from '../core/system/network.js';
 import { levelsAfter, timeToLevel } from '../core/system/predict.js';
 import { readVesselLog } from '../core/system/read-vessel-log.js';
@@ -16,7 +16,7 @@ import {
   solverLine,
   warningLines,
 } from '../core/fit-result/text.js';
-import { loadSystemModel, systemFitJson } from '../core/system/fit-json.js';
+import { loadSystemModel, systemFitJson, type InflowLogUse } from '../core/system/fit-json.js';
 import { linearize } from '../core/system/linear.js';
 import { linearModelCsv, linearModelText } from '../core/system/linear-export.js';
 import { buildNetwork } from '../core/system/network.js';
@@ -64,10 +64,14 @@ alone needs each vessel's "effectiveAreaM2" (or "dischargeCoefficient").
 ` + MODEL_SOURCES;
 
 const LINEAR_USAGE =
-  `usage: efflux linearize <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--format json|csv|text]
+  `usage: efflux linearize <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--json | --csv]
 
-State-space model dx/dt = A x + B u (C = I) about the equilibrium at the given inflows, with
-each vessel's time constant and, from a fit, standard uncertainties.
+The linear model about the equilibrium at the given inflows: how fast each level moves per
+metre of level change in each vessel (A, 1/s) and per m³/s of extra inflow (B, 1/m²), each
+vessel's time constant and, from a fit, standard uncertainties. Printed as labelled tables;
+  --json                 the model as one JSON object
+  --csv                  one row per matrix entry (matrix,row,column,value,uncertainty,interval)
+  --format json|csv|text the same choice as one option
 ` + MODEL_SOURCES;
 
 const PREDICT_USAGE = `usage: efflux predict <system.json|fit.json|FIT_ID> --from [ID=]LEVEL [--from …] [--inflow [ID=]FLOW …]
@@ -146,13 +150,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
         `no log given for ${missing.join(', ')}: add --log ID=FILE for every vessel`,
       );
     const alignment = alignLogs(logs, values.window ? parseWindow(values.window) : undefined);
-    const inflowLogs: {
-      to: string;
-      file: string;
-      unit: string;
-      samples: number;
-      warnings: string[];
-    }[] = [];
+    const inflowLogs: InflowLogUse[] = [];
     const inflows: InflowInput[] = spec.inflows.map((f) => {
       const vessel = ids.get(f.to)!;
       if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
@@ -172,6 +170,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
         file: file.fileName,
         unit: series.unit,
         samples: placed.timeS!.length,
+        meanM3S: meanFlowOverSpan(placed.timeS!, placed.flowM3S!, alignment.spanS),
         warnings: series.warnings,
       });
       return placed;
@@ -285,13 +284,22 @@ export async function runLinearize(argv: string[]): Promise<number> {
     const { values, positionals } = parseCommandLine(argv, {
       inflow: { type: 'string', multiple: true },
       format: { type: 'string' },
+      json: { type: 'boolean' },
+      csv: { type: 'boolean' },
       help: { type: 'boolean', short: 'h' },
     });
     if (values.help) {
       process.stdout.write(LINEAR_USAGE);
       return EXIT_OK;
     }
-    const format = values.format ?? 'text';
+    const asked = [
+      values.json ? 'json' : null,
+      values.csv ? 'csv' : null,
+      values.format ?? null,
+    ].filter((f): f is string => f !== null);
+    if (new Set(asked).size > 1)
+      throw new InputError(`give one output form (--json, --csv or --format); got ${asked.join(' and ')}`);
+    const format = asked[0] ?? 'text';
     if (!['json', 'csv', 'text'].includes(format))
       throw new InputError(`--format must be json, csv or text (got "${format}")`);
     const { spec, model, name, single } = readModel(positionals);

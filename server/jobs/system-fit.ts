@@ -9,7 +9,7 @@ import { alignLogs, type Alignment, type LogForSystem } from '../core/system/ali
 import { fitSystem, type SystemFitResult } from '../core/system/fit.js';
 import { systemFitJson, type InflowLogUse } from '../core/system/fit-json.js';
 import { readFlowLog } from '../core/system/flow-log.js';
-import { inflowOnFitClock } from '../core/system/inflow-log.js';
+import { inflowOnFitClock, meanFlowOverSpan } from '../core/system/inflow-log.js';
 import { buildNetwork, type InflowInput } from '../core/system/network.js';
 import { readVesselLog } from '../core/system/read-vessel-log.js';
 import { parseSystemFile, type SystemSpec } from '../core/system/schema.js';
@@ -116,6 +116,7 @@ export function systemFitAnswer(input: SystemFitInput): Record<string, unknown> 
       file: file.fileName,
       unit: series.unit,
       samples: placed.timeS!.length,
+      meanM3S: meanFlowOverSpan(placed.timeS!, placed.flowM3S!, alignment.spanS),
       warnings: series.warnings,
     });
     return placed;

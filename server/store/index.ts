@@ -3,6 +3,7 @@ import type { StoreContext } from './context.js';
 import { openDatabase, openMemoryDatabase, type Db } from './db.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
+import { JointFitRepo } from './joint-fits.js';
 import { LiveRepo } from './live.js';
 import { join } from 'node:path';
 import { migrate } from './migrate.js';
@@ -25,6 +26,8 @@ export interface Store {
   vessels: VesselRepo;
   tests: TestRepo;
   fits: FitRepo;
+  /** Joint fits of connected vessels (migration 009; asynchronous). */
+  jointFits: JointFitRepo;
   events: EventRepo;
   users: UserRepo;
   sites: SiteRepo;
@@ -97,6 +100,7 @@ export function openStore(opts: StoreOptions = {}): Store {
     vessels: new VesselRepo(c),
     tests,
     fits: new FitRepo(c, tests, sites),
+    jointFits: new JointFitRepo(c),
     events: new EventRepo(c),
     users: new UserRepo(c, sites),
     sites,

@@ -207,16 +207,20 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
   );
 };
 
-interface FileIn {
+export interface FileIn {
   bytes: Uint8Array;
   fileName: string;
 }
 
-async function readSystemUpload(request: FastifyRequest): Promise<{
+/** The multipart body of a joint fit: the files, and the text fields checked by `schema`. */
+export async function readSystemUpload<S extends z.ZodType = typeof fitFields>(
+  request: FastifyRequest,
+  schema?: S,
+): Promise<{
   system: FileIn;
   logs: Map<string, FileIn>;
   flows: Map<string, FileIn>;
-  fields: z.infer<typeof fitFields>;
+  fields: z.infer<S>;
 }> {
   if (!request.isMultipart())
     throw new HttpProblem(
@@ -264,9 +268,9 @@ async function readSystemUpload(request: FastifyRequest): Promise<{
       );
   }
   if (!system) throw refuse('system', 'required: the system file');
-  const parsed = fitFields.safeParse(text);
+  const parsed = (schema ?? fitFields).safeParse(text);
   if (!parsed.success) throw refuseFields(parsed.error.issues);
-  return { system, logs, flows, fields: parsed.data };
+  return { system, logs, flows, fields: parsed.data as z.infer<S> };
 }
 
 /** Inflows as [{to?, flow}]; a flow without `to` goes to the single vessel nothing discharges into. */
