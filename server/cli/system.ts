@@ -298,7 +298,9 @@ export async function runLinearize(argv: string[]): Promise<number> {
       values.format ?? null,
     ].filter((f): f is string => f !== null);
     if (new Set(asked).size > 1)
-      throw new InputError(`give one output form (--json, --csv or --format); got ${asked.join(' and ')}`);
+      throw new InputError(
+        `give one output form (--json, --csv or --format); got ${asked.join(' and ')}`,
+      );
     const format = asked[0] ?? 'text';
     if (!['json', 'csv', 'text'].includes(format))
       throw new InputError(`--format must be json, csv or text (got "${format}")`);

@@ -40,9 +40,14 @@ function logBlock(doc: Doc, c: JointFitReport['curves'][number], index: number):
     .font('bold')
     .fontSize(9.5)
     .fillColor('#1f2a36')
-    .text(`Figure ${index + 1}. ${c.id}: level log ${c.fileName} and the joint model`, MARGIN, doc.y, {
-      width: contentWidth(doc),
-    });
+    .text(
+      `Figure ${index + 1}. ${c.id}: level log ${c.fileName} and the joint model`,
+      MARGIN,
+      doc.y,
+      {
+        width: contentWidth(doc),
+      },
+    );
   const y0 = doc.y + 4;
   drawChart(
     doc,
@@ -172,7 +177,11 @@ export async function renderJointFitReportPdf(r: JointFitReport): Promise<Buffer
   }
   heading(doc, 'Known inflows during the test');
   if (r.inflows.length) for (const f of r.inflows) paragraph(doc, f);
-  else paragraph(doc, 'none: the vessels drained with nothing flowing in (other than from each other)');
+  else
+    paragraph(
+      doc,
+      'none: the vessels drained with nothing flowing in (other than from each other)',
+    );
 
   heading(doc, 'Settings of the fit');
   fields(doc, r.settings, 170);
@@ -197,7 +206,10 @@ export async function renderJointFitReportPdf(r: JointFitReport): Promise<Buffer
   heading(doc, 'Correlation of the fitted parameters');
   table(
     doc,
-    [{ title: 'parameter', width: 130 }, ...r.correlations.names.map((n) => ({ title: n, width: 70, align: 'right' as const }))],
+    [
+      { title: 'parameter', width: 130 },
+      ...r.correlations.names.map((n) => ({ title: n, width: 70, align: 'right' as const })),
+    ],
     r.correlations.rows,
     7,
   );

@@ -119,7 +119,12 @@ function auditView(f: StoredJointFit) {
     settings: f.settings,
     resultSha256: sha256(new TextEncoder().encode(JSON.stringify(f.result))),
     engineVersion: f.engineVersion,
-    files: f.files.map((x) => ({ role: x.role, vessel: x.vessel, fileName: x.fileName, sha256: x.sha256 })),
+    files: f.files.map((x) => ({
+      role: x.role,
+      vessel: x.vessel,
+      fileName: x.fileName,
+      sha256: x.sha256,
+    })),
     review: f.review,
   };
 }
@@ -161,7 +166,12 @@ export class JointFitRepo {
         await this.c.sql.run(
           `INSERT INTO joint_fit_bytes (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
            ON CONFLICT (sha256) DO NOTHING`,
-          [hash, f.bytes.byteLength, Buffer.from(f.bytes.buffer, f.bytes.byteOffset, f.bytes.byteLength), now],
+          [
+            hash,
+            f.bytes.byteLength,
+            Buffer.from(f.bytes.buffer, f.bytes.byteOffset, f.bytes.byteLength),
+            now,
+          ],
         );
         await this.c.sql.run(
           `INSERT INTO joint_fit_files (joint_fit_id, role, vessel, file_name, sha256)
@@ -219,9 +229,7 @@ export class JointFitRepo {
               byId: r.reviewed_by === null ? null : Number(r.reviewed_by),
               at: r.reviewed_at,
               selfReview:
-                r.status === 'approved' &&
-                r.reviewed_by !== null &&
-                r.reviewed_by === r.created_by,
+                r.status === 'approved' && r.reviewed_by !== null && r.reviewed_by === r.created_by,
             },
     };
   }
@@ -250,12 +258,7 @@ export class JointFitRepo {
       opts.sites === null ? '' : ` AND s.name IN (${opts.sites.map(() => '?').join(', ')})`;
     const rows = await this.c.sql.all<Row>(
       `${SELECT} WHERE (CAST(? AS TEXT) IS NULL OR j.system_name = ?)${siteTest} ORDER BY j.id DESC LIMIT ?`,
-      [
-        opts.systemName ?? null,
-        opts.systemName ?? null,
-        ...(opts.sites ?? []),
-        opts.limit ?? 100,
-      ],
+      [opts.systemName ?? null, opts.systemName ?? null, ...(opts.sites ?? []), opts.limit ?? 100],
     );
     return rows.map(summary);
   }
@@ -290,8 +293,7 @@ export class JointFitRepo {
       const before = await this.get(id);
       if (before.status !== 'draft')
         throw new ConflictError(`joint fit ${id} was already ${before.status}`);
-      const self =
-        decision === 'approved' && actor.id !== null && actor.id === before.createdById;
+      const self = decision === 'approved' && actor.id !== null && actor.id === before.createdById;
       if (self) {
         const allowed = await this.c.sql.value<number>(
           'SELECT self_review_allowed FROM sites WHERE name = ?',

@@ -26,7 +26,11 @@ let stored: Record<string, any>;
 const washBody = (fields: Record<string, string> = {}, withInflow = true) =>
   multipart(
     [
-      { field: 'system', name: 'wash-transfer.system.json', bytes: file('wash-transfer.system.json') },
+      {
+        field: 'system',
+        name: 'wash-transfer.system.json',
+        bytes: file('wash-transfer.system.json'),
+      },
       { field: 'log:WT4', name: 'wt4-2026-04-09.csv', bytes: file('wt4-2026-04-09.csv') },
       { field: 'log:HT5', name: 'ht5-2026-04-09.csv', bytes: file('ht5-2026-04-09.csv') },
       ...(withInflow
@@ -65,9 +69,9 @@ describe('POST /api/systems/fits', () => {
       expect(truth[id].dischargeCoefficient, id).toBeLessThan(hi);
     }
     expect(stored.drawing.map((d: { id: string }) => d.id).sort()).toEqual(['HT5', 'WT4']);
-    expect(stored.files.map((f: { role: string; vessel: string }) => `${f.role}:${f.vessel}`)).toEqual(
-      ['system:', 'level:HT5', 'level:WT4', 'inflow:WT4'],
-    );
+    expect(
+      stored.files.map((f: { role: string; vessel: string }) => `${f.role}:${f.vessel}`),
+    ).toEqual(['system:', 'level:HT5', 'level:WT4', 'inflow:WT4']);
     for (const [role, vessel, name] of [
       ['system', '', 'wash-transfer.system.json'],
       ['level', 'WT4', 'wt4-2026-04-09.csv'],
@@ -110,7 +114,11 @@ describe('POST /api/systems/fits', () => {
 
 describe('joint fits listed, reviewed and reported', () => {
   it('lists per system', async () => {
-    const all = await t.app.inject({ method: 'GET', url: '/api/systems/fits', headers: t.auth('auditor') });
+    const all = await t.app.inject({
+      method: 'GET',
+      url: '/api/systems/fits',
+      headers: t.auth('auditor'),
+    });
     expect(all.json().items.map((i: { id: number }) => i.id)).toEqual([stored.id]);
     const other = await t.app.inject({
       method: 'GET',

@@ -54,9 +54,11 @@ export function jointReportProblems(
   for (const name of INTERNAL_NAMES)
     if (all.includes(name)) problems.push(`internal name "${name}" printed`);
   pages.forEach((p, i) => {
-    const mark = expect.status === 'draft' ? 'DRAFT' : expect.status === 'rejected' ? 'REJECTED' : null;
+    const mark =
+      expect.status === 'draft' ? 'DRAFT' : expect.status === 'rejected' ? 'REJECTED' : null;
     if (mark && !p.includes(mark)) problems.push(`page ${i + 1} has no ${mark} mark`);
-    if (!mark && /\bDRAFT\b|\bREJECTED\b/.test(p)) problems.push(`page ${i + 1} of an approved report is marked`);
+    if (!mark && /\bDRAFT\b|\bREJECTED\b/.test(p))
+      problems.push(`page ${i + 1} of an approved report is marked`);
     const count = (re: RegExp) => (p.match(re) ?? []).length;
     const captions = count(/Figure \d+\./g);
     const notes = count(/Residual = reading − joint model/g);

@@ -104,7 +104,10 @@ export function parameterWords(name: string): string {
   return `${name.slice(0, dot)} ${PARAMETER_WORDS[term] ?? term.replace(/([a-z])([A-Z])/g, '$1 $2').toLowerCase()}`;
 }
 
-function vesselRows(v: Record<string, unknown>, all: Record<string, unknown>[]): [string, string][] {
+function vesselRows(
+  v: Record<string, unknown>,
+  all: Record<string, unknown>[],
+): [string, string][] {
   const shape = (v.shape ?? {}) as Record<string, number> & { kind?: string };
   const outlet = (v.outlet ?? {}) as Record<string, number | string>;
   const sensor = (v.sensor ?? {}) as Record<string, number>;
@@ -145,7 +148,10 @@ function settingRows(s: Record<string, unknown>): [string, string][] {
         : 'the whole span all logs cover',
     ],
     ['sensor zero of each vessel', s.fitDatum ? 'fitted' : 'taken from the system file'],
-    ['unknown constant inflow', s.fitInflow ? 'fitted for each vessel' : 'not fitted (taken as none)'],
+    [
+      'unknown constant inflow',
+      s.fitInflow ? 'fitted for each vessel' : 'not fitted (taken as none)',
+    ],
   ];
   if (s.unit) rows.push(['level unit (logs without one)', String(s.unit)]);
   if (s.tz) rows.push(['time zone of the logs', String(s.tz)]);
@@ -156,7 +162,8 @@ function settingRows(s: Record<string, unknown>): [string, string][] {
         s.dateOrder as 'dmy'
       ] ?? String(s.dateOrder),
     ]);
-  if (s.delimiter) rows.push(['column separator', s.delimiter === '\t' ? 'tab' : `“${String(s.delimiter)}”`]);
+  if (s.delimiter)
+    rows.push(['column separator', s.delimiter === '\t' ? 'tab' : `“${String(s.delimiter)}”`]);
   if (s.decimal) rows.push(['decimal mark', s.decimal === ',' ? 'comma' : 'point']);
   return rows;
 }
@@ -185,7 +192,10 @@ export function buildJointFitReport(
   const alignment = (diagnostics.alignment ?? {}) as { t0?: string | null; spanS?: number };
   const status = rec.status;
   const record: [string, string][] = [
-    ['joint fit', `${rec.id}, ${status === 'draft' ? 'DRAFT (not reviewed)' : status.toUpperCase()}`],
+    [
+      'joint fit',
+      `${rec.id}, ${status === 'draft' ? 'DRAFT (not reviewed)' : status.toUpperCase()}`,
+    ],
     ['site', rec.site],
     ['stored', `${dateWords(rec.createdAt)} by ${rec.createdBy ?? 'the system'}`],
     [

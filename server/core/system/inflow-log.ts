@@ -80,6 +80,7 @@ export function meanFlowOverSpan(
   // breakpoints inside the span, plus both ends; trapezoids are exact on a broken line
   const ts = [0, ...Array.from(timeS).filter((t) => t > 0 && t < spanS), spanS];
   let area = 0;
-  for (let i = 1; i < ts.length; i++) area += ((at(ts[i - 1]) + at(ts[i])) / 2) * (ts[i] - ts[i - 1]);
+  for (let i = 1; i < ts.length; i++)
+    area += ((at(ts[i - 1]) + at(ts[i])) / 2) * (ts[i] - ts[i - 1]);
   return area / spanS;
 }

@@ -66,7 +66,10 @@ export function linearModelText(lm: LinearModel): string {
     lines.push(
       ...grid(
         [corner, ...cols],
-        lm.ids.map((id, i) => [id, ...Array.from({ length: n }, (_, j) => sci(e[i * n + j].value))]),
+        lm.ids.map((id, i) => [
+          id,
+          ...Array.from({ length: n }, (_, j) => sci(e[i * n + j].value)),
+        ]),
       ),
     );
     if (e.some((x) => x.standardUncertainty !== null)) {
@@ -125,8 +128,7 @@ export function linearModelText(lm: LinearModel): string {
 function grid(header: string[], rows: string[][]): string[] {
   const widths = header.map((h, c) => Math.max(h.length, ...rows.map((r) => r[c].length)));
   const line = (cells: string[]) =>
-    '  ' +
-    cells.map((s, c) => (c === 0 ? s.padEnd(widths[c]) : s.padStart(widths[c]))).join('   ');
+    '  ' + cells.map((s, c) => (c === 0 ? s.padEnd(widths[c]) : s.padStart(widths[c]))).join('   ');
   return [line(header), '  ' + widths.map((w) => '-'.repeat(w)).join('   '), ...rows.map(line)];
 }
 

@@ -223,7 +223,8 @@ export const jointFitRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: READERS, scope: 'listed' },
       schema: {
         tags: ['reports'],
-        summary: 'The report of a stored joint fit as PDF (drafts and rejected fits marked on every page)',
+        summary:
+          'The report of a stored joint fit as PDF (drafts and rejected fits marked on every page)',
         params: idParams,
         response: {
           200: z.any().meta({ description: 'the document' }),
