@@ -13,6 +13,7 @@ import { append as appendKids, field, h, notice, table } from '../dom.js';
 import { dateTime, decimalsFor, num, plusMinus, seconds } from '../format.js';
 import type { PageContext } from '../main.js';
 import type { JointFitResult } from '../../../server/core/fit-result/schema.js';
+import { plainProblem } from '../problem-words.js';
 import { schematicVessels, systemSchematic, untangleLabels } from '../schematic.js';
 
 /** The joint fit as the service sends it: the one fit-result shape (type-only) plus the drawing. */
@@ -49,71 +50,6 @@ function loggedInflowAverages(fit: JointFitResult | null): Map<string, number> {
   return new Map(
     logs.filter((l) => typeof l.meanM3S === 'number').map((l) => [l.to, l.meanM3S as number]),
   );
-}
-
-/**
- * The service names form fields as the API does ("log:WT4", "inflow:WT4", "vessels.0.outlet");
- * the page says them as its own labels do.
- */
-export function fieldWords(field: string, vessels: { id: string; name: string }[]): string | null {
-  const named = (id: string) => {
-    const v = vessels.find((x) => x.id === id);
-    return v ? `${v.name} (${v.id})` : id;
-  };
-  let m = /^log:(.+)$/.exec(field);
-  if (m) return `Level log of ${named(m[1])}`;
-  m = /^inflow:(.+)$/.exec(field);
-  if (m) return `Inflow log into ${named(m[1])}`;
-  if (field === 'system') return 'System file';
-  if (field === 'site') return 'Site';
-  if (field === 'window') return 'Span to fit';
-  m = /^vessels\.(\d+)(?:\.(.+))?$/.exec(field);
-  if (m) {
-    const v = vessels[Number(m[1])];
-    const what = m[2]
-      ? m[2]
-          .split('.')
-          .map((w) =>
-            w
-              .replace(/([a-z])([A-Z])/g, '$1 $2')
-              .toLowerCase()
-              .replace(/ m2?$/, ''),
-          )
-          .join(', ')
-      : null;
-    return `System file, vessel ${v ? named(v.id) : Number(m[1]) + 1}${what ? `: ${what}` : ''}`;
-  }
-  m = /^inflows\.(\d+)/.exec(field);
-  if (m) return `System file, inflow ${Number(m[1]) + 1}`;
-  return null;
-}
-
-/** A refusal in the page's own words: the field as the page names it, and no API field names. */
-export function plainProblem(e: unknown, vessels: { id: string; name: string }[]): string {
-  if (!(e instanceof ApiError)) return String(e);
-  const p = e.problem ?? {};
-  const first = Array.isArray(p.errors)
-    ? (p.errors[0] as { path?: string; message?: string } | undefined)
-    : undefined;
-  const field = typeof p.field === 'string' ? p.field : (first?.path ?? null);
-  const where = [
-    typeof p.file === 'string' ? p.file : null,
-    typeof p.line === 'number' ? `line ${p.line}` : null,
-  ]
-    .filter(Boolean)
-    .join(', ');
-  const message = String(first?.message ?? p.detail ?? e.message)
-    // the service's sentence may name API fields ("send it as the file field "inflow:WT4"")
-    .replace(
-      /(?:the )?file field "((?:log|inflow):[^"]+)"/g,
-      (_m, f: string) => `the field “${fieldWords(f, vessels)}”`,
-    )
-    .replace(
-      /(?:send )?a file field "log:ID" for every vessel/g,
-      'give a level log for every vessel',
-    );
-  const label = field ? fieldWords(field, vessels) : null;
-  return [label, where].filter(Boolean).join(', ') + (label || where ? ': ' : '') + message;
 }
 
 interface Est {
@@ -846,7 +782,7 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
     ),
   );
   const pre = h('pre', { class: 'model-text', id: 'model-text' }, lm.text);
-  const copy = h('button', { type: 'button' }, 'Copy the text block');
+  const copy = h('button', { type: 'button' }, 'Copy the text');
   const copied = h('span', { class: 'hint', 'aria-live': 'polite' });
   copy.addEventListener('click', async () => {
     try {
@@ -862,7 +798,7 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
     }
   });
   out.append(
-    h('h3', {}, 'Text block for a script or a design note'),
+    h('h3', {}, 'The linear model as text (for a design note)'),
     pre,
     h('div', { class: 'actions' }, copy, download('linear-model.csv', lm.csv, 'text/csv'), copied),
   );
