@@ -305,11 +305,13 @@ export class JointFitRepo {
           );
       }
       const now = this.c.now();
-      await this.c.sql.run(
+      const { changes } = await this.c.sql.run(
         `UPDATE joint_fits SET status = ?, review_comment = ?, reviewed_by = ?, reviewed_at = ?
          WHERE id = ? AND status = 'draft'`,
         [decision, comment, actor.id, now, id],
       );
+      // another reviewer's transaction got there first (PostgreSQL reads before it locks the row)
+      if (changes !== 1) throw new ConflictError(`joint fit ${id} was reviewed meanwhile`);
       const after = await this.get(id);
       await this.c.audit.append(actor, now, {
         action: decision === 'approved' ? 'joint-fit.approve' : 'joint-fit.reject',

@@ -192,4 +192,88 @@ describe('joint fits listed, reviewed and reported', () => {
     expect(jointReportProblems(pages, { status: 'approved', figures: 2 })).toEqual([]);
     expect(pages.join('\n')).toMatch(/approved by engineer-2 \(fictional\)/);
   });
+
+  it('self-review where the site allows it: approved, marked in the record, the audit and the PDF', async () => {
+    const site = stored.site as string;
+    await t.store.sites.setSelfReview(SYSTEM_ACTOR, site, true);
+    try {
+      const again = await t.store.jointFits.create(
+        { id: stored.createdById, name: 'engineer-1' },
+        {
+          site,
+          systemName: stored.systemName,
+          settings: stored.settings,
+          result: stored.result,
+          drawing: stored.drawing,
+          notes: null,
+          files: [
+            {
+              role: 'system',
+              vessel: '',
+              fileName: 's.json',
+              bytes: file('wash-transfer.system.json'),
+            },
+          ],
+        },
+      );
+      const res = await t.app.inject({
+        method: 'POST',
+        url: `/api/systems/fits/${again.id}/review`,
+        headers: t.auth('engineer'),
+        payload: { decision: 'approve' },
+      });
+      expect(res.statusCode, res.body).toBe(200);
+      expect(res.json().review.selfReview).toBe(true);
+      const entry = t.store.audit
+        .list({ entityType: 'joint-fit', entityId: String(again.id) })
+        .find((e) => e.action === 'joint-fit.approve')!;
+      expect((entry.after as { selfReview?: boolean }).selfReview).toBe(true);
+      if (!poppler) return;
+      const pdf = await t.app.inject({
+        method: 'GET',
+        url: `/api/systems/fits/${again.id}/report.pdf`,
+        headers: t.auth('auditor'),
+      });
+      expect(pdfPages(pdf.rawPayload).join('\n')).toMatch(/SELF-REVIEW/);
+    } finally {
+      await t.store.sites.setSelfReview(SYSTEM_ACTOR, site, false);
+    }
+  });
+
+  it('a rejected fit’s PDF is marked REJECTED on every page', async () => {
+    const third = await t.store.jointFits.create(
+      { id: stored.createdById, name: 'engineer-1' },
+      {
+        site: stored.site,
+        systemName: stored.systemName,
+        settings: stored.settings,
+        result: stored.result,
+        drawing: stored.drawing,
+        notes: null,
+        files: [
+          {
+            role: 'system',
+            vessel: '',
+            fileName: 's.json',
+            bytes: file('wash-transfer.system.json'),
+          },
+        ],
+      },
+    );
+    const res = await t.app.inject({
+      method: 'POST',
+      url: `/api/systems/fits/${third.id}/review`,
+      headers: { authorization: `Bearer ${second}` },
+      payload: { decision: 'reject', comment: 'pump meter out of calibration' },
+    });
+    expect(res.statusCode, res.body).toBe(200);
+    if (!poppler) return;
+    const pdf = await t.app.inject({
+      method: 'GET',
+      url: `/api/systems/fits/${third.id}/report.pdf`,
+      headers: t.auth('auditor'),
+    });
+    const pages = pdfPages(pdf.rawPayload);
+    expect(jointReportProblems(pages, { status: 'rejected', figures: 2 })).toEqual([]);
+  });
 });
