@@ -95,7 +95,7 @@ describe('linear model about an operating point', () => {
     expect(e2 / e1).toBeLessThan(0.6);
   });
 
-  it('exports as CSV rows and a plain text block', () => {
+  it('exports as CSV rows and as labelled text tables (no matrix-literal syntax)', () => {
     const lm = linearize(model(TWO_FREE, [0.61, 0.8]), Float64Array.of(0.001, 0));
     const csv = linearModelCsv(lm).trim().split('\n');
     expect(csv[0]).toBe('matrix,row,column,value,standard_uncertainty,ci95_low,ci95_high');
