@@ -208,7 +208,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       );
     for (const f of inflowLogs)
       lines.push(
-        `  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`,
+        `  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly; average ${(f.meanM3S * 1000).toPrecision(4)} L/s`,
       );
     // the sections every fit's report shares (core/fit-result/text.ts)
     lines.push(
