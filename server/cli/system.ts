@@ -553,7 +553,7 @@ async function storedJointFitResult(id: number): Promise<unknown> {
       throw new InputError(`no joint fit ${id} in the data folder ${dataDir()}`);
     throw e;
   } finally {
-    store.close();
+    await store.close();
   }
 }
 

@@ -42,7 +42,7 @@ beforeAll(async () => {
       ...flows.map(([vessel, f]) => ({ role: 'inflow' as const, vessel, ...f })),
     ],
   });
-  store.close();
+  await store.close();
 }, 120_000);
 afterAll(() => rmSync(data, { recursive: true, force: true }));
 

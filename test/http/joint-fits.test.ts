@@ -86,7 +86,10 @@ describe('POST /api/systems/fits', () => {
     const mean = stored.result.diagnostics.inflowLogs[0].meanM3S * 1000;
     expect(mean).toBeGreaterThan(0.5);
     expect(mean).toBeLessThan(0.8);
-    const audit = t.store.audit.list({ entityType: 'joint-fit', entityId: String(stored.id) });
+    const audit = await t.store.audit.list({
+      entityType: 'joint-fit',
+      entityId: String(stored.id),
+    });
     expect(audit.map((e) => e.action)).toEqual(['joint-fit.create']);
   });
 
@@ -175,9 +178,12 @@ describe('joint fits listed, reviewed and reported', () => {
       payload: { decision: 'reject' },
     });
     expect(again.statusCode).toBe(409);
-    const audit = t.store.audit.list({ entityType: 'joint-fit', entityId: String(stored.id) });
+    const audit = await t.store.audit.list({
+      entityType: 'joint-fit',
+      entityId: String(stored.id),
+    });
     expect(audit.map((e) => e.action)).toEqual(['joint-fit.create', 'joint-fit.approve']);
-    expect(t.store.audit.verify().ok).toBe(true);
+    expect((await t.store.audit.verify()).ok).toBe(true);
     // the record itself refuses a rewrite
     expect(() =>
       t.store.db.prepare("UPDATE joint_fits SET result = '{}' WHERE id = ?").run(stored.id),
@@ -224,9 +230,9 @@ describe('joint fits listed, reviewed and reported', () => {
       });
       expect(res.statusCode, res.body).toBe(200);
       expect(res.json().review.selfReview).toBe(true);
-      const entry = t.store.audit
-        .list({ entityType: 'joint-fit', entityId: String(again.id) })
-        .find((e) => e.action === 'joint-fit.approve')!;
+      const entry = (
+        await t.store.audit.list({ entityType: 'joint-fit', entityId: String(again.id) })
+      ).find((e) => e.action === 'joint-fit.approve')!;
       expect((entry.after as { selfReview?: boolean }).selfReview).toBe(true);
       if (!poppler) return;
       const pdf = await t.app.inject({
