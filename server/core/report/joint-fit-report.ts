@@ -185,7 +185,7 @@ export function buildJointFitReport(
   }[];
   const inflows = ((system.inflows ?? []) as Record<string, unknown>[]).map((f) => {
     if ('constant' in f)
-      return `${Ls(Number(f.constant))} held constant into ${String(f.to)} during the test`;
+      return `${typeof f.constant === 'number' ? Ls(f.constant) : String(f.constant)} held constant into ${String(f.to)} during the test`;
     const used = inflowLogs.find((l) => l.to === f.to);
     return `logged by ${String(f.log)} into ${String(f.to)}${used ? `: ${used.samples} readings over the fitted span, flow taken as a straight line between readings${used.meanM3S !== undefined ? `, average ${Ls(used.meanM3S)}` : ''}` : ''}`;
   });

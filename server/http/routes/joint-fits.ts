@@ -33,8 +33,8 @@ const curve = z.object({
   id: z.string(),
   fileName: z.string(),
   timeS: z.array(z.number()),
-  levelM: z.array(z.number()),
-  fittedM: z.array(z.number()),
+  levelM: z.array(z.number().nullable()),
+  fittedM: z.array(z.number().nullable()),
 });
 
 const summary = z.object({
