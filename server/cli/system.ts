@@ -526,7 +526,7 @@ async function readModel(positionals: string[], jointFit: string | undefined) {
     );
   const name = positionals[0];
   let value: unknown;
-  if (/^\d+$/.test(name) && !existsSync(name)) value = storedFitResult(Number(name));
+  if (/^\d+$/.test(name) && !existsSync(name)) value = await storedFitResult(Number(name));
   else {
     const f = readInputFile(name, 16 * 1024 * 1024);
     value = parseJsonText(new TextDecoder().decode(f.bytes), name);
@@ -558,10 +558,10 @@ async function storedJointFitResult(id: number): Promise<unknown> {
 }
 
 /** The result JSON of fit N in the data folder. */
-function storedFitResult(id: number): unknown {
-  const store = openStore({ dataDir: dataDir() });
+async function storedFitResult(id: number): Promise<unknown> {
+  const store = await openStore({ dataDir: dataDir() });
   try {
-    return store.fits.get(id).result;
+    return (await store.fits.get(id)).result;
   } catch (e) {
     if (e instanceof NotFoundError)
       throw new InputError(
@@ -569,7 +569,7 @@ function storedFitResult(id: number): unknown {
       );
     throw e;
   } finally {
-    store.close();
+    await store.close();
   }
 }
 

@@ -185,9 +185,9 @@ describe('joint fits listed, reviewed and reported', () => {
     expect(audit.map((e) => e.action)).toEqual(['joint-fit.create', 'joint-fit.approve']);
     expect((await t.store.audit.verify()).ok).toBe(true);
     // the record itself refuses a rewrite
-    expect(() =>
-      t.store.db.prepare("UPDATE joint_fits SET result = '{}' WHERE id = ?").run(stored.id),
-    ).toThrow(/never overwritten/);
+    await expect(
+      t.store.sql.run("UPDATE joint_fits SET result = '{}' WHERE id = ?", [stored.id]),
+    ).rejects.toThrow(/never overwritten/);
     if (!poppler) return;
     const pdf = await t.app.inject({
       method: 'GET',

@@ -60,7 +60,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const report = fitReport(app.store, request.params.id, currentSoftware());
+      const report = await fitReport(app.store, request.params.id, currentSoftware());
       const pdf = await app.tasks('fit-report-pdf', report);
       return reply
         .type('application/pdf')
@@ -85,7 +85,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const report = fitReport(app.store, request.params.id, currentSoftware());
+      const report = await fitReport(app.store, request.params.id, currentSoftware());
       return reply
         .type('application/json')
         .header('x-report-id', report.reportId)
@@ -106,7 +106,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const report = outletReport(
+      const report = await outletReport(
         app.store,
         request.params.id,
         currentSoftware(),
@@ -154,7 +154,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
           );
         assertSite(request, request.body.site);
       }
-      const job = app.exports.start(request.user!.id, request.body);
+      const job = await app.exports.start(request.user!.id, request.body);
       return reply.code(202).header('location', `/api/exports/${job.id}`).send(withUrls(job));
     },
   );
