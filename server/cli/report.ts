@@ -19,13 +19,15 @@ import { currentSoftware } from '../render/software.js';
 import { openStore, type Store } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
 import { guarded, readInputFile } from './io.js';
+import { outletByName } from './names.js';
 import { parseCommandLine } from './options.js';
 import { dataDir } from './serve-config.js';
 
 const USAGE = `usage:
   efflux report fit <fitId> --out FILE [--json]            one fit's report (PDF, or JSON with --json)
-  efflux report outlet <outletId> --out FILE [--json] [--as-of TIME]
+  efflux report outlet OUTLET --out FILE [--json] [--as-of TIME]
                                                            an outlet's approved fits and trend
+                                                           (OUTLET: its id, its tag, or VESSEL/OUTLET)
   efflux report verify <file.pdf|file.json>                check a report against the records
 The database is the one in EFFLUX_DATA_DIR (default ./data), as for efflux serve.
 `;
@@ -87,11 +89,13 @@ export async function run(argv: string[]): Promise<number> {
     }
     if (sub !== 'fit' && sub !== 'outlet')
       throw new InputError(`unknown report "${sub}" (fit, outlet or verify)`);
-    const id = idArg(arg, sub);
+    if (sub === 'fit') idArg(arg, sub);
+    else if (!arg) throw new InputError('name the outlet: its id or tag');
     if (!values.out) throw new InputError('say where to write the report: --out FILE');
     const out = values.out;
     return withStore((store) =>
       notFoundAsRefusal(async () => {
+        const id = sub === 'fit' ? idArg(arg, sub) : (await outletByName(store, arg!)).outletId;
         const software = currentSoftware();
         const t0 = performance.now();
         const report =

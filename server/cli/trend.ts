@@ -14,10 +14,13 @@ import {
 } from '../jobs/trend.js';
 import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
+import { outletByName, refusalsAsInput, sitesByPart } from './names.js';
 import { dataDir } from './serve-config.js';
 
-const USAGE = `usage: efflux trend <outletId> [--json|--csv] [--as-of DATE]
-       efflux trend --fleet [--json] [--site SITE] [--status WORD[,WORD…]] [--as-of DATE]
+const USAGE = `usage: efflux trend OUTLET [--site PART] [--json|--csv] [--as-of DATE]
+       efflux trend --fleet [--json] [--site PART] [--status WORD[,WORD…]] [--as-of DATE]
+OUTLET is an outlet id, its tag, a vessel tag with one outlet (efflux trend FD-2), or VESSEL/OUTLET;
+--site matches any part of a site's name, in any case, and says which sites it matched.
 Reads the service's data folder (EFFLUX_DATA_DIR, default ./data). Status words: ${STATUS_WORDS.join(', ')}.
 `;
 
@@ -151,22 +154,26 @@ export async function run(argv: string[]): Promise<number> {
         for (const w of words ?? [])
           if (!(STATUS_WORDS as readonly string[]).includes(w))
             throw new InputError(`unknown status "${w}"`, { field: 'status' });
-        const f = await fleetStatus(
-          store,
-          { site: option(argv, 'site'), status: words as never },
-          nowMs,
-        );
+        const part = option(argv, 'site');
+        const sites =
+          part === undefined
+            ? undefined
+            : await sitesByPart(store, part, (l) =>
+                (json ? process.stderr : process.stdout).write(`${l}\n`),
+              );
+        const f = await fleetStatus(store, { sites, status: words as never }, nowMs);
         process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f));
         return 0;
       }
       const first = argv.find(
         (a, i) => !a.startsWith('--') && !['--as-of', '--site', '--status'].includes(argv[i - 1]),
       );
-      const id = Number(first);
-      if (!Number.isInteger(id) || id <= 0)
-        throw new InputError(`outlet id must be a positive whole number, not "${first ?? ''}"`, {
-          field: 'outletId',
+      if (first === undefined)
+        throw new InputError('name the outlet: its id or tag (efflux trend FD-2)', {
+          field: 'outlet',
         });
+      const id = (await refusalsAsInput(() => outletByName(store, first, option(argv, 'site'))))
+        .outletId;
       let view: TrendView;
       try {
         view = await outletTrendView(store, id, nowMs);

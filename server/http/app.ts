@@ -36,6 +36,7 @@ import { peopleRoutes } from './routes/people.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
+import { fitPeopleRoutes } from './routes/fit-people.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
@@ -44,6 +45,7 @@ import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
+import { vesselRevisionRoutes } from './routes/vessel-revisions.js';
 import { reportRoutes } from './routes/reports.js';
 import { workbenchRoutes } from './routes/workbench.js';
 import { planRoutes } from './routes/plan.js';
@@ -300,9 +302,11 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     signInPerMinute: opts.signInPerMinute ?? 10,
   });
   await app.register(vesselRoutes);
+  await app.register(vesselRevisionRoutes);
   await app.register(testRoutes);
   await app.register(pendingRoutes);
   await app.register(fitRoutes);
+  await app.register(fitPeopleRoutes);
   await app.register(eventRoutes);
   await app.register(trendRoutes);
   await app.register(auditRoutes);

@@ -1,14 +1,34 @@
 /** The outlet-history report as PDF: status, the Cd·a trend with its band and threshold, the fits. */
 import type { OutletReport } from '../core/report/index.js';
 import { reportJson } from '../core/report/index.js';
+import { dateTicks } from './chart-ticks.js';
 import { domainOf, drawChart, type Layer } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type DocIdentity } from './pdf-doc.js';
-import { contentWidth, fields, heading, paragraph, table } from './pdf-layout.js';
-import { dateText, sig, toU } from './report-format.js';
+import {
+  fields,
+  figure,
+  heading,
+  layoutRecord,
+  paragraph,
+  table,
+  type RenderOptions,
+} from './pdf-layout.js';
+import {
+  dateText,
+  dayText as day,
+  durationText,
+  metresText,
+  millimetresText,
+  numberIn,
+  sig,
+  toU,
+  valueIn,
+} from './report-format.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
-const day = (ms: number) => new Date(ms).toISOString().slice(0, 10);
+/** Cd·a is drawn in mm², the unit the tables use. */
+const MM2 = 1e6;
 
 export function outletReportIdentity(r: OutletReport): DocIdentity {
   return {
@@ -27,7 +47,10 @@ export function outletReportIdentity(r: OutletReport): DocIdentity {
   };
 }
 
-export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
+export async function renderOutletReportPdf(
+  r: OutletReport,
+  opts: RenderOptions = {},
+): Promise<Buffer> {
   const id = outletReportIdentity(r);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Outlet history report', MARGIN, doc.y);
@@ -66,15 +89,14 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       'threshold forecast',
       st.crossingMs === null
         ? 'none'
-        : `${day(st.crossingMs)} (${sig(st.daysToThreshold, 4)} days from the as-of date)`,
+        : `${day(st.crossingMs)} (in ${durationText(st.daysToThreshold)} from the as-of date)`,
     ],
     [
       'outlet',
-      `${r.outlet.type ?? 'type not stated'}, bore ${sig(r.outlet.boreM)} m ± ${sig(r.outlet.boreToleranceM, 2)} m, elevation ${sig(r.outlet.elevationM)} m`,
+      `${r.outlet.type ?? 'type not stated'}, bore ${millimetresText(r.outlet.boreM)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM)}` : ''}, centreline ${metresText(r.outlet.elevationM)} above the vessel's datum`,
     ],
   ]);
 
-  heading(doc, 'Effective area Cd·a over time');
   const layers: Layer[] = [];
   const allX: number[] = [];
   const allY: number[] = [];
@@ -84,27 +106,27 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       layers.push({
         kind: 'band',
         xs: b.map((p) => p.atMs),
-        lower: b.map((p) => p.lower),
-        upper: b.map((p) => p.upper),
+        lower: b.map((p) => p.lower * MM2),
+        upper: b.map((p) => p.upper * MM2),
         color: BLUE,
       });
       layers.push({
         kind: 'line',
         xs: b.map((p) => p.atMs),
-        ys: b.map((p) => p.value),
+        ys: b.map((p) => p.value * MM2),
         color: BLUE,
         width: 0.9,
       });
       allX.push(b[0].atMs, b[b.length - 1].atMs);
-      allY.push(...b.map((p) => p.lower), ...b.map((p) => p.upper));
+      allY.push(...b.map((p) => p.lower * MM2), ...b.map((p) => p.upper * MM2));
     }
     const xs = ep.series.map((p) => p.testedAtMs);
-    const ys = ep.series.map((p) => p.effectiveAreaM2);
+    const ys = ep.series.map((p) => p.effectiveAreaM2 * MM2);
     layers.push({
       kind: 'points',
       xs,
       ys,
-      errors: ep.series.map((p) => 2 * p.effectiveAreaU),
+      errors: ep.series.map((p) => 2 * p.effectiveAreaU * MM2),
       color: '#1f2a36',
       radius: 2,
     });
@@ -114,14 +136,14 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       const x1 = b.length ? b[b.length - 1].atMs : xs[xs.length - 1];
       layers.push({
         kind: 'hline',
-        y: ep.thresholdM2,
+        y: ep.thresholdM2 * MM2,
         x0: ep.series[0]?.testedAtMs ?? ep.startMs,
         x1,
         color: RED,
         dash: 3,
-        label: `action threshold ${sig(ep.thresholdM2, 4)} m²`,
+        label: `action threshold ${numberIn(ep.thresholdM2, 'm²', 4)} mm²`,
       });
-      allY.push(ep.thresholdM2);
+      allY.push(ep.thresholdM2 * MM2);
     }
     if (ep.startedBy)
       layers.push({
@@ -133,35 +155,26 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       });
   }
   const xd = domainOf(allX);
-  const ticks = [0, 0.25, 0.5, 0.75, 1]
-    .map((f) => xd[0] + f * (xd[1] - xd[0]))
-    .map((v) => ({ value: v, label: day(v) }));
-  const y0 = doc.y + 4;
-  drawChart(
-    doc,
-    { x: MARGIN + 56, y: y0, width: contentWidth(doc) - 60, height: 170 },
-    {
-      xDomain: xd,
-      yDomain: domainOf(allY),
-      xLabel: 'date of the drain test',
-      yLabel: 'Cd·a, m²',
-      xTicks: ticks,
-      yFormat: (v) => v.toExponential(3),
-      layers,
-      legend: [
-        { label: 'approved fits ±2u', color: '#1f2a36' },
-        { label: 'trend line, 95 % band', color: BLUE },
-        { label: 'action threshold', color: RED },
-      ],
-    },
-  );
-  doc.y = y0 + 196;
-  doc.x = MARGIN;
-  paragraph(
-    doc,
-    'Bars: ±2 standard uncertainties (k = 2). Band: 95 % interval of the weighted trend line of the epoch (weights from each fit’s uncertainty). A maintenance event starts a new epoch with a new baseline.',
-    { size: 7.5, muted: true },
-  );
+  figure(doc, {
+    title: 'Figure 1. Effective area Cd·a over time',
+    caption:
+      'Points: approved fits with bars of ±2 standard uncertainties (k = 2). Band: 95 % interval of the weighted trend line of the epoch (weights from each fit’s uncertainty). Dashed red: the action threshold. A maintenance event (dashed grey) starts a new epoch with a new baseline.',
+    height: 170,
+    draw: (frame) =>
+      drawChart(doc, frame, {
+        xDomain: xd,
+        yDomain: domainOf(allY),
+        xLabel: 'date of the drain test',
+        yLabel: 'Cd·a, mm²',
+        xTicks: dateTicks(xd[0], xd[1], 7),
+        layers,
+        legend: [
+          { label: 'approved fits ±2u', color: '#1f2a36' },
+          { label: 'trend line, 95 % band', color: BLUE },
+          { label: 'action threshold', color: RED },
+        ],
+      }),
+  });
 
   heading(doc, 'Approved fits');
   table(
@@ -172,7 +185,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       { title: 'Cd', width: 55, align: 'right' },
       { title: 'u(Cd)', width: 45, align: 'right' },
       { title: 'U(Cd), k', width: 65, align: 'right' },
-      { title: 'Cd·a, m²', width: 70, align: 'right' },
+      { title: 'Cd·a, mm²', width: 70, align: 'right' },
       { title: 'approved', width: 90 },
       { title: 'raw file SHA-256 (first 16)', width: 95, mono: true },
     ],
@@ -182,7 +195,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       toU(f.dischargeCoefficient, f.dischargeCoefficientU),
       sig(f.dischargeCoefficientU, 2),
       `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`,
-      toU(f.effectiveAreaM2, f.effectiveAreaU),
+      valueIn(f.effectiveAreaM2, f.effectiveAreaU, 'm²'),
       `${f.approvedBy ?? '—'}${f.selfReview ? ' (self-review)' : ''}, ${dateText(f.approvedAt).slice(0, 10)}`,
       f.logSha256.slice(0, 16),
     ]),
@@ -195,7 +208,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       { title: 'started by', width: 120 },
       { title: 'fits', width: 35, align: 'right' },
       { title: 'slope, %/year', width: 90, align: 'right' },
-      { title: 'threshold, m²', width: 80, align: 'right' },
+      { title: 'threshold, mm²', width: 80, align: 'right' },
       { title: 'forecast', width: 140 },
     ],
     r.trend.epochs.map((ep) => [
@@ -203,7 +216,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       ep.startedBy ? `${ep.startedBy.kind} ${day(ep.startedBy.atMs)}` : 'first tests',
       String(ep.series.length),
       ep.area ? `${sig(ep.area.slopePctPerYear, 3)} ± ${sig(ep.area.slopePctPerYearU, 2)}` : '—',
-      sig(ep.thresholdM2, 4),
+      numberIn(ep.thresholdM2, 'm²', 4),
       ep.forecast ? ep.forecast.reason : '—',
     ]),
   );
@@ -230,5 +243,6 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
     'Each fit has its own report (efflux report fit <fitId>); check this document against the records with efflux report verify <this file>.',
     { size: 7.5, muted: true },
   );
+  opts.layout?.push(...layoutRecord(doc));
   return finishReportDoc(doc, id);
 }

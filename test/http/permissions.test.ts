@@ -31,6 +31,9 @@ const TABLE: Record<string, Rule> = {
   'POST /api/vessels/:id/tests': TECH,
   'GET /api/vessels/:id/tests': ALL,
   'GET /api/vessels/:id/fits': ALL,
+  'GET /api/vessels/:id/revisions': ALL,
+  'GET /api/vessels/:id/revisions/:revision': ALL,
+  'GET /api/fits/:id/vessel-revision': ALL,
   'POST /api/vessels/:id/events': ENG,
   'GET /api/vessels/:id/events': ENG_AUD,
   'GET /api/tests/:id': ALL,
@@ -41,6 +44,7 @@ const TABLE: Record<string, Rule> = {
   'GET /api/fits/:id': ALL,
   'POST /api/fits/:id/refit': TECH,
   'POST /api/fits/:id/review': ENG,
+  'GET /api/fits/:id/people': ALL,
   'GET /api/outlets/:id/trend': ALL,
   'GET /api/outlets/:id/history.csv': ALL,
   'GET /api/outlets/:id/status-changes': ALL,
@@ -101,6 +105,9 @@ const SCOPE: Record<string, SiteScope> = {
   'POST /api/vessels/:id/tests': 'vessel',
   'GET /api/vessels/:id/tests': 'vessel',
   'GET /api/vessels/:id/fits': 'vessel',
+  'GET /api/vessels/:id/revisions': 'vessel',
+  'GET /api/vessels/:id/revisions/:revision': 'vessel',
+  'GET /api/fits/:id/vessel-revision': 'fit',
   'POST /api/vessels/:id/events': 'vessel',
   'GET /api/vessels/:id/events': 'vessel',
   'GET /api/tests/:id': 'test',
@@ -111,6 +118,7 @@ const SCOPE: Record<string, SiteScope> = {
   'GET /api/fits/:id': 'fit',
   'POST /api/fits/:id/refit': 'fit',
   'POST /api/fits/:id/review': 'fit',
+  'GET /api/fits/:id/people': 'fit',
   'GET /api/outlets/:id/trend': 'outlet',
   'GET /api/outlets/:id/history.csv': 'outlet',
   'GET /api/outlets/:id/status-changes': 'outlet',
@@ -194,7 +202,11 @@ function pathFor(url: string, r: Records, extra: { person: number; token: number
           : url.startsWith('/api/tokens')
             ? extra.token
             : r.vessel;
-  return url.replace(':id', String(id)).replace(':name', 'main').replace('*', 'index.css');
+  return url
+    .replace(':id', String(id))
+    .replace(':name', 'main')
+    .replace(':revision', '1')
+    .replace('*', 'index.css');
 }
 
 beforeAll(async () => {

@@ -39,6 +39,22 @@ const MINUTE_STEPS = [
   604800,
 ];
 
+/** Tick labels with as many decimals as the step between ticks needs (no two alike). */
+const stepDecimals = (_u: uPlot, ticks: number[]) => {
+  const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : 1;
+  // the fewest decimals that write the step exactly (0.0005 → 4, 2.5 → 1)
+  let d = 0;
+  while (d < 8 && Math.abs(step * 10 ** d - Math.round(step * 10 ** d)) > 1e-6 * step * 10 ** d)
+    d++;
+  return ticks.map((t) => t.toFixed(d));
+};
+
+/** The hover legend's x entry on a minute axis: the time in minutes, as the axis reads. */
+const MINUTE_LEGEND: uPlot.Series = {
+  label: 'time (min)',
+  value: (_u, v) => (v === null ? '—' : `${(v / 60).toFixed(2)} min`),
+};
+
 /** Follow the container's width (the page may be resized). */
 function fit(u: uPlot, el: HTMLElement, height: number): void {
   const ro = new ResizeObserver(() => {
@@ -82,7 +98,7 @@ export function logChart(
       axis('level above the sensor zero (m)'),
     ],
     series: [
-      { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+      MINUTE_LEGEND,
       {
         label: 'level (m)',
         stroke: COLOURS.level,
@@ -211,24 +227,31 @@ export function fitChart(
         axis('level above the sensor zero (m)'),
       ],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
-        {
-          label: 'readings (m)',
-          stroke: COLOURS.level,
-          width: 0,
-          points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level },
-          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
-        },
+        MINUTE_LEGEND,
+        // the curve first: uPlot draws in series order, so the readings land on top of it
+        // a wide curve under small, half-clear dots: the curve shows through where they crowd
         {
           label: 'fitted drain curve (m)',
           stroke: COLOURS.fitted,
-          width: 2.5,
+          width: 5,
           points: { show: false },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
+        },
+        {
+          label: 'readings (m)',
+          stroke: 'rgba(47, 95, 138, 0.55)',
+          width: 0,
+          points: {
+            show: true,
+            size: 2.5,
+            stroke: 'rgba(47, 95, 138, 0.55)',
+            fill: 'rgba(47, 95, 138, 0.55)',
+          },
           value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
         },
       ],
     },
-    [x, w.observedM, w.fittedM] as uPlot.AlignedData,
+    [x, w.fittedM, w.observedM] as uPlot.AlignedData,
     el,
   );
   fit(u, el, 320);
@@ -254,7 +277,7 @@ export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | nu
       ],
       bands: [{ series: [2, 3], fill: COLOURS.band }],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        MINUTE_LEGEND,
         {
           label: 'residual (mm)',
           stroke: COLOURS.residual,
@@ -358,7 +381,7 @@ export function headBandChart(
       },
       axes: [
         axis('head over the outlet, middle of the band (m)'),
-        axis('discharge coefficient Cd (–)'),
+        axis('discharge coefficient Cd (–)', { values: stepDecimals }),
       ],
       series: [
         { label: 'head (m)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) },

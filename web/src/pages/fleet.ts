@@ -83,16 +83,17 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
   );
   const count = h('p', { class: 'count', 'aria-live': 'polite' });
   const body = h('tbody');
-  const head = [
-    'Vessel',
-    'Site',
-    'Shape',
-    'Outlet',
-    'Latest Cd ± expanded uncertainty (k)',
-    'Fit',
-    'Last test',
-    'Tests',
-    ...(anyDrift ? ['Drift status'] : []),
+  // secondary columns (class "secondary") give way below 1000 px: the table reflows, never scrolls sideways
+  const head: [string, boolean][] = [
+    ['Vessel', false],
+    ['Site', true],
+    ['Shape', true],
+    ['Outlet', false],
+    ['Latest Cd ± expanded uncertainty (k)', false],
+    ['Fit', false],
+    ['Last test', false],
+    ['Tests', true],
+    ...(anyDrift ? ([['Drift status', false]] as [string, boolean][]) : []),
   ];
   const tableEl = h(
     'table',
@@ -104,7 +105,9 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
       h(
         'tr',
         {},
-        head.map((t) => h('th', { scope: 'col' }, t)),
+        head.map(([t, secondary]) =>
+          h('th', { scope: 'col', class: secondary ? 'secondary' : '' }, t),
+        ),
       ),
     ),
     body,
@@ -134,10 +137,10 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
           'tr',
           {},
           h('th', { scope: 'row' }, h('a', { href: `#/vessels/${r.vessel.id}` }, r.vessel.name)),
-          h('td', {}, r.vessel.site),
+          h('td', { class: 'secondary' }, r.vessel.site),
           h(
             'td',
-            {},
+            { class: 'secondary' },
             shapeName(String((r.vessel.spec.shape as { kind?: string } | undefined)?.kind ?? '')),
           ),
           h(
@@ -151,7 +154,13 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
             'td',
             { class: 'num' },
             cd
-              ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN))}${k ? ` (k = ${k.toFixed(2)})` : ''}`
+              ? [
+                  plusMinus(
+                    cd.value,
+                    cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN),
+                  ),
+                  k ? h('span', { class: 'k' }, ` (k = ${k.toFixed(2)})`) : '',
+                ]
               : '—',
           ),
           h(
@@ -168,8 +177,8 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
                 )
               : '—',
           ),
-          h('td', {}, r.latest ? date(r.latest.at) : '—'),
-          h('td', { class: 'num' }, String(r.tests)),
+          h('td', {}, r.latest ? h('time', { datetime: r.latest.at }, date(r.latest.at)) : '—'),
+          h('td', { class: 'num secondary' }, String(r.tests)),
           ...(anyDrift
             ? [
                 h(

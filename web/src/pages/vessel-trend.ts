@@ -1,7 +1,7 @@
 /** The vessel page's trend of approved tests per outlet, and the maintenance record with its entry form. */
 import { api, ApiError, type MaintenanceEvent, type Outlet } from '../api.js';
 import { field, h, notice, select, table } from '../dom.js';
-import { date, num, plusMinus } from '../format.js';
+import { date, duration, num, plusMinus } from '../format.js';
 import { trendChart, type FullTrend, type TrendQuantity } from '../trend-chart.js';
 
 const STATUS_CLASS: Record<string, string> = {
@@ -27,7 +27,7 @@ function forecastWords(t: FullTrend): string {
   if (fc.status === 'forecast' && fc.crossingMs) {
     const lo = fc.lowerMs ? date(new Date(fc.lowerMs).toISOString()) : 'open';
     const hi = fc.upperMs ? date(new Date(fc.upperMs).toISOString()) : 'not bounded';
-    return `Forecast: the action threshold is reached about ${date(new Date(fc.crossingMs).toISOString())} (95 % interval ${lo} to ${hi}${fc.daysFromNow !== null ? `; in about ${Math.round(fc.daysFromNow)} days` : ''}).`;
+    return `Forecast: the action threshold is reached about ${date(new Date(fc.crossingMs).toISOString())} (95 % interval ${lo} to ${hi}${fc.daysFromNow !== null ? `; in about ${duration(fc.daysFromNow)}` : ''}).`;
   }
   return `Forecast: ${fc.reason.replace(/\.?$/, '.')}`;
 }
