@@ -40,6 +40,7 @@ import { fitPeopleRoutes } from './routes/fit-people.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
+import { jointFitRoutes } from './routes/joint-fits.js';
 import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
@@ -313,6 +314,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(reportRoutes);
   await app.register(workbenchRoutes);
   await app.register(systemRoutes);
+  await app.register(jointFitRoutes);
   await app.register(planRoutes);
   await app.register(liveRoutes, {
     limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT,

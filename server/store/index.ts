@@ -4,6 +4,7 @@ import { openDatabase, openMemoryDatabase } from './db.js';
 import type { StoreEngine } from './engine.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
+import { JointFitRepo } from './joint-fits.js';
 import { LiveRepo } from './live.js';
 import { NameRepo } from './names.js';
 import { join } from 'node:path';
@@ -31,6 +32,8 @@ export interface Store {
   vessels: VesselRepo;
   tests: TestRepo;
   fits: FitRepo;
+  /** Joint fits of connected vessels (migration 009; asynchronous). */
+  jointFits: JointFitRepo;
   events: EventRepo;
   users: UserRepo;
   sites: SiteRepo;
@@ -126,6 +129,7 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     vessels: new VesselRepo(c),
     tests,
     fits: new FitRepo(c, tests, sites),
+    jointFits: new JointFitRepo(c),
     events: new EventRepo(c),
     users: new UserRepo(c, sites),
     sites,
