@@ -21,7 +21,7 @@ import { NotFoundError } from '../store/errors.js';
 import { guarded, readInputFile } from './io.js';
 import { outletByName } from './names.js';
 import { parseCommandLine } from './options.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = `usage:
   efflux report fit <fitId> --out FILE [--json]            one fit's report (PDF, or JSON with --json)
@@ -45,7 +45,7 @@ function idArg(s: string | undefined, what: string): number {
 }
 
 async function withStore<T>(body: (store: Store) => Promise<T>): Promise<T> {
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   return body(store).finally(() => store.close());
 }
 

@@ -30,7 +30,7 @@ import {
 import { requireOrificeLaw, singleVesselModel } from '../core/budget/single-vessel.js';
 import { openStore } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
-import { dataDir } from './serve-config.js';
+import { dataDir, storeLocation } from './serve-config.js';
 import { existsSync } from 'node:fs';
 import { EXIT_OK, guarded, readInputFile } from './io.js';
 import { parseCommandLine } from './options.js';
@@ -559,7 +559,7 @@ async function storedJointFitResult(id: number): Promise<unknown> {
 
 /** The result JSON of fit N in the data folder. */
 async function storedFitResult(id: number): Promise<unknown> {
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     return (await store.fits.get(id)).result;
   } catch (e) {

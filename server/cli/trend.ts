@@ -15,7 +15,7 @@ import {
 import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
 import { outletByName, refusalsAsInput, sitesByPart } from './names.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = `usage: efflux trend OUTLET [--site PART] [--json|--csv] [--as-of DATE]
        efflux trend --fleet [--json] [--site PART] [--status WORD[,WORD…]] [--as-of DATE]
@@ -149,7 +149,7 @@ export async function run(argv: string[]): Promise<number> {
     const csv = argv.includes('--csv');
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
     const nowMs = asOfMs(argv);
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       if (argv.includes('--fleet')) {
         if (csv) throw new InputError("--csv is for one outlet's history", { field: 'csv' });

@@ -13,7 +13,7 @@ import type { Vessel } from '../store/vessels.js';
 import { guarded, readInputFile } from './io.js';
 import { outletByName, refusalsAsInput, sitesByPart, vesselByName } from './names.js';
 import { parseCommandLine } from './options.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const VESSEL_USAGE = `usage:
   efflux vessel add FILE                       store a vessel file (revision 1)
@@ -80,7 +80,7 @@ function summary(v: Vessel): string[] {
 }
 
 async function withStore<T>(values: { data?: string }, body: (s: Store) => Promise<T>): Promise<T> {
-  const store = await openStore({ dataDir: dataDir(process.env, { flag: values.data }) });
+  const store = await openStore(storeLocation(process.env, { flag: values.data }));
   try {
     return await refusalsAsInput(() => body(store));
   } finally {

@@ -11,6 +11,8 @@ import { join } from 'node:path';
 import { databasePath } from './maintenance.js';
 import { migrate } from './migrate.js';
 import { ForeignWrites } from './read-cache.js';
+import { redactDatabaseUrl } from './database-url.js';
+import { type AnalysisClaims, LocalClaims, PostgresClaims } from './claims.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
 import { ScheduleRepo } from './schedule.js';
@@ -48,6 +50,8 @@ export interface Store {
   names: NameRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
+  /** Which instance analyses a pending test (claims.ts). */
+  claims: AnalysisClaims;
   close(): Promise<void>;
 }
 
@@ -56,6 +60,10 @@ export interface StoreOptions {
   dataDir?: string;
   /** postgres://… : the PostgreSQL engine instead of SQLite (EFFLUX_DATABASE_URL). */
   databaseUrl?: string;
+  /** PostgreSQL: connections in the pool (default 10). */
+  poolSize?: number;
+  /** PostgreSQL: an idle pooled connection failed (told, never thrown). */
+  onDatabaseError?: (e: Error) => void;
   /** ISO-8601 clock; injected by tests. */
   now?: () => string;
   migrationsDir?: string;
@@ -73,6 +81,7 @@ interface OpenedEngine {
   sql: Sql;
   engine: StoreEngine;
   foreign: ForeignWrites;
+  claims: AnalysisClaims;
 }
 
 /** SQLite (better-sqlite3): a file in the data folder, or memory; migrated before use. */
@@ -102,21 +111,51 @@ async function openSqlite(opts: StoreOptions, now: () => string): Promise<Opened
     sql,
     engine: { kind: 'sqlite', path: dataDir ? databasePath(dataDir) : null, dataDir },
     foreign: new ForeignWrites(() => dataVersion.get() as number),
+    claims: new LocalClaims(),
+  };
+}
+
+/**
+ * PostgreSQL (node-postgres, loaded only when asked for): a pool on the database, migrated from
+ * migrations/postgres/ (instances starting together take turns). Another instance's commits are
+ * seen through write_counter (migration 001), read before each cached answer is served.
+ */
+async function openPostgres(url: string, opts: StoreOptions): Promise<OpenedEngine> {
+  const { PostgresSql } = await import('./postgres-sql.js');
+  const { migratePostgres } = await import('./postgres-migrate.js');
+  const sql = new PostgresSql({
+    connectionString: url,
+    max: opts.poolSize,
+    onIdleError: opts.onDatabaseError,
+  });
+  try {
+    // a migrations folder given for SQLite (tests) holds PostgreSQL's files in postgres/
+    await migratePostgres(
+      sql,
+      opts.migrationsDir ? join(opts.migrationsDir, 'postgres/') : undefined,
+    );
+  } catch (e) {
+    await sql.close();
+    throw e;
+  }
+  return {
+    sql,
+    engine: { kind: 'postgres', url: redactDatabaseUrl(url) },
+    foreign: new ForeignWrites(async () =>
+      Number(await sql.value('SELECT n FROM write_counter WHERE id = 1')),
+    ),
+    claims: new PostgresClaims(() => sql.dedicatedClient()),
   };
 }
 
 /** Opens the database, brings its schema up to date and builds the repositories on it. */
 export async function openStore(opts: StoreOptions = {}): Promise<Store> {
   const now = opts.now ?? (() => new Date().toISOString());
-  if (opts.databaseUrl) {
-    // The PostgreSQL engine plugs in here (migrations from migrations/postgres/), returning an
-    // OpenedEngine like openSqlite's; until then this build refuses the setting plainly.
-    throw new Error(
-      'this build has no PostgreSQL engine: unset EFFLUX_DATABASE_URL to use the data folder',
-    );
-  }
-  const { sql, engine, foreign } = await openSqlite(opts, now);
-  const reserve = opts.dataDir ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
+  const { sql, engine, foreign, claims } = opts.databaseUrl
+    ? await openPostgres(opts.databaseUrl, opts)
+    : await openSqlite(opts, now);
+  const reserve =
+    opts.dataDir && !opts.databaseUrl ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
   reserve?.ensure(); // false on a full disk: made again after the next compensating step
   const audit = new AuditLog(sql);
   const c: StoreContext = { sql, audit, now, foreign };
@@ -140,7 +179,11 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     vesselRevisions: new VesselRevisionRepo(c),
     names: new NameRepo(c),
     reserve,
-    close: () => sql.close(),
+    claims,
+    close: async () => {
+      await claims.close();
+      await sql.close();
+    },
   };
 }
 

@@ -317,7 +317,7 @@ describe('permission table', () => {
       }
     }
     expect(checked.length).toBe(t.app.routeList.length * 5);
-  });
+  }, 180_000); // every route for 5 callers (hundreds of requests; on PostgreSQL each a few round trips)
 
   it('each route declares exactly the site scope of its row', () => {
     const missing = t.app.routeList
