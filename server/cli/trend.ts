@@ -78,6 +78,7 @@ function trendText(v: TrendView): string {
     `outlet ${v.outlet.id} "${v.outlet.key}" of ${v.outlet.vesselName} (${v.outlet.site})${v.outlet.retired ? ', retired' : ''}, as of ${day(v.nowMs)}`,
     `status: ${s.status} — ${s.reason}`,
     `threshold: ${v.threshold.pct} % (${v.threshold.source}); days to threshold: ${days(s.daysToThreshold)}`,
+    `next test: ${v.schedule.reason}`,
   ];
   for (const e of v.epochs) {
     out.push(
@@ -95,6 +96,11 @@ function trendText(v: TrendView): string {
       out.push(
         `  Cd·a line: ${e.area.slopePctPerYear.toFixed(2)} ± ${e.area.slopePctPerYearU.toFixed(2)} %/year (χ²/dof ${e.area.reducedChi2.toFixed(2)})`,
       );
+    for (const [k, g] of e.segments.entries())
+      if (g.startedBy === 'step')
+        out.push(
+          `  after the step (segment ${k + 1}, ${g.fitIds.length} test(s)): ${g.area ? `${g.area.slopePctPerYear.toFixed(2)} ± ${g.area.slopePctPerYearU.toFixed(2)} %/year` : 'too few tests for a line'}`,
+        );
     if (e.forecast) out.push(`  forecast: ${e.forecast.reason}`);
     if (e.step?.flagged) out.push(`  step: ${e.step.reason}`);
   }

@@ -30,6 +30,7 @@ Options: --data DIR (else EFFLUX_DATA_DIR, else ./data). A vessel file is JSON i
 const OUTLET_USAGE = `usage:
   efflux outlet threshold OUTLET FACTOR|default   the action threshold: the baseline Cd·a times
                                                   FACTOR (below 1 fouling, above 1 erosion)
+  efflux outlet interval OUTLET DAYS|site          days between its drain tests (see efflux due)
 OUTLET is an outlet id, its tag (as in the vessel file), a vessel tag with one outlet, or
 VESSEL/OUTLET; --site PART narrows the search. Options: --data DIR.
 `;

@@ -40,9 +40,11 @@ import { fitPeopleRoutes } from './routes/fit-people.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
+import { jointFitRoutes } from './routes/joint-fits.js';
 import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
+import { scheduleRoutes } from './routes/schedule.js';
 import { vesselRoutes } from './routes/vessels.js';
 import { vesselRevisionRoutes } from './routes/vessel-revisions.js';
 import { reportRoutes } from './routes/reports.js';
@@ -312,12 +314,14 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(reportRoutes);
   await app.register(workbenchRoutes);
   await app.register(systemRoutes);
+  await app.register(jointFitRoutes);
   await app.register(planRoutes);
   await app.register(liveRoutes, {
     limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT,
     refitMs: opts.liveRefitMs,
   });
   await app.register(peopleRoutes);
+  await app.register(scheduleRoutes);
   app.get(
     '/api/openapi.json',
     {

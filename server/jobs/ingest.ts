@@ -95,13 +95,14 @@ export async function uploadDrainTest(
   const testedAt = input.testedAt
     ? checkStatedTestDate(input.testedAt, input.nowMs ?? Date.now())
     : null;
+  const settings = await withSiteZone(store, vessel.id, input.settings);
   const t0 = performance.now();
   const test = await store.tests.createPending(actor, {
     vesselId: vessel.id,
     outletId: outlet?.id ?? null,
     log: input.log,
     baro: input.baro,
-    settings: input.settings as Record<string, unknown>,
+    settings: settings as Record<string, unknown>,
     operator: input.operator,
     loggerId: input.loggerId,
     testedAt,
@@ -134,6 +135,24 @@ export async function uploadDrainTest(
   const answer = { test: await store.tests.get(test.id), fit };
   timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
   return answer;
+}
+
+/**
+ * A log's local times (no offset) are read in the zone the person states, else in the vessel's
+ * site's zone (migration 008; 'UTC' unless the site sets one). The zone is written into the
+ * stored settings, so a later change of the site's zone never re-reads an old test differently.
+ */
+async function withSiteZone(
+  store: Store,
+  vesselId: number,
+  settings: AnalysisSettings,
+): Promise<AnalysisSettings> {
+  if (settings.tz !== undefined) return settings;
+  const site = await store.schedule.siteOfVessel(vesselId);
+  // a site at UTC reads as before (no zone): the reader then still refuses a clock change
+  // in a local-time log with a message asking for the zone
+  if (site.timeZone === 'UTC') return settings;
+  return { ...settings, tz: site.timeZone, tzSource: 'site' };
 }
 
 /** A retry with a key already used: the first upload's test and first fit, nothing stored. */
@@ -325,7 +344,8 @@ export async function refit(
   const vessel = await store.vessels.get(test.vesselId);
   const outlet =
     test.outletId === null ? null : (vessel.outlets.find((o) => o.id === test.outletId) ?? null);
-  const settings = { ...(old.settings as AnalysisSettings), ...changes };
+  const settings: AnalysisSettings = { ...(old.settings as AnalysisSettings), ...changes };
+  if (changes.tz !== undefined && changes.tzSource === undefined) delete settings.tzSource; // stated now
   const vesselSpec = vesselForAnalysis(vessel, outlet);
   const outcome = await analyze({
     log: { bytes: await store.tests.rawBytes(test.sha256), fileName: test.fileName },

@@ -22,7 +22,7 @@ export type Doc = PDFKit.PDFDocument;
 export interface DocIdentity {
   title: string;
   subject: string;
-  kind: 'fit' | 'outlet';
+  kind: 'fit' | 'outlet' | 'joint-fit';
   reportId: string;
   contentSha256: string;
   /** ISO time: the document's CreationDate and ModDate. */

@@ -4,6 +4,7 @@ import { openDatabase, openMemoryDatabase } from './db.js';
 import type { StoreEngine } from './engine.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
+import { JointFitRepo } from './joint-fits.js';
 import { LiveRepo } from './live.js';
 import { NameRepo } from './names.js';
 import { join } from 'node:path';
@@ -14,6 +15,7 @@ import { redactDatabaseUrl } from './database-url.js';
 import { type AnalysisClaims, LocalClaims, PostgresClaims } from './claims.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
+import { ScheduleRepo } from './schedule.js';
 import { SiteRepo } from './sites.js';
 import type { Sql } from './sql.js';
 import { SqliteSql } from './sqlite-sql.js';
@@ -32,9 +34,13 @@ export interface Store {
   vessels: VesselRepo;
   tests: TestRepo;
   fits: FitRepo;
+  /** Joint fits of connected vessels (migration 009; asynchronous). */
+  jointFits: JointFitRepo;
   events: EventRepo;
   users: UserRepo;
   sites: SiteRepo;
+  /** Sites' clocks and test intervals, outlets' own intervals (async). */
+  schedule: ScheduleRepo;
   trends: TrendRepo;
   live: LiveRepo;
   meta: ServiceMetaRepo;
@@ -162,9 +168,11 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     vessels: new VesselRepo(c),
     tests,
     fits: new FitRepo(c, tests, sites),
+    jointFits: new JointFitRepo(c),
     events: new EventRepo(c),
     users: new UserRepo(c, sites),
     sites,
+    schedule: new ScheduleRepo(c),
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),

@@ -32,6 +32,56 @@ const axis = (label: string, extra: Partial<uPlot.Axis> = {}): uPlot.Axis => ({
   ...extra,
 });
 
+/**
+ * Date axes in ISO 8601, UTC (the rest of the workbench writes dates so): ticks are placed on UTC
+ * day and month boundaries (tzDate) and labelled YYYY-MM-DD, or YYYY-MM-DD hh:mm under a day.
+ */
+export const isoDateTicks = (
+  _u: uPlot,
+  splits: number[],
+  _axis: number,
+  _space: number,
+  incr: number,
+): string[] =>
+  splits.map((s) => {
+    const d = new Date(s * 1000).toISOString();
+    return incr < 86400 ? d.slice(0, 16).replace('T', ' ') : d.slice(0, 10);
+  });
+/** Least pixels between date ticks, so 10-character ISO dates never overlap. */
+export const ISO_DATE_SPACE = 96;
+export const utcDate = (ts: number) => uPlot.tzDate(new Date(ts * 1000), 'Etc/UTC');
+/** A hover legend's date: ISO, UTC. */
+export const isoDateValue = (_u: uPlot, v: number | null) =>
+  v === null ? '—' : new Date(v * 1000).toISOString().slice(0, 10);
+
+/** A dashed vertical "today" line with its date, on an overlay's canvas (x in seconds). */
+export function drawToday(u: uPlot, nowS: number): void {
+  const { left, top, width, height } = u.bbox;
+  const x = u.valToPos(nowS, 'x', true);
+  if (!(x >= left && x <= left + width)) return;
+  const ctx = u.ctx;
+  const dpr = devicePixelRatio;
+  ctx.save();
+  ctx.strokeStyle = COLOURS.axis;
+  ctx.lineWidth = 1 * dpr;
+  ctx.setLineDash([2 * dpr, 2 * dpr]);
+  ctx.beginPath();
+  ctx.moveTo(x, top);
+  ctx.lineTo(x, top + height);
+  ctx.stroke();
+  ctx.setLineDash([]);
+  ctx.fillStyle = COLOURS.axis;
+  ctx.font = `${11 * dpr}px system-ui, sans-serif`;
+  const label = `today ${new Date(nowS * 1000).toISOString().slice(0, 10)}`;
+  const tw = ctx.measureText(label).width;
+  ctx.fillText(
+    label,
+    x + 4 * dpr + tw > left + width ? x - 4 * dpr - tw : x + 4 * dpr,
+    top + 28 * dpr,
+  );
+  ctx.restore();
+}
+
 const minutes = (_u: uPlot, ticks: number[]) => ticks.map((t) => `${+(t / 60).toFixed(2)}`);
 /** Tick steps in seconds that read as whole minutes (or round fractions of one) on a minute axis. */
 const MINUTE_STEPS = [
@@ -437,6 +487,9 @@ export function historyChart(
     Math.min(x[0], ...events.map((e) => e.atS)) - span * 0.08,
     Math.max(x[x.length - 1], ...events.map((e) => e.atS)) + span * 0.08,
   ];
+  // today is shown when it lies within a fifth of the span past the last test (else it squeezes the tests)
+  const nowS = Date.now() / 1000;
+  if (nowS > xr[1] && nowS - x[x.length - 1] < span * 0.2) xr[1] = nowS + span * 0.04;
   const overlay: uPlot.Plugin = {
     hooks: {
       drawClear: [
@@ -473,6 +526,7 @@ export function historyChart(
             ctx.fillText(`${label} ${v.toFixed(3)}`, left + 6, py - 4);
           }
           ctx.restore();
+          drawToday(u, Date.now() / 1000);
         },
       ],
     },
@@ -482,9 +536,13 @@ export function historyChart(
       width: widthOf(el),
       height: 260,
       scales: { x: { time: true, range: xr }, y: { range: [ymin - pad, ymax + pad] } },
-      axes: [axis('date of the test'), axis('discharge coefficient Cd (–)')],
+      tzDate: utcDate,
+      axes: [
+        axis('date of the test (UTC)', { values: isoDateTicks, space: ISO_DATE_SPACE }),
+        axis('discharge coefficient Cd (–)'),
+      ],
       series: [
-        { label: 'date' },
+        { label: 'date of the test', value: isoDateValue },
         {
           label: 'draft (not yet reviewed)',
           stroke: COLOURS.draft,

@@ -80,7 +80,7 @@ function pass(
     if (zone)
       notes.push({
         code: 'time-zone',
-        message: `${col.local} local time(s) without offset read in ${zone.zone}`,
+        message: `${col.local} local time(s) without offset read in ${zone.zone} (${opts.tzSource ?? 'as stated'})`,
       });
     else
       notes.push({

@@ -32,6 +32,42 @@ function forecastWords(t: FullTrend): string {
   return `Forecast: ${fc.reason.replace(/\.?$/, '.')}`;
 }
 
+/** When the next test is due; when overdue, how old the latest test is and what a test today would read. */
+function scheduleWords(t: FullTrend): HTMLElement | null {
+  const s = t.schedule;
+  if (!s) return null;
+  const now = t.epochs.find((e) => e.current)?.newTestNow ?? null;
+  const parts = [`Next test: ${sentence(s.reason)}`];
+  if (s.overdue && now) {
+    const hw = now.halfWidth95 * 1e6;
+    const decimals = Math.max(0, 1 - Math.floor(Math.log10(hw)));
+    parts.push(
+      `A test today is expected to read ${(now.value * 1e6).toFixed(decimals)} ± ${hw.toPrecision(2)} mm² (95 % prediction interval for a new test; it widens the longer the outlet goes untested).`,
+    );
+  }
+  return h(
+    'p',
+    {
+      class: `trend-schedule${s.overdue ? ' schedule-overdue' : ''}`,
+      'data-overdue': String(s.overdue),
+    },
+    parts.join(' '),
+  );
+}
+
+/** The epoch's drift; cut at a flagged step, each side's own (the whole-epoch line would run through the step). */
+function driftCell(e: FullTrend['epochs'][number]): string {
+  const one = (l: typeof e.area) =>
+    l
+      ? `${pct(l.slopePctPerYear, 2 * l.slopePctPerYearU)} a year (±2u)`
+      : 'too few tests for a line';
+  if (e.segments && e.segments.length > 1)
+    return e.segments
+      .map((g, k) => `${k === 0 ? 'before the step' : 'from the step'}: ${one(g.area)}`)
+      .join('; ');
+  return e.area ? one(e.area) : '—';
+}
+
 function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   const wrap = h('div', { class: 'trend-outlet', 'data-outlet': o.id });
   const points = t.epochs.reduce((s, e) => s + e.series.length, 0);
@@ -54,6 +90,8 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
         : forecastWords(t),
     ),
   );
+  const schedule = scheduleWords(t);
+  if (schedule) wrap.append(schedule);
   if (!points) {
     wrap.append(h('p', {}, 'No approved test yet: the trend starts with the first approved fit.'));
     return wrap;
@@ -115,7 +153,19 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
         h('span', { class: 'key key-forecast' }),
         'forecast crossing date and its 95 % interval',
       ),
-      h('li', {}, h('span', { class: 'key key-step' }), 'sudden step flagged'),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-step' }),
+        'sudden step flagged (the line is cut there)',
+      ),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-newtest' }),
+        'dashed: 95 % interval of a new test after the last one',
+      ),
+      h('li', {}, h('span', { class: 'key key-today' }), 'today'),
     ),
   );
   let chart: ReturnType<typeof trendChart> | null = null;
@@ -144,7 +194,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
           `${e.index + 1}${e.current ? ' (present)' : ''}`,
           e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
           String(e.series.length),
-          e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
+          driftCell(e),
           e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
           e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
           e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
