@@ -12,7 +12,7 @@ import { NotFoundError, openStore, SYSTEM_ACTOR } from '../store/index.js';
 import type { SiteClock } from '../store/schedule.js';
 import { guarded } from './io.js';
 import { outletByName } from './names.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const DUE_USAGE = `usage: efflux due [--site PART] [--within DAYS] [--as-of DATE] [--json]
   Outlets overdue for a drain test, or due within DAYS (default 30), soonest first, with the age
@@ -104,7 +104,7 @@ export async function runDue(argv: string[]): Promise<number> {
         throw new InputError(`unknown option ${a}`, { field: a.slice(2) });
     const within = option(argv, 'within');
     const nowMs = asOfMs(argv);
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       const d = await dueList(
         store,
@@ -141,7 +141,7 @@ export async function runSite(argv: string[]): Promise<number> {
   }
   if (site === undefined)
     return guarded(async () => {
-      const store = await openStore({ dataDir: dataDir() });
+      const store = await openStore(storeLocation());
       try {
         for (const s of await store.schedule.sites()) process.stdout.write(clockLine(s));
         return 0;
@@ -156,7 +156,7 @@ export async function runSite(argv: string[]): Promise<number> {
       ...(zone !== undefined ? { timeZone: checkTimeZone(zone, 'time-zone') } : {}),
       ...(interval !== undefined ? { testIntervalDays: wholeDays(interval, 'interval') } : {}),
     };
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       const s = await asInput(
         () =>
@@ -182,7 +182,7 @@ export async function runOutletInterval(argv: string[]): Promise<number> {
   }
   return guarded(async () => {
     const days = daysText === 'site' ? null : wholeDays(daysText, 'days');
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       const id = (await outletByName(store, idText)).outletId;
       await asInput(() => store.schedule.outletInterval(id), 'outlet');

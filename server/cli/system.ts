@@ -76,7 +76,8 @@ vessel's time constant and, from a fit, standard uncertainties. Printed as label
   --format json|csv|text the same choice as one option
 ` + MODEL_SOURCES;
 
-const PREDICT_USAGE = `usage: efflux predict <system.json|fit.json|FIT_ID | --joint-fit ID> --from [ID=]LEVEL [--from …] [--inflow [ID=]FLOW …]
+const PREDICT_USAGE =
+  `usage: efflux predict <system.json|fit.json|FIT_ID | --joint-fit ID> --from [ID=]LEVEL [--from …] [--inflow [ID=]FLOW …]
                      (--after DURATION | --until ID=LEVEL) [--json]
 
 Predicted levels after a time, or the time for one vessel to fall to a level, with 95 % intervals
@@ -342,7 +343,10 @@ export async function runPredict(argv: string[]): Promise<number> {
       throw new InputError(
         'give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)',
       );
-    const { spec, model, name, fromFit, single } = await readModel(positionals, values['joint-fit']);
+    const { spec, model, name, fromFit, single } = await readModel(
+      positionals,
+      values['joint-fit'],
+    );
     const ids = spec.vessels.map((v) => v.id);
     if (ids.length === 1) {
       // one vessel: ID= may be left out
@@ -515,7 +519,9 @@ async function readModel(positionals: string[], jointFit: string | undefined) {
         `give either a model (${positionals.join(' ')}) or --joint-fit ${jointFit}, not both`,
       );
     if (!/^\d+$/.test(jointFit))
-      throw new InputError(`--joint-fit takes the number of a stored joint fit (got "${jointFit}")`);
+      throw new InputError(
+        `--joint-fit takes the number of a stored joint fit (got "${jointFit}")`,
+      );
     const name = `joint fit ${jointFit}`;
     const value = await storedJointFitResult(Number(jointFit));
     return { ...loadSystemModel(value, name), name, single: null };
@@ -538,7 +544,7 @@ async function readModel(positionals: string[], jointFit: string | undefined) {
 
 /** The result of joint fit N in the data folder (stored from the workbench or POST /api/systems/fits). */
 async function storedJointFitResult(id: number): Promise<unknown> {
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     const fit = await store.jointFits.get(id);
     if (fit.status === 'rejected')

@@ -35,7 +35,11 @@ beforeAll(async () => {
   store = await openTestStore();
   const loaded = await loadDemo(store, analyze, join(root, 'sample-data/manifest.json'));
   expect(loaded.skipped).toEqual([]);
-  const engineer = await store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer');
+  const engineer = await store.users.createToken(
+    SYSTEM_ACTOR,
+    'R. Penhallow (fictional)',
+    'engineer',
+  );
   for (let id = 1; ; id++) {
     let fit: Awaited<ReturnType<Store['fits']['get']>>;
     try {

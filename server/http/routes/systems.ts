@@ -126,7 +126,8 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: TECHNICIANS_UP, scope: 'none' },
       schema: {
         tags: ['systems'],
-        summary: 'Joint fit of connected vessels from one test’s logs, tried only (POST /api/systems/fits keeps one)',
+        summary:
+          'Joint fit of connected vessels from one test’s logs, tried only (POST /api/systems/fits keeps one)',
         description:
           'multipart/form-data: file "system" (the system file), one file "log:ID" per vessel (ID as in the system file), one file "inflow:ID" for each logged inflow the system file names, and optional text fields window (START..END s), fitDatum, fitInflow (true/false), unit, tz, dateOrder, delimiter, decimal (for every log).',
         consumes: ['multipart/form-data'],
