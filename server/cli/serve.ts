@@ -17,6 +17,7 @@ import { openStore, SYSTEM_ACTOR, type Store } from '../store/index.js';
 import { EXIT_REFUSED } from './io.js';
 import { parseCommandLine } from './options.js';
 import { serveConfig } from './serve-config.js';
+import { countText } from '../core/format/words.js';
 
 const say = (line: string) => process.stdout.write(`${line}\n`);
 
@@ -105,7 +106,7 @@ export async function run(argv: string[]): Promise<number> {
   const undated = store.tests.undated();
   if (undated.length)
     say(
-      `note: ${undated.length} old test(s) have no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`,
+      `note: ${countText(undated.length, 'old test')} ${undated.length === 1 ? 'has' : 'have'} no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`,
     );
 
   const app = await buildApp({
