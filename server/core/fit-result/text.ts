@@ -1,6 +1,7 @@
 import { sig, toU } from '../format/digits.js';
 import { DEFAULT_UNIT_SYSTEM, displayUnit, quantityOfSiUnit, type UnitSystem } from '../format/unit-system.js';
 import { countText } from '../format/words.js';
+import { uncertaintyText } from '../format/uncertainty.js';
 import type { FitCorrelations, FitParameter, SolverRecord } from './schema.js';
 
 /**
@@ -29,7 +30,7 @@ export function parameterLines(
     const ci = p.ci95 ? `${toU(n(p.ci95[0]) * perSi, u)} … ${toU(n(p.ci95[1]) * perSi, u)}` : 'fixed';
     const v = n(p.value) * perSi;
     lines.push(
-      `  ${pad(p.name, nameWidth)}${pad(p.free ? toU(v, u) : sig(v, 6), 14)}${pad(p.free ? sig(u, 2) : '—', 12)}${pad(ci, 30)}${symbol}${p.atBound ? '  (at bound)' : ''}`,
+      `  ${pad(p.name, nameWidth)}${pad(p.free ? toU(v, u) : sig(v, 6), 14)}${pad(p.free ? uncertaintyText(u) : '—', 12)}${pad(ci, 30)}${symbol}${p.atBound ? '  (at bound)' : ''}`,
     );
   }
   return lines;
