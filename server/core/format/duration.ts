@@ -31,5 +31,10 @@ export function durationText(seconds: number | null | undefined): string {
 }
 
 /** A whole-day count in words: "1 day", "40 days", "9 months", "2.1 years". */
-export const daysText = (days: number | null | undefined) =>
-  days === null || days === undefined ? '—' : durationText(days * 86400);
+export function daysText(days: number | null | undefined): string {
+  if (days === null || days === undefined || !Number.isFinite(days)) return '—';
+  const a = Math.abs(days);
+  if (a >= 1 && a <= DAYS_BEFORE_MONTHS)
+    return (days < 0 ? '−' : '') + plural(a.toFixed(0), 'day', 'days');
+  return durationText(days * 86400);
+}
