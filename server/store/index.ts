@@ -6,6 +6,7 @@ import { FitRepo } from './fits.js';
 import { LiveRepo } from './live.js';
 import { join } from 'node:path';
 import { migrate } from './migrate.js';
+import { PreferenceRepo } from './preferences.js';
 import { ForeignWrites } from './read-cache.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
@@ -31,6 +32,8 @@ export interface Store {
   trends: TrendRepo;
   live: LiveRepo;
   meta: ServiceMetaRepo;
+  /** A person's display choices (units); async on sql. */
+  preferences: PreferenceRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
   close(): void;
@@ -103,6 +106,7 @@ export function openStore(opts: StoreOptions = {}): Store {
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),
+    preferences: new PreferenceRepo(c),
     reserve,
     close: () => db.close(),
   };

@@ -77,7 +77,10 @@ export interface User {
   role: Role;
   /** The sites this person may see and act on; null = every site. */
   sites: string[] | null;
+  /** The units this person reads results in (PUT /api/session/preferences); JSON stays SI. */
+  displayUnits?: UnitSystem;
 }
+import type { UnitSystem } from '../../server/core/format/unit-system.js';
 export type { Outlet, Vessel } from '../../server/core/stored-vessel.js';
 export interface DrainTest {
   id: number;

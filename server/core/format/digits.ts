@@ -74,3 +74,16 @@ export const toU = (x: number | null | undefined, u: number | null | undefined):
   }
   return x.toFixed(Math.max(0, Math.min(12, 1 - Math.floor(Math.log10(u)))));
 };
+
+/**
+ * Inputs and diagnostics for the workbench: `digits` significant digits, trailing zeros dropped,
+ * no exponent for 1e-6 ≤ |x| < 1e9 (0.0003976, not 3.976e-4); outside, scientific notation.
+ */
+export function plainText(x: number | null | undefined, digits = 4): string {
+  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a < 1e-6 || a >= 1e9) return x.toExponential(digits - 1);
+  const t = fixedText(x, Math.max(0, decimalsForSignificant(x, digits)));
+  return t.includes('.') ? t.replace(/\.?0+$/, '') : t;
+}

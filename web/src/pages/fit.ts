@@ -27,6 +27,7 @@ import {
   plusMinus,
   seconds,
   termName,
+  unitOf,
 } from '../format.js';
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
@@ -34,8 +35,8 @@ import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/bu
 
 /** A parameter's value in the unit a person reads it in. */
 function scaled(unit: string): { factor: number; unit: string } {
-  if (unit === 'm²') return { factor: 1e6, unit: 'mm²' };
-  if (unit === 'm³/s') return { factor: 1000, unit: 'L/s' };
+  if (unit === 'm²') return { factor: unitOf('area').perSi, unit: unitOf('area').symbol };
+  if (unit === 'm³/s') return { factor: unitOf('flow').perSi, unit: unitOf('flow').symbol };
   if (unit === '1') return { factor: 1, unit: '' };
   return { factor: 1, unit };
 }

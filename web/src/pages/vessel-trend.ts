@@ -1,7 +1,7 @@
 /** The vessel page's trend of approved tests per outlet, and the maintenance record with its entry form. */
 import { api, ApiError, type MaintenanceEvent, type Outlet } from '../api.js';
 import { field, h, notice, select, table } from '../dom.js';
-import { date, num, plusMinus } from '../format.js';
+import { area, date, num, plusMinus, unitOf } from '../format.js';
 import { trendChart, type FullTrend, type TrendQuantity } from '../trend-chart.js';
 
 const STATUS_CLASS: Record<string, string> = {
@@ -61,7 +61,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   const quantity = select(
     `trend-q-${o.id}`,
     [
-      ['area', 'effective area Cd·a (mm²)'],
+      ['area', `effective area Cd·a (${unitOf('area').symbol})`],
       ['cd', 'discharge coefficient Cd'],
     ],
     'area',
@@ -145,8 +145,8 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
           e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
           String(e.series.length),
           e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
-          e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
-          e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
+          e.area ? area(e.area.baselineValue) : '—',
+          e.thresholdM2 !== null ? area(e.thresholdM2) : '—',
           e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
         ]),
         'trend-table',
