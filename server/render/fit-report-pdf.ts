@@ -4,14 +4,26 @@ import { reportJson } from '../core/report/index.js';
 import { domainOf, drawChart } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type Doc, type DocIdentity } from './pdf-doc.js';
 import { contentWidth, ensureRoom, fields, heading, paragraph, table } from './pdf-layout.js';
-import { bytesText, dateText, sig, toU } from './report-format.js';
+import {
+  bytesText,
+  dateText,
+  DEFAULT_UNIT_SYSTEM,
+  resultText,
+  shownUnit,
+  sig,
+  toU,
+  unitsNote,
+  uText,
+  valueToU,
+  type UnitSystem,
+} from './report-format.js';
 import { autocorrelationText } from '../core/budget/table.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
 const GREY = '#9aa1ab';
 
-export function fitReportIdentity(r: FitReport): DocIdentity {
+export function fitReportIdentity(r: FitReport, units: UnitSystem = DEFAULT_UNIT_SYSTEM): DocIdentity {
   return {
     title: `Drain-test fit report — ${r.vessel.name}${r.outlet.key ? `, outlet ${r.outlet.key}` : ''}`,
     subject: `fit ${r.fitId} of test ${r.test.id}, site ${r.vessel.site}`,
@@ -21,6 +33,7 @@ export function fitReportIdentity(r: FitReport): DocIdentity {
     dateIso: r.issuedAt,
     extra: {
       EffluxFitId: String(r.fitId),
+      EffluxUnits: units,
       EffluxSoftware: `${r.software.name} ${r.software.version} ${r.software.gitCommit}`,
     },
     json: reportJson(r as unknown as Record<string, unknown>),
@@ -31,14 +44,16 @@ export function fitReportIdentity(r: FitReport): DocIdentity {
 const dof = (v: number | null) =>
   v !== null && v >= 1e6 ? '> 10⁶ (treated as infinite)' : `= ${sig(v, 4)}`;
 
-function quantityRows(q: ReportQuantity): [string, string][] {
+function quantityRows(q: ReportQuantity, units: UnitSystem): [string, string][] {
   const u = q.standardUncertainty;
-  const unit = q.unit === '1' ? '' : ` ${q.unit}`;
+  const { symbol } = shownUnit(q.unit, units);
+  const unit = symbol ? ` ${symbol}` : '';
   return [
-    [`${q.name}, ${q.symbol}`, `${toU(q.value, u)}${unit}`],
+    // value ± U: the same string the CLI text report and the fit page print (core/format)
+    [`${q.name}, ${q.symbol}`, resultText(q.value, q.expandedUncertainty, q.unit, units)],
     [
       'standard uncertainty u',
-      `${sig(u, 2)}${unit}  (relative ${u !== null ? sig((100 * u) / Math.abs(q.value), 2) : '—'} %)`,
+      `${uText(u, q.unit, units)}  (relative ${u !== null ? sig((100 * u) / Math.abs(q.value), 2) : '—'} %)`,
     ],
     [
       'coverage factor k',
@@ -46,11 +61,13 @@ function quantityRows(q: ReportQuantity): [string, string][] {
     ],
     [
       'expanded uncertainty U = k·u',
-      `${sig(q.expandedUncertainty, 2)}${unit}  (coverage probability about 95 %)`,
+      `${uText(q.expandedUncertainty, q.unit, units)}  (coverage probability about 95 %)`,
     ],
     [
       'interval',
-      q.interval95 ? `${toU(q.interval95[0], u)} … ${toU(q.interval95[1], u)}${unit}` : '—',
+      q.interval95
+        ? `${valueToU(q.interval95[0], u, q.unit, units)} … ${valueToU(q.interval95[1], u, q.unit, units)}${unit}`
+        : '—',
     ],
   ];
 }
@@ -111,8 +128,11 @@ function charts(doc: Doc, r: FitReport): void {
   );
 }
 
-export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
-  const id = fitReportIdentity(r);
+export async function renderFitReportPdf(
+  r: FitReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): Promise<Buffer> {
+  const id = fitReportIdentity(r, units);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Drain-test fit report', MARGIN, doc.y);
   doc
@@ -126,6 +146,7 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
       ['report id', r.reportId],
       ['content SHA-256', r.contentSha256],
       ['fit', `${r.fitId} (${r.status}); issued ${dateText(r.issuedAt)}`],
+      ['units', unitsNote(units)],
     ],
     130,
     { monoValues: true },
@@ -133,16 +154,16 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
 
   heading(doc, 'Result');
   if (r.results.dischargeCoefficient)
-    fields(doc, quantityRows(r.results.dischargeCoefficient), 150);
+    fields(doc, quantityRows(r.results.dischargeCoefficient, units), 150);
   doc.moveDown(0.3);
-  fields(doc, quantityRows(r.results.effectiveArea), 150);
+  fields(doc, quantityRows(r.results.effectiveArea, units), 150);
   if (r.results.profileInterval95M2)
     fields(
       doc,
       [
         [
           'profile-likelihood interval',
-          `${toU(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty)} … ${toU(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty)} m²`,
+          `${valueToU(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty, 'm²', units)} … ${valueToU(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty, 'm²', units)} ${shownUnit('m²', units).symbol}`,
         ],
       ],
       150,
@@ -294,17 +315,22 @@ export async function renderFitReportPdf(r: FitReport): Promise<Buffer> {
       { title: '95 % interval', width: 110, align: 'right' },
       { title: 'unit', width: 30 },
     ],
-    r.parameters.map((p) => [
-      `${p.name} (${p.symbol})${p.atBound ? ' — at bound' : ''}`,
-      p.free ? toU(p.value, p.standardUncertainty) : `${sig(p.value, 6)} (fixed)`,
-      sig(p.standardUncertainty, 2),
-      sig(p.coverageFactor, 4),
-      sig(p.expandedUncertainty, 2),
-      p.interval95
-        ? `${toU(p.interval95[0], p.standardUncertainty)} … ${toU(p.interval95[1], p.standardUncertainty)}`
-        : '—',
-      p.unit,
-    ]),
+    r.parameters.map((p) => {
+      const shown = shownUnit(p.unit, units);
+      return [
+        `${p.name} (${p.symbol})${p.atBound ? ' — at bound' : ''}`,
+        p.free
+          ? valueToU(p.value, p.standardUncertainty, p.unit, units)
+          : `${sig(p.value * shown.perSi, 6)} (fixed)`,
+        uText(p.standardUncertainty, p.unit, units).replace(` ${shown.symbol}`, ''),
+        sig(p.coverageFactor, 4),
+        uText(p.expandedUncertainty, p.unit, units).replace(` ${shown.symbol}`, ''),
+        p.interval95
+          ? `${valueToU(p.interval95[0], p.standardUncertainty, p.unit, units)} … ${valueToU(p.interval95[1], p.standardUncertainty, p.unit, units)}`
+          : '—',
+        shown.symbol || p.unit,
+      ];
+    }),
   );
   if (r.correlations.parameters.length > 1) {
     paragraph(doc, 'Correlation matrix of the free parameters', { size: 8 });

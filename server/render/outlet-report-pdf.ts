@@ -4,13 +4,28 @@ import { reportJson } from '../core/report/index.js';
 import { domainOf, drawChart, type Layer } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type DocIdentity } from './pdf-doc.js';
 import { contentWidth, fields, heading, paragraph, table } from './pdf-layout.js';
-import { dateText, sig, toU } from './report-format.js';
+import {
+  areaText,
+  dateText,
+  daysText,
+  DEFAULT_UNIT_SYSTEM,
+  shownUnit,
+  sig,
+  toU,
+  unitsNote,
+  valueToU,
+  type UnitSystem,
+} from './report-format.js';
+import { plainText } from '../core/format/digits.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
 const day = (ms: number) => new Date(ms).toISOString().slice(0, 10);
 
-export function outletReportIdentity(r: OutletReport): DocIdentity {
+export function outletReportIdentity(
+  r: OutletReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): DocIdentity {
   return {
     title: `Outlet history report — ${r.vessel.name}, outlet ${r.outlet.key}`,
     subject: `outlet ${r.outlet.id} of vessel ${r.vessel.id}, site ${r.vessel.site}, as of ${r.asOf}`,
@@ -21,14 +36,19 @@ export function outletReportIdentity(r: OutletReport): DocIdentity {
     extra: {
       EffluxOutletId: String(r.outlet.id),
       EffluxAsOf: r.asOf,
+      EffluxUnits: units,
       EffluxSoftware: `${r.software.name} ${r.software.version} ${r.software.gitCommit}`,
     },
     json: reportJson(r as unknown as Record<string, unknown>),
   };
 }
 
-export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
-  const id = outletReportIdentity(r);
+export async function renderOutletReportPdf(
+  r: OutletReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): Promise<Buffer> {
+  const id = outletReportIdentity(r, units);
+  const area = shownUnit('m²', units);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Outlet history report', MARGIN, doc.y);
   doc
@@ -42,6 +62,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       ['report id', r.reportId],
       ['content SHA-256', r.contentSha256],
       ['as of', dateText(r.asOf)],
+      ['units', unitsNote(units)],
     ],
     130,
     { monoValues: true },
@@ -66,7 +87,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       'threshold forecast',
       st.crossingMs === null
         ? 'none'
-        : `${day(st.crossingMs)} (${sig(st.daysToThreshold, 4)} days from the as-of date)`,
+        : `${day(st.crossingMs)} (${daysText(st.daysToThreshold)} from the as-of date)`,
     ],
     [
       'outlet',
@@ -119,7 +140,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
         x1,
         color: RED,
         dash: 3,
-        label: `action threshold ${sig(ep.thresholdM2, 4)} m²`,
+        label: `action threshold ${areaText(ep.thresholdM2, undefined, units)}`,
       });
       allY.push(ep.thresholdM2);
     }
@@ -144,9 +165,9 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       xDomain: xd,
       yDomain: domainOf(allY),
       xLabel: 'date of the drain test',
-      yLabel: 'Cd·a, m²',
+      yLabel: `Cd·a, ${area.symbol}`,
       xTicks: ticks,
-      yFormat: (v) => v.toExponential(3),
+      yFormat: (v) => plainText(v * area.perSi, 4),
       layers,
       legend: [
         { label: 'approved fits ±2u', color: '#1f2a36' },
@@ -172,7 +193,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       { title: 'Cd', width: 55, align: 'right' },
       { title: 'u(Cd)', width: 45, align: 'right' },
       { title: 'U(Cd), k', width: 65, align: 'right' },
-      { title: 'Cd·a, m²', width: 70, align: 'right' },
+      { title: `Cd·a, ${area.symbol}`, width: 70, align: 'right' },
       { title: 'approved', width: 90 },
       { title: 'raw file SHA-256 (first 16)', width: 95, mono: true },
     ],
@@ -182,7 +203,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       toU(f.dischargeCoefficient, f.dischargeCoefficientU),
       sig(f.dischargeCoefficientU, 2),
       `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`,
-      toU(f.effectiveAreaM2, f.effectiveAreaU),
+      valueToU(f.effectiveAreaM2, f.effectiveAreaU, 'm²', units),
       `${f.approvedBy ?? '—'}${f.selfReview ? ' (self-review)' : ''}, ${dateText(f.approvedAt).slice(0, 10)}`,
       f.logSha256.slice(0, 16),
     ]),
@@ -195,7 +216,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       { title: 'started by', width: 120 },
       { title: 'fits', width: 35, align: 'right' },
       { title: 'slope, %/year', width: 90, align: 'right' },
-      { title: 'threshold, m²', width: 80, align: 'right' },
+      { title: `threshold, ${area.symbol}`, width: 80, align: 'right' },
       { title: 'forecast', width: 140 },
     ],
     r.trend.epochs.map((ep) => [
@@ -203,7 +224,7 @@ export async function renderOutletReportPdf(r: OutletReport): Promise<Buffer> {
       ep.startedBy ? `${ep.startedBy.kind} ${day(ep.startedBy.atMs)}` : 'first tests',
       String(ep.series.length),
       ep.area ? `${sig(ep.area.slopePctPerYear, 3)} ± ${sig(ep.area.slopePctPerYearU, 2)}` : '—',
-      sig(ep.thresholdM2, 4),
+      ep.thresholdM2 === null ? '—' : plainText(ep.thresholdM2 * area.perSi, 4),
       ep.forecast ? ep.forecast.reason : '—',
     ]),
   );
