@@ -21,6 +21,7 @@ import {
   inWords,
   dateTime,
   decimalsFor,
+  metres,
   mm,
   num,
   paramName,
@@ -240,8 +241,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
           null,
           ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'],
           r.headBands.map((b) => [
-            `${num(b.headFromM, 4)} m`,
-            `${num(b.headToM, 4)} m`,
+            metres(b.headFromM, 4),
+            metres(b.headToM, 4),
             String(b.samples),
             (b.dischargeCoefficient ?? NaN).toFixed(decimalsFor(b.standardUncertainty ?? NaN)),
             num(b.standardUncertainty, 2),
