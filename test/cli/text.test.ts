@@ -25,7 +25,7 @@ describe('efflux --help', () => {
     // wrapped summaries continue under their own column
     for (const l of r.stdout.split('\n').filter((x) => /^ {4,}\S/.test(x)))
       expect(l.length - l.trimStart().length).toBe(starts[0]);
-  });
+  }, 180_000);
 });
 
 describe('efflux fit: units and the comparison of several logs', () => {
@@ -43,7 +43,7 @@ describe('efflux fit: units and the comparison of several logs', () => {
     const bad = efflux(['fit', FB1[0], ...VESSEL, '--units', 'imperial']);
     expect(bad.code).toBe(2);
     expect(bad.stderr).toMatch(/--units must be si or us \(got "imperial"\)/);
-  });
+  }, 180_000);
 
   it('several logs end with Cd·a, Cd ± U and each pair’s E_n, worked out here from the JSON', () => {
     const text = efflux(['fit', ...FB1, ...VESSEL]);
@@ -66,7 +66,7 @@ describe('efflux fit: units and the comparison of several logs', () => {
     expect(printed![4]).toBe(Math.abs(en('effectiveAreaM2')) <= 1 ? 'agree' : 'differ');
     // the difference in mm²
     expect(Number(printed![1])).toBeCloseTo((a.effectiveAreaM2.value - b.effectiveAreaM2.value) * 1e6, 0);
-  });
+  }, 180_000);
 
   it('warnings counted in words: "N warnings", "1 warning", never "(s)"', () => {
     const r = efflux(['fit', FB1[1], ...VESSEL]);
@@ -75,7 +75,7 @@ describe('efflux fit: units and the comparison of several logs', () => {
     expect(n).toBeGreaterThan(1);
     expect(r.stdout).toMatch(new RegExp(`^${n} warnings$`, 'm'));
     expect(r.stdout).not.toMatch(/\w\(s\)/);
-  });
+  }, 180_000);
 });
 
 describe('options that would be ignored are refused (exit 2, naming the option)', () => {
@@ -86,7 +86,7 @@ describe('options that would be ignored are refused (exit 2, naming the option)'
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
     // the same unit in another spelling is no conflict
     expect(efflux(['fit', FB1[0], ...VESSEL, '--unit', 'metres']).code).toBe(0);
-  });
+  }, 180_000);
   it('efflux report: --units with --json or verify, --as-of with a fit report', () => {
     const j = efflux(['report', 'fit', '1', '--out', '/tmp/x.json', '--json', '--units', 'us']);
     expect(j.code).toBe(2);
@@ -97,7 +97,7 @@ describe('options that would be ignored are refused (exit 2, naming the option)'
     const a = efflux(['report', 'fit', '1', '--out', '/tmp/x.pdf', '--as-of', '2026-01-01']);
     expect(a.code).toBe(2);
     expect(a.stderr).toMatch(/--as-of is for outlet reports/);
-  });
+  }, 180_000);
 });
 
 describe('efflux trend --fleet text', () => {
@@ -133,11 +133,11 @@ describe('efflux trend --fleet text', () => {
     expect(fleetText({ ...view, items: view.items.slice(0, 1) }, ['watch']).split('\n')[0]).toMatch(
       /: 1 outlet with status watch/,
     );
-  });
+  }, 180_000);
   it('cuts long names with an ellipsis and says long times in years', () => {
     const text = fleetText(view, ['watch']);
     expect(text).toContain('Filter drain with a very long desc…');
     expect(text).toContain('Kestrel Fen water …');
     expect(text).toContain('9.3 years'); // 3386 days / 365.2425
-  });
+  }, 180_000);
 });
