@@ -92,7 +92,9 @@ export async function runFit(argv: string[]): Promise<number> {
           if (batch) process.stdout.write(`\n== ${path}\n`);
           process.stdout.write(textReport(outcome.fit, { units }));
         }
-        compared.push(comparedFit(basename(path), outcome.fit as unknown as Record<string, unknown>));
+        compared.push(
+          comparedFit(basename(path), outcome.fit as unknown as Record<string, unknown>),
+        );
         if (values.plot) writeAtomically(values.plot, fitSvg(outcome.fit));
         if (!outcome.fit.converged) {
           unconverged++;

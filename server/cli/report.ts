@@ -75,7 +75,8 @@ export async function run(argv: string[]): Promise<number> {
       throw new InputError(`--${name} ${why}; leave it out`, { field: name });
     };
     if (sub === 'verify') {
-      if (values.units !== undefined) ignored('units', 'has no effect on verify (a PDF names its own units)');
+      if (values.units !== undefined)
+        ignored('units', 'has no effect on verify (a PDF names its own units)');
       if (values['as-of'] !== undefined) ignored('as-of', 'has no effect on verify');
       if (values.out !== undefined) ignored('out', 'has no effect on verify');
       if (!arg) throw new InputError('name the report file to verify');

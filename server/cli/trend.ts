@@ -121,7 +121,9 @@ export function fleetText(f: FleetView, statusFilter?: readonly string[]): strin
   const inAll = Object.values(f.counts).reduce((a, n) => a + n, 0);
   const out = [
     `fleet as of ${day(f.nowMs)}: ${countText(f.items.length, 'outlet')}` +
-      (statusFilter?.length ? ` with status ${statusFilter.join(' or ')} (of ${inAll} in all)` : '') +
+      (statusFilter?.length
+        ? ` with status ${statusFilter.join(' or ')} (of ${inAll} in all)`
+        : '') +
       (f.items.length
         ? '; ' +
           Object.entries(listed)
@@ -176,7 +178,9 @@ export async function run(argv: string[]): Promise<number> {
         return 0;
       }
       const first = argv.find(
-        (a, i) => !a.startsWith('--') && !['--as-of', '--site', '--status', '--units'].includes(argv[i - 1]),
+        (a, i) =>
+          !a.startsWith('--') &&
+          !['--as-of', '--site', '--status', '--units'].includes(argv[i - 1]),
       );
       const id = Number(first);
       if (!Number.isInteger(id) || id <= 0)
@@ -191,7 +195,11 @@ export async function run(argv: string[]): Promise<number> {
         throw e;
       }
       process.stdout.write(
-        json ? JSON.stringify(view, null, 2) + '\n' : csv ? historyCsv(view) : trendText(view, units),
+        json
+          ? JSON.stringify(view, null, 2) + '\n'
+          : csv
+            ? historyCsv(view)
+            : trendText(view, units),
       );
       return 0;
     } finally {

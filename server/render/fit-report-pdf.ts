@@ -23,7 +23,10 @@ const BLUE = '#2f5d8a';
 const RED = '#b8432f';
 const GREY = '#9aa1ab';
 
-export function fitReportIdentity(r: FitReport, units: UnitSystem = DEFAULT_UNIT_SYSTEM): DocIdentity {
+export function fitReportIdentity(
+  r: FitReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): DocIdentity {
   return {
     title: `Drain-test fit report — ${r.vessel.name}${r.outlet.key ? `, outlet ${r.outlet.key}` : ''}`,
     subject: `fit ${r.fitId} of test ${r.test.id}, site ${r.vessel.site}`,
@@ -367,7 +370,11 @@ export async function renderFitReportPdf(
   );
 
   if (r.budget) {
-    heading(doc, 'Uncertainty budget (JCGM 100:2008)');
+    // the report model carries the budget's strings as stored (SI); say so when the rest is not
+    heading(
+      doc,
+      `Uncertainty budget (JCGM 100:2008)${units === 'si' ? '' : ', in SI units as recorded'}`,
+    );
     const widths = [130, 70, 70, 70, 80, 60, 45];
     table(
       doc,

@@ -8,7 +8,10 @@ import { fleetText } from '../../server/cli/trend.js';
 import type { FleetView } from '../../server/jobs/trend.js';
 import { efflux } from './run-cli.js';
 
-const FB1 = ['sample-data/fb1-2026-03-10-preamble.csv', 'sample-data/fb1-2026-03-26-leaking-inlet.csv'];
+const FB1 = [
+  'sample-data/fb1-2026-03-10-preamble.csv',
+  'sample-data/fb1-2026-03-26-leaking-inlet.csv',
+];
 const VESSEL = ['--vessel', 'sample-data/backwash-tank-fb1.vessel.json'];
 
 describe('efflux --help', () => {
@@ -57,15 +60,19 @@ describe('efflux fit: units and the comparison of several logs', () => {
     // E_n = (x₁ − x₂) / √(U₁² + U₂²) (ISO/IEC 17043:2010 Annex B, from memory)
     const en = (p: string) =>
       (a[p].value - b[p].value) / Math.hypot(a[p].expandedUncertainty, b[p].expandedUncertainty);
-    const printed = /preamble\.csv − fb1-2026-03-26-leaking-inlet\.csv\s+(\S+) ± (\S+)\s+(\S+) \((agree|differ)\)\s+(\S+) ± (\S+)\s+(\S+) \((agree|differ)\)/.exec(
-      table,
-    );
+    const printed =
+      /preamble\.csv − fb1-2026-03-26-leaking-inlet\.csv\s+(\S+) ± (\S+)\s+(\S+) \((agree|differ)\)\s+(\S+) ± (\S+)\s+(\S+) \((agree|differ)\)/.exec(
+        table,
+      );
     expect(printed, table).not.toBeNull();
     expect(Number(printed![3])).toBeCloseTo(en('effectiveAreaM2'), 2);
     expect(Number(printed![7])).toBeCloseTo(en('dischargeCoefficient'), 2);
     expect(printed![4]).toBe(Math.abs(en('effectiveAreaM2')) <= 1 ? 'agree' : 'differ');
     // the difference in mm²
-    expect(Number(printed![1])).toBeCloseTo((a.effectiveAreaM2.value - b.effectiveAreaM2.value) * 1e6, 0);
+    expect(Number(printed![1])).toBeCloseTo(
+      (a.effectiveAreaM2.value - b.effectiveAreaM2.value) * 1e6,
+      0,
+    );
   }, 180_000);
 
   it('warnings counted in words: "N warnings", "1 warning", never "(s)"', () => {
@@ -82,7 +89,9 @@ describe('options that would be ignored are refused (exit 2, naming the option)'
   it('--unit furlong when the header already says "level (m)"', () => {
     const r = efflux(['fit', FB1[0], ...VESSEL, '--unit', 'furlong']);
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/unit "furlong" was given but the header of column "level \(m\)" already says "m"/);
+    expect(r.stderr).toMatch(
+      /unit "furlong" was given but the header of column "level \(m\)" already says "m"/,
+    );
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
     // the same unit in another spelling is no conflict
     expect(efflux(['fit', FB1[0], ...VESSEL, '--unit', 'metres']).code).toBe(0);
@@ -121,7 +130,12 @@ describe('efflux trend --fleet text', () => {
     recomputed: 0,
     counts: { ok: 7, watch: 2, act: 1 },
     items: [
-      item(3, 'watch', 'Filter drain with a very long descriptive name', 'Kestrel Fen water treatment works (fictional)'),
+      item(
+        3,
+        'watch',
+        'Filter drain with a very long descriptive name',
+        'Kestrel Fen water treatment works (fictional)',
+      ),
       item(4, 'watch', 'FD-3', 'Kestrel Fen'),
     ],
   };

@@ -11,7 +11,14 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { guardBrowser, haveBrowser, launch, root, startServer, type RunningServer } from './browser.js';
+import {
+  guardBrowser,
+  haveBrowser,
+  launch,
+  root,
+  startServer,
+  type RunningServer,
+} from './browser.js';
 
 guardBrowser('units: CLI, fit page and PDF agree');
 
@@ -60,7 +67,10 @@ describe.skipIf(!haveBrowser)('the same digits in the CLI, the fit page and the 
     await page.goto(`${srv.base}/#/fits/${fitId}`);
     const headline = page.locator('section.headline');
     await headline.waitFor();
-    await page.getByRole('heading', { name: /Parameters/ }).first().waitFor();
+    await page
+      .getByRole('heading', { name: /Parameters/ })
+      .first()
+      .waitFor();
     return (await page.locator('#view').textContent())!;
   }
 
@@ -87,7 +97,12 @@ describe.skipIf(!haveBrowser)('the same digits in the CLI, the fit page and the 
   });
 
   it('SI: Cd·a in mm² and Cd, each ± U, identical in the three', async () => {
-    const text = cli(['fit', `sample-data/${LOG}`, '--vessel', 'sample-data/backwash-tank-fb1.vessel.json']);
+    const text = cli([
+      'fit',
+      `sample-data/${LOG}`,
+      '--vessel',
+      'sample-data/backwash-tank-fb1.vessel.json',
+    ]);
     const web = await pageText();
     const pdf = await pdfText();
     const cd = cdOf(text.split('\n').find((l) => l.startsWith('Discharge coefficient'))!);

@@ -17,7 +17,13 @@ import {
 } from '../../server/core/format/index.js';
 
 export type { UnitSystem } from '../../server/core/format/index.js';
-export { daysText, durationText, countText, clipText, UNIT_SYSTEM_WORDS } from '../../server/core/format/index.js';
+export {
+  daysText,
+  durationText,
+  countText,
+  clipText,
+  UNIT_SYSTEM_WORDS,
+} from '../../server/core/format/index.js';
 
 let units: UnitSystem = DEFAULT_UNIT_SYSTEM;
 

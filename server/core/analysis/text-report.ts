@@ -16,7 +16,7 @@ import {
   UNIT_SYSTEM_WORDS,
   type UnitSystem,
 } from '../format/unit-system.js';
-import { autocorrelationText } from '../budget/table.js';
+import { autocorrelationText, budgetTableOf } from '../budget/table.js';
 
 /**
  * The readable fit report printed by `efflux fit` (and reused by the service): everything a
@@ -102,7 +102,9 @@ export function textReport(fit: FitJson, opts: TextReportOptions = {}): string {
   if (budget?.table) {
     lines.push('');
     lines.push('Uncertainty budget (JCGM 100:2008)');
-    lines.push(...budgetTableText(budget.table));
+    lines.push(
+      ...budgetTableText(budgetTableOf(budget as Parameters<typeof budgetTableOf>[0], units)),
+    );
     for (const n of budget.notes ?? []) lines.push(`  · ${n}`);
   }
   const cmp = f.modelComparison;
@@ -137,7 +139,9 @@ export function textReport(fit: FitJson, opts: TextReportOptions = {}): string {
   lines.push('');
   lines.push(...warningLines(f.warnings));
   lines.push(rule);
-  lines.push(`Units: ${UNIT_SYSTEM_WORDS[units]}; expanded uncertainties U to two significant digits (JCGM 100:2008, 7.2.6).`);
+  lines.push(
+    `Units: ${UNIT_SYSTEM_WORDS[units]}; expanded uncertainties U to two significant digits (JCGM 100:2008, 7.2.6).`,
+  );
   lines.push(...SAFETY_LINES);
   return lines.join('\n') + '\n';
 }

@@ -24,18 +24,21 @@ export interface ComparedPair {
 }
 
 /** The measured values of a fit JSON, or null members when it has none (unconverged, no bore). */
-export function comparedFit(label: string, fit: Record<string, any>): ComparedFit {
-  const pick = (q: any) =>
+export function comparedFit(label: string, fit: Record<string, unknown>): ComparedFit {
+  type Estimate = { value?: unknown; expandedUncertainty?: unknown } | null | undefined;
+  const pick = (q: Estimate) =>
     fit.converged !== false &&
     q &&
+    typeof q.value === 'number' &&
+    typeof q.expandedUncertainty === 'number' &&
     Number.isFinite(q.value) &&
-    Number.isFinite(q.expandedUncertainty ?? NaN)
-      ? { value: q.value as number, expandedUncertainty: q.expandedUncertainty as number }
+    Number.isFinite(q.expandedUncertainty)
+      ? { value: q.value, expandedUncertainty: q.expandedUncertainty }
       : null;
   return {
     label,
-    effectiveAreaM2: pick(fit.effectiveAreaM2),
-    dischargeCoefficient: pick(fit.dischargeCoefficient),
+    effectiveAreaM2: pick(fit.effectiveAreaM2 as Estimate),
+    dischargeCoefficient: pick(fit.dischargeCoefficient as Estimate),
   };
 }
 
@@ -68,7 +71,9 @@ const padEnd = (s: string, w: number) => s + ' '.repeat(Math.max(0, w - [...s].l
 export function alignedRows(rows: string[][], indent = '  '): string[] {
   const widths = rows[0].map((_, j) => Math.max(...rows.map((r) => [...(r[j] ?? '')].length)));
   return rows.map((r) =>
-    (indent + r.map((c, j) => (j === r.length - 1 ? c : padEnd(c, widths[j] + 2))).join('')).trimEnd(),
+    (
+      indent + r.map((c, j) => (j === r.length - 1 ? c : padEnd(c, widths[j] + 2))).join('')
+    ).trimEnd(),
   );
 }
 
@@ -91,7 +96,10 @@ export function comparisonLines(fits: readonly ComparedFit[], units: UnitSystem)
             )
           : '—',
         f.dischargeCoefficient
-          ? measurementText(f.dischargeCoefficient.value, f.dischargeCoefficient.expandedUncertainty)
+          ? measurementText(
+              f.dischargeCoefficient.value,
+              f.dischargeCoefficient.expandedUncertainty,
+            )
           : '—',
       ]),
     ]),

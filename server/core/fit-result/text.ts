@@ -1,5 +1,10 @@
 import { sig, toU } from '../format/digits.js';
-import { DEFAULT_UNIT_SYSTEM, displayUnit, quantityOfSiUnit, type UnitSystem } from '../format/unit-system.js';
+import {
+  DEFAULT_UNIT_SYSTEM,
+  displayUnit,
+  quantityOfSiUnit,
+  type UnitSystem,
+} from '../format/unit-system.js';
 import { countText } from '../format/words.js';
 import { uncertaintyText } from '../format/uncertainty.js';
 import type { FitCorrelations, FitParameter, SolverRecord } from './schema.js';
@@ -27,7 +32,9 @@ export function parameterLines(
     const q = quantityOfSiUnit(p.unit);
     const { perSi, symbol } = q ? displayUnit(q, units) : { perSi: 1, symbol: p.unit };
     const u = n(p.standardUncertainty) * perSi;
-    const ci = p.ci95 ? `${toU(n(p.ci95[0]) * perSi, u)} … ${toU(n(p.ci95[1]) * perSi, u)}` : 'fixed';
+    const ci = p.ci95
+      ? `${toU(n(p.ci95[0]) * perSi, u)} … ${toU(n(p.ci95[1]) * perSi, u)}`
+      : 'fixed';
     const v = n(p.value) * perSi;
     lines.push(
       `  ${pad(p.name, nameWidth)}${pad(p.free ? toU(v, u) : sig(v, 6), 14)}${pad(p.free ? uncertaintyText(u) : '—', 12)}${pad(ci, 30)}${symbol}${p.atBound ? '  (at bound)' : ''}`,
@@ -56,7 +63,10 @@ export function solverLine(s: SolverRecord | undefined, converged: boolean): str
 
 export function warningLines(warnings: readonly { message: string }[]): string[] {
   if (!warnings.length) return ['Warnings: none'];
-  return [countText(warnings.length, 'warning').replace(/^./, (c) => c.toUpperCase()), ...warnings.map((w) => `  ! ${w.message}`)];
+  return [
+    countText(warnings.length, 'warning').replace(/^./, (c) => c.toUpperCase()),
+    ...warnings.map((w) => `  ! ${w.message}`),
+  ];
 }
 
 export const SAFETY_LINES = [

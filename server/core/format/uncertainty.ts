@@ -21,7 +21,12 @@ export function measurementDigits(
   value: number,
   uncertainty: number | null | undefined,
 ): MeasurementDigits {
-  if (uncertainty === null || uncertainty === undefined || !(uncertainty > 0) || !Number.isFinite(uncertainty)) {
+  if (
+    uncertainty === null ||
+    uncertainty === undefined ||
+    !(uncertainty > 0) ||
+    !Number.isFinite(uncertainty)
+  ) {
     const text = significantText(value, 6);
     const dot = text.indexOf('.');
     return { value: text, uncertainty: null, decimals: dot < 0 ? 0 : text.length - dot - 1 };

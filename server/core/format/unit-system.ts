@@ -44,7 +44,10 @@ const UNITS: Record<UnitSystem, Record<DisplayQuantity, DisplayUnit>> = {
   },
 };
 
-export function displayUnit(q: DisplayQuantity, units: UnitSystem = DEFAULT_UNIT_SYSTEM): DisplayUnit {
+export function displayUnit(
+  q: DisplayQuantity,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): DisplayUnit {
   return UNITS[units][q];
 }
 

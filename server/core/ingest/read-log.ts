@@ -90,7 +90,10 @@ function pass(
       });
   }
   if (col.withOffset)
-    notes.push({ code: 'time-zone', message: `${countText(col.withOffset, 'time')} ${col.withOffset === 1 ? 'carries its' : 'carry their'} UTC offset` });
+    notes.push({
+      code: 'time-zone',
+      message: `${countText(col.withOffset, 'time')} ${col.withOffset === 1 ? 'carries its' : 'carry their'} UTC offset`,
+    });
   if (col.local && col.withOffset)
     warnings.push({ code: 'mixed-offsets', message: 'some times carry an offset and some do not' });
   if (col.repeated)

@@ -7,7 +7,11 @@
  * with a time limit (503 past it).
  * Registered by app.ts with `await app.register(reportRoutes);` beside the other route modules.
  */
-import { DEFAULT_UNIT_SYSTEM, UNIT_SYSTEMS, type UnitSystem } from '../../core/format/unit-system.js';
+import {
+  DEFAULT_UNIT_SYSTEM,
+  UNIT_SYSTEMS,
+  type UnitSystem,
+} from '../../core/format/unit-system.js';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { nameText, tagText } from '../../core/limits.js';
@@ -56,7 +60,10 @@ const unitsQuery = z
 export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
   /** A PDF is written in the units asked for, else in the asker's preference. */
   const unitsFor = async (asked: UnitSystem | undefined, userId: number | undefined) =>
-    asked ?? (userId === undefined ? DEFAULT_UNIT_SYSTEM : (await app.store.preferences.get(userId)).displayUnits);
+    asked ??
+    (userId === undefined
+      ? DEFAULT_UNIT_SYSTEM
+      : (await app.store.preferences.get(userId)).displayUnits);
 
   app.get(
     '/api/fits/:id/report.pdf',

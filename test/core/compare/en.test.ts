@@ -44,8 +44,16 @@ describe('E_n numbers', () => {
   });
   it('the table: every pair once, in order, with E_n to two decimals', () => {
     const fits = [
-      { label: 'a', effectiveAreaM2: { value: 1.2e-3, expandedUncertainty: 3e-6 }, dischargeCoefficient: null },
-      { label: 'b', effectiveAreaM2: { value: 1.195e-3, expandedUncertainty: 4e-6 }, dischargeCoefficient: null },
+      {
+        label: 'a',
+        effectiveAreaM2: { value: 1.2e-3, expandedUncertainty: 3e-6 },
+        dischargeCoefficient: null,
+      },
+      {
+        label: 'b',
+        effectiveAreaM2: { value: 1.195e-3, expandedUncertainty: 4e-6 },
+        dischargeCoefficient: null,
+      },
       { label: 'c', effectiveAreaM2: null, dischargeCoefficient: null },
     ];
     const pairs = comparePairs(fits);

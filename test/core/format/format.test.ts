@@ -84,7 +84,7 @@ describe('digits (JCGM 100:2008 §7.2.6: U to two significant digits, the value 
   });
 });
 
-describe('quantities in the person\'s units', () => {
+describe("quantities in the person's units", () => {
   it('Cd·a of 1.2017 × 10⁻³ m² with U = 1.58 × 10⁻⁷ m²', () => {
     expect(areaText(1.201748e-3, 1.5765e-7)).toBe('1201.75 ± 0.16 mm²');
     // 1.201748e-3 / 6.4516e-4 = 1.862712 in², U 2.4436e-4 in² → 0.00024

@@ -21,6 +21,7 @@ import {
   inWords,
   dateTime,
   decimalsFor,
+  displayUnits,
   metres,
   mm,
   num,
@@ -33,6 +34,7 @@ import {
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
 import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/budget/drain-time.js';
+import { budgetTableOf } from '../../../server/core/budget/table.js';
 
 /** A parameter's value in the unit a person reads it in. */
 function scaled(unit: string): { factor: number; unit: string } {
@@ -255,7 +257,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
 
   // the uncertainty budget, then the drain-time calculator from the same budget
   if (r.budget?.table) {
-    const t = r.budget.table;
+    // made again from the stored lines in the person's units (the same function as the CLI's)
+    const t = budgetTableOf(r.budget as Parameters<typeof budgetTableOf>[0], displayUnits());
     main.append(
       h(
         'section',
