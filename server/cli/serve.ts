@@ -25,7 +25,7 @@ const say = (line: string) => process.stdout.write(`${line}\n`);
 export class DemoRefusedError extends Error {
   constructor(dataDir: string, vessels: number, tests: number) {
     super(
-      `the data folder ${dataDir} holds real records (${vessels} vessel(s), ${tests} test(s)): the invented demo is loaded ` +
+      `the data folder ${dataDir} holds real records (${countText(vessels, 'vessel')}, ${countText(tests, 'test')}): the invented demo is loaded ` +
         'only into an empty folder; run the demo in its own (npm start uses ./data-demo)',
     );
     this.name = 'DemoRefusedError';
