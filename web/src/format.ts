@@ -56,20 +56,36 @@ export function plusMinus(
   return measurementText(value, u, unit);
 }
 
+/**
+ * A quantity in the person's unit: with an uncertainty, value ± U (JCGM 100 §7.2.6 digits, zeros
+ * kept); without one it is an input or a threshold, so `digits` significant digits, zeros dropped.
+ */
+function shownQuantity(
+  q: DisplayQuantity,
+  si: number | null | undefined,
+  U: number | null | undefined,
+  digits: number,
+): string {
+  if (U !== undefined) return quantityText(q, si, U, units);
+  if (si === null || si === undefined || !Number.isFinite(si)) return '—';
+  const { symbol, perSi } = displayUnit(q, units);
+  return `${plainText(si * perSi, digits)} ${symbol}`;
+}
+
 /** Cd·a in the person's unit (mm² or in²), with its expanded uncertainty when given. */
 export function area(m2: number | null | undefined, U?: number | null): string {
-  return quantityText('area', m2, U, units, 5);
+  return shownQuantity('area', m2, U, 5);
 }
 /** Kept for the pages that call it by its old name: in the person's unit, not always mm². */
 export const areaMm2 = area;
 
 /** A flow in L/s or US gal/min. */
 export const flow = (m3s: number | null | undefined, U?: number | null) =>
-  quantityText('flow', m3s, U, units);
+  shownQuantity('flow', m3s, U, 4);
 
 /** A level or length in m or ft. */
 export function metres(m: number | null | undefined, digits = 3): string {
-  return quantityText('length', m, undefined, units, digits);
+  return shownQuantity('length', m, undefined, digits);
 }
 
 /** A small length (residuals) in mm or in. */
