@@ -5,7 +5,8 @@
  * Then (a second server, with the invented demo loaded) the heavy case: reads of health and of a
  * fit while a PDF of a fit with the longest fields, an export of every demo fit and the series of
  * a 1 000 000-row log are being made, over and over, for the case's seconds.
- * Run: node --import tsx bench/http.ts [seconds-per-case] [all|throughput|heavy]
+ * Run: node --import tsx bench/http.ts [seconds-per-case] [all|throughput|heavy|engines]
+ * (engines: SQLite and PostgreSQL side by side, one and two instances: bench/http-engines.ts)
  * (prints requests/s and latencies; the throughput cases need the shared bench logs)
  */
 import autocannon from 'autocannon';
@@ -408,3 +409,4 @@ async function heavy() {
 
 if (which === 'all' || which === 'throughput') await throughput();
 if (which === 'all' || which === 'heavy') await heavy();
+if (which === 'all' || which === 'engines') await import('./http-engines.js');

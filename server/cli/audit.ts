@@ -5,7 +5,7 @@
  */
 import { verifyRecords } from '../jobs/verify-records.js';
 import { openStore } from '../store/index.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 import { countText } from '../core/format/words.js';
 
 export async function run(argv: string[]): Promise<number> {
@@ -15,7 +15,7 @@ export async function run(argv: string[]): Promise<number> {
     );
     return 2;
   }
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     const r = await store.audit.verify();
     const records = await verifyRecords(store);

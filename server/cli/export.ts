@@ -12,7 +12,7 @@ import { openStore } from '../store/index.js';
 import { guarded } from './io.js';
 import { sitesByPart, vesselByName } from './names.js';
 import { parseCommandLine } from './options.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = `usage: efflux export [--site PART] [--vessel ID|TAG|NAME] [--from YYYY-MM-DD] [--to YYYY-MM-DD] --out archive.zip
 All approved (current) fits whose drain test falls in the period; --to includes its whole day.
@@ -38,7 +38,7 @@ export async function run(argv: string[]): Promise<number> {
     if (positionals.length)
       throw new InputError(`unexpected argument "${positionals[0]}" (see --help)`);
     if (!values.out) throw new InputError('say where to write the archive: --out archive.zip');
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       const t0 = performance.now();
       const sites =

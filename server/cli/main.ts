@@ -61,8 +61,13 @@ const COMMANDS: Record<string, Command> = {
     load: () => loadModule('people'),
   },
   site: {
-    summary: 'site settings: site self-review SITE on|off',
-    load: async () => ({ run: (await import('./people.js')).runSite }),
+    summary:
+      'site settings: site self-review SITE on|off | site clock SITE [--time-zone Z] [--interval D]',
+    load: async () => ({ run: (await import('./due.js')).runSite }),
+  },
+  due: {
+    summary: 'outlets overdue or soon due for a drain test, soonest first: due [--site S]',
+    load: async () => ({ run: (await import('./due.js')).runDue }),
   },
   audit: { summary: 'check the audit log: audit verify', load: () => loadModule('audit') },
   report: {
@@ -72,6 +77,11 @@ const COMMANDS: Record<string, Command> = {
   trend: {
     summary: "an outlet's Cd·a trend and forecast, or the fleet: trend <outletId> | trend --fleet",
     load: () => loadModule('trend'),
+  },
+  'migrate-store': {
+    summary:
+      'copy a data folder into an empty PostgreSQL database and verify the copy: migrate-store --from DIR --to postgres://…',
+    load: () => loadModule('migrate-store'),
   },
   backup: {
     summary: "copy the data folder's database online and check the copy: backup --out FILE",
@@ -90,8 +100,9 @@ const COMMANDS: Record<string, Command> = {
     load: () => loadModule('vessel'),
   },
   outlet: {
-    summary: "an outlet's action threshold: outlet threshold TAG|ID FACTOR|default",
-    load: async () => ({ run: (await import('./vessel.js')).runOutlet }),
+    summary:
+      "an outlet's settings: outlet threshold TAG|ID FACTOR|default | outlet interval TAG|ID DAYS|site",
+    load: async () => ({ run: (await import('./due.js')).runOutlet }),
   },
   export: {
     summary: 'approved fits of a site, vessel or period as one zip with hashes',

@@ -11,7 +11,7 @@ import {
   type Person,
   type Role,
 } from '../store/index.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = `usage:
   efflux people list
@@ -48,7 +48,7 @@ export async function run(argv: string[]): Promise<number> {
     process.stdout.write(`${USAGE}\n`);
     return sub ? 0 : 2;
   }
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     switch (sub) {
       case 'list':
@@ -109,7 +109,7 @@ export async function runSite(argv: string[]): Promise<number> {
     process.stderr.write('usage: efflux site self-review SITE on|off\n');
     return 2;
   }
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     const s = await store.sites.setSelfReview(SYSTEM_ACTOR, site, onOff === 'on');
     process.stdout.write(

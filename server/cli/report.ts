@@ -22,7 +22,7 @@ import { guarded, readInputFile } from './io.js';
 import { outletByName } from './names.js';
 import { parseCommandLine } from './options.js';
 import { UNITS_HELP, unitsFrom } from './units-option.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const USAGE = () => `usage:
   efflux report fit <fitId> --out FILE [--json | --units si|us]
@@ -49,7 +49,7 @@ function idArg(s: string | undefined, what: string): number {
 }
 
 async function withStore<T>(body: (store: Store) => Promise<T>): Promise<T> {
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   return body(store).finally(() => store.close());
 }
 

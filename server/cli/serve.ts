@@ -4,9 +4,12 @@
  * analyse tests left pending by an earlier run in the background; stop gracefully on
  * SIGINT/SIGTERM: in-flight requests finish (every write is one SQLite transaction, so nothing is
  * half-written). The invented demo goes only into an empty folder (marked as the demo's) with --demo.
+ * With EFFLUX_DATABASE_URL the records are in that PostgreSQL database instead, shared by any
+ * number of instances (no folder lock; the folder keeps the first token's file); the banner names
+ * the database without its password.
  */
 import closeWithGrace from 'close-with-grace';
-import { writeFileSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { buildApp } from '../http/app.js';
 import { loadDemo } from '../jobs/demo.js';
@@ -60,10 +63,19 @@ export async function run(argv: string[]): Promise<number> {
     return 0;
   }
   const cfg = serveConfig(process.env, { dataDir: values.data, demo: values.demo });
-  const lock = lockDataFolder(cfg.dataDir, `efflux serve${cfg.demo ? ' --demo' : ''}`); // FolderBusyError → exit 2
+  // One server per data folder on SQLite; on PostgreSQL any number share the database (each has a
+  // folder for its own files), so there is no folder lock to take.
+  const lock = cfg.databaseUrl
+    ? { release: () => {} }
+    : lockDataFolder(cfg.dataDir, `efflux serve${cfg.demo ? ' --demo' : ''}`); // FolderBusyError → exit 2
   let store: Store;
   try {
-    store = await openStore({ dataDir: cfg.dataDir });
+    if (cfg.databaseUrl) mkdirSync(cfg.dataDir, { recursive: true }); // the first token's file goes there
+    store = await openStore({
+      dataDir: cfg.dataDir,
+      databaseUrl: cfg.databaseUrl,
+      onDatabaseError: (e) => process.stderr.write(`efflux: database connection: ${e.message}\n`),
+    });
   } catch (e) {
     lock.release();
     throw e;
@@ -129,8 +141,11 @@ export async function run(argv: string[]): Promise<number> {
   // the first analysis in a fresh worker pays the JIT; let the built-in warm-up drain finish first
   await pool.warm;
   const address = await app.listen({ host: cfg.host, port: cfg.port });
+  // where the records are; a database address without its password
+  const where =
+    store.engine.kind === 'postgres' ? `database ${store.engine.url}` : `data in ${cfg.dataDir}`;
   say(
-    `efflux listening on ${address} (data in ${cfg.dataDir}${(await store.meta.isDemo()) ? '; DEMO data, invented' : ''})`,
+    `efflux listening on ${address} (${where}${(await store.meta.isDemo()) ? '; DEMO data, invented' : ''})`,
   );
   if (firstTokenFile) {
     say(

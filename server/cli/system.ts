@@ -3,7 +3,7 @@ import { InputError } from '../core/errors.js';
 import { timeUnitMs } from '../core/ingest/header.js';
 import { parseFlow, parseLength } from '../core/units/index.js';
 import { readFlowLog } from '../core/system/flow-log.js';
-import { inflowOnFitClock } from '../core/system/inflow-log.js';
+import { inflowOnFitClock, meanFlowOverSpan } from '../core/system/inflow-log.js';
 import type { InflowInput } from '../core/system/network.js';
 import { levelsAfter, timeToLevel } from '../core/system/predict.js';
 import { readVesselLog } from '../core/system/read-vessel-log.js';
@@ -16,7 +16,7 @@ import {
   solverLine,
   warningLines,
 } from '../core/fit-result/text.js';
-import { loadSystemModel, systemFitJson } from '../core/system/fit-json.js';
+import { loadSystemModel, systemFitJson, type InflowLogUse } from '../core/system/fit-json.js';
 import { linearize } from '../core/system/linear.js';
 import { linearModelCsv, linearModelText } from '../core/system/linear-export.js';
 import { buildNetwork } from '../core/system/network.js';
@@ -30,7 +30,7 @@ import {
 import { requireOrificeLaw, singleVesselModel } from '../core/budget/single-vessel.js';
 import { openStore } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
-import { dataDir } from './serve-config.js';
+import { dataDir, storeLocation } from './serve-config.js';
 import { existsSync } from 'node:fs';
 import { EXIT_OK, guarded, readInputFile } from './io.js';
 import { parseCommandLine } from './options.js';
@@ -52,11 +52,13 @@ exit codes: 0 done, 2 input refused, other: internal fault.
 `;
 
 const MODEL_SOURCES = `The model: a system file, the output of fit-system --json, the output of efflux fit --json
-(one vessel), or the id of a fit stored in the data folder (EFFLUX_DATA_DIR, as for efflux serve).
+(one vessel), or the id of a fit stored in the data folder (EFFLUX_DATA_DIR, as for efflux serve);
+  --joint-fit ID         instead: joint fit ID of connected vessels stored in the data folder
+                         (the workbench's connected-vessels page keeps them)
 `;
 
 const STEADY_USAGE =
-  `usage: efflux steady <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--inflow …] [--json]
+  `usage: efflux steady <system.json|fit.json|FIT_ID | --joint-fit ID> --inflow [ID=]FLOW [--inflow …] [--json]
 
 Equilibrium levels at constant inflows (e.g. --inflow 2.5L/s into the top vessel, or
 --inflow T2=1L/s), with intervals when given a fit. A system file
@@ -64,13 +66,18 @@ alone needs each vessel's "effectiveAreaM2" (or "dischargeCoefficient").
 ` + MODEL_SOURCES;
 
 const LINEAR_USAGE =
-  `usage: efflux linearize <system.json|fit.json|FIT_ID> --inflow [ID=]FLOW [--format json|csv|text]
+  `usage: efflux linearize <system.json|fit.json|FIT_ID | --joint-fit ID> --inflow [ID=]FLOW [--json | --csv]
 
-State-space model dx/dt = A x + B u (C = I) about the equilibrium at the given inflows, with
-each vessel's time constant and, from a fit, standard uncertainties.
+The linear model about the equilibrium at the given inflows: how fast each level moves per
+metre of level change in each vessel (A, 1/s) and per m³/s of extra inflow (B, 1/m²), each
+vessel's time constant and, from a fit, standard uncertainties. Printed as labelled tables;
+  --json                 the model as one JSON object
+  --csv                  one row per matrix entry (matrix,row,column,value,uncertainty,interval)
+  --format json|csv|text the same choice as one option
 ` + MODEL_SOURCES;
 
-const PREDICT_USAGE = `usage: efflux predict <system.json|fit.json|FIT_ID> --from [ID=]LEVEL [--from …] [--inflow [ID=]FLOW …]
+const PREDICT_USAGE =
+  `usage: efflux predict <system.json|fit.json|FIT_ID | --joint-fit ID> --from [ID=]LEVEL [--from …] [--inflow [ID=]FLOW …]
                      (--after DURATION | --until ID=LEVEL) [--json]
 
 Predicted levels after a time, or the time for one vessel to fall to a level, with 95 % intervals
@@ -85,7 +92,7 @@ when given the output of fit-system --json (a system file alone needs each vesse
 From a single-vessel fit (efflux fit --json, or a stored fit id) with no inflow the drain is
 integrated exactly (closed form for a constant plan area) and the 95 % interval comes from the
 fit's full uncertainty budget; ID may be left out (--from 3m --until 1m).
-`;
+` + MODEL_SOURCES;
 
 export async function runFitSystem(argv: string[]): Promise<number> {
   return guarded(() => {
@@ -146,13 +153,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
         `no log given for ${missing.join(', ')}: add --log ID=FILE for every vessel`,
       );
     const alignment = alignLogs(logs, values.window ? parseWindow(values.window) : undefined);
-    const inflowLogs: {
-      to: string;
-      file: string;
-      unit: string;
-      samples: number;
-      warnings: string[];
-    }[] = [];
+    const inflowLogs: InflowLogUse[] = [];
     const inflows: InflowInput[] = spec.inflows.map((f) => {
       const vessel = ids.get(f.to)!;
       if (!('log' in f)) return { vessel, constantM3S: f.constantM3S };
@@ -172,6 +173,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
         file: file.fileName,
         unit: series.unit,
         samples: placed.timeS!.length,
+        meanM3S: meanFlowOverSpan(placed.timeS!, placed.flowM3S!, alignment.spanS),
         warnings: series.warnings,
       });
       return placed;
@@ -207,7 +209,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
       );
     for (const f of inflowLogs)
       lines.push(
-        `  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly`,
+        `  inflow log ${f.file} (into ${f.to}): ${f.samples} readings in ${f.unit} over the fitted span, interpolated linearly; average ${(f.meanM3S * 1000).toPrecision(4)} L/s`,
       );
     // the sections every fit's report shares (core/fit-result/text.ts)
     lines.push(
@@ -230,13 +232,14 @@ export async function runSteady(argv: string[]): Promise<number> {
     const { values, positionals } = parseCommandLine(argv, {
       inflow: { type: 'string', multiple: true },
       json: { type: 'boolean' },
+      'joint-fit': { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     });
     if (values.help) {
       process.stdout.write(STEADY_USAGE);
       return EXIT_OK;
     }
-    const { spec, model, name, single } = await readModel(positionals);
+    const { spec, model, name, single } = await readModel(positionals, values['joint-fit']);
     if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const s = steadyState(model, q);
@@ -285,16 +288,28 @@ export async function runLinearize(argv: string[]): Promise<number> {
     const { values, positionals } = parseCommandLine(argv, {
       inflow: { type: 'string', multiple: true },
       format: { type: 'string' },
+      json: { type: 'boolean' },
+      csv: { type: 'boolean' },
+      'joint-fit': { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     });
     if (values.help) {
       process.stdout.write(LINEAR_USAGE);
       return EXIT_OK;
     }
-    const format = values.format ?? 'text';
+    const asked = [
+      values.json ? 'json' : null,
+      values.csv ? 'csv' : null,
+      values.format ?? null,
+    ].filter((f): f is string => f !== null);
+    if (new Set(asked).size > 1)
+      throw new InputError(
+        `give one output form (--json, --csv or --format); got ${asked.join(' and ')}`,
+      );
+    const format = asked[0] ?? 'text';
     if (!['json', 'csv', 'text'].includes(format))
       throw new InputError(`--format must be json, csv or text (got "${format}")`);
-    const { spec, model, name, single } = await readModel(positionals);
+    const { spec, model, name, single } = await readModel(positionals, values['joint-fit']);
     if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const lm = linearize(model, q);
@@ -317,6 +332,7 @@ export async function runPredict(argv: string[]): Promise<number> {
       after: { type: 'string' },
       until: { type: 'string' },
       json: { type: 'boolean' },
+      'joint-fit': { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     });
     if (values.help) {
@@ -327,7 +343,10 @@ export async function runPredict(argv: string[]): Promise<number> {
       throw new InputError(
         'give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)',
       );
-    const { spec, model, name, fromFit, single } = await readModel(positionals);
+    const { spec, model, name, fromFit, single } = await readModel(
+      positionals,
+      values['joint-fit'],
+    );
     const ids = spec.vessels.map((v) => v.id);
     if (ids.length === 1) {
       // one vessel: ID= may be left out
@@ -493,9 +512,24 @@ function readSystem(positionals: string[]): SystemSpec {
   return parseSystemFile(new TextDecoder().decode(f.bytes), positionals[0]);
 }
 
-async function readModel(positionals: string[]) {
+async function readModel(positionals: string[], jointFit: string | undefined) {
+  if (jointFit !== undefined) {
+    if (positionals.length)
+      throw new InputError(
+        `give either a model (${positionals.join(' ')}) or --joint-fit ${jointFit}, not both`,
+      );
+    if (!/^\d+$/.test(jointFit))
+      throw new InputError(
+        `--joint-fit takes the number of a stored joint fit (got "${jointFit}")`,
+      );
+    const name = `joint fit ${jointFit}`;
+    const value = await storedJointFitResult(Number(jointFit));
+    return { ...loadSystemModel(value, name), name, single: null };
+  }
   if (positionals.length !== 1)
-    throw new InputError('give exactly one system file, fit JSON or stored fit id');
+    throw new InputError(
+      'give exactly one system file, fit JSON or stored fit id (or --joint-fit ID for a stored joint fit)',
+    );
   const name = positionals[0];
   let value: unknown;
   if (/^\d+$/.test(name) && !existsSync(name)) value = await storedFitResult(Number(name));
@@ -508,9 +542,30 @@ async function readModel(positionals: string[]) {
   return { ...loadSystemModel(value, name), name, single: null };
 }
 
+/** The result of joint fit N in the data folder (stored from the workbench or POST /api/systems/fits). */
+async function storedJointFitResult(id: number): Promise<unknown> {
+  const store = await openStore(storeLocation());
+  try {
+    const fit = await store.jointFits.get(id);
+    if (fit.status === 'rejected')
+      process.stderr.write(
+        `efflux: note: joint fit ${id} was rejected on review (${fit.review?.comment ?? 'no comment'}); used as asked\n`,
+      );
+    else if (fit.status === 'draft')
+      process.stderr.write(`efflux: note: joint fit ${id} is a draft (not reviewed yet)\n`);
+    return fit.result;
+  } catch (e) {
+    if (e instanceof NotFoundError)
+      throw new InputError(`no joint fit ${id} in the data folder ${dataDir()}`);
+    throw e;
+  } finally {
+    await store.close();
+  }
+}
+
 /** The result JSON of fit N in the data folder. */
 async function storedFitResult(id: number): Promise<unknown> {
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     return (await store.fits.get(id)).result;
   } catch (e) {

@@ -11,7 +11,7 @@ import {
   SYSTEM_ACTOR,
   type Role,
 } from '../store/index.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 function option(argv: string[], name: string): string | undefined {
   const i = argv.indexOf(`--${name}`);
@@ -37,7 +37,7 @@ export async function run(argv: string[]): Promise<number> {
     process.stderr.write(`efflux token: role must be one of ${ROLES.join(', ')}, not "${role}"\n`);
     return 2;
   }
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     const { token, user } = await store.users.createToken(
       SYSTEM_ACTOR,
@@ -57,7 +57,7 @@ export async function run(argv: string[]): Promise<number> {
 }
 
 async function manage(sub: 'list' | 'revoke', rest: string[]): Promise<number> {
-  const store = await openStore({ dataDir: dataDir() });
+  const store = await openStore(storeLocation());
   try {
     if (sub === 'list') {
       const name = option(rest, 'name');

@@ -15,7 +15,7 @@ import {
 import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
 import { outletByName, refusalsAsInput, sitesByPart } from './names.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 import { clipText, countText } from '../core/format/words.js';
 import { daysText } from '../core/format/duration.js';
 import { toU } from '../core/format/digits.js';
@@ -87,6 +87,7 @@ function trendText(v: TrendView, units: UnitSystem): string {
     `outlet ${v.outlet.id} "${v.outlet.key}" of ${v.outlet.vesselName} (${v.outlet.site})${v.outlet.retired ? ', retired' : ''}, as of ${day(v.nowMs)}`,
     `status: ${s.status} — ${s.reason}`,
     `threshold: ${v.threshold.pct} % (${v.threshold.source}); time to threshold: ${days(s.daysToThreshold)}`,
+    `next test: ${v.schedule.reason}`,
   ];
   for (const e of v.epochs) {
     out.push(
@@ -107,6 +108,11 @@ function trendText(v: TrendView, units: UnitSystem): string {
       out.push(
         `  Cd·a line: ${e.area.slopePctPerYear.toFixed(2)} ± ${e.area.slopePctPerYearU.toFixed(2)} %/year (χ²/dof ${e.area.reducedChi2.toFixed(2)})`,
       );
+    for (const [k, g] of e.segments.entries())
+      if (g.startedBy === 'step')
+        out.push(
+          `  after the step (segment ${k + 1}, ${g.fitIds.length} test(s)): ${g.area ? `${g.area.slopePctPerYear.toFixed(2)} ± ${g.area.slopePctPerYearU.toFixed(2)} %/year` : 'too few tests for a line'}`,
+        );
     if (e.forecast) out.push(`  forecast: ${e.forecast.reason}`);
     if (e.step?.flagged) out.push(`  step: ${e.step.reason}`);
   }
@@ -165,7 +171,7 @@ export async function run(argv: string[]): Promise<number> {
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
     const nowMs = asOfMs(argv);
     const units = unitsFrom(option(argv, 'units'));
-    const store = await openStore({ dataDir: dataDir() });
+    const store = await openStore(storeLocation());
     try {
       if (argv.includes('--fleet')) {
         if (csv) throw new InputError("--csv is for one outlet's history", { field: 'csv' });

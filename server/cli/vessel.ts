@@ -13,7 +13,7 @@ import type { Vessel } from '../store/vessels.js';
 import { guarded, readInputFile } from './io.js';
 import { outletByName, refusalsAsInput, sitesByPart, vesselByName } from './names.js';
 import { parseCommandLine } from './options.js';
-import { dataDir } from './serve-config.js';
+import { storeLocation } from './serve-config.js';
 
 const VESSEL_USAGE = `usage:
   efflux vessel add FILE                       store a vessel file (revision 1)
@@ -30,6 +30,7 @@ Options: --data DIR (else EFFLUX_DATA_DIR, else ./data). A vessel file is JSON i
 const OUTLET_USAGE = `usage:
   efflux outlet threshold OUTLET FACTOR|default   the action threshold: the baseline Cd·a times
                                                   FACTOR (below 1 fouling, above 1 erosion)
+  efflux outlet interval OUTLET DAYS|site          days between its drain tests (see efflux due)
 OUTLET is an outlet id, its tag (as in the vessel file), a vessel tag with one outlet, or
 VESSEL/OUTLET; --site PART narrows the search. Options: --data DIR.
 `;
@@ -79,7 +80,7 @@ function summary(v: Vessel): string[] {
 }
 
 async function withStore<T>(values: { data?: string }, body: (s: Store) => Promise<T>): Promise<T> {
-  const store = await openStore({ dataDir: dataDir(process.env, { flag: values.data }) });
+  const store = await openStore(storeLocation(process.env, { flag: values.data }));
   try {
     return await refusalsAsInput(() => body(store));
   } finally {

@@ -16,6 +16,8 @@ export interface AnalysisSettings {
   quantity?: 'level' | 'gauge-pressure' | 'absolute-pressure' | 'distance-from-top';
   dateOrder?: 'dmy' | 'mdy' | 'ymd';
   tz?: string;
+  /** 'site': tz was not stated but taken from the vessel's site (its time zone) at upload. */
+  tzSource?: 'site';
   delimiter?: string;
   decimal?: '.' | ',';
   /** Long-format files (one row per time, tag and value): the level's tag, and the barometric tag if any. */

@@ -36,12 +36,15 @@ import { peopleRoutes } from './routes/people.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
+import { fitPeopleRoutes } from './routes/fit-people.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
+import { jointFitRoutes } from './routes/joint-fits.js';
 import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
+import { scheduleRoutes } from './routes/schedule.js';
 import { vesselRoutes } from './routes/vessels.js';
 import { vesselRevisionRoutes } from './routes/vessel-revisions.js';
 import { reportRoutes } from './routes/reports.js';
@@ -304,18 +307,21 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(testRoutes);
   await app.register(pendingRoutes);
   await app.register(fitRoutes);
+  await app.register(fitPeopleRoutes);
   await app.register(eventRoutes);
   await app.register(trendRoutes);
   await app.register(auditRoutes);
   await app.register(reportRoutes);
   await app.register(workbenchRoutes);
   await app.register(systemRoutes);
+  await app.register(jointFitRoutes);
   await app.register(planRoutes);
   await app.register(liveRoutes, {
     limitBytes: opts.uploadLimitBytes ?? DEFAULT_UPLOAD_LIMIT,
     refitMs: opts.liveRefitMs,
   });
   await app.register(peopleRoutes);
+  await app.register(scheduleRoutes);
   app.get(
     '/api/openapi.json',
     {

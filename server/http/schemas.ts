@@ -137,6 +137,9 @@ export const analysisSettings = z
     quantity: z.enum(['level', 'gauge-pressure', 'absolute-pressure', 'distance-from-top']),
     dateOrder: z.enum(['dmy', 'mdy', 'ymd']),
     tz: tagText().min(1),
+    tzSource: z.enum(['site']).meta({
+      description: "tz was not stated: the vessel's site's time zone was used",
+    }),
     delimiter: z.string().min(1).max(3),
     decimal: z.enum(['.', ',']),
     levelTag: tagText().min(1),

@@ -92,7 +92,7 @@ export class ExportJobs {
       abort: new AbortController(),
     };
     this.jobs.set(job.id, job);
-    void (await await this.run(job, chosen));
+    void this.run(job, chosen); // in the background: the caller gets 202 at once
     return view(job);
   }
 

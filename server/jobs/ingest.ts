@@ -1,7 +1,8 @@
 import type { AnalysisSettings } from '../core/analysis-contract.js';
 import { checkStatedTestDate, logTestDate, undatedTestError } from '../core/analysis/test-date.js';
 import { InputError, isInputError } from '../core/errors.js';
-import { ConflictError, isDiskFull } from '../store/errors.js';
+import type { Claim } from '../store/claims.js';
+import { ConflictError, isDiskFull, NotFoundError } from '../store/errors.js';
 import type { Actor, Store } from '../store/index.js';
 import type { StoredFit } from '../store/fits.js';
 import { sha256Hex, type DrainTest, type RawInput } from '../store/tests.js';
@@ -94,13 +95,14 @@ export async function uploadDrainTest(
   const testedAt = input.testedAt
     ? checkStatedTestDate(input.testedAt, input.nowMs ?? Date.now())
     : null;
+  const settings = await withSiteZone(store, vessel.id, input.settings);
   const t0 = performance.now();
   const test = await store.tests.createPending(actor, {
     vesselId: vessel.id,
     outletId: outlet?.id ?? null,
     log: input.log,
     baro: input.baro,
-    settings: input.settings as Record<string, unknown>,
+    settings: settings as Record<string, unknown>,
     operator: input.operator,
     loggerId: input.loggerId,
     testedAt,
@@ -133,6 +135,24 @@ export async function uploadDrainTest(
   const answer = { test: await store.tests.get(test.id), fit };
   timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
   return answer;
+}
+
+/**
+ * A log's local times (no offset) are read in the zone the person states, else in the vessel's
+ * site's zone (migration 008; 'UTC' unless the site sets one). The zone is written into the
+ * stored settings, so a later change of the site's zone never re-reads an old test differently.
+ */
+async function withSiteZone(
+  store: Store,
+  vesselId: number,
+  settings: AnalysisSettings,
+): Promise<AnalysisSettings> {
+  if (settings.tz !== undefined) return settings;
+  const site = await store.schedule.siteOfVessel(vesselId);
+  // a site at UTC reads as before (no zone): the reader then still refuses a clock change
+  // in a local-time log with a message asking for the zone
+  if (site.timeZone === 'UTC') return settings;
+  return { ...settings, tz: site.timeZone, tzSource: 'site' };
 }
 
 /** A retry with a key already used: the first upload's test and first fit, nothing stored. */
@@ -172,6 +192,18 @@ async function analyseStored(
   const busy = analysing(store);
   if (busy.has(test.id)) throw new ConflictError(`test ${test.id} is being analysed already`);
   busy.add(test.id);
+  let claimed: Claimed;
+  try {
+    claimed = await claimAnalysis(store, test.id, received !== undefined);
+  } catch (e) {
+    busy.delete(test.id);
+    throw e;
+  }
+  if (claimed.done) {
+    busy.delete(test.id);
+    await claimed.claim.release();
+    return claimed.done;
+  }
   try {
     const logBytes = received?.log.bytes ?? (await store.tests.rawBytes(test.sha256));
     const baroBytes = test.baro
@@ -210,6 +242,42 @@ async function analyseStored(
     throw e;
   } finally {
     busy.delete(test.id);
+    await claimed.claim.release();
+  }
+}
+
+/** Another instance on the same database is analysing this test now (a resume leaves it to it). */
+export class ClaimedElsewhereError extends ConflictError {
+  constructor(testId: number) {
+    super(`test ${testId} is being analysed by another instance`);
+    this.name = 'ClaimedElsewhereError';
+  }
+}
+
+interface Claimed {
+  claim: Claim;
+  /** The test's first fit when another instance analysed it before this one got the claim. */
+  done: StoredFit | null;
+}
+
+/**
+ * Makes this instance the test's analyst (store.claims: one instance at a time on a shared
+ * PostgreSQL database; always granted on SQLite). The upload that stored the test waits for a
+ * claim another instance's resume took in the moment after the commit, and then answers with that
+ * analysis; a resume or a retry does not wait (ClaimedElsewhereError). Once claimed, the test is
+ * read again: analysed meanwhile → its first fit; withdrawn meanwhile → NotFoundError.
+ */
+async function claimAnalysis(store: Store, testId: number, wait: boolean): Promise<Claimed> {
+  const claim = wait ? await store.claims.claim(testId) : await store.claims.tryClaim(testId);
+  if (!claim) throw new ClaimedElsewhereError(testId);
+  try {
+    if ((await store.tests.get(testId)).status === 'pending') return { claim, done: null };
+    const first = (await store.fits.listByTest(testId))[0];
+    if (!first) throw new ConflictError(`test ${testId} is analysed but has no fit`);
+    return { claim, done: first };
+  } catch (e) {
+    await claim.release();
+    throw e;
   }
 }
 
@@ -276,7 +344,8 @@ export async function refit(
   const vessel = await store.vessels.get(test.vesselId);
   const outlet =
     test.outletId === null ? null : (vessel.outlets.find((o) => o.id === test.outletId) ?? null);
-  const settings = { ...(old.settings as AnalysisSettings), ...changes };
+  const settings: AnalysisSettings = { ...(old.settings as AnalysisSettings), ...changes };
+  if (changes.tz !== undefined && changes.tzSource === undefined) delete settings.tzSource; // stated now
   const vesselSpec = vesselForAnalysis(vessel, outlet);
   const outcome = await analyze({
     log: { bytes: await store.tests.rawBytes(test.sha256), fileName: test.fileName },
@@ -326,6 +395,8 @@ export async function resumePending(
       report.done++;
     } catch (e) {
       if (e instanceof StoppingError) break;
+      // another instance has it, or took it back: not this one's to report
+      if (e instanceof ClaimedElsewhereError || e instanceof NotFoundError) continue;
       if (isInputError(e)) report.refused++;
       else report.failed.push({ testId: t.id, reason: e instanceof Error ? e.message : String(e) });
     }

@@ -9,7 +9,7 @@ import { alignLogs, type Alignment, type LogForSystem } from '../core/system/ali
 import { fitSystem, type SystemFitResult } from '../core/system/fit.js';
 import { systemFitJson, type InflowLogUse } from '../core/system/fit-json.js';
 import { readFlowLog } from '../core/system/flow-log.js';
-import { inflowOnFitClock } from '../core/system/inflow-log.js';
+import { inflowOnFitClock, meanFlowOverSpan } from '../core/system/inflow-log.js';
 import { buildNetwork, type InflowInput } from '../core/system/network.js';
 import { readVesselLog } from '../core/system/read-vessel-log.js';
 import { parseSystemFile, type SystemSpec } from '../core/system/schema.js';
@@ -22,6 +22,20 @@ import { parseSystemFile, type SystemSpec } from '../core/system/schema.js';
  * vessels"). The CLI has no cap.
  */
 export const MAX_FIT_SAMPLES = 200_000;
+/**
+ * A refusal inside one uploaded file names the form field it came in (the page says which of its
+ * file fields to fix), unless it already names a column of that file.
+ */
+function atField<T>(field: string, read: () => T): T {
+  try {
+    return read();
+  } catch (e) {
+    if (e instanceof InputError && e.field === undefined)
+      throw new InputError(e.message, { file: e.file, line: e.line, field });
+    throw e;
+  }
+}
+
 /** Points per vessel in the drawing part of the fit answer. */
 const DRAW_POINTS = 600;
 
@@ -69,13 +83,15 @@ export function systemFitAnswer(input: SystemFitInput): Record<string, unknown> 
         { field: `log:${id}` },
       );
     read.push(
-      readVesselLog(spec, vessel, network.gravity, file, {
-        unit: fields.unit,
-        tz: fields.tz,
-        dateOrder: fields.dateOrder,
-        delimiter: fields.delimiter,
-        decimal: fields.decimal,
-      }),
+      atField(`log:${id}`, () =>
+        readVesselLog(spec, vessel, network.gravity, file, {
+          unit: fields.unit,
+          tz: fields.tz,
+          dateOrder: fields.dateOrder,
+          delimiter: fields.delimiter,
+          decimal: fields.decimal,
+        }),
+      ),
     );
   }
   const missing = spec.vessels.filter((_, i) => !read.some((l) => l.vessel === i)).map((v) => v.id);
@@ -103,19 +119,22 @@ export function systemFitAnswer(input: SystemFitInput): Record<string, unknown> 
         `the system file gives a logged inflow for "${f.to}" (${f.log}): send it as the file field "inflow:${f.to}"`,
         { field: `inflow:${f.to}` },
       );
-    const series = readFlowLog(file.bytes, file.fileName, {
-      unit: f.unit,
-      tz: fields.tz,
-      dateOrder: fields.dateOrder,
-      delimiter: fields.delimiter,
-      decimal: fields.decimal,
-    });
-    const placed = inflowOnFitClock(series, vessel, alignment);
+    const series = atField(`inflow:${f.to}`, () =>
+      readFlowLog(file.bytes, file.fileName, {
+        unit: f.unit,
+        tz: fields.tz,
+        dateOrder: fields.dateOrder,
+        delimiter: fields.delimiter,
+        decimal: fields.decimal,
+      }),
+    );
+    const placed = atField(`inflow:${f.to}`, () => inflowOnFitClock(series, vessel, alignment));
     inflowLogs.push({
       to: f.to,
       file: file.fileName,
       unit: series.unit,
       samples: placed.timeS!.length,
+      meanM3S: meanFlowOverSpan(placed.timeS!, placed.flowM3S!, alignment.spanS),
       warnings: series.warnings,
     });
     return placed;

@@ -6,7 +6,9 @@
 import type { AnalysisRequest } from '../core/analysis-contract.js';
 import type { FitReport, OutletReport } from '../core/report/index.js';
 import type { UnitSystem } from '../core/format/unit-system.js';
+import type { JointFitReport } from '../core/report/joint-fit-report.js';
 import { renderFitReportPdf } from '../render/fit-report-pdf.js';
+import { renderJointFitReportPdf } from '../render/joint-fit-report-pdf.js';
 import { renderOutletReportPdf } from '../render/outlet-report-pdf.js';
 import { assembleExport, type ExportAssembly } from '../render/period-export-assembly.js';
 import { systemFitAnswer, type SystemFitInput } from './system-fit.js';
@@ -20,6 +22,7 @@ export interface TaskIo {
   inspect: { input: AnalysisRequest; output: Uint8Array };
   series: { input: SeriesRequest; output: Uint8Array };
   'system-fit': { input: SystemFitInput; output: Record<string, unknown> };
+  'joint-fit-report-pdf': { input: JointFitReport; output: Uint8Array };
 }
 
 export type TaskKind = keyof TaskIo;
@@ -47,6 +50,8 @@ export async function runTask<K extends TaskKind>(
       return (await seriesAnswer(input as SeriesRequest)) as TaskOutput<K>;
     case 'system-fit':
       return systemFitAnswer(input as SystemFitInput) as TaskOutput<K>;
+    case 'joint-fit-report-pdf':
+      return (await renderJointFitReportPdf(input as JointFitReport)) as TaskOutput<K>;
   }
   throw new Error(`unknown task "${String(kind)}"`);
 }

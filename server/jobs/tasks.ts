@@ -45,6 +45,7 @@ const KIND_WORDS: Record<TaskKind, string> = {
   inspect: 'look at the log',
   series: 'series of the stored log',
   'system-fit': 'joint fit of the connected vessels',
+  'joint-fit-report-pdf': 'connected-vessel fit report',
 };
 
 /** Default time limits, ms (EFFLUX_TASK_TIMEOUT_S sets them all). */
@@ -55,6 +56,7 @@ export const DEFAULT_TASK_TIMEOUT_MS: Record<TaskKind, number> = {
   inspect: 60_000,
   series: 60_000,
   'system-fit': 120_000,
+  'joint-fit-report-pdf': 60_000,
 };
 
 export interface TaskRunOptions {

@@ -116,6 +116,43 @@ export const point = z.object({
   stepZ: nn,
 });
 
+const segment = z.object({
+  fitIds: z.array(z.number().int()),
+  firstMs: n,
+  lastMs: n,
+  startedBy: z.enum(['step']).nullable(),
+  area: line,
+  cd: line,
+  areaBand: band,
+  cdBand: band,
+});
+
+export const newTestPrediction = z
+  .object({ at: z.string(), atMs: n, value: n, u: n, lower: n, upper: n, halfWidth95: n })
+  .nullable()
+  .meta({
+    id: 'NewTestPrediction',
+    description:
+      "Cd·a (m²) a test made then is expected to read about the trend line, with its 95 % prediction interval for a new test (the line's band plus a single test's scatter)",
+  });
+
+/** When the outlet is next due for a drain test (server/core/trend/due.ts). */
+export const schedule = z
+  .object({
+    intervalDays: z.number().int(),
+    intervalSource: z.enum(['outlet', 'site']),
+    latestTestAt: sn,
+    latestTestAgeDays: nn,
+    nextDueAt: sn,
+    nextDueMs: nn,
+    daysUntilDue: nn,
+    overdue: z.boolean(),
+    neverTested: z.boolean(),
+    /** One sentence: when due, or how long overdue and how old the latest test is. */
+    reason: z.string(),
+  })
+  .meta({ id: 'TestSchedule' });
+
 export const epoch = z.object({
   index: z.number().int(),
   current: z.boolean(),
@@ -132,6 +169,12 @@ export const epoch = z.object({
   thresholdCd: nn,
   forecast,
   step,
+  /** The epoch cut at a flagged step: each part its own line (or none with fewer than 3 tests). */
+  segments: z.array(segment),
+  /** Current epoch only: what a test made now would read. */
+  newTestNow: newTestPrediction,
+  /** Current epoch only: the 95 % prediction band of a new test, from the last test on. */
+  areaNewTestBand: band,
 });
 
 export const trendView = z
@@ -142,6 +185,7 @@ export const trendView = z
     threshold,
     status: outletStatus,
     epochs: z.array(epoch),
+    schedule,
     skipped: z.array(z.object({ fitId: z.number().int(), why: z.string() })),
   })
   .meta({ id: 'OutletTrend' });
@@ -155,6 +199,7 @@ export const fleetItem = z.object({
   retired: z.boolean(),
   forecastStatus: FORECAST_STATUS.nullable(),
   ...statusFields,
+  schedule: schedule.nullable(),
 });
 
 export const fleetView = z
@@ -193,5 +238,7 @@ export type TrendView = z.infer<typeof trendView>;
 export type OutletRef = z.infer<typeof outletRef>;
 export type ThresholdChoice = z.infer<typeof threshold>;
 export type FleetItem = z.infer<typeof fleetItem>;
+export type ScheduleView = z.infer<typeof schedule>;
+export type NewTestView = NonNullable<z.infer<typeof newTestPrediction>>;
 /** The fleet answer before paging (the route adds total, limit and offset). */
 export type FleetView = Omit<z.infer<typeof fleetView>, 'total' | 'limit' | 'offset'>;

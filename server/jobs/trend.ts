@@ -12,7 +12,7 @@ import {
   detectStep,
   epochLine,
   fleetOrder,
-  outletTrend,
+  outletTrendDetailed,
   splitEpochs,
   type BandPoint,
   type ForecastStatus,
@@ -23,7 +23,7 @@ import {
   type TrendLine,
 } from '../core/trend/index.js';
 import type { Store } from '../store/index.js';
-import type { CachedStatus, SkippedFit, TrendFitRow } from '../store/trends.js';
+import type { CachedStatus, TrendFitRow } from '../store/trends.js';
 import type { Outlet } from '../store/vessels.js';
 import type {
   EpochView,
@@ -53,6 +53,7 @@ export type {
   TrendView,
 };
 import { csvText } from '../core/report/csv.js';
+import { newTestView, overdueSentence, scheduleOf, schedulesById } from './due.js';
 
 export const STATUS_WORDS: readonly StatusWord[] = [
   'past threshold',
@@ -174,7 +175,7 @@ const stepView = (s: StepCheck | null): StepView | null =>
 const bandView = (b: BandPoint[]) =>
   b.filter((p) => Number.isFinite(p.value) && Number.isFinite(p.lower) && Number.isFinite(p.upper));
 
-/** One outlet's whole trend as the API serves it. */
+/** One outlet's whole trend as the API serves it, with when it is next due for a test. */
 export async function outletTrendView(
   store: Store,
   outletId: number,
@@ -185,12 +186,15 @@ export async function outletTrendView(
   const { fits, skipped } = await store.trends.approvedFits(outletId);
   const events = await store.trends.events(outletId);
   const settings = { actionThresholdPct: threshold.pct };
-  const trend = outletTrend(fits, events, settings, nowMs);
+  const { trend, details } = outletTrendDetailed(fits, events, settings, nowMs);
   const rows = new Map<string, TrendFitRow>(fits.map((f) => [f.fitId, f]));
+  const [scheduleRow] = await store.schedule.outlets(outletId);
+  const schedule = scheduleOf(scheduleRow, nowMs);
   // The core checks steps in the current epoch only; earlier epochs get the same check here,
   // so a blockage that a cleaning later removed still shows on the chart.
   const epochs = splitEpochs(fits, events);
   const last = trend.epochs.length - 1;
+  const overdue = overdueSentence(schedule, details[last]?.newTestNow ?? null);
   const out: EpochView[] = trend.epochs.map((ep, i) => {
     let step = ep.step;
     if (i !== last && epochs[i].fits.length > 0)
@@ -232,8 +236,20 @@ export async function outletTrendView(
       cdBand: bandView(ep.cdBand),
       thresholdM2: fin(ep.thresholdM2),
       thresholdCd: baseline ? baseline.dischargeCoefficient * (1 + threshold.pct / 100) : null,
-      forecast: forecastView(ep.forecast),
+      forecast: forecastWithAge(forecastView(ep.forecast), i === last ? overdue : null),
       step: stepView(step),
+      segments: details[i].segments.map((g) => ({
+        fitIds: g.fitIds.map(Number),
+        firstMs: g.firstMs,
+        lastMs: g.lastMs,
+        startedBy: g.startedBy,
+        area: lineView(g.area),
+        cd: lineView(g.cd),
+        areaBand: bandView(g.areaBand),
+        cdBand: bandView(g.cdBand),
+      })),
+      newTestNow: newTestView(details[i].newTestNow),
+      areaNewTestBand: bandView(details[i].areaNewTestBand),
     };
   });
   return {
@@ -243,8 +259,15 @@ export async function outletTrendView(
     threshold,
     status: statusView(trend.status),
     epochs: out,
+    schedule,
     skipped,
   };
+}
+
+/** An overdue outlet's forecast says so, with how old its latest test is and what a test now would read. */
+function forecastWithAge(f: ForecastView | null, sentence: string | null): ForecastView | null {
+  if (!f || !sentence) return f;
+  return { ...f, reason: `${f.reason}; ${sentence}` };
 }
 
 // ---- status, cached per outlet ----
@@ -299,7 +322,7 @@ export async function refreshStatus(
 }
 
 /** A cached status brought forward to nowMs: only the days to the threshold move. */
-function aged(row: CachedStatus, nowMs: number): FleetItem {
+function aged(row: CachedStatus, nowMs: number): Omit<FleetItem, 'schedule'> {
   const b = row.body as unknown as StatusView & { forecastStatus: ForecastStatus | null };
   const fixedZero = b.status === 'past threshold' && b.forecastStatus !== 'crossed';
   const days =
@@ -338,10 +361,14 @@ export interface FleetQuery {
   includeRetired?: boolean;
 }
 
-/** Every outlet's status, in the order to act on them (soonest threshold first). */
+/** Every outlet's status, in the order to act on them (soonest threshold first), each with when it is next due. */
 export async function fleetStatus(store: Store, q: FleetQuery, nowMs: number): Promise<FleetView> {
   const recomputed = await refreshStale(store, nowMs);
-  let items = (await store.trends.cachedStatuses()).map((r) => aged(r, nowMs));
+  const due = await schedulesById(store, nowMs);
+  let items = (await store.trends.cachedStatuses()).map((r) => ({
+    ...aged(r, nowMs),
+    schedule: due.get(r.outletId) ?? null,
+  }));
   if (!q.includeRetired) items = items.filter((i) => !i.retired);
   if (q.site !== undefined) items = items.filter((i) => i.site === q.site);
   if (q.sites) items = items.filter((i) => q.sites!.includes(i.site));

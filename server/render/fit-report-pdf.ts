@@ -3,31 +3,71 @@ import type { FitReport, ReportQuantity } from '../core/report/index.js';
 import { reportJson } from '../core/report/index.js';
 import { domainOf, drawChart } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type Doc, type DocIdentity } from './pdf-doc.js';
-import { contentWidth, ensureRoom, fields, heading, paragraph, table } from './pdf-layout.js';
+import {
+  fields,
+  figure,
+  heading,
+  layoutRecord,
+  paragraph,
+  table,
+  type RenderOptions,
+} from './pdf-layout.js';
 import {
   bytesText,
   dateText,
   DEFAULT_UNIT_SYSTEM,
+  displayUnit,
+  fixedText,
+  metresText,
+  millimetresText,
+  numberIn,
+  quantityText,
   resultText,
   shownUnit,
   sig,
   toU,
+  uncertaintyIn,
   unitsNote,
   uText,
   valueToU,
   type UnitSystem,
 } from './report-format.js';
+import {
+  fluidWords,
+  geometryWords,
+  parameterWords,
+  plainNames,
+  sensorWords,
+  settingRows,
+  settingsInline,
+} from './report-words.js';
 import { autocorrelationText } from '../core/budget/table.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
 const GREY = '#9aa1ab';
 
+/** DRAFT, REJECTED or SUPERSEDED across every page of a fit report not in force. */
+export function fitReportMark(r: FitReport): DocIdentity['mark'] {
+  if (/superseded/.test(r.status))
+    return { word: 'SUPERSEDED', meaning: 'a later fit of this test replaces this one' };
+  if (r.status.startsWith('draft'))
+    return {
+      word: 'DRAFT',
+      meaning: 'not reviewed; not for use until a second person approves it',
+    };
+  if (r.status.startsWith('rejected'))
+    return { word: 'REJECTED', meaning: 'the reviewer refused this fit; kept for the record only' };
+  return undefined;
+}
+
 export function fitReportIdentity(
   r: FitReport,
   units: UnitSystem = DEFAULT_UNIT_SYSTEM,
 ): DocIdentity {
+  const mark = fitReportMark(r);
   return {
+    ...(mark ? { mark } : {}),
     title: `Drain-test fit report — ${r.vessel.name}${r.outlet.key ? `, outlet ${r.outlet.key}` : ''}`,
     subject: `fit ${r.fitId} of test ${r.test.id}, site ${r.vessel.site}`,
     kind: 'fit',
@@ -75,65 +115,71 @@ function quantityRows(q: ReportQuantity, units: UnitSystem): [string, string][] 
   ];
 }
 
-function charts(doc: Doc, r: FitReport): void {
-  const w = contentWidth(doc) - 60;
-  const x = MARGIN + 56;
+function charts(doc: Doc, r: FitReport, units: UnitSystem): void {
   const { log, window: win } = r.plot;
   const wt = win.timeS.map((t) => t + win.offsetS);
-  ensureRoom(doc, 190);
-  heading(doc, 'The log and the fitted drain');
-  const y0 = doc.y + 4;
-  drawChart(
-    doc,
-    { x, y: y0, width: w, height: 150 },
-    {
-      xDomain: domainOf(log.timeS, wt),
-      yDomain: domainOf(log.levelM, win.fittedM),
-      xLabel: 'time from the start of the log, s',
-      yLabel: 'reading, m',
-      layers: [
-        { kind: 'line', xs: log.timeS, ys: log.levelM, color: GREY, width: 0.7 },
-        { kind: 'vline', x: r.window.startS, color: '#5b6670', dash: 2 },
-        { kind: 'vline', x: r.window.endS, color: '#5b6670', dash: 2 },
-        { kind: 'line', xs: wt, ys: win.observedM, color: BLUE, width: 0.9 },
-        { kind: 'line', xs: wt, ys: win.fittedM, color: RED, width: 1.1, dash: 3 },
-      ],
-      legend: [
-        { label: 'whole log', color: GREY },
-        { label: 'readings in the window', color: BLUE },
-        { label: 'fitted model', color: RED },
-      ],
-    },
-  );
-  doc.y = y0 + 178;
-  ensureRoom(doc, 150);
-  const resid = win.observedM.map((o, i) => 1000 * (o - win.fittedM[i]));
-  const y1 = doc.y;
-  drawChart(
-    doc,
-    { x, y: y1, width: w, height: 100 },
-    {
-      xDomain: domainOf(wt),
-      yDomain: domainOf(resid, [0]),
-      xLabel: 'time from the start of the log, s',
-      yLabel: 'residual, mm',
-      layers: [
-        { kind: 'hline', y: 0, color: '#5b6670' },
-        { kind: 'points', xs: wt, ys: resid, color: BLUE, radius: 0.7 },
-      ],
-    },
-  );
-  doc.y = y1 + 126;
-  paragraph(
-    doc,
-    `Residual = reading − fitted model, at the ${win.timeS.length} points drawn (the analysis thins long logs for drawing; statistics below use all ${r.window.samples} samples).`,
-    { muted: true, size: 7.5 },
-  );
+  // minutes once the log is longer than ten minutes: ticks a reader can count
+  const span = Math.max(...log.timeS, ...wt, 0) - Math.min(...log.timeS, ...wt, 0);
+  const inMin = span > 600;
+  const f = inMin ? 1 / 60 : 1;
+  const unit = inMin ? 'min' : 's';
+  const logT = log.timeS.map((t) => t * f);
+  const winT = wt.map((t) => t * f);
+  const xLabel = `time from the start of the log, ${unit}`;
+  // levels in m (ft), residuals in mm (in): the reader's units (core/format)
+  const level = displayUnit('length', units);
+  const small = displayUnit('smallLength', units);
+  const toLevel = (ys: number[]) => ys.map((y) => y * level.perSi);
+  const logY = toLevel(log.levelM);
+  const fittedY = toLevel(win.fittedM);
+  const observedY = toLevel(win.observedM);
+  figure(doc, {
+    title: 'Figure 1. The log and the fitted drain',
+    caption: `Grey: every reading of the log; dashed verticals: the drain window (${sig(r.window.startS * f, 4)} to ${sig(r.window.endS * f, 4)} ${unit}); blue points: the readings inside the window, drawn over the fitted model (red line).`,
+    height: 150,
+    draw: (frame) =>
+      drawChart(doc, frame, {
+        xDomain: domainOf(logT, winT),
+        yDomain: domainOf(logY, fittedY),
+        xLabel,
+        yLabel: `reading, ${level.symbol}`,
+        layers: [
+          { kind: 'line', xs: logT, ys: logY, color: GREY, width: 0.7 },
+          { kind: 'vline', x: r.window.startS * f, color: '#5b6670', dash: 2 },
+          { kind: 'vline', x: r.window.endS * f, color: '#5b6670', dash: 2 },
+          { kind: 'line', xs: winT, ys: fittedY, color: RED, width: 1.1 },
+          { kind: 'points', xs: winT, ys: observedY, color: BLUE, radius: 0.55 },
+        ],
+        legend: [
+          { label: 'whole log', color: GREY },
+          { label: 'readings in the window', color: BLUE },
+          { label: 'fitted model', color: RED },
+        ],
+      }),
+  });
+  const resid = win.observedM.map((o, i) => small.perSi * (o - win.fittedM[i]));
+  figure(doc, {
+    title: 'Figure 2. Residuals in the window',
+    caption: `Residual = reading − fitted model, at the ${win.timeS.length} points drawn (the analysis thins long logs for drawing; the statistics below use all ${r.window.samples} samples). A pattern rather than scatter about zero means the model misses something.`,
+    height: 100,
+    draw: (frame) =>
+      drawChart(doc, frame, {
+        xDomain: domainOf(winT),
+        yDomain: domainOf(resid, [0]),
+        xLabel,
+        yLabel: `residual, ${small.symbol}`,
+        layers: [
+          { kind: 'hline', y: 0, color: '#5b6670' },
+          { kind: 'points', xs: winT, ys: resid, color: BLUE, radius: 0.7 },
+        ],
+      }),
+  });
 }
 
 export async function renderFitReportPdf(
   r: FitReport,
   units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+  opts: RenderOptions = {},
 ): Promise<Buffer> {
   const id = fitReportIdentity(r, units);
   const doc = createReportDoc(id);
@@ -157,9 +203,9 @@ export async function renderFitReportPdf(
 
   heading(doc, 'Result');
   if (r.results.dischargeCoefficient)
-    fields(doc, quantityRows(r.results.dischargeCoefficient, units), 150);
+    fields(doc, quantityRows(r.results.dischargeCoefficient, units), 160);
   doc.moveDown(0.3);
-  fields(doc, quantityRows(r.results.effectiveArea, units), 150);
+  fields(doc, quantityRows(r.results.effectiveArea, units), 160);
   if (r.results.profileInterval95M2)
     fields(
       doc,
@@ -169,9 +215,21 @@ export async function renderFitReportPdf(
           `${valueToU(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty, 'm²', units)} … ${valueToU(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty, 'm²', units)} ${shownUnit('m²', units).symbol}`,
         ],
       ],
-      150,
+      160,
     );
-  fields(doc, [['solver converged', r.results.converged ? 'yes' : 'NO']], 150);
+  const inflow = r.parameters.find((p) => p.unit === 'm³/s' && p.free);
+  if (inflow)
+    fields(
+      doc,
+      [
+        [
+          'inflow during the drain, Q_in',
+          `${resultText(inflow.value, inflow.expandedUncertainty, 'm³/s', units)} (U, k = ${sig(inflow.coverageFactor, 3)}): a passing inlet or other constant inflow, fitted`,
+        ],
+      ],
+      160,
+    );
+  fields(doc, [['solver converged', r.results.converged ? 'yes' : 'NO']], 160);
   if (r.review)
     fields(
       doc,
@@ -181,33 +239,26 @@ export async function renderFitReportPdf(
           `${r.review.by ?? '—'} on ${dateText(r.review.at)}${r.review.selfReview ? ' (SELF-REVIEW: approved by the person who uploaded the test or asked for this fit; allowed for the site by an admin)' : ''}${r.review.comment ? ` — “${r.review.comment}”` : ''}`,
         ],
       ],
-      150,
+      160,
     );
-  else fields(doc, [['review', 'not reviewed (draft)']], 150);
+  else fields(doc, [['review', 'not reviewed (draft)']], 160);
 
   heading(doc, 'Vessel, outlet and test');
-  const shape = r.vessel.shape as Record<string, unknown> | null;
   fields(doc, [
     [
       'vessel',
       `${r.vessel.name} (id ${r.vessel.id}, vessel-file revision ${r.vessel.revision}), site ${r.vessel.site}`,
     ],
+    ['geometry', geometryWords(r.vessel.shape, units)],
+    ['sensor', sensorWords(r.vessel.sensor, units)],
     [
-      'geometry',
-      shape
-        ? Object.entries(shape)
-            .map(([k, v]) => `${k} ${typeof v === 'object' ? JSON.stringify(v) : v}`)
-            .join(', ')
-        : '—',
+      'liquid',
+      `${fluidWords(r.vessel.fluid)}; density used ${sig(r.vessel.fluidDensityKgM3, 6)} kg/m³ (${r.vessel.fluidDensitySource ?? 'source not stated'})`,
     ],
-    ['sensor', r.vessel.sensor ? JSON.stringify(r.vessel.sensor) : '—'],
-    [
-      'fluid',
-      `${r.vessel.fluid ? JSON.stringify(r.vessel.fluid) + '; ' : ''}density ${sig(r.vessel.fluidDensityKgM3, 6)} kg/m³ (${r.vessel.fluidDensitySource ?? '—'}); g = ${sig(r.vessel.gravityMS2, 6)} m/s²`,
-    ],
+    ['gravity', `g = ${sig(r.vessel.gravityMS2, 6)} m/s²`],
     [
       'outlet',
-      `${r.outlet.key ?? '—'} (${r.outlet.type ?? 'type not stated'}): bore d = ${sig(r.outlet.boreM)} m ± ${sig(r.outlet.boreToleranceM, 2)} m, centreline elevation ${sig(r.outlet.elevationM)} m, nominal area ${sig(r.outlet.nominalAreaM2)} m²`,
+      `${r.outlet.key ?? '—'} (${r.outlet.type ?? 'type not stated'}): bore d = ${millimetresText(r.outlet.boreM, units)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM, units)}` : ''}, centreline ${metresText(r.outlet.elevationM, units)} above the datum, nominal area ${quantityText('area', r.outlet.nominalAreaM2, undefined, units, 5)}`,
     ],
     [
       'test',
@@ -224,17 +275,14 @@ export async function renderFitReportPdf(
     fields(doc, [['SHA-256', f.sha256]], 130, { monoValues: true });
   }
 
-  charts(doc, r);
+  charts(doc, r, units);
 
   heading(doc, 'Reading');
-  const settings = Object.entries(r.reading.settings);
+  paragraph(doc, 'Settings given for this fit (anything not listed was detected from the log):', {
+    size: 8,
+  });
+  fields(doc, settingRows(r.reading.settings), 150);
   fields(doc, [
-    [
-      'settings given',
-      settings.length
-        ? settings.map(([k, v]) => `${k} = ${JSON.stringify(v)}`).join('; ')
-        : 'none (everything detected)',
-    ],
     [
       'first sample',
       `${dateText(r.reading.firstSampleAt)}; ${r.reading.samples ?? '—'} samples read`,
@@ -249,8 +297,8 @@ export async function renderFitReportPdf(
     ],
     r.reading.columns.map((c) => [c.header, c.role, c.unit ?? '—']),
   );
-  for (const n of r.reading.notes as { message?: string }[])
-    paragraph(doc, `• ${n.message ?? JSON.stringify(n)}`, { size: 7.8 });
+  for (const n of r.reading.notes as { message?: string; code?: string }[])
+    paragraph(doc, `• ${plainNames(n.message ?? String(n.code ?? 'note'))}`, { size: 7.8 });
 
   heading(doc, 'Drain window and what was left out');
   const wd = r.window;
@@ -296,14 +344,14 @@ export async function renderFitReportPdf(
       ],
       wd.trims.map((t) => [t.what, `${sig(t.fromS, 6)} … ${sig(t.toS, 6)}`, t.reason]),
     );
-  for (const n of wd.notes) paragraph(doc, `• ${n.message}`, { size: 7.8 });
+  for (const n of wd.notes) paragraph(doc, `• ${plainNames(n.message)}`, { size: 7.8 });
 
   heading(doc, 'Model');
   paragraph(doc, r.model.equation, { mono: true });
   for (const s of r.model.inWords) paragraph(doc, `• ${s}`, { size: 8 });
   fields(doc, [
-    ['free parameters', r.model.freeParameters],
-    ['solution', r.model.solution],
+    ['free parameters', plainNames(r.model.freeParameters)],
+    ['solution', plainNames(r.model.solution)],
   ]);
 
   heading(doc, 'Parameters (JCGM 100:2008 terms)');
@@ -319,19 +367,20 @@ export async function renderFitReportPdf(
       { title: 'unit', width: 30 },
     ],
     r.parameters.map((p) => {
+      const [name, symbol] = parameterWords(p.name, p.symbol);
       const shown = shownUnit(p.unit, units);
       return [
-        `${p.name} (${p.symbol})${p.atBound ? ' — at bound' : ''}`,
+        `${name} (${symbol})${p.atBound ? ' — at bound' : ''}`,
         p.free
           ? valueToU(p.value, p.standardUncertainty, p.unit, units)
-          : `${sig(p.value * shown.perSi, 6)} (fixed)`,
-        uText(p.standardUncertainty, p.unit, units).replace(` ${shown.symbol}`, ''),
+          : `${valueToU(p.value, null, p.unit, units)} (fixed)`,
+        uncertaintyIn(p.standardUncertainty, p.unit, units),
         sig(p.coverageFactor, 4),
-        uText(p.expandedUncertainty, p.unit, units).replace(` ${shown.symbol}`, ''),
+        uncertaintyIn(p.expandedUncertainty, p.unit, units),
         p.interval95
           ? `${valueToU(p.interval95[0], p.standardUncertainty, p.unit, units)} … ${valueToU(p.interval95[1], p.standardUncertainty, p.unit, units)}`
           : '—',
-        shown.symbol || p.unit,
+        shown.symbol || '—',
       ];
     }),
   );
@@ -345,7 +394,7 @@ export async function renderFitReportPdf(
       ],
       r.correlations.matrix.map((row, i) => [
         r.correlations.parameters[i],
-        ...row.map((v) => (v === null ? '—' : v.toFixed(4))),
+        ...row.map((v) => fixedText(v, 4)),
       ]),
     );
   }
@@ -357,7 +406,7 @@ export async function renderFitReportPdf(
     [
       [
         'residuals',
-        `${rs.samples ?? '—'} samples; RMSE ${sig(rs.rmseM, 3)} m; largest |r| ${sig(rs.maxAbsM, 3)} m; lag-1 autocorrelation ρ = ${sig(rs.lag1Autocorrelation, 3)}; Durbin–Watson ${sig(rs.durbinWatson, 3)}`,
+        `${rs.samples ?? '—'} samples; RMSE ${millimetresText(rs.rmseM, units)}; largest |r| ${millimetresText(rs.maxAbsM, units)}; lag-1 autocorrelation ρ = ${sig(rs.lag1Autocorrelation, 3)}; Durbin–Watson ${sig(rs.durbinWatson, 3)}`,
       ],
       ['covariance', rs.covariance ?? '—'],
       [
@@ -386,7 +435,7 @@ export async function renderFitReportPdf(
       r.budget.rows,
     );
     fields(doc, r.budget.totals, 60);
-    for (const n of r.budget.notes) paragraph(doc, `· ${n}`, { size: 7.5 });
+    for (const n of r.budget.notes) paragraph(doc, `· ${plainNames(n)}`, { size: 7.5 });
   }
 
   const cmp = r.modelComparison as {
@@ -398,7 +447,7 @@ export async function renderFitReportPdf(
     heading(doc, 'Model comparison');
     paragraph(
       doc,
-      `Chosen: ${cmp.chosen?.model} (SSR ${sig(cmp.chosen?.sumSquares)} m², AIC ${sig(cmp.chosen?.aic, 6)}). ${cmp.basis ?? ''}`,
+      `Chosen: ${plainNames(String(cmp.chosen?.model ?? '—'))} (SSR ${sig(cmp.chosen?.sumSquares)} m², AIC ${sig(cmp.chosen?.aic, 6)}). ${plainNames(cmp.basis ?? '')}`,
       { size: 8 },
     );
     table(
@@ -411,7 +460,7 @@ export async function renderFitReportPdf(
         { title: 'p', width: 60, align: 'right' },
       ],
       cmp.rows.map((row) => [
-        `${row.change} ${row.term}: ${row.model}`,
+        plainNames(`${row.change} ${row.term}: ${row.model}`),
         sig(row.sumSquares),
         sig(row.deltaAic, 3),
         sig(row.fTest?.f, 3),
@@ -424,16 +473,16 @@ export async function renderFitReportPdf(
     table(
       doc,
       [
-        { title: 'head from → to, m', width: 120 },
+        { title: `head from → to, ${displayUnit('length', units).symbol}`, width: 120 },
         { title: 'samples', width: 60, align: 'right' },
         { title: 'Cd', width: 80, align: 'right' },
         { title: 'u', width: 80, align: 'right' },
       ],
       r.headBands.map((b) => [
-        `${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)}`,
+        `${numberIn(b.headFromM, 'm', units, 3)} → ${numberIn(b.headToM, 'm', units, 3)}`,
         String(b.samples),
         toU(b.dischargeCoefficient, b.standardUncertainty),
-        sig(b.standardUncertainty, 2),
+        uncertaintyIn(b.standardUncertainty, '1', units),
       ]),
     );
   }
@@ -441,10 +490,10 @@ export async function renderFitReportPdf(
   heading(doc, 'Solver record');
   const s = r.solver as Record<string, any>;
   fields(doc, [
-    ['method', String(s.method ?? '—')],
+    ['method', plainNames(String(s.method ?? '—'))],
     [
       'stop',
-      `${s.stopReason ?? '—'} after ${s.iterations ?? '—'} iterations, ${s.evaluations ?? '—'} evaluations, ${s.jacobianEvaluations ?? '—'} Jacobians`,
+      `${String(s.stopReason ?? '—').replace(/-/g, ' ')} after ${s.iterations ?? '—'} iterations, ${s.evaluations ?? '—'} evaluations, ${s.jacobianEvaluations ?? '—'} Jacobians`,
     ],
     [
       'rank, singular values',
@@ -456,7 +505,7 @@ export async function renderFitReportPdf(
   heading(doc, 'Warnings');
   if (r.warnings.length)
     for (const wn of r.warnings)
-      paragraph(doc, `! [${wn.stage ?? '—'}] ${wn.message}`, { size: 8 });
+      paragraph(doc, `! ${wn.stage ? `(${wn.stage}) ` : ''}${plainNames(wn.message)}`, { size: 8 });
   else paragraph(doc, 'none', { size: 8 });
 
   heading(doc, 'Review and history');
@@ -476,7 +525,7 @@ export async function renderFitReportPdf(
       h.createdBy ?? 'system',
       `${h.status}${h.supersededBy !== null ? `, superseded by ${h.supersededBy}` : ''}`,
       sig(h.dischargeCoefficient, 5),
-      JSON.stringify(h.settings),
+      settingsInline(h.settings),
     ]),
   );
   paragraph(
@@ -508,5 +557,6 @@ export async function renderFitReportPdf(
     `To check this document against the records: efflux report verify <this file>. The canonical JSON of the report is attached to the PDF as report.json; its SHA-256 without the two identity fields is the content hash above.`,
     { size: 7.5, muted: true },
   );
+  opts.layout?.push(...layoutRecord(doc));
   return finishReportDoc(doc, id);
 }

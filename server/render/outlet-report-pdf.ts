@@ -1,14 +1,27 @@
 /** The outlet-history report as PDF: status, the Cd·a trend with its band and threshold, the fits. */
 import type { OutletReport } from '../core/report/index.js';
 import { reportJson } from '../core/report/index.js';
+import { dateTicks } from './chart-ticks.js';
 import { domainOf, drawChart, type Layer } from './pdf-chart.js';
 import { createReportDoc, finishReportDoc, MARGIN, type DocIdentity } from './pdf-doc.js';
-import { contentWidth, fields, heading, paragraph, table } from './pdf-layout.js';
+import {
+  fields,
+  figure,
+  heading,
+  layoutRecord,
+  paragraph,
+  table,
+  type RenderOptions,
+} from './pdf-layout.js';
 import {
   areaText,
   dateText,
+  dayText as day,
   daysText,
   DEFAULT_UNIT_SYSTEM,
+  metresText,
+  millimetresText,
+  numberIn,
   shownUnit,
   sig,
   toU,
@@ -16,11 +29,9 @@ import {
   valueToU,
   type UnitSystem,
 } from './report-format.js';
-import { plainText } from '../core/format/digits.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
-const day = (ms: number) => new Date(ms).toISOString().slice(0, 10);
 
 export function outletReportIdentity(
   r: OutletReport,
@@ -46,6 +57,7 @@ export function outletReportIdentity(
 export async function renderOutletReportPdf(
   r: OutletReport,
   units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+  opts: RenderOptions = {},
 ): Promise<Buffer> {
   const id = outletReportIdentity(r, units);
   const area = shownUnit('m²', units);
@@ -87,15 +99,14 @@ export async function renderOutletReportPdf(
       'threshold forecast',
       st.crossingMs === null
         ? 'none'
-        : `${day(st.crossingMs)} (${daysText(st.daysToThreshold)} from the as-of date)`,
+        : `${day(st.crossingMs)} (in ${daysText(st.daysToThreshold)} from the as-of date)`,
     ],
     [
       'outlet',
-      `${r.outlet.type ?? 'type not stated'}, bore ${sig(r.outlet.boreM)} m ± ${sig(r.outlet.boreToleranceM, 2)} m, elevation ${sig(r.outlet.elevationM)} m`,
+      `${r.outlet.type ?? 'type not stated'}, bore ${millimetresText(r.outlet.boreM, units)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM, units)}` : ''}, centreline ${metresText(r.outlet.elevationM, units)} above the vessel's datum`,
     ],
   ]);
 
-  heading(doc, 'Effective area Cd·a over time');
   const layers: Layer[] = [];
   const allX: number[] = [];
   const allY: number[] = [];
@@ -105,27 +116,27 @@ export async function renderOutletReportPdf(
       layers.push({
         kind: 'band',
         xs: b.map((p) => p.atMs),
-        lower: b.map((p) => p.lower),
-        upper: b.map((p) => p.upper),
+        lower: b.map((p) => p.lower * area.perSi),
+        upper: b.map((p) => p.upper * area.perSi),
         color: BLUE,
       });
       layers.push({
         kind: 'line',
         xs: b.map((p) => p.atMs),
-        ys: b.map((p) => p.value),
+        ys: b.map((p) => p.value * area.perSi),
         color: BLUE,
         width: 0.9,
       });
       allX.push(b[0].atMs, b[b.length - 1].atMs);
-      allY.push(...b.map((p) => p.lower), ...b.map((p) => p.upper));
+      allY.push(...b.map((p) => p.lower * area.perSi), ...b.map((p) => p.upper * area.perSi));
     }
     const xs = ep.series.map((p) => p.testedAtMs);
-    const ys = ep.series.map((p) => p.effectiveAreaM2);
+    const ys = ep.series.map((p) => p.effectiveAreaM2 * area.perSi);
     layers.push({
       kind: 'points',
       xs,
       ys,
-      errors: ep.series.map((p) => 2 * p.effectiveAreaU),
+      errors: ep.series.map((p) => 2 * p.effectiveAreaU * area.perSi),
       color: '#1f2a36',
       radius: 2,
     });
@@ -135,14 +146,14 @@ export async function renderOutletReportPdf(
       const x1 = b.length ? b[b.length - 1].atMs : xs[xs.length - 1];
       layers.push({
         kind: 'hline',
-        y: ep.thresholdM2,
+        y: ep.thresholdM2 * area.perSi,
         x0: ep.series[0]?.testedAtMs ?? ep.startMs,
         x1,
         color: RED,
         dash: 3,
         label: `action threshold ${areaText(ep.thresholdM2, undefined, units)}`,
       });
-      allY.push(ep.thresholdM2);
+      allY.push(ep.thresholdM2 * area.perSi);
     }
     if (ep.startedBy)
       layers.push({
@@ -154,35 +165,26 @@ export async function renderOutletReportPdf(
       });
   }
   const xd = domainOf(allX);
-  const ticks = [0, 0.25, 0.5, 0.75, 1]
-    .map((f) => xd[0] + f * (xd[1] - xd[0]))
-    .map((v) => ({ value: v, label: day(v) }));
-  const y0 = doc.y + 4;
-  drawChart(
-    doc,
-    { x: MARGIN + 56, y: y0, width: contentWidth(doc) - 60, height: 170 },
-    {
-      xDomain: xd,
-      yDomain: domainOf(allY),
-      xLabel: 'date of the drain test',
-      yLabel: `Cd·a, ${area.symbol}`,
-      xTicks: ticks,
-      yFormat: (v) => plainText(v * area.perSi, 4),
-      layers,
-      legend: [
-        { label: 'approved fits ±2u', color: '#1f2a36' },
-        { label: 'trend line, 95 % band', color: BLUE },
-        { label: 'action threshold', color: RED },
-      ],
-    },
-  );
-  doc.y = y0 + 196;
-  doc.x = MARGIN;
-  paragraph(
-    doc,
-    'Bars: ±2 standard uncertainties (k = 2). Band: 95 % interval of the weighted trend line of the epoch (weights from each fit’s uncertainty). A maintenance event starts a new epoch with a new baseline.',
-    { size: 7.5, muted: true },
-  );
+  figure(doc, {
+    title: 'Figure 1. Effective area Cd·a over time',
+    caption:
+      'Points: approved fits with bars of ±2 standard uncertainties (k = 2). Band: 95 % interval of the weighted trend line of the epoch (weights from each fit’s uncertainty). Dashed red: the action threshold. A maintenance event (dashed grey) starts a new epoch with a new baseline.',
+    height: 170,
+    draw: (frame) =>
+      drawChart(doc, frame, {
+        xDomain: xd,
+        yDomain: domainOf(allY),
+        xLabel: 'date of the drain test',
+        yLabel: `Cd·a, ${area.symbol}`,
+        xTicks: dateTicks(xd[0], xd[1], 7),
+        layers,
+        legend: [
+          { label: 'approved fits ±2u', color: '#1f2a36' },
+          { label: 'trend line, 95 % band', color: BLUE },
+          { label: 'action threshold', color: RED },
+        ],
+      }),
+  });
 
   heading(doc, 'Approved fits');
   table(
@@ -224,7 +226,7 @@ export async function renderOutletReportPdf(
       ep.startedBy ? `${ep.startedBy.kind} ${day(ep.startedBy.atMs)}` : 'first tests',
       String(ep.series.length),
       ep.area ? `${sig(ep.area.slopePctPerYear, 3)} ± ${sig(ep.area.slopePctPerYearU, 2)}` : '—',
-      ep.thresholdM2 === null ? '—' : plainText(ep.thresholdM2 * area.perSi, 4),
+      numberIn(ep.thresholdM2, 'm²', units, 4),
       ep.forecast ? ep.forecast.reason : '—',
     ]),
   );
@@ -251,5 +253,6 @@ export async function renderOutletReportPdf(
     'Each fit has its own report (efflux report fit <fitId>); check this document against the records with efflux report verify <this file>.',
     { size: 7.5, muted: true },
   );
+  opts.layout?.push(...layoutRecord(doc));
   return finishReportDoc(doc, id);
 }

@@ -3,6 +3,7 @@
  * "nice" ticks, lines, points with error bars, a shaded band, horizontal and vertical markers.
  */
 import type { Doc } from './pdf-doc.js';
+import { tickText } from './report-format.js';
 import { linearScale, niceTicks, type Scale } from './svg-chart.js';
 
 export interface ChartFrame {
@@ -59,8 +60,6 @@ export interface ChartSpec {
   legend?: { label: string; color: string }[];
 }
 
-const fmt = (v: number) => String(+v.toPrecision(4));
-
 export function drawChart(doc: Doc, f: ChartFrame, spec: ChartSpec): void {
   const sx = linearScale(spec.xDomain[0], spec.xDomain[1], f.x, f.x + f.width);
   // room at the top for the legend, so it never hides a data point
@@ -69,9 +68,10 @@ export function drawChart(doc: Doc, f: ChartFrame, spec: ChartSpec): void {
   const sy = linearScale(y0, yTop, f.y + f.height, f.y);
   doc.save();
   doc.rect(f.x, f.y, f.width, f.height).fill('#fbfaf7');
-  const yFmt = spec.yFormat ?? fmt;
+  const yTicks = niceTicks(y0, yTop, 5);
+  const yFmt = spec.yFormat ?? tickText(yTicks);
   doc.font('regular').fontSize(6.5).fillColor('#46505c');
-  for (const t of niceTicks(y0, yTop, 5)) {
+  for (const t of yTicks) {
     const py = sy(t);
     if (py < f.y - 0.5 || py > f.y + f.height + 0.5) continue;
     doc
@@ -82,9 +82,9 @@ export function drawChart(doc: Doc, f: ChartFrame, spec: ChartSpec): void {
       .stroke();
     doc.text(yFmt(t), f.x - 44, py - 3, { width: 41, align: 'right', lineBreak: false });
   }
-  const xTicks =
-    spec.xTicks ??
-    niceTicks(spec.xDomain[0], spec.xDomain[1], 6).map((v) => ({ value: v, label: fmt(v) }));
+  const xNice = niceTicks(spec.xDomain[0], spec.xDomain[1], 6);
+  const xFmt = tickText(xNice);
+  const xTicks = spec.xTicks ?? xNice.map((v) => ({ value: v, label: xFmt(v) }));
   for (const t of xTicks) {
     const px = sx(t.value);
     if (px < f.x - 0.5 || px > f.x + f.width + 0.5) continue;

@@ -22,7 +22,7 @@ export type Doc = PDFKit.PDFDocument;
 export interface DocIdentity {
   title: string;
   subject: string;
-  kind: 'fit' | 'outlet';
+  kind: 'fit' | 'outlet' | 'joint-fit';
   reportId: string;
   contentSha256: string;
   /** ISO time: the document's CreationDate and ModDate. */
@@ -31,6 +31,11 @@ export interface DocIdentity {
   extra: Record<string, string>;
   /** The canonical JSON report, embedded as an attachment so a PDF can be compared field by field. */
   json: string;
+  /**
+   * A status the reader must not miss (DRAFT, REJECTED, SUPERSEDED), printed in the header and
+   * across every page; with a line saying what it means. Absent for a report in force.
+   */
+  mark?: { word: string; meaning: string };
 }
 
 export const MARGIN = 50;
@@ -140,9 +145,38 @@ export function finishReportDoc(doc: Doc, id: DocIdentity): Promise<Buffer> {
         height - MARGIN + 6,
         { width: 70, align: 'right', lineBreak: false },
       );
+    if (id.mark) drawMark(doc, id.mark);
     doc.restore();
     doc.page.margins.bottom = bottom;
   }
   doc.end();
   return done;
+}
+
+const MARK_RED = '#b8432f';
+
+/**
+ * The status in red under the header and a red rule round the page. Not a rotated word across the
+ * page: text extractors read a diagonal word letter by letter into the lines it crosses.
+ */
+function drawMark(doc: Doc, mark: { word: string; meaning: string }): void {
+  const { width, height } = doc.page;
+  doc.save();
+  doc
+    .rect(MARGIN - 20, MARGIN - 30, width - 2 * MARGIN + 40, height - 2 * MARGIN + 50)
+    .lineWidth(2.5)
+    .strokeColor(MARK_RED)
+    .strokeOpacity(0.55)
+    .stroke();
+  doc.restore();
+  doc.save();
+  doc
+    .font('bold')
+    .fontSize(9)
+    .fillColor(MARK_RED)
+    .text(`${mark.word} — ${mark.meaning}`, MARGIN, MARGIN - 3, {
+      width: width - 2 * MARGIN,
+      lineBreak: false,
+    });
+  doc.restore();
 }

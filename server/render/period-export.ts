@@ -210,7 +210,7 @@ export async function periodExport(
     name: 'audit-excerpt.jsonl',
     bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n'),
   });
-  const zip = await await await await assemble({
+  const zip = await assemble({
     entries,
     selection: { ...sel },
     software,

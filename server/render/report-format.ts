@@ -4,18 +4,19 @@
  * for digit. A PDF is written in the units of the person who asked for it (or `?units=`), marked
  * on the report and in its metadata (EffluxUnits) so `report verify` re-renders it the same way.
  */
-export { sig, toU } from '../core/format/digits.js';
+export { fixedText, sig, toU } from '../core/format/digits.js';
 export {
   areaText,
   flowText,
   lengthText,
   measurementText,
   smallLengthText,
+  quantityText,
   uncertaintyText,
   daysText,
 } from '../core/format/index.js';
 import { measurementText, uncertaintyText } from '../core/format/uncertainty.js';
-import { toU } from '../core/format/digits.js';
+import { fixedText, significantText, toU } from '../core/format/digits.js';
 import {
   DEFAULT_UNIT_SYSTEM,
   displayUnit,
@@ -68,6 +69,38 @@ export const valueToU = (
   return toU(x == null ? x : x * perSi, u == null ? u : u * perSi);
 };
 
+/** An uncertainty in display units, two significant digits, no unit appended (table cells). */
+export const uncertaintyIn = (
+  u: number | null | undefined,
+  siUnit: string,
+  units: UnitSystem,
+): string => uncertaintyText(u == null ? u : u * shownUnit(siUnit, units).perSi);
+
+/** A number (no unit), `digits` significant digits, in the display unit of `siUnit`. */
+export const numberIn = (
+  x: number | null | undefined,
+  siUnit: string,
+  units: UnitSystem,
+  digits = 4,
+): string =>
+  x === null || x === undefined || !Number.isFinite(x)
+    ? '—'
+    : significantText(x * shownUnit(siUnit, units).perSi, digits);
+
+/** A vessel length, to the millimetre in SI (3.200 m), to a thousandth of a foot in US units. */
+export const metresText = (m: number | null | undefined, units: UnitSystem) => {
+  if (m === null || m === undefined || !Number.isFinite(m)) return '—';
+  const { symbol, perSi } = displayUnit('length', units);
+  return `${fixedText(m * perSi, 3)} ${symbol}`;
+};
+
+/** A small length (bores, tolerances): mm to a tenth, or inches to a thousandth. */
+export const millimetresText = (m: number | null | undefined, units: UnitSystem) => {
+  if (m === null || m === undefined || !Number.isFinite(m)) return '—';
+  const { symbol, perSi } = displayUnit('smallLength', units);
+  return `${fixedText(m * perSi, units === 'si' ? 1 : 3)} ${symbol}`;
+};
+
 export const bytesText = (n: number) =>
   n < 1024
     ? `${n} B`
@@ -77,3 +110,19 @@ export const bytesText = (n: number) =>
 
 export const dateText = (iso: string | null | undefined) =>
   iso ? iso.replace('T', ' ').replace(/\.000Z$|Z$/, ' UTC') : '—';
+
+/** The day of a time in ms, ISO 8601 (UTC). */
+export const dayText = (ms: number) => new Date(ms).toISOString().slice(0, 10);
+
+/** Axis tick labels: as few digits as tell the ticks apart, never exponent notation for ordinary magnitudes. */
+export function tickText(ticks: number[]): (v: number) => string {
+  const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : Math.abs(ticks[0] || 1);
+  // the fewest decimals that write the step exactly (0.005 → 3, 2.5 → 1, 20 → 0)
+  let decimals = 0;
+  while (decimals < 10) {
+    const scaledStep = step * 10 ** decimals;
+    if (Math.abs(scaledStep - Math.round(scaledStep)) <= 1e-6 * scaledStep) break;
+    decimals++;
+  }
+  return (v: number) => (Math.abs(v) < step / 1e6 ? 0 : v).toFixed(decimals);
+}

@@ -143,22 +143,23 @@ export class AuditLog {
 
   async list(f: AuditFilter = {}): Promise<AuditEntry[]> {
     // Fixed SQL with optional parameters (a NULL parameter disables its condition): no SQL text is
-    // ever assembled from input.
+    // ever assembled from input. The CASTs give PostgreSQL each parameter's type where it first
+    // meets it (`$1 IS NULL` alone leaves it undetermined).
     const rows = await this.sql.all<AuditRow>(
       `SELECT * FROM audit_log WHERE
-          (@entityType IS NULL OR entity_type = @entityType) AND
-          (@entityId IS NULL OR entity_id = @entityId) AND
-          (@actorId IS NULL OR actor_id = @actorId) AND
-          (@action IS NULL OR action = @action) AND
-          (@vesselId IS NULL OR
+          (CAST(@entityType AS TEXT) IS NULL OR entity_type = @entityType) AND
+          (CAST(@entityId AS TEXT) IS NULL OR entity_id = @entityId) AND
+          (CAST(@actorId AS BIGINT) IS NULL OR actor_id = @actorId) AND
+          (CAST(@action AS TEXT) IS NULL OR action = @action) AND
+          (CAST(@vesselId AS BIGINT) IS NULL OR
             (entity_type = 'vessel' AND entity_id = CAST(CAST(@vesselId AS INTEGER) AS TEXT)) OR
             (entity_type = 'outlet' AND entity_id IN (SELECT CAST(id AS TEXT) FROM outlets WHERE vessel_id = @vesselId)) OR
             (entity_type = 'test' AND (entity_id IN (SELECT CAST(id AS TEXT) FROM drain_tests WHERE vessel_id = @vesselId)
               OR ${WITHDRAWN_TEST_OF_VESSEL[this.sql.dialect]})) OR
             (entity_type = 'fit' AND entity_id IN (SELECT CAST(id AS TEXT) FROM fits WHERE vessel_id = @vesselId)) OR
             (entity_type = 'maintenance-event' AND entity_id IN (SELECT CAST(id AS TEXT) FROM maintenance_events WHERE vessel_id = @vesselId))) AND
-          (@since IS NULL OR at >= @since) AND
-          (@until IS NULL OR at < @until) AND
+          (CAST(@since AS TEXT) IS NULL OR at >= @since) AND
+          (CAST(@until AS TEXT) IS NULL OR at < @until) AND
           seq > @afterSeq
         ORDER BY seq LIMIT @limit`,
       {

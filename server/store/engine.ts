@@ -11,7 +11,14 @@ export interface SqliteEngine {
   dataDir: string | null;
 }
 
-export type StoreEngine = SqliteEngine;
+/** A PostgreSQL database shared by any number of service instances (EFFLUX_DATABASE_URL). */
+export interface PostgresEngine {
+  kind: 'postgres';
+  /** The database's address without its password (for messages and the ready text). */
+  url: string;
+}
+
+export type StoreEngine = SqliteEngine | PostgresEngine;
 
 /** The database file of a store, when it is one file that another thread can open read-only. */
 export function databaseFile(engine: StoreEngine): string | null {

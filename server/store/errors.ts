@@ -16,10 +16,52 @@ export class ConflictError extends Error {
   }
 }
 
-/** SQLite's "database or disk is full" and the file system's ENOSPC/EDQUOT: the request was fine, the disk is not. */
+function codeOf(err: unknown): unknown {
+  return (err as { code?: unknown } | null)?.code;
+}
+
+/**
+ * SQLite's "database or disk is full", PostgreSQL's disk_full (53100) and the file system's
+ * ENOSPC/EDQUOT: the request was fine, the disk is not.
+ */
 export function isDiskFull(err: unknown): boolean {
-  const code = (err as { code?: unknown } | null)?.code;
-  return code === 'SQLITE_FULL' || code === 'ENOSPC' || code === 'EDQUOT';
+  const code = codeOf(err);
+  return code === 'SQLITE_FULL' || code === '53100' || code === 'ENOSPC' || code === 'EDQUOT';
+}
+
+/**
+ * The same refusals on either engine, by the engine's code (never by message text):
+ * a UNIQUE or PRIMARY KEY already holds the value (PostgreSQL 23505).
+ */
+export function isUniqueViolation(err: unknown): boolean {
+  const code = codeOf(err);
+  return (
+    code === 'SQLITE_CONSTRAINT_UNIQUE' ||
+    code === 'SQLITE_CONSTRAINT_PRIMARYKEY' ||
+    code === '23505'
+  );
+}
+
+/** A row points at one that does not exist, or a row still pointed at was deleted (PostgreSQL 23503). */
+export function isForeignKeyViolation(err: unknown): boolean {
+  const code = codeOf(err);
+  return code === 'SQLITE_CONSTRAINT_FOREIGNKEY' || code === '23503';
+}
+
+/** A CHECK constraint refused the value (PostgreSQL 23514). */
+export function isCheckViolation(err: unknown): boolean {
+  const code = codeOf(err);
+  return code === 'SQLITE_CONSTRAINT_CHECK' || code === '23514';
+}
+
+/**
+ * An append-only rule of the schema refused an UPDATE or DELETE (SQLite: a trigger's
+ * RAISE(ABORT); PostgreSQL: efflux_refuse(), SQLSTATE 23000). The message is the rule's own text,
+ * the same on both engines ("the audit log is append-only").
+ */
+export function isRuleRefusal(err: unknown): boolean {
+  const code = codeOf(err);
+  return code === 'SQLITE_CONSTRAINT_TRIGGER' || code === '23000';
 }
 
 /** A rule of the records refuses the act itself (four eyes, a site outside a person's limits): 403. */

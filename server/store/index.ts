@@ -4,6 +4,7 @@ import { openDatabase, openMemoryDatabase } from './db.js';
 import type { StoreEngine } from './engine.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
+import { JointFitRepo } from './joint-fits.js';
 import { LiveRepo } from './live.js';
 import { NameRepo } from './names.js';
 import { join } from 'node:path';
@@ -11,8 +12,11 @@ import { databasePath } from './maintenance.js';
 import { migrate } from './migrate.js';
 import { PreferenceRepo } from './preferences.js';
 import { ForeignWrites } from './read-cache.js';
+import { redactDatabaseUrl } from './database-url.js';
+import { type AnalysisClaims, LocalClaims, PostgresClaims } from './claims.js';
 import { DiskReserve } from './reserve.js';
 import { ServiceMetaRepo } from './service-meta.js';
+import { ScheduleRepo } from './schedule.js';
 import { SiteRepo } from './sites.js';
 import type { Sql } from './sql.js';
 import { SqliteSql } from './sqlite-sql.js';
@@ -31,9 +35,13 @@ export interface Store {
   vessels: VesselRepo;
   tests: TestRepo;
   fits: FitRepo;
+  /** Joint fits of connected vessels (migration 009; asynchronous). */
+  jointFits: JointFitRepo;
   events: EventRepo;
   users: UserRepo;
   sites: SiteRepo;
+  /** Sites' clocks and test intervals, outlets' own intervals (async). */
+  schedule: ScheduleRepo;
   trends: TrendRepo;
   live: LiveRepo;
   meta: ServiceMetaRepo;
@@ -45,6 +53,8 @@ export interface Store {
   names: NameRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
+  /** Which instance analyses a pending test (claims.ts). */
+  claims: AnalysisClaims;
   close(): Promise<void>;
 }
 
@@ -53,6 +63,10 @@ export interface StoreOptions {
   dataDir?: string;
   /** postgres://… : the PostgreSQL engine instead of SQLite (EFFLUX_DATABASE_URL). */
   databaseUrl?: string;
+  /** PostgreSQL: connections in the pool (default 10). */
+  poolSize?: number;
+  /** PostgreSQL: an idle pooled connection failed (told, never thrown). */
+  onDatabaseError?: (e: Error) => void;
   /** ISO-8601 clock; injected by tests. */
   now?: () => string;
   migrationsDir?: string;
@@ -70,6 +84,7 @@ interface OpenedEngine {
   sql: Sql;
   engine: StoreEngine;
   foreign: ForeignWrites;
+  claims: AnalysisClaims;
 }
 
 /** SQLite (better-sqlite3): a file in the data folder, or memory; migrated before use. */
@@ -99,21 +114,51 @@ async function openSqlite(opts: StoreOptions, now: () => string): Promise<Opened
     sql,
     engine: { kind: 'sqlite', path: dataDir ? databasePath(dataDir) : null, dataDir },
     foreign: new ForeignWrites(() => dataVersion.get() as number),
+    claims: new LocalClaims(),
+  };
+}
+
+/**
+ * PostgreSQL (node-postgres, loaded only when asked for): a pool on the database, migrated from
+ * migrations/postgres/ (instances starting together take turns). Another instance's commits are
+ * seen through write_counter (migration 001), read before each cached answer is served.
+ */
+async function openPostgres(url: string, opts: StoreOptions): Promise<OpenedEngine> {
+  const { PostgresSql } = await import('./postgres-sql.js');
+  const { migratePostgres } = await import('./postgres-migrate.js');
+  const sql = new PostgresSql({
+    connectionString: url,
+    max: opts.poolSize,
+    onIdleError: opts.onDatabaseError,
+  });
+  try {
+    // a migrations folder given for SQLite (tests) holds PostgreSQL's files in postgres/
+    await migratePostgres(
+      sql,
+      opts.migrationsDir ? join(opts.migrationsDir, 'postgres/') : undefined,
+    );
+  } catch (e) {
+    await sql.close();
+    throw e;
+  }
+  return {
+    sql,
+    engine: { kind: 'postgres', url: redactDatabaseUrl(url) },
+    foreign: new ForeignWrites(async () =>
+      Number(await sql.value('SELECT n FROM write_counter WHERE id = 1')),
+    ),
+    claims: new PostgresClaims(() => sql.dedicatedClient()),
   };
 }
 
 /** Opens the database, brings its schema up to date and builds the repositories on it. */
 export async function openStore(opts: StoreOptions = {}): Promise<Store> {
   const now = opts.now ?? (() => new Date().toISOString());
-  if (opts.databaseUrl) {
-    // The PostgreSQL engine plugs in here (migrations from migrations/postgres/), returning an
-    // OpenedEngine like openSqlite's; until then this build refuses the setting plainly.
-    throw new Error(
-      'this build has no PostgreSQL engine: unset EFFLUX_DATABASE_URL to use the data folder',
-    );
-  }
-  const { sql, engine, foreign } = await openSqlite(opts, now);
-  const reserve = opts.dataDir ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
+  const { sql, engine, foreign, claims } = opts.databaseUrl
+    ? await openPostgres(opts.databaseUrl, opts)
+    : await openSqlite(opts, now);
+  const reserve =
+    opts.dataDir && !opts.databaseUrl ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
   reserve?.ensure(); // false on a full disk: made again after the next compensating step
   const audit = new AuditLog(sql);
   const c: StoreContext = { sql, audit, now, foreign };
@@ -126,9 +171,11 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     vessels: new VesselRepo(c),
     tests,
     fits: new FitRepo(c, tests, sites),
+    jointFits: new JointFitRepo(c),
     events: new EventRepo(c),
     users: new UserRepo(c, sites),
     sites,
+    schedule: new ScheduleRepo(c),
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),
@@ -136,7 +183,11 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     vesselRevisions: new VesselRevisionRepo(c),
     names: new NameRepo(c),
     reserve,
-    close: () => sql.close(),
+    claims,
+    close: async () => {
+      await claims.close();
+      await sql.close();
+    },
   };
 }
 

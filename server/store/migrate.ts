@@ -5,7 +5,7 @@
  */
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import type { Sql } from './sql.js';
+import type { Dialect, Sql } from './sql.js';
 
 /** migrations/ at the project root, found from this file (works from server/ and dist/server/). */
 export function defaultMigrationsDir(): string {
@@ -87,9 +87,13 @@ export function buildSchemaVersion(dir = defaultMigrationsDir()): number {
 
 /**
  * Splits a migration into statements (quotes, comments and CREATE TRIGGER … END kept whole); used
- * only to name the statement that failed, never to run the file.
+ * only to name the statement that failed, never to run the file. PostgreSQL's files: dollar-quoted
+ * bodies ($$ … $$, $tag$ … $tag$) kept whole, and a trigger ends at its `;` like any statement.
  */
-export function splitStatements(sql: string): { text: string; line: number }[] {
+export function splitStatements(
+  sql: string,
+  dialect: Dialect = 'sqlite',
+): { text: string; line: number }[] {
   const out: { text: string; line: number }[] = [];
   let start = 0;
   let i = 0;
@@ -105,7 +109,12 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
   };
   while (i < sql.length) {
     const c = sql[i];
-    if (c === "'" || c === '"' || c === '`') {
+    const dollar =
+      dialect === 'postgres' && c === '$' ? /^\$([A-Za-z_]\w*)?\$/.exec(sql.slice(i)) : null;
+    if (dollar) {
+      const close = sql.indexOf(dollar[0], i + dollar[0].length);
+      i = close < 0 ? sql.length : close + dollar[0].length;
+    } else if (c === "'" || c === '"' || c === '`') {
       const close = sql.indexOf(c, i + 1);
       i = close < 0 ? sql.length : close + 1;
     } else if (c === '-' && sql[i + 1] === '-') {
@@ -116,7 +125,8 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
       i = close < 0 ? sql.length : close + 2;
     } else if (c === ';') {
       const sofar = sql.slice(start, i).replace(/--[^\n]*/g, '');
-      const trigger = /^\s*CREATE\s+(TEMP\s+|TEMPORARY\s+)?TRIGGER\b/i.test(sofar);
+      const trigger =
+        dialect === 'sqlite' && /^\s*CREATE\s+(TEMP\s+|TEMPORARY\s+)?TRIGGER\b/i.test(sofar);
       if (!trigger || /\bEND\s*$/i.test(sofar)) push(i);
       i++;
     } else i++;
@@ -126,12 +136,16 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
 }
 
 /** Runs the file's statements one by one inside a savepoint that is rolled back, to find the one that fails. */
-async function locateFailure(hooks: MigrationHooks, m: MigrationFile): Promise<string | null> {
+async function locateFailure(
+  dialect: Dialect,
+  hooks: MigrationHooks,
+  m: MigrationFile,
+): Promise<string | null> {
   try {
     let found: string | null = null;
     await hooks.exec('SAVEPOINT efflux_locate');
     try {
-      for (const [n, st] of splitStatements(m.sql).entries()) {
+      for (const [n, st] of splitStatements(m.sql, dialect).entries()) {
         try {
           await hooks.exec(st.text);
         } catch {
@@ -156,6 +170,12 @@ export interface MigrationHooks {
   exec(script: string): Promise<void>;
   /** Called once before the first migration of an existing database is applied (the pre-migration backup). */
   beforeFirst?: (fromVersion: number, toVersion: number) => void | Promise<void>;
+  /**
+   * Runs the whole migration alone among the processes sharing the database (PostgreSQL: a
+   * session advisory lock, so instances starting together apply each file once). SQLite needs
+   * none: one process holds the data folder.
+   */
+  alone?: <T>(fn: () => Promise<T>) => Promise<T>;
 }
 
 /**
@@ -168,6 +188,10 @@ export async function migrate(
   dir = defaultMigrationsDir(),
   hooks: MigrationHooks,
 ): Promise<string[]> {
+  return (hooks.alone ?? ((fn) => fn()))(() => migrateNow(sql, dir, hooks));
+}
+
+async function migrateNow(sql: Sql, dir: string, hooks: MigrationHooks): Promise<string[]> {
   const files = readMigrations(dir);
   const buildVersion = files.reduce((m, f) => Math.max(m, f.version), 0);
   const current = await schemaVersion(sql);
@@ -193,7 +217,7 @@ export async function migrate(
       });
     } catch (e) {
       const reason = (e as Error).message;
-      const where = await sql.tx(() => locateFailure(hooks, m));
+      const where = await sql.tx(() => locateFailure(sql.dialect, hooks, m));
       throw new MigrationError(m.name, where, reason);
     }
     applied.push(m.name);

@@ -274,7 +274,7 @@ export class UserRepo {
   async tokens(userId: number | null = null): Promise<TokenInfo[]> {
     return (
       await this.c.sql.all<TokenRow>(
-        `${TOKEN_COLS} WHERE (@userId IS NULL OR t.user_id = @userId) ORDER BY t.id`,
+        `${TOKEN_COLS} WHERE (CAST(@userId AS BIGINT) IS NULL OR t.user_id = @userId) ORDER BY t.id`,
         { userId },
       )
     ).map(toToken);

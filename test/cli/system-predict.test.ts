@@ -38,9 +38,14 @@ describe('efflux fit-system with a logged inflow (sample-data/systems/wash-trans
         file: 'pump-2026-04-09.csv',
         unit: 'L/s',
         samples: 451,
+        // the pump: 1.5 L/s for 100 s with 6 s ramps every 240 s (sample-data/systems/README.md),
+        // so about 1.5·106/240 ≈ 0.66 L/s on average, give or take the part-cycle at the ends
+        meanM3S: expect.any(Number),
         interpolation: 'linear in time between readings',
       },
     ]);
+    expect(out.diagnostics.inflowLogs[0].meanM3S).toBeGreaterThan(0.0005);
+    expect(out.diagnostics.inflowLogs[0].meanM3S).toBeLessThan(0.0008);
   }, 30_000);
 
   it('refuses an inflow log that stops before the levels do, naming both spans', () => {

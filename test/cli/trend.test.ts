@@ -112,6 +112,7 @@ describe('efflux trend', () => {
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toContain(`status: ${apiTrend.status.status} — ${apiTrend.status.reason}`);
     expect(r.stdout).toContain('threshold: -10 %');
+    expect(r.stdout).toContain(`next test: ${apiTrend.schedule.reason}`);
     expect(r.stdout.split('\n').filter((l) => / baseline$/.test(l))).toHaveLength(1);
     expect(r.stdout).toMatch(/-10 % \|-+/); // the threshold row of the picture
   }, 30_000);
@@ -127,5 +128,5 @@ describe('efflux trend', () => {
     const bad = efflux(dataDir, ['trend', '999']);
     expect(bad.code).toBe(2);
     expect(bad.stderr).toMatch(/outlet 999 not found/);
-  }, 30_000);
+  }, 120_000); // three CLI processes (tsx each): room for a loaded machine
 });

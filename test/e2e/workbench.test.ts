@@ -12,6 +12,8 @@ import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildWeb } from '../../web/build.js';
+import { testingOnPostgres } from '../support/store.js';
+import { createTestDatabase, type TestDatabase } from '../support/postgres.js';
 import {
   dragAcross,
   guardBrowser,
@@ -45,8 +47,15 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
     EFFLUX_DEMO: '1',
   };
   let problems: string[] = [];
+  // the vitest project `postgres`: the server keeps everything in a new PostgreSQL database (and
+  // migrates it itself), the data folder holds only the first admin token's file
+  let database: TestDatabase | null = null;
 
   beforeAll(async () => {
+    if (testingOnPostgres()) {
+      database = await createTestDatabase();
+      Object.assign(env, { EFFLUX_DATABASE_URL: database.url });
+    }
     mkdirSync(shots, { recursive: true });
     await buildWeb(webRoot);
     server = spawn(
@@ -69,6 +78,9 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
         reject(new Error(`server exited ${code} before listening:\n${out}`)),
       );
     });
+    // the records are where the project says (the banner names the database, never a password)
+    if (database) expect(out).toContain(`(database ${database.url}; DEMO data`);
+    else expect(out).toContain(`(data in ${dataDir}; DEMO data`);
     adminToken = readFileSync(join(dataDir, 'first-admin-token.txt'), 'utf8').trim(); // never in the output
     ({ context, page, profile, problems } = await launch());
   }, 180_000);
@@ -81,6 +93,7 @@ describe.skipIf(!haveBrowser)('the web workbench in a browser', () => {
       await exited;
     }
     for (const d of [dataDir, webRoot, profile]) rmSync(d, { recursive: true, force: true });
+    await database?.drop();
   });
 
   const shot = (name: string) =>

@@ -45,6 +45,7 @@ const TABLE: Record<string, Rule> = {
   'GET /api/fits/:id': ALL,
   'POST /api/fits/:id/refit': TECH,
   'POST /api/fits/:id/review': ENG,
+  'GET /api/fits/:id/people': ALL,
   'GET /api/outlets/:id/trend': ALL,
   'GET /api/outlets/:id/history.csv': ALL,
   'GET /api/outlets/:id/status-changes': ALL,
@@ -63,6 +64,11 @@ const TABLE: Record<string, Rule> = {
   'POST /api/systems/fit': TECH,
   'POST /api/systems/steady': ALL,
   'POST /api/systems/linearize': ALL,
+  'POST /api/systems/fits': TECH,
+  'GET /api/systems/fits': ALL,
+  'GET /api/systems/fits/:id': ALL,
+  'POST /api/systems/fits/:id/review': ENG,
+  'GET /api/systems/fits/:id/report.pdf': ALL,
   'POST /api/vessels/:id/plan': ALL,
   'POST /api/vessels/:id/live': TECH,
   'GET /api/live/:id': ALL,
@@ -79,6 +85,10 @@ const TABLE: Record<string, Rule> = {
   'DELETE /api/tokens/:id': ADM,
   'GET /api/sites': ADM,
   'PUT /api/sites/:name/settings': ADM,
+  'GET /api/sites/:name/clock': ALL,
+  'PUT /api/sites/:name/clock': ENG,
+  'PUT /api/outlets/:id/interval': ENG,
+  'GET /api/due': ALL,
 };
 
 /**
@@ -114,6 +124,7 @@ const SCOPE: Record<string, SiteScope> = {
   'GET /api/fits/:id': 'fit',
   'POST /api/fits/:id/refit': 'fit',
   'POST /api/fits/:id/review': 'fit',
+  'GET /api/fits/:id/people': 'fit',
   'GET /api/outlets/:id/trend': 'outlet',
   'GET /api/outlets/:id/history.csv': 'outlet',
   'GET /api/outlets/:id/status-changes': 'outlet',
@@ -132,6 +143,11 @@ const SCOPE: Record<string, SiteScope> = {
   'POST /api/systems/fit': 'none',
   'POST /api/systems/steady': 'none',
   'POST /api/systems/linearize': 'none',
+  'POST /api/systems/fits': 'listed',
+  'GET /api/systems/fits': 'listed',
+  'GET /api/systems/fits/:id': 'listed',
+  'POST /api/systems/fits/:id/review': 'listed',
+  'GET /api/systems/fits/:id/report.pdf': 'listed',
   'GET /api/people': 'every-site',
   'POST /api/people': 'every-site',
   'PATCH /api/people/:id': 'every-site',
@@ -141,6 +157,10 @@ const SCOPE: Record<string, SiteScope> = {
   'DELETE /api/tokens/:id': 'every-site',
   'GET /api/sites': 'every-site',
   'PUT /api/sites/:name/settings': 'every-site',
+  'GET /api/sites/:name/clock': 'listed',
+  'PUT /api/sites/:name/clock': 'listed',
+  'PUT /api/outlets/:id/interval': 'outlet',
+  'GET /api/due': 'listed',
   'POST /api/vessels/:id/plan': 'vessel',
   'POST /api/vessels/:id/live': 'vessel',
   'GET /api/live/:id': 'listed',
@@ -299,7 +319,7 @@ describe('permission table', () => {
       }
     }
     expect(checked.length).toBe(t.app.routeList.length * 5);
-  });
+  }, 180_000); // every route for 5 callers (hundreds of requests; on PostgreSQL each a few round trips)
 
   it('each route declares exactly the site scope of its row', () => {
     const missing = t.app.routeList
@@ -457,6 +477,97 @@ describe('permission table', () => {
       (await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('admin') })).json()
         .total,
     ).toBe(2);
+  });
+
+  it("joint fits are listed, read, reviewed and reported only within the person's sites", async () => {
+    // a minimal record of the one result shape: this test is about sites, not numbers
+    const result = {
+      format: 'efflux-system-fit' as const,
+      version: 2,
+      engineVersion: 'test',
+      converged: true,
+      parameters: [],
+      correlations: { parameters: [], matrix: [] },
+      solver: { method: 'none', stopReason: 'none', converged: true, iterations: 0 },
+      warnings: [],
+      outlets: {},
+      residuals: [],
+      covariance: [],
+      theta: [],
+      free: [],
+      degreesOfFreedom: 1,
+      coverageFactor: 2,
+      system: { name: 'S (fictional)', vessels: [] },
+    };
+    const make = (site: string) =>
+      t.store.jointFits.create(SYSTEM_ACTOR, {
+        site,
+        systemName: 'S (fictional)',
+        settings: {},
+        result,
+        drawing: [],
+        notes: null,
+        files: [{ role: 'system', vessel: '', fileName: 's.json', bytes: Buffer.from('{}') }],
+      });
+    const atNorth = await make('north');
+    const atMain = await make('main');
+    const as = { authorization: `Bearer ${limited.admin}` };
+    const list = await t.app.inject({ method: 'GET', url: '/api/systems/fits', headers: as });
+    expect(list.json().items.map((i: { id: number }) => i.id)).toEqual([atMain.id]);
+    for (const [method, suffix, payload] of [
+      ['GET', '', undefined],
+      ['GET', '/report.pdf', undefined],
+      ['POST', '/review', { decision: 'approve' }],
+    ] as const) {
+      const res = await t.app.inject({
+        method,
+        url: `/api/systems/fits/${atNorth.id}${suffix}`,
+        headers: as,
+        payload,
+      });
+      expect(res.statusCode, `${method} ${suffix}`).toBe(403);
+      expect(problemType(res.body)).toBe('urn:efflux:problem:site-forbidden');
+    }
+    const own = await t.app.inject({
+      method: 'GET',
+      url: `/api/systems/fits/${atMain.id}`,
+      headers: as,
+    });
+    expect(own.statusCode).toBe(200);
+    // storing one for a site outside the person's limits is refused before any fitting
+    const m = multipart(
+      [
+        {
+          field: 'system',
+          name: 's.json',
+          bytes: Buffer.from(
+            JSON.stringify({
+              name: 'S (fictional)',
+              site: 'north',
+              vessels: [
+                {
+                  id: 'A',
+                  name: 'A',
+                  shape: { kind: 'vertical-cylinder', diameterM: 1 },
+                  outlet: { boreM: 0.03, elevationM: 0 },
+                  dischargesTo: null,
+                  connection: 'free',
+                },
+              ],
+            }),
+          ),
+        },
+      ],
+      {},
+    );
+    const store = await t.app.inject({
+      method: 'POST',
+      url: '/api/systems/fits',
+      headers: { ...as, ...m.headers },
+      payload: m.payload,
+    });
+    expect(store.statusCode, store.body).toBe(403);
+    expect(problemType(store.body)).toBe('urn:efflux:problem:site-forbidden');
   });
 
   it('a bad token is 401, not 403', async () => {

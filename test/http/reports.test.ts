@@ -61,7 +61,7 @@ describe('report routes', () => {
     expect(createHash('sha256').update(again.rawPayload).digest('hex')).toBe(
       createHash('sha256').update(first.rawPayload).digest('hex'),
     );
-  }, 30_000);
+  }, 90_000); // PDFs rendered in a task thread: slow on a loaded two-core machine, more so on PostgreSQL
 
   it('refuses callers who are not signed in, and unknown fits with problem+json', async () => {
     expect(
@@ -122,5 +122,5 @@ describe('report routes', () => {
       payload: { from: '2020-01-01', to: '2020-01-02' },
     });
     expect(none.statusCode).toBe(422);
-  }, 30_000);
+  }, 90_000);
 });

@@ -164,7 +164,8 @@ describe('POST /api/systems/steady and /linearize', () => {
       (fit.outlets.BT2.effectiveAreaM2.value * Math.sqrt(2 * STANDARD_GRAVITY_MS2));
     expect(lm.timeConstantsS[i].value).toBeCloseTo(tau, 3);
     expect(lm.timeConstantsS[i].standardUncertainty).toBeGreaterThan(0);
-    expect(lm.text).toContain('A = [');
+    expect(lm.text).toContain('per m in BT2, 1/s');
+    expect(lm.text).not.toMatch(/\[[^\]]*;[^\]]*\]|eye\(/s);
     expect(lm.csv.split('\n')[0]).toBe(
       'matrix,row,column,value,standard_uncertainty,ci95_low,ci95_high',
     );

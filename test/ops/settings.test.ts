@@ -44,6 +44,18 @@ describe('settings from the environment', () => {
     expect(() => serveConfig({ [key]: value })).toThrow(message);
   });
 
+  it('EFFLUX_DATABASE_URL: a postgres:// address, refused otherwise without repeating its password', () => {
+    expect(serveConfig({}).databaseUrl).toBeUndefined();
+    expect(
+      serveConfig({ EFFLUX_DATABASE_URL: 'postgres://efx:pw@db:5432/efflux' }).databaseUrl,
+    ).toBe('postgres://efx:pw@db:5432/efflux');
+    const bad = () => serveConfig({ EFFLUX_DATABASE_URL: 'mysql://efx:hunter2@db/efflux' });
+    expect(bad).toThrow(SettingsError);
+    expect(bad).toThrow('setting EFFLUX_DATABASE_URL: must be a postgres://');
+    expect(bad).toThrow('"mysql://efx:***@db/efflux"');
+    expect(bad).not.toThrow(/hunter2/);
+  });
+
   it('trustProxy: false, true, a hop count, or proxy addresses', () => {
     expect(serveConfig({ EFFLUX_TRUST_PROXY: 'true' }).trustProxy).toBe(true);
     expect(serveConfig({ EFFLUX_TRUST_PROXY: '2' }).trustProxy).toBe(2);

@@ -1,6 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { canonicalJson } from '../../server/store/canonical-json.js';
+import type { Store } from '../../server/store/index.js';
 import { memoryStore, SYSTEM_ACTOR, VESSEL } from './helpers.js';
+
+/** What someone with raw access to the database would type to remove a rule, on either engine. */
+const dropTrigger = (s: Store, name: string) =>
+  s.sql.dialect === 'postgres' ? `DROP TRIGGER ${name} ON audit_log` : `DROP TRIGGER ${name}`;
 
 describe('canonical JSON', async () => {
   it('sorts keys at every depth and drops undefined members', () => {
@@ -43,8 +48,12 @@ describe('audit chain', async () => {
 
   it('detects an edited entry (triggers dropped by someone with raw access) and names it', async () => {
     const s = await storeWithHistory();
-    await s.sql.run('DROP TRIGGER audit_log_no_update');
-    await s.sql.run(`UPDATE audit_log SET after = json_set(after, '$.name', 'T-9') WHERE seq = 2`);
+    await s.sql.run(dropTrigger(s, 'audit_log_no_update'));
+    await s.sql.run(
+      s.sql.dialect === 'postgres'
+        ? `UPDATE audit_log SET after = jsonb_set(after::jsonb, '{name}', '"T-9"')::text WHERE seq = 2`
+        : `UPDATE audit_log SET after = json_set(after, '$.name', 'T-9') WHERE seq = 2`,
+    );
     const r = await s.audit.verify();
     expect(r.ok).toBe(false);
     expect(r.brokenAt).toBe(2);
@@ -53,7 +62,7 @@ describe('audit chain', async () => {
 
   it('detects a deleted entry', async () => {
     const s = await storeWithHistory();
-    await s.sql.run('DROP TRIGGER audit_log_no_delete');
+    await s.sql.run(dropTrigger(s, 'audit_log_no_delete'));
     await s.sql.run('DELETE FROM audit_log WHERE seq = 2');
     const r = await s.audit.verify();
     expect(r).toMatchObject({ ok: false, brokenAt: 3 });
@@ -61,7 +70,7 @@ describe('audit chain', async () => {
 
   it('detects a re-hashed edit by the broken link to the next entry', async () => {
     const s = await storeWithHistory();
-    await s.sql.run('DROP TRIGGER audit_log_no_update');
+    await s.sql.run(dropTrigger(s, 'audit_log_no_update'));
     await s.sql.run(`UPDATE audit_log SET hash = ? WHERE seq = 2`, ['f'.repeat(64)]);
     const r = await s.audit.verify();
     expect(r.ok).toBe(false);

@@ -1,5 +1,6 @@
 import type Database from 'better-sqlite3';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { openTestStore } from '../support/store.js';
 import { migrate } from '../../server/store/migrate.js';
 import { SqliteSql } from '../../server/store/sqlite-sql.js';
 
@@ -9,10 +10,13 @@ export function migrateSqlite(db: Database.Database, dir?: string): Promise<stri
   return migrate(sql, dir, { exec: (s) => sql.exec(s) });
 }
 
-/** A store in memory with a clock that ticks one second per call (deterministic timestamps). */
+/**
+ * A new store (SQLite in memory; a new PostgreSQL database in the `postgres` test project) with a
+ * clock that ticks one second per call (deterministic timestamps).
+ */
 export function memoryStore(): Promise<Store> {
   let t = Date.parse('2026-01-01T00:00:00Z');
-  return openStore({ now: () => new Date((t += 1000)).toISOString() });
+  return openTestStore({ now: () => new Date((t += 1000)).toISOString() });
 }
 
 export const VESSEL = {

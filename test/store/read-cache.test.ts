@@ -1,9 +1,7 @@
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
-import { afterEach, describe, expect, it } from 'vitest';
-import { openStore, type Store } from '../../server/store/index.js';
+import { describe, expect, it } from 'vitest';
+import type { Store } from '../../server/store/index.js';
 import { ForeignWrites, ReadCache } from '../../server/store/read-cache.js';
+import { openTestStorePair } from '../support/store.js';
 import { FIT_RESULT, memoryStore, SYSTEM_ACTOR, VESSEL } from './helpers.js';
 
 const bytes = new TextEncoder().encode('t,level\n0,2\n1,1.9\n');
@@ -141,14 +139,9 @@ describe('ready answers kept in memory', () => {
   });
 });
 
-describe('writes by another connection (a second process on the same file)', () => {
-  let dir = '';
-  afterEach(() => rmSync(dir, { recursive: true, force: true }));
-
+describe('writes by another connection (a second process on the same file, a second instance on the same PostgreSQL database)', () => {
   it('empty the caches: a review, a new test and a new token elsewhere are seen', async () => {
-    dir = mkdtempSync(join(tmpdir(), 'efflux-cache-'));
-    const a = await openStore({ dataDir: dir });
-    const b = await openStore({ dataDir: dir });
+    const [a, b] = await openTestStorePair();
     try {
       const { v, f } = await withFit(a);
       const { token, user } = await a.users.createToken(SYSTEM_ACTOR, 'ana', 'engineer');
@@ -161,6 +154,22 @@ describe('writes by another connection (a second process on the same file)', () 
       expect(read((await a.fits.getText(f.id)).body).status).toBe('approved');
       expect(read((await a.tests.pageText(v.id, 5, 0)).body).total).toBe(2);
       expect(await a.users.byToken(token)).toBeNull();
+    } finally {
+      await a.close();
+      await b.close();
+    }
+  });
+
+  it('sessions are valid on every instance, and one closed on another is refused at once', async () => {
+    const [a, b] = await openTestStorePair();
+    try {
+      const { user } = await a.users.createToken(SYSTEM_ACTOR, 'ana', 'engineer');
+      const { secret } = await a.users.openSession(user, 3_600_000);
+      expect(await a.users.bySession(secret)).toEqual(user); // and kept in a's memory
+      expect(await b.users.bySession(secret)).toEqual(user);
+      await b.users.closeSession(user, secret);
+      expect(await b.users.bySession(secret)).toBeNull();
+      expect(await a.users.bySession(secret)).toBeNull();
     } finally {
       await a.close();
       await b.close();

@@ -93,7 +93,9 @@ export interface DrainTest {
   settings: Settings;
   detected: Record<string, unknown> | null;
   operator: string | null;
+  loggerId?: string | null;
   testedAt: string | null;
+  testedAtSource?: 'stated' | 'log' | null;
   notes: string | null;
   createdAt: string;
   failedAttempts?: number;
@@ -119,6 +121,13 @@ export interface Fit {
     selfReview?: boolean;
   } | null;
   createdAt: string;
+}
+/** GET /api/fits/:id/people: the names behind a fit (null: the system, or not reviewed yet). */
+export interface FitPeople {
+  operator: string | null;
+  uploadedBy: string | null;
+  fittedBy: string | null;
+  reviewedBy: string | null;
 }
 export interface Page<T> {
   items: T[];

@@ -32,12 +32,78 @@ const axis = (label: string, extra: Partial<uPlot.Axis> = {}): uPlot.Axis => ({
   ...extra,
 });
 
+/**
+ * Date axes in ISO 8601, UTC (the rest of the workbench writes dates so): ticks are placed on UTC
+ * day and month boundaries (tzDate) and labelled YYYY-MM-DD, or YYYY-MM-DD hh:mm under a day.
+ */
+export const isoDateTicks = (
+  _u: uPlot,
+  splits: number[],
+  _axis: number,
+  _space: number,
+  incr: number,
+): string[] =>
+  splits.map((s) => {
+    const d = new Date(s * 1000).toISOString();
+    return incr < 86400 ? d.slice(0, 16).replace('T', ' ') : d.slice(0, 10);
+  });
+/** Least pixels between date ticks, so 10-character ISO dates never overlap. */
+export const ISO_DATE_SPACE = 96;
+export const utcDate = (ts: number) => uPlot.tzDate(new Date(ts * 1000), 'Etc/UTC');
+/** A hover legend's date: ISO, UTC. */
+export const isoDateValue = (_u: uPlot, v: number | null) =>
+  v === null ? '—' : new Date(v * 1000).toISOString().slice(0, 10);
+
+/** A dashed vertical "today" line with its date, on an overlay's canvas (x in seconds). */
+export function drawToday(u: uPlot, nowS: number): void {
+  const { left, top, width, height } = u.bbox;
+  const x = u.valToPos(nowS, 'x', true);
+  if (!(x >= left && x <= left + width)) return;
+  const ctx = u.ctx;
+  const dpr = devicePixelRatio;
+  ctx.save();
+  ctx.strokeStyle = COLOURS.axis;
+  ctx.lineWidth = 1 * dpr;
+  ctx.setLineDash([2 * dpr, 2 * dpr]);
+  ctx.beginPath();
+  ctx.moveTo(x, top);
+  ctx.lineTo(x, top + height);
+  ctx.stroke();
+  ctx.setLineDash([]);
+  ctx.fillStyle = COLOURS.axis;
+  ctx.font = `${11 * dpr}px system-ui, sans-serif`;
+  const label = `today ${new Date(nowS * 1000).toISOString().slice(0, 10)}`;
+  const tw = ctx.measureText(label).width;
+  ctx.fillText(
+    label,
+    x + 4 * dpr + tw > left + width ? x - 4 * dpr - tw : x + 4 * dpr,
+    top + 28 * dpr,
+  );
+  ctx.restore();
+}
+
 const minutes = (_u: uPlot, ticks: number[]) => ticks.map((t) => `${+(t / 60).toFixed(2)}`);
 /** Tick steps in seconds that read as whole minutes (or round fractions of one) on a minute axis. */
 const MINUTE_STEPS = [
   6, 15, 30, 60, 120, 300, 600, 900, 1200, 1800, 3600, 7200, 10800, 21600, 43200, 86400, 172800,
   604800,
 ];
+
+/** Tick labels with as many decimals as the step between ticks needs (no two alike). */
+const stepDecimals = (_u: uPlot, ticks: number[]) => {
+  const step = ticks.length > 1 ? Math.abs(ticks[1] - ticks[0]) : 1;
+  // the fewest decimals that write the step exactly (0.0005 → 4, 2.5 → 1)
+  let d = 0;
+  while (d < 8 && Math.abs(step * 10 ** d - Math.round(step * 10 ** d)) > 1e-6 * step * 10 ** d)
+    d++;
+  return ticks.map((t) => t.toFixed(d));
+};
+
+/** The hover legend's x entry on a minute axis: the time in minutes, as the axis reads. */
+const MINUTE_LEGEND: uPlot.Series = {
+  label: 'time (min)',
+  value: (_u, v) => (v === null ? '—' : `${(v / 60).toFixed(2)} min`),
+};
 
 /** Follow the container's width (the page may be resized). */
 function fit(u: uPlot, el: HTMLElement, height: number): void {
@@ -82,7 +148,7 @@ export function logChart(
       axis('level above the sensor zero (m)'),
     ],
     series: [
-      { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+      MINUTE_LEGEND,
       {
         label: 'level (m)',
         stroke: COLOURS.level,
@@ -211,24 +277,31 @@ export function fitChart(
         axis('level above the sensor zero (m)'),
       ],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
-        {
-          label: 'readings (m)',
-          stroke: COLOURS.level,
-          width: 0,
-          points: { show: true, size: 3, stroke: COLOURS.level, fill: COLOURS.level },
-          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
-        },
+        MINUTE_LEGEND,
+        // the curve first: uPlot draws in series order, so the readings land on top of it
+        // a wide curve under small, half-clear dots: the curve shows through where they crowd
         {
           label: 'fitted drain curve (m)',
           stroke: COLOURS.fitted,
-          width: 2.5,
+          width: 5,
           points: { show: false },
+          value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
+        },
+        {
+          label: 'readings (m)',
+          stroke: 'rgba(47, 95, 138, 0.55)',
+          width: 0,
+          points: {
+            show: true,
+            size: 2.5,
+            stroke: 'rgba(47, 95, 138, 0.55)',
+            fill: 'rgba(47, 95, 138, 0.55)',
+          },
           value: (_u, v) => (v === null ? '—' : `${v.toFixed(4)} m`),
         },
       ],
     },
-    [x, w.observedM, w.fittedM] as uPlot.AlignedData,
+    [x, w.fittedM, w.observedM] as uPlot.AlignedData,
     el,
   );
   fit(u, el, 320);
@@ -254,7 +327,7 @@ export function residualChart(el: HTMLElement, w: WindowPlot, rmseM: number | nu
       ],
       bands: [{ series: [2, 3], fill: COLOURS.band }],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        MINUTE_LEGEND,
         {
           label: 'residual (mm)',
           stroke: COLOURS.residual,
@@ -358,7 +431,7 @@ export function headBandChart(
       },
       axes: [
         axis('head over the outlet, middle of the band (m)'),
-        axis('discharge coefficient Cd (–)'),
+        axis('discharge coefficient Cd (–)', { values: stepDecimals }),
       ],
       series: [
         { label: 'head (m)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(3)} m`) },
@@ -414,6 +487,9 @@ export function historyChart(
     Math.min(x[0], ...events.map((e) => e.atS)) - span * 0.08,
     Math.max(x[x.length - 1], ...events.map((e) => e.atS)) + span * 0.08,
   ];
+  // today is shown when it lies within a fifth of the span past the last test (else it squeezes the tests)
+  const nowS = Date.now() / 1000;
+  if (nowS > xr[1] && nowS - x[x.length - 1] < span * 0.2) xr[1] = nowS + span * 0.04;
   const overlay: uPlot.Plugin = {
     hooks: {
       drawClear: [
@@ -450,6 +526,7 @@ export function historyChart(
             ctx.fillText(`${label} ${v.toFixed(3)}`, left + 6, py - 4);
           }
           ctx.restore();
+          drawToday(u, Date.now() / 1000);
         },
       ],
     },
@@ -459,9 +536,13 @@ export function historyChart(
       width: widthOf(el),
       height: 260,
       scales: { x: { time: true, range: xr }, y: { range: [ymin - pad, ymax + pad] } },
-      axes: [axis('date of the test'), axis('discharge coefficient Cd (–)')],
+      tzDate: utcDate,
+      axes: [
+        axis('date of the test (UTC)', { values: isoDateTicks, space: ISO_DATE_SPACE }),
+        axis('discharge coefficient Cd (–)'),
+      ],
       series: [
-        { label: 'date' },
+        { label: 'date of the test', value: isoDateValue },
         {
           label: 'draft (not yet reviewed)',
           stroke: COLOURS.draft,

@@ -47,6 +47,11 @@ export function clear(el: Element): void {
   while (el.firstChild) el.removeChild(el.firstChild);
 }
 
+/** A cell that is a date (2026-03-09, or with a time) as <time>, which never wraps mid-date. */
+const ISO_DATE = /^\d{4}-\d{2}-\d{2}([ T]\d{2}:\d{2}(:\d{2}(\.\d+)?)?( ?UTC|Z)?)?$/;
+const dateCell = (c: Child): Child =>
+  typeof c === 'string' && ISO_DATE.test(c) ? h('time', {}, c) : c;
+
 /** A table from a header row and rows of cells. */
 export function table(
   caption: string | null,
@@ -74,7 +79,7 @@ export function table(
         h(
           'tr',
           {},
-          r.map((c) => h('td', {}, c)),
+          r.map((c) => h('td', {}, dateCell(c))),
         ),
       ),
     ),

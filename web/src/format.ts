@@ -162,3 +162,15 @@ const OUTLET_WORDS: Record<string, string> = {
 };
 export const outletName = (k: string | null | undefined) =>
   k ? (OUTLET_WORDS[k] ?? k) : 'not stated';
+
+/**
+ * A span of days as a person says it: days under 90, months under two years, then years.
+ * Local until the shared units module (server/core/format) is merged; then it should call that.
+ */
+export function duration(days: number | null | undefined): string {
+  if (days === null || days === undefined || !Number.isFinite(days)) return '—';
+  const a = Math.abs(days);
+  if (a < 90) return `${Math.round(days)} day${Math.round(a) === 1 ? '' : 's'}`;
+  if (a < 730) return `${Math.round(days / 30.4375)} months`;
+  return `${(days / 365.25).toFixed(1)} years`;
+}

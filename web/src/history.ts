@@ -8,6 +8,7 @@ import {
   type Outlet,
   type Page,
 } from './api.js';
+import { duration } from './format.js';
 
 export interface TestedFit {
   fit: Fit;
@@ -60,6 +61,6 @@ export async function fleetDrift(): Promise<Map<number, FleetStatusItem>> {
 export function driftWords(d: FleetStatusItem | undefined): string | null {
   if (!d) return null;
   return d.daysToThreshold !== null && Number.isFinite(d.daysToThreshold)
-    ? `${d.status} (threshold in about ${Math.round(d.daysToThreshold)} days)`
+    ? `${d.status} (threshold in about ${duration(d.daysToThreshold)})`
     : d.status;
 }

@@ -66,7 +66,10 @@ export function planChart(
         axis('outflow (L/s)', { scale: 'ls', side: 1, grid: { show: false } }),
       ],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        {
+          label: 'time (min)',
+          value: (_u, v) => (v === null ? '—' : `${(v / 60).toFixed(2)} min`),
+        },
         {
           label: 'predicted level (m)',
           scale: 'm',
@@ -112,7 +115,10 @@ export function liveChart(el: HTMLElement): LiveChart {
         axis('level above the sensor zero (m)'),
       ],
       series: [
-        { label: 'time (s)', value: (_u, v) => (v === null ? '—' : `${v.toFixed(0)} s`) },
+        {
+          label: 'time (min)',
+          value: (_u, v) => (v === null ? '—' : `${(v / 60).toFixed(2)} min`),
+        },
         { label: 'readings (m)', stroke: COLOURS.level, width: 1.5, spanGaps: true },
         { label: 'fitted (m)', stroke: COLOURS.fitted, width: 2, spanGaps: true },
       ],

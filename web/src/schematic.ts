@@ -242,3 +242,34 @@ export function systemSchematic(
   root.appendChild(svg('text', { x: 28, y: y(lo + barM / 2), class: 'sch-small' }, `${barM} m`));
   return root;
 }
+
+/**
+ * Moves labels that would overlap an earlier one (names first, then heights, levels, links),
+ * measured as drawn (getBBox, in the drawing's own units, so the result is the same at every
+ * screen width), and keeps each inside the drawing. Call once the drawing is in the document.
+ */
+export function untangleLabels(root: SVGElement): void {
+  const texts = Array.from(root.querySelectorAll<SVGTextElement>('text'));
+  if (!texts.length || texts[0].getBBox().width === 0) return; // not laid out (hidden)
+  const placed: DOMRect[] = [];
+  const GAP = 2;
+  const hits = (a: DOMRect, b: DOMRect) =>
+    a.x < b.x + b.width + GAP &&
+    b.x < a.x + a.width + GAP &&
+    a.y < b.y + b.height + GAP &&
+    b.y < a.y + a.height + GAP;
+  for (const t of texts) {
+    let box = t.getBBox();
+    const dx = box.x < 2 ? 2 - box.x : box.x + box.width > W - 2 ? W - 2 - box.x - box.width : 0;
+    if (dx) t.setAttribute('x', String(Number(t.getAttribute('x')) + dx));
+    const y0 = Number(t.getAttribute('y'));
+    const step = box.height + GAP;
+    for (const k of [0, -1, 1, -2, 2, -3, 3, -4, 4, -5, 5]) {
+      const y = Math.min(Math.max(y0 + k * step, step), H - 2);
+      t.setAttribute('y', String(y));
+      box = t.getBBox();
+      if (!placed.some((p) => hits(p, box))) break;
+    }
+    placed.push(box);
+  }
+}

@@ -1,12 +1,22 @@
 /**
  * One outlet's trend (GET /api/outlets/:id/trend): each approved test's Cd·a (or Cd) with its
- * ±2u bar, each epoch's weighted line with its 95 % band, the epoch's baseline and action
- * threshold, maintenance that started an epoch, flagged steps, and the forecast date the
- * threshold is crossed with its interval. uPlot draws the points and the axes; the lines, bands
- * and markers are drawn on its canvas (one overlay), so epochs never join across a maintenance.
+ * ±2u bar, each epoch's weighted lines with their 95 % bands, the epoch's baseline and action
+ * threshold, maintenance that started an epoch, flagged steps, the forecast date the threshold
+ * is crossed with its interval, the 95 % prediction band of a new test past the last one, and
+ * today. uPlot draws the points and the axes; the lines, bands and markers are drawn on its
+ * canvas (one overlay). Lines are drawn per segment (server/core/trend/outlet.ts): they never
+ * join across a maintenance, nor across a flagged step (each side its own line, or none with
+ * fewer than 3 tests). Dates are ISO 8601, UTC.
  */
 import uPlot from 'uplot';
-import { COLOURS } from './charts.js';
+import {
+  COLOURS,
+  drawToday,
+  ISO_DATE_SPACE,
+  isoDateTicks,
+  isoDateValue,
+  utcDate,
+} from './charts.js';
 
 // The API's shapes, defined once in server/jobs/trend-views.ts (type-only: erased by the bundler)
 export type {
@@ -29,9 +39,13 @@ const TREND = {
   baseline: COLOURS.approved,
   threshold: COLOURS.threshold,
   forecast: 'rgba(163, 58, 58, 0.12)',
+  newTest: 'rgba(30, 91, 138, 0.55)',
   step: '#b3261e',
   point: '#1d2a33',
 };
+
+const toXY = (b: { atMs: number; value: number; lower: number; upper: number }[], k: number) =>
+  b.map((p) => ({ x: p.atMs / 1000, v: p.value * k, lo: p.lower * k, hi: p.upper * k }));
 
 /** Cd·a is shown in mm² (m² reads badly); Cd has no unit. */
 function pick(q: TrendQuantity) {
@@ -39,13 +53,13 @@ function pick(q: TrendQuantity) {
   return {
     value: (p: TrendPoint) => (q === 'area' ? p.effectiveAreaM2 : p.dischargeCoefficient) * k,
     u: (p: TrendPoint) => (q === 'area' ? p.effectiveAreaU : p.dischargeCoefficientU) * k,
-    band: (e: TrendEpoch) =>
-      (q === 'area' ? e.areaBand : e.cdBand).map((b) => ({
-        x: b.atMs / 1000,
-        v: b.value * k,
-        lo: b.lower * k,
-        hi: b.upper * k,
-      })),
+    /** One band per segment; an older answer without segments: the epoch's band. */
+    segmentBands: (e: TrendEpoch) =>
+      e.segments
+        ? e.segments.map((g) => toXY(q === 'area' ? g.areaBand : g.cdBand, k))
+        : [toXY(q === 'area' ? e.areaBand : e.cdBand, k)],
+    /** The prediction band of a new test (Cd·a only: the service forecasts Cd·a). */
+    newTestBand: (e: TrendEpoch) => (q === 'area' ? toXY(e.areaNewTestBand ?? [], k) : []),
     line: (e: TrendEpoch) => (q === 'area' ? e.area : e.cd),
     threshold: (e: TrendEpoch) => (q === 'area' ? e.thresholdM2 : e.thresholdCd),
     scale: k,
@@ -88,7 +102,16 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
   const ys = [
     ...lo,
     ...hi,
-    ...t.epochs.flatMap((e) => P.band(e).flatMap((b) => [b.lo, b.hi])),
+    ...t.epochs.flatMap((e) =>
+      P.segmentBands(e)
+        .flat()
+        .flatMap((b) => [b.lo, b.hi]),
+    ),
+    ...t.epochs.flatMap((e) =>
+      P.newTestBand(e)
+        .filter((b) => b.x <= t.nowMs / 1000 + 86400)
+        .flatMap((b) => [b.lo, b.hi]),
+    ),
     ...t.epochs.map((e) => (P.threshold(e) ?? NaN) * P.scale),
   ].filter(Number.isFinite);
   const ymin = Math.min(...ys);
@@ -132,13 +155,28 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
             ctx.fillText(label, lx, top + height - 10 * dpr);
           }
           t.epochs.forEach((e, i) => {
-            const band = P.band(e);
+            // the prediction band of a new test, dashed edges, from the last test on
+            const nb = P.newTestBand(e);
+            if (nb.length > 1) {
+              ctx.strokeStyle = TREND.newTest;
+              ctx.lineWidth = 1 * dpr;
+              ctx.setLineDash([5 * dpr, 3 * dpr]);
+              for (const edge of ['lo', 'hi'] as const) {
+                ctx.beginPath();
+                nb.forEach((b, k) =>
+                  k ? ctx.lineTo(px(b.x), py(b[edge])) : ctx.moveTo(px(b.x), py(b[edge])),
+                );
+                ctx.stroke();
+              }
+              ctx.setLineDash([]);
+            }
             const endX =
               i + 1 < t.epochs.length && t.epochs[i + 1].startMs
                 ? t.epochs[i + 1].startMs! / 1000
                 : (fcX ?? Math.max(lastX, t.nowMs / 1000));
             const startX = e.startMs ? e.startMs / 1000 : (e.series[0]?.testedAtMs ?? 0) / 1000;
-            if (band.length > 1) {
+            for (const band of P.segmentBands(e)) {
+              if (band.length < 2) continue;
               ctx.fillStyle = TREND.band;
               ctx.beginPath();
               band.forEach((b, k) =>
@@ -195,6 +233,7 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
             ctx.fillText(s.kind, px(s.x) + 4 * dpr, top + 14 * dpr);
           }
           ctx.restore();
+          drawToday(u, t.nowMs / 1000);
         },
       ],
       draw: [
@@ -241,9 +280,12 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
         x: { time: true, range: [x0 - pad, x1 + pad] },
         y: { range: [ymin - ypad, ymax + ypad] },
       },
+      tzDate: utcDate,
       axes: [
         {
-          label: 'date of the test',
+          label: 'date of the test (UTC)',
+          values: isoDateTicks,
+          space: ISO_DATE_SPACE,
           stroke: COLOURS.axis,
           grid: { stroke: COLOURS.grid, width: 1 },
           ticks: { stroke: COLOURS.grid, width: 1 },
@@ -261,7 +303,7 @@ export function trendChart(el: HTMLElement, t: FullTrend, q: TrendQuantity): uPl
         },
       ],
       series: [
-        { label: 'date' },
+        { label: 'date of the test', value: isoDateValue },
         {
           label: P.label,
           stroke: TREND.point,

@@ -73,6 +73,7 @@ export function readTestSeries(request: AnalysisRequest): {
     quantity: settings.quantity,
     dateOrder: settings.dateOrder,
     tz: settings.tz,
+    tzSource: settings.tzSource === 'site' ? "the site's zone" : undefined,
     delimiter: settings.delimiter,
     decimal: settings.decimal,
     levelTag: settings.levelTag,

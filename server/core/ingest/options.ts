@@ -15,6 +15,8 @@ export interface ReadOptions {
   dateOrder?: DateOrder;
   /** IANA zone (e.g. "Europe/Madrid") for local timestamps written without an offset. */
   tz?: string;
+  /** Where tz came from, said in the reader's note, e.g. "the site's zone" (default: stated by the person). */
+  tzSource?: string;
   /** Field delimiter: one character, or "tab". */
   delimiter?: string;
   decimal?: '.' | ',';

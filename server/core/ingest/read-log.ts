@@ -81,7 +81,7 @@ function pass(
     if (zone)
       notes.push({
         code: 'time-zone',
-        message: `${countText(col.local, 'local time')} without offset read in ${zone.zone}`,
+        message: `${countText(col.local, 'local time')} without offset read in ${zone.zone} (${opts.tzSource ?? 'as stated'})`,
       });
     else
       notes.push({

@@ -128,3 +128,20 @@ export class ZoneResolver {
     return before >= notBefore ? before : after;
   }
 }
+
+/**
+ * An IANA zone name checked with Intl and returned in its canonical spelling ("europe/lisbon" →
+ * "Europe/Lisbon"); a clear InputError naming `field` otherwise. Fixed offsets ("+01:00") and
+ * "UTC" are accepted: Intl knows them.
+ */
+export function checkTimeZone(zone: unknown, field = 'timeZone'): string {
+  if (typeof zone !== 'string' || zone.trim() === '' || zone.length > 64)
+    throw new InputError('give a time zone by its IANA name, e.g. Europe/Lisbon or UTC', { field });
+  try {
+    return new Intl.DateTimeFormat('en-US', { timeZone: zone.trim() }).resolvedOptions().timeZone;
+  } catch {
+    throw new InputError(`unknown time zone "${zone}" (give an IANA name such as Europe/Lisbon)`, {
+      field,
+    });
+  }
+}

@@ -22,6 +22,8 @@ export interface InflowLogUse {
   file: string;
   unit: string;
   samples: number;
+  /** Time-average over the fitted span, m³/s (meanFlowOverSpan). */
+  meanM3S: number;
   warnings: string[];
 }
 
@@ -97,6 +99,7 @@ export function systemFitJson(
         file: f.file,
         unit: f.unit,
         samples: f.samples,
+        meanM3S: f.meanM3S,
         interpolation: 'linear in time between readings',
       })),
     },

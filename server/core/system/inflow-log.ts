@@ -54,3 +54,33 @@ export function inflowOnFitClock(
     flowM3S: series.flowM3S.slice(lo, hi + 1),
   };
 }
+
+/**
+ * The time-average of a logged inflow over the fitted span [0, spanS], flow linear between readings
+ * (as the ODE takes it): the exact integral of that broken line divided by the span. The workbench
+ * starts its operating point from it (the steady state the logged pumping would hold on average).
+ */
+export function meanFlowOverSpan(
+  timeS: ArrayLike<number>,
+  flowM3S: ArrayLike<number>,
+  spanS: number,
+): number {
+  const n = timeS.length;
+  if (n === 0 || !(spanS > 0)) return n ? flowM3S[0] : 0;
+  const at = (t: number) => {
+    if (t <= timeS[0]) return flowM3S[0];
+    for (let i = 1; i < n; i++)
+      if (t <= timeS[i])
+        return (
+          flowM3S[i - 1] +
+          ((flowM3S[i] - flowM3S[i - 1]) * (t - timeS[i - 1])) / (timeS[i] - timeS[i - 1] || 1)
+        );
+    return flowM3S[n - 1];
+  };
+  // breakpoints inside the span, plus both ends; trapezoids are exact on a broken line
+  const ts = [0, ...Array.from(timeS).filter((t) => t > 0 && t < spanS), spanS];
+  let area = 0;
+  for (let i = 1; i < ts.length; i++)
+    area += ((at(ts[i - 1]) + at(ts[i])) / 2) * (ts[i] - ts[i - 1]);
+  return area / spanS;
+}

@@ -1,7 +1,14 @@
 export * from './types.js';
 export { splitEpochs } from './epochs.js';
 export { chiSquareCdf, chiSquareSf } from './chisquare.js';
-export { weightedLine, lineAt, lineUAt, type WeightedLine, type LineUncertainty } from './line.js';
+export {
+  weightedLine,
+  lineAt,
+  lineUAt,
+  newTestUAt,
+  type WeightedLine,
+  type LineUncertainty,
+} from './line.js';
 export {
   epochLine,
   yearsSince,
@@ -35,12 +42,26 @@ export {
 } from './status.js';
 export {
   outletTrend,
+  outletTrendDetailed,
   BAND_POINTS,
+  type EpochDetail,
   type OutletTrend,
   type EpochTrend,
   type SeriesPoint,
   type BandPoint,
+  type TrendSegment,
 } from './outlet.js';
+export {
+  testSchedule,
+  predictNewTest,
+  checkIntervalDays,
+  ageInWords,
+  DEFAULT_TEST_INTERVAL_DAYS,
+  MAX_TEST_INTERVAL_DAYS,
+  type TestSchedule,
+  type NewTestPrediction,
+  type IntervalSource,
+} from './due.js';
 export {
   simulateFoulingHistory,
   seededUniform,

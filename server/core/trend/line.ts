@@ -38,6 +38,11 @@ export interface WeightedLine extends LineUncertainty {
   meanT: number;
   /** Uncertainty of the line's value at meanT (scaled like the others). */
   uAtMeanT: number;
+  /**
+   * A typical single test's stated standard uncertainty, sqrt(n / Σ(1/u²)) (the harmonic mean of
+   * the variances): what a new test of the same kind is expected to carry.
+   */
+  typicalTestU: number;
 }
 
 export function weightedLine(tYears: Float64Array, y: Float64Array, u: Float64Array): WeightedLine {
@@ -112,6 +117,7 @@ export function weightedLine(tYears: Float64Array, y: Float64Array, u: Float64Ar
     slopeInterval95: { lower: slope - tq * uSlope, upper: slope + tq * uSlope },
     meanT: tm,
     uAtMeanT: scale / Math.sqrt(sw),
+    typicalTestU: Math.sqrt(n / sw),
   };
 }
 
@@ -125,4 +131,16 @@ export function lineUAt(line: WeightedLine, t: number): number {
   // Value and slope are uncorrelated about meanT, so this form has no cancellation far out.
   const d = t - line.meanT;
   return Math.sqrt(line.uAtMeanT ** 2 + d * d * line.uSlope ** 2);
+}
+
+/**
+ * Standard uncertainty of a NEW single test's value about the line at t (the prediction
+ * interval's u, not the mean band's): the line's own u at t and the test's scatter about the line,
+ * scale·uTest, added in quadrature. With equal u's and scatter beyond them (Birge ratio > 1) this
+ * is the textbook s²(1 + 1/n + (t − t̄)²/Sxx) of ordinary least squares, s² = Σr²/(n − 2).
+ * uTest defaults to the line's typicalTestU.
+ */
+export function newTestUAt(line: WeightedLine, t: number, uTest = line.typicalTestU): number {
+  const single = line.scale * uTest;
+  return Math.sqrt(lineUAt(line, t) ** 2 + single * single);
 }

@@ -4,7 +4,8 @@ import { splitEpochs } from './epochs.js';
 import { epochLine, yearsSince, YEAR_MS, type TrendLine } from './trendline.js';
 import { lineAt, lineUAt } from './line.js';
 import type { ThresholdForecast } from './forecast.js';
-import type { StepCheck } from './step.js';
+import { detectStep, type StepCheck } from './step.js';
+import { predictNewTest, type NewTestPrediction } from './due.js';
 import { assessEpoch, checkSettings, type OutletStatus } from './status.js';
 
 export interface SeriesPoint {
@@ -28,6 +29,24 @@ export interface BandPoint {
   upper: number;
 }
 
+/**
+ * A stretch of an epoch drawn with its own line: the whole epoch, or, when a step is flagged in
+ * it, the tests before the step and those from it on. A stretch with fewer than 3 tests has no
+ * line (points only): one straight line is never drawn through a step.
+ */
+export interface TrendSegment {
+  /** Ids of the segment's fits, in time order. */
+  fitIds: string[];
+  firstMs: number;
+  lastMs: number;
+  /** 'step' when the segment starts at a flagged step (its fitId), null for the epoch's first. */
+  startedBy: 'step' | null;
+  area: TrendLine | null;
+  cd: TrendLine | null;
+  areaBand: BandPoint[];
+  cdBand: BandPoint[];
+}
+
 export interface EpochTrend {
   index: number;
   startedBy: MaintenanceEvent | null;
@@ -43,6 +62,19 @@ export interface EpochTrend {
   /** Only the current epoch is forecast and checked for a step; earlier ones are history. */
   forecast: ThresholdForecast | null;
   step: StepCheck | null;
+}
+
+/**
+ * What the chart and the due list add to an epoch. Kept apart from EpochTrend so an outlet
+ * report (which embeds OutletTrend and must rebuild to the same content) does not change.
+ */
+export interface EpochDetail {
+  /** The epoch cut at a flagged step (each part its own line or none); one segment otherwise. */
+  segments: TrendSegment[];
+  /** Current epoch only: what a test made now would read (Cd·a), with a 95 % prediction interval. */
+  newTestNow: NewTestPrediction | null;
+  /** Current epoch only: the 95 % prediction band of a new test from the last test to the band's end. */
+  areaNewTestBand: BandPoint[];
 }
 
 export interface OutletTrend {
@@ -66,6 +98,43 @@ function band(line: TrendLine | null, fromMs: number, toMs: number): BandPoint[]
     out.push({ atMs, value: v, lower: v - hw, upper: v + hw });
   }
   return out;
+}
+
+function newTestBand(line: TrendLine | null, fromMs: number, toMs: number): BandPoint[] {
+  if (!line || !(toMs > fromMs)) return [];
+  const out: BandPoint[] = [];
+  for (let i = 0; i < BAND_POINTS; i++) {
+    const p = predictNewTest(line, fromMs + ((toMs - fromMs) * i) / (BAND_POINTS - 1));
+    out.push({ atMs: p.atMs, value: p.value, lower: p.lower, upper: p.upper });
+  }
+  return out;
+}
+
+/** The epoch's fits cut at its flagged step (if any); the last segment's band runs to endMs. */
+function segmentsOf(ep: Epoch, step: StepCheck | null, endMs: number): TrendSegment[] {
+  const fits = ep.fits;
+  if (!fits.length) return [];
+  const cut =
+    step?.flagged && step.fitId !== null ? fits.findIndex((f) => f.fitId === step.fitId) : -1;
+  const parts = cut > 0 ? [fits.slice(0, cut), fits.slice(cut)] : [fits];
+  return parts.map((part, k) => {
+    const sub: Epoch = { ...ep, fits: part, baseline: part[0] };
+    const area = epochLine(sub, 'effectiveArea');
+    const cd = epochLine(sub, 'dischargeCoefficient');
+    const firstMs = part[0].testedAtMs;
+    const lastMs = part[part.length - 1].testedAtMs;
+    const to = k === parts.length - 1 ? Math.max(lastMs, endMs) : lastMs;
+    return {
+      fitIds: part.map((f) => f.fitId),
+      firstMs,
+      lastMs,
+      startedBy: k === 0 ? null : 'step',
+      area,
+      cd,
+      areaBand: band(area, firstMs, to),
+      cdBand: band(cd, firstMs, to),
+    };
+  });
 }
 
 function series(ep: Epoch): SeriesPoint[] {
@@ -94,12 +163,23 @@ export function outletTrend(
   settings: TrendSettings,
   nowMs: number,
 ): OutletTrend {
+  return outletTrendDetailed(fits, events, settings, nowMs).trend;
+}
+
+/** outletTrend, and beside it each epoch's segments and the forecast of a new test (EpochDetail). */
+export function outletTrendDetailed(
+  fits: readonly ApprovedFit[],
+  events: readonly MaintenanceEvent[],
+  settings: TrendSettings,
+  nowMs: number,
+): { trend: OutletTrend; details: EpochDetail[] } {
   checkSettings(settings);
   if (!Number.isFinite(nowMs)) throw new InputError('now is not a time', { field: 'nowMs' });
   const pct = settings.actionThresholdPct;
   const epochs = splitEpochs(fits, events);
   const lastIdx = epochs.length - 1;
   const current = assessEpoch(epochs[lastIdx], settings, nowMs);
+  const details: EpochDetail[] = [];
   const out: EpochTrend[] = epochs.map((ep, i) => {
     const isCurrent = i === lastIdx;
     const area = isCurrent ? current.area : epochLine(ep, 'effectiveArea');
@@ -116,6 +196,21 @@ export function outletTrend(
       );
       end = Math.min(Math.max(lastT, want), lastT + reach);
     }
+    // every epoch is checked for a step (earlier ones too: a blockage a cleaning later removed)
+    const stepHere = isCurrent
+      ? current.step
+      : ep.fits.length
+        ? detectStep(ep.fits, epochLine(ep, 'effectiveArea')?.fit ?? null)
+        : null;
+    const segments = segmentsOf(ep, stepHere, end);
+    const lastSeg = segments[segments.length - 1];
+    // after a step the latest stretch predicts the next test; with too few tests there, nothing does
+    const predictor = isCurrent ? (segments.length > 1 ? (lastSeg?.area ?? null) : area) : null;
+    details.push({
+      segments,
+      newTestNow: predictor ? predictNewTest(predictor, nowMs) : null,
+      areaNewTestBand: predictor ? newTestBand(predictor, lastT, Math.max(end, nowMs)) : [],
+    });
     return {
       index: ep.index,
       startedBy: ep.startedBy,
@@ -131,5 +226,5 @@ export function outletTrend(
       step: isCurrent ? current.step : null,
     };
   });
-  return { thresholdPct: pct, nowMs, epochs: out, status: current.status };
+  return { trend: { thresholdPct: pct, nowMs, epochs: out, status: current.status }, details };
 }

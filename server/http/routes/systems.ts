@@ -1,9 +1,9 @@
 /**
  * Connected vessels over HTTP: the joint fit of every outlet's Cd·a from one test's logs, the
  * equilibrium levels at given inflows, and the linear (state-space) model about them. The same
- * pure code as `efflux fit-system`, `steady` and `linearize` (server/core/system); nothing is
- * stored: the fit answer is the document `steady` and `linearize` take back (the store has no
- * table for systems yet, so the person keeps the JSON).
+ * pure code as `efflux fit-system`, `steady` and `linearize` (server/core/system). POST
+ * /api/systems/fit only tries a fit (nothing stored; its answer is the document `steady` and
+ * `linearize` take back); POST /api/systems/fits keeps one as a record (routes/joint-fits.ts).
  *
  * The joint fit runs in the task pool (jobs/system-fit.ts), off the event loop, with a time limit
  * (503 past it); its readings are capped at MAX_FIT_SAMPLES there, measured to stay well inside it.
@@ -126,7 +126,8 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       config: { roles: TECHNICIANS_UP, scope: 'none' },
       schema: {
         tags: ['systems'],
-        summary: 'Joint fit of connected vessels from one test’s logs (nothing is stored)',
+        summary:
+          'Joint fit of connected vessels from one test’s logs, tried only (POST /api/systems/fits keeps one)',
         description:
           'multipart/form-data: file "system" (the system file), one file "log:ID" per vessel (ID as in the system file), one file "inflow:ID" for each logged inflow the system file names, and optional text fields window (START..END s), fitDatum, fitInflow (true/false), unit, tz, dateOrder, delimiter, decimal (for every log).',
         consumes: ['multipart/form-data'],
@@ -194,7 +195,7 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['systems'],
         summary:
-          'State-space model dx/dt = A x + B u about the equilibrium, time constants, as JSON with a text block and CSV',
+          'State-space model dx/dt = A x + B u about the equilibrium, time constants, as JSON, with the same model as labelled text tables and as CSV',
         body: operatingBody,
         response: { 200: linearAnswer, 422: problem, ...protectedErrors },
       },
@@ -207,16 +208,20 @@ export const systemRoutes: FastifyPluginAsyncZod = async (app) => {
   );
 };
 
-interface FileIn {
+export interface FileIn {
   bytes: Uint8Array;
   fileName: string;
 }
 
-async function readSystemUpload(request: FastifyRequest): Promise<{
+/** The multipart body of a joint fit: the files, and the text fields checked by `schema`. */
+export async function readSystemUpload<S extends z.ZodType = typeof fitFields>(
+  request: FastifyRequest,
+  schema?: S,
+): Promise<{
   system: FileIn;
   logs: Map<string, FileIn>;
   flows: Map<string, FileIn>;
-  fields: z.infer<typeof fitFields>;
+  fields: z.infer<S>;
 }> {
   if (!request.isMultipart())
     throw new HttpProblem(
@@ -264,9 +269,9 @@ async function readSystemUpload(request: FastifyRequest): Promise<{
       );
   }
   if (!system) throw refuse('system', 'required: the system file');
-  const parsed = fitFields.safeParse(text);
+  const parsed = (schema ?? fitFields).safeParse(text);
   if (!parsed.success) throw refuseFields(parsed.error.issues);
-  return { system, logs, flows, fields: parsed.data };
+  return { system, logs, flows, fields: parsed.data as z.infer<S> };
 }
 
 /** Inflows as [{to?, flow}]; a flow without `to` goes to the single vessel nothing discharges into. */

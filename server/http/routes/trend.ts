@@ -37,7 +37,8 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: trendView, 422: problem, ...protectedErrors },
       },
     },
-    async (request) => outletTrendView(app.store, request.params.id, nowOf(request.query.asOf)),
+    async (request) =>
+      await outletTrendView(app.store, request.params.id, nowOf(request.query.asOf)),
   );
 
   app.get(

@@ -3,7 +3,7 @@ import { InputError } from '../../../server/core/errors.js';
 import { alignLogs } from '../../../server/core/system/align.js';
 import { fitSystem } from '../../../server/core/system/fit.js';
 import { readFlowLog, type FlowSeries } from '../../../server/core/system/flow-log.js';
-import { inflowOnFitClock } from '../../../server/core/system/inflow-log.js';
+import { inflowOnFitClock, meanFlowOverSpan } from '../../../server/core/system/inflow-log.js';
 import { integrateSystem } from '../../../server/core/system/integrate.js';
 import { P, PER_VESSEL, type InflowInput } from '../../../server/core/system/network.js';
 import { simulateSystemTest } from '../../../server/core/system/simulate.js';
@@ -279,5 +279,18 @@ describe('joint fit with a logged, varying inflow (simulated, invented rig)', ()
       fit.residuals[0].reduce((s, r) => s + r * r, 0) / fit.residuals[0].length,
     );
     expect(worst > 0.005 || rmsWrong > 2 * rmsRight).toBe(true);
+  });
+});
+
+describe('meanFlowOverSpan', () => {
+  it('is the exact average of the broken line over the span (closed forms)', () => {
+    // constant: the constant
+    expect(meanFlowOverSpan([-5, 200], [0.002, 0.002], 100)).toBeCloseTo(0.002, 15);
+    // ramp 0 → 1 over 0..10 s: average 0.5
+    expect(meanFlowOverSpan([0, 10], [0, 1], 10)).toBeCloseTo(0.5, 15);
+    // readings bracketing the span: the line from (-10, 0) to (10, 2) is 1 at 0 and 2 at 10 → 1.5
+    expect(meanFlowOverSpan([-10, 10], [0, 2], 10)).toBeCloseTo(1.5, 15);
+    // a pulse 1 for 0..4 s with 2 s ramps to 0 at 6 s, span 10: area 4 + 1 = 5 → 0.5
+    expect(meanFlowOverSpan([0, 4, 6, 10], [1, 1, 0, 0], 10)).toBeCloseTo(0.5, 15);
   });
 });

@@ -95,7 +95,7 @@ describe('linear model about an operating point', () => {
     expect(e2 / e1).toBeLessThan(0.6);
   });
 
-  it('exports as CSV rows and a plain text block', () => {
+  it('exports as CSV rows and as labelled text tables (no matrix-literal syntax)', () => {
     const lm = linearize(model(TWO_FREE, [0.61, 0.8]), Float64Array.of(0.001, 0));
     const csv = linearModelCsv(lm).trim().split('\n');
     expect(csv[0]).toBe('matrix,row,column,value,standard_uncertainty,ci95_low,ci95_high');
@@ -105,7 +105,19 @@ describe('linear model about an operating point', () => {
       8,
     );
     const text = linearModelText(lm);
-    expect(text).toMatch(/^A = \[/m);
-    expect(text).toMatch(/C = eye\(2\)/);
+    // our own layout: no matrix literal of any numerical language (issue 17)
+    expect(text).not.toMatch(/\[[^\]]*;[^\]]*\]/s);
+    expect(text).not.toMatch(/eye\(/);
+    expect(text).not.toContain('[');
+    // a labelled table: a header naming each column vessel with its unit, one row per vessel
+    const lines = text.split('\n');
+    const aHead = lines.findIndex((l) => l.includes('per m in T1, 1/s'));
+    expect(lines[aHead]).toContain('per m in T2, 1/s');
+    const row = lines[aHead + 3].trim().split(/\s{3,}/);
+    expect(row[0]).toBe('T2');
+    // six significant figures printed
+    expect(Number(row[1]) / lm.a[2].value).toBeCloseTo(1, 5);
+    expect(text).toContain('per m³/s into T1, 1/m²');
+    expect(text).toMatch(/Time constants, s/);
   });
 });

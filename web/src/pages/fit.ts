@@ -10,6 +10,7 @@ import {
   canUpload,
   type DrainTest,
   type Fit,
+  type FitPeople,
   type Series,
   type Vessel,
 } from '../api.js';
@@ -19,6 +20,7 @@ import {
   areaMm2,
   clockAt,
   inWords,
+  date,
   dateTime,
   decimalsFor,
   displayUnits,
@@ -35,6 +37,7 @@ import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
 import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/budget/drain-time.js';
 import { budgetTableOf } from '../../../server/core/budget/table.js';
+import { plainNames } from '../../../server/render/report-words.js';
 
 /** A parameter's value in the unit a person reads it in. */
 function scaled(unit: string): { factor: number; unit: string } {
@@ -47,14 +50,105 @@ function scaled(unit: string): { factor: number; unit: string } {
 const pct = (p: number | null | undefined) =>
   p === null || p === undefined ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3);
 
+/** A time that never wraps (CSS: time { white-space: nowrap }). */
+const when = (iso: string | null | undefined, day = false) =>
+  iso ? h('time', { datetime: iso }, day ? date(iso) : dateTime(iso)) : '—';
+
+/** Who and when, by name: the test date, the operator, the uploader, who fitted and who reviewed. */
+function factsOf(fit: Fit, test: DrainTest, people: FitPeople | null): HTMLElement {
+  const item = (label: string, ...value: (Node | string)[]) =>
+    h('div', {}, h('dt', {}, label), h('dd', {}, ...value));
+  const system = 'the system (demo loader or import)';
+  return h(
+    'dl',
+    { class: 'facts', id: 'fit-facts' },
+    item(
+      'Tested',
+      when(test.testedAt, true),
+      test.testedAtSource === 'log' ? ' (from the log’s clock)' : '',
+    ),
+    item('Operator', test.operator ?? people?.operator ?? 'not stated'),
+    ...(test.loggerId ? [item('Logger', test.loggerId)] : []),
+    item('Uploaded by', people ? (people.uploadedBy ?? system) : '—', ' on ', when(test.createdAt)),
+    item('Fitted by', people ? (people.fittedBy ?? system) : '—', ' on ', when(fit.createdAt)),
+    item(
+      fit.status === 'rejected' ? 'Rejected by' : 'Approved by',
+      ...(fit.status === 'draft'
+        ? ['not reviewed yet']
+        : [people?.reviewedBy ?? '—', ' on ', when(fit.review?.at)]),
+    ),
+  );
+}
+
+/**
+ * The fitted terms besides Cd·a that matter to a reader, as headline cards: a steady inflow (a
+ * passing inlet) in L/s, a fitted sensor zero, a fitted head exponent. Expanded uncertainty with k.
+ */
+function termCards(
+  parameters: NonNullable<Fit['result']['parameters']>,
+  k: number | null,
+): HTMLElement[] {
+  const cards: HTMLElement[] = [];
+  const U = (u: number | null | undefined) => (u === null || u === undefined ? null : (k ?? 2) * u);
+  for (const p of parameters) {
+    if (!p.free || p.value === null) continue;
+    if (p.name === 'inflowM3S')
+      cards.push(
+        h(
+          'div',
+          { class: 'card' },
+          h('h2', {}, 'Inflow during the drain'),
+          h(
+            'p',
+            { class: 'value' },
+            plusMinus(p.value * 1000, mul(U(p.standardUncertainty), 1000), 'L/s'),
+          ),
+          h(
+            'p',
+            { class: 'hint' },
+            `a passing inlet or other steady inflow, fitted; ${num(p.value * 3.6e6, 3)} L/h; expanded uncertainty, k = ${num(k ?? 2, 3)}`,
+          ),
+        ),
+      );
+    else if (p.name === 'sensorZeroElevationM')
+      cards.push(
+        h(
+          'div',
+          { class: 'card' },
+          h('h2', {}, 'Sensor zero (fitted)'),
+          h(
+            'p',
+            { class: 'value' },
+            plusMinus(p.value * 1000, mul(U(p.standardUncertainty), 1000), 'mm'),
+          ),
+          h('p', { class: 'hint' }, 'above the vessel’s lowest point, found from the data'),
+        ),
+      );
+    else if (p.name === 'headExponent')
+      cards.push(
+        h(
+          'div',
+          { class: 'card' },
+          h('h2', {}, 'Head exponent n (fitted)'),
+          h('p', { class: 'value' }, plusMinus(p.value, U(p.standardUncertainty))),
+          h('p', { class: 'hint' }, '0.5 for an orifice; fitted here from the data'),
+        ),
+      );
+  }
+  return cards;
+}
+const mul = (x: number | null, f: number) => (x === null ? null : x * f);
+
 export async function fitPage({ user, params, main, go }: PageContext): Promise<void> {
   const id = Number(params[0]);
   const fit = await api<Fit>('GET', `/api/fits/${id}`);
   // The report is linked, never probed: a HEAD of report.pdf builds the whole PDF before answering.
-  const [vessel, test, siblings] = await Promise.all([
+  const [vessel, test, siblings, people] = await Promise.all([
     api<Vessel>('GET', `/api/vessels/${fit.vesselId}`),
     api<DrainTest>('GET', `/api/tests/${fit.testId}`),
     api<{ items: Fit[] }>('GET', `/api/tests/${fit.testId}/fits`),
+    // names are a courtesy: the page stands without them (an older service has no such route)
+    api<FitPeople>('GET', `/api/fits/${id}/people`).catch(() => null),
   ]);
   const r = fit.result;
   // the engine's own flag for a stated window is not always set; the stored settings say it
@@ -83,8 +177,9 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
     h(
       'p',
       { class: 'lede' },
-      `Logger file ${test.fileName}${test.baro ? ` with barometric log ${test.baro.fileName}` : ''} · fitted ${dateTime(fit.createdAt)} · engine ${fit.engineVersion}`,
+      `Logger file ${test.fileName}${test.baro ? ` with barometric log ${test.baro.fileName}` : ''} · engine ${fit.engineVersion}`,
     ),
+    factsOf(fit, test, people),
   );
   if (fit.supersededBy !== null)
     main.append(
@@ -136,6 +231,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
           `expanded uncertainty; 95 % interval ${areaMm2(ea.ci95?.[0] ?? NaN)} to ${areaMm2(ea.ci95?.[1] ?? NaN)}`,
         ),
       ),
+      ...termCards(r.parameters ?? [], k ?? null),
       h(
         'div',
         { class: 'card' },
@@ -148,7 +244,10 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         h(
           'p',
           { class: 'hint' },
-          `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}${r.window.startTime ? ` · ${dateTime(r.window.startTime)} to ${dateTime(r.window.endTime)}` : ''}`,
+          `${seconds(r.window.endS - r.window.startS)} long; ${r.window.samples} readings, chosen ${chosenBy}`,
+          ...(r.window.startTime
+            ? [' · ', when(r.window.startTime), ' to ', when(r.window.endTime)]
+            : []),
         ),
       ),
       h(
@@ -282,7 +381,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
           h(
             'ul',
             {},
-            r.budget.notes.map((n) => h('li', {}, n)),
+            r.budget.notes.map((n) => h('li', {}, plainNames(n))),
           ),
         ),
       ),
@@ -522,7 +621,12 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         'section',
         { class: 'card review' },
         h('h2', {}, 'Review'),
-        h('p', {}, `${fit.status} on ${dateTime(fit.review.at)}`),
+        h(
+          'p',
+          {},
+          `${fit.status}${people?.reviewedBy ? ` by ${people.reviewedBy}` : ''} on `,
+          when(fit.review.at),
+        ),
         fit.review.selfReview
           ? notice(
               'caution',
@@ -611,7 +715,7 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         ['Fit', 'Made', 'Window', 'Cd', 'State'],
         siblings.items.map((s) => [
           s.id === id ? `${s.id} (this one)` : h('a', { href: `#/fits/${s.id}` }, String(s.id)),
-          dateTime(s.createdAt),
+          when(s.createdAt),
           `${num(s.result.window.startS, 5)} s to ${num(s.result.window.endS, 5)} s`,
           s.result.dischargeCoefficient ? s.result.dischargeCoefficient.value.toFixed(4) : '—',
           `${s.status}${s.supersededBy !== null ? ', replaced' : ''}`,

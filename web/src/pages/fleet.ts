@@ -1,5 +1,5 @@
 /** Every vessel and outlet with its latest Cd, the date of its last test, and (when offered) its drift. */
-import { api, type Page, type Vessel } from '../api.js';
+import { api, type FleetStatusItem, type Page, type Vessel } from '../api.js';
 import { field, h, select } from '../dom.js';
 import { date, outletName, plusMinus, shapeName } from '../format.js';
 import { driftWords, fleetDrift, latestFor, vesselHistory, type TestedFit } from '../history.js';
@@ -13,6 +13,25 @@ interface Row {
   drift: string | null;
   /** Days until the action threshold: past it first, then soonest, then none (for the sort). */
   due: number;
+  /** When the next drain test falls due (GET /api/fleet), null when the service does not say. */
+  schedule: FleetStatusItem['schedule'];
+}
+
+/** "2026-09-03" with "overdue 93 days" or "in 12 days"; never tested: due now. */
+function nextTestCell(s: FleetStatusItem['schedule']): HTMLElement {
+  if (!s) return h('td', {}, '—');
+  if (s.neverTested)
+    return h('td', { class: 'due due-overdue', title: s.reason }, 'due now (never tested)');
+  const days = Math.round(Math.abs(s.daysUntilDue ?? 0));
+  return h(
+    'td',
+    { class: `due ${s.overdue ? 'due-overdue' : 'due-ok'}`, title: s.reason },
+    h('span', { class: 'nowrap' }, date(s.nextDueAt)),
+    ' ',
+    s.overdue
+      ? h('strong', { class: 'badge badge-overdue' }, `overdue ${days} d`)
+      : h('span', { class: 'muted' }, `in ${days} d`),
+  );
 }
 
 const dueOf = (d: { status: string; daysToThreshold: number | null } | undefined) =>
@@ -52,10 +71,12 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
         tests,
         drift: o ? driftWords(drift.get(o.id)) : null,
         due: o ? dueOf(drift.get(o.id)) : Infinity,
+        schedule: (o && drift.get(o.id)?.schedule) ?? null,
       });
     }
   });
   const anyDrift = drift.size > 0;
+  const anySchedule = rows.some((r) => r.schedule);
 
   const search = h('input', {
     type: 'search',
@@ -70,12 +91,14 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
     ['approved', 'with an approved fit'],
     ['draft', 'latest fit waiting for review'],
     ['none', 'never tested'],
+    ['overdue', 'overdue for a test'],
   ]);
   const order = select(
     'order',
     anyDrift
       ? [
           ['due', 'time to the action threshold, soonest first'],
+          ['next-test', 'next drain test due, soonest first'],
           ['name', 'vessel name'],
         ]
       : [['name', 'vessel name']],
@@ -83,16 +106,18 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
   );
   const count = h('p', { class: 'count', 'aria-live': 'polite' });
   const body = h('tbody');
-  const head = [
-    'Vessel',
-    'Site',
-    'Shape',
-    'Outlet',
-    'Latest Cd ± expanded uncertainty (k)',
-    'Fit',
-    'Last test',
-    'Tests',
-    ...(anyDrift ? ['Drift status'] : []),
+  // secondary columns (class "secondary") give way below 1000 px: the table reflows, never scrolls sideways
+  const head: [string, boolean][] = [
+    ['Vessel', false],
+    ['Site', true],
+    ['Shape', true],
+    ['Outlet', false],
+    ['Latest Cd ± expanded uncertainty (k)', false],
+    ['Fit', false],
+    ['Last test', false],
+    ['Tests', true],
+    ...(anySchedule ? ([['Next test due', false]] as [string, boolean][]) : []),
+    ...(anyDrift ? ([['Drift status', false]] as [string, boolean][]) : []),
   ];
   const tableEl = h(
     'table',
@@ -104,7 +129,9 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
       h(
         'tr',
         {},
-        head.map((t) => h('th', { scope: 'col' }, t)),
+        head.map(([t, secondary]) =>
+          h('th', { scope: 'col', class: secondary ? 'secondary' : '' }, t),
+        ),
       ),
     ),
     body,
@@ -117,11 +144,15 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
       if (state.value === 'none' && r.latest) return false;
       if (state.value === 'approved' && r.latest?.fit.status !== 'approved') return false;
       if (state.value === 'draft' && r.latest?.fit.status !== 'draft') return false;
+      if (state.value === 'overdue' && !r.schedule?.overdue) return false;
       if (!q) return true;
       return [r.vessel.name, r.vessel.site, r.outlet?.key ?? ''].some((s) =>
         s.toLowerCase().includes(q),
       );
     });
+    const nextMs = (r: Row) => (r.schedule ? (r.schedule.nextDueMs ?? -Infinity) : Infinity);
+    if (order.value === 'next-test')
+      shown.sort((a, b) => nextMs(a) - nextMs(b) || a.vessel.name.localeCompare(b.vessel.name));
     if (order.value === 'due')
       shown.sort((a, b) =>
         a.due === b.due ? a.vessel.name.localeCompare(b.vessel.name) : a.due < b.due ? -1 : 1,
@@ -134,10 +165,10 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
           'tr',
           {},
           h('th', { scope: 'row' }, h('a', { href: `#/vessels/${r.vessel.id}` }, r.vessel.name)),
-          h('td', {}, r.vessel.site),
+          h('td', { class: 'secondary' }, r.vessel.site),
           h(
             'td',
-            {},
+            { class: 'secondary' },
             shapeName(String((r.vessel.spec.shape as { kind?: string } | undefined)?.kind ?? '')),
           ),
           h(
@@ -151,7 +182,13 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
             'td',
             { class: 'num' },
             cd
-              ? `${plusMinus(cd.value, cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN))}${k ? ` (k = ${k.toFixed(2)})` : ''}`
+              ? [
+                  plusMinus(
+                    cd.value,
+                    cd.expandedUncertainty ?? 2 * (cd.standardUncertainty ?? NaN),
+                  ),
+                  k ? h('span', { class: 'k' }, ` (k = ${k.toFixed(2)})`) : '',
+                ]
               : '—',
           ),
           h(
@@ -168,8 +205,9 @@ export async function fleetPage({ main }: PageContext): Promise<void> {
                 )
               : '—',
           ),
-          h('td', {}, r.latest ? date(r.latest.at) : '—'),
-          h('td', { class: 'num' }, String(r.tests)),
+          h('td', {}, r.latest ? h('time', { datetime: r.latest.at }, date(r.latest.at)) : '—'),
+          h('td', { class: 'num secondary' }, String(r.tests)),
+          ...(anySchedule ? [nextTestCell(r.schedule)] : []),
           ...(anyDrift
             ? [
                 h(

@@ -1,16 +1,20 @@
 /**
- * Connected vessels: a system file and one level log per vessel → the joint fit of every
- * outlet's Cd·a (POST /api/systems/fit); then an operating point (inflow) → steady levels and
- * the linear model (POST /api/systems/steady, /linearize). Nothing is stored by the service:
- * the fit can be saved as a JSON file and opened here again in place of the system file.
+ * Connected vessels: a system file, one level log per vessel and one flow log per logged inflow →
+ * the joint fit of every outlet's Cd·a, kept as a draft record (POST /api/systems/fits) or only
+ * tried (POST /api/systems/fit); the kept fits of the system listed with approve/reject for a
+ * second person and the PDF report; then an operating point (inflow) → steady levels and the
+ * linear model (POST /api/systems/steady, /linearize). The operating point starts from the
+ * logged inflow's average over the test, or from the system file's constant inflows; otherwise
+ * the page asks for it (no made-up default).
  */
-import { api, ApiError, canUpload } from '../api.js';
-import { fitChart } from '../charts.js';
+import { api, ApiError, canReview, canUpload, type User } from '../api.js';
+import { fitChart, residualChart } from '../charts.js';
 import { append as appendKids, field, h, notice, table } from '../dom.js';
-import { area, decimalsFor, flow, num, plusMinus, seconds } from '../format.js';
+import { area, dateTime, decimalsFor, flow, num, plusMinus, seconds } from '../format.js';
 import type { PageContext } from '../main.js';
 import type { JointFitResult } from '../../../server/core/fit-result/schema.js';
-import { schematicVessels, systemSchematic } from '../schematic.js';
+import { plainProblem } from '../problem-words.js';
+import { schematicVessels, systemSchematic, untangleLabels } from '../schematic.js';
 
 /** The joint fit as the service sends it: the one fit-result shape (type-only) plus the drawing. */
 type SystemFit = JointFitResult & {
@@ -22,6 +26,32 @@ type SystemFit = JointFitResult & {
     fittedM: number[];
   }[];
 };
+/** A kept joint fit (GET /api/systems/fits/:id). */
+interface StoredJointFit {
+  id: number;
+  site: string;
+  systemName: string;
+  status: 'draft' | 'approved' | 'rejected';
+  createdAt: string;
+  createdBy: string | null;
+  reviewedBy: string | null;
+  reviewedAt: string | null;
+  result: JointFitResult;
+  drawing: NonNullable<SystemFit['drawing']>;
+  review: { comment: string | null; selfReview: boolean } | null;
+}
+type JointFitSummary = Omit<StoredJointFit, 'result' | 'drawing' | 'review'>;
+
+/** The logged inflows of a fit: vessel id → average over the test, m³/s. */
+function loggedInflowAverages(fit: JointFitResult | null): Map<string, number> {
+  const logs =
+    (fit?.diagnostics as { inflowLogs?: { to: string; meanM3S?: number }[] } | undefined)
+      ?.inflowLogs ?? [];
+  return new Map(
+    logs.filter((l) => typeof l.meanM3S === 'number').map((l) => [l.to, l.meanM3S as number]),
+  );
+}
+
 interface Est {
   value: number;
   standardUncertainty: number | null;
@@ -76,7 +106,7 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
     h(
       'p',
       { class: 'lede' },
-      'Vessels whose outlets discharge into one another, tested together: fit every outlet’s effective area Cd·a at once from one level log per vessel, then find the steady levels and the linear model at an inflow. Nothing is kept by the service: save the fit as a file to come back to it.',
+      'Vessels whose outlets discharge into one another, tested together: fit every outlet’s effective area Cd·a at once from one level log per vessel (and the flow log of a logged inflow), keep the fit as a record for a second person to approve, then find the steady levels and the linear model at an inflow.',
     ),
     notice(
       'caution',
@@ -89,15 +119,23 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
     accept: '.json,application/json',
   });
   const logsBox = h('div', { class: 'grid system-logs' });
+  const siteBox = h('div', {});
   const fitDatum = h('input', { type: 'checkbox', name: 'fitDatum', id: 'sys-fit-datum' });
   const fitInflow = h('input', { type: 'checkbox', name: 'fitInflow', id: 'sys-fit-inflow' });
+  const notes = h('input', { type: 'text', name: 'notes', maxlength: 2000 });
   const fitButton = h(
     'button',
     { type: 'submit', class: 'primary', disabled: true },
-    'Fit all outlets together',
+    'Fit all outlets together and keep the fit',
+  );
+  const tryButton = h(
+    'button',
+    { type: 'button', disabled: true },
+    'Try the fit without keeping it',
   );
   const status = h('div', { 'aria-live': 'polite' });
   const schematicBox = h('figure', { class: 'card schematic' });
+  const kept = h('section', { class: 'system-kept', 'aria-label': 'Kept fits' });
   const results = h('div', { class: 'system-results' });
   const operating = h('div', { class: 'system-operating' });
   const form = h(
@@ -110,9 +148,10 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
       field(
         'System file',
         systemInput,
-        'The vessels, where each outlet discharges to (free jet or submerged), and their elevations; or a saved fit of this page',
+        'The vessels, where each outlet discharges to (free jet or submerged), their elevations and inflows; or a fit saved from this page',
       ),
       logsBox,
+      siteBox,
       canUpload(user)
         ? h(
             'div',
@@ -131,31 +170,44 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
               h('label', { for: fitInflow.id }, 'Fit a steady inflow into each vessel'),
               h('span', { class: 'hint' }, 'a passing inlet valve during the test'),
             ),
-            h('div', { class: 'actions' }, fitButton),
+            field('Notes for the record', notes, 'optional: what the reviewer should know'),
+            h('div', { class: 'actions' }, fitButton, tryButton),
           )
         : h(
             'p',
             { class: 'hint' },
-            'Your role may not run a fit; open a saved fit, or a system file that states each outlet’s Cd·a, to work out an operating point.',
+            'Your role may not run a fit; open a kept fit below, a saved fit, or a system file that states each outlet’s Cd·a, to work out an operating point.',
           ),
     ),
     status,
   );
-  main.append(form, schematicBox, results, operating);
+  main.append(form, schematicBox, kept, results, operating);
 
   let system: Record<string, unknown> | null = null;
   let fitted: SystemFit | null = null;
   const logInputs = new Map<string, HTMLInputElement>();
+  const siteInput = h('input', { type: 'text', name: 'site', maxlength: 200 });
+  const vesselNames = () =>
+    (Array.isArray(system?.vessels) ? (system!.vessels as Record<string, unknown>[]) : []).map(
+      (v) => ({ id: String(v.id), name: String(v.name ?? v.id) }),
+    );
   const drawSchematic = (levels: Record<string, number> | null) => {
     if (!system) return;
+    const drawing = systemSchematic(schematicVessels(system), levels);
     schematicBox.replaceChildren(
-      systemSchematic(schematicVessels(system), levels),
+      drawing,
       h(
         'figcaption',
         {},
         'Heights and widths to one scale; elevations on the site datum. Dashed arrow: free jet (the receiver’s level does not act back); solid: submerged pipe (both levels count).',
       ),
     );
+    untangleLabels(drawing);
+  };
+  const ready = () => {
+    const missing = [...logInputs.values()].some((i) => !i.files?.length);
+    fitButton.disabled = missing;
+    tryButton.disabled = missing;
   };
 
   systemInput.addEventListener('change', async () => {
@@ -163,6 +215,7 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
     results.replaceChildren();
     operating.replaceChildren();
     logsBox.replaceChildren();
+    siteBox.replaceChildren();
     logInputs.clear();
     fitted = null;
     const f = systemInput.files?.[0];
@@ -171,7 +224,9 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
     try {
       doc = JSON.parse(await f.text());
     } catch {
-      status.append(notice('error', `${f.name} is not JSON: choose a system file or a saved fit`));
+      status.append(
+        notice('error', `System file: ${f.name} is not JSON; choose a system file or a saved fit`),
+      );
       return;
     }
     if (doc.format === 'efflux-system-fit') {
@@ -179,57 +234,215 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
       system = fitted.system as Record<string, unknown>;
       drawSchematic(null);
       showFit(fitted);
+      void showKept();
       return;
     }
     system = doc;
-    const vessels = Array.isArray(doc.vessels) ? (doc.vessels as Record<string, unknown>[]) : [];
+    const vessels = vesselNames();
     for (const v of vessels) {
       const input = h('input', {
         type: 'file',
-        name: `log:${String(v.id)}`,
+        name: `log:${v.id}`,
         accept: '.csv,.txt,.tsv,text/*',
       });
-      logInputs.set(String(v.id), input);
-      input.addEventListener(
-        'change',
-        () => (fitButton.disabled = [...logInputs.values()].some((i) => !i.files?.length)),
-      );
-      logsBox.append(field(`Level log of ${String(v.name ?? v.id)} (${String(v.id)})`, input));
+      logInputs.set(`log:${v.id}`, input);
+      input.addEventListener('change', ready);
+      logsBox.append(field(`Level log of ${v.name} (${v.id})`, input));
     }
+    // a logged inflow (a pump's flow meter): its file is named in the system file
+    const inflows = Array.isArray(doc.inflows) ? (doc.inflows as Record<string, unknown>[]) : [];
+    for (const inflow of inflows) {
+      if (typeof inflow.log !== 'string') continue;
+      const to = String(inflow.to);
+      const input = h('input', {
+        type: 'file',
+        name: `inflow:${to}`,
+        accept: '.csv,.txt,.tsv,text/*',
+      });
+      logInputs.set(`inflow:${to}`, input);
+      input.addEventListener('change', ready);
+      const v = vessels.find((x) => x.id === to);
+      logsBox.append(
+        field(
+          `Inflow log into ${v ? `${v.name} (${v.id})` : to}`,
+          input,
+          `the flow log the system file names: ${inflow.log}`,
+        ),
+      );
+    }
+    if (typeof doc.site !== 'string' && canUpload(user))
+      siteBox.append(
+        field('Site', siteInput, 'the system file names no site: the site the fit belongs to'),
+      );
+    ready();
     drawSchematic(null);
     showOperating();
+    void showKept();
   });
 
-  form.addEventListener('submit', async (ev) => {
-    ev.preventDefault();
+  function fitForm(): FormData | null {
     const f = systemInput.files?.[0];
-    if (!f || !system) return;
+    if (!f || !system) return null;
     const body = new FormData();
     body.append('system', f, f.name);
-    for (const [id, input] of logInputs)
-      if (input.files?.[0]) body.append(`log:${id}`, input.files[0], input.files[0].name);
+    for (const [name, input] of logInputs)
+      if (input.files?.[0]) body.append(name, input.files[0], input.files[0].name);
     if (fitDatum.checked) body.append('fitDatum', 'true');
     if (fitInflow.checked) body.append('fitInflow', 'true');
+    return body;
+  }
+
+  async function runFit(keep: boolean): Promise<void> {
+    const body = fitForm();
+    if (!body) return;
+    if (keep) {
+      if (siteInput.isConnected && siteInput.value.trim())
+        body.append('site', siteInput.value.trim());
+      if (notes.value.trim()) body.append('notes', notes.value.trim());
+    }
     fitButton.disabled = true;
+    tryButton.disabled = true;
     status.replaceChildren(notice('info', 'Fitting every outlet at once…'));
     try {
-      fitted = await api<SystemFit>('POST', '/api/systems/fit', body);
-      status.replaceChildren();
-      showFit(fitted);
+      if (keep) {
+        const stored = await api<StoredJointFit>('POST', '/api/systems/fits', body);
+        status.replaceChildren(
+          notice(
+            'info',
+            `Kept as joint fit ${stored.id}, a draft: another engineer approves or rejects it below.`,
+          ),
+        );
+        fitted = { ...stored.result, drawing: stored.drawing };
+        showFit(fitted, stored);
+        void showKept();
+      } else {
+        fitted = await api<SystemFit>('POST', '/api/systems/fit', body);
+        status.replaceChildren(notice('info', 'Tried only: this fit is not kept.'));
+        showFit(fitted);
+      }
     } catch (e) {
-      status.replaceChildren(notice('error', e instanceof ApiError ? e.message : String(e)));
+      status.replaceChildren(notice('error', plainProblem(e, vesselNames())));
     } finally {
-      fitButton.disabled = false;
+      ready();
     }
+  }
+  form.addEventListener('submit', (ev) => {
+    ev.preventDefault();
+    void runFit(true);
   });
+  tryButton.addEventListener('click', () => void runFit(false));
 
-  function showFit(fit: SystemFit): void {
+  /** The kept fits of this system (or of every system before one is chosen), newest first. */
+  async function showKept(): Promise<void> {
+    const name = typeof system?.name === 'string' ? system.name : null;
+    let list: { items: JointFitSummary[] };
+    try {
+      list = await api<{ items: JointFitSummary[] }>(
+        'GET',
+        `/api/systems/fits${name ? `?system=${encodeURIComponent(name)}` : ''}`,
+      );
+    } catch (e) {
+      kept.replaceChildren(notice('error', plainProblem(e, vesselNames())));
+      return;
+    }
+    kept.replaceChildren(
+      h('h2', {}, name ? `Kept fits of ${name}` : 'Kept fits of connected vessels'),
+    );
+    if (!list.items.length) {
+      kept.append(h('p', { class: 'hint' }, 'None kept yet.'));
+      return;
+    }
+    kept.append(
+      h(
+        'div',
+        { class: 'table-wrap' },
+        table(
+          null,
+          ['Fit', 'System', 'Site', 'Status', 'Kept', 'Reviewed', ''],
+          list.items.map((f) => [
+            String(f.id),
+            f.systemName,
+            f.site,
+            h('span', { class: `badge badge-${f.status}` }, f.status),
+            `${dateTime(f.createdAt)} by ${f.createdBy ?? 'the system'}`,
+            f.reviewedBy ? `${dateTime(f.reviewedAt)} by ${f.reviewedBy}` : '—',
+            keptActions(f, user),
+          ]),
+          'kept-fits',
+        ),
+      ),
+    );
+  }
+
+  function keptActions(f: JointFitSummary, who: User): HTMLElement {
+    const box = h('div', { class: 'actions kept-actions' });
+    const open = h('button', { type: 'button' }, `Open fit ${f.id}`);
+    open.addEventListener('click', async () => {
+      try {
+        const stored = await api<StoredJointFit>('GET', `/api/systems/fits/${f.id}`);
+        fitted = { ...stored.result, drawing: stored.drawing };
+        if (!system || system.name !== stored.systemName) {
+          system = stored.result.system as Record<string, unknown>;
+          drawSchematic(null);
+        }
+        showFit(fitted, stored);
+      } catch (e) {
+        status.replaceChildren(notice('error', plainProblem(e, vesselNames())));
+      }
+    });
+    box.append(
+      open,
+      h(
+        'a',
+        { href: `/api/systems/fits/${f.id}/report.pdf`, class: 'button', download: '' },
+        `Report of fit ${f.id} (PDF)`,
+      ),
+    );
+    if (f.status === 'draft' && canReview(who)) {
+      const comment = h('input', {
+        type: 'text',
+        name: `comment-${f.id}`,
+        maxlength: 2000,
+        placeholder: 'comment (optional)',
+        'aria-label': `Review comment for fit ${f.id}`,
+      });
+      const decide = (decision: 'approve' | 'reject') => async () => {
+        try {
+          await api('POST', `/api/systems/fits/${f.id}/review`, {
+            decision,
+            ...(comment.value.trim() ? { comment: comment.value.trim() } : {}),
+          });
+          status.replaceChildren(
+            notice('info', `Fit ${f.id} ${decision === 'approve' ? 'approved' : 'rejected'}.`),
+          );
+          void showKept();
+        } catch (e) {
+          status.replaceChildren(notice('error', plainProblem(e, vesselNames())));
+        }
+      };
+      const approve = h('button', { type: 'button', class: 'primary' }, `Approve fit ${f.id}`);
+      const reject = h('button', { type: 'button' }, `Reject fit ${f.id}`);
+      approve.addEventListener('click', decide('approve'));
+      reject.addEventListener('click', decide('reject'));
+      box.append(comment, approve, reject);
+    }
+    return box;
+  }
+
+  function showFit(fit: SystemFit, stored: StoredJointFit | null = null): void {
     results.replaceChildren();
     const names = fit.correlations.parameters;
     const k = (Object.values(fit.outlets)[0]?.dischargeCoefficient?.coverageFactor ?? 2).toFixed(2);
     append(
       results,
-      h('h2', {}, 'Joint fit'),
+      h('h2', {}, stored ? `Joint fit ${stored.id} (${stored.status})` : 'Joint fit (not kept)'),
+      stored
+        ? h(
+            'p',
+            { class: 'hint' },
+            `Kept ${dateTime(stored.createdAt)} by ${stored.createdBy ?? 'the system'}, site ${stored.site}${stored.reviewedBy ? `; ${stored.status} ${dateTime(stored.reviewedAt)} by ${stored.reviewedBy}${stored.review?.selfReview ? ' (self-review, allowed for the site)' : ''}${stored.review?.comment ? ` — “${stored.review.comment}”` : ''}` : '; not reviewed yet'}.`,
+          )
+        : null,
       h(
         'p',
         { class: 'headline-line' },
@@ -286,6 +499,21 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
           v.lag1Autocorrelation === null ? '—' : v.lag1Autocorrelation.toFixed(2),
         ]),
       ),
+      loggedInflowAverages(fit).size
+        ? table(
+            'Logged inflows',
+            ['Into', 'Flow log', 'Readings over the span', 'Average over the test'],
+            ((fit.diagnostics as { inflowLogs?: Record<string, unknown>[] }).inflowLogs ?? []).map(
+              (l) => [
+                String(l.to),
+                String(l.file),
+                String(l.samples),
+                typeof l.meanM3S === 'number' ? flow(l.meanM3S) : '—',
+              ],
+            ),
+            'inflow-logs',
+          )
+        : null,
       h('h3', {}, 'Correlations between the fitted parameters'),
       h(
         'p',
@@ -313,7 +541,7 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
       ),
     );
     if (fit.drawing) {
-      results.append(h('h3', {}, 'Each log and its fitted curve'));
+      results.append(h('h3', {}, 'Each log, its fitted curve and its residuals'));
       const grid = h('div', { class: 'system-charts' });
       results.append(grid);
       for (const d of fit.drawing) {
@@ -323,14 +551,19 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
           role: 'img',
           'aria-label': `Level of ${d.id} and the fitted curve`,
         });
-        grid.append(h('div', {}, h('h4', {}, `${d.id} · ${d.fileName}`), box));
-        requestAnimationFrame(() =>
-          fitChart(
-            box,
-            { offsetS: 0, timeS: d.timeS, observedM: d.levelM, fittedM: d.fittedM },
-            'time from the logs’ common start (min)',
-          ),
-        );
+        const resid = h('div', {
+          class: 'chart',
+          id: `system-residuals-${d.id}`,
+          role: 'img',
+          'aria-label': `Residuals of ${d.id}: reading − fitted`,
+        });
+        const rms = fit.residuals.find((r) => r.id === d.id)?.rmseM ?? null;
+        grid.append(h('div', {}, h('h4', {}, `${d.id} · ${d.fileName}`), box, resid));
+        const plot = { offsetS: 0, timeS: d.timeS, observedM: d.levelM, fittedM: d.fittedM };
+        requestAnimationFrame(() => {
+          fitChart(box, plot, 'time from the logs’ common start (min)');
+          residualChart(resid, plot, rms);
+        });
       }
     }
     const { drawing: _drop, ...keep } = fit;
@@ -340,10 +573,19 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
         'div',
         { class: 'actions' },
         download('system-fit.json', JSON.stringify(keep, null, 2), 'application/json'),
+        stored
+          ? h(
+              'a',
+              { href: `/api/systems/fits/${stored.id}/report.pdf`, class: 'button', download: '' },
+              'Report (PDF)',
+            )
+          : null,
         h(
           'span',
           { class: 'hint' },
-          'the same document as efflux fit-system --json; open it here again, or give it to efflux steady and linearize',
+          stored
+            ? `the same document as efflux fit-system --json; efflux steady, linearize and predict take this kept fit as --joint-fit ${stored.id}`
+            : 'the same document as efflux fit-system --json; open it here again, or give it to efflux steady and linearize',
         ),
       ),
     );
@@ -353,27 +595,27 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
   function showOperating(): void {
     operating.replaceChildren();
     if (!system) return;
-    const vessels = (system.vessels as Record<string, unknown>[]).map((v) => String(v.id));
-    const receivers = new Set(
-      (system.vessels as Record<string, unknown>[]).map((v) => v.dischargesTo).filter(Boolean),
-    );
+    const vessels = vesselNames();
     const inputs = new Map<string, HTMLInputElement>();
     const constant = Array.isArray(system.inflows)
       ? (system.inflows as { to: string; constant?: number | string }[])
       : [];
-    for (const id of vessels) {
+    const averages = loggedInflowAverages(fitted);
+    const sources: string[] = [];
+    for (const { id } of vessels) {
       const given = constant.find((c) => c.to === id && c.constant !== undefined)?.constant;
-      const value =
-        given !== undefined
-          ? typeof given === 'number'
-            ? `${num(given * 1000, 4)} L/s`
-            : given
-          : !receivers.has(id)
-            ? '2.5 L/s'
-            : '';
+      const average = averages.get(id);
+      let value = '';
+      if (given !== undefined) {
+        value = typeof given === 'number' ? `${num(given * 1000, 4)} L/s` : given;
+        sources.push(`${id}: the system file’s constant inflow`);
+      } else if (average !== undefined) {
+        value = `${num(average * 1000, 4)} L/s`;
+        sources.push(`${id}: the logged inflow’s average over the test`);
+      }
       inputs.set(
         id,
-        h('input', { type: 'text', name: `inflow-${id}`, value, placeholder: '0 L/s', size: 10 }),
+        h('input', { type: 'text', name: `inflow-${id}`, value, placeholder: 'none', size: 10 }),
       );
     }
     const go = h('button', { type: 'submit', class: 'primary' }, 'Work out the operating point');
@@ -388,12 +630,14 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
         h(
           'p',
           { class: 'hint' },
-          'Steady inflow into each vessel, with its unit (L/s, m3/h, m3/s, gpm); empty means none.',
+          sources.length
+            ? `Started from ${sources.join('; ')}. Change any of them; give each with its unit (L/s, m3/h, m3/s, gpm); empty means none.`
+            : 'At what steady inflow? Give the inflow into each vessel with its unit (L/s, m3/h, m3/s, gpm); empty means none.',
         ),
         h(
           'div',
           { class: 'grid' },
-          [...inputs].map(([id, i]) => field(`Inflow into ${id}`, i)),
+          vessels.map(({ id, name }) => field(`Inflow into ${name} (${id})`, inputs.get(id)!)),
         ),
         h('div', { class: 'actions' }, go),
       ),
@@ -406,6 +650,15 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
       const inflows = [...inputs]
         .filter(([, i]) => i.value.trim())
         .map(([to, i]) => ({ to, flow: i.value.trim() }));
+      if (!inflows.length) {
+        out.append(
+          notice(
+            'error',
+            'Give the inflow into at least one vessel to work out an operating point.',
+          ),
+        );
+        return;
+      }
       const doc = fitted ? (({ drawing: _d, ...rest }) => rest)(fitted) : system!;
       go.disabled = true;
       try {
@@ -418,12 +671,25 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
           Object.fromEntries(Object.entries(s.vessels).map(([id, v]) => [id, v.levelM.value])),
         );
       } catch (e) {
-        out.append(notice('error', e instanceof ApiError ? e.message : String(e)));
+        // inflows.N.flow → the inflow field of that vessel, as the page names it
+        const p = e instanceof ApiError ? e.problem : null;
+        const m = /^inflows\.(\d+)/.exec(String(p?.field ?? ''));
+        const v = m ? vessels.find((x) => x.id === inflows[Number(m[1])]?.to) : undefined;
+        out.append(
+          notice(
+            'error',
+            v
+              ? `Inflow into ${v.name} (${v.id}): ${String((p?.errors as { message: string }[] | undefined)?.[0]?.message ?? p?.detail)}`
+              : plainProblem(e, vessels),
+          ),
+        );
       } finally {
         go.disabled = false;
       }
     });
   }
+
+  void showKept();
 }
 
 function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
@@ -512,7 +778,7 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
     ),
   );
   const pre = h('pre', { class: 'model-text', id: 'model-text' }, lm.text);
-  const copy = h('button', { type: 'button' }, 'Copy the text block');
+  const copy = h('button', { type: 'button' }, 'Copy the text');
   const copied = h('span', { class: 'hint', 'aria-live': 'polite' });
   copy.addEventListener('click', async () => {
     try {
@@ -528,7 +794,7 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
     }
   });
   out.append(
-    h('h3', {}, 'Text block for a script or a design note'),
+    h('h3', {}, 'The linear model as text (for a design note)'),
     pre,
     h('div', { class: 'actions' }, copy, download('linear-model.csv', lm.csv, 'text/csv'), copied),
   );

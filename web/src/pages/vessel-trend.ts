@@ -1,7 +1,7 @@
 /** The vessel page's trend of approved tests per outlet, and the maintenance record with its entry form. */
 import { api, ApiError, type MaintenanceEvent, type Outlet } from '../api.js';
 import { field, h, notice, select, table } from '../dom.js';
-import { area, date, num, plusMinus, unitOf } from '../format.js';
+import { area, date, duration, num, plusMinus, unitOf } from '../format.js';
 import { trendChart, type FullTrend, type TrendQuantity } from '../trend-chart.js';
 
 const STATUS_CLASS: Record<string, string> = {
@@ -27,9 +27,43 @@ function forecastWords(t: FullTrend): string {
   if (fc.status === 'forecast' && fc.crossingMs) {
     const lo = fc.lowerMs ? date(new Date(fc.lowerMs).toISOString()) : 'open';
     const hi = fc.upperMs ? date(new Date(fc.upperMs).toISOString()) : 'not bounded';
-    return `Forecast: the action threshold is reached about ${date(new Date(fc.crossingMs).toISOString())} (95 % interval ${lo} to ${hi}${fc.daysFromNow !== null ? `; in about ${Math.round(fc.daysFromNow)} days` : ''}).`;
+    return `Forecast: the action threshold is reached about ${date(new Date(fc.crossingMs).toISOString())} (95 % interval ${lo} to ${hi}${fc.daysFromNow !== null ? `; in about ${duration(fc.daysFromNow)}` : ''}).`;
   }
   return `Forecast: ${fc.reason.replace(/\.?$/, '.')}`;
+}
+
+/** When the next test is due; when overdue, how old the latest test is and what a test today would read. */
+function scheduleWords(t: FullTrend): HTMLElement | null {
+  const s = t.schedule;
+  if (!s) return null;
+  const now = t.epochs.find((e) => e.current)?.newTestNow ?? null;
+  const parts = [`Next test: ${sentence(s.reason)}`];
+  if (s.overdue && now) {
+    parts.push(
+      `A test today is expected to read ${area(now.value, now.halfWidth95)} (95 % prediction interval for a new test; it widens the longer the outlet goes untested).`,
+    );
+  }
+  return h(
+    'p',
+    {
+      class: `trend-schedule${s.overdue ? ' schedule-overdue' : ''}`,
+      'data-overdue': String(s.overdue),
+    },
+    parts.join(' '),
+  );
+}
+
+/** The epoch's drift; cut at a flagged step, each side's own (the whole-epoch line would run through the step). */
+function driftCell(e: FullTrend['epochs'][number]): string {
+  const one = (l: typeof e.area) =>
+    l
+      ? `${pct(l.slopePctPerYear, 2 * l.slopePctPerYearU)} a year (±2u)`
+      : 'too few tests for a line';
+  if (e.segments && e.segments.length > 1)
+    return e.segments
+      .map((g, k) => `${k === 0 ? 'before the step' : 'from the step'}: ${one(g.area)}`)
+      .join('; ');
+  return e.area ? one(e.area) : '—';
 }
 
 function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
@@ -54,6 +88,8 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
         : forecastWords(t),
     ),
   );
+  const schedule = scheduleWords(t);
+  if (schedule) wrap.append(schedule);
   if (!points) {
     wrap.append(h('p', {}, 'No approved test yet: the trend starts with the first approved fit.'));
     return wrap;
@@ -115,7 +151,19 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
         h('span', { class: 'key key-forecast' }),
         'forecast crossing date and its 95 % interval',
       ),
-      h('li', {}, h('span', { class: 'key key-step' }), 'sudden step flagged'),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-step' }),
+        'sudden step flagged (the line is cut there)',
+      ),
+      h(
+        'li',
+        {},
+        h('span', { class: 'key key-newtest' }),
+        'dashed: 95 % interval of a new test after the last one',
+      ),
+      h('li', {}, h('span', { class: 'key key-today' }), 'today'),
     ),
   );
   let chart: ReturnType<typeof trendChart> | null = null;
@@ -144,7 +192,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
           `${e.index + 1}${e.current ? ' (present)' : ''}`,
           e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
           String(e.series.length),
-          e.area ? `${pct(e.area.slopePctPerYear, 2 * e.area.slopePctPerYearU)} a year (±2u)` : '—',
+          driftCell(e),
           e.area ? area(e.area.baselineValue) : '—',
           e.thresholdM2 !== null ? area(e.thresholdM2) : '—',
           e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',

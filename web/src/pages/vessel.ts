@@ -248,7 +248,7 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
         const f = latestFitOf(t.id);
         const cd = f?.fit.result.dischargeCoefficient;
         return [
-          date(f?.at ?? t.testedAt ?? t.createdAt),
+          h('time', {}, date(f?.at ?? t.testedAt ?? t.createdAt)),
           t.fileName,
           v.outlets.find((o) => o.id === t.outletId)?.key ?? '—',
           t.operator ?? '—',
