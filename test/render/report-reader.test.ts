@@ -163,7 +163,8 @@ describe.skipIf(!poppler)('demo reports written for a reader', () => {
         expect(text).toContain('water at 12 °C');
         expect(text).toContain('bore d = 50.0 mm ± 0.2 mm');
         // the passing inlet's flow in L/s, and the settings as a list
-        expect(text).toMatch(/inflow during the drain, Q_in\s+\d\.\d+ L\/s/);
+        // value ± U as the result rows print it (core/format), in the SI report's L/s
+        expect(text).toMatch(/inflow during the drain, Q_in\s+\d\.\d+ ± \d\.\d+ L\/s \(U, k = /);
         expect(text).toMatch(/constant inflow\s+fitted/);
         expect(text).toContain('Uncertainty budget (JCGM 100:2008)');
         expect(text).not.toMatch(/\d\.\d+e-\d+ m³\/s/);

@@ -26,7 +26,7 @@ describe('display preferences (migration 006)', () => {
           "INSERT INTO user_preferences (user_id, display_units, updated_at) VALUES (?, 'furlong', 'x')",
           [b.id],
         ),
-      ).rejects.toThrow(/CHECK/);
+      ).rejects.toThrow(/check constraint/i);
     } finally {
       await store.close();
     }
