@@ -36,7 +36,6 @@ import { peopleRoutes } from './routes/people.js';
 import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
-import { fitPeopleRoutes } from './routes/fit-people.js';
 import { compareRoutes } from './routes/compare.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
@@ -304,7 +303,6 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(testRoutes);
   await app.register(pendingRoutes);
   await app.register(fitRoutes);
-  await app.register(fitPeopleRoutes);
   await app.register(compareRoutes);
   await app.register(eventRoutes);
   await app.register(trendRoutes);

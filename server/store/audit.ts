@@ -89,6 +89,10 @@ export interface AuditFilter {
   since?: string;
   until?: string;
   afterSeq?: number;
+  /** Entries before this one only (paging newest first). */
+  beforeSeq?: number;
+  /** Newest first instead of oldest first. */
+  newestFirst?: boolean;
   limit?: number;
 }
 
@@ -155,8 +159,8 @@ export class AuditLog {
             (entity_type = 'maintenance-event' AND entity_id IN (SELECT CAST(id AS TEXT) FROM maintenance_events WHERE vessel_id = @vesselId))) AND
           (@since IS NULL OR at >= @since) AND
           (@until IS NULL OR at < @until) AND
-          seq > @afterSeq
-        ORDER BY seq LIMIT @limit`,
+          seq > @afterSeq AND (@beforeSeq IS NULL OR seq < @beforeSeq)
+        ORDER BY seq ${f.newestFirst ? 'DESC' : 'ASC'} LIMIT @limit`,
       )
       .all({
         entityType: f.entityType ?? null,
@@ -167,6 +171,7 @@ export class AuditLog {
         since: f.since ?? null,
         until: f.until ?? null,
         afterSeq: f.afterSeq ?? 0,
+        beforeSeq: f.beforeSeq ?? null,
         limit: f.limit ?? 100,
       }) as AuditRow[];
     return rows.map(toEntry);
