@@ -15,10 +15,10 @@ export async function run(argv: string[]): Promise<number> {
     );
     return 2;
   }
-  const store = openStore({ dataDir: dataDir() });
+  const store = await openStore({ dataDir: dataDir() });
   try {
-    const r = store.audit.verify();
-    const records = verifyRecords(store);
+    const r = await store.audit.verify();
+    const records = await verifyRecords(store);
     const out: string[] = [];
     if (r.ok) out.push(`audit chain intact: ${r.count} entries; head ${r.head}`);
     else
@@ -43,6 +43,6 @@ export async function run(argv: string[]): Promise<number> {
     process.stdout.write(out.join('\n') + '\n');
     return r.ok && records.ok ? 0 : 1;
   } finally {
-    store.close();
+    await store.close();
   }
 }

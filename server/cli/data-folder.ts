@@ -11,10 +11,9 @@ import {
   backupDatabase,
   BackupCheckError,
   BackupRefusedError,
-  checkDatabase,
+  checkDatabaseFile,
   databasePath,
   NoDatabaseError,
-  openExisting,
   restoreDatabase,
   type DatabaseCheck,
 } from '../store/maintenance.js';
@@ -94,15 +93,10 @@ export async function runCheck(argv: string[]): Promise<number> {
     return 0;
   }
   try {
-    const db = openExisting(databasePath(dataDir(process.env, { flag: values.data })));
-    try {
-      const c = checkDatabase(db);
-      printCheck(c);
-      for (const p of c.problems) process.stderr.write(`efflux: ${p}\n`);
-      return c.ok ? 0 : 1;
-    } finally {
-      db.close();
-    }
+    const c = await checkDatabaseFile(databasePath(dataDir(process.env, { flag: values.data })));
+    printCheck(c);
+    for (const p of c.problems) process.stderr.write(`efflux: ${p}\n`);
+    return c.ok ? 0 : 1;
   } catch (e) {
     return refuse(e);
   }
@@ -123,9 +117,9 @@ export async function runRestore(argv: string[]): Promise<number> {
   try {
     const lock = lockDataFolder(dir, 'efflux restore'); // FolderBusyError → exit 2 in main.ts
     try {
-      const r = restoreDatabase(dir, positionals[0], new Date().toISOString());
+      const r = await restoreDatabase(dir, positionals[0], new Date().toISOString());
       // bring it to this build's schema now (a pre-migration copy is taken first), so the next start is plain
-      openStore({ dataDir: dir }).close();
+      await (await openStore({ dataDir: dir })).close();
       say(`restored ${positionals[0]} into ${databasePath(dir)}`);
       if (r.keptAs) say(`the database it replaced is kept as ${r.keptAs}`);
       printCheck(r.check);

@@ -36,7 +36,7 @@ export async function run(argv: string[]): Promise<number> {
     if (positionals.length)
       throw new InputError(`unexpected argument "${positionals[0]}" (see --help)`);
     if (!values.out) throw new InputError('say where to write the archive: --out archive.zip');
-    const store = openStore({ dataDir: dataDir() });
+    const store = await openStore({ dataDir: dataDir() });
     try {
       const t0 = performance.now();
       const r = await periodExport(
@@ -50,7 +50,7 @@ export async function run(argv: string[]): Promise<number> {
       );
       return 0;
     } finally {
-      store.close();
+      await store.close();
     }
   });
 }

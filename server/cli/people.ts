@@ -48,31 +48,31 @@ export async function run(argv: string[]): Promise<number> {
     process.stdout.write(`${USAGE}\n`);
     return sub ? 0 : 2;
   }
-  const store = openStore({ dataDir: dataDir() });
+  const store = await openStore({ dataDir: dataDir() });
   try {
     switch (sub) {
       case 'list':
-        for (const p of store.users.people()) process.stdout.write(`${line(p)}\n`);
+        for (const p of await store.users.people()) process.stdout.write(`${line(p)}\n`);
         return 0;
       case 'add': {
         if (!name || name.startsWith('--'))
           throw new RangeError('name the person: efflux people add NAME --role ROLE');
         const r = role(option(rest, 'role'));
         if (!r) throw new RangeError('--role is required');
-        const p = store.users.addPerson(SYSTEM_ACTOR, name, r, sitesOpt(rest) ?? null);
+        const p = await store.users.addPerson(SYSTEM_ACTOR, name, r, sitesOpt(rest) ?? null);
         process.stdout.write(`${line(p)}\n`);
         const label = option(rest, 'token');
         if (label !== undefined) {
-          const { token } = store.users.createTokenFor(SYSTEM_ACTOR, p.id, label);
+          const { token } = await store.users.createTokenFor(SYSTEM_ACTOR, p.id, label);
           process.stdout.write(`${token}\n`);
           process.stderr.write(`token for ${p.name}; it is shown only now\n`);
         }
         return 0;
       }
       case 'change': {
-        const p = store.users.personByName(name ?? '');
+        const p = await store.users.personByName(name ?? '');
         const sites = rest.includes('--all-sites') ? null : sitesOpt(rest);
-        const changed = store.users.changePerson(SYSTEM_ACTOR, p.id, {
+        const changed = await store.users.changePerson(SYSTEM_ACTOR, p.id, {
           role: role(option(rest, 'role')),
           ...(sites !== undefined ? { sites } : {}),
         });
@@ -80,7 +80,10 @@ export async function run(argv: string[]): Promise<number> {
         return 0;
       }
       case 'revoke': {
-        const p = store.users.revokePerson(SYSTEM_ACTOR, store.users.personByName(name ?? '').id);
+        const p = await store.users.revokePerson(
+          SYSTEM_ACTOR,
+          (await store.users.personByName(name ?? '')).id,
+        );
         process.stdout.write(`${line(p)}\n`);
         return 0;
       }
@@ -95,7 +98,7 @@ export async function run(argv: string[]): Promise<number> {
     }
     throw e;
   } finally {
-    store.close();
+    await store.close();
   }
 }
 
@@ -106,9 +109,9 @@ export async function runSite(argv: string[]): Promise<number> {
     process.stderr.write('usage: efflux site self-review SITE on|off\n');
     return 2;
   }
-  const store = openStore({ dataDir: dataDir() });
+  const store = await openStore({ dataDir: dataDir() });
   try {
-    const s = store.sites.setSelfReview(SYSTEM_ACTOR, site, onOff === 'on');
+    const s = await store.sites.setSelfReview(SYSTEM_ACTOR, site, onOff === 'on');
     process.stdout.write(
       `site "${s.name}": self-review ${s.selfReviewAllowed ? 'allowed (each one marked in the audit log and on reports)' : 'not allowed (four eyes)'}\n`,
     );
@@ -120,6 +123,6 @@ export async function runSite(argv: string[]): Promise<number> {
     }
     throw e;
   } finally {
-    store.close();
+    await store.close();
   }
 }

@@ -47,8 +47,8 @@ function idArg(s: string | undefined, what: string): number {
   return Number(s);
 }
 
-function withStore<T>(body: (store: Store) => Promise<T>): Promise<T> {
-  const store = openStore({ dataDir: dataDir() });
+async function withStore<T>(body: (store: Store) => Promise<T>): Promise<T> {
+  const store = await openStore({ dataDir: dataDir() });
   return body(store).finally(() => store.close());
 }
 
@@ -114,8 +114,8 @@ export async function run(argv: string[]): Promise<number> {
         const t0 = performance.now();
         const report =
           sub === 'fit'
-            ? fitReport(store, id, software)
-            : outletReport(store, id, software, values['as-of']);
+            ? await fitReport(store, id, software)
+            : await outletReport(store, id, software, values['as-of']);
         const bytes = values.json
           ? Buffer.from(reportJson(report as unknown as Record<string, unknown>))
           : sub === 'fit'

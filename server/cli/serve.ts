@@ -33,10 +33,11 @@ export class DemoRefusedError extends Error {
 }
 
 /** May the demo go into this store? True to load it now, false when it is the demo's already. */
-function demoWanted(store: Store, dataDir: string): boolean {
-  if (store.meta.isDemo()) return store.vessels.count() === 0 && store.tests.count() === 0;
-  if (store.vessels.count() > 0 || store.tests.count() > 0)
-    throw new DemoRefusedError(dataDir, store.vessels.count(), store.tests.count());
+async function demoWanted(store: Store, dataDir: string): Promise<boolean> {
+  if (await store.meta.isDemo())
+    return (await store.vessels.count()) === 0 && (await store.tests.count()) === 0;
+  if ((await store.vessels.count()) > 0 || (await store.tests.count()) > 0)
+    throw new DemoRefusedError(dataDir, await store.vessels.count(), await store.tests.count());
   return true;
 }
 
@@ -62,7 +63,7 @@ export async function run(argv: string[]): Promise<number> {
   const lock = lockDataFolder(cfg.dataDir, `efflux serve${cfg.demo ? ' --demo' : ''}`); // FolderBusyError → exit 2
   let store: Store;
   try {
-    store = openStore({ dataDir: cfg.dataDir });
+    store = await openStore({ dataDir: cfg.dataDir });
   } catch (e) {
     lock.release();
     throw e;
@@ -75,14 +76,14 @@ export async function run(argv: string[]): Promise<number> {
   });
   const stopEarly = async (code: number) => {
     await pool.close();
-    store.close();
+    await store.close();
     lock.release();
     return code;
   };
 
   try {
-    if (cfg.demo && demoWanted(store, cfg.dataDir)) {
-      store.meta.markDemo(SYSTEM_ACTOR); // before anything invented is written
+    if (cfg.demo && (await demoWanted(store, cfg.dataDir))) {
+      await store.meta.markDemo(SYSTEM_ACTOR); // before anything invented is written
       const r = await loadDemo(store, pool.run, cfg.demoManifest);
       say(r.note);
       for (const s of r.skipped) say(`  skipped ${s}`);
@@ -98,12 +99,12 @@ export async function run(argv: string[]): Promise<number> {
   // The first admin token goes to a file only its owner can read, never to the output (logs are
   // collected and kept by process managers); the person reads it, keeps it, deletes the file.
   let firstTokenFile: string | null = null;
-  if (store.users.count() === 0) {
-    const { token } = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start');
+  if ((await store.users.count()) === 0) {
+    const { token } = await store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin', 'first-start');
     firstTokenFile = join(cfg.dataDir, 'first-admin-token.txt');
     writeFileSync(firstTokenFile, `${token}\n`, { mode: 0o600, flag: 'w' });
   }
-  const undated = store.tests.undated();
+  const undated = await store.tests.undated();
   if (undated.length)
     say(
       `note: ${countText(undated.length, 'old test')} ${undated.length === 1 ? 'has' : 'have'} no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`,
@@ -129,7 +130,7 @@ export async function run(argv: string[]): Promise<number> {
   await pool.warm;
   const address = await app.listen({ host: cfg.host, port: cfg.port });
   say(
-    `efflux listening on ${address} (data in ${cfg.dataDir}${store.meta.isDemo() ? '; DEMO data, invented' : ''})`,
+    `efflux listening on ${address} (data in ${cfg.dataDir}${(await store.meta.isDemo()) ? '; DEMO data, invented' : ''})`,
   );
   if (firstTokenFile) {
     say(
@@ -170,7 +171,7 @@ export async function run(argv: string[]): Promise<number> {
       await app.close(); // stop accepting; let in-flight requests finish
       await pool.close(); // a resume still running ends with its analysis refused (noted as a failure)
       await resumed.catch(() => undefined);
-      store.close(); // WAL checkpointed on close
+      await store.close(); // WAL checkpointed on close
       lock.release();
       resolve(err ? 70 : 0);
     });

@@ -226,7 +226,7 @@ export async function runFitSystem(argv: string[]): Promise<number> {
 }
 
 export async function runSteady(argv: string[]): Promise<number> {
-  return guarded(() => {
+  return guarded(async () => {
     const { values, positionals } = parseCommandLine(argv, {
       inflow: { type: 'string', multiple: true },
       json: { type: 'boolean' },
@@ -236,7 +236,7 @@ export async function runSteady(argv: string[]): Promise<number> {
       process.stdout.write(STEADY_USAGE);
       return EXIT_OK;
     }
-    const { spec, model, name, single } = readModel(positionals);
+    const { spec, model, name, single } = await readModel(positionals);
     if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const s = steadyState(model, q);
@@ -281,7 +281,7 @@ export async function runSteady(argv: string[]): Promise<number> {
 }
 
 export async function runLinearize(argv: string[]): Promise<number> {
-  return guarded(() => {
+  return guarded(async () => {
     const { values, positionals } = parseCommandLine(argv, {
       inflow: { type: 'string', multiple: true },
       format: { type: 'string' },
@@ -294,7 +294,7 @@ export async function runLinearize(argv: string[]): Promise<number> {
     const format = values.format ?? 'text';
     if (!['json', 'csv', 'text'].includes(format))
       throw new InputError(`--format must be json, csv or text (got "${format}")`);
-    const { spec, model, name, single } = readModel(positionals);
+    const { spec, model, name, single } = await readModel(positionals);
     if (single) requireOrificeLaw(single.vessel, name);
     const q = inflowsFrom(spec, values.inflow ?? [], name);
     const lm = linearize(model, q);
@@ -310,7 +310,7 @@ export async function runLinearize(argv: string[]): Promise<number> {
 }
 
 export async function runPredict(argv: string[]): Promise<number> {
-  return guarded(() => {
+  return guarded(async () => {
     const { values, positionals } = parseCommandLine(argv, {
       from: { type: 'string', multiple: true },
       inflow: { type: 'string', multiple: true },
@@ -327,7 +327,7 @@ export async function runPredict(argv: string[]): Promise<number> {
       throw new InputError(
         'give one of --after DURATION (levels after a time) or --until ID=LEVEL (time to fall to a level)',
       );
-    const { spec, model, name, fromFit, single } = readModel(positionals);
+    const { spec, model, name, fromFit, single } = await readModel(positionals);
     const ids = spec.vessels.map((v) => v.id);
     if (ids.length === 1) {
       // one vessel: ID= may be left out
@@ -493,12 +493,12 @@ function readSystem(positionals: string[]): SystemSpec {
   return parseSystemFile(new TextDecoder().decode(f.bytes), positionals[0]);
 }
 
-function readModel(positionals: string[]) {
+async function readModel(positionals: string[]) {
   if (positionals.length !== 1)
     throw new InputError('give exactly one system file, fit JSON or stored fit id');
   const name = positionals[0];
   let value: unknown;
-  if (/^\d+$/.test(name) && !existsSync(name)) value = storedFitResult(Number(name));
+  if (/^\d+$/.test(name) && !existsSync(name)) value = await storedFitResult(Number(name));
   else {
     const f = readInputFile(name, 16 * 1024 * 1024);
     value = parseJsonText(new TextDecoder().decode(f.bytes), name);
@@ -509,10 +509,10 @@ function readModel(positionals: string[]) {
 }
 
 /** The result JSON of fit N in the data folder. */
-function storedFitResult(id: number): unknown {
-  const store = openStore({ dataDir: dataDir() });
+async function storedFitResult(id: number): Promise<unknown> {
+  const store = await openStore({ dataDir: dataDir() });
   try {
-    return store.fits.get(id).result;
+    return (await store.fits.get(id)).result;
   } catch (e) {
     if (e instanceof NotFoundError)
       throw new InputError(
@@ -520,7 +520,7 @@ function storedFitResult(id: number): unknown {
       );
     throw e;
   } finally {
-    store.close();
+    await store.close();
   }
 }
 

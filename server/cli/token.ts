@@ -37,9 +37,9 @@ export async function run(argv: string[]): Promise<number> {
     process.stderr.write(`efflux token: role must be one of ${ROLES.join(', ')}, not "${role}"\n`);
     return 2;
   }
-  const store = openStore({ dataDir: dataDir() });
+  const store = await openStore({ dataDir: dataDir() });
   try {
-    const { token, user } = store.users.createToken(
+    const { token, user } = await store.users.createToken(
       SYSTEM_ACTOR,
       name,
       role as Role,
@@ -52,17 +52,17 @@ export async function run(argv: string[]): Promise<number> {
     process.stderr.write(`efflux token: ${(e as Error).message}\n`);
     return 2;
   } finally {
-    store.close();
+    await store.close();
   }
 }
 
 async function manage(sub: 'list' | 'revoke', rest: string[]): Promise<number> {
-  const store = openStore({ dataDir: dataDir() });
+  const store = await openStore({ dataDir: dataDir() });
   try {
     if (sub === 'list') {
       const name = option(rest, 'name');
-      const userId = name === undefined ? null : store.users.personByName(name).id;
-      for (const t of store.users.tokens(userId)) {
+      const userId = name === undefined ? null : (await store.users.personByName(name)).id;
+      for (const t of await store.users.tokens(userId)) {
         process.stdout.write(
           `${String(t.id).padStart(4)}  ${t.userName.padEnd(24)} ${t.name.padEnd(16)} created ${t.createdAt}  ${t.revokedAt ? `revoked ${t.revokedAt}` : 'active'}\n`,
         );
@@ -74,7 +74,7 @@ async function manage(sub: 'list' | 'revoke', rest: string[]): Promise<number> {
       process.stderr.write(USAGE);
       return 2;
     }
-    const t = store.users.revokeToken(SYSTEM_ACTOR, id);
+    const t = await store.users.revokeToken(SYSTEM_ACTOR, id);
     process.stdout.write(
       `token ${t.id} of ${t.userName} revoked at ${t.revokedAt}; its sessions ended\n`,
     );
@@ -86,6 +86,6 @@ async function manage(sub: 'list' | 'revoke', rest: string[]): Promise<number> {
     }
     throw e;
   } finally {
-    store.close();
+    await store.close();
   }
 }

@@ -156,13 +156,13 @@ export async function run(argv: string[]): Promise<number> {
     (argv.length ? process.stdout : process.stderr).write(USAGE);
     return argv.length ? 0 : 2;
   }
-  return guarded(() => {
+  return guarded(async () => {
     const json = argv.includes('--json');
     const csv = argv.includes('--csv');
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
     const nowMs = asOfMs(argv);
     const units = unitsFrom(option(argv, 'units'));
-    const store = openStore({ dataDir: dataDir() });
+    const store = await openStore({ dataDir: dataDir() });
     try {
       if (argv.includes('--fleet')) {
         if (csv) throw new InputError("--csv is for one outlet's history", { field: 'csv' });
@@ -173,7 +173,11 @@ export async function run(argv: string[]): Promise<number> {
         for (const w of words ?? [])
           if (!(STATUS_WORDS as readonly string[]).includes(w))
             throw new InputError(`unknown status "${w}"`, { field: 'status' });
-        const f = fleetStatus(store, { site: option(argv, 'site'), status: words as never }, nowMs);
+        const f = await fleetStatus(
+          store,
+          { site: option(argv, 'site'), status: words as never },
+          nowMs,
+        );
         process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f, words));
         return 0;
       }
@@ -189,7 +193,7 @@ export async function run(argv: string[]): Promise<number> {
         });
       let view: TrendView;
       try {
-        view = outletTrendView(store, id, nowMs);
+        view = await outletTrendView(store, id, nowMs);
       } catch (e) {
         if (e instanceof NotFoundError) throw new InputError(e.message, { field: 'outletId' });
         throw e;
@@ -203,7 +207,7 @@ export async function run(argv: string[]): Promise<number> {
       );
       return 0;
     } finally {
-      store.close();
+      await store.close();
     }
   });
 }

@@ -17,17 +17,17 @@ declare module 'fastify' {
   }
 }
 
-export function identify(
+export async function identify(
   store: Store,
   authorization: string | undefined,
   cookie: string | undefined,
-): User | null | 'bad' {
+): Promise<User | null | 'bad'> {
   if (authorization !== undefined) {
     const m = /^Bearer\s+(\S+)$/i.exec(authorization);
     if (!m) return 'bad';
-    return store.users.byToken(m[1]) ?? 'bad';
+    return (await store.users.byToken(m[1])) ?? 'bad';
   }
-  if (cookie) return store.users.bySession(cookie) ?? 'bad';
+  if (cookie) return (await store.users.bySession(cookie)) ?? 'bad';
   return null;
 }
 
@@ -45,7 +45,11 @@ export function installAuth(
         assertSameOrigin(request, extraOrigins);
       return; // not-found handler, docs, static files
     }
-    const who = identify(store, request.headers.authorization, request.cookies?.[SESSION_COOKIE]);
+    const who = await identify(
+      store,
+      request.headers.authorization,
+      request.cookies?.[SESSION_COOKIE],
+    );
     if (who === null)
       throw new HttpProblem(
         401,

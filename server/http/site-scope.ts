@@ -46,7 +46,7 @@ export function installSiteScope(app: FastifyInstance, store: Store): void {
       return assertEverySite(request, `${request.method} ${request.routeOptions.url}`);
     const id = Number((request.params as { id?: string }).id);
     if (!Number.isInteger(id) || id <= 0) return; // validation answers 400 next
-    const site = store.sites.siteOf(scope, id); // 404 when there is no such record
+    const site = await store.sites.siteOf(scope, id); // 404 when there is no such record
     if (!sites.includes(site)) throw outsideSites(site, sites);
   });
 }

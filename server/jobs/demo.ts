@@ -80,7 +80,7 @@ export async function loadDemo(
   for (const v of manifest.vessels ?? []) {
     try {
       const spec = checkVesselFile(JSON.parse(readFileSync(join(dir, v.file), 'utf8')), v.file);
-      store.vessels.create(DEMO_ACTOR, spec);
+      await store.vessels.create(DEMO_ACTOR, spec);
       report.vessels++;
     } catch (e) {
       skip(v.file, e);
@@ -88,9 +88,9 @@ export async function loadDemo(
   }
   for (const t of manifest.tests ?? []) {
     try {
-      const id = vesselId(t.site, t.vessel);
+      const id = await vesselId(t.site, t.vessel);
       if (id === null) throw new Error(`vessel "${t.vessel}" is not in the manifest`);
-      const vessel = store.vessels.get(id);
+      const vessel = await store.vessels.get(id);
       const outlet = t.outlet ? vessel.outlets.find((o) => o.key === t.outlet) : undefined;
       if (t.outlet && !outlet) throw new Error(`vessel "${t.vessel}" has no outlet "${t.outlet}"`);
       const read = (p: string) => ({
@@ -109,7 +109,7 @@ export async function loadDemo(
         notes: t.notes,
       });
       if (t.review)
-        store.fits.review(
+        await store.fits.review(
           DEMO_ACTOR,
           fit.id,
           t.review.decision === 'approve' ? 'approved' : 'rejected',
@@ -122,12 +122,12 @@ export async function loadDemo(
   }
   for (const ev of manifest.events ?? []) {
     try {
-      const id = vesselId(ev.site, ev.vessel);
+      const id = await vesselId(ev.site, ev.vessel);
       if (id === null) throw new Error(`vessel "${ev.vessel}" is not in the manifest`);
       const outlet = ev.outlet
-        ? store.vessels.get(id).outlets.find((o) => o.key === ev.outlet)
+        ? (await store.vessels.get(id)).outlets.find((o) => o.key === ev.outlet)
         : undefined;
-      store.events.create(DEMO_ACTOR, {
+      await store.events.create(DEMO_ACTOR, {
         vesselId: id,
         outletId: outlet?.id ?? null,
         kind: ev.kind,

@@ -69,11 +69,11 @@ export class ExportJobs {
   }
 
   /** Checks the selection (InputError → 422 at once), then starts the job. */
-  start(ownerId: number, selection: ExportSelection): ExportJobView {
+  async start(ownerId: number, selection: ExportSelection): Promise<ExportJobView> {
     this.prune();
     if ([...this.jobs.values()].filter((j) => j.state === 'running').length >= RUNNING_MAX)
       throw new ExportsBusyError();
-    const chosen = selectFits(this.o.store, selection);
+    const chosen = await selectFits(this.o.store, selection);
     const total = chosen.length;
     if (total === 0) throw new InputError('no approved fits match the selection');
     const job: Job = {
@@ -92,11 +92,11 @@ export class ExportJobs {
       abort: new AbortController(),
     };
     this.jobs.set(job.id, job);
-    void this.run(job, chosen);
+    void (await await this.run(job, chosen));
     return view(job);
   }
 
-  private async run(job: Job, chosen: ReturnType<typeof selectFits>): Promise<void> {
+  private async run(job: Job, chosen: Awaited<ReturnType<typeof selectFits>>): Promise<void> {
     const limit = AbortSignal.timeout(EXPORT_TIMEOUT_MS);
     const signal = AbortSignal.any([limit, job.abort.signal]);
     try {

@@ -85,9 +85,9 @@ export async function uploadDrainTest(
   input: UploadInput,
   timing: UploadTiming = {},
 ): Promise<{ test: DrainTest; fit: StoredFit; replayed?: boolean }> {
-  const vessel = store.vessels.get(input.vesselId);
+  const vessel = await store.vessels.get(input.vesselId);
   if (input.idempotencyKey) {
-    const prior = store.tests.byIdempotencyKey(actor.id, input.idempotencyKey);
+    const prior = await store.tests.byIdempotencyKey(actor.id, input.idempotencyKey);
     if (prior) return replay(store, prior, input);
   }
   const outlet = chooseOutlet(vessel, input.outletId);
@@ -95,7 +95,7 @@ export async function uploadDrainTest(
     ? checkStatedTestDate(input.testedAt, input.nowMs ?? Date.now())
     : null;
   const t0 = performance.now();
-  const test = store.tests.createPending(actor, {
+  const test = await store.tests.createPending(actor, {
     vesselId: vessel.id,
     outletId: outlet?.id ?? null,
     log: input.log,
@@ -130,25 +130,25 @@ export async function uploadDrainTest(
   }
   const t1 = performance.now();
   store.reserve?.ensure(); // one stat; remakes the reserve once a full disk has room again
-  const answer = { test: store.tests.get(test.id), fit };
+  const answer = { test: await store.tests.get(test.id), fit };
   timing.storeFitMs = (timing.storeFitMs ?? 0) + performance.now() - t1;
   return answer;
 }
 
 /** A retry with a key already used: the first upload's test and first fit, nothing stored. */
-function replay(
+async function replay(
   store: Store,
   prior: { testId: number; sha256: string },
   input: UploadInput,
-): { test: DrainTest; fit: StoredFit; replayed: true } {
+): Promise<{ test: DrainTest; fit: StoredFit; replayed: true }> {
   if (prior.sha256 !== sha256Hex(input.log.bytes)) {
     throw new InputError(
       `this Idempotency-Key was used for test ${prior.testId} with another log file; use a new key for a new upload`,
       { field: 'Idempotency-Key' },
     );
   }
-  const test = store.tests.get(prior.testId);
-  const first = store.fits.listByTest(test.id)[0];
+  const test = await store.tests.get(prior.testId);
+  const first = (await store.fits.listByTest(test.id))[0];
   if (!first)
     throw new ConflictError(
       `the upload with this Idempotency-Key (test ${test.id}) is still being analysed; retry shortly`,
@@ -173,9 +173,9 @@ async function analyseStored(
   if (busy.has(test.id)) throw new ConflictError(`test ${test.id} is being analysed already`);
   busy.add(test.id);
   try {
-    const logBytes = received?.log.bytes ?? store.tests.rawBytes(test.sha256);
+    const logBytes = received?.log.bytes ?? (await store.tests.rawBytes(test.sha256));
     const baroBytes = test.baro
-      ? (received?.baro?.bytes ?? store.tests.rawBytes(test.baro.sha256))
+      ? (received?.baro?.bytes ?? (await store.tests.rawBytes(test.baro.sha256)))
       : undefined;
     const outcome = await analyze(
       {
@@ -190,7 +190,7 @@ async function analyseStored(
     const logDate = logTestDate(outcome.fit.window, outcome.detected.metadata);
     if (test.testedAt === null && logDate === null) throw undatedTestError(test.fileName);
     const t0 = performance.now();
-    const fit = store.fits.storeFirst(
+    const fit = await store.fits.storeFirst(
       actor,
       test.id,
       outcome.detected,
@@ -204,9 +204,9 @@ async function analyseStored(
     timing.storeFitMs = performance.now() - t0;
     return fit;
   } catch (e) {
-    if (isInputError(e)) store.tests.withdraw(actor, test.id, e.toLine());
-    else if (isDiskFull(e) && opts.compensateDiskFull) keepNothing(store, actor, test.id, e);
-    else noteFailure(store, test.id, e);
+    if (isInputError(e)) await store.tests.withdraw(actor, test.id, e.toLine());
+    else if (isDiskFull(e) && opts.compensateDiskFull) await keepNothing(store, actor, test.id, e);
+    else await noteFailure(store, test.id, e);
     throw e;
   } finally {
     busy.delete(test.id);
@@ -226,14 +226,23 @@ function analysing(store: Store): Set<number> {
  * its unshared bytes are withdrawn (deleting frees pages), so the answer 507 leaves no record the
  * client was not told of. If even that fails, the test stays pending and marked, for a retry.
  */
-function keepNothing(store: Store, actor: Actor, testId: number, cause: unknown): void {
-  const withdraw = () =>
-    store.tests.withdraw(actor, testId, 'not kept: the disk was full when its fit was stored');
+async function keepNothing(
+  store: Store,
+  actor: Actor,
+  testId: number,
+  cause: unknown,
+): Promise<void> {
+  const withdraw = async () =>
+    await store.tests.withdraw(
+      actor,
+      testId,
+      'not kept: the disk was full when its fit was stored',
+    );
   try {
-    if (store.reserve) store.reserve.spend(withdraw);
-    else withdraw();
+    if (store.reserve) await store.reserve.spend(withdraw);
+    else await withdraw();
   } catch {
-    noteFailure(store, testId, cause);
+    await noteFailure(store, testId, cause);
   }
 }
 
@@ -245,10 +254,10 @@ export class StoppingError extends Error {
   }
 }
 
-function noteFailure(store: Store, testId: number, cause: unknown): void {
+async function noteFailure(store: Store, testId: number, cause: unknown): Promise<void> {
   if (cause instanceof StoppingError) return;
   try {
-    store.tests.recordFailure(testId, cause instanceof Error ? cause.message : String(cause));
+    await store.tests.recordFailure(testId, cause instanceof Error ? cause.message : String(cause));
   } catch {
     // the disk may still be full: the test stays pending either way, and the resume tries again
   }
@@ -262,22 +271,22 @@ export async function refit(
   fitId: number,
   changes: AnalysisSettings,
 ): Promise<StoredFit> {
-  const old = store.fits.get(fitId);
-  const test = store.tests.get(old.testId);
-  const vessel = store.vessels.get(test.vesselId);
+  const old = await store.fits.get(fitId);
+  const test = await store.tests.get(old.testId);
+  const vessel = await store.vessels.get(test.vesselId);
   const outlet =
     test.outletId === null ? null : (vessel.outlets.find((o) => o.id === test.outletId) ?? null);
   const settings = { ...(old.settings as AnalysisSettings), ...changes };
   const vesselSpec = vesselForAnalysis(vessel, outlet);
   const outcome = await analyze({
-    log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
+    log: { bytes: await store.tests.rawBytes(test.sha256), fileName: test.fileName },
     baro: test.baro
-      ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName }
+      ? { bytes: await store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName }
       : undefined,
     vessel: vesselSpec,
     settings,
   });
-  return store.fits.refit(actor, fitId, {
+  return await store.fits.refit(actor, fitId, {
     settings: settings as Record<string, unknown>,
     vessel: vesselSpec,
     result: outcome.fit as Record<string, unknown>,
@@ -303,17 +312,17 @@ export async function resumePending(
   actor: Actor,
 ): Promise<ResumeReport> {
   const report: ResumeReport = { done: 0, refused: 0, failed: [], stuck: 0 };
-  for (const t of store.tests.pending()) {
+  for (const t of await store.tests.pending()) {
     if (t.stuck) {
       report.stuck++;
       continue;
     }
     if (analysing(store).has(t.id)) continue;
     try {
-      const vessel = store.vessels.get(t.vesselId);
+      const vessel = await store.vessels.get(t.vesselId);
       const outlet =
         t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
-      await analyseStored(store, analyze, actor, store.tests.get(t.id), vessel, outlet);
+      await analyseStored(store, analyze, actor, await store.tests.get(t.id), vessel, outlet);
       report.done++;
     } catch (e) {
       if (e instanceof StoppingError) break;
@@ -331,24 +340,29 @@ export async function retryPending(
   actor: Actor,
   testId: number,
 ): Promise<StoredFit> {
-  const t = store.tests.get(testId);
+  const t = await store.tests.get(testId);
   if (t.status !== 'pending')
     throw new ConflictError(`test ${testId} is analysed already; refit its fit instead`);
   if (analysing(store).has(testId))
     throw new ConflictError(`test ${testId} is being analysed already`);
-  store.tests.noteRetry(actor, testId);
-  const vessel = store.vessels.get(t.vesselId);
+  await store.tests.noteRetry(actor, testId);
+  const vessel = await store.vessels.get(t.vesselId);
   const outlet =
     t.outletId === null ? null : (vessel.outlets.find((o) => o.id === t.outletId) ?? null);
-  return analyseStored(store, analyze, actor, store.tests.get(testId), vessel, outlet);
+  return analyseStored(store, analyze, actor, await store.tests.get(testId), vessel, outlet);
 }
 
 /** A person takes back a pending test (its bytes go unless another test shares them); the audit log keeps the reason. */
-export function withdrawPending(store: Store, actor: Actor, testId: number, reason: string): void {
-  const t = store.tests.get(testId);
+export async function withdrawPending(
+  store: Store,
+  actor: Actor,
+  testId: number,
+  reason: string,
+): Promise<void> {
+  const t = await store.tests.get(testId);
   if (t.status !== 'pending')
     throw new ConflictError(`test ${testId} is analysed: analysed tests stay in the history`);
   if (analysing(store).has(testId))
     throw new ConflictError(`test ${testId} is being analysed now; withdraw it when that ends`);
-  store.tests.withdraw(actor, testId, reason);
+  await store.tests.withdraw(actor, testId, reason);
 }

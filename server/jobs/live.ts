@@ -143,13 +143,24 @@ export class LiveTests {
   private readonly readMs: number;
   private readonly now: () => number;
 
-  constructor(private readonly opts: LiveOptions) {
+  private constructor(private readonly opts: LiveOptions) {
     this.refitMs = opts.refitMs ?? 3000;
     this.readMs = opts.readMs ?? 1000;
     this.now = opts.now ?? Date.now;
-    for (const row of opts.store.live.listOpen()) {
+  }
+
+  /** The live tests, with those still open in the store taken up again (the store is read first). */
+  static async create(opts: LiveOptions): Promise<LiveTests> {
+    const live = new LiveTests(opts);
+    await live.resume();
+    return live;
+  }
+
+  private async resume(): Promise<void> {
+    const opts = this.opts;
+    for (const row of await opts.store.live.listOpen()) {
       const req = row.request as Omit<LiveOpen, 'vesselId' | 'fileName'>;
-      const bytes = opts.store.live.bytes(row.id);
+      const bytes = await opts.store.live.bytes(row.id);
       const s = this.session_(
         row.id,
         row.openedBy,
@@ -201,12 +212,12 @@ export class LiveTests {
     return s;
   }
 
-  open(actor: Actor, input: LiveOpen): LiveState {
-    const vessel = this.opts.store.vessels.get(input.vesselId);
+  async open(actor: Actor, input: LiveOpen): Promise<LiveState> {
+    const vessel = await this.opts.store.vessels.get(input.vesselId);
     const outlet = chooseOutlet(vessel, input.outletId);
     const id = randomUUID();
     const { vesselId: _v, fileName, outletId: _o, ...request } = input;
-    const row = this.opts.store.live.open({
+    const row = await this.opts.store.live.open({
       id,
       vesselId: vessel.id,
       outletId: outlet?.id ?? null,
@@ -222,11 +233,11 @@ export class LiveTests {
     ).state;
   }
 
-  get(id: string): LiveState {
+  async get(id: string): Promise<LiveState> {
     const s = this.sessions.get(id);
     if (s) return s.state;
     // ended before this process started: what the store remembers of it
-    const row = this.opts.store.live.get(id);
+    const row = await this.opts.store.live.get(id);
     if (!row) return this.session(id).state; // 404
     return {
       id,
@@ -267,7 +278,7 @@ export class LiveTests {
    * Append rows sent from byte `offset` (omitted: at the end). Bytes already held are compared,
    * not added again; a gap (offset past what is held) is refused with the count held.
    */
-  append(id: string, offset: number | undefined, body: Buffer): LiveState {
+  async append(id: string, offset: number | undefined, body: Buffer): Promise<LiveState> {
     const s = this.session(id);
     if (s.state.status !== 'open')
       throw new LiveProblem(409, 'live-closed', `live test ${id} is ${s.state.status}`);
@@ -303,7 +314,7 @@ export class LiveTests {
       );
     if (fresh.length > 0) {
       // committed before it is acknowledged
-      s.state.receivedBytes = this.opts.store.live.append(id, held, fresh);
+      s.state.receivedBytes = await this.opts.store.live.append(id, held, fresh);
       s.chunks.push(Buffer.from(fresh));
       for (const b of fresh) if (b === 0x0a) s.state.rows++;
       this.scheduleRead(s);
@@ -321,7 +332,7 @@ export class LiveTests {
   }
 
   /** The readings so far, for a page that has just connected. */
-  readings(id: string): { timeS: number[]; levelM: number[] } | null {
+  async readings(id: string): Promise<{ timeS: number[]; levelM: number[] } | null> {
     const s = this.session(id);
     return this.readSeries(s);
   }
@@ -330,10 +341,10 @@ export class LiveTests {
     for (const l of s.listeners) l(e);
   }
 
-  private readSeries(s: Session): { timeS: number[]; levelM: number[] } | null {
+  private async readSeries(s: Session): Promise<{ timeS: number[]; levelM: number[] } | null> {
     if (s.state.receivedBytes === 0) return null;
     try {
-      const vessel = this.opts.store.vessels.get(s.state.vesselId);
+      const vessel = await this.opts.store.vessels.get(s.state.vesselId);
       const outlet =
         s.state.outletId === null
           ? null
@@ -356,24 +367,26 @@ export class LiveTests {
       0,
       s.lastReadMs + Math.max(this.readMs, 20 * s.lastReadCostMs) - this.now(),
     );
-    s.readTimer = setTimeout(() => {
-      s.readTimer = null;
-      const t0 = performance.now();
-      const all = this.readSeries(s);
-      s.lastReadCostMs = performance.now() - t0;
-      s.lastReadMs = this.now();
-      const from = all ? Math.min(s.sentReadings, all.timeS.length) : 0;
-      const readings = all
-        ? { fromIndex: from, timeS: all.timeS.slice(from), levelM: all.levelM.slice(from) }
-        : null;
-      if (all) s.sentReadings = all.timeS.length;
-      this.emit(s, {
-        type: 'rows',
-        receivedBytes: s.state.receivedBytes,
-        rows: s.state.rows,
-        readings,
-      });
-    }, wait);
+    s.readTimer = setTimeout(() => void this.sendReadings(s), wait);
+  }
+
+  private async sendReadings(s: Session): Promise<void> {
+    s.readTimer = null;
+    const t0 = performance.now();
+    const all = await this.readSeries(s);
+    s.lastReadCostMs = performance.now() - t0;
+    s.lastReadMs = this.now();
+    const from = all ? Math.min(s.sentReadings, all.timeS.length) : 0;
+    const readings = all
+      ? { fromIndex: from, timeS: all.timeS.slice(from), levelM: all.levelM.slice(from) }
+      : null;
+    if (all) s.sentReadings = all.timeS.length;
+    this.emit(s, {
+      type: 'rows',
+      receivedBytes: s.state.receivedBytes,
+      rows: s.state.rows,
+      readings,
+    });
   }
 
   private scheduleRefit(s: Session): void {
@@ -390,7 +403,7 @@ export class LiveTests {
     s.refitting = true;
     s.lastRefitMs = this.now();
     const rows = s.state.rows;
-    const vessel = this.opts.store.vessels.get(s.state.vesselId);
+    const vessel = await this.opts.store.vessels.get(s.state.vesselId);
     const outlet =
       s.state.outletId === null
         ? null
@@ -460,7 +473,7 @@ export class LiveTests {
       });
       s.state.testId = out.test.id;
       s.state.fitId = out.fit.id;
-      this.opts.store.live.finish(id, 'closed', out.test.id);
+      await this.opts.store.live.finish(id, 'closed', out.test.id);
       this.emit(s, { type: 'closed', testId: out.test.id, fitId: out.fit.id });
       return out;
     } catch (e) {
@@ -469,10 +482,10 @@ export class LiveTests {
     }
   }
 
-  abandon(id: string): void {
+  async abandon(id: string): Promise<void> {
     const s = this.session(id);
     s.state.status = 'abandoned';
-    this.opts.store.live.finish(id, 'abandoned');
+    await this.opts.store.live.finish(id, 'abandoned');
     this.stopTimers(s);
     this.emit(s, { type: 'abandoned' });
     this.sessions.delete(id);

@@ -15,7 +15,7 @@ export interface ReviewOutcome {
   change: StatusChange | null;
 }
 
-export function reviewFit(
+export async function reviewFit(
   store: Store,
   notifier: Notifier,
   actor: Actor,
@@ -23,17 +23,17 @@ export function reviewFit(
   decision: 'approved' | 'rejected',
   comment: string | null,
   nowMs: number,
-): ReviewOutcome {
+): Promise<ReviewOutcome> {
   let notice: StatusNotice | null = null;
-  const outcome = store.trends.write((): ReviewOutcome => {
-    const outletId = store.fits.get(fitId).outletId;
+  const outcome = await store.sql.tx(async (): Promise<ReviewOutcome> => {
+    const outletId = (await store.fits.get(fitId)).outletId;
     const tracked = decision === 'approved' && outletId !== null;
-    const before = tracked ? computeStatus(store, outletId, nowMs).status : null;
-    const fit = store.fits.review(actor, fitId, decision, comment);
+    const before = tracked ? (await computeStatus(store, outletId, nowMs)).status : null;
+    const fit = await store.fits.review(actor, fitId, decision, comment);
     if (!tracked) return { fit, change: null };
-    const after = refreshStatus(store, outletId, nowMs).status;
+    const after = (await refreshStatus(store, outletId, nowMs)).status;
     if (after.status === before!.status) return { fit, change: null };
-    const change = store.trends.recordStatusChange(actor, {
+    const change = await store.trends.recordStatusChange(actor, {
       outletId,
       fitId,
       fromStatus: before!.status,
@@ -41,8 +41,8 @@ export function reviewFit(
       reason: after.reason,
       daysToThreshold: after.daysToThreshold,
     });
-    const o = store.vessels.outlet(outletId);
-    const v = store.vessels.get(o.vesselId);
+    const o = await store.vessels.outlet(outletId);
+    const v = await store.vessels.get(o.vesselId);
     notice = {
       type: 'efflux.outlet.status-change',
       id: change.id,

@@ -87,9 +87,12 @@ export function thresholdOf(o: Pick<Outlet, 'actionThreshold'>): ThresholdChoice
   };
 }
 
-function outletRef(store: Store, outletId: number): { ref: OutletRef; outlet: Outlet } {
-  const o = store.vessels.outlet(outletId);
-  const v = store.vessels.get(o.vesselId);
+async function outletRef(
+  store: Store,
+  outletId: number,
+): Promise<{ ref: OutletRef; outlet: Outlet }> {
+  const o = await store.vessels.outlet(outletId);
+  const v = await store.vessels.get(o.vesselId);
   return {
     ref: {
       id: o.id,
@@ -172,11 +175,15 @@ const bandView = (b: BandPoint[]) =>
   b.filter((p) => Number.isFinite(p.value) && Number.isFinite(p.lower) && Number.isFinite(p.upper));
 
 /** One outlet's whole trend as the API serves it. */
-export function outletTrendView(store: Store, outletId: number, nowMs: number): TrendView {
-  const { ref, outlet } = outletRef(store, outletId);
+export async function outletTrendView(
+  store: Store,
+  outletId: number,
+  nowMs: number,
+): Promise<TrendView> {
+  const { ref, outlet } = await outletRef(store, outletId);
   const threshold = thresholdOf(outlet);
-  const { fits, skipped } = store.trends.approvedFits(outletId);
-  const events = store.trends.events(outletId);
+  const { fits, skipped } = await store.trends.approvedFits(outletId);
+  const events = await store.trends.events(outletId);
   const settings = { actionThresholdPct: threshold.pct };
   const trend = outletTrend(fits, events, settings, nowMs);
   const rows = new Map<string, TrendFitRow>(fits.map((f) => [f.fitId, f]));
@@ -253,11 +260,15 @@ interface Computed {
  * turns into "crossed" on its date, "drifting" into "action due soon" soonDays before it, and
  * the reason of "action due soon" counts days, so it is recomputed at least daily.
  */
-export function computeStatus(store: Store, outletId: number, nowMs: number): Computed {
-  const outlet = store.vessels.outlet(outletId);
+export async function computeStatus(
+  store: Store,
+  outletId: number,
+  nowMs: number,
+): Promise<Computed> {
+  const outlet = await store.vessels.outlet(outletId);
   const pct = thresholdOf(outlet).pct;
-  const { fits } = store.trends.approvedFits(outletId);
-  const epochs = splitEpochs(fits, store.trends.events(outletId));
+  const { fits } = await store.trends.approvedFits(outletId);
+  const epochs = splitEpochs(fits, await store.trends.events(outletId));
   const a = assessEpoch(epochs[epochs.length - 1], { actionThresholdPct: pct }, nowMs);
   const s = a.status;
   let validUntilMs = Infinity;
@@ -271,9 +282,13 @@ export function computeStatus(store: Store, outletId: number, nowMs: number): Co
 }
 
 /** Computes an outlet's status and stores it in the cache (inside the caller's transaction when there is one). */
-export function refreshStatus(store: Store, outletId: number, nowMs: number): Computed {
-  const c = computeStatus(store, outletId, nowMs);
-  store.trends.saveStatus(outletId, {
+export async function refreshStatus(
+  store: Store,
+  outletId: number,
+  nowMs: number,
+): Promise<Computed> {
+  const c = await computeStatus(store, outletId, nowMs);
+  await store.trends.saveStatus(outletId, {
     status: c.status.status,
     daysToThreshold: c.status.daysToThreshold,
     computedAtMs: nowMs,
@@ -304,13 +319,13 @@ function aged(row: CachedStatus, nowMs: number): FleetItem {
 }
 
 /** Recomputes stale outlets and those whose cached status time has overtaken; returns how many. */
-export function refreshStale(store: Store, nowMs: number): number {
-  const stale = new Set(store.trends.staleOutlets());
-  for (const r of store.trends.cachedStatuses())
+export async function refreshStale(store: Store, nowMs: number): Promise<number> {
+  const stale = new Set(await store.trends.staleOutlets());
+  for (const r of await store.trends.cachedStatuses())
     if (nowMs >= r.validUntilMs || nowMs < r.computedAtMs) stale.add(r.outletId);
   if (stale.size === 0) return 0;
-  store.trends.write(() => {
-    for (const id of stale) refreshStatus(store, id, nowMs);
+  await store.sql.tx(async () => {
+    for (const id of stale) await refreshStatus(store, id, nowMs);
   });
   return stale.size;
 }
@@ -324,9 +339,9 @@ export interface FleetQuery {
 }
 
 /** Every outlet's status, in the order to act on them (soonest threshold first). */
-export function fleetStatus(store: Store, q: FleetQuery, nowMs: number): FleetView {
-  const recomputed = refreshStale(store, nowMs);
-  let items = store.trends.cachedStatuses().map((r) => aged(r, nowMs));
+export async function fleetStatus(store: Store, q: FleetQuery, nowMs: number): Promise<FleetView> {
+  const recomputed = await refreshStale(store, nowMs);
+  let items = (await store.trends.cachedStatuses()).map((r) => aged(r, nowMs));
   if (!q.includeRetired) items = items.filter((i) => !i.retired);
   if (q.site !== undefined) items = items.filter((i) => i.site === q.site);
   if (q.sites) items = items.filter((i) => q.sites!.includes(i.site));

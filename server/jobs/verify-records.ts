@@ -10,6 +10,7 @@ import { createHash } from 'node:crypto';
 import { logTestDate } from '../core/analysis/test-date.js';
 import { canonicalJson } from '../store/canonical-json.js';
 import type { Store } from '../store/index.js';
+import { pagedRows } from '../store/pages.js';
 import { computeStatus } from './trend.js';
 
 export interface RecordDifference {
@@ -61,8 +62,8 @@ const COPIES: [column: keyof FitCopyRow, key: string, field: 'value' | 'standard
 
 const sha256 = (text: string) => createHash('sha256').update(text).digest('hex');
 
-export function verifyRecords(store: Store): RecordsReport {
-  const db = store.db;
+export async function verifyRecords(store: Store): Promise<RecordsReport> {
+  const sql = store.sql;
   const differences: RecordDifference[] = [];
   const differ = (
     table: string,
@@ -84,16 +85,18 @@ export function verifyRecords(store: Store): RecordsReport {
   // the last audit entry of each fit and each test (the chain itself is checked by audit.verify)
   const lastFitEntry = new Map<string, Record<string, unknown>>();
   const uploadEntry = new Map<string, Record<string, unknown>>();
-  for (const e of db
-    .prepare(
-      `SELECT entity_type, entity_id, action, after FROM audit_log WHERE entity_type IN ('fit', 'test') ORDER BY seq`,
-    )
-    .iterate() as Iterable<{
+  for await (const e of pagedRows<{
+    seq: number;
     entity_type: string;
     entity_id: string;
     action: string;
     after: string | null;
-  }>) {
+  }>(
+    sql,
+    `SELECT seq, entity_type, entity_id, action, after FROM audit_log
+    WHERE entity_type IN ('fit', 'test') AND seq > @after ORDER BY seq LIMIT @pageRows`,
+    (r) => r.seq,
+  )) {
     if (e.after === null) continue;
     if (e.entity_type === 'fit') lastFitEntry.set(e.entity_id, JSON.parse(e.after));
     else if (e.action === 'test.upload') uploadEntry.set(e.entity_id, JSON.parse(e.after));
@@ -101,11 +104,11 @@ export function verifyRecords(store: Store): RecordsReport {
 
   let fitsChecked = 0;
   const firstWindow = new Map<number, { startS: number; startTime?: unknown }>();
-  for (const r of db
-    .prepare(
-      'SELECT id, test_id, result, status, superseded_by, cda_m2, cd, cda_u, cd_u FROM fits ORDER BY id',
-    )
-    .iterate() as Iterable<FitCopyRow>) {
+  for await (const r of pagedRows<FitCopyRow>(
+    sql,
+    'SELECT id, test_id, result, status, superseded_by, cda_m2, cd, cda_u, cd_u FROM fits WHERE id > @after ORDER BY id LIMIT @pageRows',
+    (r) => r.id,
+  )) {
     fitsChecked++;
     const result = JSON.parse(r.result) as Record<string, unknown>;
     if (!firstWindow.has(r.test_id))
@@ -154,16 +157,17 @@ export function verifyRecords(store: Store): RecordsReport {
   }
 
   // each analysed test's one date against where it came from
-  for (const t of db
-    .prepare(
-      `SELECT id, tested_at, tested_at_source, detected FROM drain_tests WHERE status = 'analysed' ORDER BY id`,
-    )
-    .iterate() as Iterable<{
+  for await (const t of pagedRows<{
     id: number;
     tested_at: string | null;
     tested_at_source: string | null;
     detected: string | null;
-  }>) {
+  }>(
+    sql,
+    `SELECT id, tested_at, tested_at_source, detected FROM drain_tests
+    WHERE status = 'analysed' AND id > @after ORDER BY id LIMIT @pageRows`,
+    (r) => r.id,
+  )) {
     if (t.tested_at_source === 'stated') {
       const up = uploadEntry.get(String(t.id));
       if (up && up.testedAt !== t.tested_at)
@@ -199,22 +203,23 @@ export function verifyRecords(store: Store): RecordsReport {
 
   // the status cache against a recomputation at the moment it was computed (stale rows are recomputed on the next read)
   let outletsChecked = 0;
-  const stale = new Set(store.trends.staleOutlets());
-  for (const c of db
-    .prepare(
-      'SELECT outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body FROM outlet_trend_status ORDER BY outlet_id',
-    )
-    .all() as {
+  const stale = new Set(await store.trends.staleOutlets());
+  for await (const c of pagedRows<{
     outlet_id: number;
     status: string;
     days_to_threshold: number | null;
     computed_at_ms: number;
     valid_until_ms: number;
     body: string;
-  }[]) {
+  }>(
+    sql,
+    `SELECT outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body FROM outlet_trend_status
+    WHERE outlet_id > @after ORDER BY outlet_id LIMIT @pageRows`,
+    (r) => r.outlet_id,
+  )) {
     if (stale.has(c.outlet_id)) continue;
     outletsChecked++;
-    const again = computeStatus(store, c.outlet_id, c.computed_at_ms);
+    const again = await computeStatus(store, c.outlet_id, Number(c.computed_at_ms));
     const body = { ...again.status, forecastStatus: again.forecastStatus };
     const why = `a recomputation at ${new Date(c.computed_at_ms).toISOString()}`;
     if (c.status !== again.status.status)
@@ -229,7 +234,7 @@ export function verifyRecords(store: Store): RecordsReport {
         why,
       );
     const validUntil = Number.isFinite(again.validUntilMs) ? again.validUntilMs : 8.64e15;
-    if (c.valid_until_ms !== validUntil)
+    if (Number(c.valid_until_ms) !== validUntil)
       differ(
         'outlet_trend_status',
         c.outlet_id,
@@ -247,6 +252,6 @@ export function verifyRecords(store: Store): RecordsReport {
     fitsChecked,
     outletsChecked,
     differences,
-    undatedTests: store.tests.undated(),
+    undatedTests: await store.tests.undated(),
   };
 }

@@ -73,16 +73,16 @@ export interface SeriesRequest extends Omit<AnalysisRequest, 'log' | 'baro'> {
   baro?: RawSource;
 }
 
-const bytesOf = (r: RawSource): RawFile =>
-  'bytes' in r ? r : { bytes: readStoredRaw(r.dbPath, r.sha256), fileName: r.fileName };
+const bytesOf = async (r: RawSource): Promise<RawFile> =>
+  'bytes' in r ? r : { bytes: await readStoredRaw(r.dbPath, r.sha256), fileName: r.fileName };
 
 /** GET /api/tests/:id/series: the stored log's series at full resolution and what was detected. */
 export async function seriesAnswer(req: SeriesRequest): Promise<Uint8Array> {
   const p = prepareDrainTest(
     await expandWorkbook({
       ...req,
-      log: bytesOf(req.log),
-      baro: req.baro ? bytesOf(req.baro) : undefined,
+      log: await bytesOf(req.log),
+      baro: req.baro ? await bytesOf(req.baro) : undefined,
     }),
   );
   return utf8(`{"series":${seriesJson(p)},"detected":${JSON.stringify(detectedSummary(p))}}`);

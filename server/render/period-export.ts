@@ -38,24 +38,24 @@ function bound(s: string | undefined, field: string, endOfDay: boolean): number 
   return dateOnly && endOfDay ? ms + DAY : ms;
 }
 
-function allVessels(store: Store): Vessel[] {
+async function allVessels(store: Store): Promise<Vessel[]> {
   const out: Vessel[] = [];
   for (let offset = 0; ; offset += 500) {
-    const page = store.vessels.list(500, offset);
+    const page = await store.vessels.list(500, offset);
     out.push(...page.items);
     if (out.length >= page.total || page.items.length === 0) return out;
   }
 }
 
-export function selectFits(
+export async function selectFits(
   store: Store,
   sel: ExportSelection,
-): { fit: StoredFit; vessel: Vessel; testedAt: string }[] {
+): Promise<{ fit: StoredFit; vessel: Vessel; testedAt: string }[]> {
   const from = bound(sel.from, 'from', false);
   const to = bound(sel.to, 'to', true);
   if (from !== null && to !== null && to <= from)
     throw new InputError('--to is before --from', { field: 'to' });
-  const vessels = allVessels(store).filter(
+  const vessels = (await allVessels(store)).filter(
     (v) =>
       (sel.site === undefined || v.site === sel.site) &&
       (sel.vessel === undefined || String(v.id) === sel.vessel || v.name === sel.vessel),
@@ -66,8 +66,8 @@ export function selectFits(
     });
   const out: { fit: StoredFit; vessel: Vessel; testedAt: string }[] = [];
   for (const v of vessels) {
-    for (const f of allFitsOfVessel(store, v.id).filter(countsInHistory)) {
-      const test = store.tests.get(f.testId);
+    for (const f of (await allFitsOfVessel(store, v.id)).filter(countsInHistory)) {
+      const test = await store.tests.get(f.testId);
       const testedAt = test.testedAt; // the test's one date; an old test no one could date has no place in a period
       if (testedAt === null) continue;
       const t = Date.parse(testedAt);
@@ -114,7 +114,7 @@ export interface ExportSteps {
   /** Checked between fits: an aborted export stops and rejects with the signal's reason. */
   signal?: AbortSignal;
   /** The fits already chosen for this selection (selectFits), so they are not read twice. */
-  chosen?: ReturnType<typeof selectFits>;
+  chosen?: Awaited<ReturnType<typeof selectFits>>;
 }
 
 export async function periodExport(
@@ -125,7 +125,7 @@ export async function periodExport(
 ): Promise<ExportResult> {
   const renderPdf = steps.renderPdf ?? renderFitReportPdf;
   const assemble = steps.assemble ?? (async (a: ExportAssembly) => assembleExport(a));
-  const chosen = steps.chosen ?? selectFits(store, sel);
+  const chosen = steps.chosen ?? (await selectFits(store, sel));
   if (chosen.length === 0) throw new InputError('no approved fits match the selection');
   steps.onProgress?.(0, chosen.length);
   const entries: ZipEntry[] = [];
@@ -157,7 +157,7 @@ export async function periodExport(
   let latest = '1980-01-01T00:00:00.000Z';
   for (const [i, { fit, vessel, testedAt }] of chosen.entries()) {
     steps.signal?.throwIfAborted();
-    const report = fitReport(store, fit.id, software);
+    const report = await fitReport(store, fit.id, software);
     const pdfName = `reports/fit-${fit.id}-${report.reportId}.pdf`;
     entries.push({ name: pdfName, bytes: await renderPdf(report) });
     const cd = report.results.dischargeCoefficient;
@@ -188,7 +188,11 @@ export async function periodExport(
       ['test', fit.testId],
       ['fit', fit.id],
     ] as const) {
-      for (const e of store.audit.list({ entityType: type, entityId: String(id), limit: 1000 })) {
+      for (const e of await store.audit.list({
+        entityType: type,
+        entityId: String(id),
+        limit: 1000,
+      })) {
         if (!auditSeqs.has(e.seq)) auditSeqs.add(e.seq), audit.push(e);
       }
     }
@@ -203,7 +207,7 @@ export async function periodExport(
     name: 'audit-excerpt.jsonl',
     bytes: enc.encode(audit.map((e) => JSON.stringify(e)).join('\n') + '\n'),
   });
-  const zip = await assemble({
+  const zip = await await await await assemble({
     entries,
     selection: { ...sel },
     software,

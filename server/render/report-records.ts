@@ -16,10 +16,10 @@ import type { StoredFit } from '../store/fits.js';
 import type { Outlet, Vessel } from '../store/vessels.js';
 
 /** A user's name for the report; ids are not what an auditor reads. */
-function userName(store: Store, id: number | null): string | null {
+async function userName(store: Store, id: number | null): Promise<string | null> {
   if (id === null) return null;
   try {
-    return store.users.get(id).name;
+    return (await store.users.get(id)).name;
   } catch {
     return `user ${id}`;
   }
@@ -43,11 +43,15 @@ const numberAt = (r: Record<string, unknown>, key: string) => {
   return typeof v === 'number' ? v : null;
 };
 
-function auditFor(store: Store, entityType: string, entityId: number): AuditRecord[] {
+async function auditFor(
+  store: Store,
+  entityType: string,
+  entityId: number,
+): Promise<AuditRecord[]> {
   const out: AuditRecord[] = [];
   let afterSeq = 0;
   for (;;) {
-    const page = store.audit.list({
+    const page = await store.audit.list({
       entityType,
       entityId: String(entityId),
       afterSeq,
@@ -68,22 +72,22 @@ function auditFor(store: Store, entityType: string, entityId: number): AuditReco
   }
 }
 
-export function reviewOf(store: Store, f: StoredFit) {
+export async function reviewOf(store: Store, f: StoredFit) {
   if (!f.review || f.status === 'draft') return null;
   // selfReview only when the approval was recorded as one (approvals made before the four-eyes rule
   // are not marked), so reports issued before it existed still rebuild to the same content
-  const self = f.review.selfReview && approvalRecordedAsSelfReview(store, f.id);
+  const self = f.review.selfReview && (await approvalRecordedAsSelfReview(store, f.id));
   return {
     decision: f.status as 'approved' | 'rejected',
-    by: userName(store, f.review.by),
+    by: await userName(store, f.review.by),
     at: f.review.at!,
     comment: f.review.comment,
     ...(self ? { selfReview: true as const } : {}),
   };
 }
 
-function approvalRecordedAsSelfReview(store: Store, fitId: number): boolean {
-  const entries = store.audit.list({
+async function approvalRecordedAsSelfReview(store: Store, fitId: number): Promise<boolean> {
+  const entries = await store.audit.list({
     entityType: 'fit',
     entityId: String(fitId),
     action: 'fit.approve',
@@ -92,17 +96,15 @@ function approvalRecordedAsSelfReview(store: Store, fitId: number): boolean {
   return entries.some((e) => (e.after as { selfReview?: unknown } | null)?.selfReview === true);
 }
 
-export function fitReportRecords(store: Store, fitId: number): FitReportRecords {
-  const fit = store.fits.get(fitId);
-  const test = store.tests.get(fit.testId);
-  const vessel = store.vessels.get(fit.vesselId);
+export async function fitReportRecords(store: Store, fitId: number): Promise<FitReportRecords> {
+  const fit = await store.fits.get(fitId);
+  const test = await store.tests.get(fit.testId);
+  const vessel = await store.vessels.get(fit.vesselId);
   const outlet =
     fit.outletId === null ? null : (vessel.outlets.find((o) => o.id === fit.outletId) ?? null);
-  const siblings = store.fits.listByTest(fit.testId);
-  const audit = [
-    ...auditFor(store, 'test', test.id),
-    ...siblings.flatMap((s) => auditFor(store, 'fit', s.id)),
-  ];
+  const siblings = await store.fits.listByTest(fit.testId);
+  const audit = [...(await auditFor(store, 'test', test.id))];
+  for (const s of siblings) audit.push(...(await auditFor(store, 'fit', s.id)));
   return {
     vessel: vesselRecord(vessel),
     outlet: outlet ? outletRecord(outlet) : null,
@@ -113,7 +115,7 @@ export function fitReportRecords(store: Store, fitId: number): FitReportRecords 
       loggerId: test.loggerId,
       notes: test.notes,
       uploadedAt: test.createdAt,
-      uploadedBy: userName(store, test.createdBy),
+      uploadedBy: await userName(store, test.createdBy),
       log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
       baro: test.baro,
       detected: test.detected,
@@ -122,33 +124,35 @@ export function fitReportRecords(store: Store, fitId: number): FitReportRecords 
       id: fit.id,
       status: fit.status,
       createdAt: fit.createdAt,
-      createdBy: userName(store, fit.createdBy),
+      createdBy: await userName(store, fit.createdBy),
       engineVersion: fit.engineVersion,
       settings: fit.settings,
       vesselGiven: fit.vessel,
       result: fit.result as FitJson,
-      review: reviewOf(store, fit),
+      review: await reviewOf(store, fit),
       supersededBy: fit.supersededBy,
     },
-    history: siblings.map((s) => ({
-      id: s.id,
-      status: s.status,
-      createdAt: s.createdAt,
-      createdBy: userName(store, s.createdBy),
-      supersededBy: s.supersededBy,
-      dischargeCoefficient: numberAt(s.result, 'dischargeCoefficient'),
-      effectiveAreaM2: numberAt(s.result, 'effectiveAreaM2'),
-      settings: s.settings,
-    })),
+    history: await Promise.all(
+      siblings.map(async (s) => ({
+        id: s.id,
+        status: s.status,
+        createdAt: s.createdAt,
+        createdBy: await userName(store, s.createdBy),
+        supersededBy: s.supersededBy,
+        dischargeCoefficient: numberAt(s.result, 'dischargeCoefficient'),
+        effectiveAreaM2: numberAt(s.result, 'effectiveAreaM2'),
+        settings: s.settings,
+      })),
+    ),
     audit,
   };
 }
 
 /** Every fit of a vessel, oldest first (the store pages newest first). */
-export function allFitsOfVessel(store: Store, vesselId: number): StoredFit[] {
+export async function allFitsOfVessel(store: Store, vesselId: number): Promise<StoredFit[]> {
   const out: StoredFit[] = [];
   for (let offset = 0; ; offset += 500) {
-    const page = store.fits.listByVessel(vesselId, 500, offset);
+    const page = await store.fits.listByVessel(vesselId, 500, offset);
     out.push(...page.items);
     if (out.length >= page.total || page.items.length === 0) break;
   }
@@ -158,25 +162,30 @@ export function allFitsOfVessel(store: Store, vesselId: number): StoredFit[] {
 /** Approved and not superseded: the fits that count in an outlet's history. */
 export const countsInHistory = (f: StoredFit) => f.status === 'approved' && f.supersededBy === null;
 
-export function outletReportRecords(store: Store, outletId: number): OutletReportRecords {
-  const outlet = store.vessels.outlet(outletId);
-  const vessel = store.vessels.get(outlet.vesselId);
-  const fits: ApprovedFitRecord[] = allFitsOfVessel(store, vessel.id)
-    .filter((f) => f.outletId === outletId && countsInHistory(f))
-    .map((f) => {
-      const test = store.tests.get(f.testId);
-      return {
-        fitId: f.id,
-        testId: test.id,
-        testedAt: test.testedAt ?? test.createdAt, // only an old test no one could date lacks one (listed by efflux audit verify)
-        log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
-        result: f.result as FitJson,
-        review: reviewOf(store, f)!,
-      };
-    });
+export async function outletReportRecords(
+  store: Store,
+  outletId: number,
+): Promise<OutletReportRecords> {
+  const outlet = await store.vessels.outlet(outletId);
+  const vessel = await store.vessels.get(outlet.vesselId);
+  const fits: ApprovedFitRecord[] = await Promise.all(
+    (await allFitsOfVessel(store, vessel.id))
+      .filter((f) => f.outletId === outletId && countsInHistory(f))
+      .map(async (f) => {
+        const test = await store.tests.get(f.testId);
+        return {
+          fitId: f.id,
+          testId: test.id,
+          testedAt: test.testedAt ?? test.createdAt, // only an old test no one could date lacks one (listed by efflux audit verify)
+          log: { fileName: test.fileName, size: test.size, sha256: test.sha256 },
+          result: f.result as FitJson,
+          review: (await reviewOf(store, f))!,
+        };
+      }),
+  );
   const events = [];
   for (let offset = 0; ; offset += 500) {
-    const page = store.events.listByVessel(vessel.id, 500, offset);
+    const page = await store.events.listByVessel(vessel.id, 500, offset);
     events.push(...page.items);
     if (events.length >= page.total || page.items.length === 0) break;
   }

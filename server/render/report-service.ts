@@ -27,17 +27,21 @@ import { readReportFile, type ReportFile } from './report-file.js';
 import { reportUnits } from './report-format.js';
 import { fitReportRecords, outletReportRecords } from './report-records.js';
 
-export function fitReport(store: Store, fitId: number, software: SoftwareRecord): FitReport {
-  return buildFitReport(fitReportRecords(store, fitId), software, sha256Hex);
+export async function fitReport(
+  store: Store,
+  fitId: number,
+  software: SoftwareRecord,
+): Promise<FitReport> {
+  return buildFitReport(await fitReportRecords(store, fitId), software, sha256Hex);
 }
 
-export function outletReport(
+export async function outletReport(
   store: Store,
   outletId: number,
   software: SoftwareRecord,
   asOf?: string,
-): OutletReport {
-  return buildOutletReport(outletReportRecords(store, outletId), software, sha256Hex, asOf);
+): Promise<OutletReport> {
+  return buildOutletReport(await outletReportRecords(store, outletId), software, sha256Hex, asOf);
 }
 
 export { renderFitReportPdf, renderOutletReportPdf };
@@ -59,14 +63,17 @@ export interface VerifyOutcome {
 }
 
 /** The request that produced a stored fit: its raw bytes, the vessel file it was given, its settings. */
-function storedRequest(store: Store, fitId: number): { request: AnalysisRequest; result: FitJson } {
-  const fit = store.fits.get(fitId);
-  const test = store.tests.get(fit.testId);
+async function storedRequest(
+  store: Store,
+  fitId: number,
+): Promise<{ request: AnalysisRequest; result: FitJson }> {
+  const fit = await store.fits.get(fitId);
+  const test = await store.tests.get(fit.testId);
   return {
     request: {
-      log: { bytes: store.tests.rawBytes(test.sha256), fileName: test.fileName },
+      log: { bytes: await store.tests.rawBytes(test.sha256), fileName: test.fileName },
       baro: test.baro
-        ? { bytes: store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName }
+        ? { bytes: await store.tests.rawBytes(test.baro.sha256), fileName: test.baro.fileName }
         : undefined,
       vessel: fit.vessel,
       settings: fit.settings,
@@ -129,9 +136,9 @@ export function engineChange(stored: FitJson, again: FitJson): { ok: boolean; te
  * against ENGINE_CHANGE_TOLERANCE instead of asking for bit equality.
  */
 export async function reproduceFit(store: Store, fitId: number): Promise<Check> {
-  const { request, result } = storedRequest(store, fitId);
+  const { request, result } = await storedRequest(store, fitId);
   const raw = sha256(request.log.bytes);
-  const test = store.tests.get(store.fits.get(fitId).testId);
+  const test = await store.tests.get((await store.fits.get(fitId)).testId);
   if (raw !== test.sha256)
     return {
       name: `reproduce fit ${fitId}`,
@@ -188,9 +195,13 @@ export async function reproduceFit(store: Store, fitId: number): Promise<Check> 
 }
 
 /** The stored result against the hash the audit log recorded for it when the fit was last written. */
-function auditedResult(store: Store, fitId: number): Check {
-  const fit = store.fits.get(fitId);
-  const entries = store.audit.list({ entityType: 'fit', entityId: String(fitId), limit: 1000 });
+async function auditedResult(store: Store, fitId: number): Promise<Check> {
+  const fit = await store.fits.get(fitId);
+  const entries = await store.audit.list({
+    entityType: 'fit',
+    entityId: String(fitId),
+    limit: 1000,
+  });
   const last = [...entries]
     .reverse()
     .find((e) => (e.after as { resultSha256?: string } | null)?.resultSha256);
@@ -257,12 +268,12 @@ export async function verifyReport(
   const fitIds: number[] = [];
   if (file.kind === 'fit') {
     const fitId = Number(file.report?.fitId ?? file.info.EffluxFitId);
-    rebuilt = fitReport(store, fitId, software);
+    rebuilt = await fitReport(store, fitId, software);
     fitIds.push(fitId);
   } else {
     const outletId = Number(file.report?.outlet?.id ?? file.info.EffluxOutletId);
     const asOf = String(file.report?.asOf ?? file.info.EffluxAsOf);
-    rebuilt = outletReport(store, outletId, software, asOf);
+    rebuilt = await outletReport(store, outletId, software, asOf);
     fitIds.push(...rebuilt.fits.map((f) => f.fitId));
   }
   const same = rebuilt.contentSha256 === file.contentSha256;
@@ -299,10 +310,10 @@ export async function verifyReport(
   // 4. every fit reproduces from the stored raw bytes, and matches what the audit log recorded
   for (const id of fitIds) {
     checks.push(await reproduceFit(store, id));
-    checks.push(auditedResult(store, id));
+    checks.push(await auditedResult(store, id));
   }
   // 5. the audit chain
-  const chain = store.audit.verify();
+  const chain = await store.audit.verify();
   checks.push({
     name: 'audit chain',
     ok: chain.ok,
@@ -311,7 +322,7 @@ export async function verifyReport(
       : `broken at entry ${chain.brokenAt}: ${chain.reason}`,
   });
   // 6. every stored copy (result columns, test dates, status cache) against what it was copied from
-  const records = verifyRecords(store);
+  const records = await verifyRecords(store);
   checks.push({
     name: 'stored copies',
     ok: records.ok,

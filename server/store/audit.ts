@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { canonicalJson } from './canonical-json.js';
-import type { Db } from './db.js';
+import { pagedRows } from './pages.js';
+import type { Sql } from './sql.js';
 
 /** Who acted: a user, or the system itself (migrations, demo loading, the CLI). */
 export interface Actor {
@@ -96,26 +97,31 @@ export interface AuditFilter {
   limit?: number;
 }
 
-export class AuditLog {
-  private readonly last;
-  private readonly insert;
-  private readonly all;
+const INSERT = `INSERT INTO audit_log
+  (seq, at, actor_id, actor_name, action, entity_type, entity_id, before, after, prev_hash, hash)
+  VALUES (@seq, @at, @actorId, @actorName, @action, @entityType, @entityId, @before, @after, @prevHash, @hash)`;
 
-  constructor(private readonly db: Db) {
-    this.last = db.prepare('SELECT seq, hash FROM audit_log ORDER BY seq DESC LIMIT 1');
-    this.insert = db.prepare(`INSERT INTO audit_log
-      (seq, at, actor_id, actor_name, action, entity_type, entity_id, before, after, prev_hash, hash)
-      VALUES (@seq, @at, @actorId, @actorName, @action, @entityType, @entityId, @before, @after, @prevHash, @hash)`);
-    this.all = db.prepare('SELECT * FROM audit_log ORDER BY seq');
-  }
+/** The entries of one vessel: a withdrawn test's row is gone, its entries still name the vessel. */
+const WITHDRAWN_TEST_OF_VESSEL = {
+  sqlite: "json_extract(coalesce(before, after), '$.vesselId') = @vesselId",
+  postgres: "(coalesce(before, after)::jsonb ->> 'vesselId') = CAST(@vesselId AS TEXT)",
+};
+
+export class AuditLog {
+  constructor(private readonly sql: Sql) {}
 
   /**
    * Appends one entry. Must run inside the caller's write transaction, so the change and its
-   * record commit together or not at all (the store's repositories always do).
+   * record commit together or not at all (the store's repositories always do). The named lock
+   * serialises appends across processes and instances before the chain's head is read (SQLite's
+   * IMMEDIATE transaction already admits one writer; PostgreSQL takes an advisory lock).
    */
-  append(actor: Actor, at: string, input: AuditInput): AuditEntry {
-    if (!this.db.inTransaction) throw new Error('audit append outside a transaction');
-    const prev = this.last.get() as { seq: number; hash: string } | undefined;
+  async append(actor: Actor, at: string, input: AuditInput): Promise<AuditEntry> {
+    if (!this.sql.inTx()) throw new Error('audit append outside a transaction');
+    await this.sql.lock('audit-chain');
+    const prev = await this.sql.get<{ seq: number; hash: string }>(
+      'SELECT seq, hash FROM audit_log ORDER BY seq DESC LIMIT 1',
+    );
     const partial = {
       seq: (prev?.seq ?? 0) + 1,
       at,
@@ -129,7 +135,7 @@ export class AuditLog {
     };
     const prevHash = prev?.hash ?? GENESIS_HASH;
     const hash = entryHash(prevHash, partial);
-    this.insert.run({
+    await this.sql.run(INSERT, {
       ...partial,
       before: partial.before === null ? null : canonicalJson(partial.before),
       after: partial.after === null ? null : canonicalJson(partial.after),
@@ -139,12 +145,11 @@ export class AuditLog {
     return { ...partial, prevHash, hash };
   }
 
-  list(f: AuditFilter = {}): AuditEntry[] {
+  async list(f: AuditFilter = {}): Promise<AuditEntry[]> {
     // Fixed SQL with optional parameters (a NULL parameter disables its condition): no SQL text is
     // ever assembled from input.
-    const rows = this.db
-      .prepare(
-        `SELECT * FROM audit_log WHERE
+    const rows = await this.sql.all<AuditRow>(
+      `SELECT * FROM audit_log WHERE
           (@entityType IS NULL OR entity_type = @entityType) AND
           (@entityId IS NULL OR entity_id = @entityId) AND
           (@actorId IS NULL OR actor_id = @actorId) AND
@@ -153,16 +158,14 @@ export class AuditLog {
             (entity_type = 'vessel' AND entity_id = CAST(CAST(@vesselId AS INTEGER) AS TEXT)) OR
             (entity_type = 'outlet' AND entity_id IN (SELECT CAST(id AS TEXT) FROM outlets WHERE vessel_id = @vesselId)) OR
             (entity_type = 'test' AND (entity_id IN (SELECT CAST(id AS TEXT) FROM drain_tests WHERE vessel_id = @vesselId)
-              -- a withdrawn test's row is gone; its entries still name the vessel
-              OR json_extract(coalesce(before, after), '$.vesselId') = @vesselId)) OR
+              OR ${WITHDRAWN_TEST_OF_VESSEL[this.sql.dialect]})) OR
             (entity_type = 'fit' AND entity_id IN (SELECT CAST(id AS TEXT) FROM fits WHERE vessel_id = @vesselId)) OR
             (entity_type = 'maintenance-event' AND entity_id IN (SELECT CAST(id AS TEXT) FROM maintenance_events WHERE vessel_id = @vesselId))) AND
           (@since IS NULL OR at >= @since) AND
           (@until IS NULL OR at < @until) AND
           seq > @afterSeq AND (@beforeSeq IS NULL OR seq < @beforeSeq)
         ORDER BY seq ${f.newestFirst ? 'DESC' : 'ASC'} LIMIT @limit`,
-      )
-      .all({
+      {
         entityType: f.entityType ?? null,
         entityId: f.entityId ?? null,
         actorId: f.actorId ?? null,
@@ -173,16 +176,23 @@ export class AuditLog {
         afterSeq: f.afterSeq ?? 0,
         beforeSeq: f.beforeSeq ?? null,
         limit: f.limit ?? 100,
-      }) as AuditRow[];
+      },
+    );
     return rows.map(toEntry);
   }
 
   /** Walks the whole chain; reports the first entry that does not fit. */
-  verify(): ChainReport {
+  async verify(): Promise<ChainReport> {
     let prevHash = GENESIS_HASH;
     let expectedSeq = 1;
     let count = 0;
-    for (const row of this.all.iterate() as Iterable<AuditRow>) {
+    for await (const row of pagedRows<AuditRow>(
+      this.sql,
+      'SELECT * FROM audit_log WHERE seq > @after ORDER BY seq LIMIT @pageRows',
+      (r) => r.seq,
+      {},
+      Number.MIN_SAFE_INTEGER, // a tampered seq below 1 is read too
+    )) {
       count++;
       const e = toEntry(row);
       if (e.seq !== expectedSeq) {

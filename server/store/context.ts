@@ -1,16 +1,14 @@
 import type { AuditLog } from './audit.js';
-import type { Db } from './db.js';
 import type { ForeignWrites } from './read-cache.js';
 import type { Sql } from './sql.js';
 
-/** What every repository shares: one connection, the audit log, and the clock (injected for tests). */
+/** What every repository shares: the database (through Sql only), the audit log, and the clock (injected for tests). */
 export interface StoreContext {
-  db: Db;
-  /** The asynchronous interface every repository moves to (issue 14); the same connection as db. */
+  /** The one asynchronous way to the database, whichever engine holds it (sql.ts). */
   sql: Sql;
   audit: AuditLog;
   now: () => string;
-  /** Tells the read caches when another connection has committed. */
+  /** Tells the read caches when another connection or instance has committed. */
   foreign: ForeignWrites;
 }
 

@@ -39,28 +39,17 @@ const toEvent = (r: EventRow): MaintenanceEvent => ({
 
 /** Maintenance events per outlet (cleaned, replaced, modified): a new baseline for the trend. */
 export class EventRepo {
-  private readonly q;
+  constructor(private readonly c: StoreContext) {}
 
-  constructor(private readonly c: StoreContext) {
-    this.q = {
-      insert:
-        c.db.prepare(`INSERT INTO maintenance_events (vessel_id, outlet_id, kind, occurred_at, notes, created_by, created_at)
-        VALUES (@vesselId, @outletId, @kind, @occurredAt, @notes, @createdBy, @now)`),
-      get: c.db.prepare('SELECT * FROM maintenance_events WHERE id = ?'),
-      list: c.db.prepare(
-        'SELECT * FROM maintenance_events WHERE vessel_id = ? ORDER BY occurred_at, id LIMIT ? OFFSET ?',
-      ),
-      count: c.db.prepare('SELECT count(*) FROM maintenance_events WHERE vessel_id = ?').pluck(),
-    };
-  }
-
-  get(id: number): MaintenanceEvent {
-    const row = this.q.get.get(id) as EventRow | undefined;
+  async get(id: number): Promise<MaintenanceEvent> {
+    const row = await this.c.sql.get<EventRow>('SELECT * FROM maintenance_events WHERE id = ?', [
+      id,
+    ]);
     if (!row) throw new NotFoundError('maintenance event', id);
     return toEvent(row);
   }
 
-  create(
+  async create(
     actor: Actor,
     e: {
       vesselId: number;
@@ -69,34 +58,51 @@ export class EventRepo {
       occurredAt: string;
       notes?: string | null;
     },
-  ): MaintenanceEvent {
-    return this.c.db
-      .transaction(() => {
-        const now = this.c.now();
-        const id = Number(
-          this.q.insert.run({ ...e, notes: e.notes ?? null, createdBy: actor.id, now })
-            .lastInsertRowid,
-        );
-        const event = this.get(id);
-        this.c.audit.append(actor, now, {
-          action: 'event.create',
-          entityType: 'maintenance-event',
-          entityId: id,
-          after: event,
-        });
-        return event;
-      })
-      .immediate();
+  ): Promise<MaintenanceEvent> {
+    return this.c.sql.tx(async () => {
+      const now = this.c.now();
+      const id = Number(
+        await this.c.sql.value(
+          `INSERT INTO maintenance_events (vessel_id, outlet_id, kind, occurred_at, notes, created_by, created_at)
+          VALUES (@vesselId, @outletId, @kind, @occurredAt, @notes, @createdBy, @now) RETURNING id`,
+          {
+            vesselId: e.vesselId,
+            outletId: e.outletId,
+            kind: e.kind,
+            occurredAt: e.occurredAt,
+            notes: e.notes ?? null,
+            createdBy: actor.id,
+            now,
+          },
+        ),
+      );
+      const event = await this.get(id);
+      await this.c.audit.append(actor, now, {
+        action: 'event.create',
+        entityType: 'maintenance-event',
+        entityId: id,
+        after: event,
+      });
+      return event;
+    });
   }
 
-  listByVessel(
+  async listByVessel(
     vesselId: number,
     limit: number,
     offset: number,
-  ): { items: MaintenanceEvent[]; total: number } {
+  ): Promise<{ items: MaintenanceEvent[]; total: number }> {
+    const rows = await this.c.sql.all<EventRow>(
+      'SELECT * FROM maintenance_events WHERE vessel_id = ? ORDER BY occurred_at, id LIMIT ? OFFSET ?',
+      [vesselId, limit, offset],
+    );
     return {
-      items: (this.q.list.all(vesselId, limit, offset) as EventRow[]).map(toEvent),
-      total: this.q.count.get(vesselId) as number,
+      items: rows.map(toEvent),
+      total: Number(
+        await this.c.sql.value('SELECT count(*) FROM maintenance_events WHERE vessel_id = ?', [
+          vesselId,
+        ]),
+      ),
     };
   }
 }

@@ -140,12 +140,16 @@ export interface NewFit {
   result: Record<string, unknown>;
 }
 
+const INSERT = `INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
+  cda_u, cd_u, status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
+  @cda, @cd, @cdaU, @cdU, 'draft', @createdBy, @now) RETURNING id`;
+
 /** Fits: stored as drafts, reviewed once, superseded by refits, never overwritten or deleted. */
 export class FitRepo {
-  private readonly q;
   /**
    * GET /api/fits/:id answers by id. A fit's row changes only by review and supersession (both
-   * here, both drop the entry); other connections' commits empty the cache (ForeignWrites).
+   * here, both drop the entry, in the transaction and again after its commit); other
+   * connections' commits empty the cache (ForeignWrites).
    */
   private readonly texts: ReadCache<ReadyText>;
 
@@ -154,118 +158,105 @@ export class FitRepo {
     private readonly tests: TestRepo,
     private readonly sites: SiteRepo,
   ) {
-    const db = c.db;
     this.texts = new ReadCache<ReadyText>(
       c.foreign,
       FIT_CACHE_BYTES,
       (t) => t.body.byteLength + 64,
     );
-    this.q = {
-      insert:
-        db.prepare(`INSERT INTO fits (test_id, vessel_id, outlet_id, settings, vessel_spec, result, engine_version, cda_m2, cd,
-        cda_u, cd_u, status, created_by, created_at) VALUES (@testId, @vesselId, @outletId, @settings, @vesselSpec, @result, @engineVersion,
-        @cda, @cd, @cdaU, @cdU, 'draft', @createdBy, @now)`),
-      get: db.prepare(`${SELECT} WHERE f.id = ?`),
-      byVessel: db.prepare(`${SELECT} WHERE f.vessel_id = ? ORDER BY f.id DESC LIMIT ? OFFSET ?`),
-      countVessel: db.prepare('SELECT count(*) FROM fits WHERE vessel_id = ?').pluck(),
-      byTest: db.prepare(`${SELECT} WHERE f.test_id = ? ORDER BY f.id`),
-      inForceOfTest: db
-        .prepare(
-          `SELECT id FROM fits WHERE test_id = ? AND id <> ? AND superseded_by IS NULL ORDER BY id`,
-        )
-        .pluck(),
-      supersede: db.prepare(
-        'UPDATE fits SET superseded_by = ? WHERE id = ? AND superseded_by IS NULL',
-      ),
-      review:
-        db.prepare(`UPDATE fits SET status = @status, review_comment = @comment, reviewed_by = @by,
-        reviewed_at = @now WHERE id = @id AND status = 'draft'`),
-    };
   }
 
-  get(id: number): StoredFit {
-    const row = this.q.get.get(id) as FitRow | undefined;
+  private async row(id: number): Promise<FitRow> {
+    const row = await this.c.sql.get<FitRow>(`${SELECT} WHERE f.id = ?`, [id]);
     if (!row) throw new NotFoundError('fit', id);
-    return toFit(row);
+    return row;
+  }
+
+  async get(id: number): Promise<StoredFit> {
+    return toFit(await this.row(id));
   }
 
   /** The same object as get(id), as JSON text. */
-  getJson(id: number): string {
-    const row = this.q.get.get(id) as FitRow | undefined;
-    if (!row) throw new NotFoundError('fit', id);
-    return fitJson(row);
+  async getJson(id: number): Promise<string> {
+    return fitJson(await this.row(id));
   }
 
   /** getJson(id) as UTF-8 bytes with their digest, from memory when already read. */
-  getText(id: number): ReadyText {
-    const hit = this.texts.get(id);
-    if (hit) return hit;
-    const text = readyText(this.getJson(id));
-    this.texts.set(id, text);
-    return text;
+  async getText(id: number): Promise<ReadyText> {
+    return this.texts.read(id, async () => readyText(await this.getJson(id)));
   }
 
-  listByVessel(
+  async listByVessel(
     vesselId: number,
     limit: number,
     offset: number,
-  ): { items: StoredFit[]; total: number } {
+  ): Promise<{ items: StoredFit[]; total: number }> {
+    const rows = await this.c.sql.all<FitRow>(
+      `${SELECT} WHERE f.vessel_id = ? ORDER BY f.id DESC LIMIT ? OFFSET ?`,
+      [vesselId, limit, offset],
+    );
     return {
-      items: (this.q.byVessel.all(vesselId, limit, offset) as FitRow[]).map(toFit),
-      total: this.q.countVessel.get(vesselId) as number,
+      items: rows.map(toFit),
+      total: Number(
+        await this.c.sql.value('SELECT count(*) FROM fits WHERE vessel_id = ?', [vesselId]),
+      ),
     };
   }
 
-  listByTest(testId: number): StoredFit[] {
-    return (this.q.byTest.all(testId) as FitRow[]).map(toFit);
+  async listByTest(testId: number): Promise<StoredFit[]> {
+    return (
+      await this.c.sql.all<FitRow>(`${SELECT} WHERE f.test_id = ? ORDER BY f.id`, [testId])
+    ).map(toFit);
   }
 
   /**
    * The first fit of a pending test; marks the test analysed in the same transaction, dated from
    * `logDate` (the fitted window's first reading) when no date was stated.
    */
-  storeFirst(
+  async storeFirst(
     actor: Actor,
     testId: number,
     detected: Record<string, unknown>,
     fit: NewFit,
     logDate: string | null = null,
-  ): StoredFit {
-    return this.c.db
-      .transaction(() => {
-        this.tests.markAnalysed(testId, detected, logDate);
-        return this.insert(actor, testId, fit, 'fit.create');
-      })
-      .immediate();
+  ): Promise<StoredFit> {
+    const stored = await this.c.sql.tx(async () => {
+      await this.tests.markAnalysed(testId, detected, logDate);
+      return this.insert(actor, testId, fit, 'fit.create');
+    });
+    this.tests.dropPages(); // committed: see ReadCache
+    return stored;
   }
 
   /**
    * A new draft fit for the same test. An approved fit stays in force beside it until the draft is
    * approved (review); a draft or rejected fit refitted is superseded at once (nothing in force changes).
    */
-  refit(actor: Actor, oldId: number, fit: NewFit): StoredFit {
-    return this.c.db
-      .transaction(() => {
-        const old = this.get(oldId);
-        if (old.supersededBy !== null)
-          throw new ConflictError(`fit ${oldId} is already superseded by fit ${old.supersededBy}`);
-        const created = this.insert(actor, old.testId, fit, 'fit.refit');
-        if (old.status !== 'approved') this.supersede(actor, oldId, created.id);
-        return created;
-      })
-      .immediate();
+  async refit(actor: Actor, oldId: number, fit: NewFit): Promise<StoredFit> {
+    const created = await this.c.sql.tx(async () => {
+      const old = await this.get(oldId);
+      if (old.supersededBy !== null)
+        throw new ConflictError(`fit ${oldId} is already superseded by fit ${old.supersededBy}`);
+      const created = await this.insert(actor, old.testId, fit, 'fit.refit');
+      if (old.status !== 'approved') await this.supersede(actor, oldId, created.id);
+      return created;
+    });
+    this.texts.delete(oldId); // committed: see ReadCache
+    return created;
   }
 
-  private supersede(actor: Actor, oldId: number, byId: number): void {
-    const before = this.get(oldId);
-    this.q.supersede.run(byId, oldId);
+  private async supersede(actor: Actor, oldId: number, byId: number): Promise<void> {
+    const before = await this.get(oldId);
+    await this.c.sql.run(
+      'UPDATE fits SET superseded_by = ? WHERE id = ? AND superseded_by IS NULL',
+      [byId, oldId],
+    );
     this.texts.delete(oldId);
-    this.c.audit.append(actor, this.c.now(), {
+    await this.c.audit.append(actor, this.c.now(), {
       action: 'fit.supersede',
       entityType: 'fit',
       entityId: oldId,
       before: auditView(before),
-      after: auditView(this.get(oldId)),
+      after: auditView(await this.get(oldId)),
     });
   }
 
@@ -275,63 +266,79 @@ export class FitRepo {
    * supersedes, in the same transaction, every other fit of the test still standing (the approved
    * one it replaces, other drafts); rejecting changes nothing else.
    */
-  review(
+  async review(
     actor: Actor,
     id: number,
     decision: 'approved' | 'rejected',
     comment: string | null,
-  ): StoredFit {
-    return this.c.db
-      .transaction(() => {
-        const before = this.get(id);
-        if (before.status !== 'draft')
-          throw new ConflictError(`fit ${id} was already ${before.status}`);
-        if (before.supersededBy !== null)
-          throw new ConflictError(
-            `fit ${id} is superseded by fit ${before.supersededBy}; review that one`,
-          );
-        const test = this.tests.get(before.testId);
-        const self =
-          decision === 'approved' &&
-          isSelfReview({
-            reviewed_by: actor.id,
-            created_by: before.createdBy,
-            test_created_by: test.createdBy,
-          });
-        if (self && !this.sites.selfReviewAllowedForVessel(before.vesselId)) {
-          const what =
-            actor.id === test.createdBy ? `uploaded test ${test.id}` : `asked for fit ${id}`;
-          throw new ForbiddenError(
-            `four eyes: ${actor.name} ${what} and may not approve it; another engineer must (an admin may allow self-review for the site)`,
-          );
-        }
-        const now = this.c.now();
-        this.q.review.run({ status: decision, comment, by: actor.id, now, id });
-        this.texts.delete(id);
-        const after = this.get(id);
-        this.c.audit.append(actor, now, {
-          action: decision === 'approved' ? 'fit.approve' : 'fit.reject',
-          entityType: 'fit',
-          entityId: id,
-          before: auditView(before),
-          after: self ? { ...auditView(after), selfReview: true } : auditView(after),
+  ): Promise<StoredFit> {
+    const dropped: number[] = [id];
+    const out = await this.c.sql.tx(async () => {
+      const before = await this.get(id);
+      if (before.status !== 'draft')
+        throw new ConflictError(`fit ${id} was already ${before.status}`);
+      if (before.supersededBy !== null)
+        throw new ConflictError(
+          `fit ${id} is superseded by fit ${before.supersededBy}; review that one`,
+        );
+      const test = await this.tests.get(before.testId);
+      const self =
+        decision === 'approved' &&
+        isSelfReview({
+          reviewed_by: actor.id,
+          created_by: before.createdBy,
+          test_created_by: test.createdBy,
         });
-        if (decision === 'approved') {
-          for (const other of this.q.inForceOfTest.all(before.testId, id) as number[])
-            this.supersede(actor, other, id);
+      if (self && !(await this.sites.selfReviewAllowedForVessel(before.vesselId))) {
+        const what =
+          actor.id === test.createdBy ? `uploaded test ${test.id}` : `asked for fit ${id}`;
+        throw new ForbiddenError(
+          `four eyes: ${actor.name} ${what} and may not approve it; another engineer must (an admin may allow self-review for the site)`,
+        );
+      }
+      const now = this.c.now();
+      await this.c.sql.run(
+        `UPDATE fits SET status = @status, review_comment = @comment, reviewed_by = @by,
+        reviewed_at = @now WHERE id = @id AND status = 'draft'`,
+        { status: decision, comment, by: actor.id, now, id },
+      );
+      this.texts.delete(id);
+      const after = await this.get(id);
+      await this.c.audit.append(actor, now, {
+        action: decision === 'approved' ? 'fit.approve' : 'fit.reject',
+        entityType: 'fit',
+        entityId: id,
+        before: auditView(before),
+        after: self ? { ...auditView(after), selfReview: true } : auditView(after),
+      });
+      if (decision === 'approved') {
+        const others = await this.c.sql.all<{ id: number }>(
+          'SELECT id FROM fits WHERE test_id = ? AND id <> ? AND superseded_by IS NULL ORDER BY id',
+          [before.testId, id],
+        );
+        for (const other of others) {
+          dropped.push(other.id);
+          await this.supersede(actor, other.id, id);
         }
-        return this.get(id);
-      })
-      .immediate();
+      }
+      return this.get(id);
+    });
+    for (const d of dropped) this.texts.delete(d); // committed: see ReadCache
+    return out;
   }
 
-  private insert(actor: Actor, testId: number, fit: NewFit, action: string): StoredFit {
-    const test = this.tests.get(testId);
+  private async insert(
+    actor: Actor,
+    testId: number,
+    fit: NewFit,
+    action: string,
+  ): Promise<StoredFit> {
+    const test = await this.tests.get(testId);
     const now = this.c.now();
     const engineVersion =
       typeof fit.result.engineVersion === 'string' ? fit.result.engineVersion : 'unknown';
     const id = Number(
-      this.q.insert.run({
+      await this.c.sql.value(INSERT, {
         testId,
         vesselId: test.vesselId,
         outletId: test.outletId,
@@ -345,10 +352,10 @@ export class FitRepo {
         cdU: numberAt(fit.result, 'dischargeCoefficient', 'standardUncertainty'),
         createdBy: actor.id,
         now,
-      }).lastInsertRowid,
+      }),
     );
-    const stored = this.get(id);
-    this.c.audit.append(actor, now, {
+    const stored = await this.get(id);
+    await this.c.audit.append(actor, now, {
       action,
       entityType: 'fit',
       entityId: id,

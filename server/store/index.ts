@@ -1,10 +1,12 @@
 import { AuditLog } from './audit.js';
 import type { StoreContext } from './context.js';
-import { openDatabase, openMemoryDatabase, type Db } from './db.js';
+import { openDatabase, openMemoryDatabase } from './db.js';
+import type { StoreEngine } from './engine.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
 import { LiveRepo } from './live.js';
 import { join } from 'node:path';
+import { databasePath } from './maintenance.js';
 import { migrate } from './migrate.js';
 import { PreferenceRepo } from './preferences.js';
 import { ForeignWrites } from './read-cache.js';
@@ -19,9 +21,10 @@ import { UserRepo } from './users.js';
 import { VesselRepo } from './vessels.js';
 
 export interface Store {
-  db: Db;
-  /** The one asynchronous way to the database (see sql.ts). */
+  /** The one asynchronous way to the database (see sql.ts); repositories use nothing else. */
   sql: Sql;
+  /** Which engine holds the database and what is particular to it (engine.ts). */
+  engine: StoreEngine;
   audit: AuditLog;
   vessels: VesselRepo;
   tests: TestRepo;
@@ -36,12 +39,14 @@ export interface Store {
   preferences: PreferenceRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
-  close(): void;
+  close(): Promise<void>;
 }
 
 export interface StoreOptions {
-  /** Folder holding efflux.sqlite; omitted → an in-memory database (tests). */
+  /** Folder holding efflux.sqlite; omitted (and no databaseUrl) → an in-memory database (tests). */
   dataDir?: string;
+  /** postgres://… : the PostgreSQL engine instead of SQLite (EFFLUX_DATABASE_URL). */
+  databaseUrl?: string;
   /** ISO-8601 clock; injected by tests. */
   now?: () => string;
   migrationsDir?: string;
@@ -54,48 +59,63 @@ export function preMigrationBackupName(from: number, to: number, at: string): st
   return `efflux-before-schema-${from}-to-${to}-${at.replace(/[-:.]/g, '').slice(0, 15)}.sqlite`;
 }
 
-/** Opens the database, brings its schema up to date and builds the repositories on it. */
-export function openStore(opts: StoreOptions = {}): Store {
-  const db = opts.dataDir ? openDatabase(opts.dataDir) : openMemoryDatabase();
+/** What an engine hands the repositories: its Sql, its description, and its foreign-commit count. */
+interface OpenedEngine {
+  sql: Sql;
+  engine: StoreEngine;
+  foreign: ForeignWrites;
+}
+
+/** SQLite (better-sqlite3): a file in the data folder, or memory; migrated before use. */
+async function openSqlite(opts: StoreOptions, now: () => string): Promise<OpenedEngine> {
+  const dataDir = opts.dataDir ?? null;
+  const db = dataDir ? openDatabase(dataDir) : openMemoryDatabase();
+  const sql = new SqliteSql(db);
   try {
-    migrate(db, opts.migrationsDir, {
-      // VACUUM INTO: a consistent copy, synchronous (the backup API is asynchronous and opening is not)
-      beforeFirst: opts.dataDir
-        ? (from, to) =>
-            db
-              .prepare('VACUUM INTO ?')
-              .run(
-                join(
-                  opts.dataDir!,
-                  preMigrationBackupName(
-                    from,
-                    to,
-                    (opts.now ?? (() => new Date().toISOString()))(),
-                  ),
-                ),
-              )
+    await migrate(sql, opts.migrationsDir, {
+      exec: (script) => sql.exec(script),
+      // VACUUM INTO: a consistent copy, taken before anything is changed
+      beforeFirst: dataDir
+        ? async (from, to) => {
+            await sql.run('VACUUM INTO ?', [
+              join(dataDir, preMigrationBackupName(from, to, now())),
+            ]);
+          }
         : undefined,
     });
   } catch (e) {
     db.close();
     throw e;
   }
+  // changes on this connection only when another one has committed; read outside any transaction
+  const dataVersion = db.prepare('PRAGMA data_version').pluck();
+  return {
+    sql,
+    engine: { kind: 'sqlite', path: dataDir ? databasePath(dataDir) : null, dataDir },
+    foreign: new ForeignWrites(() => dataVersion.get() as number),
+  };
+}
+
+/** Opens the database, brings its schema up to date and builds the repositories on it. */
+export async function openStore(opts: StoreOptions = {}): Promise<Store> {
+  const now = opts.now ?? (() => new Date().toISOString());
+  if (opts.databaseUrl) {
+    // The PostgreSQL engine plugs in here (migrations from migrations/postgres/), returning an
+    // OpenedEngine like openSqlite's; until then this build refuses the setting plainly.
+    throw new Error(
+      'this build has no PostgreSQL engine: unset EFFLUX_DATABASE_URL to use the data folder',
+    );
+  }
+  const { sql, engine, foreign } = await openSqlite(opts, now);
   const reserve = opts.dataDir ? new DiskReserve(opts.dataDir, opts.reserveBytes) : null;
   reserve?.ensure(); // false on a full disk: made again after the next compensating step
-  const audit = new AuditLog(db);
-  const sql = new SqliteSql(db);
-  const c: StoreContext = {
-    db,
-    sql,
-    audit,
-    now: opts.now ?? (() => new Date().toISOString()),
-    foreign: new ForeignWrites(db),
-  };
+  const audit = new AuditLog(sql);
+  const c: StoreContext = { sql, audit, now, foreign };
   const tests = new TestRepo(c);
   const sites = new SiteRepo(c);
   return {
-    db,
     sql,
+    engine,
     audit,
     vessels: new VesselRepo(c),
     tests,
@@ -108,11 +128,12 @@ export function openStore(opts: StoreOptions = {}): Store {
     meta: new ServiceMetaRepo(c),
     preferences: new PreferenceRepo(c),
     reserve,
-    close: () => db.close(),
+    close: () => sql.close(),
   };
 }
 
 export { SYSTEM_ACTOR, type Actor } from './audit.js';
 export { ConflictError, DuplicateUploadError, ForbiddenError, NotFoundError } from './errors.js';
 export { MigrationError, NewerSchemaError } from './migrate.js';
+export { databaseFile, type StoreEngine } from './engine.js';
 export { ROLES, actorOf, type Person, type Role, type TokenInfo, type User } from './users.js';

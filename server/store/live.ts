@@ -50,20 +50,18 @@ const toLive = (r: Row): LiveTestRow => ({
 export class LiveRepo {
   constructor(private readonly c: StoreContext) {}
 
-  open(row: {
+  async open(row: {
     id: string;
     vesselId: number;
     outletId: number | null;
     fileName: string;
     request: Record<string, unknown>;
     openedBy: Actor;
-  }): LiveTestRow {
+  }): Promise<LiveTestRow> {
     const at = this.c.now();
-    this.c.db
-      .prepare(
-        'INSERT INTO live_tests (id, vessel_id, outlet_id, file_name, request, opened_by_id, opened_by, opened_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)',
-      )
-      .run(
+    await this.c.sql.run(
+      'INSERT INTO live_tests (id, vessel_id, outlet_id, file_name, request, opened_by_id, opened_by, opened_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)',
+      [
         row.id,
         row.vesselId,
         row.outletId,
@@ -72,60 +70,64 @@ export class LiveRepo {
         row.openedBy.id,
         row.openedBy.name,
         at,
-      );
-    return this.get(row.id)!;
+      ],
+    );
+    return (await this.get(row.id))!;
   }
 
-  get(id: string): LiveTestRow | null {
-    const r = this.c.db.prepare('SELECT * FROM live_tests WHERE id = ?').get(id) as Row | undefined;
+  async get(id: string): Promise<LiveTestRow | null> {
+    const r = await this.c.sql.get<Row>('SELECT * FROM live_tests WHERE id = ?', [id]);
     return r ? toLive(r) : null;
   }
 
-  listOpen(): LiveTestRow[] {
+  async listOpen(): Promise<LiveTestRow[]> {
     return (
-      this.c.db
-        .prepare("SELECT * FROM live_tests WHERE status = 'open' ORDER BY opened_at")
-        .all() as Row[]
+      await this.c.sql.all<Row>("SELECT * FROM live_tests WHERE status = 'open' ORDER BY opened_at")
     ).map(toLive);
   }
 
   /** Commit a piece that starts at the live test's current end; returns the new count of bytes. */
-  append(id: string, offset: number, bytes: Uint8Array): number {
-    return this.c.db
-      .transaction(() => {
-        const r = this.c.db
-          .prepare("SELECT received_bytes FROM live_tests WHERE id = ? AND status = 'open'")
-          .get(id) as { received_bytes: number } | undefined;
-        if (!r || r.received_bytes !== offset)
-          throw new Error(
-            `live test ${id}: piece at ${offset} does not follow the ${r?.received_bytes ?? 'missing'} bytes held`,
-          );
-        this.c.db
-          .prepare('INSERT INTO live_test_pieces (live_id, offset_bytes, bytes) VALUES (?, ?, ?)')
-          .run(id, offset, Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength));
-        const total = offset + bytes.byteLength;
-        this.c.db.prepare('UPDATE live_tests SET received_bytes = ? WHERE id = ?').run(total, id);
-        return total;
-      })
-      .immediate();
+  async append(id: string, offset: number, bytes: Uint8Array): Promise<number> {
+    return this.c.sql.tx(async () => {
+      const r = await this.c.sql.get<{ received_bytes: number }>(
+        "SELECT received_bytes FROM live_tests WHERE id = ? AND status = 'open'",
+        [id],
+      );
+      if (!r || Number(r.received_bytes) !== offset)
+        throw new Error(
+          `live test ${id}: piece at ${offset} does not follow the ${r?.received_bytes ?? 'missing'} bytes held`,
+        );
+      await this.c.sql.run(
+        'INSERT INTO live_test_pieces (live_id, offset_bytes, bytes) VALUES (?, ?, ?)',
+        [id, offset, Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength)],
+      );
+      const total = offset + bytes.byteLength;
+      await this.c.sql.run('UPDATE live_tests SET received_bytes = ? WHERE id = ?', [total, id]);
+      return total;
+    });
   }
 
   /** Every byte received, in order. */
-  bytes(id: string): Buffer {
-    const rows = this.c.db
-      .prepare('SELECT bytes FROM live_test_pieces WHERE live_id = ? ORDER BY offset_bytes')
-      .all(id) as { bytes: Buffer }[];
+  async bytes(id: string): Promise<Buffer> {
+    const rows = await this.c.sql.all<{ bytes: Buffer }>(
+      'SELECT bytes FROM live_test_pieces WHERE live_id = ? ORDER BY offset_bytes',
+      [id],
+    );
     return Buffer.concat(rows.map((r) => r.bytes));
   }
 
-  finish(id: string, status: 'closed' | 'abandoned', testId: number | null = null): void {
-    this.c.db
-      .transaction(() => {
-        this.c.db
-          .prepare('UPDATE live_tests SET status = ?, test_id = ? WHERE id = ?')
-          .run(status, testId, id);
-        this.c.db.prepare('DELETE FROM live_test_pieces WHERE live_id = ?').run(id);
-      })
-      .immediate();
+  async finish(
+    id: string,
+    status: 'closed' | 'abandoned',
+    testId: number | null = null,
+  ): Promise<void> {
+    await this.c.sql.tx(async () => {
+      await this.c.sql.run('UPDATE live_tests SET status = ?, test_id = ? WHERE id = ?', [
+        status,
+        testId,
+        id,
+      ]);
+      await this.c.sql.run('DELETE FROM live_test_pieces WHERE live_id = ?', [id]);
+    });
   }
 }

@@ -2,13 +2,18 @@
  * Backup, check and restore of a data folder's database (the `efflux backup|check|restore`
  * commands). Backups use SQLite's online backup API (better-sqlite3 `db.backup`) from inside one
  * read transaction, so the copy is the snapshot that transaction sees while the service keeps
- * writing, and the row counts it is checked against are taken in that same snapshot.
+ * writing, and the row counts it is checked against are taken in that same snapshot. The copy
+ * and restore are SQLite's (a data folder); the check (checkDatabase) reads through Sql and runs
+ * on either engine (integrity_check only on SQLite). PostgreSQL is backed up by the operator's
+ * pg_dump.
  */
 import Database from 'better-sqlite3';
 import { copyFileSync, existsSync, renameSync, rmSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { AuditLog, type ChainReport } from './audit.js';
 import { openDatabase, type Db } from './db.js';
+import { SqliteSql } from './sqlite-sql.js';
+import type { Sql } from './sql.js';
 import {
   buildSchemaVersion,
   defaultMigrationsDir,
@@ -22,20 +27,18 @@ export function databasePath(dataDir: string): string {
   return join(dataDir, DB_FILE);
 }
 
-/** Rows in every table of the schema (names from sqlite_master, never from input). */
-export function rowCounts(db: Db): Record<string, number> {
-  const tables = db
-    .prepare(
-      "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name",
+/** Rows in every table of the schema (names from the catalogue, never from input). */
+export async function rowCounts(sql: Sql): Promise<Record<string, number>> {
+  const tables = (
+    await sql.all<{ name: string }>(
+      sql.dialect === 'sqlite'
+        ? "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name"
+        : "SELECT table_name AS name FROM information_schema.tables WHERE table_schema = current_schema() AND table_type = 'BASE TABLE' ORDER BY table_name",
     )
-    .pluck()
-    .all() as string[];
+  ).map((r) => r.name);
   const out: Record<string, number> = {};
   for (const t of tables)
-    out[t] = db
-      .prepare(`SELECT count(*) FROM "${t.replace(/"/g, '""')}"`)
-      .pluck()
-      .get() as number;
+    out[t] = Number(await sql.value(`SELECT count(*) FROM "${t.replace(/"/g, '""')}"`));
   return out;
 }
 
@@ -48,14 +51,19 @@ export interface DatabaseCheck {
   problems: string[];
 }
 
-/** integrity_check, the schema version against this build's, and the audit chain. */
-export function checkDatabase(db: Db, migrationsDir = defaultMigrationsDir()): DatabaseCheck {
-  const integrity = db.pragma('integrity_check', { simple: false }) as {
-    integrity_check: string;
-  }[];
-  const lines = integrity.map((r) => r.integrity_check);
-  const schema = { database: schemaVersion(db), build: buildSchemaVersion(migrationsDir) };
-  const chain = new AuditLog(db).verify();
+/** integrity_check (SQLite), the schema version against this build's, and the audit chain. */
+export async function checkDatabase(
+  sql: Sql,
+  migrationsDir = defaultMigrationsDir(),
+): Promise<DatabaseCheck> {
+  const lines =
+    sql.dialect === 'sqlite'
+      ? (await sql.all<{ integrity_check: string }>('PRAGMA integrity_check')).map(
+          (r) => r.integrity_check,
+        )
+      : ['ok']; // PostgreSQL checks its pages itself (data checksums); nothing to ask here
+  const schema = { database: await schemaVersion(sql), build: buildSchemaVersion(migrationsDir) };
+  const chain = await new AuditLog(sql).verify();
   const problems: string[] = [];
   if (!(lines.length === 1 && lines[0] === 'ok'))
     problems.push(`integrity check: ${lines.slice(0, 5).join('; ')}`);
@@ -67,9 +75,22 @@ export function checkDatabase(db: Db, migrationsDir = defaultMigrationsDir()): D
     integrity: lines,
     schema,
     chain,
-    counts: rowCounts(db),
+    counts: await rowCounts(sql),
     problems,
   };
+}
+
+/** checkDatabase of an SQLite file, opened without migrating and closed after. */
+export async function checkDatabaseFile(
+  file: string,
+  migrationsDir = defaultMigrationsDir(),
+): Promise<DatabaseCheck> {
+  const sql = new SqliteSql(openExisting(file));
+  try {
+    return await checkDatabase(sql, migrationsDir);
+  } finally {
+    await sql.close();
+  }
 }
 
 export class NoDatabaseError extends Error {
@@ -113,7 +134,7 @@ export async function backupDatabase(
   let counts: Record<string, number>;
   try {
     src.exec('BEGIN'); // a read transaction: its first read fixes the snapshot the backup copies
-    counts = rowCounts(src);
+    counts = await rowCounts(new SqliteSql(src)); // the same connection, inside that transaction
     await src.backup(partial);
     src.exec('COMMIT');
   } catch (e) {
@@ -124,12 +145,13 @@ export async function backupDatabase(
     src.close();
   }
   const copy = new Database(partial);
+  copy.pragma('journal_mode = DELETE'); // one self-contained file, no -wal beside it
+  const copySql = new SqliteSql(copy);
   let check: DatabaseCheck;
   try {
-    copy.pragma('journal_mode = DELETE'); // one self-contained file, no -wal beside it
-    check = checkDatabase(copy, migrationsDir);
+    check = await checkDatabase(copySql, migrationsDir);
   } finally {
-    copy.close();
+    await copySql.close();
   }
   const mismatched = Object.keys({ ...counts, ...check.counts }).filter(
     (t) => counts[t] !== check.counts[t],
@@ -166,19 +188,13 @@ export class BackupCheckError extends Error {
  * Puts a checked backup in place of the folder's database. The caller holds the folder lock. The
  * database replaced is kept beside it (`efflux-replaced-<time>.sqlite`), never deleted.
  */
-export function restoreDatabase(
+export async function restoreDatabase(
   dataDir: string,
   backupFile: string,
   at: string,
   migrationsDir = defaultMigrationsDir(),
-): { check: DatabaseCheck; keptAs: string | null } {
-  const candidate = openExisting(backupFile);
-  let check: DatabaseCheck;
-  try {
-    check = checkDatabase(candidate, migrationsDir);
-  } finally {
-    candidate.close();
-  }
+): Promise<{ check: DatabaseCheck; keptAs: string | null }> {
+  const check = await checkDatabaseFile(backupFile, migrationsDir);
   if (!check.ok) throw new BackupCheckError(check.problems);
   const file = databasePath(dataDir);
   let keptAs: string | null = null;

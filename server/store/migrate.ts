@@ -5,7 +5,7 @@
  */
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import type { Db } from './db.js';
+import type { Sql } from './sql.js';
 
 /** migrations/ at the project root, found from this file (works from server/ and dist/server/). */
 export function defaultMigrationsDir(): string {
@@ -70,14 +70,14 @@ export class MigrationError extends Error {
 }
 
 /** The highest migration applied to this database (0 for a new one). */
-export function schemaVersion(db: Db): number {
-  const has = db
-    .prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'schema_migrations'")
-    .get();
-  if (!has) return 0;
-  return (
-    (db.prepare('SELECT max(version) FROM schema_migrations').pluck().get() as number | null) ?? 0
+export async function schemaVersion(sql: Sql): Promise<number> {
+  const has = await sql.value(
+    sql.dialect === 'sqlite'
+      ? "SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'schema_migrations'"
+      : "SELECT 1 FROM information_schema.tables WHERE table_schema = current_schema() AND table_name = 'schema_migrations'",
   );
+  if (has === undefined) return 0;
+  return Number((await sql.value('SELECT max(version) FROM schema_migrations')) ?? 0);
 }
 
 /** The highest migration this build carries. */
@@ -125,15 +125,15 @@ export function splitStatements(sql: string): { text: string; line: number }[] {
   return out;
 }
 
-/** Runs the file's statements one by one inside a transaction that is rolled back, to find the one that fails. */
-function locateFailure(db: Db, m: MigrationFile): string | null {
+/** Runs the file's statements one by one inside a savepoint that is rolled back, to find the one that fails. */
+async function locateFailure(hooks: MigrationHooks, m: MigrationFile): Promise<string | null> {
   try {
     let found: string | null = null;
-    db.exec('SAVEPOINT efflux_locate');
+    await hooks.exec('SAVEPOINT efflux_locate');
     try {
       for (const [n, st] of splitStatements(m.sql).entries()) {
         try {
-          db.exec(st.text);
+          await hooks.exec(st.text);
         } catch {
           const first = st.text.split('\n')[0].slice(0, 120);
           found = `statement ${n + 1} (line ${st.line}: "${first}")`;
@@ -141,8 +141,8 @@ function locateFailure(db: Db, m: MigrationFile): string | null {
         }
       }
     } finally {
-      db.exec('ROLLBACK TO efflux_locate');
-      db.exec('RELEASE efflux_locate');
+      await hooks.exec('ROLLBACK TO SAVEPOINT efflux_locate');
+      await hooks.exec('RELEASE SAVEPOINT efflux_locate');
     }
     return found;
   } catch {
@@ -150,9 +150,12 @@ function locateFailure(db: Db, m: MigrationFile): string | null {
   }
 }
 
-export interface MigrateOptions {
+/** What differs between engines when migrating. */
+export interface MigrationHooks {
+  /** Runs a migration file's whole text (several statements, no parameters) in the open transaction. */
+  exec(script: string): Promise<void>;
   /** Called once before the first migration of an existing database is applied (the pre-migration backup). */
-  beforeFirst?: (fromVersion: number, toVersion: number) => void;
+  beforeFirst?: (fromVersion: number, toVersion: number) => void | Promise<void>;
 }
 
 /**
@@ -160,33 +163,37 @@ export interface MigrateOptions {
  * its row in schema_migrations, so a failure leaves the database at the previous version.
  * Refuses a database from a newer build (NewerSchemaError). Returns the names applied.
  */
-export function migrate(db: Db, dir = defaultMigrationsDir(), opts: MigrateOptions = {}): string[] {
+export async function migrate(
+  sql: Sql,
+  dir = defaultMigrationsDir(),
+  hooks: MigrationHooks,
+): Promise<string[]> {
   const files = readMigrations(dir);
   const buildVersion = files.reduce((m, f) => Math.max(m, f.version), 0);
-  const current = schemaVersion(db);
+  const current = await schemaVersion(sql);
   if (current > buildVersion) throw new NewerSchemaError(current, buildVersion);
-  db.exec(`CREATE TABLE IF NOT EXISTS schema_migrations (
+  await sql.run(`CREATE TABLE IF NOT EXISTS schema_migrations (
     version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL)`);
   const done = new Set(
-    (db.prepare('SELECT version FROM schema_migrations').all() as { version: number }[]).map(
-      (r) => r.version,
+    (await sql.all<{ version: number }>('SELECT version FROM schema_migrations')).map((r) =>
+      Number(r.version),
     ),
   );
   const todo = files.filter((m) => !done.has(m.version));
-  if (todo.length && current > 0) opts.beforeFirst?.(current, buildVersion);
-  const record = db.prepare(
-    'INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)',
-  );
+  if (todo.length && current > 0) await hooks.beforeFirst?.(current, buildVersion);
   const applied: string[] = [];
   for (const m of todo) {
     try {
-      db.transaction(() => {
-        db.exec(m.sql);
-        record.run(m.version, m.name, new Date().toISOString());
-      }).immediate();
+      await sql.tx(async () => {
+        await hooks.exec(m.sql);
+        await sql.run(
+          'INSERT INTO schema_migrations (version, name, applied_at) VALUES (?, ?, ?)',
+          [m.version, m.name, new Date().toISOString()],
+        );
+      });
     } catch (e) {
       const reason = (e as Error).message;
-      const where = db.transaction(() => locateFailure(db, m)).immediate();
+      const where = await sql.tx(() => locateFailure(hooks, m));
       throw new MigrationError(m.name, where, reason);
     }
     applied.push(m.name);

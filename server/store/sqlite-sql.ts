@@ -82,6 +82,12 @@ export class SqliteSql implements Sql {
     }
   }
 
+  /** Several statements without parameters (a migration file), in the caller's transaction if any. SQLite only. */
+  async exec(script: string): Promise<void> {
+    while (this.busy && !this.inTx()) await this.busy;
+    this.db.exec(script);
+  }
+
   async close(): Promise<void> {
     while (this.busy && !this.inTx()) await this.busy;
     this.statements.clear();

@@ -105,7 +105,7 @@ function toTest(r: TestRow): DrainTest {
     notes: r.notes,
     createdBy: r.created_by,
     createdAt: r.created_at,
-    failedAttempts: r.failed_attempts,
+    failedAttempts: Number(r.failed_attempts),
     lastFailure: r.last_failure,
     stuck: isStuck(r),
   };
@@ -135,265 +135,271 @@ function testJson(r: TestRow): string {
   );
 }
 
+const PUT_RAW = `INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
+  ON CONFLICT (sha256) DO NOTHING`;
+const DROP_RAW = `DELETE FROM raw_files WHERE sha256 = @sha AND NOT EXISTS
+  (SELECT 1 FROM drain_tests WHERE log_sha256 = @sha OR baro_sha256 = @sha)`;
+const INSERT = `INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
+  settings, status, operator, logger_id, tested_at, tested_at_source, notes, created_by, created_at)
+  VALUES (@vesselId, @outletId, @logSha, @logName, @baroSha, @baroName, @settings, 'pending', @operator,
+  @loggerId, @testedAt, @testedAtSource, @notes, @createdBy, @now) RETURNING id`;
+const BY_KEY = 'SELECT test_id, log_sha256 FROM upload_keys WHERE user_id = ? AND key = ?';
+const ANALYSED = `UPDATE drain_tests SET status = 'analysed', detected = @detected,
+  tested_at = coalesce(tested_at, @logDate), tested_at_source = coalesce(tested_at_source, CASE WHEN @logDate IS NULL THEN NULL ELSE 'log' END)
+  WHERE id = @id AND status = 'pending'`;
+
+const bufferOf = (b: Uint8Array) => Buffer.from(b.buffer, b.byteOffset, b.byteLength);
+
 /** Drain tests and the raw bytes they were read from. */
 export class TestRepo {
-  private readonly q;
   /**
    * Pages of a vessel's tests as sent, keyed by vessel, limit and offset. Any write to a test here
-   * empties it (uploads are rare beside reads); other connections' commits too (ForeignWrites).
+   * empties it, in the transaction and again after its commit (uploads are rare beside reads);
+   * other connections' commits too (ForeignWrites).
    */
   private readonly pages: ReadCache<ReadyText>;
 
   constructor(private readonly c: StoreContext) {
-    const db = c.db;
     this.pages = new ReadCache<ReadyText>(
       c.foreign,
       16 * 1024 * 1024,
       (t) => t.body.byteLength + 64,
     );
-    this.q = {
-      putRaw:
-        db.prepare(`INSERT INTO raw_files (sha256, size, bytes, created_at) VALUES (?, ?, ?, ?)
-        ON CONFLICT (sha256) DO NOTHING`),
-      raw: db.prepare('SELECT bytes FROM raw_files WHERE sha256 = ?').pluck(),
-      dropRaw: db.prepare(`DELETE FROM raw_files WHERE sha256 = @sha AND NOT EXISTS
-        (SELECT 1 FROM drain_tests WHERE log_sha256 = @sha OR baro_sha256 = @sha)`),
-      insert:
-        db.prepare(`INSERT INTO drain_tests (vessel_id, outlet_id, log_sha256, log_name, baro_sha256, baro_name,
-        settings, status, operator, logger_id, tested_at, tested_at_source, notes, created_by, created_at)
-        VALUES (@vesselId, @outletId, @logSha, @logName, @baroSha, @baroName, @settings, 'pending', @operator,
-        @loggerId, @testedAt, @testedAtSource, @notes, @createdBy, @now)`),
-      sameBytes: db
-        .prepare(
-          'SELECT id FROM drain_tests WHERE vessel_id = ? AND log_sha256 = ? ORDER BY id LIMIT 1',
-        )
-        .pluck(),
-      byKey: db.prepare(
-        'SELECT test_id, log_sha256 FROM upload_keys WHERE user_id = ? AND key = ?',
-      ),
-      putKey: db.prepare(
-        'INSERT INTO upload_keys (user_id, key, test_id, log_sha256, created_at) VALUES (?, ?, ?, ?, ?)',
-      ),
-      undated: db.prepare('SELECT test_id, reason FROM undated_tests ORDER BY test_id'),
-      get: db.prepare(`${SELECT} WHERE t.id = ?`),
-      list: db.prepare(`${SELECT} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?`),
-      count: db.prepare('SELECT count(*) FROM drain_tests WHERE vessel_id = ?').pluck(),
-      countAll: db.prepare('SELECT count(*) FROM drain_tests').pluck(),
-      pending: db.prepare(`${SELECT} WHERE t.status = 'pending' ORDER BY t.id`),
-      analysed: db.prepare(`UPDATE drain_tests SET status = 'analysed', detected = @detected,
-        tested_at = coalesce(tested_at, @logDate), tested_at_source = coalesce(tested_at_source, CASE WHEN @logDate IS NULL THEN NULL ELSE 'log' END)
-        WHERE id = @id AND status = 'pending'`),
-      remove: db.prepare(`DELETE FROM drain_tests WHERE id = ? AND status = 'pending'`),
-      failed: db.prepare(
-        'INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, ?)',
-      ),
-    };
+  }
+
+  /** Empties the pages (a write to a test committed; FitRepo.storeFirst calls it). */
+  dropPages(): void {
+    this.pages.clear();
+  }
+
+  /** Runs a write to tests in one transaction, the pages emptied inside it and after its commit. */
+  private async write<T>(fn: () => Promise<T>): Promise<T> {
+    this.pages.clear();
+    const out = await this.c.sql.tx(fn);
+    this.pages.clear();
+    return out;
   }
 
   /**
    * Stores the raw bytes and the test's metadata, committed before any analysis runs, so an
    * upload is never lost to a crash in the analysis. Bytes are kept exactly as received.
    */
-  createPending(actor: Actor, t: NewDrainTest): DrainTest {
+  async createPending(actor: Actor, t: NewDrainTest): Promise<DrainTest> {
     const logSha = sha256Hex(t.log.bytes);
     const baroSha = t.baro ? sha256Hex(t.baro.bytes) : null;
-    return this.c.db
-      .transaction(() => {
-        this.pages.clear();
-        const now = this.c.now();
-        const keyOwner = actor.id ?? 0;
-        if (t.idempotencyKey) {
-          const prior = this.q.byKey.get(keyOwner, t.idempotencyKey) as
-            | { test_id: number }
-            | undefined;
-          if (prior)
-            throw new ConflictError(
-              `an upload with this Idempotency-Key is still being analysed (test ${prior.test_id}); retry shortly`,
-            );
-        }
-        const same = this.q.sameBytes.get(t.vesselId, logSha) as number | undefined;
-        if (same !== undefined && !t.allowDuplicate) {
-          throw new DuplicateUploadError(
-            same,
-            `test ${same} of this vessel has the same log file (SHA-256 ${logSha}); send allowDuplicate=true to store it again`,
+    return this.write(async () => {
+      const now = this.c.now();
+      const keyOwner = actor.id ?? 0;
+      if (t.idempotencyKey) {
+        const prior = await this.c.sql.get<{ test_id: number }>(BY_KEY, [
+          keyOwner,
+          t.idempotencyKey,
+        ]);
+        if (prior)
+          throw new ConflictError(
+            `an upload with this Idempotency-Key is still being analysed (test ${prior.test_id}); retry shortly`,
           );
-        }
-        this.q.putRaw.run(
-          logSha,
-          t.log.bytes.byteLength,
-          Buffer.from(t.log.bytes.buffer, t.log.bytes.byteOffset, t.log.bytes.byteLength),
+      }
+      const sameId = await this.c.sql.value(
+        'SELECT id FROM drain_tests WHERE vessel_id = ? AND log_sha256 = ? ORDER BY id LIMIT 1',
+        [t.vesselId, logSha],
+      );
+      const same = sameId === undefined ? undefined : Number(sameId);
+      if (same !== undefined && !t.allowDuplicate) {
+        throw new DuplicateUploadError(
+          same,
+          `test ${same} of this vessel has the same log file (SHA-256 ${logSha}); send allowDuplicate=true to store it again`,
+        );
+      }
+      await this.c.sql.run(PUT_RAW, [logSha, t.log.bytes.byteLength, bufferOf(t.log.bytes), now]);
+      if (t.baro)
+        await this.c.sql.run(PUT_RAW, [
+          baroSha,
+          t.baro.bytes.byteLength,
+          bufferOf(t.baro.bytes),
           now,
+        ]);
+      const id = Number(
+        await this.c.sql.value(INSERT, {
+          vesselId: t.vesselId,
+          outletId: t.outletId,
+          logSha,
+          logName: t.log.fileName,
+          baroSha,
+          baroName: t.baro?.fileName ?? null,
+          settings: JSON.stringify(t.settings),
+          operator: t.operator ?? null,
+          loggerId: t.loggerId ?? null,
+          testedAt: t.testedAt ?? null,
+          testedAtSource: t.testedAt ? 'stated' : null,
+          notes: t.notes ?? null,
+          createdBy: actor.id,
+          now,
+        }),
+      );
+      if (t.idempotencyKey)
+        await this.c.sql.run(
+          'INSERT INTO upload_keys (user_id, key, test_id, log_sha256, created_at) VALUES (?, ?, ?, ?, ?)',
+          [keyOwner, t.idempotencyKey, id, logSha, now],
         );
-        if (t.baro)
-          this.q.putRaw.run(
-            baroSha,
-            t.baro.bytes.byteLength,
-            Buffer.from(t.baro.bytes.buffer, t.baro.bytes.byteOffset, t.baro.bytes.byteLength),
-            now,
-          );
-        const id = Number(
-          this.q.insert.run({
-            vesselId: t.vesselId,
-            outletId: t.outletId,
-            logSha,
-            logName: t.log.fileName,
-            baroSha,
-            baroName: t.baro?.fileName ?? null,
-            settings: JSON.stringify(t.settings),
-            operator: t.operator ?? null,
-            loggerId: t.loggerId ?? null,
-            testedAt: t.testedAt ?? null,
-            testedAtSource: t.testedAt ? 'stated' : null,
-            notes: t.notes ?? null,
-            createdBy: actor.id,
-            now,
-          }).lastInsertRowid,
-        );
-        if (t.idempotencyKey) this.q.putKey.run(keyOwner, t.idempotencyKey, id, logSha, now);
-        const test = this.get(id);
-        const marks = same !== undefined ? { duplicateOf: same, allowDuplicate: true } : {};
-        this.c.audit.append(actor, now, {
-          action: 'test.upload',
-          entityType: 'test',
-          entityId: id,
-          after: { ...test, ...marks },
-        });
-        return test;
-      })
-      .immediate();
+      const test = await this.get(id);
+      const marks = same !== undefined ? { duplicateOf: same, allowDuplicate: true } : {};
+      await this.c.audit.append(actor, now, {
+        action: 'test.upload',
+        entityType: 'test',
+        entityId: id,
+        after: { ...test, ...marks },
+      });
+      return test;
+    });
   }
 
   /**
    * Takes back a test whose analysis refused the file: the row and any raw bytes no other test
    * shares are deleted, and the audit log says so (the upload entry stays: the log is append-only).
    */
-  withdraw(actor: Actor, id: number, reason: string): void {
-    this.c.db
-      .transaction(() => {
-        this.pages.clear();
-        const before = this.get(id);
-        if (this.q.remove.run(id).changes !== 1) throw new Error(`test ${id} is not pending`);
-        this.q.dropRaw.run({ sha: before.sha256 });
-        if (before.baro) this.q.dropRaw.run({ sha: before.baro.sha256 });
-        this.c.audit.append(actor, this.c.now(), {
-          action: 'test.withdraw',
-          entityType: 'test',
-          entityId: id,
-          before,
-          after: { reason },
-        });
-      })
-      .immediate();
+  async withdraw(actor: Actor, id: number, reason: string): Promise<void> {
+    await this.write(async () => {
+      const before = await this.get(id);
+      const removed = await this.c.sql.run(
+        `DELETE FROM drain_tests WHERE id = ? AND status = 'pending'`,
+        [id],
+      );
+      if (removed.changes !== 1) throw new Error(`test ${id} is not pending`);
+      await this.c.sql.run(DROP_RAW, { sha: before.sha256 });
+      if (before.baro) await this.c.sql.run(DROP_RAW, { sha: before.baro.sha256 });
+      await this.c.audit.append(actor, this.c.now(), {
+        action: 'test.withdraw',
+        entityType: 'test',
+        entityId: id,
+        before,
+        after: { reason },
+      });
+    });
   }
 
   /**
    * Notes that an analysis of a pending test failed for a reason other than its input; after
    * MAX_ANALYSIS_ATTEMPTS the test is `stuck` (shown so, skipped by the resume at start).
    */
-  recordFailure(id: number, reason: string): void {
-    this.c.db
-      .transaction(() => {
-        this.pages.clear();
-        this.q.failed.run(id, this.c.now(), reason.slice(0, 500));
-      })
-      .immediate();
+  async recordFailure(id: number, reason: string): Promise<void> {
+    await this.write(async () => {
+      await this.c.sql.run(
+        'INSERT INTO analysis_failures (test_id, failed_at, reason) VALUES (?, ?, ?)',
+        [id, this.c.now(), reason.slice(0, 500)],
+      );
+    });
   }
 
   /** The audit entry of a person's request to analyse a pending test again. */
-  noteRetry(actor: Actor, id: number): void {
-    this.c.db
-      .transaction(() => {
-        const t = this.get(id);
-        this.c.audit.append(actor, this.c.now(), {
-          action: 'test.retry',
-          entityType: 'test',
-          entityId: id,
-          after: { failedAttempts: t.failedAttempts, lastFailure: t.lastFailure },
-        });
-      })
-      .immediate();
+  async noteRetry(actor: Actor, id: number): Promise<void> {
+    await this.c.sql.tx(async () => {
+      const t = await this.get(id);
+      await this.c.audit.append(actor, this.c.now(), {
+        action: 'test.retry',
+        entityType: 'test',
+        entityId: id,
+        after: { failedAttempts: t.failedAttempts, lastFailure: t.lastFailure },
+      });
+    });
   }
 
   /**
-   * Marks a pending test analysed; call inside the transaction that stores its first fit. A test
-   * with no stated date takes `logDate` (the first reading of the fitted window, UTC), once.
+   * Marks a pending test analysed; call inside the transaction that stores its first fit (and
+   * dropPages() after its commit). A test with no stated date takes `logDate` (the first reading
+   * of the fitted window, UTC), once.
    */
-  markAnalysed(id: number, detected: Record<string, unknown>, logDate: string | null = null): void {
+  async markAnalysed(
+    id: number,
+    detected: Record<string, unknown>,
+    logDate: string | null = null,
+  ): Promise<void> {
     this.pages.clear();
-    if (this.q.analysed.run({ detected: JSON.stringify(detected), logDate, id }).changes !== 1)
-      throw new Error(`test ${id} is not pending`);
+    const r = await this.c.sql.run(ANALYSED, { detected: JSON.stringify(detected), logDate, id });
+    if (r.changes !== 1) throw new Error(`test ${id} is not pending`);
   }
 
   /** The test an earlier upload with this Idempotency-Key made, with the SHA-256 of its log. */
-  byIdempotencyKey(actorId: number | null, key: string): { testId: number; sha256: string } | null {
-    const r = this.q.byKey.get(actorId ?? 0, key) as
-      | { test_id: number; log_sha256: string }
-      | undefined;
+  async byIdempotencyKey(
+    actorId: number | null,
+    key: string,
+  ): Promise<{ testId: number; sha256: string } | null> {
+    const r = await this.c.sql.get<{ test_id: number; log_sha256: string }>(BY_KEY, [
+      actorId ?? 0,
+      key,
+    ]);
     return r ? { testId: r.test_id, sha256: r.log_sha256 } : null;
   }
 
   /** Tests migration 003 could not date (no stated date, and a log with only elapsed time). */
-  undated(): { testId: number; reason: string }[] {
-    return (this.q.undated.all() as { test_id: number; reason: string }[]).map((r) => ({
-      testId: r.test_id,
-      reason: r.reason,
-    }));
+  async undated(): Promise<{ testId: number; reason: string }[]> {
+    const rows = await this.c.sql.all<{ test_id: number; reason: string }>(
+      'SELECT test_id, reason FROM undated_tests ORDER BY test_id',
+    );
+    return rows.map((r) => ({ testId: r.test_id, reason: r.reason }));
   }
 
-  get(id: number): DrainTest {
-    const row = this.q.get.get(id) as TestRow | undefined;
+  async get(id: number): Promise<DrainTest> {
+    const row = await this.c.sql.get<TestRow>(`${SELECT} WHERE t.id = ?`, [id]);
     if (!row) throw new NotFoundError('test', id);
     return toTest(row);
   }
 
-  listByVessel(
+  private async page(vesselId: number, limit: number, offset: number) {
+    const rows = await this.c.sql.all<TestRow>(
+      `${SELECT} WHERE t.vessel_id = ? ORDER BY t.id DESC LIMIT ? OFFSET ?`,
+      [vesselId, limit, offset],
+    );
+    const total = Number(
+      await this.c.sql.value('SELECT count(*) FROM drain_tests WHERE vessel_id = ?', [vesselId]),
+    );
+    return { rows, total };
+  }
+
+  async listByVessel(
     vesselId: number,
     limit: number,
     offset: number,
-  ): { items: DrainTest[]; total: number } {
-    return {
-      items: (this.q.list.all(vesselId, limit, offset) as TestRow[]).map(toTest),
-      total: this.q.count.get(vesselId) as number,
-    };
+  ): Promise<{ items: DrainTest[]; total: number }> {
+    const { rows, total } = await this.page(vesselId, limit, offset);
+    return { items: rows.map(toTest), total };
   }
 
   /** The items of listByVessel as a JSON array text (the hot read path). */
-  listByVesselJson(
+  async listByVesselJson(
     vesselId: number,
     limit: number,
     offset: number,
-  ): { itemsJson: string; total: number } {
-    const rows = this.q.list.all(vesselId, limit, offset) as TestRow[];
-    return {
-      itemsJson: `[${rows.map(testJson).join(',')}]`,
-      total: this.q.count.get(vesselId) as number,
-    };
+  ): Promise<{ itemsJson: string; total: number }> {
+    const { rows, total } = await this.page(vesselId, limit, offset);
+    return { itemsJson: `[${rows.map(testJson).join(',')}]`, total };
   }
 
   /** The API's page `{items, total, limit, offset}` of listByVesselJson as UTF-8 bytes, from memory when already read. */
-  pageText(vesselId: number, limit: number, offset: number): ReadyText {
-    const key = `${vesselId}:${limit}:${offset}`;
-    const hit = this.pages.get(key);
-    if (hit) return hit;
-    const { itemsJson, total } = this.listByVesselJson(vesselId, limit, offset);
-    const text = readyText(
-      `{"items":${itemsJson},"total":${total},"limit":${limit},"offset":${offset}}`,
-    );
-    this.pages.set(key, text);
-    return text;
+  async pageText(vesselId: number, limit: number, offset: number): Promise<ReadyText> {
+    return this.pages.read(`${vesselId}:${limit}:${offset}`, async () => {
+      const { itemsJson, total } = await this.listByVesselJson(vesselId, limit, offset);
+      return readyText(
+        `{"items":${itemsJson},"total":${total},"limit":${limit},"offset":${offset}}`,
+      );
+    });
   }
 
-  count(): number {
-    return this.q.countAll.get() as number;
+  async count(): Promise<number> {
+    return Number(await this.c.sql.value('SELECT count(*) FROM drain_tests'));
   }
 
   /** Tests stored but never analysed (e.g. the process stopped mid-analysis). */
-  pending(): DrainTest[] {
-    return (this.q.pending.all() as TestRow[]).map(toTest);
+  async pending(): Promise<DrainTest[]> {
+    return (
+      await this.c.sql.all<TestRow>(`${SELECT} WHERE t.status = 'pending' ORDER BY t.id`)
+    ).map(toTest);
   }
 
-  rawBytes(sha256: string): Buffer {
-    const b = this.q.raw.get(sha256) as Buffer | undefined;
+  async rawBytes(sha256: string): Promise<Buffer> {
+    const b = await this.c.sql.value<Buffer>('SELECT bytes FROM raw_files WHERE sha256 = ?', [
+      sha256,
+    ]);
     if (!b) throw new NotFoundError('raw file', sha256);
     return b;
   }

@@ -97,45 +97,25 @@ function testedAtOf(r: FitRow): { iso: string; ms: number } | null {
   return Number.isFinite(ms) ? { iso: r.tested_at!, ms } : null;
 }
 
-export class TrendRepo {
-  private readonly q;
+const STATUS_COLS = `s.outlet_id, o.key, o.vessel_id, v.name AS vessel_name, si.name AS site, o.retired_at,
+  s.computed_at_ms, s.valid_until_ms, s.body
+  FROM outlet_trend_status s JOIN outlets o ON o.id = s.outlet_id JOIN vessels v ON v.id = o.vessel_id
+  JOIN sites si ON si.id = v.site_id`;
 
-  constructor(private readonly c: StoreContext) {
-    const db = c.db;
-    const statusCols = `s.outlet_id, o.key, o.vessel_id, v.name AS vessel_name, si.name AS site, o.retired_at,
-      s.computed_at_ms, s.valid_until_ms, s.body
-      FROM outlet_trend_status s JOIN outlets o ON o.id = s.outlet_id JOIN vessels v ON v.id = o.vessel_id
-      JOIN sites si ON si.id = v.site_id`;
-    this.q = {
-      fits: db.prepare(`SELECT f.id, f.test_id, t.tested_at, t.created_at, f.reviewed_at, f.cda_m2, f.cda_u, f.cd, f.cd_u
-        FROM fits f JOIN drain_tests t ON t.id = f.test_id
-        WHERE f.outlet_id = ? AND f.status = 'approved' AND f.superseded_by IS NULL ORDER BY f.id`),
-      events:
-        db.prepare(`SELECT e.kind, e.occurred_at, e.notes FROM maintenance_events e JOIN outlets o ON o.vessel_id = e.vessel_id
-        WHERE o.id = ? AND (e.outlet_id IS NULL OR e.outlet_id = o.id) ORDER BY e.occurred_at, e.id`),
-      allOutlets: db.prepare('SELECT id FROM outlets ORDER BY id').pluck(),
-      stale: db.prepare('SELECT outlet_id FROM outlet_trend_stale ORDER BY outlet_id').pluck(),
-      isStale: db.prepare('SELECT 1 FROM outlet_trend_stale WHERE outlet_id = ?').pluck(),
-      clearStale: db.prepare('DELETE FROM outlet_trend_stale WHERE outlet_id = ?'),
-      save: db.prepare(`INSERT INTO outlet_trend_status (outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body)
-        VALUES (@outletId, @status, @days, @computedAtMs, @validUntilMs, @body)
-        ON CONFLICT (outlet_id) DO UPDATE SET status = excluded.status, days_to_threshold = excluded.days_to_threshold,
-        computed_at_ms = excluded.computed_at_ms, valid_until_ms = excluded.valid_until_ms, body = excluded.body`),
-      cached: db.prepare(`SELECT ${statusCols} ORDER BY s.outlet_id`),
-      cachedOne: db.prepare(`SELECT ${statusCols} WHERE s.outlet_id = ?`),
-      insertChange:
-        db.prepare(`INSERT INTO outlet_status_changes (outlet_id, fit_id, from_status, to_status, reason, days_to_threshold, at)
-        VALUES (@outletId, @fitId, @fromStatus, @toStatus, @reason, @daysToThreshold, @at)`),
-      change: db.prepare('SELECT * FROM outlet_status_changes WHERE id = ?'),
-      changes: db.prepare('SELECT * FROM outlet_status_changes WHERE outlet_id = ? ORDER BY id'),
-    };
-  }
+export class TrendRepo {
+  constructor(private readonly c: StoreContext) {}
 
   /** The fits that count in an outlet's history: approved and not superseded, oldest test first. */
-  approvedFits(outletId: number): { fits: TrendFitRow[]; skipped: SkippedFit[] } {
+  async approvedFits(outletId: number): Promise<{ fits: TrendFitRow[]; skipped: SkippedFit[] }> {
     const fits: TrendFitRow[] = [];
     const skipped: SkippedFit[] = [];
-    for (const r of this.q.fits.all(outletId) as FitRow[]) {
+    const rows = await this.c.sql.all<FitRow>(
+      `SELECT f.id, f.test_id, t.tested_at, t.created_at, f.reviewed_at, f.cda_m2, f.cda_u, f.cd, f.cd_u
+      FROM fits f JOIN drain_tests t ON t.id = f.test_id
+      WHERE f.outlet_id = ? AND f.status = 'approved' AND f.superseded_by IS NULL ORDER BY f.id`,
+      [outletId],
+    );
+    for (const r of rows) {
       if (r.cda_m2 === null || r.cda_u === null || r.cd === null || r.cd_u === null) {
         skipped.push({
           fitId: r.id,
@@ -169,34 +149,45 @@ export class TrendRepo {
   }
 
   /** The outlet's maintenance events and its vessel's (an event with no outlet applies to all). */
-  events(outletId: number): TrendEvent[] {
-    return (
-      this.q.events.all(outletId) as {
-        kind: TrendEvent['kind'];
-        occurred_at: string;
-        notes: string | null;
-      }[]
-    ).map((e) => ({
+  async events(outletId: number): Promise<TrendEvent[]> {
+    const rows = await this.c.sql.all<{
+      kind: TrendEvent['kind'];
+      occurred_at: string;
+      notes: string | null;
+    }>(
+      `SELECT e.kind, e.occurred_at, e.notes FROM maintenance_events e JOIN outlets o ON o.vessel_id = e.vessel_id
+      WHERE o.id = ? AND (e.outlet_id IS NULL OR e.outlet_id = o.id) ORDER BY e.occurred_at, e.id`,
+      [outletId],
+    );
+    return rows.map((e) => ({
       atMs: Date.parse(e.occurred_at),
       kind: e.kind,
       ...(e.notes ? { note: e.notes } : {}),
     }));
   }
 
-  outletIds(): number[] {
-    return this.q.allOutlets.all() as number[];
+  async outletIds(): Promise<number[]> {
+    const rows = await this.c.sql.all<{ id: number }>('SELECT id FROM outlets ORDER BY id');
+    return rows.map((r) => r.id);
   }
 
-  staleOutlets(): number[] {
-    return this.q.stale.all() as number[];
+  async staleOutlets(): Promise<number[]> {
+    const rows = await this.c.sql.all<{ outlet_id: number }>(
+      'SELECT outlet_id FROM outlet_trend_stale ORDER BY outlet_id',
+    );
+    return rows.map((r) => r.outlet_id);
   }
 
-  isStale(outletId: number): boolean {
-    return this.q.isStale.get(outletId) !== undefined;
+  async isStale(outletId: number): Promise<boolean> {
+    return (
+      (await this.c.sql.value('SELECT 1 FROM outlet_trend_stale WHERE outlet_id = ?', [
+        outletId,
+      ])) !== undefined
+    );
   }
 
   /** Stores an outlet's freshly computed status and clears its stale mark (call inside a transaction with the read). */
-  saveStatus(
+  async saveStatus(
     outletId: number,
     s: {
       status: string;
@@ -205,50 +196,84 @@ export class TrendRepo {
       validUntilMs: number;
       body: unknown;
     },
-  ): void {
-    this.q.save.run({
+  ): Promise<void> {
+    await this.c.sql.run(
+      `INSERT INTO outlet_trend_status (outlet_id, status, days_to_threshold, computed_at_ms, valid_until_ms, body)
+      VALUES (@outletId, @status, @days, @computedAtMs, @validUntilMs, @body)
+      ON CONFLICT (outlet_id) DO UPDATE SET status = excluded.status, days_to_threshold = excluded.days_to_threshold,
+      computed_at_ms = excluded.computed_at_ms, valid_until_ms = excluded.valid_until_ms, body = excluded.body`,
+      {
+        outletId,
+        status: s.status,
+        days: s.daysToThreshold,
+        computedAtMs: Math.round(s.computedAtMs),
+        validUntilMs: Number.isFinite(s.validUntilMs) ? s.validUntilMs : 8.64e15,
+        body: JSON.stringify(s.body),
+      },
+    );
+    await this.c.sql.run('DELETE FROM outlet_trend_stale WHERE outlet_id = ?', [outletId]);
+  }
+
+  async cachedStatuses(): Promise<CachedStatus[]> {
+    return (await this.c.sql.all<StatusRow>(`SELECT ${STATUS_COLS} ORDER BY s.outlet_id`)).map(
+      toCached,
+    );
+  }
+
+  async cachedStatus(outletId: number): Promise<CachedStatus | null> {
+    const r = await this.c.sql.get<StatusRow>(`SELECT ${STATUS_COLS} WHERE s.outlet_id = ?`, [
       outletId,
-      status: s.status,
-      days: s.daysToThreshold,
-      computedAtMs: Math.round(s.computedAtMs),
-      validUntilMs: Number.isFinite(s.validUntilMs) ? s.validUntilMs : 8.64e15,
-      body: JSON.stringify(s.body),
-    });
-    this.q.clearStale.run(outletId);
-  }
-
-  cachedStatuses(): CachedStatus[] {
-    return (this.q.cached.all() as StatusRow[]).map(toCached);
-  }
-
-  cachedStatus(outletId: number): CachedStatus | null {
-    const r = this.q.cachedOne.get(outletId) as StatusRow | undefined;
+    ]);
     return r ? toCached(r) : null;
   }
 
   /** Appends a status change with its audit entry (inside the caller's transaction, if any). */
-  recordStatusChange(actor: Actor, c: Omit<StatusChange, 'id' | 'at'>): StatusChange {
-    return this.c.db.transaction(() => {
+  async recordStatusChange(
+    actor: Actor,
+    c: Omit<StatusChange, 'id' | 'at'>,
+  ): Promise<StatusChange> {
+    return this.c.sql.tx(async () => {
       const at = this.c.now();
-      const id = Number(this.q.insertChange.run({ ...c, at }).lastInsertRowid);
-      const change = toChange(this.q.change.get(id) as ChangeRow);
-      this.c.audit.append(actor, at, {
+      const id = await this.c.sql.value(
+        `INSERT INTO outlet_status_changes (outlet_id, fit_id, from_status, to_status, reason, days_to_threshold, at)
+        VALUES (@outletId, @fitId, @fromStatus, @toStatus, @reason, @daysToThreshold, @at) RETURNING id`,
+        {
+          outletId: c.outletId,
+          fitId: c.fitId,
+          fromStatus: c.fromStatus,
+          toStatus: c.toStatus,
+          reason: c.reason,
+          daysToThreshold: c.daysToThreshold,
+          at,
+        },
+      );
+      const row = await this.c.sql.get<ChangeRow>(
+        'SELECT * FROM outlet_status_changes WHERE id = ?',
+        [Number(id)],
+      );
+      const change = toChange(row!);
+      await this.c.audit.append(actor, at, {
         action: 'outlet.status-change',
         entityType: 'outlet',
         entityId: c.outletId,
         after: change,
       });
       return change;
-    })();
+    });
   }
 
-  statusChanges(outletId: number): StatusChange[] {
-    return (this.q.changes.all(outletId) as ChangeRow[]).map(toChange);
+  async statusChanges(outletId: number): Promise<StatusChange[]> {
+    return (
+      await this.c.sql.all<ChangeRow>(
+        'SELECT * FROM outlet_status_changes WHERE outlet_id = ? ORDER BY id',
+        [outletId],
+      )
+    ).map(toChange);
   }
 
-  /** Runs fn in one write transaction (nested calls become savepoints). */
-  write<T>(fn: () => T): T {
-    return this.c.db.transaction(fn).immediate();
+  /** Runs fn in one write transaction (a transaction begun inside it joins it). */
+  async write<T>(fn: () => Promise<T>): Promise<T> {
+    return this.c.sql.tx(fn);
   }
 }
 
@@ -260,8 +285,8 @@ function toCached(r: StatusRow): CachedStatus {
     vesselName: r.vessel_name,
     site: r.site,
     retired: r.retired_at !== null,
-    computedAtMs: r.computed_at_ms,
-    validUntilMs: r.valid_until_ms,
+    computedAtMs: Number(r.computed_at_ms),
+    validUntilMs: Number(r.valid_until_ms),
     body: JSON.parse(r.body),
   };
 }

@@ -26,7 +26,7 @@ beforeAll(async () => {
   const fx = await reportFixture([
     { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' },
   ]);
-  fx.store.close();
+  await fx.store.close();
   ({ dataDir, fitId } = fx);
   const r = cli(['fit', LOG, '--vessel', VESSEL, '--json']);
   fitJsonFile = join(cache, 'efflux-fb1-fit.json');

@@ -8,9 +8,10 @@ import { checkVesselFile } from '../../server/http/vessel-file.js';
 import { fleetStatus } from '../../server/jobs/trend.js';
 import { periodExport } from '../../server/render/period-export.js';
 import { readZip } from '../../server/render/zip.js';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
 import { reportFixture, SOFTWARE } from '../render/report-fixture.js';
 import { effluxWithData } from './run-cli.js';
+import { openTestStore } from '../support/store.js';
 
 const efflux = effluxWithData;
 
@@ -24,8 +25,8 @@ beforeAll(async () => {
     { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' },
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T08:15:00Z' },
   ]);
-  fleetStatus(fx.store, {}, Date.parse('2026-04-02T00:00:00Z')); // fills the status cache
-  fx.store.close();
+  await fleetStatus(fx.store, {}, Date.parse('2026-04-02T00:00:00Z')); // fills the status cache
+  await fx.store.close();
   ({ dataDir, fitId, outletId } = fx);
   const db = new Database(join(dataDir, 'efflux.sqlite'));
   testId = db.prepare('SELECT test_id FROM fits WHERE id = ?').pluck().get(fitId) as number;
@@ -104,13 +105,13 @@ describe('exports safe to open', () => {
   it('an export of fits whose fields start with = + - @ has no cell a spreadsheet would evaluate', async () => {
     const fx = await reportFixture();
     const store = fx.store;
-    const v = store.vessels.get(fx.vesselId);
+    const v = await store.vessels.get(fx.vesselId);
     const spec = checkVesselFile({
       ...v.spec,
       name: '=HYPERLINK("http://example.invalid","open")',
       site: '+SUM(A1:A9)',
     });
-    store.vessels.update(SYSTEM_ACTOR, v.id, spec);
+    await store.vessels.update(SYSTEM_ACTOR, v.id, spec);
     const out = await periodExport(store, {}, SOFTWARE);
     const csv = readZip(out.zip)
       .find((e) => e.name === 'summary.csv')!
@@ -123,12 +124,12 @@ describe('exports safe to open', () => {
       const isNumber = cell.trim() !== '' && Number.isFinite(Number(cell));
       if (!isNumber) expect(cell, cell).not.toMatch(/^[=+\-@\t\r]/);
     }
-    store.close();
+    await store.close();
   }, 90_000);
 });
 
 describe('efflux people, token and site', () => {
-  it('adds a person limited to a site with a first token, changes, lists and revokes them; the token stops working', () => {
+  it('adds a person limited to a site with a first token, changes, lists and revokes them; the token stops working', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'efflux-people-'));
     const add = efflux(dir, [
       'people',
@@ -159,10 +160,10 @@ describe('efflux people, token and site', () => {
     expect(listed.stdout).toMatch(/tablet/);
     const revoke = efflux(dir, ['people', 'revoke', 'A. Fenwick (fictional)']);
     expect(revoke.stdout).toMatch(/revoked/);
-    const store = openStore({ dataDir: dir });
-    expect(store.users.byToken(token)).toBeNull();
-    expect(store.sites.list().map((s) => s.name)).toEqual(['north', 'south']);
-    store.close();
+    const store = await openTestStore({ dataDir: dir });
+    expect(await store.users.byToken(token)).toBeNull();
+    expect((await store.sites.list()).map((s) => s.name)).toEqual(['north', 'south']);
+    await store.close();
     expect(efflux(dir, ['site', 'self-review', 'north', 'on']).stdout).toMatch(
       /self-review allowed/,
     );

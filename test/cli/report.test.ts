@@ -21,7 +21,7 @@ beforeAll(async () => {
     { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' },
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T08:15:00Z' },
   ]);
-  fx.store.close();
+  await fx.store.close();
   ({ dataDir, fitId, outletId, logSha256: logSha } = fx);
 }, 60_000);
 afterAll(() => rmSync(dataDir, { recursive: true, force: true }));

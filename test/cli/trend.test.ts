@@ -9,10 +9,11 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { simulateFoulingHistory } from '../../server/core/trend/index.js';
 import { buildApp } from '../../server/http/app.js';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
 import { multipart } from '../http/helpers.js';
 import { logFor, trendAnalyze } from '../http/trend-fake.js';
 import { root } from './run-cli.js';
+import { openTestStore } from '../support/store.js';
 
 const AS_OF = '2025-09-01';
 
@@ -36,12 +37,12 @@ let apiFleet: any;
 
 beforeAll(async () => {
   dataDir = mkdtempSync(join(tmpdir(), 'efflux-trend-cli-'));
-  const store = openStore({ dataDir });
-  const token = store.users.createToken(SYSTEM_ACTOR, 'eng', 'engineer').token;
+  const store = await openTestStore({ dataDir });
+  const token = (await store.users.createToken(SYSTEM_ACTOR, 'eng', 'engineer')).token;
   const auth = { authorization: `Bearer ${token}` };
   // four eyes: a technician uploads, the engineer approves
   const tech = {
-    authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'tech', 'technician').token}`,
+    authorization: `Bearer ${(await store.users.createToken(SYSTEM_ACTOR, 'tech', 'technician')).token}`,
   };
   const app = await buildApp({ store, analyze: trendAnalyze, clockMs: () => Date.parse(AS_OF) });
   const v = (
@@ -96,7 +97,7 @@ beforeAll(async () => {
     await app.inject({ method: 'GET', url: `/api/fleet?asOf=${AS_OF}`, headers: auth })
   ).json();
   await app.close();
-  store.close();
+  await store.close();
 }, 60_000);
 
 describe('efflux trend', () => {

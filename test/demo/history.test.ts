@@ -13,7 +13,8 @@ import { HISTORIES } from '../../server/demo/scenario.js';
 import type { FastifyInstance } from 'fastify';
 import { buildApp } from '../../server/http/app.js';
 import { loadDemo } from '../../server/jobs/demo.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { openTestStore } from '../support/store.js';
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 const NOW = Date.UTC(2026, 3, 1); // three weeks after the last monthly test
@@ -29,7 +30,7 @@ async function get(url: string) {
 }
 
 beforeAll(async () => {
-  store = openStore();
+  store = await openTestStore();
   const report = await loadDemo(
     store,
     async (req) => analyzeDrainTest(req),
@@ -38,7 +39,7 @@ beforeAll(async () => {
   expect(report.skipped).toEqual([]);
   expect(report.events).toBe(1);
   auth = {
-    authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, 'reader', 'auditor').token}`,
+    authorization: `Bearer ${(await store.users.createToken(SYSTEM_ACTOR, 'reader', 'auditor')).token}`,
   };
   app = await buildApp({
     store,
@@ -46,14 +47,14 @@ beforeAll(async () => {
     clockMs: () => NOW,
   });
   for (const h of HISTORIES) {
-    const id = store.vessels.findId('Kestrel Fen works (fictional)', h.vessel.name)!;
-    outletOf[h.logPrefix] = store.vessels.get(id).outlets[0].id;
+    const id = (await store.vessels.findId('Kestrel Fen works (fictional)', h.vessel.name))!;
+    outletOf[h.logPrefix] = (await store.vessels.get(id)).outlets[0].id;
   }
 }, 60_000);
 
 afterAll(async () => {
   await app.close();
-  store.close();
+  await store.close();
 });
 
 describe('demo histories through the trend API', () => {

@@ -9,10 +9,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
 import { buildWeb } from '../../web/build.js';
 import { VESSEL_FILE } from '../http/helpers.js';
 import { guardBrowser, haveBrowser, launch, root, shots, unexpected } from './browser.js';
+import { openTestStore } from '../support/store.js';
 
 guardBrowser('pending tests');
 
@@ -33,19 +34,19 @@ describe.skipIf(!haveBrowser)('tests waiting for analysis, in the workbench', ()
   beforeAll(async () => {
     mkdirSync(shots, { recursive: true });
     await buildWeb(webRoot);
-    const store = openStore({ dataDir });
-    token = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin').token;
-    vesselId = store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never).id;
-    const put = (name: string, body: string) =>
-      store.tests.createPending(SYSTEM_ACTOR, {
+    const store = await openTestStore({ dataDir });
+    token = (await store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin')).token;
+    vesselId = (await store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never)).id;
+    const put = async (name: string, body: string) =>
+      await store.tests.createPending(SYSTEM_ACTOR, {
         vesselId,
         outletId: null,
         log: { bytes: Buffer.from(body), fileName: name },
         settings: {},
       });
-    put('late-engine.csv', 't,level\nFAIL_UNTIL_GATE\n0,2\n1,1.9\n');
-    put('wrong-logger.csv', 't,level\nFAIL\n0,2\n1,1.9\n');
-    store.close();
+    await put('late-engine.csv', 't,level\nFAIL_UNTIL_GATE\n0,2\n1,1.9\n');
+    await put('wrong-logger.csv', 't,level\nFAIL\n0,2\n1,1.9\n');
+    await store.close();
     const env = {
       ...process.env,
       EFFLUX_DATA_DIR: dataDir,

@@ -14,7 +14,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeDrainTest } from '../../server/core/analyze.js';
 import { buildApp } from '../../server/http/app.js';
 import { workbenchRoutes } from '../../server/http/routes/workbench.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { buildWeb } from '../../web/build.js';
 import {
   dragAcross,
@@ -25,6 +25,7 @@ import {
   shots,
   unexpected,
 } from './browser.js';
+import { openTestStore } from '../support/store.js';
 
 guardBrowser('preview');
 
@@ -43,9 +44,9 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
 
   beforeAll(async () => {
     await buildWeb(webRoot);
-    store = openStore({ dataDir });
-    token = store.users.createToken(SYSTEM_ACTOR, 'tech-e2e', 'technician').token;
-    const engineer = store.users.createToken(SYSTEM_ACTOR, 'eng-e2e', 'engineer').token;
+    store = await openTestStore({ dataDir });
+    token = (await store.users.createToken(SYSTEM_ACTOR, 'tech-e2e', 'technician')).token;
+    const engineer = (await store.users.createToken(SYSTEM_ACTOR, 'eng-e2e', 'engineer')).token;
     app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req), webRoot });
     if (!app.hasRoute({ method: 'POST', url: '/api/vessels/:id/inspect' }))
       await app.register(workbenchRoutes);
@@ -66,7 +67,7 @@ describe.skipIf(!haveBrowser)('new-test preview with the workbench routes', () =
   afterAll(async () => {
     await context?.close();
     await app?.close();
-    store?.close();
+    await store?.close();
     for (const d of [dataDir, webRoot, profile]) if (d) rmSync(d, { recursive: true, force: true });
   });
 

@@ -46,7 +46,7 @@ describe('uploads through the real engine in the worker pool', () => {
     const { test, fit } = res.json();
     expect(fit.engineVersion).toBe(ENGINE_VERSION);
     expect(fit.result.engineVersion).toBe(ENGINE_VERSION);
-    const raw = t.store.tests.rawBytes(test.sha256);
+    const raw = await t.store.tests.rawBytes(test.sha256);
     const again = analyzeDrainTest({
       log: { bytes: raw, fileName: test.fileName },
       vessel: fit.vessel,
@@ -77,7 +77,7 @@ describe('uploads through the real engine in the worker pool', () => {
     expect(res.statusCode, res.body).toBe(422);
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(res.json().file).toBe('garbage.csv');
-    expect(t.store.tests.count()).toBe(0);
-    expect(t.store.db.prepare('SELECT count(*) FROM raw_files').pluck().get()).toBe(0);
+    expect(await t.store.tests.count()).toBe(0);
+    expect(Number(await t.store.sql.value('SELECT count(*) FROM raw_files'))).toBe(0);
   });
 });

@@ -1,10 +1,11 @@
 import type { FastifyInstance } from 'fastify';
 import { buildApp, type AppOptions } from '../../server/http/app.js';
 import type { AnalyzeRunner } from '../../server/jobs/pool.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import type { Role } from '../../server/store/users.js';
 import { afterAll } from 'vitest';
 import { fakeAnalyze } from './fake-analyze.js';
+import { openTestStore } from '../support/store.js';
 
 export interface TestApp {
   app: FastifyInstance;
@@ -20,17 +21,17 @@ const opened: TestApp[] = [];
 afterAll(async () => {
   for (const t of opened.splice(0)) {
     await t.app.close();
-    if (t.store.db.open) t.store.close();
+    await t.store.close();
   }
 });
 
 export async function testApp(
   over: Partial<AppOptions> & { analyze?: AnalyzeRunner } = {},
 ): Promise<TestApp> {
-  const store = openStore();
+  const store = await openTestStore();
   const tokens = {} as Record<Role, string>;
   for (const role of ['technician', 'engineer', 'auditor', 'admin'] as Role[]) {
-    tokens[role] = store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role).token;
+    tokens[role] = (await store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role)).token;
   }
   const app = await buildApp({ store, analyze: fakeAnalyze, ...over });
   const t: TestApp = {

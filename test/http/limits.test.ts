@@ -113,7 +113,7 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
       expect(res.json().field).toBe(field);
       expect(res.body.length).toBeLessThan(2000); // the value is not echoed back
     }
-    expect(t.store.vessels.list(10, 0).total).toBe(0);
+    expect((await t.store.vessels.list(10, 0)).total).toBe(0);
     // at the limit it is accepted
     const ok = await t.app.inject({
       method: 'POST',
@@ -125,7 +125,7 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
   });
 
   it('upload text fields: notes, operator, loggerId, unit', async () => {
-    const v = t.store.vessels.list(10, 0).items[0];
+    const v = (await t.store.vessels.list(10, 0)).items[0];
     for (const [field, value] of [
       ['notes', long('note')],
       ['operator', long('name')],
@@ -145,11 +145,11 @@ describe('a field past its limit answers 422 naming it, and nothing is stored', 
       expect(res.json().type).toBe('urn:efflux:problem:too-long');
       expect(res.json().field).toBe(field);
     }
-    expect(t.store.tests.listByVessel(v.id, 10, 0).total).toBe(0);
+    expect((await t.store.tests.listByVessel(v.id, 10, 0)).total).toBe(0);
   });
 
   it('review comment, maintenance notes, export selection, audit filter', async () => {
-    const v = t.store.vessels.list(10, 0).items[0];
+    const v = (await t.store.vessels.list(10, 0)).items[0];
     const review = await t.app.inject({
       method: 'POST',
       url: '/api/fits/1/review',

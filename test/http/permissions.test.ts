@@ -207,7 +207,7 @@ beforeAll(async () => {
     payload: m.payload,
   });
   // a throwaway person and token for the people routes (revoking them must not lock the walk out)
-  const spare = t.store.users.createToken(SYSTEM_ACTOR, 'spare (fictional)', 'technician');
+  const spare = await t.store.users.createToken(SYSTEM_ACTOR, 'spare (fictional)', 'technician');
   ids = {
     vessel: v.json().id,
     test: up.json().test.id,
@@ -236,8 +236,10 @@ beforeAll(async () => {
     outlet: nv.json().outlets[0].id,
   };
   for (const role of ALL) {
-    const p = t.store.users.addPerson(SYSTEM_ACTOR, `${role} at main (fictional)`, role, ['main']);
-    limited[role] = t.store.users.createTokenFor(SYSTEM_ACTOR, p.id).token;
+    const p = await t.store.users.addPerson(SYSTEM_ACTOR, `${role} at main (fictional)`, role, [
+      'main',
+    ]);
+    limited[role] = (await t.store.users.createTokenFor(SYSTEM_ACTOR, p.id)).token;
   }
 });
 

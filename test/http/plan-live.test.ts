@@ -163,7 +163,10 @@ describe('live drain test', () => {
       headers: t.auth('auditor'),
     });
     expect(Buffer.compare(raw.rawPayload, logBytes)).toBe(0);
-    const audit = t.store.audit.list({ entityType: 'test', entityId: String(test.id) } as never);
+    const audit = await t.store.audit.list({
+      entityType: 'test',
+      entityId: String(test.id),
+    } as never);
     expect(JSON.stringify(audit)).toMatch(/test\.(create|upload)/);
     // a closed live test takes no more rows
     const late = await send(acked, acked);
@@ -219,10 +222,10 @@ describe('live drain test', () => {
         headers: t.auth('technician'),
       });
       expect(closed.statusCode, closed.body).toBe(201);
-      const raw = t.store.tests.rawBytes(closed.json().test.sha256);
+      const raw = await t.store.tests.rawBytes(closed.json().test.sha256);
       expect(Buffer.compare(Buffer.from(raw), logBytes)).toBe(0);
-      expect(t.store.live.get(id)!.status).toBe('closed');
-      expect(t.store.live.bytes(id).length).toBe(0);
+      expect((await t.store.live.get(id))!.status).toBe('closed');
+      expect((await t.store.live.bytes(id)).length).toBe(0);
     } finally {
       await again.close();
     }

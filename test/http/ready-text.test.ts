@@ -31,7 +31,7 @@ describe('ETag and If-None-Match on the hot reads', () => {
     const a = await t.app.inject({ method: 'GET', url, headers: t.auth('auditor') });
     expect(a.statusCode).toBe(200);
     expect(a.headers['content-type']).toBe('application/json; charset=utf-8');
-    expect(a.json()).toEqual(t.store.fits.get(t.fit.id));
+    expect(a.json()).toEqual(await t.store.fits.get(t.fit.id));
     const etag = String(a.headers.etag);
     expect(etag).toMatch(/^"[\w-]{22}"$/);
     const same = await t.app.inject({

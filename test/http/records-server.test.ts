@@ -7,9 +7,10 @@
 import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildApp } from '../../server/http/app.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { fakeAnalyze } from './fake-analyze.js';
 import { multipart, VESSEL_FILE } from './helpers.js';
+import { openTestStore } from '../support/store.js';
 
 let store: Store;
 let app: Awaited<ReturnType<typeof buildApp>>;
@@ -22,11 +23,11 @@ let vesselId = 0;
 let n = 0;
 
 beforeAll(async () => {
-  store = openStore();
-  const tech = store.users.createToken(SYSTEM_ACTOR, 'technician-srv', 'technician');
+  store = await openTestStore();
+  const tech = await store.users.createToken(SYSTEM_ACTOR, 'technician-srv', 'technician');
   techToken = tech.token;
   techTokenId = tech.tokenId;
-  adminToken = store.users.createToken(SYSTEM_ACTOR, 'admin-srv', 'admin').token;
+  adminToken = (await store.users.createToken(SYSTEM_ACTOR, 'admin-srv', 'admin')).token;
   app = await buildApp({ store, analyze: fakeAnalyze });
   await app.listen({ host: '127.0.0.1', port: 0 });
   port = (app.server.address() as AddressInfo).port;
@@ -41,7 +42,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await app?.close();
-  store?.close();
+  await store?.close();
 });
 
 async function signIn(token: string, origin = base): Promise<string> {

@@ -46,8 +46,8 @@ const review = (t: TestApp, fitId: number, decision: 'approve' | 'reject', as: R
     payload: { decision },
   });
 
-const count = (t: TestApp, table: string) =>
-  t.store.db.prepare(`SELECT count(*) FROM ${table}`).pluck().get() as number;
+const count = async (t: TestApp, table: string) =>
+  Number(await t.store.sql.value(`SELECT count(*) FROM ${table}`));
 
 /** A log with its own bytes (n decides the levels), so uploads are not duplicates of each other. */
 const logN = (n: number) => Buffer.from(`t,level\n0,${2 + n / 1000}\n1,1.98\n2,1.96\n3,1.94\n`);
@@ -87,12 +87,14 @@ describe('one test date', () => {
 
   it('a log with elapsed time only and no testedAt is refused naming testedAt, and nothing is kept', async () => {
     const t = await withVessel();
-    const before = { tests: count(t, 'drain_tests'), raw: count(t, 'raw_files') };
+    const before = { tests: await count(t, 'drain_tests'), raw: await count(t, 'raw_files') };
     const res = await upload(t, t.vesselId, Buffer.from('elapsed_s,level\n0,2\n1,1.9\n2,1.8\n'));
     expect(res.statusCode).toBe(422);
     expect(res.json()).toMatchObject({ field: 'testedAt' });
     expect(res.json().detail).toMatch(/testedAt/);
-    expect({ tests: count(t, 'drain_tests'), raw: count(t, 'raw_files') }).toEqual(before);
+    expect({ tests: await count(t, 'drain_tests'), raw: await count(t, 'raw_files') }).toEqual(
+      before,
+    );
     // with a stated date the same file is taken
     const ok = await upload(t, t.vesselId, Buffer.from('elapsed_s,level\n0,2\n1,1.9\n2,1.8\n'), {
       testedAt: '2025-06-02T10:30:00+02:00',
@@ -119,7 +121,7 @@ describe('one test date', () => {
       expect(res.statusCode, bad).toBe(422);
       expect(res.json().field, bad).toBe('testedAt');
     }
-    expect(count(t, 'drain_tests')).toBe(0);
+    expect(await count(t, 'drain_tests')).toBe(0);
   });
 });
 
@@ -228,7 +230,7 @@ describe('duplicates and retries', () => {
     expect(again.statusCode).toBe(409);
     expect(again.json().existingTestId).toBe(first.json().test.id);
     expect(again.json().detail).toContain(`test ${first.json().test.id}`);
-    expect(count(t, 'drain_tests')).toBe(1);
+    expect(await count(t, 'drain_tests')).toBe(1);
     const allowed = await upload(t, t.vesselId, GOOD_LOG, { allowDuplicate: 'true' });
     expect(allowed.statusCode).toBe(201);
     const entry = (
@@ -250,14 +252,14 @@ describe('duplicates and retries', () => {
     expect(b.statusCode).toBe(201);
     expect(b.headers['idempotency-replayed']).toBe('true');
     expect(b.json()).toEqual(a.json());
-    expect(count(t, 'drain_tests')).toBe(1);
-    expect(count(t, 'fits')).toBe(1);
+    expect(await count(t, 'drain_tests')).toBe(1);
+    expect(await count(t, 'fits')).toBe(1);
     // the same key with other bytes is refused; another person's same key is theirs
     const other = await upload(t, t.vesselId, logN(6), {}, 'technician', key);
     expect(other.statusCode).toBe(422);
     expect(other.json().field).toBe('Idempotency-Key');
     expect((await upload(t, t.vesselId, logN(6), {}, 'engineer', key)).statusCode).toBe(201);
-    expect(count(t, 'drain_tests')).toBe(2);
+    expect(await count(t, 'drain_tests')).toBe(2);
   });
 });
 
@@ -326,7 +328,7 @@ describe('people, tokens and revocation', () => {
 
   it('revoking a person ends every open session and token at once; the last unlimited admin cannot be revoked', async () => {
     const t = await testApp();
-    const eng = t.store.users.personByName('engineer-1');
+    const eng = await t.store.users.personByName('engineer-1');
     const cookie = await signIn(t, t.tokens.engineer);
     expect((await whoami(t, cookie)).statusCode).toBe(200);
     const r = await t.app.inject({
@@ -341,7 +343,7 @@ describe('people, tokens and revocation', () => {
       (await t.app.inject({ method: 'GET', url: '/api/vessels', headers: t.auth('engineer') }))
         .statusCode,
     ).toBe(401);
-    const admin = t.store.users.personByName('admin-1');
+    const admin = await t.store.users.personByName('admin-1');
     const last = await t.app.inject({
       method: 'POST',
       url: `/api/people/${admin.id}/revoke`,
@@ -360,13 +362,14 @@ describe('people, tokens and revocation', () => {
 
   it('people management is for admins with no site limit', async () => {
     const t = await testApp();
-    const limited = t.store.users.addPerson(
+    const limited = await t.store.users.addPerson(
       { id: null, name: 'system' },
       'K. Moss (fictional)',
       'admin',
       ['north'],
     );
-    const token = t.store.users.createTokenFor({ id: null, name: 'system' }, limited.id).token;
+    const token = (await t.store.users.createTokenFor({ id: null, name: 'system' }, limited.id))
+      .token;
     const res = await t.app.inject({
       method: 'GET',
       url: '/api/people',

@@ -20,13 +20,13 @@ beforeAll(async () => {
   const fx = await reportFixture(); // the demo's invented backwash tank (sample-data/, fictional)
   ({ store, fitId, outletId } = fx);
   for (const role of ['technician', 'engineer', 'auditor', 'admin'] as Role[])
-    tokens[role] = store.users.createToken(SYSTEM_ACTOR, `${role}-http`, role).token;
+    tokens[role] = (await store.users.createToken(SYSTEM_ACTOR, `${role}-http`, role)).token;
   app = await buildApp({ store, analyze: fakeAnalyze });
   await app.ready();
 }, 60_000);
 afterAll(async () => {
   await app?.close();
-  store?.close();
+  await store?.close();
 });
 
 describe('report routes', () => {

@@ -55,7 +55,7 @@ describe('vessels', () => {
       headers: t.auth('technician'),
     });
     expect(list.json()).toMatchObject({ total: 1, limit: 1, offset: 0 });
-    const audit = t.store.audit.list({ entityType: 'vessel', entityId: String(id) });
+    const audit = await t.store.audit.list({ entityType: 'vessel', entityId: String(id) });
     expect(audit.map((e) => e.action)).toEqual(['vessel.create', 'vessel.update']);
     expect((audit[1].before as { spec: object }).spec).toEqual(VESSEL_FILE);
   });
@@ -70,7 +70,7 @@ describe('vessels', () => {
     });
     expect(res.statusCode).toBe(422);
     expect(res.json().field).toMatch(/^outlet\.boreM/);
-    expect(t.store.vessels.count()).toBe(0);
+    expect(await t.store.vessels.count()).toBe(0);
   });
 
   it('bad path and query parameters: 400 with the path', async () => {
@@ -239,7 +239,7 @@ describe('audit log over HTTP', () => {
 
   it('every change and its audit entry commit together: a failed change leaves no entry', async () => {
     const t = await withFit();
-    const before = t.store.audit.list({ limit: 1000 }).length;
+    const before = (await t.store.audit.list({ limit: 1000 })).length;
     await t.app.inject({
       method: 'POST',
       url: `/api/fits/${t.fit.id}/review`,
@@ -252,7 +252,7 @@ describe('audit log over HTTP', () => {
       headers: t.auth('engineer'),
       payload: { decision: 'approve' },
     }); // 409
-    expect(t.store.audit.list({ limit: 1000 }).length).toBe(before + 1);
+    expect((await t.store.audit.list({ limit: 1000 })).length).toBe(before + 1);
   });
 });
 

@@ -25,12 +25,14 @@ let pool: TaskPool;
 const auth = (t = token) => ({ authorization: `Bearer ${t}` });
 
 /** Rows a request could have written. */
-const counts = () =>
+const counts = async () =>
   Object.fromEntries(
-    ['drain_tests', 'fits', 'audit_log', 'vessels', 'raw_files'].map((t) => [
-      t,
-      (store.db.prepare(`SELECT count(*) AS n FROM ${t}`).get() as { n: number }).n,
-    ]),
+    await Promise.all(
+      ['drain_tests', 'fits', 'audit_log', 'vessels', 'raw_files'].map(async (t) => [
+        t,
+        Number(await store.sql.value(`SELECT count(*) AS n FROM ${t}`)),
+      ]),
+    ),
   );
 
 beforeAll(async () => {
@@ -47,21 +49,21 @@ beforeAll(async () => {
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T09:00:00Z' },
   ]);
   ({ store, fitIds } = fx);
-  testId = store.fits.get(fitIds[0]).testId;
-  token = store.users.createToken(SYSTEM_ACTOR, 'auditor-tasks', 'auditor').token;
-  otherToken = store.users.createToken(SYSTEM_ACTOR, 'engineer-tasks', 'engineer').token;
+  testId = (await store.fits.get(fitIds[0])).testId;
+  token = (await store.users.createToken(SYSTEM_ACTOR, 'auditor-tasks', 'auditor')).token;
+  otherToken = (await store.users.createToken(SYSTEM_ACTOR, 'engineer-tasks', 'engineer')).token;
   pool = createTaskPool({ threads: 1 });
 }, 120_000);
 afterAll(async () => {
   await pool?.close();
-  store?.close();
+  await store?.close();
 });
 
 describe('over its time limit', () => {
   it('a report, a series and a joint fit answer 503 problem+json and write nothing', async () => {
     const app = await buildApp({ store, analyze: fakeAnalyze, taskTimeoutMs: 1 });
     try {
-      const before = counts();
+      const before = await counts();
       for (const url of [`/api/fits/${fitIds[0]}/report.pdf`, `/api/tests/${testId}/series`]) {
         const res = await app.inject({ method: 'GET', url, headers: auth() });
         expect(res.statusCode, url).toBe(503);
@@ -88,7 +90,7 @@ describe('over its time limit', () => {
       });
       expect(fit.statusCode).toBe(503);
       expect(fit.json().type).toBe('urn:efflux:problem:over-time-limit');
-      expect(counts()).toEqual(before);
+      expect(await counts()).toEqual(before);
     } finally {
       await app.close();
     }
@@ -138,7 +140,7 @@ describe('a period export as a job', () => {
         method: 'POST',
         url: '/api/exports',
         headers: auth(),
-        payload: { site: store.vessels.list(1, 0).items[0].site },
+        payload: { site: (await store.vessels.list(1, 0)).items[0].site },
       });
       expect(res.statusCode).toBe(202);
       const job = res.json();
@@ -214,12 +216,12 @@ describe('series of a stored log', () => {
       expect(res.statusCode).toBe(200);
       const { series, detected } = res.json();
       const { seriesAnswer } = await import('../../server/jobs/workbench-read.js');
-      const t = store.tests.get(testId);
-      const fit = store.fits.get(fitIds[0]);
+      const t = await store.tests.get(testId);
+      const fit = await store.fits.get(fitIds[0]);
       const fromBytes = JSON.parse(
         new TextDecoder().decode(
           await seriesAnswer({
-            log: { bytes: store.tests.rawBytes(t.sha256), fileName: t.fileName },
+            log: { bytes: await store.tests.rawBytes(t.sha256), fileName: t.fileName },
             vessel: fit.vessel,
             vesselFileName: 'v',
             settings: t.settings,

@@ -13,9 +13,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeDrainTest } from '../../server/core/analyze.js';
 import { buildApp } from '../../server/http/app.js';
 import { readReportFile } from '../../server/render/report-file.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { root } from '../cli/run-cli.js';
 import { multipart } from './helpers.js';
+import { openTestStore } from '../support/store.js';
 
 const FILE = 'sample-data/history/fd1-2024-10-07.csv';
 let store: Store;
@@ -27,16 +28,16 @@ let eng = '';
 
 beforeAll(async () => {
   dataDir = mkdtempSync(join(tmpdir(), 'efflux-date-'));
-  store = openStore({ dataDir });
-  tech = store.users.createToken(SYSTEM_ACTOR, 'tech (fictional)', 'technician').token;
-  eng = store.users.createToken(SYSTEM_ACTOR, 'eng (fictional)', 'engineer').token;
+  store = await openTestStore({ dataDir });
+  tech = (await store.users.createToken(SYSTEM_ACTOR, 'tech (fictional)', 'technician')).token;
+  eng = (await store.users.createToken(SYSTEM_ACTOR, 'eng (fictional)', 'engineer')).token;
   app = await buildApp({ store, analyze: async (req) => analyzeDrainTest(req) });
   await app.ready();
 }, 60_000);
 
 afterAll(async () => {
   await app?.close();
-  store?.close();
+  await store?.close();
 });
 
 describe('a history log uploaded without testedAt', () => {

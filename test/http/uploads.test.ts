@@ -33,12 +33,12 @@ function upload(
   });
 }
 
-function counts(t: TestApp) {
-  const one = (sql: string) => t.store.db.prepare(sql).pluck().get();
+async function counts(t: TestApp) {
+  const one = async (sql: string) => Number(await t.store.sql.value(sql));
   return {
-    tests: one('SELECT count(*) FROM drain_tests'),
-    raw: one('SELECT count(*) FROM raw_files'),
-    fits: one('SELECT count(*) FROM fits'),
+    tests: await one('SELECT count(*) FROM drain_tests'),
+    raw: await one('SELECT count(*) FROM raw_files'),
+    fits: await one('SELECT count(*) FROM fits'),
   };
 }
 
@@ -132,8 +132,8 @@ describe('POST /api/vessels/:id/tests', () => {
       instance: `/api/vessels/${t.vesselId}/tests`,
     });
     expect(res.body).not.toMatch(/at .*\.ts:\d+/);
-    expect(counts(t)).toEqual({ tests: 0, raw: 0, fits: 0 });
-    expect(t.store.audit.verify().ok).toBe(true);
+    expect(await counts(t)).toEqual({ tests: 0, raw: 0, fits: 0 });
+    expect((await t.store.audit.verify()).ok).toBe(true);
   });
 
   it.each([
@@ -171,7 +171,7 @@ describe('POST /api/vessels/:id/tests', () => {
           .errors.map((e: { path: string }) => e.path)
           .join(' '),
       ).toContain(path);
-      expect(counts(t)).toEqual({ tests: 0, raw: 0, fits: 0 });
+      expect(await counts(t)).toEqual({ tests: 0, raw: 0, fits: 0 });
     },
   );
 
@@ -181,7 +181,7 @@ describe('POST /api/vessels/:id/tests', () => {
     const res = await upload(t, t.vesselId, [{ field: 'log', name: 'big.csv', bytes: big }]);
     expect(res.statusCode).toBe(413);
     expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
-    expect(counts(t)).toEqual({ tests: 0, raw: 0, fits: 0 });
+    expect(await counts(t)).toEqual({ tests: 0, raw: 0, fits: 0 });
   });
 
   it('not multipart: 415; unknown vessel: 404', async () => {
@@ -201,7 +201,7 @@ describe('POST /api/vessels/:id/tests', () => {
       payload: m.payload,
     });
     expect(b.statusCode).toBe(404);
-    expect(counts(t).tests).toBe(0);
+    expect((await counts(t)).tests).toBe(0);
   });
 
   it('a vessel with several outlets needs outletId; the analysis sees only that outlet', async () => {
@@ -239,7 +239,7 @@ describe('POST /api/vessels/:id/tests', () => {
     const res = await upload(t, t.vesselId, [{ field: 'log', name: 'a.csv', bytes: GOOD_LOG }]);
     expect(res.statusCode).toBe(500);
     expect(res.body).not.toContain('secret');
-    expect(t.store.tests.pending().length).toBe(1);
+    expect((await t.store.tests.pending()).length).toBe(1);
   });
 
   it('50 concurrent uploads are all stored, none lost, the chain intact', async () => {
@@ -259,8 +259,8 @@ describe('POST /api/vessels/:id/tests', () => {
     expect(answers.map((a) => a.statusCode)).toEqual(Array(50).fill(201));
     expect(new Set(answers.map((a) => a.json().test.id)).size).toBe(50);
     answers.forEach((a, i) => expect(a.json().test.sha256).toBe(sha(bodies[i])));
-    expect(counts(t)).toEqual({ tests: 50, raw: 50, fits: 50 });
-    expect(t.store.audit.verify()).toMatchObject({ ok: true });
+    expect(await counts(t)).toEqual({ tests: 50, raw: 50, fits: 50 });
+    expect(await t.store.audit.verify()).toMatchObject({ ok: true });
     const page = await t.app.inject({
       method: 'GET',
       url: `/api/vessels/${t.vesselId}/tests?limit=20&offset=40`,

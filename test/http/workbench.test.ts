@@ -9,9 +9,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeDrainTest } from '../../server/core/analyze.js';
 import { buildApp } from '../../server/http/app.js';
 import { workbenchRoutes } from '../../server/http/routes/workbench.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import type { FastifyInstance } from 'fastify';
 import { multipart } from './helpers.js';
+import { openTestStore } from '../support/store.js';
 
 const sample = (name: string) =>
   fileURLToPath(new URL(`../../sample-data/${name}`, import.meta.url));
@@ -23,10 +24,10 @@ let store: Store;
 const auth: Record<string, { authorization: string }> = {};
 
 beforeAll(async () => {
-  store = openStore();
+  store = await openTestStore();
   for (const role of ['technician', 'engineer', 'auditor'] as const) {
     auth[role] = {
-      authorization: `Bearer ${store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role).token}`,
+      authorization: `Bearer ${(await store.users.createToken(SYSTEM_ACTOR, `${role}-1`, role)).token}`,
     };
   }
   // the real engine in-process: the stored test must be one the engine accepts
@@ -38,7 +39,7 @@ beforeAll(async () => {
 });
 afterAll(async () => {
   await app.close();
-  store.close();
+  await store.close();
 });
 
 let made = 0;
@@ -66,7 +67,7 @@ function inspect(id: number, fields: Record<string, string> = {}, who = 'technic
 describe('POST /api/vessels/:id/inspect', () => {
   it('shows what a fit of the same bytes would read and choose, and stores nothing', async () => {
     const id = await vesselId();
-    const before = store.tests.count();
+    const before = await store.tests.count();
     const r = await inspect(id);
     expect(r.statusCode).toBe(200);
     const body = r.json();
@@ -83,7 +84,7 @@ describe('POST /api/vessels/:id/inspect', () => {
     expect(body.series.t0).toBe((outcome.fit.read as { t0: string }).t0);
     // the first lines are the file's own text (the sample opens with metadata lines)
     expect(body.head.lines[0]).toBe(LOG.toString('utf8').split(/\r?\n/)[0]);
-    expect(store.tests.count()).toBe(before);
+    expect(await store.tests.count()).toBe(before);
   });
 
   it('applies a stated window and reading settings', async () => {

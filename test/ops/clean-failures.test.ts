@@ -54,7 +54,7 @@ describe('malformed requests (inject)', () => {
   afterAll(() => t.app.close());
 
   it.each(MALFORMED)('%s: problem+json, nothing stored', async (_name, type, payload, status) => {
-    const before = rowCounts(t.store.db);
+    const before = await rowCounts(t.store.sql);
     const r = await t.app.inject({
       method: 'POST',
       url: `/api/vessels/${vesselId}/tests`,
@@ -68,11 +68,11 @@ describe('malformed requests (inject)', () => {
       title: expect.any(String),
       detail: expect.any(String),
     });
-    expect(rowCounts(t.store.db)).toEqual(before);
+    expect(await rowCounts(t.store.sql)).toEqual(before);
   });
 
   it('any Content-Encoding but identity: 415 with Accept-Encoding: identity, on uploads and JSON alike', async () => {
-    const before = rowCounts(t.store.db);
+    const before = await rowCounts(t.store.sql);
     const m = multipart([{ field: 'log', name: 'a.csv', bytes: GOOD_LOG }]);
     const up = await t.app.inject({
       method: 'POST',
@@ -102,8 +102,8 @@ describe('malformed requests (inject)', () => {
     });
     expect(garbage.statusCode).toBe(400);
     expect(garbage.headers['content-type']).toMatch(/^application\/problem\+json/);
-    expect(rowCounts(t.store.db)).toEqual(before);
-    expect(checkDatabase(t.store.db).ok).toBe(true);
+    expect(await rowCounts(t.store.sql)).toEqual(before);
+    expect((await checkDatabase(t.store.sql)).ok).toBe(true);
   });
 });
 
@@ -146,11 +146,11 @@ describe('malformed requests (a real listening server)', () => {
   it.each(MALFORMED)(
     '%s: answered on the socket with problem+json',
     async (_name, type, payload, status) => {
-      const before = rowCounts(t.store.db);
+      const before = await rowCounts(t.store.sql);
       const r = await raw(port, request(type, Buffer.from(payload)));
       expect(r.status).toBe(status);
       expect(r.type).toMatch(/^application\/problem\+json/);
-      expect(rowCounts(t.store.db)).toEqual(before);
+      expect(await rowCounts(t.store.sql)).toEqual(before);
     },
   );
 
@@ -239,7 +239,7 @@ describe('pending tests: retry, withdraw, marked when they keep failing', () => 
       },
     });
     const vesselId = await withVessel(t);
-    const before = rowCounts(t.store.db);
+    const before = await rowCounts(t.store.sql);
     const m = multipart([{ field: 'log', name: 'a.csv', bytes: GOOD_LOG }]);
     const up = await t.app.inject({
       method: 'POST',
@@ -280,29 +280,31 @@ describe('pending tests: retry, withdraw, marked when they keep failing', () => 
     expect(
       (await t.app.inject({ url: `/api/tests/${id}`, headers: t.auth('auditor') })).statusCode,
     ).toBe(404);
-    const after = rowCounts(t.store.db);
+    const after = await rowCounts(t.store.sql);
     expect({ ...after, audit_log: 0 }).toEqual({ ...before, audit_log: 0 });
     const entries = (
       await t.app.inject({ url: `/api/audit?limit=50`, headers: t.auth('auditor') })
     ).json().items;
     const withdraw = entries.find((e: { action: string }) => e.action === 'test.withdraw');
     expect(withdraw).toMatchObject({ entityId: String(id), after: body });
-    expect(checkDatabase(t.store.db).ok).toBe(true);
+    expect((await checkDatabase(t.store.sql)).ok).toBe(true);
     await t.app.close();
   });
 
   it('resume: one failure does not stop the others; after 3 failures a test is marked stuck and left for a person', async () => {
     const t = await testApp();
     const vesselId = await withVessel(t);
-    const put = (body: string) =>
-      t.store.tests.createPending(SYSTEM_ACTOR, {
-        vesselId,
-        outletId: null,
-        log: { bytes: Buffer.from(body), fileName: 'x.csv' },
-        settings: {},
-      }).id;
-    const bad = put('t,level\nFAIL\n0,1\n1,0.9\n');
-    const good = put('t,level\n0,1\n1,0.9\n');
+    const put = async (body: string) =>
+      (
+        await t.store.tests.createPending(SYSTEM_ACTOR, {
+          vesselId,
+          outletId: null,
+          log: { bytes: Buffer.from(body), fileName: 'x.csv' },
+          settings: {},
+        })
+      ).id;
+    const bad = await put('t,level\nFAIL\n0,1\n1,0.9\n');
+    const good = await put('t,level\n0,1\n1,0.9\n');
     const analyze = async (req: AnalysisRequest) => {
       if (new TextDecoder().decode(req.log.bytes).includes('FAIL')) throw new Error('worker fault');
       return analyzeDrainTest(req);
@@ -313,17 +315,17 @@ describe('pending tests: retry, withdraw, marked when they keep failing', () => 
       failed: [{ testId: bad, reason: 'worker fault' }],
       stuck: 0,
     });
-    expect(t.store.tests.get(good).status).toBe('analysed');
+    expect((await t.store.tests.get(good)).status).toBe('analysed');
     await resumePending(t.store, analyze, SYSTEM_ACTOR);
     await resumePending(t.store, analyze, SYSTEM_ACTOR);
-    expect(t.store.tests.get(bad)).toMatchObject({ failedAttempts: 3, stuck: true });
+    expect(await t.store.tests.get(bad)).toMatchObject({ failedAttempts: 3, stuck: true });
     expect(await resumePending(t.store, analyze, SYSTEM_ACTOR)).toEqual({
       done: 0,
       refused: 0,
       failed: [],
       stuck: 1,
     });
-    expect(t.store.tests.get(bad).failedAttempts).toBe(3); // not tried again
+    expect((await t.store.tests.get(bad)).failedAttempts).toBe(3); // not tried again
     const page = (
       await t.app.inject({ url: `/api/vessels/${vesselId}/tests`, headers: t.auth('auditor') })
     ).json();

@@ -9,6 +9,7 @@ import { hostname, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { checkDatabase, rowCounts } from '../../server/store/maintenance.js';
+import { SqliteSql } from '../../server/store/sqlite-sql.js';
 import { eff, envFor, serve, stop, type Served } from './serve-process.js';
 
 const base = mkdtempSync(join(tmpdir(), 'efflux-ops-'));
@@ -83,9 +84,9 @@ describe('one data folder, one server; backup, restore, check', () => {
     // checked again here, on its own: sound, and a consistent snapshot (every test has its fit,
     // every test's bytes are there, the audit chain covers every upload in it)
     const copy = new Database(backupFile, { readonly: true });
-    const c = checkDatabase(copy);
+    const c = await checkDatabase(new SqliteSql(copy));
     expect(c).toMatchObject({ ok: true, problems: [] });
-    const n = rowCounts(copy);
+    const n = await rowCounts(new SqliteSql(copy));
     expect(n.drain_tests).toBeGreaterThanOrEqual(5);
     expect(n.fits).toBe(n.drain_tests);
     expect(
@@ -109,10 +110,10 @@ describe('one data folder, one server; backup, restore, check', () => {
     expect(ok.stdout).toMatch(/^audit chain intact: \d+ entries/m);
 
     const live = new Database(join(dataDir, 'efflux.sqlite'), { readonly: true });
-    const liveTests = rowCounts(live).drain_tests;
+    const liveTests = (await rowCounts(new SqliteSql(live))).drain_tests;
     live.close();
     const copy = new Database(backupFile, { readonly: true });
-    const backupTests = rowCounts(copy).drain_tests;
+    const backupTests = (await rowCounts(new SqliteSql(copy))).drain_tests;
     copy.close();
     expect(liveTests).toBeGreaterThan(backupTests); // uploads went on after the snapshot
 
@@ -121,11 +122,11 @@ describe('one data folder, one server; backup, restore, check', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/kept as .*efflux-replaced-/);
     const restored = new Database(join(dataDir, 'efflux.sqlite'), { readonly: true });
-    expect(rowCounts(restored).drain_tests).toBe(backupTests);
+    expect((await rowCounts(new SqliteSql(restored))).drain_tests).toBe(backupTests);
     restored.close();
     const kept = /kept as (\S+)/.exec(r.stdout)![1];
     const old = new Database(kept, { readonly: true });
-    expect(rowCounts(old).drain_tests).toBe(liveTests);
+    expect((await rowCounts(new SqliteSql(old))).drain_tests).toBe(liveTests);
     old.close();
     expect((await eff(['check', '--data', dataDir], env)).code).toBe(0);
   }, 60_000);

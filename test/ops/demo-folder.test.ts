@@ -7,9 +7,10 @@ import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
 import { VESSEL_FILE } from '../http/helpers.js';
 import { eff, envFor, serve, stop, type Served } from './serve-process.js';
+import { openTestStore } from '../support/store.js';
 
 const base = mkdtempSync(join(tmpdir(), 'efflux-demo-'));
 const running: Served[] = [];
@@ -48,27 +49,27 @@ describe('demo apart from real data', () => {
     ).json();
     expect(vessels.total).toBeGreaterThan(0);
     expect(await stop(s)).toBe(0);
-    const store = openStore({ dataDir: dir });
-    expect(store.meta.isDemo()).toBe(true);
-    expect(store.audit.list({ action: 'service.mark-demo' })).toHaveLength(1);
-    store.close();
+    const store = await openTestStore({ dataDir: dir });
+    expect(await store.meta.isDemo()).toBe(true);
+    expect(await store.audit.list({ action: 'service.mark-demo' })).toHaveLength(1);
+    await store.close();
   }, 120_000);
 
   it('--demo on a folder holding real records is refused with exit 2, and nothing is added', async () => {
     const dir = join(base, 'site');
-    const store = openStore({ dataDir: dir });
-    store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never);
-    const entries = store.audit.verify().count;
-    store.close();
+    const store = await openTestStore({ dataDir: dir });
+    await store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never);
+    const entries = (await store.audit.verify()).count;
+    await store.close();
     const r = await eff(['serve', '--demo', '--data', dir], envFor(dir));
     expect(r.code).toBe(2);
     expect(r.stderr.trim()).toBe(
       `efflux: the data folder ${dir} holds real records (1 vessel(s), 0 test(s)): the invented demo is loaded only into an empty folder; run the demo in its own (npm start uses ./data-demo)`,
     );
-    const after = openStore({ dataDir: dir });
-    expect(after.meta.isDemo()).toBe(false);
-    expect(after.vessels.count()).toBe(1);
-    expect(after.audit.verify().count).toBe(entries);
-    after.close();
+    const after = await openTestStore({ dataDir: dir });
+    expect(await after.meta.isDemo()).toBe(false);
+    expect(await after.vessels.count()).toBe(1);
+    expect((await after.audit.verify()).count).toBe(entries);
+    await after.close();
   }, 60_000);
 });

@@ -12,10 +12,11 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AnalysisRequest } from '../../server/core/analysis-contract.js';
 import { buildApp } from '../../server/http/app.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { checkDatabase, rowCounts } from '../../server/store/maintenance.js';
 import { analyzeDrainTest } from '../http/fake-analyze.js';
 import { multipart, VESSEL_FILE } from '../http/helpers.js';
+import { openTestStore } from '../support/store.js';
 
 const mountPoint = mkdtempSync(join(tmpdir(), 'efflux-full-'));
 const dataDir = join(mountPoint, 'data');
@@ -63,8 +64,8 @@ describe('a full disk', () => {
   };
 
   it('answers 507 problem+json and keeps nothing; after space is freed the next upload is whole', async () => {
-    store = openStore({ dataDir });
-    const token = store.users.createToken(SYSTEM_ACTOR, 'tech', 'admin').token;
+    store = await openTestStore({ dataDir });
+    const token = (await store.users.createToken(SYSTEM_ACTOR, 'tech', 'admin')).token;
     const app = await buildApp({ store, analyze });
     const auth = { authorization: `Bearer ${token}` };
     const v = await app.inject({
@@ -84,7 +85,7 @@ describe('a full disk', () => {
       });
     };
     expect((await up(0)).statusCode).toBe(201);
-    const before = rowCounts(store.db);
+    const before = await rowCounts(store.sql);
 
     // 1. the disk is full before the upload: the bytes cannot be stored
     expect(fillDisk()).toBeGreaterThan(0);
@@ -93,7 +94,7 @@ describe('a full disk', () => {
     expect(full.headers['content-type']).toMatch(/^application\/problem\+json/);
     expect(full.json()).toMatchObject({ status: 507, type: 'urn:efflux:problem:disk-full' });
     expect(full.body).not.toMatch(/SQLITE|at .*\.ts/);
-    expect(rowCounts(store.db)).toEqual(before);
+    expect(await rowCounts(store.sql)).toEqual(before);
     freeDisk();
 
     // 2. the disk fills while the analysis runs: the bytes were stored, the fit cannot be
@@ -102,20 +103,20 @@ describe('a full disk', () => {
     fillDuringAnalysis = false;
     expect(mid.statusCode).toBe(507);
     freeDisk();
-    const after = rowCounts(store.db);
+    const after = await rowCounts(store.sql);
     // the compensating step withdrew the test: no test, raw file or fit beyond what was there,
     // and the audit log tells the upload and its withdrawal (two entries more)
     expect({ ...after, audit_log: 0 }).toEqual({ ...before, audit_log: 0 });
     expect(after.audit_log).toBe(before.audit_log + 2);
-    expect(store.tests.pending()).toEqual([]);
-    expect(checkDatabase(store.db)).toMatchObject({ ok: true, problems: [] });
+    expect(await store.tests.pending()).toEqual([]);
+    expect(await checkDatabase(store.sql)).toMatchObject({ ok: true, problems: [] });
 
     // 3. with space again, an upload is stored with its fit
     const ok = await up(3);
     expect(ok.statusCode).toBe(201);
-    expect(rowCounts(store.db).fits).toBe(before.fits + 1);
-    expect(checkDatabase(store.db).ok).toBe(true);
+    expect((await rowCounts(store.sql)).fits).toBe(before.fits + 1);
+    expect((await checkDatabase(store.sql)).ok).toBe(true);
     await app.close();
-    store.close();
+    await store.close();
   });
 });

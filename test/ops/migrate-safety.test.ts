@@ -5,21 +5,22 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openDatabase } from '../../server/store/db.js';
-import { openStore } from '../../server/store/index.js';
 import {
   defaultMigrationsDir,
-  migrate,
   MigrationError,
   NewerSchemaError,
   readMigrations,
   schemaVersion,
   splitStatements,
 } from '../../server/store/migrate.js';
+import { SqliteSql } from '../../server/store/sqlite-sql.js';
+import { migrateSqlite } from '../store/helpers.js';
+import { openTestStore } from '../support/store.js';
 
 const tmp = () => mkdtempSync(join(tmpdir(), 'efflux-mig-'));
 
 describe('migration safety', () => {
-  it('a failing migration names its file and the statement (number, line, text); the database stays at the previous version', () => {
+  it('a failing migration names its file and the statement (number, line, text); the database stays at the previous version', async () => {
     const dir = tmp();
     writeFileSync(join(dir, '001_a.sql'), 'CREATE TABLE a (x INTEGER);\n');
     writeFileSync(
@@ -29,7 +30,7 @@ describe('migration safety', () => {
     const db = new Database(':memory:');
     let err: unknown;
     try {
-      migrate(db, dir);
+      await migrateSqlite(db, dir);
     } catch (e) {
       err = e;
     }
@@ -37,7 +38,7 @@ describe('migration safety', () => {
     expect((err as Error).message).toBe(
       'migration 002_b.sql failed at statement 4 (line 6: "ALTER TABLE a ADD COLUMN x INTEGER"): duplicate column name: x; the database was left at the previous version',
     );
-    expect(schemaVersion(db)).toBe(1);
+    expect(await schemaVersion(new SqliteSql(db))).toBe(1);
     expect(
       db.prepare("SELECT name FROM sqlite_master WHERE name IN ('b', 'c', 'b_t')").all(),
     ).toEqual([]);
@@ -57,7 +58,7 @@ describe('migration safety', () => {
     }
   });
 
-  it('takes a copy into the data folder, named with both versions, before migrating an existing database', () => {
+  it('takes a copy into the data folder, named with both versions, before migrating an existing database', async () => {
     const all = readMigrations(defaultMigrationsDir());
     const older = tmp();
     for (const f of all.slice(0, -1)) writeFileSync(join(older, f.name), f.sql);
@@ -65,36 +66,38 @@ describe('migration safety', () => {
     for (const f of all) writeFileSync(join(newest, f.name), f.sql);
     const data = tmp();
     const first = openDatabase(data); // the repositories need the newest tables: the older build's schema only
-    migrate(first, older);
+    await migrateSqlite(first, older);
     first.close();
     const from = all.at(-2)!.version;
     const to = all.at(-1)!.version;
     expect(readdirSync(data).filter((n) => n.startsWith('efflux-before'))).toEqual([]); // a new database needs no copy
-    openStore({
-      dataDir: data,
-      migrationsDir: newest,
-      now: () => '2026-12-05T04:45:00.000Z',
-    }).close();
+    await (
+      await openTestStore({
+        dataDir: data,
+        migrationsDir: newest,
+        now: () => '2026-12-05T04:45:00.000Z',
+      })
+    ).close();
     const copies = readdirSync(data).filter((n) => n.startsWith('efflux-before'));
     expect(copies).toEqual([`efflux-before-schema-${from}-to-${to}-20261205T044500.sqlite`]);
     const copy = new Database(join(data, copies[0]), { readonly: true });
-    expect(schemaVersion(copy)).toBe(from);
+    expect(await schemaVersion(new SqliteSql(copy))).toBe(from);
     copy.close();
   });
 
-  it('refuses a database newer than the build, leaving it untouched', () => {
+  it('refuses a database newer than the build, leaving it untouched', async () => {
     const data = tmp();
-    openStore({ dataDir: data }).close();
+    await (await openTestStore({ dataDir: data })).close();
     const db = new Database(join(data, 'efflux.sqlite'));
-    const build = schemaVersion(db);
+    const build = await schemaVersion(new SqliteSql(db));
     db.prepare('INSERT INTO schema_migrations VALUES (?, ?, ?)').run(build + 1, 'next.sql', 'x');
     db.close();
-    expect(() => openStore({ dataDir: data })).toThrow(NewerSchemaError);
-    expect(() => openStore({ dataDir: data })).toThrow(
+    await expect(openTestStore({ dataDir: data })).rejects.toThrow(NewerSchemaError);
+    await expect(openTestStore({ dataDir: data })).rejects.toThrow(
       `schema version ${build + 1}, newer than this build's ${build}`,
     );
     const again = new Database(join(data, 'efflux.sqlite'), { readonly: true });
-    expect(schemaVersion(again)).toBe(build + 1);
+    expect(await schemaVersion(new SqliteSql(again))).toBe(build + 1);
     again.close();
   });
 });

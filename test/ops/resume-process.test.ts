@@ -6,9 +6,10 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
 import { VESSEL_FILE } from '../http/helpers.js';
 import { envFor, serve, stop, type Served } from './serve-process.js';
+import { openTestStore } from '../support/store.js';
 
 const base = mkdtempSync(join(tmpdir(), 'efflux-resume-'));
 const dataDir = join(base, 'data');
@@ -19,20 +20,22 @@ afterAll(() => running.forEach((s) => s.child.exitCode === null && s.child.kill(
 describe('resume after a restart', () => {
   it('runs after listen; a failing test is noted and the next ones are analysed', async () => {
     // an earlier run stored three uploads and stopped before analysing them
-    const store = openStore({ dataDir });
-    const token = store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin').token;
-    const v = store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never);
-    const put = (name: string, body: string) =>
-      store.tests.createPending(SYSTEM_ACTOR, {
-        vesselId: v.id,
-        outletId: null,
-        log: { bytes: Buffer.from(body), fileName: name },
-        settings: {},
-      }).id;
-    const failing = put('fail.csv', 't,level\nFAIL\n0,2\n1,1.9\n');
-    const gated = put('gate.csv', 't,level\nGATE\n0,2\n1,1.9\n');
-    const plain = put('plain.csv', 't,level\n0,2\n1,1.8\n');
-    store.close();
+    const store = await openTestStore({ dataDir });
+    const token = (await store.users.createToken(SYSTEM_ACTOR, 'admin', 'admin')).token;
+    const v = await store.vessels.create(SYSTEM_ACTOR, VESSEL_FILE as never);
+    const put = async (name: string, body: string) =>
+      (
+        await store.tests.createPending(SYSTEM_ACTOR, {
+          vesselId: v.id,
+          outletId: null,
+          log: { bytes: Buffer.from(body), fileName: name },
+          settings: {},
+        })
+      ).id;
+    const failing = await put('fail.csv', 't,level\nFAIL\n0,2\n1,1.9\n');
+    const gated = await put('gate.csv', 't,level\nGATE\n0,2\n1,1.9\n');
+    const plain = await put('plain.csv', 't,level\n0,2\n1,1.8\n');
+    await store.close();
 
     const s = await serve(
       envFor(dataDir, {

@@ -10,8 +10,9 @@ import { fileURLToPath } from 'node:url';
 import { analyzeDrainTest } from '../../server/core/analyze.js';
 import { checkVesselFile } from '../../server/http/vessel-file.js';
 import { uploadDrainTest } from '../../server/jobs/ingest.js';
-import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
 import { actorOf } from '../../server/store/users.js';
+import { openTestStore } from '../support/store.js';
 
 export const root = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 const sample = (name: string) => join(root, 'sample-data', name);
@@ -42,23 +43,19 @@ export async function reportFixture(
 ): Promise<Fixture & { fitIds: number[] }> {
   const dataDir = mkdtempSync(join(tmpdir(), 'efflux-report-'));
   let t = Date.parse('2026-04-01T09:00:00Z');
-  const store = openStore({ dataDir, now: () => new Date((t += 1000)).toISOString() });
-  const engineer = store.users.createToken(
-    SYSTEM_ACTOR,
-    'R. Penhallow (fictional)',
-    'engineer',
+  const store = await openTestStore({ dataDir, now: () => new Date((t += 1000)).toISOString() });
+  const engineer = (
+    await store.users.createToken(SYSTEM_ACTOR, 'R. Penhallow (fictional)', 'engineer')
   ).user;
   // four eyes: a technician uploads, the engineer approves
-  const technician = store.users.createToken(
-    SYSTEM_ACTOR,
-    'T. Ashdown (fictional)',
-    'technician',
+  const technician = (
+    await store.users.createToken(SYSTEM_ACTOR, 'T. Ashdown (fictional)', 'technician')
   ).user;
   const spec = checkVesselFile(
     JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8')),
     'backwash-tank-fb1.vessel.json',
   );
-  const vessel = store.vessels.create(SYSTEM_ACTOR, spec);
+  const vessel = await store.vessels.create(SYSTEM_ACTOR, spec);
   const fitIds: number[] = [];
   let logSha256 = '';
   for (const test of tests) {
@@ -76,7 +73,7 @@ export async function reportFixture(
         notes: test.notes ?? 'Routine test (invented demo data).',
       },
     );
-    store.fits.review(
+    await store.fits.review(
       actorOf(engineer),
       fit.id,
       'approved',

@@ -31,15 +31,15 @@ beforeAll(async () => {
     { log: 'fb1-2026-03-10-preamble.csv', testedAt: '2026-03-10T08:15:00Z' },
     { log: 'fb1-2026-03-26-leaking-inlet.csv', testedAt: '2026-03-26T08:15:00Z' },
   ]);
-  report = buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex);
+  report = buildFitReport(await fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex);
   pdf = await renderFitReportPdf(report);
   mkdirSync(out, { recursive: true });
 }, 60_000);
 afterAll(() => fx?.store.close());
 
 describe('fit report model', () => {
-  it('carries the stored numbers, the raw file hash and the review', () => {
-    const stored = fx.store.fits.get(fx.fitId).result as any;
+  it('carries the stored numbers, the raw file hash and the review', async () => {
+    const stored = (await fx.store.fits.get(fx.fitId)).result as any;
     expect(report.results.dischargeCoefficient!.value).toBe(stored.dischargeCoefficient.value);
     expect(report.results.dischargeCoefficient!.expandedUncertainty).toBe(
       stored.dischargeCoefficient.expandedUncertainty,
@@ -49,9 +49,9 @@ describe('fit report model', () => {
     expect(report.audit.some((a) => a.action === 'fit.approve')).toBe(true);
     expect(report.issuedAt).toBe(report.review!.at);
     // the same records give the same id
-    expect(buildFitReport(fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex).reportId).toBe(
-      report.reportId,
-    );
+    expect(
+      buildFitReport(await fitReportRecords(fx.store, fx.fitId), SOFTWARE, sha256Hex).reportId,
+    ).toBe(report.reportId);
   });
 });
 
@@ -116,7 +116,7 @@ describe('fit report PDF', () => {
 
 describe('outlet history report', () => {
   it('trends the approved fits and renders deterministically with the threshold', async () => {
-    const records = outletReportRecords(fx.store, fx.outletId);
+    const records = await outletReportRecords(fx.store, fx.outletId);
     expect(records.fits.map((f) => f.fitId)).toEqual(fx.fitIds);
     const r = buildOutletReport(records, SOFTWARE, sha256Hex);
     expect(r.asOf).toBe(
@@ -126,7 +126,7 @@ describe('outlet history report', () => {
     expect(r.actionThresholdPct).toBe(-10); // the demo vessel names no threshold: the default
     const a = await renderOutletReportPdf(r);
     const b = await renderOutletReportPdf(
-      buildOutletReport(outletReportRecords(fx.store, fx.outletId), SOFTWARE, sha256Hex),
+      buildOutletReport(await outletReportRecords(fx.store, fx.outletId), SOFTWARE, sha256Hex),
     );
     expect(sha(b)).toBe(sha(a));
     const file = join(out, 'outlet-report.pdf');

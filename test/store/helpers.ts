@@ -1,7 +1,16 @@
+import type Database from 'better-sqlite3';
 import { openStore, SYSTEM_ACTOR, type Store } from '../../server/store/index.js';
+import { migrate } from '../../server/store/migrate.js';
+import { SqliteSql } from '../../server/store/sqlite-sql.js';
+
+/** migrate() on an SQLite connection, as openStore runs it (without the pre-migration copy). */
+export function migrateSqlite(db: Database.Database, dir?: string): Promise<string[]> {
+  const sql = new SqliteSql(db);
+  return migrate(sql, dir, { exec: (s) => sql.exec(s) });
+}
 
 /** A store in memory with a clock that ticks one second per call (deterministic timestamps). */
-export function memoryStore(): Store {
+export function memoryStore(): Promise<Store> {
   let t = Date.parse('2026-01-01T00:00:00Z');
   return openStore({ now: () => new Date((t += 1000)).toISOString() });
 }

@@ -8,21 +8,22 @@ import { copyFileSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { defaultMigrationsDir, migrate } from '../../server/store/migrate.js';
+import { defaultMigrationsDir } from '../../server/store/migrate.js';
+import { migrateSqlite } from './helpers.js';
 
-function databaseAt002(): Database.Database {
+async function databaseAt002(): Promise<Database.Database> {
   const dir = mkdtempSync(join(tmpdir(), 'efflux-mig002-'));
   for (const f of ['001_initial.sql', '002_trend.sql'])
     copyFileSync(join(defaultMigrationsDir(), f), join(dir, f));
   const db = new Database(':memory:');
   db.pragma('foreign_keys = ON');
-  migrate(db, dir);
+  await migrateSqlite(db, dir);
   return db;
 }
 
 describe('migration 003 on an existing database', () => {
-  it('dates old tests from their stored logs and reports the ones it could not date', () => {
-    const db = databaseAt002();
+  it('dates old tests from their stored logs and reports the ones it could not date', async () => {
+    const db = await databaseAt002();
     const at = '2026-01-05T10:00:00.000Z';
     db.prepare(`INSERT INTO sites (id, name, created_at) VALUES (1, 'main', ?)`).run(at);
     db.prepare(
@@ -74,7 +75,7 @@ describe('migration 003 on an existing database', () => {
           at,
         );
     }
-    const applied = migrate(db);
+    const applied = await migrateSqlite(db);
     expect(applied).toContain('003_records.sql');
     const rows = db
       .prepare('SELECT id, tested_at, tested_at_source FROM drain_tests ORDER BY id')

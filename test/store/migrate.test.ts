@@ -4,14 +4,15 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openDatabase } from '../../server/store/db.js';
-import { defaultMigrationsDir, migrate, readMigrations } from '../../server/store/migrate.js';
+import { defaultMigrationsDir, readMigrations } from '../../server/store/migrate.js';
+import { migrateSqlite } from './helpers.js';
 
 describe('migrations', () => {
-  it('applies every file to an empty database, in order, and records each', () => {
+  it('applies every file to an empty database, in order, and records each', async () => {
     const db = new Database(':memory:');
     const files = readMigrations(defaultMigrationsDir());
     expect(files.length).toBeGreaterThan(0);
-    const applied = migrate(db);
+    const applied = await migrateSqlite(db);
     expect(applied).toEqual(files.map((f) => f.name));
     const recorded = db
       .prepare('SELECT version, name FROM schema_migrations ORDER BY version')
@@ -57,7 +58,7 @@ describe('migrations', () => {
       expect.arrayContaining(['settings', 'result', 'engine_version', 'status', 'superseded_by']),
     );
     // a second run applies nothing
-    expect(migrate(db)).toEqual([]);
+    expect(await migrateSqlite(db)).toEqual([]);
   });
 
   it('opens files in WAL with foreign keys on and synchronous FULL', () => {
@@ -69,7 +70,7 @@ describe('migrations', () => {
     db.close();
   });
 
-  it('rolls back a failing migration whole and leaves it unrecorded', () => {
+  it('rolls back a failing migration whole and leaves it unrecorded', async () => {
     const dir = mkdtempSync(join(tmpdir(), 'efflux-mig-'));
     copyFileSync(join(defaultMigrationsDir(), '001_initial.sql'), join(dir, '001_initial.sql'));
     writeFileSync(
@@ -77,7 +78,7 @@ describe('migrations', () => {
       'CREATE TABLE half_done (x INTEGER);\nTHIS IS NOT SQL;',
     );
     const db = new Database(':memory:');
-    expect(() => migrate(db, dir)).toThrow();
+    await expect(migrateSqlite(db, dir)).rejects.toThrow(/002_broken.sql failed at statement 2/);
     expect(db.prepare('SELECT max(version) FROM schema_migrations').pluck().get()).toBe(1);
     expect(
       db.prepare(`SELECT count(*) FROM sqlite_master WHERE name = 'half_done'`).pluck().get(),

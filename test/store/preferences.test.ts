@@ -1,12 +1,15 @@
 import { describe, expect, it } from 'vitest';
-import { openStore, SYSTEM_ACTOR } from '../../server/store/index.js';
+import { SYSTEM_ACTOR } from '../../server/store/index.js';
+import { openTestStore } from '../support/store.js';
 
 describe('display preferences (migration 006)', () => {
   it('SI until chosen; a choice is kept per person; the table refuses anything but si and us', async () => {
-    const store = openStore({ now: () => '2026-12-05T08:00:00.000Z' });
+    const store = await openTestStore({ now: () => '2026-12-05T08:00:00.000Z' });
     try {
-      const a = store.users.createToken(SYSTEM_ACTOR, 'A. Fenwick (fictional)', 'engineer').user;
-      const b = store.users.createToken(SYSTEM_ACTOR, 'B. Reedling (fictional)', 'technician').user;
+      const a = (await store.users.createToken(SYSTEM_ACTOR, 'A. Fenwick (fictional)', 'engineer'))
+        .user;
+      const b = (await store.users.createToken(SYSTEM_ACTOR, 'B. Reedling (fictional)', 'technician'))
+        .user;
       expect(await store.preferences.get(a.id)).toEqual({ displayUnits: 'si' });
       await store.preferences.setDisplayUnits(a.id, 'us');
       expect(await store.preferences.get(a.id)).toEqual({ displayUnits: 'us' });
@@ -23,7 +26,7 @@ describe('display preferences (migration 006)', () => {
         ),
       ).rejects.toThrow(/CHECK/);
     } finally {
-      store.close();
+      await store.close();
     }
   });
 });

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { openMemoryDatabase } from '../../server/store/db.js';
+import { PAGE_ROWS, pagedRows } from '../../server/store/pages.js';
 import { toNumberedPlaceholders } from '../../server/store/sql.js';
 import { SqliteSql } from '../../server/store/sqlite-sql.js';
 
@@ -74,5 +75,24 @@ describe('SqliteSql', () => {
     });
     expect(sql.inTx()).toBe(false);
     expect(await sql.value('SELECT count(*) FROM t')).toBe(1);
+  });
+});
+
+describe('pagedRows', () => {
+  it('yields every row once, in key order, across pages of PAGE_ROWS', async () => {
+    const sql = new SqliteSql(openMemoryDatabase());
+    await sql.run('CREATE TABLE t (id INTEGER PRIMARY KEY, v INTEGER)');
+    const n = 2 * PAGE_ROWS + 7; // three pages, the last one short
+    await sql.tx(async () => {
+      for (let i = 1; i <= n; i++) await sql.run('INSERT INTO t (id, v) VALUES (?, ?)', [i * 3, i]);
+    });
+    const seen: number[] = [];
+    for await (const r of pagedRows<{ id: number; v: number }>(
+      sql,
+      'SELECT id, v FROM t WHERE id > @after ORDER BY id LIMIT @pageRows',
+      (r) => r.id,
+    ))
+      seen.push(r.v);
+    expect(seen).toEqual(Array.from({ length: n }, (_, i) => i + 1));
   });
 });

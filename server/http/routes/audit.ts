@@ -83,7 +83,7 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
             'site-forbidden',
             'a person limited to sites reads the audit log of one vessel at a time: give vesselId',
           );
-        assertSite(request, app.store.sites.siteOf('vessel', request.query.vesselId));
+        assertSite(request, await app.store.sites.siteOf('vessel', request.query.vesselId));
       }
       const { order, ...filter } = request.query;
       const newestFirst = order === 'newest';
@@ -125,8 +125,8 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async () => {
-      const chain = app.store.audit.verify();
-      const records = verifyRecords(app.store);
+      const chain = await app.store.audit.verify();
+      const records = await verifyRecords(app.store);
       return { ...chain, ok: chain.ok && records.ok, records };
     },
   );

@@ -38,13 +38,13 @@ export const eventRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const v = app.store.vessels.get(request.params.id);
+      const v = await app.store.vessels.get(request.params.id);
       const outletId = request.body.outletId ?? null;
       if (outletId !== null && !v.outlets.some((o) => o.id === outletId)) {
         throw new InputError(`vessel ${v.id} has no outlet ${outletId}`, { field: 'outletId' });
       }
       reply.code(201);
-      return app.store.events.create(actorOf(request.user!), {
+      return await app.store.events.create(actorOf(request.user!), {
         vesselId: v.id,
         outletId,
         kind: request.body.kind,
@@ -67,13 +67,13 @@ export const eventRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      app.store.vessels.get(request.params.id);
+      await app.store.vessels.get(request.params.id);
       return {
-        ...app.store.events.listByVessel(
+        ...(await app.store.events.listByVessel(
           request.params.id,
           request.query.limit,
           request.query.offset,
-        ),
+        )),
         ...request.query,
       };
     },

@@ -30,13 +30,13 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      app.store.vessels.get(request.params.id);
+      await app.store.vessels.get(request.params.id);
       return {
-        ...app.store.fits.listByVessel(
+        ...(await app.store.fits.listByVessel(
           request.params.id,
           request.query.limit,
           request.query.offset,
-        ),
+        )),
         ...request.query,
       };
     },
@@ -55,7 +55,7 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     // Stored JSON bytes sent as is (same shape as the schema; checked by the store's tests), with an ETag.
     async (request, reply) =>
-      sendReadyText(request, reply, app.store.fits.getText(request.params.id)),
+      sendReadyText(request, reply, await app.store.fits.getText(request.params.id)),
   );
 
   app.post(
@@ -98,14 +98,16 @@ export const fitRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     // An approval may change the outlet's trend status: recorded with it, webhooks told after commit.
     async (request) =>
-      reviewFit(
-        app.store,
-        app.notifier,
-        actorOf(request.user!),
-        request.params.id,
-        request.body.decision === 'approve' ? 'approved' : 'rejected',
-        request.body.comment ?? null,
-        app.clockMs(),
+      (
+        await reviewFit(
+          app.store,
+          app.notifier,
+          actorOf(request.user!),
+          request.params.id,
+          request.body.decision === 'approve' ? 'approved' : 'rejected',
+          request.body.comment ?? null,
+          app.clockMs(),
+        )
       ).fit,
   );
 };

@@ -3,8 +3,7 @@ import { z } from 'zod';
 import { PUBLIC } from '../access.js';
 
 export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
-  const probe = app.store.db.prepare('SELECT 1');
-  const demo = app.store.meta.isDemo(); // marked before the service is built; never unmarked
+  const demo = await app.store.meta.isDemo(); // marked before the service is built; never unmarked
   app.get(
     '/api/health',
     {
@@ -17,7 +16,7 @@ export const healthRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async () => {
-      probe.get();
+      await app.store.sql.value('SELECT 1'); // the database answers
       return { status: 'ok' as const, demo };
     },
   );

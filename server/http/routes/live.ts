@@ -57,7 +57,7 @@ const liveState = z
   .meta({ id: 'LiveTest' });
 
 export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, opts) => {
-  const live = new LiveTests({
+  const live = await LiveTests.create({
     store: app.store,
     analyze: app.analyze,
     limitBytes: opts.limitBytes ?? 40 * 1024 * 1024,
@@ -78,9 +78,9 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
     (_req, body, done) => done(null, body),
   );
 
-  const guard = <T>(f: () => T): T => {
+  const guard = async <T>(f: () => T | Promise<T>): Promise<T> => {
     try {
-      return f();
+      return await f();
     } catch (e) {
       if (e instanceof LiveProblem)
         throw new HttpProblem(e.status, e.slug, e.message, e.extra as never);
@@ -88,9 +88,9 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
     }
   };
   // a live test belongs to its vessel's site: the /api/live/:id routes are 'listed' and check it here
-  const ownLive = (request: FastifyRequest, id: string) => {
-    const state = guard(() => live.get(id));
-    assertSite(request, app.store.sites.siteOf('vessel', state.vesselId));
+  const ownLive = async (request: FastifyRequest, id: string) => {
+    const state = await guard(() => live.get(id));
+    assertSite(request, await app.store.sites.siteOf('vessel', state.vesselId));
     return state;
   };
 
@@ -108,7 +108,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
     },
     async (request, reply) => {
       const b = request.body;
-      const state = live.open(actorOf(request.user!), {
+      const state = await live.open(actorOf(request.user!), {
         vesselId: request.params.id,
         ...b,
         outletId: b.outletId ?? null,
@@ -130,7 +130,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
         response: { 200: liveState, ...protectedErrors },
       },
     },
-    async (request) => ownLive(request, request.params.id) as never,
+    async (request) => (await ownLive(request, request.params.id)) as never,
   );
 
   app.post(
@@ -157,7 +157,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
     },
     async (request, reply) => {
       const body = request.body;
-      ownLive(request, request.params.id);
+      await ownLive(request, request.params.id);
       if (!Buffer.isBuffer(body))
         throw new HttpProblem(
           415,
@@ -165,7 +165,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
           'send the rows as application/octet-stream, text/plain or text/csv',
         );
       try {
-        const s = live.append(request.params.id, request.query.offset, body);
+        const s = await live.append(request.params.id, request.query.offset, body);
         return {
           receivedBytes: s.receivedBytes,
           rows: s.rows,
@@ -200,7 +200,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
       },
     },
     async (request, reply) => {
-      const state = ownLive(request, request.params.id);
+      const state = await ownLive(request, request.params.id);
       reply.hijack();
       const res = reply.raw;
       res.writeHead(200, {
@@ -246,7 +246,7 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
       },
     },
     async (request, reply) => {
-      ownLive(request, request.params.id);
+      await ownLive(request, request.params.id);
       const out = await live
         .close(request.params.id, actorOf(request.user!), {
           allowDuplicate: request.query.allowDuplicate === 'true',
@@ -272,8 +272,8 @@ export const liveRoutes: FastifyPluginAsyncZod<LiveRouteOptions> = async (app, o
       },
     },
     async (request, reply) => {
-      ownLive(request, request.params.id);
-      guard(() => live.abandon(request.params.id));
+      await ownLive(request, request.params.id);
+      await guard(() => live.abandon(request.params.id));
       reply.code(204);
       return null;
     },

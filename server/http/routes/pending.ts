@@ -38,7 +38,7 @@ export const pendingRoutes: FastifyPluginAsyncZod = async (app) => {
         request.params.id,
       );
       reply.code(201);
-      return { test: app.store.tests.get(request.params.id), fit: out };
+      return { test: await app.store.tests.get(request.params.id), fit: out };
     },
   );
 
@@ -61,7 +61,12 @@ export const pendingRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      withdrawPending(app.store, actorOf(request.user!), request.params.id, request.body.reason);
+      await withdrawPending(
+        app.store,
+        actorOf(request.user!),
+        request.params.id,
+        request.body.reason,
+      );
       return { withdrawn: request.params.id };
     },
   );

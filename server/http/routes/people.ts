@@ -50,20 +50,18 @@ const site = z
   .meta({ id: 'Site' });
 
 /** Admins with no site limit who could still manage people, other than `exceptId`. */
-function otherFullAdmins(store: Store, exceptId: number): Person[] {
-  return store.users
-    .people()
-    .filter(
-      (p) => p.id !== exceptId && p.role === 'admin' && p.sites === null && p.revokedAt === null,
-    );
+async function otherFullAdmins(store: Store, exceptId: number): Promise<Person[]> {
+  return (await store.users.people()).filter(
+    (p) => p.id !== exceptId && p.role === 'admin' && p.sites === null && p.revokedAt === null,
+  );
 }
 
-function keepAnAdmin(
+async function keepAnAdmin(
   store: Store,
   id: number,
   next: { role?: Role; sites?: string[] | null; revoked?: boolean },
-): void {
-  const p = store.users.person(id);
+): Promise<void> {
+  const p = await store.users.person(id);
   const stillFull =
     !next.revoked &&
     (next.role ?? p.role) === 'admin' &&
@@ -72,7 +70,7 @@ function keepAnAdmin(
     p.role === 'admin' &&
     p.sites === null &&
     !stillFull &&
-    otherFullAdmins(store, id).length === 0
+    (await otherFullAdmins(store, id)).length === 0
   ) {
     throw new ConflictError(
       `${p.name} is the last admin with no site limit; add another before changing or revoking this one`,
@@ -94,7 +92,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async () => ({
-      items: app.store.users.people(),
+      items: await app.store.users.people(),
     }),
   );
 
@@ -114,7 +112,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
     },
     async (request, reply) => {
       reply.code(201);
-      return app.store.users.addPerson(
+      return await app.store.users.addPerson(
         actorOf(request.user!),
         request.body.name,
         request.body.role,
@@ -137,8 +135,12 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      keepAnAdmin(app.store, request.params.id, request.body);
-      return app.store.users.changePerson(actorOf(request.user!), request.params.id, request.body);
+      await keepAnAdmin(app.store, request.params.id, request.body);
+      return await app.store.users.changePerson(
+        actorOf(request.user!),
+        request.params.id,
+        request.body,
+      );
     },
   );
 
@@ -154,8 +156,8 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      keepAnAdmin(app.store, request.params.id, { revoked: true });
-      return app.store.users.revokePerson(actorOf(request.user!), request.params.id);
+      await keepAnAdmin(app.store, request.params.id, { revoked: true });
+      return await app.store.users.revokePerson(actorOf(request.user!), request.params.id);
     },
   );
 
@@ -176,7 +178,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const out = app.store.users.createTokenFor(
+      const out = await app.store.users.createTokenFor(
         actorOf(request.user!),
         request.params.id,
         request.body.label,
@@ -185,7 +187,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       return {
         token: out.token,
         tokenId: out.tokenId,
-        person: app.store.users.person(request.params.id),
+        person: await app.store.users.person(request.params.id),
       };
     },
   );
@@ -201,7 +203,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: z.object({ items: z.array(token) }), ...protectedErrors },
       },
     },
-    async (request) => ({ items: app.store.users.tokens(request.query.personId ?? null) }),
+    async (request) => ({ items: await app.store.users.tokens(request.query.personId ?? null) }),
   );
 
   app.delete(
@@ -215,7 +217,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: token, 409: problem, ...protectedErrors },
       },
     },
-    async (request) => app.store.users.revokeToken(actorOf(request.user!), request.params.id),
+    async (request) => await app.store.users.revokeToken(actorOf(request.user!), request.params.id),
   );
 
   app.get(
@@ -229,7 +231,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async () => ({
-      items: app.store.sites.list(),
+      items: await app.store.sites.list(),
     }),
   );
 
@@ -247,7 +249,7 @@ export const peopleRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) =>
-      app.store.sites.setSelfReview(
+      await app.store.sites.setSelfReview(
         actorOf(request.user!),
         request.params.name,
         request.body.selfReviewAllowed,

@@ -41,7 +41,7 @@ export const planRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      const vessel = app.store.vessels.get(request.params.id);
+      const vessel = await app.store.vessels.get(request.params.id);
       const { outletId, ...req } = request.body;
       const spec = validateVessel(vesselForAnalysis(vessel, chooseOutlet(vessel, outletId)));
       return planDrainTest(spec, req) as unknown as z.infer<typeof planAnswer>;

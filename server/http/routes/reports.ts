@@ -78,7 +78,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const report = fitReport(app.store, request.params.id, currentSoftware());
+      const report = await fitReport(app.store, request.params.id, currentSoftware());
       const units = await unitsFor(request.query.units, request.user?.id);
       const pdf = await app.tasks('fit-report-pdf', { report, units });
       return reply
@@ -104,7 +104,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const report = fitReport(app.store, request.params.id, currentSoftware());
+      const report = await fitReport(app.store, request.params.id, currentSoftware());
       return reply
         .type('application/json')
         .header('x-report-id', report.reportId)
@@ -125,7 +125,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const report = outletReport(
+      const report = await outletReport(
         app.store,
         request.params.id,
         currentSoftware(),
@@ -174,7 +174,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
           );
         assertSite(request, request.body.site);
       }
-      const job = app.exports.start(request.user!.id, request.body);
+      const job = await app.exports.start(request.user!.id, request.body);
       return reply.code(202).header('location', `/api/exports/${job.id}`).send(withUrls(job));
     },
   );

@@ -41,7 +41,7 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
       },
     },
     async (request, reply) => {
-      const signedIn = app.store.users.signIn(request.body.token, opts.ttlMs);
+      const signedIn = await app.store.users.signIn(request.body.token, opts.ttlMs);
       if (!signedIn) throw new HttpProblem(401, 'unauthenticated', 'the token is not valid');
       const { user, secret, expiresAt } = signedIn;
       reply.setCookie(SESSION_COOKIE, secret, {
@@ -114,7 +114,7 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
     },
     async (request, reply) => {
       const secret = request.cookies[SESSION_COOKIE];
-      if (secret) app.store.users.closeSession(request.user!, secret);
+      if (secret) await app.store.users.closeSession(request.user!, secret);
       reply.clearCookie(SESSION_COOKIE, { path: '/api' });
       reply.code(204);
       return null;

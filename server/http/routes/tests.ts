@@ -74,7 +74,7 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const vessel = app.store.vessels.get(request.params.id); // 404 before reading the body
+      const vessel = await app.store.vessels.get(request.params.id); // 404 before reading the body
       const t0 = performance.now();
       const up = await readUpload(request);
       const receiveMs = performance.now() - t0;
@@ -115,12 +115,16 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      app.store.vessels.assertExists(request.params.id);
+      await app.store.vessels.assertExists(request.params.id);
       // spliced from the stored JSON (same shape as the schema; checked by the store's tests), kept as bytes
       return sendReadyText(
         request,
         reply,
-        app.store.tests.pageText(request.params.id, request.query.limit, request.query.offset),
+        await app.store.tests.pageText(
+          request.params.id,
+          request.query.limit,
+          request.query.offset,
+        ),
       );
     },
   );
@@ -136,7 +140,7 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: drainTest, ...protectedErrors },
       },
     },
-    async (request) => app.store.tests.get(request.params.id),
+    async (request) => await app.store.tests.get(request.params.id),
   );
 
   app.get(
@@ -151,8 +155,8 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      app.store.tests.get(request.params.id);
-      return { items: app.store.fits.listByTest(request.params.id) };
+      await app.store.tests.get(request.params.id);
+      return { items: await app.store.fits.listByTest(request.params.id) };
     },
   );
 
@@ -169,11 +173,11 @@ export const testRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const t = app.store.tests.get(request.params.id);
+      const t = await app.store.tests.get(request.params.id);
       const ref =
         request.query.file === 'baro' ? t.baro : { sha256: t.sha256, fileName: t.fileName };
       if (!ref) throw new HttpProblem(404, 'not-found', `test ${t.id} has no barometric file`);
-      const bytes = app.store.tests.rawBytes(ref.sha256);
+      const bytes = await app.store.tests.rawBytes(ref.sha256);
       reply
         .type('application/octet-stream')
         .header('content-disposition', contentDisposition(ref.fileName))

@@ -62,7 +62,7 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const view = outletTrendView(app.store, request.params.id, nowOf(request.query.asOf));
+      const view = await outletTrendView(app.store, request.params.id, nowOf(request.query.asOf));
       const name = `${view.outlet.vesselName}-${view.outlet.key}-history.csv`.replace(
         /[^\w.-]+/g,
         '_',
@@ -87,8 +87,8 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      app.store.vessels.outlet(request.params.id);
-      return app.store.trends.statusChanges(request.params.id);
+      await app.store.vessels.outlet(request.params.id);
+      return await app.store.trends.statusChanges(request.params.id);
     },
   );
 
@@ -120,10 +120,10 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      const o = app.store.vessels.outlet(request.params.id);
+      const o = await app.store.vessels.outlet(request.params.id);
       if (o.retiredAt !== null)
         throw new ConflictError(`outlet ${o.id} is retired; it is no longer in the vessel file`);
-      const v = app.store.vessels.get(o.vesselId);
+      const v = await app.store.vessels.get(o.vesselId);
       const spec = structuredClone(v.spec);
       const list = Array.isArray(spec.outlets)
         ? (spec.outlets as Record<string, unknown>[])
@@ -133,7 +133,11 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
         throw new InputError(`outlet "${o.key}" is not in vessel ${v.id}'s file`, { field: 'id' });
       if (request.body.actionThreshold === null) delete list[at].actionThreshold;
       else list[at].actionThreshold = request.body.actionThreshold;
-      const updated = app.store.vessels.update(actorOf(request.user!), v.id, checkVesselFile(spec));
+      const updated = await app.store.vessels.update(
+        actorOf(request.user!),
+        v.id,
+        checkVesselFile(spec),
+      );
       const after = updated.outlets.find((x) => x.id === o.id)!;
       return { outlet: after, threshold: thresholdOf(after) };
     },
@@ -170,7 +174,7 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
           });
       }
       if (q.site !== undefined) assertSite(request, q.site);
-      const view = fleetStatus(
+      const view = await fleetStatus(
         app.store,
         {
           site: q.site,

@@ -27,7 +27,11 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => ({
-      ...app.store.vessels.list(request.query.limit, request.query.offset, sitesOf(request)),
+      ...(await app.store.vessels.list(
+        request.query.limit,
+        request.query.offset,
+        sitesOf(request),
+      )),
       ...request.query,
     }),
   );
@@ -47,7 +51,7 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
       const spec = checkVesselFile(request.body);
       assertSite(request, siteOfSpec(spec));
       reply.code(201);
-      return app.store.vessels.create(actorOf(request.user!), spec);
+      return await app.store.vessels.create(actorOf(request.user!), spec);
     },
   );
 
@@ -62,7 +66,7 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
         response: { 200: vessel, ...protectedErrors },
       },
     },
-    async (request) => app.store.vessels.get(request.params.id),
+    async (request) => await app.store.vessels.get(request.params.id),
   );
 
   app.put(
@@ -80,7 +84,7 @@ export const vesselRoutes: FastifyPluginAsyncZod = async (app) => {
     async (request) => {
       const spec = checkVesselFile(request.body);
       assertSite(request, siteOfSpec(spec)); // its own site was checked before; nor may it move to another
-      return app.store.vessels.update(actorOf(request.user!), request.params.id, spec);
+      return await app.store.vessels.update(actorOf(request.user!), request.params.id, spec);
     },
   );
 };

@@ -13,6 +13,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import type { AnalysisSettings } from '../../core/analysis-contract.js';
 import { chooseOutlet, vesselForAnalysis } from '../../jobs/ingest.js';
+import { databaseFile } from '../../store/engine.js';
 import type { Vessel } from '../../store/vessels.js';
 import { READERS, TECHNICIANS_UP } from '../access.js';
 import { analysisSettings, idParams, problem, protectedErrors } from '../schemas.js';
@@ -66,7 +67,7 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const v = app.store.vessels.get(request.params.id);
+      const v = await app.store.vessels.get(request.params.id);
       const up = await readUpload(request);
       const req = {
         log: up.log,
@@ -102,18 +103,19 @@ export const workbenchRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const t = app.store.tests.get(request.params.id);
-      const f = request.query.fit === undefined ? null : app.store.fits.get(request.query.fit);
+      const t = await app.store.tests.get(request.params.id);
+      const f =
+        request.query.fit === undefined ? null : await app.store.fits.get(request.query.fit);
       const settings = (f && f.testId === t.id ? f.settings : t.settings) as AnalysisSettings;
-      const v = app.store.vessels.get(t.vesselId);
+      const v = await app.store.vessels.get(t.vesselId);
       // a file database: the task thread reads the raw bytes itself (tens of MB stay off this thread)
-      const dbPath = app.store.db.memory ? null : app.store.db.name;
-      const raw = (sha256: string, fileName: string) =>
+      const dbPath = databaseFile(app.store.engine);
+      const raw = async (sha256: string, fileName: string) =>
         dbPath
           ? { fileName, dbPath, sha256 }
-          : { fileName, bytes: app.store.tests.rawBytes(sha256) };
-      const log = raw(t.sha256, t.fileName);
-      const baro = t.baro ? raw(t.baro.sha256, t.baro.fileName) : undefined;
+          : { fileName, bytes: await app.store.tests.rawBytes(sha256) };
+      const log = await raw(t.sha256, t.fileName);
+      const baro = t.baro ? await raw(t.baro.sha256, t.baro.fileName) : undefined;
       const vessel = f && f.testId === t.id ? f.vessel : vesselFile(v, t.outletId ?? undefined);
       return json(
         reply,

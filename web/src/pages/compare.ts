@@ -86,7 +86,8 @@ export async function comparePage({ params, main }: PageContext): Promise<void> 
 
   const show = async () => {
     out.replaceChildren();
-    const ids = [...form.querySelectorAll<HTMLInputElement>('input[name=test]:checked')].map(
+    const ids = Array.from(
+      form.querySelectorAll<HTMLInputElement>('input[name=test]:checked'),
       (b) => b.value,
     );
     if (ids.length < 2) {
