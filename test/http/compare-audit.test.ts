@@ -82,7 +82,8 @@ describe('two FB-1 tests side by side', () => {
       ),
     );
     const [a, b] = fits.map((f) => f.result.effectiveAreaM2);
-    const en = (a.value - b.value) / Math.sqrt(a.expandedUncertainty ** 2 + b.expandedUncertainty ** 2);
+    const en =
+      (a.value - b.value) / Math.sqrt(a.expandedUncertainty ** 2 + b.expandedUncertainty ** 2);
     expect(c.pairs).toHaveLength(1);
     expect(c.pairs[0].effectiveArea.en).toBeCloseTo(en, 12);
     expect(c.pairs[0].effectiveArea.agree).toBe(Math.abs(en) <= 1);

@@ -8,8 +8,9 @@ describe('display preferences (migration 006)', () => {
     try {
       const a = (await store.users.createToken(SYSTEM_ACTOR, 'A. Fenwick (fictional)', 'engineer'))
         .user;
-      const b = (await store.users.createToken(SYSTEM_ACTOR, 'B. Reedling (fictional)', 'technician'))
-        .user;
+      const b = (
+        await store.users.createToken(SYSTEM_ACTOR, 'B. Reedling (fictional)', 'technician')
+      ).user;
       expect(await store.preferences.get(a.id)).toEqual({ displayUnits: 'si' });
       await store.preferences.setDisplayUnits(a.id, 'us');
       expect(await store.preferences.get(a.id)).toEqual({ displayUnits: 'us' });

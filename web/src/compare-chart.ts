@@ -10,7 +10,16 @@ import { COLOURS } from './charts.js';
 import { unitOf } from './format.js';
 
 /** One colour per test, distinct in print and for common colour-vision deficiencies (Okabe–Ito). */
-const TEST_COLOURS = ['#0072b2', '#d55e00', '#009e73', '#cc79a7', '#e69f00', '#56b4e9', '#000000', '#999999'];
+const TEST_COLOURS = [
+  '#0072b2',
+  '#d55e00',
+  '#009e73',
+  '#cc79a7',
+  '#e69f00',
+  '#56b4e9',
+  '#000000',
+  '#999999',
+];
 
 const axis = (label: string): uPlot.Axis => ({
   label,
@@ -28,7 +37,9 @@ export function comparisonChart(el: HTMLElement, c: TestComparison): uPlot | nul
   // the merged x axis: head in the person's unit, ascending
   const xs = [
     ...new Set(
-      drawn.flatMap((t) => [...t.curve!.headM, ...t.curve!.fittedHeadM].map((h) => h * length.perSi)),
+      drawn.flatMap((t) =>
+        [...t.curve!.headM, ...t.curve!.fittedHeadM].map((h) => h * length.perSi),
+      ),
     ),
   ].sort((a, b) => a - b);
   const at = new Map(xs.map((x, i) => [x, i]));
@@ -63,7 +74,10 @@ export function comparisonChart(el: HTMLElement, c: TestComparison): uPlot | nul
         value: minutes,
       },
     );
-    data.push(column(t.curve!.headM, t.curve!.elapsedS), column(t.curve!.fittedHeadM, t.curve!.elapsedS));
+    data.push(
+      column(t.curve!.headM, t.curve!.elapsedS),
+      column(t.curve!.fittedHeadM, t.curve!.elapsedS),
+    );
   });
   const width = Math.max(320, Math.floor(el.clientWidth || 800));
   const u = new uPlot(

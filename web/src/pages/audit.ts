@@ -14,7 +14,6 @@ import { actionGroups, actionLabel } from '../../../server/core/audit/action-lab
 /** An audit entry as the service sends it (server/store/audit.ts, type-only). */
 type Entry = AuditEntry;
 
-
 const PAGE = 200;
 
 export async function auditPage({ user, main }: PageContext): Promise<void> {

@@ -79,7 +79,12 @@ export async function comparePage({ params, main }: PageContext): Promise<void> 
   const form = h(
     'form',
     { class: 'compare-form' },
-    h('fieldset', {}, h('legend', {}, 'Tests of this outlet'), ...boxes.map((b) => h('div', {}, b))),
+    h(
+      'fieldset',
+      {},
+      h('legend', {}, 'Tests of this outlet'),
+      ...boxes.map((b) => h('div', {}, b)),
+    ),
     h('div', { class: 'actions' }, go),
   );
   main.append(form, out);
