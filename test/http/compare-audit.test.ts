@@ -14,7 +14,7 @@ import { multipart, testApp, type TestApp } from './helpers.js';
 const sample = (name: string) =>
   fileURLToPath(new URL(`../../sample-data/${name}`, import.meta.url));
 const vesselFile = JSON.parse(readFileSync(sample('backwash-tank-fb1.vessel.json'), 'utf8'));
-const LOGS = [
+const LOGS: { name: string; fields: Record<string, string> }[] = [
   { name: 'fb1-2026-03-10-preamble.csv', fields: { testedAt: '2026-03-10T08:15:00Z' } },
   {
     name: 'fb1-2026-03-26-leaking-inlet.csv',
