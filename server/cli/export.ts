@@ -10,11 +10,13 @@ import { periodExport } from '../render/period-export.js';
 import { currentSoftware } from '../render/software.js';
 import { openStore } from '../store/index.js';
 import { guarded } from './io.js';
+import { sitesByPart, vesselByName } from './names.js';
 import { parseCommandLine } from './options.js';
 import { dataDir } from './serve-config.js';
 
-const USAGE = `usage: efflux export [--site S] [--vessel ID|NAME] [--from YYYY-MM-DD] [--to YYYY-MM-DD] --out archive.zip
+const USAGE = `usage: efflux export [--site PART] [--vessel ID|TAG|NAME] [--from YYYY-MM-DD] [--to YYYY-MM-DD] --out archive.zip
 All approved (current) fits whose drain test falls in the period; --to includes its whole day.
+--site matches any part of a site's name, in any case, and says which sites it matched.
 `;
 
 const OPTIONS = {
@@ -39,9 +41,17 @@ export async function run(argv: string[]): Promise<number> {
     const store = await openStore({ dataDir: dataDir() });
     try {
       const t0 = performance.now();
+      const sites =
+        values.site === undefined
+          ? undefined
+          : await sitesByPart(store, values.site, (l) => process.stdout.write(`${l}\n`));
+      const vessel =
+        values.vessel === undefined
+          ? undefined
+          : String((await vesselByName(store, values.vessel)).vesselId);
       const r = await periodExport(
         store,
-        { site: values.site, vessel: values.vessel, from: values.from, to: values.to },
+        { sites, vessel, from: values.from, to: values.to },
         currentSoftware(),
       );
       writeFileSync(values.out, r.zip);

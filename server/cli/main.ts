@@ -85,6 +85,14 @@ const COMMANDS: Record<string, Command> = {
     summary: 'check the data folder: integrity, schema version, audit chain',
     load: async () => ({ run: (await import('./data-folder.js')).runCheck }),
   },
+  vessel: {
+    summary: 'vessels: vessel add FILE | list | show | export | edit ID FILE | revisions',
+    load: () => loadModule('vessel'),
+  },
+  outlet: {
+    summary: "an outlet's action threshold: outlet threshold TAG|ID FACTOR|default",
+    load: async () => ({ run: (await import('./vessel.js')).runOutlet }),
+  },
   export: {
     summary: 'approved fits of a site, vessel or period as one zip with hashes',
     load: () => loadModule('export'),

@@ -19,6 +19,7 @@ import { currentSoftware } from '../render/software.js';
 import { openStore, type Store } from '../store/index.js';
 import { NotFoundError } from '../store/errors.js';
 import { guarded, readInputFile } from './io.js';
+import { outletByName } from './names.js';
 import { parseCommandLine } from './options.js';
 import { UNITS_HELP, unitsFrom } from './units-option.js';
 import { dataDir } from './serve-config.js';
@@ -26,8 +27,8 @@ import { dataDir } from './serve-config.js';
 const USAGE = () => `usage:
   efflux report fit <fitId> --out FILE [--json | --units si|us]
       one fit's report (PDF, or JSON with --json)
-  efflux report outlet <outletId> --out FILE [--json | --units si|us] [--as-of TIME]
-      an outlet's approved fits and trend
+  efflux report outlet OUTLET --out FILE [--json | --units si|us] [--as-of TIME]
+      an outlet's approved fits and trend (OUTLET: its id, its tag, or VESSEL/OUTLET)
   efflux report verify <file.pdf|file.json>
       check a report against the records (a PDF is re-rendered in the units it names)
   ${UNITS_HELP}
@@ -101,7 +102,8 @@ export async function run(argv: string[]): Promise<number> {
     }
     if (sub !== 'fit' && sub !== 'outlet')
       throw new InputError(`unknown report "${sub}" (fit, outlet or verify)`);
-    const id = idArg(arg, sub);
+    if (sub === 'fit') idArg(arg, sub);
+    else if (!arg) throw new InputError('name the outlet: its id or tag');
     if (values.json && values.units !== undefined)
       ignored('units', 'has no effect with --json (JSON reports are in SI)');
     if (sub === 'fit' && values['as-of'] !== undefined)
@@ -110,6 +112,7 @@ export async function run(argv: string[]): Promise<number> {
     const out = values.out;
     return withStore((store) =>
       notFoundAsRefusal(async () => {
+        const id = sub === 'fit' ? idArg(arg, sub) : (await outletByName(store, arg!)).outletId;
         const software = currentSoftware();
         const t0 = performance.now();
         const report =

@@ -14,6 +14,7 @@ import {
 } from '../jobs/trend.js';
 import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
+import { outletByName, refusalsAsInput, sitesByPart } from './names.js';
 import { dataDir } from './serve-config.js';
 import { clipText, countText } from '../core/format/words.js';
 import { daysText } from '../core/format/duration.js';
@@ -22,8 +23,10 @@ import { uncertaintyText } from '../core/format/uncertainty.js';
 import { displayUnit, type UnitSystem } from '../core/format/unit-system.js';
 import { UNITS_HELP, unitsFrom } from './units-option.js';
 
-const USAGE = `usage: efflux trend <outletId> [--json|--csv] [--as-of DATE] [--units si|us]
-       efflux trend --fleet [--json] [--site SITE] [--status WORD[,WORD…]] [--as-of DATE]
+const USAGE = `usage: efflux trend OUTLET [--site PART] [--json|--csv] [--as-of DATE] [--units si|us]
+       efflux trend --fleet [--json] [--site PART] [--status WORD[,WORD…]] [--as-of DATE]
+OUTLET is an outlet id, its tag, a vessel tag with one outlet (efflux trend FD-2), or VESSEL/OUTLET;
+--site matches any part of a site's name, in any case, and says which sites it matched.
 Reads the service's data folder (EFFLUX_DATA_DIR, default ./data). Status words: ${STATUS_WORDS.join(', ')}.
   ${UNITS_HELP}
 `;
@@ -173,11 +176,14 @@ export async function run(argv: string[]): Promise<number> {
         for (const w of words ?? [])
           if (!(STATUS_WORDS as readonly string[]).includes(w))
             throw new InputError(`unknown status "${w}"`, { field: 'status' });
-        const f = await fleetStatus(
-          store,
-          { site: option(argv, 'site'), status: words as never },
-          nowMs,
-        );
+        const part = option(argv, 'site');
+        const sites =
+          part === undefined
+            ? undefined
+            : await sitesByPart(store, part, (l) =>
+                (json ? process.stderr : process.stdout).write(`${l}\n`),
+              );
+        const f = await fleetStatus(store, { sites, status: words as never }, nowMs);
         process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f, words));
         return 0;
       }
@@ -186,11 +192,12 @@ export async function run(argv: string[]): Promise<number> {
           !a.startsWith('--') &&
           !['--as-of', '--site', '--status', '--units'].includes(argv[i - 1]),
       );
-      const id = Number(first);
-      if (!Number.isInteger(id) || id <= 0)
-        throw new InputError(`outlet id must be a positive whole number, not "${first ?? ''}"`, {
-          field: 'outletId',
+      if (first === undefined)
+        throw new InputError('name the outlet: its id or tag (efflux trend FD-2)', {
+          field: 'outlet',
         });
+      const id = (await refusalsAsInput(() => outletByName(store, first, option(argv, 'site'))))
+        .outletId;
       let view: TrendView;
       try {
         view = await outletTrendView(store, id, nowMs);

@@ -91,6 +91,8 @@ function vesselFile(v: DemoVessel) {
   return {
     name: v.name,
     site: SITE,
+    // every demo vessel's name ends with the tag painted on it ("Filter drain tank FD-2")
+    tag: v.name.split(' ').pop(),
     shape: v.shape,
     outlet: v.outlet,
     ...(v.sensor ? { sensor: v.sensor } : {}),

@@ -44,6 +44,7 @@ import { pendingRoutes } from './routes/pending.js';
 import { testRoutes } from './routes/tests.js';
 import { trendRoutes } from './routes/trend.js';
 import { vesselRoutes } from './routes/vessels.js';
+import { vesselRevisionRoutes } from './routes/vessel-revisions.js';
 import { reportRoutes } from './routes/reports.js';
 import { workbenchRoutes } from './routes/workbench.js';
 import { planRoutes } from './routes/plan.js';
@@ -300,6 +301,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
     signInPerMinute: opts.signInPerMinute ?? 10,
   });
   await app.register(vesselRoutes);
+  await app.register(vesselRevisionRoutes);
   await app.register(testRoutes);
   await app.register(pendingRoutes);
   await app.register(fitRoutes);

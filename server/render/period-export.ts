@@ -19,6 +19,8 @@ import type { ZipEntry } from './zip.js';
 
 export interface ExportSelection {
   site?: string;
+  /** Any of these sites (the CLI's --site, matched on part of a name). */
+  sites?: readonly string[];
   /** A vessel id or name. */
   vessel?: string;
   /** YYYY-MM-DD or an ISO time; test dates from (inclusive). */
@@ -58,6 +60,7 @@ export async function selectFits(
   const vessels = (await allVessels(store)).filter(
     (v) =>
       (sel.site === undefined || v.site === sel.site) &&
+      (sel.sites === undefined || sel.sites.includes(v.site)) &&
       (sel.vessel === undefined || String(v.id) === sel.vessel || v.name === sel.vessel),
   );
   if (sel.vessel !== undefined && vessels.length === 0)

@@ -5,6 +5,7 @@ import type { StoreEngine } from './engine.js';
 import { EventRepo } from './events.js';
 import { FitRepo } from './fits.js';
 import { LiveRepo } from './live.js';
+import { NameRepo } from './names.js';
 import { join } from 'node:path';
 import { databasePath } from './maintenance.js';
 import { migrate } from './migrate.js';
@@ -19,6 +20,7 @@ import { TestRepo } from './tests.js';
 import { TrendRepo } from './trends.js';
 import { UserRepo } from './users.js';
 import { VesselRepo } from './vessels.js';
+import { VesselRevisionRepo } from './vessel-revisions.js';
 
 export interface Store {
   /** The one asynchronous way to the database (see sql.ts); repositories use nothing else. */
@@ -37,6 +39,10 @@ export interface Store {
   meta: ServiceMetaRepo;
   /** A person's display choices (units); async on sql. */
   preferences: PreferenceRepo;
+  /** Saved revisions of vessel files and the revision each fit used (migration 007). */
+  vesselRevisions: VesselRevisionRepo;
+  /** Outlets and sites as people name them (CLI look-ups). */
+  names: NameRepo;
   /** Room kept on disk for the compensating step after a full disk (file stores only). */
   reserve: DiskReserve | null;
   close(): Promise<void>;
@@ -127,6 +133,8 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),
     preferences: new PreferenceRepo(c),
+    vesselRevisions: new VesselRevisionRepo(c),
+    names: new NameRepo(c),
     reserve,
     close: () => sql.close(),
   };

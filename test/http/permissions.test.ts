@@ -32,6 +32,9 @@ const TABLE: Record<string, Rule> = {
   'POST /api/vessels/:id/tests': TECH,
   'GET /api/vessels/:id/tests': ALL,
   'GET /api/vessels/:id/fits': ALL,
+  'GET /api/vessels/:id/revisions': ALL,
+  'GET /api/vessels/:id/revisions/:revision': ALL,
+  'GET /api/fits/:id/vessel-revision': ALL,
   'POST /api/vessels/:id/events': ENG,
   'GET /api/vessels/:id/events': ENG_AUD,
   'GET /api/tests/:id': ALL,
@@ -99,6 +102,9 @@ const SCOPE: Record<string, SiteScope> = {
   'POST /api/vessels/:id/tests': 'vessel',
   'GET /api/vessels/:id/tests': 'vessel',
   'GET /api/vessels/:id/fits': 'vessel',
+  'GET /api/vessels/:id/revisions': 'vessel',
+  'GET /api/vessels/:id/revisions/:revision': 'vessel',
+  'GET /api/fits/:id/vessel-revision': 'fit',
   'POST /api/vessels/:id/events': 'vessel',
   'GET /api/vessels/:id/events': 'vessel',
   'GET /api/tests/:id': 'test',
@@ -188,7 +194,11 @@ function pathFor(url: string, r: Records, extra: { person: number; token: number
           : url.startsWith('/api/tokens')
             ? extra.token
             : r.vessel;
-  return url.replace(':id', String(id)).replace(':name', 'main').replace('*', 'index.css');
+  return url
+    .replace(':id', String(id))
+    .replace(':name', 'main')
+    .replace(':revision', '1')
+    .replace('*', 'index.css');
 }
 
 beforeAll(async () => {

@@ -17,6 +17,7 @@ import { peoplePage } from './pages/people.js';
 import { signInPage } from './pages/sign-in.js';
 import { systemsPage } from './pages/systems.js';
 import { vesselPage } from './pages/vessel.js';
+import { canEditVessels, vesselEditPage } from './pages/vessel-edit.js';
 
 export interface PageContext {
   user: User;
@@ -29,6 +30,8 @@ type Page = (ctx: PageContext) => Promise<void>;
 const routes: [RegExp, Page][] = [
   [/^#?\/?$/, fleetPage],
   [/^#\/vessels\/(\d+)$/, vesselPage],
+  [/^#\/vessels\/new$/, vesselEditPage],
+  [/^#\/vessels\/(\d+)\/edit$/, vesselEditPage],
   [/^#\/vessels\/(\d+)\/new-test$/, newTestPage],
   [/^#\/vessels\/(\d+)\/plan$/, planPage],
   [/^#\/vessels\/(\d+)\/outlets\/(\d+)\/compare$/, comparePage],
@@ -56,6 +59,10 @@ function header(): void {
   // the audit log is for auditors and admins; the others are not shown a link they cannot use
   const auditLink = document.querySelector('.bar nav a[href="#/audit"]') as HTMLElement | null;
   if (auditLink) auditLink.hidden = user.role !== 'auditor' && user.role !== 'admin';
+  const newVesselLink = document.querySelector(
+    '.bar nav a[href="#/vessels/new"]',
+  ) as HTMLElement | null;
+  if (newVesselLink) newVesselLink.hidden = !canEditVessels(user);
   const peopleLink = document.querySelector('.bar nav a[href="#/people"]') as HTMLElement | null;
   if (peopleLink) peopleLink.hidden = user.role !== 'admin' || user.sites !== null;
   const out = h('button', { type: 'button', class: 'quiet' }, 'Sign out');

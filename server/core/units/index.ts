@@ -6,3 +6,11 @@ export { temperatureToC, temperatureUnit, type TemperatureUnit } from './tempera
 export { waterDensityKgM3, WATER_DENSITY_RANGE_C } from './density.js';
 export { parseFlow, parseLength } from './parse.js';
 export { normaliseUnit } from './normalise.js';
+export {
+  formatLengthEntry,
+  LENGTH_ENTRY_UNIT_NAMES,
+  LENGTH_ENTRY_UNITS,
+  parseLengthEntry,
+  roundLengthM,
+  type LengthEntryUnit,
+} from './length-entry.js';

@@ -9,7 +9,7 @@ import { crossFieldProblems } from './sanity.js';
 
 export { shapeSchema } from './shape-schema.js';
 
-const OUTLET_TYPES = [
+export const OUTLET_TYPES = [
   'sharp-edged',
   'square-edged-short-tube',
   'rounded',
@@ -64,6 +64,8 @@ const fluidSchema = z.union([
 const vesselObject = z.strictObject({
   name: nameText().min(1),
   site: nameText().optional(),
+  /** The tag painted on the vessel (e.g. "FD-2"): outlets may be named by it (efflux trend FD-2). */
+  tag: tagText().min(1).optional(),
   shape: shapeSchema,
   outlet: outletSchema,
   sensor: sensorSchema.optional(),

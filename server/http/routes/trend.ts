@@ -13,13 +13,11 @@ import {
   STATUS_WORDS,
   thresholdOf,
 } from '../../jobs/trend.js';
-import { ConflictError } from '../../store/errors.js';
+import { setOutletThreshold } from '../../jobs/outlet-settings.js';
 import { actorOf } from '../../store/users.js';
-import { outletsOf } from '../../store/vessels.js';
 import { ENGINEERS_UP, READERS } from '../access.js';
 import { idParams, outlet, paging, problem, protectedErrors } from '../schemas.js';
 import { assertSite, sitesOf } from '../site-scope.js';
-import { checkVesselFile } from '../vessel-file.js';
 import { asOfQuery, fleetView, statusChange, threshold, trendView } from './trend-schemas.js';
 
 export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
@@ -120,25 +118,12 @@ export const trendRoutes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request) => {
-      const o = await app.store.vessels.outlet(request.params.id);
-      if (o.retiredAt !== null)
-        throw new ConflictError(`outlet ${o.id} is retired; it is no longer in the vessel file`);
-      const v = await app.store.vessels.get(o.vesselId);
-      const spec = structuredClone(v.spec);
-      const list = Array.isArray(spec.outlets)
-        ? (spec.outlets as Record<string, unknown>[])
-        : [spec.outlet as Record<string, unknown>];
-      const at = outletsOf(spec).findIndex((x) => x.key === o.key);
-      if (at < 0)
-        throw new InputError(`outlet "${o.key}" is not in vessel ${v.id}'s file`, { field: 'id' });
-      if (request.body.actionThreshold === null) delete list[at].actionThreshold;
-      else list[at].actionThreshold = request.body.actionThreshold;
-      const updated = await app.store.vessels.update(
+      const after = await setOutletThreshold(
+        app.store,
         actorOf(request.user!),
-        v.id,
-        checkVesselFile(spec),
+        request.params.id,
+        request.body.actionThreshold,
       );
-      const after = updated.outlets.find((x) => x.id === o.id)!;
       return { outlet: after, threshold: thresholdOf(after) };
     },
   );

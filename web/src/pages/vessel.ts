@@ -17,6 +17,7 @@ import { current, vesselHistory } from '../history.js';
 import type { PageContext } from '../main.js';
 import type { FullTrend } from '../trend-chart.js';
 import { pendingSection } from './pending-tests.js';
+import { canEditVessels, revisionsSection } from './vessel-edit.js';
 import { maintenanceSection, trendSection } from './vessel-trend.js';
 
 const SHAPE_FIELDS: [string, string][] = [
@@ -72,6 +73,10 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
       h(
         'span',
         { class: 'title-actions' },
+        canEditVessels(user)
+          ? h('a', { href: `#/vessels/${id}/edit`, class: 'button' }, 'Edit vessel')
+          : null,
+        ' ',
         h('a', { href: `#/vessels/${id}/plan`, class: 'button' }, 'Plan a test'),
         ' ',
         canUpload(user)
@@ -230,6 +235,8 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
       { threshold, baseline },
     );
   }
+
+  main.append(await revisionsSection(v));
 
   if (seesMaintenance(user)) main.append(maintenanceSection(id, outlets, events, canReview(user)));
 
