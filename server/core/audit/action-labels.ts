@@ -17,7 +17,9 @@ export const ACTION_LABELS: Readonly<Record<string, string>> = {
   'fit.approve': 'Fit approved',
   'fit.reject': 'Fit rejected',
   'fit.supersede': 'Fit replaced by an approved refit',
-  'joint-fit.create': 'Joint fit of connected vessels made',
+  'joint-fit.create': 'Connected-vessel fit stored',
+  'joint-fit.approve': 'Connected-vessel fit approved',
+  'joint-fit.reject': 'Connected-vessel fit rejected',
   'event.create': 'Maintenance recorded',
   'outlet.status-change': 'Outlet status changed',
   'outlet.interval': 'Outlet test interval changed',
@@ -28,7 +30,7 @@ export const ACTION_LABELS: Readonly<Record<string, string>> = {
   'user.revoke': 'Person revoked (sessions ended)',
   'token.create': 'API token created',
   'token.revoke': 'API token revoked (sessions ended)',
-  'site.settings': 'Site settings changed',
+  'site.settings': 'Site settings changed (self-review, time zone or test interval)',
   'service.mark-demo': 'Data folder marked as the invented demo',
 };
 

@@ -28,8 +28,11 @@ describe('audit action labels', () => {
     for (const file of sources(serverDir)) {
       const text = readFileSync(file, 'utf8');
       for (const m of text.matchAll(/action:\s*'([a-z-]+\.[a-z-]+)'/g)) written.add(m[1]);
-      // actions passed as the last argument of the fits repository's insert ('fit.create', 'fit.refit')
-      for (const m of text.matchAll(/'(fit\.(?:create|refit))'/g)) written.add(m[1]);
+      // fit actions chosen in an expression or passed as an argument ('fit.create', 'fit.approve' …)
+      for (const m of text.matchAll(
+        /'((?:joint-)?fit\.(?:create|refit|approve|reject|supersede))'/g,
+      ))
+        written.add(m[1]);
     }
     expect(written.size).toBeGreaterThan(15);
     const missing = [...written].filter((a) => !(a in ACTION_LABELS));
