@@ -42,10 +42,11 @@ export class DiskReserve {
   }
 
   /** Frees the room, runs the step, and tries to put the room back. */
-  spend<T>(step: () => T): T {
+  async spend<T>(step: () => T | Promise<T>): Promise<T> {
     rmSync(this.path, { force: true });
     try {
-      return step();
+      // awaited here, so the room is made again only after the step has finished writing
+      return await step();
     } finally {
       this.ensure();
     }
