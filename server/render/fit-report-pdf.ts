@@ -42,6 +42,7 @@ import {
   settingsInline,
 } from './report-words.js';
 import { autocorrelationText } from '../core/budget/table.js';
+import { actionLabel } from '../core/audit/action-labels.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
@@ -539,11 +540,18 @@ export async function renderFitReportPdf(
       { title: 'seq', width: 35, align: 'right' },
       { title: 'at', width: 100 },
       { title: 'who', width: 70 },
-      { title: 'action', width: 70 },
+      { title: 'what happened', width: 95 },
       { title: 'entity', width: 50 },
-      { title: 'entry hash', width: 190, mono: true },
+      { title: 'entry hash', width: 165, mono: true },
     ],
-    r.audit.map((a) => [String(a.seq), dateText(a.at), a.actor, a.action, a.entity, a.hash]),
+    r.audit.map((a) => [
+      String(a.seq),
+      dateText(a.at),
+      a.actor,
+      actionLabel(a.action), // the code stays in the report JSON; the page prints words
+      a.entity,
+      a.hash,
+    ]),
   );
 
   heading(doc, 'Software and scope');

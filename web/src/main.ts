@@ -7,6 +7,7 @@ import { api, ApiError, type User } from './api.js';
 import { clear, h, notice } from './dom.js';
 import { setDisplayUnits, UNIT_SYSTEM_WORDS, type UnitSystem } from './format.js';
 import { auditPage } from './pages/audit.js';
+import { comparePage } from './pages/compare.js';
 import { fitPage } from './pages/fit.js';
 import { fleetPage } from './pages/fleet.js';
 import { newTestPage } from './pages/new-test.js';
@@ -33,6 +34,7 @@ const routes: [RegExp, Page][] = [
   [/^#\/vessels\/(\d+)\/edit$/, vesselEditPage],
   [/^#\/vessels\/(\d+)\/new-test$/, newTestPage],
   [/^#\/vessels\/(\d+)\/plan$/, planPage],
+  [/^#\/vessels\/(\d+)\/outlets\/(\d+)\/compare$/, comparePage],
   [/^#\/vessels\/(\d+)\/live$/, liveOpenPage],
   [/^#\/live\/([0-9a-f-]{36})$/, livePage],
   [/^#\/fits\/(\d+)$/, fitPage],

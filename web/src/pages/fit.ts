@@ -191,6 +191,33 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
       ),
     );
 
+  // the evidence as uploaded: the stored bytes under their original names (GET /api/tests/:id/raw)
+  main.append(
+    h(
+      'p',
+      { class: 'raw-files' },
+      'Raw logger file: ',
+      h(
+        'a',
+        { href: `/api/tests/${test.id}/raw`, download: test.fileName, id: 'raw-log' },
+        test.fileName,
+      ),
+      ` (${test.size} bytes, SHA-256 `,
+      h('code', { title: test.sha256 }, `${test.sha256.slice(0, 12)}…`),
+      ')',
+      ...(test.baro
+        ? [
+            ' · barometric log: ',
+            h(
+              'a',
+              { href: `/api/tests/${test.id}/raw?file=baro`, download: test.baro.fileName },
+              test.baro.fileName,
+            ),
+          ]
+        : []),
+    ),
+  );
+
   // headline numbers
   const k = cd?.coverageFactor;
   main.append(
