@@ -104,7 +104,9 @@ export function geometryWords(shape: unknown, units: UnitSystem): string {
   const parts = [SHAPE_NAMES[kind] ?? `shape "${kind}"`];
   const dim = (label: string, key: string, tolKey?: string) => {
     if (num(s[key]) !== null)
-      parts.push(`${label} ${metresText(num(s[key]), units)}${tolKey ? mmTol(s[tolKey], units) : ''}`);
+      parts.push(
+        `${label} ${metresText(num(s[key]), units)}${tolKey ? mmTol(s[tolKey], units) : ''}`,
+      );
   };
   if (kind === 'table') {
     const pts = Array.isArray(s.points) ? (s.points as [number, number][]) : [];

@@ -78,11 +78,9 @@ interface Rendered {
 
 async function renderFit(fileName: string): Promise<Rendered> {
   const layout: LayoutEntry[] = [];
-  const pdf = await renderFitReportPdf(
-    await fitReport(store, fitOf[fileName], SOFTWARE),
-    'si',
-    { layout },
-  );
+  const pdf = await renderFitReportPdf(await fitReport(store, fitOf[fileName], SOFTWARE), 'si', {
+    layout,
+  });
   const file = join(out, `fit-${fileName.replace(/[^\w.-]/g, '_')}.pdf`);
   writeFileSync(file, pdf);
   return { file, layout };

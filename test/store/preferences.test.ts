@@ -6,9 +6,8 @@ describe('display preferences (migration 006)', () => {
   it('SI until chosen; a choice is kept per person; the table refuses anything but si and us', async () => {
     const store = await openTestStore({ now: () => '2026-12-05T08:00:00.000Z' });
     try {
-      const a = (
-        await store.users.createToken(SYSTEM_ACTOR, 'A. Fenwick (fictional)', 'engineer')
-      ).user;
+      const a = (await store.users.createToken(SYSTEM_ACTOR, 'A. Fenwick (fictional)', 'engineer'))
+        .user;
       const b = (
         await store.users.createToken(SYSTEM_ACTOR, 'B. Reedling (fictional)', 'technician')
       ).user;
