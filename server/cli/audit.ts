@@ -6,6 +6,7 @@
 import { verifyRecords } from '../jobs/verify-records.js';
 import { openStore } from '../store/index.js';
 import { storeLocation } from './serve-config.js';
+import { countText } from '../core/format/words.js';
 
 export async function run(argv: string[]): Promise<number> {
   if (argv[0] !== 'verify') {
@@ -35,7 +36,7 @@ export async function run(argv: string[]): Promise<number> {
     }
     if (records.undatedTests.length) {
       out.push(
-        `note: ${records.undatedTests.length} old test(s) have no date and stay out of the trend:`,
+        `note: ${countText(records.undatedTests.length, 'old test')} ${records.undatedTests.length === 1 ? 'has' : 'have'} no date and stay out of the trend:`,
       );
       for (const u of records.undatedTests) out.push(`  test ${u.testId}: ${u.reason}`);
     }

@@ -1,4 +1,5 @@
 import { writeFileSync, renameSync } from 'node:fs';
+import { basename } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { analyzeDrainTest, expandWorkbook } from '../core/analyze.js';
 import { textReport } from '../core/analysis/text-report.js';
@@ -7,8 +8,10 @@ import { parseVesselFile } from '../core/vessel/schema.js';
 import { fitSvg } from '../render/fit-svg.js';
 import { EXIT_NOT_CONVERGED, EXIT_OK, EXIT_REFUSED, guarded, readInputFile } from './io.js';
 import { READ_OPTIONS, parseCommandLine, settingsFrom } from './options.js';
+import { UNITS_HELP, unitsFrom } from './units-option.js';
+import { comparedFit, comparisonLines, type ComparedFit } from '../core/compare/table.js';
 
-const USAGE = `usage: efflux fit <log.csv> [more logs…] --vessel <vessel.json> [options]
+const USAGE = () => `usage: efflux fit <log.csv> [more logs…] --vessel <vessel.json> [options]
 
 Fits the outlet's effective area Cd·a and discharge coefficient Cd to a drain test log.
 
@@ -27,6 +30,9 @@ reading (when the file does not say it):
 output:
   --json                 one JSON object on stdout (one per line for several logs)
   --plot FILE.svg        a picture of the log, the window, the fitted curve and the residuals
+  ${UNITS_HELP}
+With several logs the text ends with a comparison table: Cd·a, Cd and their expanded uncertainties,
+  and for each pair the difference, its expanded uncertainty and the E_n number (|E_n| ≤ 1: agree).
 exit codes: 0 done, 2 input refused (the message names the file, line or field), 3 fitted but the
   fit did not converge (do not use its numbers; with several logs, 2 wins over 3), other: internal fault.
 `;
@@ -39,9 +45,10 @@ export async function runFit(argv: string[]): Promise<number> {
       'fit-datum': { type: 'boolean' },
       'fit-exponent': { type: 'boolean' },
       plot: { type: 'string' },
+      units: { type: 'string' },
     });
     if (values.help) {
-      process.stdout.write(USAGE);
+      process.stdout.write(USAGE());
       return EXIT_OK;
     }
     if (positionals.length === 0)
@@ -54,6 +61,7 @@ export async function runFit(argv: string[]): Promise<number> {
       );
     if (values.plot && positionals.length > 1)
       throw new InputError('--plot takes one log at a time');
+    const units = unitsFrom(values.units);
     const settings = settingsFrom(values);
     const vesselFile = readInputFile(values.vessel, 1024 * 1024);
     const vessel = parseVesselFile(new TextDecoder().decode(vesselFile.bytes), values.vessel);
@@ -61,6 +69,7 @@ export async function runFit(argv: string[]): Promise<number> {
     const batch = positionals.length > 1;
     let refused = 0;
     let unconverged = 0;
+    const compared: ComparedFit[] = [];
     for (const [i, path] of positionals.entries()) {
       if (batch) process.stderr.write(`[${i + 1}/${positionals.length}] ${path}\n`);
       try {
@@ -81,8 +90,11 @@ export async function runFit(argv: string[]): Promise<number> {
           process.stdout.write(body + '\n');
         } else {
           if (batch) process.stdout.write(`\n== ${path}\n`);
-          process.stdout.write(textReport(outcome.fit));
+          process.stdout.write(textReport(outcome.fit, { units }));
         }
+        compared.push(
+          comparedFit(basename(path), outcome.fit as unknown as Record<string, unknown>),
+        );
         if (values.plot) writeAtomically(values.plot, fitSvg(outcome.fit));
         if (!outcome.fit.converged) {
           unconverged++;
@@ -96,6 +108,8 @@ export async function runFit(argv: string[]): Promise<number> {
         process.stderr.write(`efflux: ${err.toLine()}\n`);
       }
     }
+    if (batch && !values.json && compared.length > 1)
+      process.stdout.write(`\n${comparisonLines(compared, units).join('\n')}\n`);
     if (batch)
       process.stderr.write(
         `${positionals.length - refused} fitted (${unconverged} not converged), ${refused} refused\n`,

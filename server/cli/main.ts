@@ -4,6 +4,7 @@
  * `run(argv: string[]): Promise<number>` (the exit code); modules load only when used, so
  * `efflux fit` never loads the server.
  */
+import { helpColumns } from './help-columns.js';
 import { EXIT_INTERNAL, EXIT_REFUSED } from './io.js';
 
 /** Service-side commands load by name so the offline commands never pull in the server. */
@@ -115,7 +116,7 @@ function usage(): string {
     '',
     'commands:',
   ];
-  for (const [name, c] of Object.entries(COMMANDS)) lines.push(`  ${name.padEnd(10)}${c.summary}`);
+  lines.push(...helpColumns(Object.entries(COMMANDS).map(([name, c]) => [name, c.summary])));
   lines.push(
     '',
     'Drain tests involve work at height, confined spaces and discharges: follow site procedures.',

@@ -21,14 +21,17 @@ import { NotFoundError } from '../store/errors.js';
 import { guarded, readInputFile } from './io.js';
 import { outletByName } from './names.js';
 import { parseCommandLine } from './options.js';
+import { UNITS_HELP, unitsFrom } from './units-option.js';
 import { storeLocation } from './serve-config.js';
 
-const USAGE = `usage:
-  efflux report fit <fitId> --out FILE [--json]            one fit's report (PDF, or JSON with --json)
-  efflux report outlet OUTLET --out FILE [--json] [--as-of TIME]
-                                                           an outlet's approved fits and trend
-                                                           (OUTLET: its id, its tag, or VESSEL/OUTLET)
-  efflux report verify <file.pdf|file.json>                check a report against the records
+const USAGE = () => `usage:
+  efflux report fit <fitId> --out FILE [--json | --units si|us]
+      one fit's report (PDF, or JSON with --json)
+  efflux report outlet OUTLET --out FILE [--json | --units si|us] [--as-of TIME]
+      an outlet's approved fits and trend (OUTLET: its id, its tag, or VESSEL/OUTLET)
+  efflux report verify <file.pdf|file.json>
+      check a report against the records (a PDF is re-rendered in the units it names)
+  ${UNITS_HELP}
 The database is the one in EFFLUX_DATA_DIR (default ./data), as for efflux serve.
 `;
 
@@ -36,6 +39,7 @@ const OPTIONS = {
   out: { type: 'string' },
   json: { type: 'boolean' },
   'as-of': { type: 'string' },
+  units: { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
@@ -63,10 +67,19 @@ export async function run(argv: string[]): Promise<number> {
     const { values, positionals } = parseCommandLine(argv, OPTIONS);
     const [sub, arg] = positionals;
     if (values.help || !sub) {
-      process.stdout.write(USAGE);
+      process.stdout.write(USAGE());
       return values.help ? 0 : 2;
     }
+    const units = unitsFrom(values.units);
+    // an option the command would ignore is refused, naming it
+    const ignored = (name: string, why: string) => {
+      throw new InputError(`--${name} ${why}; leave it out`, { field: name });
+    };
     if (sub === 'verify') {
+      if (values.units !== undefined)
+        ignored('units', 'has no effect on verify (a PDF names its own units)');
+      if (values['as-of'] !== undefined) ignored('as-of', 'has no effect on verify');
+      if (values.out !== undefined) ignored('out', 'has no effect on verify');
       if (!arg) throw new InputError('name the report file to verify');
       const file = readInputFile(arg);
       return withStore((store) =>
@@ -91,6 +104,10 @@ export async function run(argv: string[]): Promise<number> {
       throw new InputError(`unknown report "${sub}" (fit, outlet or verify)`);
     if (sub === 'fit') idArg(arg, sub);
     else if (!arg) throw new InputError('name the outlet: its id or tag');
+    if (values.json && values.units !== undefined)
+      ignored('units', 'has no effect with --json (JSON reports are in SI)');
+    if (sub === 'fit' && values['as-of'] !== undefined)
+      ignored('as-of', "is for outlet reports (a fit's report has no as-of date)");
     if (!values.out) throw new InputError('say where to write the report: --out FILE');
     const out = values.out;
     return withStore((store) =>
@@ -105,8 +122,8 @@ export async function run(argv: string[]): Promise<number> {
         const bytes = values.json
           ? Buffer.from(reportJson(report as unknown as Record<string, unknown>))
           : sub === 'fit'
-            ? await renderFitReportPdf(report as never)
-            : await renderOutletReportPdf(report as never);
+            ? await renderFitReportPdf(report as never, units)
+            : await renderOutletReportPdf(report as never, units);
         writeFileSync(out, bytes);
         process.stdout.write(
           `${basename(out)}: ${sub} report ${report.reportId}, ${bytes.length} bytes, ${Math.round(performance.now() - t0)} ms\n`,

@@ -20,6 +20,7 @@ import { openStore, SYSTEM_ACTOR, type Store } from '../store/index.js';
 import { EXIT_REFUSED } from './io.js';
 import { parseCommandLine } from './options.js';
 import { serveConfig } from './serve-config.js';
+import { countText } from '../core/format/words.js';
 
 const say = (line: string) => process.stdout.write(`${line}\n`);
 
@@ -27,7 +28,7 @@ const say = (line: string) => process.stdout.write(`${line}\n`);
 export class DemoRefusedError extends Error {
   constructor(dataDir: string, vessels: number, tests: number) {
     super(
-      `the data folder ${dataDir} holds real records (${vessels} vessel(s), ${tests} test(s)): the invented demo is loaded ` +
+      `the data folder ${dataDir} holds real records (${countText(vessels, 'vessel')}, ${countText(tests, 'test')}): the invented demo is loaded ` +
         'only into an empty folder; run the demo in its own (npm start uses ./data-demo)',
     );
     this.name = 'DemoRefusedError';
@@ -118,7 +119,7 @@ export async function run(argv: string[]): Promise<number> {
   const undated = await store.tests.undated();
   if (undated.length)
     say(
-      `note: ${undated.length} old test(s) have no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`,
+      `note: ${countText(undated.length, 'old test')} ${undated.length === 1 ? 'has' : 'have'} no date (no date stated, elapsed-time log) and stay out of the trend: ${undated.map((u) => u.testId).join(', ')} (efflux audit verify lists why)`,
     );
 
   const app = await buildApp({

@@ -16,12 +16,19 @@ import { NotFoundError, openStore } from '../store/index.js';
 import { guarded } from './io.js';
 import { outletByName, refusalsAsInput, sitesByPart } from './names.js';
 import { storeLocation } from './serve-config.js';
+import { clipText, countText } from '../core/format/words.js';
+import { daysText } from '../core/format/duration.js';
+import { toU } from '../core/format/digits.js';
+import { uncertaintyText } from '../core/format/uncertainty.js';
+import { displayUnit, type UnitSystem } from '../core/format/unit-system.js';
+import { UNITS_HELP, unitsFrom } from './units-option.js';
 
-const USAGE = `usage: efflux trend OUTLET [--site PART] [--json|--csv] [--as-of DATE]
+const USAGE = `usage: efflux trend OUTLET [--site PART] [--json|--csv] [--as-of DATE] [--units si|us]
        efflux trend --fleet [--json] [--site PART] [--status WORD[,WORD…]] [--as-of DATE]
 OUTLET is an outlet id, its tag, a vessel tag with one outlet (efflux trend FD-2), or VESSEL/OUTLET;
 --site matches any part of a site's name, in any case, and says which sites it matched.
 Reads the service's data folder (EFFLUX_DATA_DIR, default ./data). Status words: ${STATUS_WORDS.join(', ')}.
+  ${UNITS_HELP}
 `;
 
 function option(argv: string[], name: string): string | undefined {
@@ -36,7 +43,8 @@ function option(argv: string[], name: string): string | undefined {
 }
 
 const day = (ms: number | null) => (ms === null ? '—' : new Date(ms).toISOString().slice(0, 10));
-const days = (d: number | null) => (d === null ? '—' : `${Math.round(d)}`);
+/** Days to the threshold: whole days up to 90, then months or years (core/format/duration). */
+const days = (d: number | null) => (d === null ? '—' : daysText(d));
 
 /** A small picture of the Cd·a change against time: one column per test, threshold as '-'. */
 export function asciiChart(view: TrendView, width = 60, height = 10): string[] {
@@ -72,24 +80,28 @@ export function asciiChart(view: TrendView, width = 60, height = 10): string[] {
   ];
 }
 
-function trendText(v: TrendView): string {
+function trendText(v: TrendView, units: UnitSystem): string {
+  const area = displayUnit('area', units);
   const s = v.status;
   const out = [
     `outlet ${v.outlet.id} "${v.outlet.key}" of ${v.outlet.vesselName} (${v.outlet.site})${v.outlet.retired ? ', retired' : ''}, as of ${day(v.nowMs)}`,
     `status: ${s.status} — ${s.reason}`,
-    `threshold: ${v.threshold.pct} % (${v.threshold.source}); days to threshold: ${days(s.daysToThreshold)}`,
+    `threshold: ${v.threshold.pct} % (${v.threshold.source}); time to threshold: ${days(s.daysToThreshold)}`,
     `next test: ${v.schedule.reason}`,
   ];
   for (const e of v.epochs) {
     out.push(
       '',
-      `epoch ${e.index}${e.startedBy ? ` (after ${e.startedBy.kind} on ${day(e.startedBy.atMs)})` : ''}: ${e.series.length} approved test(s)`,
+      `epoch ${e.index}${e.startedBy ? ` (after ${e.startedBy.kind} on ${day(e.startedBy.atMs)})` : ''}: ${countText(e.series.length, 'approved test')}`,
     );
-    out.push('  tested       fit   Cd·a (m²)      u(Cd·a)      Cd       u(Cd)    change %');
+    out.push(
+      `  tested       fit  ${`Cd·a (${area.symbol})`.padStart(12)}  ${`u(Cd·a)`.padStart(9)}  ${'Cd'.padStart(7)}  ${'u(Cd)'.padStart(7)}  change %`,
+    );
     for (const p of e.series) {
+      const ua = p.effectiveAreaU * area.perSi;
       out.push(
-        `  ${p.testedAt.slice(0, 10)} ${String(p.fitId).padStart(5)}   ${p.effectiveAreaM2.toExponential(5)}  ${p.effectiveAreaU.toExponential(2)}  ` +
-          `${p.dischargeCoefficient.toFixed(4)}  ${p.dischargeCoefficientU.toFixed(4)}  ${p.changePct.toFixed(2).padStart(7)}${p.isBaseline ? '  baseline' : ''}`,
+        `  ${p.testedAt.slice(0, 10)} ${String(p.fitId).padStart(5)}  ${toU(p.effectiveAreaM2 * area.perSi, ua).padStart(12)}  ${uncertaintyText(ua).padStart(9)}  ` +
+          `${toU(p.dischargeCoefficient, p.dischargeCoefficientU).padStart(7)}  ${uncertaintyText(p.dischargeCoefficientU).padStart(7)}  ${p.changePct.toFixed(2).padStart(8)}${p.isBaseline ? '  baseline' : ''}`,
       );
     }
     if (e.area)
@@ -111,21 +123,30 @@ function trendText(v: TrendView): string {
   return out.join('\n') + '\n';
 }
 
-function fleetText(f: FleetView): string {
+/** The fleet as listed: the counts are of the outlets shown (after --status), not of the whole fleet. */
+export function fleetText(f: FleetView, statusFilter?: readonly string[]): string {
+  const listed: Record<string, number> = {};
+  for (const i of f.items) listed[i.status] = (listed[i.status] ?? 0) + 1;
+  const inAll = Object.values(f.counts).reduce((a, n) => a + n, 0);
   const out = [
-    `fleet as of ${day(f.nowMs)}: ${f.items.length} outlet(s); ` +
-      Object.entries(f.counts)
-        .filter(([, n]) => n > 0)
-        .map(([w, n]) => `${n} ${w}`)
-        .join(', '),
+    `fleet as of ${day(f.nowMs)}: ${countText(f.items.length, 'outlet')}` +
+      (statusFilter?.length
+        ? ` with status ${statusFilter.join(' or ')} (of ${inAll} in all)`
+        : '') +
+      (f.items.length
+        ? '; ' +
+          Object.entries(listed)
+            .map(([w, n]) => `${n} ${w}`)
+            .join(', ')
+        : ''),
   ];
   out.push(
-    '  outlet  vessel / outlet                      site                 status             days  crossing',
+    '  outlet  vessel / outlet                      site                 status             to threshold  crossing',
   );
   for (const i of f.items) {
     out.push(
-      `  ${String(i.outletId).padStart(6)}  ${`${i.vesselName} / ${i.outletKey}`.slice(0, 35).padEnd(35)}  ${i.site.slice(0, 19).padEnd(19)}  ` +
-        `${i.status.padEnd(17)}  ${days(i.daysToThreshold).padStart(5)}  ${i.crossingAt ? i.crossingAt.slice(0, 10) : '—'}`,
+      `  ${String(i.outletId).padStart(6)}  ${clipText(`${i.vesselName} / ${i.outletKey}`, 35).padEnd(35)}  ${clipText(i.site, 19).padEnd(19)}  ` +
+        `${i.status.padEnd(17)}  ${days(i.daysToThreshold).padStart(12)}  ${i.crossingAt ? i.crossingAt.slice(0, 10) : '—'}`,
     );
   }
   return out.join('\n') + '\n';
@@ -149,6 +170,7 @@ export async function run(argv: string[]): Promise<number> {
     const csv = argv.includes('--csv');
     if (json && csv) throw new InputError('give --json or --csv, not both', { field: 'json' });
     const nowMs = asOfMs(argv);
+    const units = unitsFrom(option(argv, 'units'));
     const store = await openStore(storeLocation());
     try {
       if (argv.includes('--fleet')) {
@@ -168,11 +190,13 @@ export async function run(argv: string[]): Promise<number> {
                 (json ? process.stderr : process.stdout).write(`${l}\n`),
               );
         const f = await fleetStatus(store, { sites, status: words as never }, nowMs);
-        process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f));
+        process.stdout.write(json ? JSON.stringify(f, null, 2) + '\n' : fleetText(f, words));
         return 0;
       }
       const first = argv.find(
-        (a, i) => !a.startsWith('--') && !['--as-of', '--site', '--status'].includes(argv[i - 1]),
+        (a, i) =>
+          !a.startsWith('--') &&
+          !['--as-of', '--site', '--status', '--units'].includes(argv[i - 1]),
       );
       if (first === undefined)
         throw new InputError('name the outlet: its id or tag (efflux trend FD-2)', {
@@ -188,7 +212,11 @@ export async function run(argv: string[]): Promise<number> {
         throw e;
       }
       process.stdout.write(
-        json ? JSON.stringify(view, null, 2) + '\n' : csv ? historyCsv(view) : trendText(view),
+        json
+          ? JSON.stringify(view, null, 2) + '\n'
+          : csv
+            ? historyCsv(view)
+            : trendText(view, units),
       );
       return 0;
     } finally {

@@ -37,6 +37,7 @@ import { auditRoutes } from './routes/audit.js';
 import { eventRoutes } from './routes/events.js';
 import { fitRoutes } from './routes/fits.js';
 import { fitPeopleRoutes } from './routes/fit-people.js';
+import { compareRoutes } from './routes/compare.js';
 import { healthRoutes } from './routes/health.js';
 import { sessionRoutes } from './routes/session.js';
 import { systemRoutes } from './routes/systems.js';
@@ -308,6 +309,7 @@ export async function buildApp(opts: AppOptions): Promise<FastifyInstance> {
   await app.register(pendingRoutes);
   await app.register(fitRoutes);
   await app.register(fitPeopleRoutes);
+  await app.register(compareRoutes);
   await app.register(eventRoutes);
   await app.register(trendRoutes);
   await app.register(auditRoutes);

@@ -101,7 +101,7 @@ export class ExportJobs {
     const signal = AbortSignal.any([limit, job.abort.signal]);
     try {
       const r = await periodExport(this.o.store, job.selection, this.o.software(), {
-        renderPdf: (report) => this.o.tasks('fit-report-pdf', report, { signal }),
+        renderPdf: (report) => this.o.tasks('fit-report-pdf', { report, units: 'si' }, { signal }),
         assemble: (a) =>
           this.o.tasks('zip', a, { signal, transfer: a.entries.map((e) => e.bytes) }),
         onProgress: (done, total) => {

@@ -5,6 +5,7 @@
  */
 import type { AnalysisRequest } from '../core/analysis-contract.js';
 import type { FitReport, OutletReport } from '../core/report/index.js';
+import type { UnitSystem } from '../core/format/unit-system.js';
 import type { JointFitReport } from '../core/report/joint-fit-report.js';
 import { renderFitReportPdf } from '../render/fit-report-pdf.js';
 import { renderJointFitReportPdf } from '../render/joint-fit-report-pdf.js';
@@ -14,8 +15,9 @@ import { systemFitAnswer, type SystemFitInput } from './system-fit.js';
 import { inspectAnswer, seriesAnswer, type SeriesRequest } from './workbench-read.js';
 
 export interface TaskIo {
-  'fit-report-pdf': { input: FitReport; output: Uint8Array };
-  'outlet-report-pdf': { input: OutletReport; output: Uint8Array };
+  /** A report and the units it is written in (the asker's preference; core/format). */
+  'fit-report-pdf': { input: { report: FitReport; units: UnitSystem }; output: Uint8Array };
+  'outlet-report-pdf': { input: { report: OutletReport; units: UnitSystem }; output: Uint8Array };
   zip: { input: ExportAssembly; output: Uint8Array };
   inspect: { input: AnalysisRequest; output: Uint8Array };
   series: { input: SeriesRequest; output: Uint8Array };
@@ -32,10 +34,14 @@ export async function runTask<K extends TaskKind>(
   input: TaskInput<K>,
 ): Promise<TaskOutput<K>> {
   switch (kind) {
-    case 'fit-report-pdf':
-      return (await renderFitReportPdf(input as FitReport)) as TaskOutput<K>;
-    case 'outlet-report-pdf':
-      return (await renderOutletReportPdf(input as OutletReport)) as TaskOutput<K>;
+    case 'fit-report-pdf': {
+      const { report, units } = input as TaskIo['fit-report-pdf']['input'];
+      return (await renderFitReportPdf(report, units)) as TaskOutput<K>;
+    }
+    case 'outlet-report-pdf': {
+      const { report, units } = input as TaskIo['outlet-report-pdf']['input'];
+      return (await renderOutletReportPdf(report, units)) as TaskOutput<K>;
+    }
     case 'zip':
       return assembleExport(input as ExportAssembly) as TaskOutput<K>;
     case 'inspect':

@@ -13,19 +13,24 @@ import {
   type RenderOptions,
 } from './pdf-layout.js';
 import {
-  areaText,
   bytesText,
   dateText,
+  DEFAULT_UNIT_SYSTEM,
   displayUnit,
   fixedText,
-  flowText,
   metresText,
   millimetresText,
+  numberIn,
   quantityText,
+  resultText,
+  shownUnit,
   sig,
   toU,
   uncertaintyIn,
-  valueIn,
+  unitsNote,
+  uText,
+  valueToU,
+  type UnitSystem,
 } from './report-format.js';
 import {
   fluidWords,
@@ -37,6 +42,7 @@ import {
   settingsInline,
 } from './report-words.js';
 import { autocorrelationText } from '../core/budget/table.js';
+import { actionLabel } from '../core/audit/action-labels.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
@@ -56,7 +62,10 @@ export function fitReportMark(r: FitReport): DocIdentity['mark'] {
   return undefined;
 }
 
-export function fitReportIdentity(r: FitReport): DocIdentity {
+export function fitReportIdentity(
+  r: FitReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): DocIdentity {
   const mark = fitReportMark(r);
   return {
     ...(mark ? { mark } : {}),
@@ -68,6 +77,7 @@ export function fitReportIdentity(r: FitReport): DocIdentity {
     dateIso: r.issuedAt,
     extra: {
       EffluxFitId: String(r.fitId),
+      EffluxUnits: units,
       EffluxSoftware: `${r.software.name} ${r.software.version} ${r.software.gitCommit}`,
     },
     json: reportJson(r as unknown as Record<string, unknown>),
@@ -78,15 +88,16 @@ export function fitReportIdentity(r: FitReport): DocIdentity {
 const dof = (v: number | null) =>
   v !== null && v >= 1e6 ? '> 10⁶ (treated as infinite)' : `= ${sig(v, 4)}`;
 
-function quantityRows(q: ReportQuantity): [string, string][] {
+function quantityRows(q: ReportQuantity, units: UnitSystem): [string, string][] {
   const u = q.standardUncertainty;
-  const shown = displayUnit(q.unit).unit;
-  const unit = shown ? ` ${shown}` : '';
+  const { symbol } = shownUnit(q.unit, units);
+  const unit = symbol ? ` ${symbol}` : '';
   return [
-    [`${q.name}, ${q.symbol}`, `${valueIn(q.value, u, q.unit)}${unit}`],
+    // value ± U: the same string the CLI text report and the fit page print (core/format)
+    [`${q.name}, ${q.symbol}`, resultText(q.value, q.expandedUncertainty, q.unit, units)],
     [
       'standard uncertainty u',
-      `${uncertaintyIn(u, q.unit)}${unit}  (relative ${u !== null ? sig((100 * u) / Math.abs(q.value), 2) : '—'} %)`,
+      `${uText(u, q.unit, units)}  (relative ${u !== null ? sig((100 * u) / Math.abs(q.value), 2) : '—'} %)`,
     ],
     [
       'coverage factor k',
@@ -94,18 +105,18 @@ function quantityRows(q: ReportQuantity): [string, string][] {
     ],
     [
       'expanded uncertainty U = k·u',
-      `${uncertaintyIn(q.expandedUncertainty, q.unit)}${unit}  (coverage probability about 95 %)`,
+      `${uText(q.expandedUncertainty, q.unit, units)}  (coverage probability about 95 %)`,
     ],
     [
       'interval',
       q.interval95
-        ? `${valueIn(q.interval95[0], u, q.unit)} … ${valueIn(q.interval95[1], u, q.unit)}${unit}`
+        ? `${valueToU(q.interval95[0], u, q.unit, units)} … ${valueToU(q.interval95[1], u, q.unit, units)}${unit}`
         : '—',
     ],
   ];
 }
 
-function charts(doc: Doc, r: FitReport): void {
+function charts(doc: Doc, r: FitReport, units: UnitSystem): void {
   const { log, window: win } = r.plot;
   const wt = win.timeS.map((t) => t + win.offsetS);
   // minutes once the log is longer than ten minutes: ticks a reader can count
@@ -116,6 +127,13 @@ function charts(doc: Doc, r: FitReport): void {
   const logT = log.timeS.map((t) => t * f);
   const winT = wt.map((t) => t * f);
   const xLabel = `time from the start of the log, ${unit}`;
+  // levels in m (ft), residuals in mm (in): the reader's units (core/format)
+  const level = displayUnit('length', units);
+  const small = displayUnit('smallLength', units);
+  const toLevel = (ys: number[]) => ys.map((y) => y * level.perSi);
+  const logY = toLevel(log.levelM);
+  const fittedY = toLevel(win.fittedM);
+  const observedY = toLevel(win.observedM);
   figure(doc, {
     title: 'Figure 1. The log and the fitted drain',
     caption: `Grey: every reading of the log; dashed verticals: the drain window (${sig(r.window.startS * f, 4)} to ${sig(r.window.endS * f, 4)} ${unit}); blue points: the readings inside the window, drawn over the fitted model (red line).`,
@@ -123,15 +141,15 @@ function charts(doc: Doc, r: FitReport): void {
     draw: (frame) =>
       drawChart(doc, frame, {
         xDomain: domainOf(logT, winT),
-        yDomain: domainOf(log.levelM, win.fittedM),
+        yDomain: domainOf(logY, fittedY),
         xLabel,
-        yLabel: 'reading, m',
+        yLabel: `reading, ${level.symbol}`,
         layers: [
-          { kind: 'line', xs: logT, ys: log.levelM, color: GREY, width: 0.7 },
+          { kind: 'line', xs: logT, ys: logY, color: GREY, width: 0.7 },
           { kind: 'vline', x: r.window.startS * f, color: '#5b6670', dash: 2 },
           { kind: 'vline', x: r.window.endS * f, color: '#5b6670', dash: 2 },
-          { kind: 'line', xs: winT, ys: win.fittedM, color: RED, width: 1.1 },
-          { kind: 'points', xs: winT, ys: win.observedM, color: BLUE, radius: 0.55 },
+          { kind: 'line', xs: winT, ys: fittedY, color: RED, width: 1.1 },
+          { kind: 'points', xs: winT, ys: observedY, color: BLUE, radius: 0.55 },
         ],
         legend: [
           { label: 'whole log', color: GREY },
@@ -140,7 +158,7 @@ function charts(doc: Doc, r: FitReport): void {
         ],
       }),
   });
-  const resid = win.observedM.map((o, i) => 1000 * (o - win.fittedM[i]));
+  const resid = win.observedM.map((o, i) => small.perSi * (o - win.fittedM[i]));
   figure(doc, {
     title: 'Figure 2. Residuals in the window',
     caption: `Residual = reading − fitted model, at the ${win.timeS.length} points drawn (the analysis thins long logs for drawing; the statistics below use all ${r.window.samples} samples). A pattern rather than scatter about zero means the model misses something.`,
@@ -150,7 +168,7 @@ function charts(doc: Doc, r: FitReport): void {
         xDomain: domainOf(winT),
         yDomain: domainOf(resid, [0]),
         xLabel,
-        yLabel: 'residual, mm',
+        yLabel: `residual, ${small.symbol}`,
         layers: [
           { kind: 'hline', y: 0, color: '#5b6670' },
           { kind: 'points', xs: winT, ys: resid, color: BLUE, radius: 0.7 },
@@ -159,8 +177,12 @@ function charts(doc: Doc, r: FitReport): void {
   });
 }
 
-export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {}): Promise<Buffer> {
-  const id = fitReportIdentity(r);
+export async function renderFitReportPdf(
+  r: FitReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+  opts: RenderOptions = {},
+): Promise<Buffer> {
+  const id = fitReportIdentity(r, units);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Drain-test fit report', MARGIN, doc.y);
   doc
@@ -174,6 +196,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
       ['report id', r.reportId],
       ['content SHA-256', r.contentSha256],
       ['fit', `${r.fitId} (${r.status}); issued ${dateText(r.issuedAt)}`],
+      ['units', unitsNote(units)],
     ],
     130,
     { monoValues: true },
@@ -181,16 +204,16 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
 
   heading(doc, 'Result');
   if (r.results.dischargeCoefficient)
-    fields(doc, quantityRows(r.results.dischargeCoefficient), 160);
+    fields(doc, quantityRows(r.results.dischargeCoefficient, units), 160);
   doc.moveDown(0.3);
-  fields(doc, quantityRows(r.results.effectiveArea), 160);
+  fields(doc, quantityRows(r.results.effectiveArea, units), 160);
   if (r.results.profileInterval95M2)
     fields(
       doc,
       [
         [
           'profile-likelihood interval',
-          `${valueIn(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty, 'm²')} … ${areaText(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty)}`,
+          `${valueToU(r.results.profileInterval95M2[0], r.results.effectiveArea.standardUncertainty, 'm²', units)} … ${valueToU(r.results.profileInterval95M2[1], r.results.effectiveArea.standardUncertainty, 'm²', units)} ${shownUnit('m²', units).symbol}`,
         ],
       ],
       160,
@@ -202,7 +225,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
       [
         [
           'inflow during the drain, Q_in',
-          `${flowText(inflow.value, inflow.standardUncertainty)} ± ${uncertaintyIn(inflow.expandedUncertainty, 'm³/s')} L/s (U, k = ${sig(inflow.coverageFactor, 3)}): a passing inlet or other constant inflow, fitted`,
+          `${resultText(inflow.value, inflow.expandedUncertainty, 'm³/s', units)} (U, k = ${sig(inflow.coverageFactor, 3)}): a passing inlet or other constant inflow, fitted`,
         ],
       ],
       160,
@@ -227,8 +250,8 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
       'vessel',
       `${r.vessel.name} (id ${r.vessel.id}, vessel-file revision ${r.vessel.revision}), site ${r.vessel.site}`,
     ],
-    ['geometry', geometryWords(r.vessel.shape)],
-    ['sensor', sensorWords(r.vessel.sensor)],
+    ['geometry', geometryWords(r.vessel.shape, units)],
+    ['sensor', sensorWords(r.vessel.sensor, units)],
     [
       'liquid',
       `${fluidWords(r.vessel.fluid)}; density used ${sig(r.vessel.fluidDensityKgM3, 6)} kg/m³ (${r.vessel.fluidDensitySource ?? 'source not stated'})`,
@@ -236,7 +259,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
     ['gravity', `g = ${sig(r.vessel.gravityMS2, 6)} m/s²`],
     [
       'outlet',
-      `${r.outlet.key ?? '—'} (${r.outlet.type ?? 'type not stated'}): bore d = ${millimetresText(r.outlet.boreM)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM)}` : ''}, centreline ${metresText(r.outlet.elevationM)} above the datum, nominal area ${quantityText(r.outlet.nominalAreaM2, 'm²', 5)}`,
+      `${r.outlet.key ?? '—'} (${r.outlet.type ?? 'type not stated'}): bore d = ${millimetresText(r.outlet.boreM, units)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM, units)}` : ''}, centreline ${metresText(r.outlet.elevationM, units)} above the datum, nominal area ${quantityText('area', r.outlet.nominalAreaM2, undefined, units, 5)}`,
     ],
     [
       'test',
@@ -253,7 +276,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
     fields(doc, [['SHA-256', f.sha256]], 130, { monoValues: true });
   }
 
-  charts(doc, r);
+  charts(doc, r, units);
 
   heading(doc, 'Reading');
   paragraph(doc, 'Settings given for this fit (anything not listed was detected from the log):', {
@@ -346,18 +369,19 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
     ],
     r.parameters.map((p) => {
       const [name, symbol] = parameterWords(p.name, p.symbol);
+      const shown = shownUnit(p.unit, units);
       return [
         `${name} (${symbol})${p.atBound ? ' — at bound' : ''}`,
         p.free
-          ? valueIn(p.value, p.standardUncertainty, p.unit)
-          : `${valueIn(p.value, null, p.unit)} (fixed)`,
-        uncertaintyIn(p.standardUncertainty, p.unit),
+          ? valueToU(p.value, p.standardUncertainty, p.unit, units)
+          : `${valueToU(p.value, null, p.unit, units)} (fixed)`,
+        uncertaintyIn(p.standardUncertainty, p.unit, units),
         sig(p.coverageFactor, 4),
-        uncertaintyIn(p.expandedUncertainty, p.unit),
+        uncertaintyIn(p.expandedUncertainty, p.unit, units),
         p.interval95
-          ? `${valueIn(p.interval95[0], p.standardUncertainty, p.unit)} … ${valueIn(p.interval95[1], p.standardUncertainty, p.unit)}`
+          ? `${valueToU(p.interval95[0], p.standardUncertainty, p.unit, units)} … ${valueToU(p.interval95[1], p.standardUncertainty, p.unit, units)}`
           : '—',
-        displayUnit(p.unit).unit || '—',
+        shown.symbol || '—',
       ];
     }),
   );
@@ -383,7 +407,7 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
     [
       [
         'residuals',
-        `${rs.samples ?? '—'} samples; RMSE ${millimetresText(rs.rmseM)}; largest |r| ${millimetresText(rs.maxAbsM)}; lag-1 autocorrelation ρ = ${sig(rs.lag1Autocorrelation, 3)}; Durbin–Watson ${sig(rs.durbinWatson, 3)}`,
+        `${rs.samples ?? '—'} samples; RMSE ${millimetresText(rs.rmseM, units)}; largest |r| ${millimetresText(rs.maxAbsM, units)}; lag-1 autocorrelation ρ = ${sig(rs.lag1Autocorrelation, 3)}; Durbin–Watson ${sig(rs.durbinWatson, 3)}`,
       ],
       ['covariance', rs.covariance ?? '—'],
       [
@@ -396,7 +420,11 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
   );
 
   if (r.budget) {
-    heading(doc, 'Uncertainty budget (JCGM 100:2008)');
+    // the report model carries the budget's strings as stored (SI); say so when the rest is not
+    heading(
+      doc,
+      `Uncertainty budget (JCGM 100:2008)${units === 'si' ? '' : ', in SI units as recorded'}`,
+    );
     const widths = [130, 70, 70, 70, 80, 60, 45];
     table(
       doc,
@@ -446,16 +474,16 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
     table(
       doc,
       [
-        { title: 'head from → to, m', width: 120 },
+        { title: `head from → to, ${displayUnit('length', units).symbol}`, width: 120 },
         { title: 'samples', width: 60, align: 'right' },
         { title: 'Cd', width: 80, align: 'right' },
         { title: 'u', width: 80, align: 'right' },
       ],
       r.headBands.map((b) => [
-        `${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)}`,
+        `${numberIn(b.headFromM, 'm', units, 3)} → ${numberIn(b.headToM, 'm', units, 3)}`,
         String(b.samples),
         toU(b.dischargeCoefficient, b.standardUncertainty),
-        uncertaintyIn(b.standardUncertainty, '1'),
+        uncertaintyIn(b.standardUncertainty, '1', units),
       ]),
     );
   }
@@ -512,11 +540,18 @@ export async function renderFitReportPdf(r: FitReport, opts: RenderOptions = {})
       { title: 'seq', width: 35, align: 'right' },
       { title: 'at', width: 100 },
       { title: 'who', width: 70 },
-      { title: 'action', width: 70 },
+      { title: 'what happened', width: 95 },
       { title: 'entity', width: 50 },
-      { title: 'entry hash', width: 190, mono: true },
+      { title: 'entry hash', width: 165, mono: true },
     ],
-    r.audit.map((a) => [String(a.seq), dateText(a.at), a.actor, a.action, a.entity, a.hash]),
+    r.audit.map((a) => [
+      String(a.seq),
+      dateText(a.at),
+      a.actor,
+      actionLabel(a.action), // the code stays in the report JSON; the page prints words
+      a.entity,
+      a.hash,
+    ]),
   );
 
   heading(doc, 'Software and scope');

@@ -1,5 +1,6 @@
 import type { FitJson } from '../core/analysis-contract.js';
 import { axes, escapeXml, extent, linearScale, polyline } from './svg-chart.js';
+import { countText } from '../core/format/words.js';
 
 /**
  * A picture of one fit for the technician with no server at hand: the whole log with the fitted
@@ -47,7 +48,7 @@ export function fitSvg(fit: FitJson): string {
     axes(bottom, sxr, syr, 'time from the log’s start (s)', 'residual (mm)'),
     `<line x1="${bottom.x}" y1="${syr(0).toFixed(1)}" x2="${bottom.x + bottom.width}" y2="${syr(0).toFixed(1)}" stroke="#0b6e69" stroke-width="1"/>`,
     polyline(winT, resid, sxr, syr, 'stroke="#9b3d2e" stroke-width="0.8"'),
-    `<text x="${top.x}" y="${H - 8}" font-size="9" fill="#666">${escapeXml(`${fit.warnings.length} warning(s); engine ${fit.engineVersion}. Engineering estimate, not a certification.`)}</text>`,
+    `<text x="${top.x}" y="${H - 8}" font-size="9" fill="#666">${escapeXml(`${countText(fit.warnings.length, 'warning')}; engine ${fit.engineVersion}. Engineering estimate, not a certification.`)}</text>`,
     '</svg>',
   ];
   return parts.join('\n') + '\n';

@@ -14,23 +14,29 @@ import {
   type RenderOptions,
 } from './pdf-layout.js';
 import {
+  areaText,
   dateText,
   dayText as day,
-  durationText,
+  daysText,
+  DEFAULT_UNIT_SYSTEM,
   metresText,
   millimetresText,
   numberIn,
+  shownUnit,
   sig,
   toU,
-  valueIn,
+  unitsNote,
+  valueToU,
+  type UnitSystem,
 } from './report-format.js';
 
 const BLUE = '#2f5d8a';
 const RED = '#b8432f';
-/** Cd·a is drawn in mm², the unit the tables use. */
-const MM2 = 1e6;
 
-export function outletReportIdentity(r: OutletReport): DocIdentity {
+export function outletReportIdentity(
+  r: OutletReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): DocIdentity {
   return {
     title: `Outlet history report — ${r.vessel.name}, outlet ${r.outlet.key}`,
     subject: `outlet ${r.outlet.id} of vessel ${r.vessel.id}, site ${r.vessel.site}, as of ${r.asOf}`,
@@ -41,6 +47,7 @@ export function outletReportIdentity(r: OutletReport): DocIdentity {
     extra: {
       EffluxOutletId: String(r.outlet.id),
       EffluxAsOf: r.asOf,
+      EffluxUnits: units,
       EffluxSoftware: `${r.software.name} ${r.software.version} ${r.software.gitCommit}`,
     },
     json: reportJson(r as unknown as Record<string, unknown>),
@@ -49,9 +56,11 @@ export function outletReportIdentity(r: OutletReport): DocIdentity {
 
 export async function renderOutletReportPdf(
   r: OutletReport,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
   opts: RenderOptions = {},
 ): Promise<Buffer> {
-  const id = outletReportIdentity(r);
+  const id = outletReportIdentity(r, units);
+  const area = shownUnit('m²', units);
   const doc = createReportDoc(id);
   doc.font('bold').fontSize(15).fillColor('#1f2a36').text('Outlet history report', MARGIN, doc.y);
   doc
@@ -65,6 +74,7 @@ export async function renderOutletReportPdf(
       ['report id', r.reportId],
       ['content SHA-256', r.contentSha256],
       ['as of', dateText(r.asOf)],
+      ['units', unitsNote(units)],
     ],
     130,
     { monoValues: true },
@@ -89,11 +99,11 @@ export async function renderOutletReportPdf(
       'threshold forecast',
       st.crossingMs === null
         ? 'none'
-        : `${day(st.crossingMs)} (in ${durationText(st.daysToThreshold)} from the as-of date)`,
+        : `${day(st.crossingMs)} (in ${daysText(st.daysToThreshold)} from the as-of date)`,
     ],
     [
       'outlet',
-      `${r.outlet.type ?? 'type not stated'}, bore ${millimetresText(r.outlet.boreM)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM)}` : ''}, centreline ${metresText(r.outlet.elevationM)} above the vessel's datum`,
+      `${r.outlet.type ?? 'type not stated'}, bore ${millimetresText(r.outlet.boreM, units)}${r.outlet.boreToleranceM !== null ? ` ± ${millimetresText(r.outlet.boreToleranceM, units)}` : ''}, centreline ${metresText(r.outlet.elevationM, units)} above the vessel's datum`,
     ],
   ]);
 
@@ -106,27 +116,27 @@ export async function renderOutletReportPdf(
       layers.push({
         kind: 'band',
         xs: b.map((p) => p.atMs),
-        lower: b.map((p) => p.lower * MM2),
-        upper: b.map((p) => p.upper * MM2),
+        lower: b.map((p) => p.lower * area.perSi),
+        upper: b.map((p) => p.upper * area.perSi),
         color: BLUE,
       });
       layers.push({
         kind: 'line',
         xs: b.map((p) => p.atMs),
-        ys: b.map((p) => p.value * MM2),
+        ys: b.map((p) => p.value * area.perSi),
         color: BLUE,
         width: 0.9,
       });
       allX.push(b[0].atMs, b[b.length - 1].atMs);
-      allY.push(...b.map((p) => p.lower * MM2), ...b.map((p) => p.upper * MM2));
+      allY.push(...b.map((p) => p.lower * area.perSi), ...b.map((p) => p.upper * area.perSi));
     }
     const xs = ep.series.map((p) => p.testedAtMs);
-    const ys = ep.series.map((p) => p.effectiveAreaM2 * MM2);
+    const ys = ep.series.map((p) => p.effectiveAreaM2 * area.perSi);
     layers.push({
       kind: 'points',
       xs,
       ys,
-      errors: ep.series.map((p) => 2 * p.effectiveAreaU * MM2),
+      errors: ep.series.map((p) => 2 * p.effectiveAreaU * area.perSi),
       color: '#1f2a36',
       radius: 2,
     });
@@ -136,14 +146,14 @@ export async function renderOutletReportPdf(
       const x1 = b.length ? b[b.length - 1].atMs : xs[xs.length - 1];
       layers.push({
         kind: 'hline',
-        y: ep.thresholdM2 * MM2,
+        y: ep.thresholdM2 * area.perSi,
         x0: ep.series[0]?.testedAtMs ?? ep.startMs,
         x1,
         color: RED,
         dash: 3,
-        label: `action threshold ${numberIn(ep.thresholdM2, 'm²', 4)} mm²`,
+        label: `action threshold ${areaText(ep.thresholdM2, undefined, units)}`,
       });
-      allY.push(ep.thresholdM2 * MM2);
+      allY.push(ep.thresholdM2 * area.perSi);
     }
     if (ep.startedBy)
       layers.push({
@@ -165,7 +175,7 @@ export async function renderOutletReportPdf(
         xDomain: xd,
         yDomain: domainOf(allY),
         xLabel: 'date of the drain test',
-        yLabel: 'Cd·a, mm²',
+        yLabel: `Cd·a, ${area.symbol}`,
         xTicks: dateTicks(xd[0], xd[1], 7),
         layers,
         legend: [
@@ -185,7 +195,7 @@ export async function renderOutletReportPdf(
       { title: 'Cd', width: 55, align: 'right' },
       { title: 'u(Cd)', width: 45, align: 'right' },
       { title: 'U(Cd), k', width: 65, align: 'right' },
-      { title: 'Cd·a, mm²', width: 70, align: 'right' },
+      { title: `Cd·a, ${area.symbol}`, width: 70, align: 'right' },
       { title: 'approved', width: 90 },
       { title: 'raw file SHA-256 (first 16)', width: 95, mono: true },
     ],
@@ -195,7 +205,7 @@ export async function renderOutletReportPdf(
       toU(f.dischargeCoefficient, f.dischargeCoefficientU),
       sig(f.dischargeCoefficientU, 2),
       `${sig(f.dischargeCoefficientExpandedU, 2)}, ${sig(f.coverageFactor, 3)}`,
-      valueIn(f.effectiveAreaM2, f.effectiveAreaU, 'm²'),
+      valueToU(f.effectiveAreaM2, f.effectiveAreaU, 'm²', units),
       `${f.approvedBy ?? '—'}${f.selfReview ? ' (self-review)' : ''}, ${dateText(f.approvedAt).slice(0, 10)}`,
       f.logSha256.slice(0, 16),
     ]),
@@ -208,7 +218,7 @@ export async function renderOutletReportPdf(
       { title: 'started by', width: 120 },
       { title: 'fits', width: 35, align: 'right' },
       { title: 'slope, %/year', width: 90, align: 'right' },
-      { title: 'threshold, mm²', width: 80, align: 'right' },
+      { title: `threshold, ${area.symbol}`, width: 80, align: 'right' },
       { title: 'forecast', width: 140 },
     ],
     r.trend.epochs.map((ep) => [
@@ -216,7 +226,7 @@ export async function renderOutletReportPdf(
       ep.startedBy ? `${ep.startedBy.kind} ${day(ep.startedBy.atMs)}` : 'first tests',
       String(ep.series.length),
       ep.area ? `${sig(ep.area.slopePctPerYear, 3)} ± ${sig(ep.area.slopePctPerYearU, 2)}` : '—',
-      numberIn(ep.thresholdM2, 'm²', 4),
+      numberIn(ep.thresholdM2, 'm²', units, 4),
       ep.forecast ? ep.forecast.reason : '—',
     ]),
   );

@@ -24,6 +24,7 @@ import type { Store } from '../store/index.js';
 import { renderFitReportPdf } from './fit-report-pdf.js';
 import { renderOutletReportPdf } from './outlet-report-pdf.js';
 import { readReportFile, type ReportFile } from './report-file.js';
+import { reportUnits } from './report-format.js';
 import { fitReportRecords, outletReportRecords } from './report-records.js';
 
 export async function fitReport(
@@ -293,8 +294,8 @@ export async function verifyReport(
   if (file.type === 'pdf') {
     const pdf =
       file.kind === 'fit'
-        ? await renderFitReportPdf(rebuilt as FitReport)
-        : await renderOutletReportPdf(rebuilt as OutletReport);
+        ? await renderFitReportPdf(rebuilt as FitReport, reportUnits(file.info))
+        : await renderOutletReportPdf(rebuilt as OutletReport, reportUnits(file.info));
     const a = sha256(bytes);
     const b = sha256(pdf);
     checks.push({

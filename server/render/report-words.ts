@@ -4,13 +4,13 @@
  * they sometimes carry (`shape.diameterToleranceM` → "vessel diameter tolerance"). Numbers go
  * through report-format.ts only. Pure.
  */
-import { metresText, millimetresText, sig } from './report-format.js';
+import { metresText, millimetresText, sig, type UnitSystem } from './report-format.js';
 
 type Json = Record<string, unknown>;
 const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFinite(v) ? v : null);
 const tol = (v: unknown, text: (x: number) => string) =>
   num(v) === null ? '' : ` (± ${text(num(v)!)})`;
-const mmTol = (v: unknown) => tol(v, millimetresText);
+const mmTol = (v: unknown, units: UnitSystem) => tol(v, (x) => millimetresText(x, units));
 
 /**
  * Words for the field and parameter names the stored records use. Keyed by the last part of a
@@ -97,21 +97,23 @@ const SHAPE_NAMES: Record<string, string> = {
 };
 
 /** The vessel's shape in words: "Vertical cylinder, diameter 3.200 m, height 4.000 m". */
-export function geometryWords(shape: unknown): string {
+export function geometryWords(shape: unknown, units: UnitSystem): string {
   if (!shape || typeof shape !== 'object') return 'not on record';
   const s = shape as Json;
   const kind = String(s.kind ?? '');
   const parts = [SHAPE_NAMES[kind] ?? `shape "${kind}"`];
   const dim = (label: string, key: string, tolKey?: string) => {
     if (num(s[key]) !== null)
-      parts.push(`${label} ${metresText(num(s[key]))}${tolKey ? mmTol(s[tolKey]) : ''}`);
+      parts.push(
+        `${label} ${metresText(num(s[key]), units)}${tolKey ? mmTol(s[tolKey], units) : ''}`,
+      );
   };
   if (kind === 'table') {
     const pts = Array.isArray(s.points) ? (s.points as [number, number][]) : [];
     if (pts.length) {
       const areas = pts.map((p) => p[1]);
       parts.push(
-        `${pts.length} surveyed levels from ${metresText(pts[0][0])} to ${metresText(pts[pts.length - 1][0])}`,
+        `${pts.length} surveyed levels from ${metresText(pts[0][0], units)} to ${metresText(pts[pts.length - 1][0], units)}`,
         `plan area ${sig(Math.min(...areas), 4)} m² to ${sig(Math.max(...areas), 4)} m²`,
       );
     }
@@ -127,23 +129,23 @@ export function geometryWords(shape: unknown): string {
 }
 
 /** The sensor in words; elevations are above the vessel's datum, its lowest interior point. */
-export function sensorWords(sensor: unknown): string {
+export function sensorWords(sensor: unknown, units: UnitSystem): string {
   const s = (sensor ?? {}) as Json;
   const parts: string[] = [];
   const z = num(s.zeroElevationM);
   if (z !== null)
     parts.push(
-      `Sensor zero ${metresText(Math.abs(z))} ${z < 0 ? 'below' : 'above'} the vessel's datum (its lowest interior point)${mmTol(s.zeroElevationToleranceM)}`,
+      `Sensor zero ${metresText(Math.abs(z), units)} ${z < 0 ? 'below' : 'above'} the vessel's datum (its lowest interior point)${mmTol(s.zeroElevationToleranceM, units)}`,
     );
   const mount = num(s.mountElevationM);
   if (mount !== null)
     parts.push(
-      `gauge reading down from a face ${metresText(mount)} above the datum${mmTol(s.mountElevationToleranceM)}`,
+      `gauge reading down from a face ${metresText(mount, units)} above the datum${mmTol(s.mountElevationToleranceM, units)}`,
     );
   if (num(s.spanErrorFraction) !== null)
     parts.push(`scale (span) error within ± ${sig(num(s.spanErrorFraction)! * 100, 3)} %`);
   if (num(s.resolutionM) !== null)
-    parts.push(`readings in steps of ${millimetresText(num(s.resolutionM))}`);
+    parts.push(`readings in steps of ${millimetresText(num(s.resolutionM), units)}`);
   if (num(s.barometerTolerancePa) !== null)
     parts.push(`barometer offset within ± ${sig(num(s.barometerTolerancePa), 3)} Pa`);
   if (!parts.length) return 'Sensor zero at the vessel’s datum (nothing stated in the vessel file)';

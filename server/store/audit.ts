@@ -90,6 +90,10 @@ export interface AuditFilter {
   since?: string;
   until?: string;
   afterSeq?: number;
+  /** Entries before this one only (paging newest first). */
+  beforeSeq?: number;
+  /** Newest first instead of oldest first. */
+  newestFirst?: boolean;
   limit?: number;
 }
 
@@ -160,8 +164,8 @@ export class AuditLog {
             (entity_type = 'maintenance-event' AND entity_id IN (SELECT CAST(id AS TEXT) FROM maintenance_events WHERE vessel_id = @vesselId))) AND
           (CAST(@since AS TEXT) IS NULL OR at >= @since) AND
           (CAST(@until AS TEXT) IS NULL OR at < @until) AND
-          seq > @afterSeq
-        ORDER BY seq LIMIT @limit`,
+          seq > @afterSeq AND (CAST(@beforeSeq AS BIGINT) IS NULL OR seq < @beforeSeq)
+        ORDER BY seq ${f.newestFirst ? 'DESC' : 'ASC'} LIMIT @limit`,
       {
         entityType: f.entityType ?? null,
         entityId: f.entityId ?? null,
@@ -171,6 +175,7 @@ export class AuditLog {
         since: f.since ?? null,
         until: f.until ?? null,
         afterSeq: f.afterSeq ?? 0,
+        beforeSeq: f.beforeSeq ?? null,
         limit: f.limit ?? 100,
       },
     );

@@ -10,6 +10,7 @@ import { NameRepo } from './names.js';
 import { join } from 'node:path';
 import { databasePath } from './maintenance.js';
 import { migrate } from './migrate.js';
+import { PreferenceRepo } from './preferences.js';
 import { ForeignWrites } from './read-cache.js';
 import { redactDatabaseUrl } from './database-url.js';
 import { type AnalysisClaims, LocalClaims, PostgresClaims } from './claims.js';
@@ -44,6 +45,8 @@ export interface Store {
   trends: TrendRepo;
   live: LiveRepo;
   meta: ServiceMetaRepo;
+  /** A person's display choices (units); async on sql. */
+  preferences: PreferenceRepo;
   /** Saved revisions of vessel files and the revision each fit used (migration 007). */
   vesselRevisions: VesselRevisionRepo;
   /** Outlets and sites as people name them (CLI look-ups). */
@@ -176,6 +179,7 @@ export async function openStore(opts: StoreOptions = {}): Promise<Store> {
     trends: new TrendRepo(c),
     live: new LiveRepo(c),
     meta: new ServiceMetaRepo(c),
+    preferences: new PreferenceRepo(c),
     vesselRevisions: new VesselRevisionRepo(c),
     names: new NameRepo(c),
     reserve,

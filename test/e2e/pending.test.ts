@@ -105,7 +105,7 @@ describe.skipIf(!haveBrowser)('tests waiting for analysis, in the workbench', ()
     await section.getByRole('heading', { name: 'Tests waiting for analysis' }).waitFor();
     const late = section.getByRole('row').filter({ hasText: 'late-engine.csv' });
     const wrong = section.getByRole('row').filter({ hasText: 'wrong-logger.csv' });
-    await expect.poll(() => late.textContent()).toContain('failed 1 time(s)');
+    await expect.poll(() => late.textContent()).toContain('failed 1 time;');
     expect(await wrong.textContent()).toContain('the stand-in engine failed on purpose');
     await page.screenshot({ path: join(shots, 'pending-01-waiting.png'), fullPage: true });
 

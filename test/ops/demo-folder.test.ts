@@ -64,7 +64,7 @@ describe('demo apart from real data', () => {
     const r = await eff(['serve', '--demo', '--data', dir], envFor(dir));
     expect(r.code).toBe(2);
     expect(r.stderr.trim()).toBe(
-      `efflux: the data folder ${dir} holds real records (1 vessel(s), 0 test(s)): the invented demo is loaded only into an empty folder; run the demo in its own (npm start uses ./data-demo)`,
+      `efflux: the data folder ${dir} holds real records (1 vessel, 0 tests): the invented demo is loaded only into an empty folder; run the demo in its own (npm start uses ./data-demo)`,
     );
     const after = await openTestStore({ dataDir: dir });
     expect(await after.meta.isDemo()).toBe(false);

@@ -1,7 +1,7 @@
 /** Calendar date ticks, value tick labels and durations for reports (hand-worked expectations). */
 import { describe, expect, it } from 'vitest';
 import { dateTicks } from '../../server/render/chart-ticks.js';
-import { durationText, tickText, uncertaintyIn } from '../../server/render/report-format.js';
+import { daysText, tickText, uncertaintyIn } from '../../server/render/report-format.js';
 
 const ms = (iso: string) => Date.parse(iso);
 
@@ -36,18 +36,20 @@ describe('tick labels and durations', () => {
     expect(z(2.5)).toBe('2.5');
   });
   it('says days under 90, months under two years, years after', () => {
-    expect(durationText(45)).toBe('45 days');
-    expect(durationText(129)).toBe('4 months'); // 129 / 30.4375 = 4.2
-    expect(durationText(3386)).toBe('9.3 years'); // 3386 / 365.25 = 9.27
+    expect(daysText(45)).toBe('45 days');
+    expect(daysText(129)).toBe('4 months'); // 129 / 30.4375 = 4.2
+    expect(daysText(3386)).toBe('9.3 years'); // 3386 / 365.25 = 9.27
   });
 });
 
 describe('uncertainties', () => {
   it('keep two significant digits in fixed notation, trailing zeros included', () => {
-    expect(uncertaintyIn(1e-4, 'm')).toBe('0.00010');
-    expect(uncertaintyIn(2.8e-4, '1')).toBe('0.00028');
-    expect(uncertaintyIn(1.2e-6, 'm²')).toBe('1.2'); // shown in mm²
-    expect(uncertaintyIn(7.8e-6, 'm³/s')).toBe('0.0078'); // shown in L/s
-    expect(uncertaintyIn(1234, 'm')).toBe('1200');
+    expect(uncertaintyIn(1e-4, 'm', 'si')).toBe('0.00010');
+    expect(uncertaintyIn(2.8e-4, '1', 'si')).toBe('0.00028');
+    expect(uncertaintyIn(1.2e-6, 'm²', 'si')).toBe('1.2'); // shown in mm²
+    expect(uncertaintyIn(7.8e-6, 'm³/s', 'si')).toBe('0.0078'); // shown in L/s
+    expect(uncertaintyIn(1234, 'm', 'si')).toBe('1200');
+    // US units: 1 in² = 6.4516e-4 m² exactly (NIST SP 811 B.8); 1.2e-6 / 6.4516e-4 = 0.00186
+    expect(uncertaintyIn(1.2e-6, 'm²', 'us')).toBe('0.0019');
   });
 });

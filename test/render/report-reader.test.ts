@@ -78,7 +78,7 @@ interface Rendered {
 
 async function renderFit(fileName: string): Promise<Rendered> {
   const layout: LayoutEntry[] = [];
-  const pdf = await renderFitReportPdf(await fitReport(store, fitOf[fileName], SOFTWARE), {
+  const pdf = await renderFitReportPdf(await fitReport(store, fitOf[fileName], SOFTWARE), 'si', {
     layout,
   });
   const file = join(out, `fit-${fileName.replace(/[^\w.-]/g, '_')}.pdf`);
@@ -161,7 +161,8 @@ describe.skipIf(!poppler)('demo reports written for a reader', () => {
         expect(text).toContain('water at 12 °C');
         expect(text).toContain('bore d = 50.0 mm ± 0.2 mm');
         // the passing inlet's flow in L/s, and the settings as a list
-        expect(text).toMatch(/inflow during the drain, Q_in\s+\d\.\d+ L\/s/);
+        // value ± U as the result rows print it (core/format), in the SI report's L/s
+        expect(text).toMatch(/inflow during the drain, Q_in\s+\d\.\d+ ± \d\.\d+ L\/s \(U, k = /);
         expect(text).toMatch(/constant inflow\s+fitted/);
         expect(text).toContain('Uncertainty budget (JCGM 100:2008)');
         expect(text).not.toMatch(/\d\.\d+e-\d+ m³\/s/);
@@ -186,9 +187,11 @@ describe.skipIf(!poppler)('demo reports written for a reader', () => {
       const anyFit = Object.keys(fitOf).find((f) => f.startsWith(`${prefix}-`))!;
       const test = await store.tests.get((await store.fits.get(fitOf[anyFit])).testId);
       const layout: LayoutEntry[] = [];
-      const pdf = await renderOutletReportPdf(await outletReport(store, test.outletId!, SOFTWARE), {
-        layout,
-      });
+      const pdf = await renderOutletReportPdf(
+        await outletReport(store, test.outletId!, SOFTWARE),
+        'si',
+        { layout },
+      );
       const file = join(out, `outlet-${prefix}.pdf`);
       writeFileSync(file, pdf);
       const pages = expectReadable({ file, layout });

@@ -77,7 +77,10 @@ export interface User {
   role: Role;
   /** The sites this person may see and act on; null = every site. */
   sites: string[] | null;
+  /** The units this person reads results in (PUT /api/session/preferences); JSON stays SI. */
+  displayUnits?: UnitSystem;
 }
+import type { UnitSystem } from '../../server/core/format/unit-system.js';
 export type { Outlet, Vessel } from '../../server/core/stored-vessel.js';
 export interface DrainTest {
   id: number;
@@ -86,6 +89,8 @@ export interface DrainTest {
   status: 'pending' | 'analysed';
   fileName: string;
   size: number;
+  /** SHA-256 of the stored raw bytes (hex). */
+  sha256: string;
   baro: { fileName: string } | null;
   settings: Settings;
   detected: Record<string, unknown> | null;
@@ -153,7 +158,12 @@ export type {
   FitParameter,
 } from '../../server/core/fit-result/schema.js';
 import type { SingleFitResult as FitResult } from '../../server/core/fit-result/schema.js';
+import type { SideBySide } from '../../server/core/compare/side-by-side.js';
 export type Estimate = FitResult['effectiveAreaM2'];
+/** GET /api/outlets/:id/compare (server/core/compare/side-by-side.ts, type-only). */
+export type TestComparison = SideBySide & {
+  outlet: { id: number; key: string; vesselId: number };
+};
 export type Note = FitResult['warnings'][number];
 export interface Series {
   t0: string | null;

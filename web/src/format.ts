@@ -1,39 +1,50 @@
-/** Numbers for people: every value with its unit, uncertainties with the digits they earn. */
+/**
+ * Numbers for people in the workbench: a thin adapter of the one formatting module
+ * (server/core/format, bundled), holding the signed-in person's choice of units. Every page
+ * formats through here, so the units follow the person's preference everywhere.
+ */
+import {
+  DEFAULT_UNIT_SYSTEM,
+  decimalsForSignificant,
+  displayUnit,
+  durationText,
+  measurementText,
+  plainText,
+  quantityText,
+  smallLengthText,
+  type DisplayQuantity,
+  type UnitSystem,
+} from '../../server/core/format/index.js';
 
+export type { UnitSystem } from '../../server/core/format/index.js';
+export {
+  daysText,
+  durationText,
+  countText,
+  clipText,
+  UNIT_SYSTEM_WORDS,
+} from '../../server/core/format/index.js';
+
+let units: UnitSystem = DEFAULT_UNIT_SYSTEM;
+
+/** The signed-in person's preference (main.ts sets it from GET /api/session). */
+export function setDisplayUnits(u: UnitSystem | null | undefined): void {
+  units = u ?? DEFAULT_UNIT_SYSTEM;
+}
+export const displayUnits = (): UnitSystem => units;
+
+/** The unit a quantity is shown in, and the factor from SI (for charts and tables). */
+export const unitOf = (q: DisplayQuantity) => displayUnit(q, units);
+
+/** Inputs and diagnostics: `digits` significant digits, no exponent for ordinary magnitudes. */
 export function num(x: number | null | undefined, digits = 3): string {
-  if (x === null || x === undefined || !Number.isFinite(x)) return '—';
-  const a = Math.abs(x);
-  if (a !== 0 && (a < 1e-3 || a >= 1e6)) {
-    const [m, e] = x.toExponential(digits - 1).split('e');
-    const sup: Record<string, string> = {
-      '-': '⁻',
-      '0': '⁰',
-      '1': '¹',
-      '2': '²',
-      '3': '³',
-      '4': '⁴',
-      '5': '⁵',
-      '6': '⁶',
-      '7': '⁷',
-      '8': '⁸',
-      '9': '⁹',
-    };
-    return `${m} × 10${e
-      .replace('+', '')
-      .split('')
-      .map((c) => sup[c] ?? c)
-      .join('')}`;
-  }
-  return x.toLocaleString('en-GB', {
-    maximumSignificantDigits: Math.max(digits, 1),
-    useGrouping: false,
-  });
+  return plainText(x, Math.max(1, digits));
 }
 
-/** Digits after the point so the uncertainty shows two significant figures. */
+/** Digits after the point so the uncertainty shows two significant figures (JCGM 100 §7.2.6). */
 export function decimalsFor(u: number): number {
   if (!(u > 0) || !Number.isFinite(u)) return 3;
-  return Math.min(8, Math.max(0, 1 - Math.floor(Math.log10(u))));
+  return Math.min(8, Math.max(0, decimalsForSignificant(u, 2)));
 }
 
 /** "0.6120 ± 0.0055" with the value rounded to the uncertainty's last digit. */
@@ -42,35 +53,50 @@ export function plusMinus(
   u: number | null | undefined,
   unit = '',
 ): string {
-  if (value === null || value === undefined || !Number.isFinite(value)) return '—';
-  if (u === null || u === undefined || !Number.isFinite(u))
-    return `${num(value, 4)}${unit ? ' ' + unit : ''}`;
-  const d = decimalsFor(u);
-  return `${value.toFixed(d)} ± ${u.toFixed(d)}${unit ? ' ' + unit : ''}`;
+  return measurementText(value, u, unit);
 }
 
-/** Areas are small: m² in scientific form reads badly, so mm². */
-export function areaMm2(m2: number | null | undefined, u?: number | null): string {
-  if (m2 === null || m2 === undefined) return '—';
-  return u === undefined
-    ? `${num(m2 * 1e6, 5)} mm²`
-    : plusMinus(m2 * 1e6, u === null ? null : u * 1e6, 'mm²');
+/**
+ * A quantity in the person's unit: with an uncertainty, value ± U (JCGM 100 §7.2.6 digits, zeros
+ * kept); without one it is an input or a threshold, so `digits` significant digits, zeros dropped.
+ */
+function shownQuantity(
+  q: DisplayQuantity,
+  si: number | null | undefined,
+  U: number | null | undefined,
+  digits: number,
+): string {
+  if (U !== undefined) return quantityText(q, si, U, units);
+  if (si === null || si === undefined || !Number.isFinite(si)) return '—';
+  const { symbol, perSi } = displayUnit(q, units);
+  return `${plainText(si * perSi, digits)} ${symbol}`;
 }
 
+/** Cd·a in the person's unit (mm² or in²), with its expanded uncertainty when given. */
+export function area(m2: number | null | undefined, U?: number | null): string {
+  return shownQuantity('area', m2, U, 5);
+}
+/** Kept for the pages that call it by its old name: in the person's unit, not always mm². */
+export const areaMm2 = area;
+
+/** A flow in L/s or US gal/min. */
+export const flow = (m3s: number | null | undefined, U?: number | null) =>
+  shownQuantity('flow', m3s, U, 4);
+
+/** A level or length in m or ft. */
 export function metres(m: number | null | undefined, digits = 3): string {
-  return m === null || m === undefined ? '—' : `${num(m, digits)} m`;
+  return shownQuantity('length', m, undefined, digits);
 }
 
+/** A small length (residuals) in mm or in. */
 export function mm(m: number | null | undefined): string {
-  return m === null || m === undefined || !Number.isFinite(m) ? '—' : `${(m * 1000).toFixed(2)} mm`;
+  return smallLengthText(m, undefined, units);
 }
 
 export function seconds(s: number | null | undefined): string {
   if (s === null || s === undefined || !Number.isFinite(s)) return '—';
   if (Math.abs(s) < 120) return `${s.toFixed(1)} s`;
-  const m = Math.floor(s / 60);
-  if (s < 3600) return `${s.toFixed(0)} s (${m} min ${Math.round(s - m * 60)} s)`;
-  return `${s.toFixed(0)} s (${Math.floor(m / 60)} h ${m % 60} min)`;
+  return `${s.toFixed(0)} s (${durationText(s)})`;
 }
 
 export function date(iso: string | null | undefined): string {

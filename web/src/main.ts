@@ -5,7 +5,9 @@
  */
 import { api, ApiError, type User } from './api.js';
 import { clear, h, notice } from './dom.js';
+import { setDisplayUnits, UNIT_SYSTEM_WORDS, type UnitSystem } from './format.js';
 import { auditPage } from './pages/audit.js';
+import { comparePage } from './pages/compare.js';
 import { fitPage } from './pages/fit.js';
 import { fleetPage } from './pages/fleet.js';
 import { newTestPage } from './pages/new-test.js';
@@ -32,6 +34,7 @@ const routes: [RegExp, Page][] = [
   [/^#\/vessels\/(\d+)\/edit$/, vesselEditPage],
   [/^#\/vessels\/(\d+)\/new-test$/, newTestPage],
   [/^#\/vessels\/(\d+)\/plan$/, planPage],
+  [/^#\/vessels\/(\d+)\/outlets\/(\d+)\/compare$/, comparePage],
   [/^#\/vessels\/(\d+)\/live$/, liveOpenPage],
   [/^#\/live\/([0-9a-f-]{36})$/, livePage],
   [/^#\/fits\/(\d+)$/, fitPage],
@@ -72,8 +75,33 @@ function header(): void {
   who.append(
     h('span', { class: 'who-name' }, user.name),
     h('span', { class: `role role-${user.role}` }, user.role),
+    unitsControl(user),
     out,
   );
+}
+
+/** The person's choice of units, kept with them on the service and used by every page and their PDFs. */
+function unitsControl(u: User): HTMLElement {
+  const select = h(
+    'select',
+    { id: 'display-units', 'aria-label': 'Units shown' },
+    ...(['si', 'us'] as const).map((k) =>
+      h('option', { value: k, selected: k === (u.displayUnits ?? 'si') }, UNIT_SYSTEM_WORDS[k]),
+    ),
+  ) as HTMLSelectElement;
+  select.addEventListener('change', async () => {
+    const chosen = select.value as UnitSystem;
+    try {
+      await api('PUT', '/api/session/preferences', { displayUnits: chosen });
+      u.displayUnits = chosen;
+      setDisplayUnits(chosen);
+      void show();
+    } catch (e) {
+      select.value = u.displayUnits ?? 'si';
+      main.prepend(notice('error', e instanceof Error ? e.message : String(e)));
+    }
+  });
+  return h('label', { class: 'units-choice' }, 'Units ', select);
 }
 
 async function show(): Promise<void> {
@@ -88,6 +116,7 @@ async function show(): Promise<void> {
     if (!user) {
       try {
         user = (await api<{ user: User }>('GET', '/api/session')).user;
+        setDisplayUnits(user.displayUnits);
       } catch (e) {
         if (!(e instanceof ApiError) || e.status !== 401) throw e;
       }
@@ -97,6 +126,7 @@ async function show(): Promise<void> {
     if (!user) {
       await signInPage(holder, (u) => {
         user = u;
+        setDisplayUnits(u.displayUnits);
         header();
         void show();
       });

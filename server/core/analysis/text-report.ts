@@ -7,8 +7,16 @@ import {
   solverLine,
   warningLines,
 } from '../fit-result/text.js';
-import { sig, toU } from './format.js';
-import { autocorrelationText } from '../budget/table.js';
+import { sig, toU } from '../format/digits.js';
+import { lengthText, smallLengthText } from '../format/quantity.js';
+import { measurementText, uncertaintyText } from '../format/uncertainty.js';
+import {
+  DEFAULT_UNIT_SYSTEM,
+  displayUnit,
+  UNIT_SYSTEM_WORDS,
+  type UnitSystem,
+} from '../format/unit-system.js';
+import { autocorrelationText, budgetTableOf } from '../budget/table.js';
 
 /**
  * The readable fit report printed by `efflux fit` (and reused by the service): everything a
@@ -23,7 +31,13 @@ type Quantity = {
   effectiveDegreesOfFreedom?: number;
 };
 
-export function textReport(fit: FitJson): string {
+export interface TextReportOptions {
+  /** The units a person reads (core/format): SI by default; the JSON stays SI either way. */
+  units?: UnitSystem;
+}
+
+export function textReport(fit: FitJson, opts: TextReportOptions = {}): string {
+  const units = opts.units ?? DEFAULT_UNIT_SYSTEM;
   const f = fit as FitJson & Record<string, any>;
   const lines: string[] = [];
   const rule = '─'.repeat(72);
@@ -49,7 +63,7 @@ export function textReport(fit: FitJson): string {
       "Discharge coefficient  Cd    = NOT CONVERGED (the solver's last values below are for diagnosis only)",
     );
     lines.push('Effective area         Cd·a  = NOT CONVERGED');
-  } else headline(lines, f);
+  } else headline(lines, f, units);
   lines.push('');
   const w = f.window as Record<string, any>;
   lines.push(
@@ -66,13 +80,13 @@ export function textReport(fit: FitJson): string {
   lines.push(`Model    ${f.model?.equation ?? ''}`);
   lines.push(`         free: ${f.model?.description ?? ''}; solution: ${f.model?.solution ?? ''}`);
   lines.push('');
-  lines.push(...parameterLines(f.parameters ?? []));
+  lines.push(...parameterLines(f.parameters ?? [], 22, units));
   lines.push(...correlationLines(f.correlations));
   const r = f.residuals;
   const um = f.uncertaintyMethod;
   lines.push('');
   lines.push(
-    `Residuals  RMSE ${sig(r?.rmseM, 3)} m, max |r| ${sig(r?.maxAbsM, 3)} m, lag-1 autocorrelation ${sig(r?.lag1Autocorrelation, 3)}, Durbin–Watson ${sig(r?.durbinWatson, 3)}`,
+    `Residuals  RMSE ${smallLengthText(r?.rmseM, undefined, units)}, max |r| ${smallLengthText(r?.maxAbsM, undefined, units)}, lag-1 autocorrelation ${sig(r?.lag1Autocorrelation, 3)}, Durbin–Watson ${sig(r?.durbinWatson, 3)}`,
   );
   if (um) {
     lines.push(
@@ -88,7 +102,9 @@ export function textReport(fit: FitJson): string {
   if (budget?.table) {
     lines.push('');
     lines.push('Uncertainty budget (JCGM 100:2008)');
-    lines.push(...budgetTableText(budget.table));
+    lines.push(
+      ...budgetTableText(budgetTableOf(budget as Parameters<typeof budgetTableOf>[0], units)),
+    );
     for (const n of budget.notes ?? []) lines.push(`  · ${n}`);
   }
   const cmp = f.modelComparison;
@@ -115,7 +131,7 @@ export function textReport(fit: FitJson): string {
     );
     for (const b of bands)
       lines.push(
-        `  head ${sig(b.headFromM, 3)} → ${sig(b.headToM, 3)} m: Cd = ${toU(b.dischargeCoefficient, b.standardUncertainty)}   u = ${sig(b.standardUncertainty, 2)} (${b.samples} samples)`,
+        `  head ${lengthText(b.headFromM, undefined, units)} → ${lengthText(b.headToM, undefined, units)}: Cd = ${toU(b.dischargeCoefficient, b.standardUncertainty)}   u = ${sig(b.standardUncertainty, 2)} (${b.samples} samples)`,
       );
   }
   lines.push('');
@@ -123,29 +139,36 @@ export function textReport(fit: FitJson): string {
   lines.push('');
   lines.push(...warningLines(f.warnings));
   lines.push(rule);
+  lines.push(
+    `Units: ${UNIT_SYSTEM_WORDS[units]}; expanded uncertainties U to two significant digits (JCGM 100:2008, 7.2.6).`,
+  );
   lines.push(...SAFETY_LINES);
   return lines.join('\n') + '\n';
 }
 
-/** The Cd and Cd·a lines of a converged fit. */
-function headline(lines: string[], f: FitJson & Record<string, any>): void {
+/** The Cd and Cd·a lines of a converged fit: value ± U (JCGM 100 §7.2.6 digits), then k and u. */
+function headline(lines: string[], f: FitJson & Record<string, any>, units: UnitSystem): void {
   const cd = f.dischargeCoefficient as Quantity & Record<string, number>;
   const ea = f.effectiveAreaM2 as Quantity & { profileCi95?: [number, number] | null };
   if (cd) {
     const u = cd.standardUncertainty;
     lines.push(
-      `Discharge coefficient  Cd    = ${toU(cd.value, u)}   u = ${sig(u, 2)}   U(k=${sig(cd.coverageFactor, 3)}) = ${sig(cd.expandedUncertainty, 2)}`,
+      `Discharge coefficient  Cd    = ${measurementText(cd.value, cd.expandedUncertainty ?? null)}   (U, k = ${sig(cd.coverageFactor, 3)}, about 95 %; u = ${uncertaintyText(u)})`,
     );
     lines.push(
-      `                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${sig(f.outlet?.boreM)} m, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, stated limits dominate' : sig(cd.effectiveDegreesOfFreedom, 3)})`,
+      `                       95 % interval ${toU(cd.ci95[0], u)} … ${toU(cd.ci95[1], u)}   (bore d = ${smallLengthText(f.outlet?.boreM, undefined, units)}, ν_eff = ${(cd.effectiveDegreesOfFreedom ?? 0) >= 1e6 ? '∞, stated limits dominate' : sig(cd.effectiveDegreesOfFreedom, 3)})`,
     );
   }
-  const ue = ea.standardUncertainty;
-  lines.push(`Effective area         Cd·a  = ${toU(ea.value, ue)} m²   u = ${sig(ue, 2)} m²`);
+  const { perSi, symbol } = displayUnit('area', units);
+  const ue = ea.standardUncertainty * perSi;
+  const area = (m2: number) => toU(m2 * perSi, ue);
   lines.push(
-    `                       95 % interval ${toU(ea.ci95[0], ue)} … ${toU(ea.ci95[1], ue)} m²` +
+    `Effective area         Cd·a  = ${measurementText(ea.value * perSi, ea.expandedUncertainty === undefined ? null : ea.expandedUncertainty * perSi, symbol)}   (U, k = ${sig(ea.coverageFactor, 3)}; u = ${uncertaintyText(ue, symbol)})`,
+  );
+  lines.push(
+    `                       95 % interval ${area(ea.ci95[0])} … ${area(ea.ci95[1])} ${symbol}` +
       (ea.profileCi95
-        ? `   profile: ${toU(ea.profileCi95[0], ue)} … ${toU(ea.profileCi95[1], ue)} m²`
+        ? `   profile: ${area(ea.profileCi95[0])} … ${area(ea.profileCi95[1])} ${symbol}`
         : ''),
   );
 }

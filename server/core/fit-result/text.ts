@@ -1,4 +1,12 @@
-import { sig, toU } from '../analysis/format.js';
+import { sig, toU } from '../format/digits.js';
+import {
+  DEFAULT_UNIT_SYSTEM,
+  displayUnit,
+  quantityOfSiUnit,
+  type UnitSystem,
+} from '../format/unit-system.js';
+import { countText } from '../format/words.js';
+import { uncertaintyText } from '../format/uncertainty.js';
 import type { FitCorrelations, FitParameter, SolverRecord } from './schema.js';
 
 /**
@@ -10,16 +18,26 @@ export const pad = (s: string, w: number) => (s.length >= w ? s : s + ' '.repeat
 
 const n = (x: number | null | undefined) => (typeof x === 'number' ? x : NaN);
 
-export function parameterLines(parameters: readonly FitParameter[], nameWidth = 22): string[] {
+/** The parameters table, each value in the person's units (areas mm²/in², flows L/s or gal/min, lengths m/ft). */
+export function parameterLines(
+  parameters: readonly FitParameter[],
+  nameWidth = 22,
+  units: UnitSystem = DEFAULT_UNIT_SYSTEM,
+): string[] {
   const lines = [
     'Parameters',
     `  ${pad('name', nameWidth)}${pad('value', 14)}${pad('std. unc.', 12)}${pad('95 % interval', 30)}unit`,
   ];
   for (const p of parameters) {
-    const u = n(p.standardUncertainty);
-    const ci = p.ci95 ? `${toU(n(p.ci95[0]), u)} … ${toU(n(p.ci95[1]), u)}` : 'fixed';
+    const q = quantityOfSiUnit(p.unit);
+    const { perSi, symbol } = q ? displayUnit(q, units) : { perSi: 1, symbol: p.unit };
+    const u = n(p.standardUncertainty) * perSi;
+    const ci = p.ci95
+      ? `${toU(n(p.ci95[0]) * perSi, u)} … ${toU(n(p.ci95[1]) * perSi, u)}`
+      : 'fixed';
+    const v = n(p.value) * perSi;
     lines.push(
-      `  ${pad(p.name, nameWidth)}${pad(p.free ? toU(n(p.value), u) : sig(n(p.value), 6), 14)}${pad(p.free ? sig(u, 2) : '—', 12)}${pad(ci, 30)}${p.unit}${p.atBound ? '  (at bound)' : ''}`,
+      `  ${pad(p.name, nameWidth)}${pad(p.free ? toU(v, u) : sig(v, 6), 14)}${pad(p.free ? uncertaintyText(u) : '—', 12)}${pad(ci, 30)}${symbol}${p.atBound ? '  (at bound)' : ''}`,
     );
   }
   return lines;
@@ -45,7 +63,10 @@ export function solverLine(s: SolverRecord | undefined, converged: boolean): str
 
 export function warningLines(warnings: readonly { message: string }[]): string[] {
   if (!warnings.length) return ['Warnings: none'];
-  return ['Warnings', ...warnings.map((w) => `  ! ${w.message}`)];
+  return [
+    countText(warnings.length, 'warning').replace(/^./, (c) => c.toUpperCase()),
+    ...warnings.map((w) => `  ! ${w.message}`),
+  ];
 }
 
 export const SAFETY_LINES = [

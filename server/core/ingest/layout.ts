@@ -9,6 +9,7 @@ import { newParts, scanDateTime } from './datetime.js';
 import { GROUPED, numberFormat } from './number-format.js';
 import { parseNumber, DECIMAL_COMMA, DECIMAL_DOT } from './numbers.js';
 import type { LevelSeries, ReadNote } from './series.js';
+import { countText } from '../format/words.js';
 
 export interface HeadRow {
   line: number;
@@ -238,7 +239,7 @@ export function findLayout(
   if (hasHeader)
     notes.push({
       code: 'header',
-      message: `header on line ${prev!.line}${metadata.length ? `, after ${metadata.length} line(s) of metadata` : ''}`,
+      message: `header on line ${prev!.line}${metadata.length ? `, after ${countText(metadata.length, 'line')} of metadata` : ''}`,
     });
   else notes.push({ code: 'header', message: 'no header row: columns are named by position' });
   const sample = rows.slice(first, first + SAMPLE_ROWS);

@@ -344,11 +344,12 @@ export function makePlan(
   const givenUnit = forBaro ? undefined : opts.unit;
   if (vh.unit && (vh.unitKind === 'length' || vh.unitKind === 'pressure')) {
     unit = vh.unit;
-    if (givenUnit && givenUnit !== vh.unit)
-      warnings.push({
-        code: 'unit-ignored',
-        message: `header of "${vName}" says "${vh.unit}": --unit ${givenUnit} ignored`,
-      });
+    // A given unit that would be ignored is refused, not warned about: the person meant something.
+    if (givenUnit && !sameUnit(givenUnit, vh.unit))
+      throw new InputError(
+        `unit "${givenUnit}" was given but the header of column "${vName}" already says "${vh.unit}": the given unit would be ignored; leave it out or correct the header`,
+        { file: fileName, field: 'unit' },
+      );
   } else if (givenUnit) {
     unit = givenUnit;
     notes.push({
@@ -475,4 +476,15 @@ function longValueColumn(
       : "found no numeric column for the tags' values; name it with --level-column",
     { file: fileName },
   );
+}
+
+/** Two spellings of one unit (m and metres, kPa and kpa): the same factor to SI. */
+function sameUnit(a: string, b: string): boolean {
+  if (a === b) return true;
+  const la = lengthFactorToM(a),
+    lb = lengthFactorToM(b);
+  if (la !== null && lb !== null) return la === lb;
+  const pa = pressureFactorToPa(a),
+    pb = pressureFactorToPa(b);
+  return pa !== null && pb !== null && pa === pb;
 }

@@ -17,6 +17,7 @@ import type { LevelSeries, ReadNote } from './series.js';
 import { ZoneResolver } from './zone.js';
 import { isZip } from './workbook.js';
 import { decideDateOrder, readTextHead } from './head.js';
+import { countText } from '../format/words.js';
 
 interface Raw {
   layout: Layout;
@@ -73,29 +74,32 @@ function pass(
   if (col.badRows)
     warnings.push({
       code: 'rows-skipped',
-      message: `${col.badRows} row(s) with unreadable cells skipped (line ${col.badLines.join(', ')}${col.badRows > col.badLines.length ? ', …' : ''})`,
+      message: `${countText(col.badRows, 'row')} with unreadable cells skipped (line ${col.badLines.join(', ')}${col.badRows > col.badLines.length ? ', …' : ''})`,
     });
   if (col.n === 0) throw new InputError('no readable data rows', { file: fileName });
   if (col.local) {
     if (zone)
       notes.push({
         code: 'time-zone',
-        message: `${col.local} local time(s) without offset read in ${zone.zone} (${opts.tzSource ?? 'as stated'})`,
+        message: `${countText(col.local, 'local time')} without offset read in ${zone.zone} (${opts.tzSource ?? 'as stated'})`,
       });
     else
       notes.push({
         code: 'time-zone',
-        message: `${col.local} time(s) without offset treated as UTC (give --tz for local times)`,
+        message: `${countText(col.local, 'time')} without offset treated as UTC (give --tz for local times)`,
       });
   }
   if (col.withOffset)
-    notes.push({ code: 'time-zone', message: `${col.withOffset} time(s) carry their UTC offset` });
+    notes.push({
+      code: 'time-zone',
+      message: `${countText(col.withOffset, 'time')} ${col.withOffset === 1 ? 'carries its' : 'carry their'} UTC offset`,
+    });
   if (col.local && col.withOffset)
     warnings.push({ code: 'mixed-offsets', message: 'some times carry an offset and some do not' });
   if (col.repeated)
     warnings.push({
       code: 'dst-repeated',
-      message: `${col.repeated} time(s) in the hour repeated when clocks went back in ${zone!.zone}: resolved by row order`,
+      message: `${countText(col.repeated, 'time')} in the hour repeated when clocks went back in ${zone!.zone}: resolved by row order`,
     });
   if (col.hourBack && !zone && col.local) {
     throw new InputError(
@@ -116,7 +120,7 @@ function pass(
   if (rep.copies)
     warnings.push({
       code: 'duplicates-dropped',
-      message: `${rep.copies} repeated row(s) dropped (first on line ${rep.firstLine})`,
+      message: `${countText(rep.copies, 'repeated row')} dropped (first on line ${rep.firstLine})`,
     });
   if (rep.conflicts > Math.max(2, CLASH_FRACTION * col.rows)) {
     const hint =
@@ -132,7 +136,7 @@ function pass(
   if (rep.conflicts)
     warnings.push({
       code: 'conflicting-duplicates',
-      message: `${rep.conflicts} row(s) repeat an earlier time with a different value: the first kept (first on line ${rep.firstLine})`,
+      message: `${countText(rep.conflicts, 'row')} ${rep.conflicts === 1 ? 'repeats' : 'repeat'} an earlier time with a different value: the first kept (first on line ${rep.firstLine})`,
     });
   if (col.n < 2)
     throw new InputError('only one data row: a drain test needs a series of readings', {
@@ -178,7 +182,7 @@ function longFormat(
   const tag = pickTag(tags, wanted, fileName, forBaro ? 'barometric' : 'level', tagHeader);
   notes.push({
     code: 'long-format',
-    message: `one row per time and tag (tag column "${tagHeader}", ${tags.length} tag(s)): the ${forBaro ? 'barometric' : 'level'} series is tag "${tag.tag}"${tag.unit ? ` [${tag.unit}]` : ''}, ${tag.rows} rows`,
+    message: `one row per time and tag (tag column "${tagHeader}", ${countText(tags.length, 'tag')}): the ${forBaro ? 'barometric' : 'level'} series is tag "${tag.tag}"${tag.unit ? ` [${tag.unit}]` : ''}, ${tag.rows} rows`,
   });
   return { ...cols, tag, tags };
 }
@@ -356,7 +360,7 @@ export function readLevelLog(
       .join(', ');
     warnings.push({
       code: 'gaps',
-      message: `${gaps.length} gap(s) longer than 5 median intervals: ${list}${gaps.length > 3 ? ', …' : ''}`,
+      message: `${countText(gaps.length, 'gap')} longer than 5 median intervals: ${list}${gaps.length > 3 ? ', …' : ''}`,
     });
   }
   const series: LevelSeries = {

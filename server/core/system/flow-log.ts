@@ -10,6 +10,7 @@ import { makePlan } from '../ingest/plan.js';
 import type { RowSource } from '../ingest/rows.js';
 import { ZoneResolver } from '../ingest/zone.js';
 import { flowFactorToM3s } from '../units/index.js';
+import { countText } from '../format/words.js';
 
 /**
  * A logged inflow (a flow meter's or a pump's record: time and flow) in SI units. The level-log
@@ -144,7 +145,7 @@ function readWith(
   const warnings: string[] = [];
   if (col.badRows)
     warnings.push(
-      `${col.badRows} row(s) with unreadable cells skipped (line ${col.badLines.join(', ')})`,
+      `${countText(col.badRows, 'row')} with unreadable cells skipped (line ${col.badLines.join(', ')})`,
     );
   if (col.outOfOrder) {
     sortByTime(col);
@@ -153,7 +154,7 @@ function readWith(
   const rep = dropRepeats(col);
   if (rep.copies + rep.conflicts)
     warnings.push(
-      `${rep.copies + rep.conflicts} row(s) repeating an earlier time dropped (first on line ${rep.firstLine})`,
+      `${countText(rep.copies + rep.conflicts, 'row')} repeating an earlier time dropped (first on line ${rep.firstLine})`,
     );
   const n = col.n;
   if (n < 2) throw new InputError('an inflow log needs at least two readings', { file: fileName });

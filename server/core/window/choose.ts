@@ -20,6 +20,7 @@ import type {
   WindowOptions,
   WindowTrim,
 } from './types.js';
+import { countText } from '../format/words.js';
 
 const s1 = (t: number) => `${t.toFixed(1)} s`;
 const m3 = (m: number) => `${m.toFixed(3)} m`;
@@ -151,7 +152,7 @@ export function chooseDrainWindow(
   if (spikes.length)
     notes.push({
       code: 'spikes',
-      message: `${spikes.length} reading(s) stand out from their neighbours (moving median test) and are left out`,
+      message: `${countText(spikes.length, 'reading')} ${spikes.length === 1 ? 'stands' : 'stand'} out from their neighbours (moving median test) and are left out`,
     });
   for (const r of clipping) warnings.push({ code: 'clipping', message: r.reason });
   for (const r of flatLines) warnings.push({ code: 'flat-line', message: r.reason });
@@ -318,7 +319,7 @@ export function chooseDrainWindow(
   if (inside)
     notes.push({
       code: 'spikes-in-window',
-      message: `${inside} spike(s) inside the window are left out of the fit`,
+      message: `${countText(inside, 'spike')} inside the window ${inside === 1 ? 'is' : 'are'} left out of the fit`,
     });
   const setAside = [...clipping, ...flatLines].filter(
     (r) => r.endIndex >= startIndex && r.startIndex <= endIndex,
@@ -326,7 +327,7 @@ export function chooseDrainWindow(
   if (setAside.length) {
     warnings.push({
       code: 'set-aside-in-window',
-      message: `${setAside.length} stuck or clipped run(s) inside the window are left out of the fit`,
+      message: `${countText(setAside.length, 'stuck or clipped run')} inside the window ${setAside.length === 1 ? 'is' : 'are'} left out of the fit`,
     });
   }
   notes.push({

@@ -40,7 +40,7 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['audit'],
         summary:
-          'The audit log, oldest first; page on with afterSeq (a person limited to sites: one vessel of theirs at a time, vesselId)',
+          'The audit log, oldest first (page on with afterSeq) or with order=newest newest first (page on with beforeSeq); a person limited to sites: one vessel of theirs at a time, vesselId',
         querystring: z.object({
           entityType: tagText().optional(),
           entityId: tagText().optional(),
@@ -53,10 +53,24 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
           since: tagText().optional(),
           until: tagText().optional(),
           afterSeq: z.coerce.number().int().min(0).default(0),
+          beforeSeq: z.coerce.number().int().min(1).optional(),
+          order: z.enum(['oldest', 'newest']).default('oldest'),
           limit: z.coerce.number().int().min(1).max(1000).default(100),
         }),
         response: {
-          200: z.object({ items: z.array(entry), nextAfterSeq: z.number().int().nullable() }),
+          200: z.object({
+            items: z.array(entry),
+            nextAfterSeq: z
+              .number()
+              .int()
+              .nullable()
+              .meta({ description: 'oldest first: the afterSeq of the next page (null: none)' }),
+            nextBeforeSeq: z
+              .number()
+              .int()
+              .nullable()
+              .meta({ description: 'newest first: the beforeSeq of the next page (null: none)' }),
+          }),
           ...protectedErrors,
         },
       },
@@ -71,10 +85,14 @@ export const auditRoutes: FastifyPluginAsyncZod = async (app) => {
           );
         assertSite(request, await app.store.sites.siteOf('vessel', request.query.vesselId));
       }
-      const items = await app.store.audit.list(request.query);
+      const { order, ...filter } = request.query;
+      const newestFirst = order === 'newest';
+      const items = await app.store.audit.list({ ...filter, newestFirst });
+      const last = items.length === request.query.limit ? items[items.length - 1].seq : null;
       return {
         items,
-        nextAfterSeq: items.length === request.query.limit ? items[items.length - 1].seq : null,
+        nextAfterSeq: newestFirst ? null : last,
+        nextBeforeSeq: newestFirst ? last : null,
       };
     },
   );

@@ -7,6 +7,11 @@
  * with a time limit (503 past it).
  * Registered by app.ts with `await app.register(reportRoutes);` beside the other route modules.
  */
+import {
+  DEFAULT_UNIT_SYSTEM,
+  UNIT_SYSTEMS,
+  type UnitSystem,
+} from '../../core/format/unit-system.js';
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { nameText, tagText } from '../../core/limits.js';
@@ -47,7 +52,19 @@ const withUrls = <T extends { id: string; state: string }>(j: T) => ({
   archiveUrl: j.state === 'done' ? `/api/exports/${j.id}/archive.zip` : null,
 });
 
+const unitsQuery = z
+  .enum(UNIT_SYSTEMS)
+  .optional()
+  .meta({ description: "si or us; default: the asker's display preference (the JSON stays SI)" });
+
 export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
+  /** A PDF is written in the units asked for, else in the asker's preference. */
+  const unitsFor = async (asked: UnitSystem | undefined, userId: number | undefined) =>
+    asked ??
+    (userId === undefined
+      ? DEFAULT_UNIT_SYSTEM
+      : (await app.store.preferences.get(userId)).displayUnits);
+
   app.get(
     '/api/fits/:id/report.pdf',
     {
@@ -56,12 +73,14 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['reports'],
         summary: "The fit's report as PDF (deterministic bytes)",
         params: idParams,
+        querystring: z.object({ units: unitsQuery }),
         response: { 200: binary, 503: problem, ...protectedErrors },
       },
     },
     async (request, reply) => {
       const report = await fitReport(app.store, request.params.id, currentSoftware());
-      const pdf = await app.tasks('fit-report-pdf', report);
+      const units = await unitsFor(request.query.units, request.user?.id);
+      const pdf = await app.tasks('fit-report-pdf', { report, units });
       return reply
         .type('application/pdf')
         .header(
@@ -101,7 +120,7 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
         tags: ['reports'],
         summary: "An outlet's approved fits and trend as PDF",
         params: idParams,
-        querystring: z.object({ asOf: tagText().optional() }),
+        querystring: z.object({ asOf: tagText().optional(), units: unitsQuery }),
         response: { 200: binary, 422: problem, 503: problem, ...protectedErrors },
       },
     },
@@ -112,7 +131,8 @@ export const reportRoutes: FastifyPluginAsyncZod = async (app) => {
         currentSoftware(),
         request.query.asOf,
       );
-      const pdf = await app.tasks('outlet-report-pdf', report);
+      const units = await unitsFor(request.query.units, request.user?.id);
+      const pdf = await app.tasks('outlet-report-pdf', { report, units });
       return reply
         .type('application/pdf')
         .header(

@@ -4,6 +4,7 @@ import { PUBLIC, READERS } from '../access.js';
 import { SESSION_COOKIE } from '../auth.js';
 import { HttpProblem } from '../problems.js';
 import { problem } from '../schemas.js';
+import { UNIT_SYSTEMS } from '../../core/format/unit-system.js';
 
 export interface SessionOptions {
   ttlMs: number;
@@ -11,11 +12,15 @@ export interface SessionOptions {
   signInPerMinute: number;
 }
 
+const displayUnits = z.enum(UNIT_SYSTEMS);
+
 const whoami = z.object({
   id: z.number().int(),
   name: z.string(),
   role: z.string(),
   sites: z.array(z.string()).nullable(),
+  /** The units this person reads results in (the workbench and their PDFs); JSON stays SI. */
+  displayUnits,
 });
 
 /** Sign-in for the browser: a token in, an httpOnly SameSite=Strict cookie out. */
@@ -47,8 +52,15 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
         expires: new Date(expiresAt),
       });
       reply.code(201);
+      const prefs = await app.store.preferences.get(user.id);
       return {
-        user: { id: user.id, name: user.name, role: user.role, sites: user.sites },
+        user: {
+          id: user.id,
+          name: user.name,
+          role: user.role,
+          sites: user.sites,
+          displayUnits: prefs.displayUnits,
+        },
         expiresAt,
       };
     },
@@ -70,8 +82,24 @@ export const sessionRoutes: FastifyPluginAsyncZod<SessionOptions> = async (app, 
         name: request.user!.name,
         role: request.user!.role,
         sites: request.user!.sites,
+        displayUnits: (await app.store.preferences.get(request.user!.id)).displayUnits,
       },
     }),
+  );
+
+  app.put(
+    '/api/session/preferences',
+    {
+      config: { roles: READERS, scope: 'none' },
+      schema: {
+        tags: ['session'],
+        summary: "The signed-in person's display preferences (units: si or us)",
+        body: z.object({ displayUnits }),
+        response: { 200: z.object({ displayUnits }), 400: problem },
+      },
+    },
+    async (request) =>
+      app.store.preferences.setDisplayUnits(request.user!.id, request.body.displayUnits),
   );
 
   app.delete(

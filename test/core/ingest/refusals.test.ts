@@ -56,7 +56,7 @@ describe('unreadable cells', () => {
     const s = readLevelLog(enc(text), 'log.csv');
     expect(s.timeS.length).toBe(298);
     const w = s.warnings.find((x) => x.code === 'rows-skipped')!;
-    expect(w.message).toMatch(/2 row\(s\).*line 12, 22/);
+    expect(w.message).toMatch(/2 rows with unreadable cells.*line 12, 22/);
   });
   it('refuses beyond 1 % of rows, naming the first bad line and column', () => {
     const text = `Elapsed (s),Level (m)\n${rows(100, (i) => (i % 20 === 5 ? 'n/a' : '1.0'))}\n`;

@@ -31,7 +31,7 @@ describe('timestamps', () => {
     expect(s.t0EpochMs).toBe(Date.UTC(2026, 4, 4, 8, 0, 0));
     expect(Array.from(s.timeS)).toEqual([0, 1, 2]);
     expect(s.notes.find((n) => n.code === 'time-zone')!.message).toMatch(
-      /3 time\(s\) carry their UTC offset/,
+      /3 times carry their UTC offset/,
     );
   });
   it('reads "YYYY-MM-DD hh:mm:ss.fff" as UTC without --tz, and says so', () => {
@@ -205,7 +205,7 @@ describe('order, repeats and gaps', () => {
     const secs = [0, 1, 2, 3, 4, 5, 11, 12, 13];
     const s = read(log('Elapsed (s)', secs.map(String)));
     const gap = s.warnings.find((w) => w.code === 'gaps')!;
-    expect(gap.message).toMatch(/1 gap\(s\).*5–11 s \(line 8\)/);
+    expect(gap.message).toMatch(/1 gap longer than 5 median intervals.*5–11 s \(line 8\)/);
     const four = read(log('Elapsed (s)', [0, 1, 2, 3, 4, 5, 10, 11].map(String)));
     expect(codes(four.warnings)).not.toContain('gaps');
   });

@@ -1,5 +1,6 @@
 /**
- * The auditor's view: the audit log filtered by vessel, person and date, the hash-chain check,
+ * The auditor's view: the audit log, newest first, filtered by vessel, person, kind of action and
+ * date (actions in plain words from core/audit/action-labels.ts), the hash-chain check,
  * links to every fit's PDF report and each outlet's report, and the period export (zip).
  * Auditors and admins only (the service refuses the others; the page says so).
  */
@@ -8,37 +9,10 @@ import { field, h, notice, select } from '../dom.js';
 import { dateTime } from '../format.js';
 import type { PageContext } from '../main.js';
 import type { AuditEntry } from '../../../server/store/audit.js';
+import { actionGroups, actionLabel } from '../../../server/core/audit/action-labels.js';
 
 /** An audit entry as the service sends it (server/store/audit.ts, type-only). */
 type Entry = AuditEntry;
-
-const ACTION_WORDS: Record<string, string> = {
-  'vessel.create': 'vessel added',
-  'vessel.update': 'vessel file changed',
-  'test.upload': 'drain test uploaded',
-  'test.withdraw': 'upload withdrawn (file refused, disk full, or taken back with a reason)',
-  'test.retry': 'analysis asked for again',
-  'service.mark-demo': 'data folder marked as the invented demo',
-  'fit.create': 'fit made',
-  'fit.refit': 'fit made again',
-  'fit.approve': 'fit approved',
-  'fit.reject': 'fit rejected',
-  'joint-fit.create': 'connected-vessel fit stored',
-  'joint-fit.approve': 'connected-vessel fit approved',
-  'joint-fit.reject': 'connected-vessel fit rejected',
-  'event.create': 'maintenance recorded',
-  'outlet.status-change': 'outlet status changed',
-  'session.open': 'signed in',
-  'session.close': 'signed out',
-  'user.create': 'person added',
-  'user.update': 'role or sites changed',
-  'user.revoke': 'person revoked (sessions ended)',
-  'token.revoke': 'access token revoked (sessions ended)',
-  'site.settings': 'site setting changed (self-review, time zone or test interval)',
-  'outlet.interval': 'outlet test interval changed',
-  'fit.supersede': 'fit replaced by an approved one',
-  'api-token.create': 'access token made',
-};
 
 const PAGE = 200;
 
@@ -48,7 +22,7 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
     h(
       'p',
       { class: 'lede' },
-      'Every change the service made, in order, each entry sealed with the hash of the one before. Filter it, check the chain, open the reports, and export a period.',
+      'Every change the service made, newest first, each entry sealed with the hash of the one before. Filter it, check the chain, open the reports, and export a period.',
     ),
   );
   if (user.role !== 'auditor' && user.role !== 'admin') {
@@ -61,6 +35,19 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
     ...vessels.items.map((v): [string, string] => [String(v.id), `${v.name} (${v.site})`]),
   ]);
   const person = select('actorId', [['', 'everyone']]);
+  // the kinds of action, in plain words, grouped by what they act on
+  const action = h(
+    'select',
+    { name: 'action' },
+    h('option', { value: '' }, 'every action'),
+    ...actionGroups().map((g) =>
+      h(
+        'optgroup',
+        { label: g.group },
+        ...g.actions.map((a) => h('option', { value: a.action }, a.label)),
+      ),
+    ),
+  );
   const since = h('input', { type: 'date', name: 'since' });
   const until = h('input', { type: 'date', name: 'until' });
   const show = h('button', { type: 'submit', class: 'primary' }, 'Show entries');
@@ -75,6 +62,7 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
     { class: 'filters audit-filters' },
     field('Vessel', vessel),
     field('Person', person),
+    field('What happened', action),
     field('From (inclusive)', since),
     field('Until (inclusive)', until),
     h('div', { class: 'actions' }, show),
@@ -120,11 +108,14 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
   );
 
   const people = new Map<string, string>();
-  let after = 0;
+  // newest first: each page ends before the oldest entry shown so far
+  let before: number | null = null;
   const query = () => {
-    const q = new URLSearchParams({ limit: String(PAGE), afterSeq: String(after) });
+    const q = new URLSearchParams({ limit: String(PAGE), order: 'newest' });
+    if (before !== null) q.set('beforeSeq', String(before));
     if (vessel.value) q.set('vesselId', vessel.value);
     if (person.value) q.set('actorId', person.value);
+    if (action.value) q.set('action', action.value);
     if (since.value) q.set('since', since.value);
     // "until" is exclusive in the API: the day after, so the chosen day is included
     if (until.value)
@@ -153,7 +144,7 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
       h('td', { class: 'num' }, String(e.seq)),
       h('td', {}, dateTime(e.at).replace(' UTC', '')),
       h('td', {}, e.actorName),
-      h('td', {}, ACTION_WORDS[e.action] ?? e.action),
+      h('td', { title: e.action }, actionLabel(e.action)),
       h('td', {}, on),
       h('td', {}, links),
       h('td', {}, h('code', { title: e.hash }, e.hash.slice(0, 12) + '…')),
@@ -162,11 +153,11 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
   let shown = 0;
   const load = async (fresh: boolean) => {
     if (fresh) {
-      after = 0;
+      before = null;
       shown = 0;
       body.replaceChildren();
     }
-    const page = await api<{ items: Entry[]; nextAfterSeq: number | null }>(
+    const page = await api<{ items: Entry[]; nextBeforeSeq?: number | null }>(
       'GET',
       `/api/audit?${query().toString()}`,
     );
@@ -185,9 +176,10 @@ export async function auditPage({ user, main }: PageContext): Promise<void> {
     }
     body.append(...page.items.map(row));
     shown += page.items.length;
-    after = page.nextAfterSeq ?? 0;
-    more.hidden = page.nextAfterSeq === null;
-    count.textContent = `${shown} entr${shown === 1 ? 'y' : 'ies'} shown${page.nextAfterSeq !== null ? ' (more below)' : ''}`;
+    const next = page.nextBeforeSeq ?? null;
+    before = next;
+    more.hidden = next === null;
+    count.textContent = `${shown} entr${shown === 1 ? 'y' : 'ies'} shown, newest first${next !== null ? ' (older ones below)' : ''}`;
   };
   const outletReports = () => {
     reports.replaceChildren();

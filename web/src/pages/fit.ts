@@ -23,22 +23,26 @@ import {
   date,
   dateTime,
   decimalsFor,
+  displayUnits,
+  metres,
   mm,
   num,
   paramName,
   plusMinus,
   seconds,
   termName,
+  unitOf,
 } from '../format.js';
 import type { PageContext } from '../main.js';
 import { modelForm, readingForm, windowForm } from '../reading.js';
 import { drainTimeWithBudget, drainVesselFromFit } from '../../../server/core/budget/drain-time.js';
+import { budgetTableOf } from '../../../server/core/budget/table.js';
 import { plainNames } from '../../../server/render/report-words.js';
 
 /** A parameter's value in the unit a person reads it in. */
 function scaled(unit: string): { factor: number; unit: string } {
-  if (unit === 'm²') return { factor: 1e6, unit: 'mm²' };
-  if (unit === 'm³/s') return { factor: 1000, unit: 'L/s' };
+  if (unit === 'm²') return { factor: unitOf('area').perSi, unit: unitOf('area').symbol };
+  if (unit === 'm³/s') return { factor: unitOf('flow').perSi, unit: unitOf('flow').symbol };
   if (unit === '1') return { factor: 1, unit: '' };
   return { factor: 1, unit };
 }
@@ -186,6 +190,33 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
         '.',
       ),
     );
+
+  // the evidence as uploaded: the stored bytes under their original names (GET /api/tests/:id/raw)
+  main.append(
+    h(
+      'p',
+      { class: 'raw-files' },
+      'Raw logger file: ',
+      h(
+        'a',
+        { href: `/api/tests/${test.id}/raw`, download: test.fileName, id: 'raw-log' },
+        test.fileName,
+      ),
+      ` (${test.size} bytes, SHA-256 `,
+      h('code', { title: test.sha256 }, `${test.sha256.slice(0, 12)}…`),
+      ')',
+      ...(test.baro
+        ? [
+            ' · barometric log: ',
+            h(
+              'a',
+              { href: `/api/tests/${test.id}/raw?file=baro`, download: test.baro.fileName },
+              test.baro.fileName,
+            ),
+          ]
+        : []),
+    ),
+  );
 
   // headline numbers
   const k = cd?.coverageFactor;
@@ -338,8 +369,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
           null,
           ['Head from', 'Head to', 'Readings', 'Cd', 'Standard uncertainty'],
           r.headBands.map((b) => [
-            `${num(b.headFromM, 4)} m`,
-            `${num(b.headToM, 4)} m`,
+            metres(b.headFromM, 4),
+            metres(b.headToM, 4),
             String(b.samples),
             (b.dischargeCoefficient ?? NaN).toFixed(decimalsFor(b.standardUncertainty ?? NaN)),
             num(b.standardUncertainty, 2),
@@ -352,7 +383,8 @@ export async function fitPage({ user, params, main, go }: PageContext): Promise<
 
   // the uncertainty budget, then the drain-time calculator from the same budget
   if (r.budget?.table) {
-    const t = r.budget.table;
+    // made again from the stored lines in the person's units (the same function as the CLI's)
+    const t = budgetTableOf(r.budget as Parameters<typeof budgetTableOf>[0], displayUnits());
     main.append(
       h(
         'section',

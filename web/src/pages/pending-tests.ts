@@ -4,7 +4,7 @@
  */
 import { api, ApiError, canReview, canUpload, type DrainTest, type User } from '../api.js';
 import { h, notice, table } from '../dom.js';
-import { date } from '../format.js';
+import { countText, date } from '../format.js';
 
 export function pendingSection(
   user: User,
@@ -36,7 +36,7 @@ export function pendingSection(
     const state = t.stuck
       ? `failed ${t.failedAttempts ?? 0} times; no longer retried on its own`
       : t.failedAttempts
-        ? `failed ${t.failedAttempts} time(s); retried at the next start`
+        ? `failed ${countText(t.failedAttempts, 'time')}; retried at the next start`
         : 'being analysed, or waiting for the next start';
     const controls = h('div', { class: 'actions' });
     if (canUpload(user)) {

@@ -10,7 +10,7 @@
 import { api, ApiError, canReview, canUpload, type User } from '../api.js';
 import { fitChart, residualChart } from '../charts.js';
 import { append as appendKids, field, h, notice, table } from '../dom.js';
-import { dateTime, decimalsFor, num, plusMinus, seconds } from '../format.js';
+import { area, dateTime, decimalsFor, flow, num, plusMinus, seconds } from '../format.js';
 import type { PageContext } from '../main.js';
 import type { JointFitResult } from '../../../server/core/fit-result/schema.js';
 import { plainProblem } from '../problem-words.js';
@@ -468,11 +468,7 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
         ],
         Object.entries(fit.outlets).map(([id, o]) => [
           id,
-          plusMinus(
-            o.effectiveAreaM2.value * 1e6,
-            (o.effectiveAreaM2.standardUncertainty ?? NaN) * 1e6,
-            'mm²',
-          ),
+          area(o.effectiveAreaM2.value, o.effectiveAreaM2.standardUncertainty ?? null),
           o.dischargeCoefficient
             ? plusMinus(
                 o.dischargeCoefficient.value,
@@ -512,7 +508,7 @@ export async function systemsPage({ user, main }: PageContext): Promise<void> {
                 String(l.to),
                 String(l.file),
                 String(l.samples),
-                typeof l.meanM3S === 'number' ? `${num(l.meanM3S * 1000, 4)} L/s` : '—',
+                typeof l.meanM3S === 'number' ? flow(l.meanM3S) : '—',
               ],
             ),
             'inflow-logs',
@@ -733,11 +729,11 @@ function showSteady(out: HTMLElement, s: Steady, lm: Linear): void {
       ],
       Object.entries(s.vessels).map(([id, v]) => [
         id,
-        `${num((s.inflowM3S[id] ?? 0) * 1000, 4)} L/s`,
+        flow(s.inflowM3S[id] ?? 0),
         estimate(v.levelM, 'm'),
         interval(v.levelM, 'm'),
         `${num(v.headM, 4)} m`,
-        `${num(v.outflowM3S * 1000, 4)} L/s`,
+        flow(v.outflowM3S),
         h(
           'span',
           { class: v.levelM.value > v.heightM ? 'strong-corr' : '' },

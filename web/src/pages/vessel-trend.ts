@@ -1,7 +1,7 @@
 /** The vessel page's trend of approved tests per outlet, and the maintenance record with its entry form. */
 import { api, ApiError, type MaintenanceEvent, type Outlet } from '../api.js';
 import { field, h, notice, select, table } from '../dom.js';
-import { date, duration, num, plusMinus } from '../format.js';
+import { area, date, duration, num, plusMinus, unitOf } from '../format.js';
 import { trendChart, type FullTrend, type TrendQuantity } from '../trend-chart.js';
 
 const STATUS_CLASS: Record<string, string> = {
@@ -39,10 +39,8 @@ function scheduleWords(t: FullTrend): HTMLElement | null {
   const now = t.epochs.find((e) => e.current)?.newTestNow ?? null;
   const parts = [`Next test: ${sentence(s.reason)}`];
   if (s.overdue && now) {
-    const hw = now.halfWidth95 * 1e6;
-    const decimals = Math.max(0, 1 - Math.floor(Math.log10(hw)));
     parts.push(
-      `A test today is expected to read ${(now.value * 1e6).toFixed(decimals)} ± ${hw.toPrecision(2)} mm² (95 % prediction interval for a new test; it widens the longer the outlet goes untested).`,
+      `A test today is expected to read ${area(now.value, now.halfWidth95)} (95 % prediction interval for a new test; it widens the longer the outlet goes untested).`,
     );
   }
   return h(
@@ -99,7 +97,7 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
   const quantity = select(
     `trend-q-${o.id}`,
     [
-      ['area', 'effective area Cd·a (mm²)'],
+      ['area', `effective area Cd·a (${unitOf('area').symbol})`],
       ['cd', 'discharge coefficient Cd'],
     ],
     'area',
@@ -195,8 +193,8 @@ function outletTrend(o: Outlet, t: FullTrend): HTMLElement {
           e.startedBy ? `${e.startedBy.kind} on ${date(e.startedBy.at)}` : 'first test',
           String(e.series.length),
           driftCell(e),
-          e.area ? `${num(e.area.baselineValue * 1e6, 4)} mm²` : '—',
-          e.thresholdM2 !== null ? `${num(e.thresholdM2 * 1e6, 4)} mm²` : '—',
+          e.area ? area(e.area.baselineValue) : '—',
+          e.thresholdM2 !== null ? area(e.thresholdM2) : '—',
           e.step ? (e.step.flagged ? `flagged: ${e.step.reason}` : 'no step') : '—',
         ]),
         'trend-table',

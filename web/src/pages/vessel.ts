@@ -186,6 +186,18 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
       section.append(h('p', {}, 'No fitted test yet.'));
       continue;
     }
+    if (o && mine.filter((f) => f.fit.outletId === o.id).length >= 2)
+      section.append(
+        h(
+          'p',
+          {},
+          h(
+            'a',
+            { href: `#/vessels/${id}/outlets/${o.id}/compare`, class: 'compare-link' },
+            `Compare tests of ${o.key} side by side`,
+          ),
+        ),
+      );
     const evs = events.filter((e) => o === null || e.outletId === null || e.outletId === o.id);
     section.append(
       h(
@@ -249,7 +261,12 @@ export async function vesselPage({ user, params, main, go }: PageContext): Promi
         const cd = f?.fit.result.dischargeCoefficient;
         return [
           h('time', {}, date(f?.at ?? t.testedAt ?? t.createdAt)),
-          t.fileName,
+          // the stored bytes under their original name (an auditor's copy of the evidence)
+          h(
+            'a',
+            { href: `/api/tests/${t.id}/raw`, download: t.fileName, class: 'raw-download' },
+            t.fileName,
+          ),
           v.outlets.find((o) => o.id === t.outletId)?.key ?? '—',
           t.operator ?? '—',
           cd
