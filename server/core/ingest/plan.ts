@@ -14,6 +14,9 @@ import type { TagColumns, TagSummary } from './long-format.js';
 import type { DateOrder, Quantity, ReadOptions } from './options.js';
 import type { ColumnRole, DetectedColumn, ReadNote } from './series.js';
 
+/** A header cell as a one-line message shows it: control characters (a newline inside quotes) escaped. */
+const shownName = (name: string): string => JSON.stringify(name).slice(1, -1);
+
 export type TimePlan =
   | { kind: 'text'; col: number; order: DateOrder }
   | { kind: 'date+clock'; dateCol: number; clockCol: number; order: DateOrder }
@@ -170,7 +173,7 @@ export function makePlan(
       const clock = kinds.findIndex((kk, j) => j !== c && kk.kind === 'clock');
       if (clock < 0)
         throw new InputError(
-          `column "${layout.names[c]}" holds dates without times, and no column holds clock times`,
+          `column "${shownName(layout.names[c])}" holds dates without times, and no column holds clock times`,
           { file: fileName, field: layout.names[c] },
         );
       roles[c] = 'date';
@@ -193,10 +196,13 @@ export function makePlan(
       return { kind: 'clock', col: c };
     }
     if (k.kind !== 'number')
-      throw new InputError(`column "${layout.names[c]}" does not hold times (${k.kind} values)`, {
-        file: fileName,
-        field: layout.names[c],
-      });
+      throw new InputError(
+        `column "${shownName(layout.names[c])}" does not hold times (${k.kind} values)`,
+        {
+          file: fileName,
+          field: layout.names[c],
+        },
+      );
     roles[c] = 'time';
     const unitMs = h.unit ? timeUnitMs(h.unit) : null;
     const say = (m: string) => {
@@ -331,10 +337,13 @@ export function makePlan(
   }
   const vName = layout.names[vc];
   if (kinds[vc].kind !== 'number')
-    throw new InputError(`column "${vName}" does not hold numbers (${kinds[vc].kind} values)`, {
-      file: fileName,
-      field: vName,
-    });
+    throw new InputError(
+      `column "${shownName(vName)}" does not hold numbers (${kinds[vc].kind} values)`,
+      {
+        file: fileName,
+        field: vName,
+      },
+    );
   // In long format the tag and its unit say what the value column holds, as a header would.
   const vh = long
     ? readHeader(long.tag.unit ? `${long.tag.tag} [${long.tag.unit}]` : long.tag.tag)
@@ -360,7 +369,7 @@ export function makePlan(
     throw new InputError(
       vh.unit
         ? `unit "${vh.unit}" of column "${vName}" is not a length or pressure unit we know; give --unit`
-        : `column "${vName}" gives no unit; give --unit (e.g. m, cm, mm, ft, kPa, psi)`,
+        : `column "${shownName(vName)}" gives no unit; give --unit (e.g. m, cm, mm, ft, kPa, psi)`,
       { file: fileName, field: vName },
     );
   }

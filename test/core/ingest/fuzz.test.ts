@@ -117,6 +117,19 @@ describe('fuzz: every input reads or is refused with InputError', () => {
       { numRuns: 600 },
     );
   });
+  it('a quoted header cell holding a newline is named on one line (a case fast-check found)', () => {
+    let b = Array.from(enc(SEEDS[5][0]));
+    for (const e of [
+      { at: 645636085, byte: 35, insert: false },
+      { at: 0, byte: 32, insert: true },
+      { at: 1607119278, byte: 35, insert: false },
+    ]) {
+      const at = e.at % (b.length + 1);
+      if (e.insert) b = [...b.slice(0, at), e.byte, ...b.slice(at)];
+      else if (at < b.length) b[at] = e.byte;
+    }
+    readsOrRefuses(Uint8Array.from(b), SEEDS[5][1]);
+  });
   it('valid files with delimiters, digits and line ends swapped', () => {
     const swaps: [string, string][] = [
       [',', ';'],
